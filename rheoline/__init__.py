@@ -1,0 +1,99 @@
+"""rheoline: flow, pressure and shear estimates for infusion lines and blood vessels.
+
+Engineering estimates, not for clinical decisions: see CAUTIONS.md.
+
+The public names below load on first use, so ``import rheoline`` stays light
+(it imports numpy and scipy only when a model is used, and never pandas,
+pint, plotly or ipywidgets).
+
+Examples
+--------
+>>> import rheoline
+>>> round(rheoline.water_viscosity(20.0) * 1e3, 3)   # mPa s
+1.002
+"""
+
+from __future__ import annotations
+
+import importlib
+
+from rheoline.errors import (  # noqa: F401  (light: no third-party imports)
+    InputRangeError,
+    NetworkError,
+    RangeWarning,
+    RegimeWarning,
+    RheolineError,
+    RheolineWarning,
+    ScenarioError,
+    UnitError,
+)
+
+__version__ = "0.1.0"
+
+#: The short caution every view, export and command-line result carries.
+CAUTION = (
+    "Engineering estimates, not for clinical decisions. The device maker's labelling, "
+    "local protocols and codes, and licensed clinical practice take precedence. See CAUTIONS.md."
+)
+
+# public name -> module that defines it.  Add a line here when a module gains a public name.
+_LAZY = {
+    # fluid properties
+    "water_viscosity": "rheoline.model.viscosity",
+    "water_density": "rheoline.model.viscosity",
+    "glycerol_water_viscosity": "rheoline.model.viscosity",
+    "glycerol_water_density": "rheoline.model.viscosity",
+    "glycerol_fraction_for_viscosity": "rheoline.model.viscosity",
+    "blood_viscosity": "rheoline.model.blood",
+    "plasma_viscosity": "rheoline.model.blood",
+    "pries_1992_relative_viscosity": "rheoline.model.blood",
+    "Fluid": "rheoline.model.fluid_base",
+    "newtonian_fluid": "rheoline.model.fluid_base",
+    "fluid": "rheoline.model.fluids",
+    "fluid_names": "rheoline.model.fluids",
+    "user_fluid_from_temperatures": "rheoline.model.fluids",
+    # rheology
+    "Newtonian": "rheoline.model.rheology",
+    "PowerLaw": "rheoline.model.rheology",
+    "Carreau": "rheoline.model.rheology",
+    "CarreauYasuda": "rheoline.model.rheology",
+    "Casson": "rheoline.model.rheology",
+    "RHEOLOGY_MODELS": "rheoline.model.rheology",
+    "fit_rheology": "rheoline.model.fitting",
+    "plate_drag_viscosity": "rheoline.model.fitting",
+    # lines
+    "poiseuille_flow": "rheoline.model.lumen",
+    "Tube": "rheoline.model.parts",
+    "Catheter": "rheoline.model.parts",
+    "Needle": "rheoline.model.parts",
+    "Cannula": "rheoline.model.parts",
+    "Fitting": "rheoline.model.parts",
+    "MeasuredPart": "rheoline.model.parts",
+    "Line": "rheoline.model.line",
+    # vessels and hemodynamics
+    "Vessel": "rheoline.model.vessels",
+    "vascular_resistance": "rheoline.model.hemodynamics",
+    "body_surface_area": "rheoline.model.hemodynamics",
+    # units (edge helpers; pint loads on first call)
+    "parse_quantity": "rheoline.units",
+    "format_quantity": "rheoline.units",
+}
+
+__all__ = sorted(
+    [*_LAZY, "CAUTION", "__version__", "RheolineError", "InputRangeError", "UnitError",
+     "ScenarioError", "NetworkError", "RheolineWarning", "RangeWarning", "RegimeWarning"]
+)
+
+
+def __getattr__(name):
+    try:
+        module = _LAZY[name]
+    except KeyError:
+        raise AttributeError(f"module 'rheoline' has no attribute {name!r}") from None
+    value = getattr(importlib.import_module(module), name)
+    globals()[name] = value
+    return value
+
+
+def __dir__():
+    return __all__

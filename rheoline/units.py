@@ -1,0 +1,224 @@
+"""Units at the edges: parse practitioner strings to SI floats, format SI for display.
+
+One pint registry serves the whole package.  pint is imported on first use only,
+so the model layer never pays for it.  Inside rheoline every number is SI:
+Pa, m, m^3/s, Pa s, kg/m^3, s; temperatures are degrees Celsius.
+
+Examples
+--------
+>>> parse_quantity("300 mmHg", "pressure")
+39996.6...
+>>> parse_quantity("150 mL/h", "flow")
+4.166...e-08
+>>> parse_quantity("22 degC", "temperature")
+22.0
+>>> format_quantity(39996.6, "pressure", "mmHg")
+'300 mmHg'
+"""
+
+from __future__ import annotations
+
+import functools
+import math
+import re
+
+from rheoline.errors import UnitError
+
+__all__ = [
+    "registry",
+    "KINDS",
+    "parse_quantity",
+    "to_unit",
+    "from_unit",
+    "format_quantity",
+    "MMHG",
+    "CMH2O",
+    "PSI",
+    "ML_PER_MIN",
+    "ML_PER_H",
+]
+
+# Exact or defining conversion factors, NIST SP 811 (2008), Appendix B.
+#: 1 mmHg [Pa] (conventional, 13.5951 g/cm^3 mercury, standard gravity)
+MMHG = 133.322387415
+#: 1 cmH2O [Pa] (conventional, 1 g/cm^3 water, standard gravity)
+CMH2O = 98.0665
+#: 1 psi [Pa]
+PSI = 6894.757293168
+#: 1 mL/min [m^3/s]
+ML_PER_MIN = 1e-6 / 60.0
+#: 1 mL/h [m^3/s]
+ML_PER_H = 1e-6 / 3600.0
+
+#: kind -> (SI unit as pint understands it, pint dimensionality, examples of accepted units)
+KINDS = {
+    "pressure": ("Pa", "[pressure]", "Pa, kPa, mmHg, cmH2O, psi, bar"),
+    "viscosity": ("Pa*s", "[viscosity]", "Pa s, mPa s, cP, P"),
+    "flow": ("m**3/s", "[volume] / [time]", "mL/h, mL/min, mL/s, L/min, m^3/s"),
+    "length": ("m", "[length]", "m, cm, mm, um, inch"),
+    "temperature": ("degC", "[temperature]", "degC, K, degF"),
+    "density": ("kg/m**3", "[mass] / [volume]", "kg/m^3, g/mL, g/cm^3"),
+    "volume": ("m**3", "[volume]", "mL, L, m^3"),
+    "time": ("s", "[time]", "s, min, h"),
+    "shear_rate": ("1/s", "1 / [time]", "1/s"),
+    "stress": ("Pa", "[pressure]", "Pa, dyn/cm^2"),
+    "dimensionless": ("dimensionless", "dimensionless", "a plain number, or %"),
+}
+
+
+@functools.lru_cache(maxsize=1)
+def registry():
+    """The package's single pint UnitRegistry (created on first use)."""
+    import pint
+
+    ureg = pint.UnitRegistry(autoconvert_offset_to_baseunit=True)
+    # The trade's pressure units with their conventional (NIST SP 811) values.
+    ureg.define(f"mmHg_conv = {MMHG} * Pa = mmHg_c")
+    ureg.define(f"cmH2O_conv = {CMH2O} * Pa = cmH2O_c")
+    return ureg
+
+
+_ALIASES = {
+    "mmhg": "mmHg_conv",
+    "cmh2o": "cmH2O_conv",
+    "cmH2O": "cmH2O_conv",
+    "mmHg": "mmHg_conv",
+    "torr": "torr",
+    "cp": "cP",
+    "mpa s": "mPa*s",
+    "mpa.s": "mPa*s",
+    "mpa·s": "mPa*s",
+    "pa s": "Pa*s",
+    "pa.s": "Pa*s",
+    "pa·s": "Pa*s",
+    "ml/h": "mL/hr",
+    "ml/hr": "mL/hr",
+    "ml/min": "mL/min",
+    "ml/s": "mL/s",
+    "l/min": "L/min",
+    "l/h": "L/hr",
+    "°c": "degC",
+    "°f": "degF",
+    "c": "degC",
+    "deg c": "degC",
+    "1/s": "1/s",
+    "s^-1": "1/s",
+    "%": "percent",
+    "fr": "french_gauge",
+}
+
+_NUMBER_UNIT = re.compile(r"^\s*([-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?)\s*(.*?)\s*$")
+
+
+def _normalize_unit(text: str) -> str:
+    key = text.strip()
+    low = key.lower()
+    if key in _ALIASES:
+        return _ALIASES[key]
+    if low in _ALIASES:
+        return _ALIASES[low]
+    # "Pa s", "mPa s" and similar products written with a space
+    key = re.sub(r"(?<=[A-Za-z])\s+(?=[A-Za-z])", "*", key)
+    return key.replace("^", "**").replace("·", "*")
+
+
+def parse_quantity(text, kind: str, default_unit: str | None = None, field: str = "value") -> float:
+    """Parse ``"300 mmHg"`` (or a bare number in ``default_unit``) to an SI float.
+
+    Parameters
+    ----------
+    text : str or float
+        A number followed by a unit, or a bare number when ``default_unit`` is given.
+    kind : str
+        One of :data:`KINDS` ("pressure", "viscosity", "flow", "length", ...).
+    default_unit : str, optional
+        Unit of a bare number; without it a bare number is an error (except for
+        ``kind="dimensionless"``).
+    field : str
+        The field's name, for messages.
+
+    Returns
+    -------
+    float
+        The value in SI (degrees Celsius for temperature).
+
+    Raises
+    ------
+    UnitError
+        For a missing, unknown or wrong-kind unit, naming the field and the units allowed.
+    """
+    if kind not in KINDS:
+        raise UnitError(f"unknown quantity kind {kind!r}; choose one of {sorted(KINDS)}")
+    si_unit, dimensionality, examples = KINDS[kind]
+    if isinstance(text, bool):
+        raise UnitError(f"{field}: expected a {kind} such as '{_example(kind)}', got {text!r}")
+    if isinstance(text, (int, float)):
+        if kind == "dimensionless":
+            return float(text)
+        if default_unit is None:
+            raise UnitError(
+                f"{field}: a bare number {text!r} needs a unit ({examples}), e.g. '{text} {_example_unit(kind)}'"
+            )
+        number, unit = float(text), default_unit
+    elif isinstance(text, str):
+        m = _NUMBER_UNIT.match(text)
+        if not m:
+            raise UnitError(f"{field}: cannot read {text!r} as a number with a unit ({examples})")
+        number = float(m.group(1))
+        unit = m.group(2)
+        if not unit:
+            if kind == "dimensionless":
+                return number
+            if default_unit is None:
+                raise UnitError(f"{field}: {text!r} has no unit; write it with one of {examples}")
+            unit = default_unit
+    else:
+        raise UnitError(f"{field}: expected a {kind} such as '{_example(kind)}', got {type(text).__name__}")
+    if not math.isfinite(number):
+        raise UnitError(f"{field}: {text!r} is not a finite number")
+    return from_unit(number, unit, kind, field=field)
+
+
+def from_unit(number, unit: str, kind: str, field: str = "value"):
+    """Convert ``number`` given in ``unit`` to SI for ``kind`` (vectorized over number)."""
+    import pint
+
+    ureg = registry()
+    si_unit, dimensionality, examples = KINDS[kind]
+    try:
+        q = ureg.Quantity(number, _normalize_unit(unit))
+    except (pint.errors.UndefinedUnitError, pint.errors.DefinitionSyntaxError, AttributeError,
+            TypeError, ValueError, AssertionError, SyntaxError) as exc:
+        raise UnitError(f"{field}: unknown unit {unit!r}; use one of {examples}") from exc
+    if kind == "dimensionless":
+        if not q.dimensionless:
+            raise UnitError(f"{field}: expected a plain number or %, got unit {unit!r}")
+        return q.to("dimensionless").magnitude
+    try:
+        return q.to(si_unit).magnitude
+    except pint.errors.DimensionalityError as exc:
+        raise UnitError(
+            f"{field}: {unit!r} is not a unit of {kind} ({examples})"
+        ) from exc
+
+
+def to_unit(value_si, unit: str, kind: str):
+    """Convert an SI value (or array) of ``kind`` to ``unit``."""
+    ureg = registry()
+    si_unit = KINDS[kind][0]
+    return ureg.Quantity(value_si, si_unit).to(_normalize_unit(unit)).magnitude
+
+
+def format_quantity(value_si, kind: str, unit: str, digits: int = 3) -> str:
+    """Format an SI value in ``unit`` with ``digits`` significant figures."""
+    v = float(to_unit(value_si, unit, kind))
+    return f"{v:.{digits}g} {unit}"
+
+
+def _example_unit(kind):
+    return KINDS[kind][2].split(",")[0].strip()
+
+
+def _example(kind):
+    return {"pressure": "300 mmHg", "viscosity": "1.1 cP", "flow": "150 mL/h",
+            "length": "1.8 m", "temperature": "22 degC"}.get(kind, f"1 {_example_unit(kind)}")
