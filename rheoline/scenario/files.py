@@ -559,8 +559,9 @@ def _parse_scenario(raw, index, source):
                             field="part")
     parts_raw = raw["part"]
     if not isinstance(parts_raw, list) or not parts_raw:
-        raise ScenarioError(f"must be a non-empty list of [[scenario.part]] tables, got "
-                            f"{_type(parts_raw)}", source=source, scenario=where, field="part")
+        got = "an empty list" if parts_raw == [] else _type(parts_raw)
+        raise ScenarioError(f"must be a non-empty list of [[scenario.part]] tables, got {got}",
+                            source=source, scenario=where, field="part")
     if len(parts_raw) > MAX_PARTS:
         raise ScenarioError(f"{len(parts_raw)} parts is above the limit of {MAX_PARTS}",
                             source=source, scenario=where, field="part")
@@ -810,7 +811,7 @@ def _scalar(value, spec, source, where, path, check_range=True):
     if isinstance(value, bool) or not isinstance(value, (int, float, str)):
         fail(f"must be a number or a quantity in quotes, got {_type(value)}")
     if isinstance(value, int) and abs(value) > 10**15:
-        fail(f"{value} is far too large")
+        fail(f"{_shown(value)} is far too large for this field")
     if isinstance(value, str):
         if len(value) > _MAX_QUANTITY_CHARS:
             fail(f"is {len(value)} characters long; a quantity is a number and a unit")
@@ -930,8 +931,10 @@ def _check_range(si, raw, spec, fail):
         return f"{v:.4g}"
 
     msg = f"{_shown(raw)!r} is outside the allowed range {show(low)} to {show(high)}"
-    if si < 0 and low >= 0:
+    if si < 0 and low >= 0 and spec.kind != "temperature":
         msg = f"{_shown(raw)!r} is negative; it must be {show(low)} or more (up to {show(high)})"
+    elif si <= 0 < low:
+        msg = f"{_shown(raw)!r} must be greater than 0 (up to {show(high)})"
     if isinstance(raw, (int, float)) and unit and si > high:
         msg += f"; a bare number is read in {unit}, write the unit if you meant another"
     fail(msg)

@@ -1,0 +1,265 @@
+"""The ``rheoline`` command line.
+
+Commands::
+
+    rheoline run FILE [--out DIR] [--json] [--force]   solve a scenario file, print the table
+    rheoline check FILE                                validate a scenario file, solve nothing
+    rheoline fluids                                    the fluid library and its sources
+    rheoline parts [--kind KIND]                       the part catalogue and its sources
+    rheoline demo [--out DIR] [--json] [--force]       the built-in demo (invented cart review)
+    rheoline examples [NAME]                           list the shipped example files, or print one
+
+Exit status: 0 on success, 2 on bad input (one line on stderr, no traceback), 1 on an
+internal fault.  Every printed result carries :data:`rheoline.CAUTION`.
+"""
+
+from __future__ import annotations
+
+import argparse
+import json
+import sys
+import warnings
+
+from rheoline.errors import RheolineError
+
+__all__ = ["main", "build_parser"]
+
+EXIT_OK, EXIT_FAULT, EXIT_BAD_INPUT = 0, 1, 2
+
+
+class _BadUsage(Exception):
+    """argparse found a usage error (exit 2, one line)."""
+
+
+class _Parser(argparse.ArgumentParser):
+    def error(self, message):  # one line, no usage dump
+        raise _BadUsage(f"{message} (see '{self.prog} --help')")
+
+
+def _caution():
+    from rheoline import CAUTION
+
+    return CAUTION
+
+
+def build_parser() -> argparse.ArgumentParser:
+    """The argument parser (also used to document the commands)."""
+    from rheoline import __version__
+
+    p = _Parser(prog="rheoline",
+                description="Flow, pressure and shear estimates for infusion lines and "
+                            "vascular access. " + _caution())
+    p.add_argument("--version", action="version", version=f"rheoline {__version__}")
+    sub = p.add_subparsers(dest="command", metavar="COMMAND", parser_class=_Parser)
+
+    run = sub.add_parser("run", help="solve a scenario file and print the comparison table",
+                         description="Solve every scenario (and sweep point) of FILE, print the "
+                                     "comparison table, and write a review pack with --out.")
+    run.add_argument("file", metavar="FILE", help="scenario file (.toml or .json)")
+    _output_options(run)
+    run.set_defaults(func=_cmd_run)
+
+    check = sub.add_parser("check", help="validate a scenario file without solving",
+                           description="Read and validate FILE (units, ranges, names, sweep "
+                                       "sizes); print a summary or the first problem.")
+    check.add_argument("file", metavar="FILE", help="scenario file (.toml or .json)")
+    check.set_defaults(func=_cmd_check)
+
+    fluids = sub.add_parser("fluids", help="list the fluid library with sources",
+                            description="List the named fluids a scenario may use, with their "
+                                        "property sources.")
+    fluids.set_defaults(func=_cmd_fluids)
+
+    parts = sub.add_parser("parts", help="list the part catalogue with sources",
+                           description="List the part types a scenario may use and the "
+                                       "catalogue of nominal sizes, with their sources.")
+    parts.add_argument("--kind", help="show one catalogue only (e.g. catheter, needle)")
+    parts.set_defaults(func=_cmd_parts)
+
+    demo = sub.add_parser("demo", help="run the built-in demo scenario set",
+                          description="Run the built-in demo: an invented bench team compares "
+                                      "rapid-transfusion lines. Writes a pack with --out.")
+    _output_options(demo)
+    demo.set_defaults(func=_cmd_demo)
+
+    ex = sub.add_parser("examples", help="list the shipped example files, or print one",
+                        description="Without NAME, list the example scenario files; with NAME, "
+                                    "print that file (save it and edit it as a start).")
+    ex.add_argument("name", nargs="?", metavar="NAME", help="an example's name")
+    ex.set_defaults(func=_cmd_examples)
+    return p
+
+
+def _output_options(cmd):
+    cmd.add_argument("--out", metavar="DIR", help="write a review pack into this new folder")
+    cmd.add_argument("--json", action="store_true",
+                     help="print a JSON array (one object per scenario or sweep point)")
+    cmd.add_argument("--force", action="store_true", help="replace an existing pack at --out")
+
+
+# --------------------------------------------------------------------------- commands
+def _load(path):
+    from rheoline.scenario.compare import check_scenarios
+    from rheoline.scenario.files import load_scenarios
+
+    sset = load_scenarios(path)
+    check_scenarios(sset)
+    return sset
+
+
+def _cmd_check(args, out):
+    sset = _load(args.file)
+    swept = sum(1 for s in sset.scenarios if s.axes)
+    out.write(f"ok: {sset.source}: {len(sset.scenarios)} scenario(s), {sset.n_points} case(s) "
+              f"to solve ({swept} with sweeps)\n")
+    for s in sset.scenarios:
+        axes = ", ".join(f"{p} x{len(a)}" for p, a in s.axes) or "no sweep"
+        out.write(f"  - {_printable(s.name)}: {s.mode} mode, {len(s.parts)} part(s), {axes}\n")
+    out.write(_caution() + "\n")
+    return EXIT_OK
+
+
+def _cmd_run(args, out, sset=None):
+    from rheoline.scenario.export import check_target
+
+    if args.out:
+        from pathlib import Path
+
+        check_target(Path(args.out), args.force)  # refuse before any work
+    if sset is None:
+        sset = _load(args.file)
+    run = _solve(sset)
+    if args.json:
+        out.write(json.dumps(run.records(), indent=2, allow_nan=False) + "\n")
+        print(_caution(), file=sys.stderr)
+    else:
+        out.write(format_run(run) + "\n")
+    if args.out:
+        from rheoline.scenario.export import write_pack
+
+        try:
+            folder = write_pack(run, args.out, force=args.force)
+        except OSError as exc:
+            raise RheolineError(f"cannot write the pack to {args.out}: "
+                                f"{exc.strerror or exc}") from None
+        msg = f"review pack written to {folder}/"
+        print(msg, file=sys.stderr if args.json else out)
+    return EXIT_OK
+
+
+def _cmd_demo(args, out):
+    from rheoline.scenario.files import example_path
+
+    args.file = str(example_path("rapid-transfusion-cart"))
+    return _cmd_run(args, out)
+
+
+def _cmd_examples(args, out):
+    from rheoline.scenario.files import example_names, example_path
+
+    if args.name:
+        out.write(example_path(args.name).read_text(encoding="utf-8"))
+        return EXIT_OK
+    out.write("Example scenario files (print one with 'rheoline examples NAME'):\n")
+    for name in example_names():
+        first = example_path(name).read_text(encoding="utf-8").splitlines()[0].lstrip("# ")
+        out.write(f"  {name:28s} {first}\n")
+    out.write(_caution() + "\n")
+    return EXIT_OK
+
+
+def _cmd_fluids(args, out):
+    from rheoline.scenario.compare import fluid_table
+
+    out.write(_frame_text(fluid_table()) + "\n" + _caution() + "\n")
+    return EXIT_OK
+
+
+def _cmd_parts(args, out):
+    from rheoline.scenario.compare import parts_table
+
+    out.write(_frame_text(parts_table(kind=args.kind)) + "\n" + _caution() + "\n")
+    return EXIT_OK
+
+
+# --------------------------------------------------------------------------- helpers
+def _solve(sset):
+    from rheoline.scenario.compare import run_scenarios
+
+    progress = None
+    if sys.stdout.isatty() and sys.stderr.isatty():
+        progress = _tqdm_progress
+    return run_scenarios(sset, progress=progress)
+
+
+def _tqdm_progress(total):
+    """A tqdm bar that appears only when the run takes more than two seconds."""
+    from tqdm import tqdm
+
+    return tqdm(total=total, delay=2.0, unit="case", leave=False, file=sys.stderr)
+
+
+def _printable(text):
+    return "".join(c if c.isprintable() else "?" for c in str(text))
+
+
+def _frame_text(frame):
+    import pandas as pd
+
+    shown = frame.copy()
+    for col in shown.columns:
+        if shown[col].dtype == object:
+            shown[col] = shown[col].map(lambda v: _printable(v) if isinstance(v, str) else v)
+    with pd.option_context("display.max_rows", 10_000, "display.max_columns", 50,
+                           "display.width", 200, "display.max_colwidth", 60):
+        return shown.to_string(index=False, float_format=lambda v: f"{v:.4g}")
+
+
+def format_run(run) -> str:
+    """The comparison table as printed by ``rheoline run``, with the caution above and below."""
+    lines = [f"CAUTION: {_caution()}", ""]
+    title = run.scenario_set.title
+    if title:
+        lines += [_printable(title), ""]
+    lines.append(_frame_text(run.summary()))
+    if run.warnings:
+        lines += ["", "Notes:"] + [f"  - {_printable(w)}" for w in run.warnings]
+    lines += ["", f"CAUTION: {_caution()}"]
+    return "\n".join(lines)
+
+
+def _one_line(exc) -> str:
+    return " ".join(str(exc).split())
+
+
+def main(argv=None) -> int:
+    """Run the command line; return the exit status (0 ok, 2 bad input, 1 internal fault)."""
+    parser = build_parser()
+    out = sys.stdout
+    try:
+        args = parser.parse_args(argv)
+        if not getattr(args, "func", None):
+            parser.print_help(out)
+            return EXIT_BAD_INPUT
+        with warnings.catch_warnings():
+            warnings.simplefilter("ignore")  # results carry their flags; no warning text
+            return args.func(args, out)
+    except _BadUsage as exc:
+        print(f"rheoline: error: {_one_line(exc)}", file=sys.stderr)
+        return EXIT_BAD_INPUT
+    except RheolineError as exc:
+        print(f"rheoline: error: {_one_line(exc)}", file=sys.stderr)
+        return EXIT_BAD_INPUT
+    except KeyboardInterrupt:
+        print("rheoline: interrupted", file=sys.stderr)
+        return 130
+    except BrokenPipeError:
+        return EXIT_OK
+    except Exception as exc:  # noqa: BLE001 - the last line of defence: no traceback
+        print(f"rheoline: internal error ({type(exc).__name__}: {_one_line(exc)}); "
+              "please report it with the scenario file", file=sys.stderr)
+        return EXIT_FAULT
+
+
+if __name__ == "__main__":  # pragma: no cover
+    sys.exit(main())
