@@ -7,7 +7,7 @@ Pa, m, m^3/s, Pa s, kg/m^3, s; temperatures are degrees Celsius.
 Examples
 --------
 >>> parse_quantity("300 mmHg", "pressure")
-39996.6...
+39996.7...
 >>> parse_quantity("150 mL/h", "flow")
 4.166...e-08
 >>> parse_quantity("22 degC", "temperature")

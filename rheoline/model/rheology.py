@@ -56,7 +56,7 @@ class RheologyModel:
     def stress(self, shear_rate):
         """Shear stress [Pa] at ``shear_rate`` [1/s]: ``viscosity * shear_rate``."""
         g = np.asarray(shear_rate, dtype=float)
-        return self.viscosity(g) * g
+        return _out(self.viscosity(g) * g)
 
     def shear_rate_at_stress(self, stress):
         """Shear rate [1/s] at which ``stress(shear_rate) == stress`` [Pa].
