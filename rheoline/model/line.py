@@ -70,3 +70,778 @@ Delivery, tolerance, curves
     ``curves.flow_curves(lines, fluid, over=..., values=...)``;
     ``hemolysis.giersiepen_1990_hemolysis_index(shear_stress, exposure_time)``.
 """
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+from functools import cached_property
+
+import numpy as np
+
+from rheoline.errors import InputRangeError
+from rheoline.model import lumen as _lumen
+from rheoline.model.blood import pries_1992_relative_viscosity
+from rheoline.model.hemolysis import GIERSIEPEN_1990_MAX_STRESS, GIERSIEPEN_1990_TIME_RANGE
+from rheoline.model.hemolysis import _index as _giersiepen_index
+from rheoline.model.losses import EXIT_K, entrance_k, transition_k
+from rheoline.model.parts import Fitting, Lumen, MeasuredPart, Part
+from rheoline.model.validation import check_finite, check_nonnegative
+
+__all__ = ["Line", "LineResult", "GRAVITY"]
+
+#: Standard acceleration of gravity [m/s^2] (CGPM 1901; NIST SP 811).
+GRAVITY = 9.80665
+
+# Largest diameter of the data behind Pries 1992; the correction is relative to it.
+_PRIES_REFERENCE_DIAMETER = 1.978e-3
+
+_TOL = 1e-11          # convergence on ln(Q)
+_MAX_ITER = 60
+
+
+def _shape_of(*values):
+    return np.broadcast_shapes(*(np.shape(v) for v in values if v is not None))
+
+
+def _fluid_shape(fluid):
+    rheo = fluid.rheology
+    return _shape_of(fluid.density, fluid.temperature_c, fluid.hematocrit,
+                     fluid.plasma_viscosity, rheo.viscosity(1.0))
+
+
+@dataclass(frozen=True)
+class _Layout:
+    """Stacked per-part arrays of a line for one fluid and scenario shape."""
+
+    shape: tuple
+    names: tuple
+    kinds: tuple
+    lumen_rows: np.ndarray      # indices of parts that are lumens (incl. equivalent-length fittings)
+    k_rows: np.ndarray          # indices of K fittings
+    measured_rows: np.ndarray   # indices of measured parts
+    diameter: np.ndarray        # (n_lumen, *shape)
+    length: np.ndarray
+    relative_roughness: np.ndarray
+    developing: np.ndarray      # (n_lumen, 1...) bool
+    minor_k: np.ndarray         # (n_lumen, *shape) entrance/transition K at the lumen velocity
+    viscosity_factor: np.ndarray  # (n_lumen, *shape) Pries 1992 factor (1 without it)
+    k_coefficient: np.ndarray   # (n_k, *shape): dp = c Q^2
+    k_velocity_area: np.ndarray  # (n_k, *shape) area [m^2] the K refers to
+    measured_a: np.ndarray      # (n_measured, *shape)
+    measured_b: np.ndarray
+    exit_coefficient: np.ndarray  # (*shape): dp_exit = c Q^2
+    density: np.ndarray          # (*shape)
+    pries: bool
+
+
+class Line:
+    """Parts in series from the source (bag, pump, reservoir) to the outlet (vein, beaker).
+
+    Parameters
+    ----------
+    parts : sequence of Part
+        Tubes, catheters, needles, cannulas, fittings and measured parts, upstream first.
+    entrance : str
+        Shape of the line's inlet, a key of :data:`rheoline.model.losses.ENTRANCE_K`
+        (default "sharp-edged", K = 0.5).
+
+    Notes
+    -----
+    The pressure budget, source to outlet, in total (stagnation) pressure:
+
+    .. math::
+
+        p_{source} + \\rho g h - p_{back} = \\sum_{lumens}\\left[f_{app}\\frac{L}{D} + K_{in}\\right]
+        \\frac{\\rho \\bar u^2}{2} + \\sum_{fittings} K\\frac{\\rho \\bar u^2}{2}
+        + \\sum_{measured}(aQ + bQ^2) + K_{exit}\\frac{\\rho \\bar u_{out}^2}{2}
+
+    with :math:`f_{app}` from :func:`rheoline.model.lumen.apparent_darcy_friction` (each
+    lumen's flow develops again from its own inlet), :math:`K_{in}` the entrance loss for the
+    first lumen and the contraction or expansion loss from the previous lumen for the others
+    (:func:`rheoline.model.losses.transition_k`), and the exit jet loss :math:`K_{exit} = 1`
+    at the last lumen.  Every term rises with flow, so the residual is monotone.
+
+    Examples
+    --------
+    >>> from rheoline.model.fluid_base import newtonian_fluid
+    >>> from rheoline.model.parts import Catheter, Tube
+    >>> water = newtonian_fluid("water", viscosity=0.955e-3, density=997.8, temperature_c=22)
+    >>> line = Line([Tube(inner_diameter=3.0e-3, length=1.8), Catheter(gauge=18)])
+    >>> result = line.solve(water, head=1.0)
+    >>> round(result.flow * 6e7, 1), result.regime, result.dominant_part       # mL/min
+    (98.5, 'laminar', '18G catheter')
+    >>> back = line.solve(water, flow=result.flow)
+    >>> round(back.required_pressure, 1)            # a pump must supply 1 m of water head [Pa]
+    9785.1
+    """
+
+    def __init__(self, parts, entrance="sharp-edged", name=None):
+        parts = tuple(parts)
+        if not parts:
+            raise InputRangeError("Line needs at least one part; got an empty list")
+        for i, part in enumerate(parts):
+            if not isinstance(part, Part):
+                raise InputRangeError(
+                    f"part[{i}] is {part!r}, not a rheoline part; use Tube, Catheter, Needle, "
+                    "Cannula, Fitting or MeasuredPart"
+                )
+        self.parts = parts
+        self.entrance = entrance
+        self.entrance_k = entrance_k(entrance)
+        self.name = name or " + ".join(p.name for p in parts)
+        seen = {}
+        names = []
+        for part in parts:
+            seen[part.name] = seen.get(part.name, 0) + 1
+            names.append(part.name if seen[part.name] == 1 else f"{part.name} #{seen[part.name]}")
+        self.part_names = tuple(names)
+
+    def __repr__(self):
+        return f"Line({list(self.part_names)!r})"
+
+    def __len__(self):
+        return len(self.parts)
+
+    # ------------------------------------------------------------------ layout
+    def _layout(self, fluid, extra_shape=(), pries=False):
+        dims = []
+        for part in self.parts:
+            for attr in ("inner_diameter", "length", "roughness", "k", "equivalent_length"):
+                value = getattr(part, attr, None)
+                if value is not None:
+                    dims.append(value)
+        shape = np.broadcast_shapes(_fluid_shape(fluid), tuple(extra_shape),
+                                    *(np.shape(v) for v in dims))
+        ones = np.ones(shape)
+        rho = fluid.density * ones
+        lumen_rows, k_rows, measured_rows = [], [], []
+        diameters, lengths, rough, developing = [], [], [], []
+        real_lumen_diameter = {}
+        for i, part in enumerate(self.parts):
+            if isinstance(part, Lumen):
+                lumen_rows.append(i)
+                diameters.append(part.inner_diameter * ones)
+                lengths.append(part.length * ones)
+                rough.append(part.roughness / part.inner_diameter * ones)
+                developing.append(True)
+                real_lumen_diameter[i] = part.inner_diameter * ones
+            elif isinstance(part, Fitting) and part.equivalent_length is not None:
+                lumen_rows.append(i)
+                diameters.append(part.inner_diameter * ones)
+                lengths.append(part.equivalent_length * ones)
+                rough.append(0.0 * ones)
+                developing.append(False)
+            elif isinstance(part, Fitting):
+                k_rows.append(i)
+            elif isinstance(part, MeasuredPart):
+                measured_rows.append(i)
+            else:  # pragma: no cover - Part subclasses are the ones above
+                raise InputRangeError(f"unknown part type {type(part).__name__}")
+        n_l = len(lumen_rows)
+        diameter = np.array(diameters).reshape((n_l, *shape))
+        minor = np.zeros((n_l, *shape))
+        previous = None
+        for j, i in enumerate(lumen_rows):
+            if i not in real_lumen_diameter:
+                continue
+            d = real_lumen_diameter[i]
+            minor[j] = self.entrance_k * ones if previous is None else transition_k(previous, d)
+            previous = d
+        if previous is None and n_l:
+            minor[0] = self.entrance_k * ones
+        # K fittings refer to their own bore, else the nearest upstream lumen, else downstream
+        k_coef, k_area = [], []
+        for i in k_rows:
+            part = self.parts[i]
+            d = part.inner_diameter
+            if d is None:
+                up = [j for j in lumen_rows if j < i]
+                down = [j for j in lumen_rows if j > i]
+                ref = up[-1] if up else (down[0] if down else None)
+                if ref is None:
+                    raise InputRangeError(
+                        f"fitting {part.name!r} has no inner_diameter and the line has no lumen "
+                        "to refer its K to; pass Fitting(k=..., inner_diameter=...)"
+                    )
+                d = diameter[lumen_rows.index(ref)]
+            area = np.pi * (d * ones) ** 2 / 4.0
+            k_area.append(area)
+            k_coef.append(part.k * rho / (2.0 * area * area))
+        mu_ref = fluid.rheology.infinite_shear_viscosity
+        m_a, m_b = [], []
+        for i in measured_rows:
+            a, b = self.parts[i].scaled_coefficients(mu_ref, fluid.density)
+            m_a.append(a * ones)
+            m_b.append(b * ones)
+        exit_rows = [j for j, i in enumerate(lumen_rows) if i in real_lumen_diameter]
+        if exit_rows:
+            d_out = diameter[exit_rows[-1]]
+            a_out = np.pi * d_out**2 / 4.0
+            exit_c = EXIT_K * rho / (2.0 * a_out * a_out)
+        else:
+            exit_c = 0.0 * ones
+        factor = np.ones((n_l, *shape))
+        if pries:
+            if not fluid.is_blood:
+                raise InputRangeError(
+                    f"pries_correction applies to blood; fluid {fluid.name!r} has no hematocrit. "
+                    "Use a blood fluid or pries_correction=False"
+                )
+            h = fluid.hematocrit * ones
+            ref = pries_1992_relative_viscosity(_PRIES_REFERENCE_DIAMETER, h)
+            factor = pries_1992_relative_viscosity(
+                np.minimum(diameter, _PRIES_REFERENCE_DIAMETER), h) / ref
+            factor = np.broadcast_to(factor, (n_l, *shape))
+        dev = np.array(developing, dtype=bool).reshape((n_l,) + (1,) * len(shape))
+        return _Layout(
+            shape=shape, names=self.part_names, kinds=tuple(p.kind for p in self.parts),
+            lumen_rows=np.array(lumen_rows, dtype=int), k_rows=np.array(k_rows, dtype=int),
+            measured_rows=np.array(measured_rows, dtype=int),
+            diameter=diameter, length=np.array(lengths).reshape((n_l, *shape)),
+            relative_roughness=np.array(rough).reshape((n_l, *shape)), developing=dev,
+            minor_k=minor, viscosity_factor=factor,
+            k_coefficient=np.array(k_coef).reshape((len(k_rows), *shape)),
+            k_velocity_area=np.array(k_area).reshape((len(k_rows), *shape)),
+            measured_a=np.array(m_a).reshape((len(measured_rows), *shape)),
+            measured_b=np.array(m_b).reshape((len(measured_rows), *shape)),
+            exit_coefficient=exit_c, density=rho, pries=bool(pries),
+        )
+
+    # ------------------------------------------------------------------ physics
+    def _apparent_viscosity(self, layout, fluid, log_q, state):
+        """Apparent viscosity of each lumen at ln(Q) from the Rabinowitsch state (Taylor step)."""
+        if fluid.is_newtonian:
+            mu = fluid.rheology.viscosity() * layout.viscosity_factor
+            return mu, 0.0, None
+        radius = layout.diameter / 2.0
+        q_i, tau_i, dlog_q, dlog_tau = _lumen._rabinowitsch_state(fluid.rheology, state, radius)
+        mu_i = tau_i * np.pi * radius**3 / (4.0 * q_i)
+        dlog_mu = dlog_tau / dlog_q - 1.0
+        log_q_i = np.log(q_i)
+        mismatch = log_q - log_q_i
+        mu = layout.viscosity_factor * mu_i * np.exp(dlog_mu * mismatch)
+        return mu, dlog_mu, (log_q_i, dlog_q, mismatch)
+
+    @staticmethod
+    def _losses(layout, q, mu, dlog_mu):
+        """Every loss at flow ``q``: total [Pa], d(total)/d ln Q [Pa], and the pieces."""
+        area = np.pi * layout.diameter**2 / 4.0
+        dp_f, slope_f, re, u = _lumen._lumen_friction(
+            q, area, layout.diameter, layout.length, layout.relative_roughness,
+            layout.density, mu, dlog_mu, layout.developing)
+        dp_m = layout.minor_k * 0.5 * layout.density * u * u
+        dp_lumen = dp_f + dp_m
+        q2 = q * q
+        dp_k = layout.k_coefficient * q2
+        lin = layout.measured_a * q
+        quad = layout.measured_b * q2
+        dp_exit = layout.exit_coefficient * q2
+        total = (dp_lumen.sum(axis=0) + dp_k.sum(axis=0) + (lin + quad).sum(axis=0) + dp_exit)
+        slope = ((dp_f * slope_f + 2.0 * dp_m).sum(axis=0) + 2.0 * dp_k.sum(axis=0)
+                 + (lin + 2.0 * quad).sum(axis=0) + 2.0 * dp_exit)
+        return total, slope, (dp_lumen, dp_k, lin + quad, dp_exit, re, u)
+
+    def _guess(self, layout, fluid, drive):
+        """Flow from the laminar-plus-kinetic closed form dp = A Q + B Q^2 (quadratic in Q)."""
+        d, length = layout.diameter, layout.length
+        mu = fluid.rheology.infinite_shear_viscosity * layout.viscosity_factor
+        a = (128.0 * mu * length / (np.pi * d**4)).sum(axis=0) + layout.measured_a.sum(axis=0)
+        area = np.pi * d**2 / 4.0
+        hagenbach = np.where(layout.developing, 1.25, 0.0)
+        b = ((layout.minor_k + hagenbach) * layout.density / (2.0 * area * area)).sum(axis=0)
+        b = b + layout.k_coefficient.sum(axis=0) + layout.measured_b.sum(axis=0)
+        b = b + layout.exit_coefficient
+        return 2.0 * drive / (a + np.sqrt(a * a + 4.0 * b * drive))
+
+    # ------------------------------------------------------------------ public
+    def pressure_residual(self, fluid, flow, head=0.0, source_pressure=0.0, back_pressure=0.0,
+                          pries_correction=False):
+        """Losses at ``flow`` minus the net drive [Pa]: one vectorized pass of the line's physics.
+
+        For a non-Newtonian fluid the wall shear rate of each lumen is first solved
+        (Newton steps on the Rabinowitsch integral).  Zero at the solution of
+        :meth:`solve`; rises monotonically with flow.
+
+        Examples
+        --------
+        >>> from rheoline.model.fluid_base import newtonian_fluid
+        >>> from rheoline.model.parts import Tube
+        >>> line = Line([Tube(inner_diameter=1e-3, length=1.0)])
+        >>> water = newtonian_fluid("water", 1e-3, 998.0)
+        >>> bool(line.pressure_residual(water, 1e-8, source_pressure=1e4) < 0)
+        True
+        """
+        q = check_nonnegative("flow", flow, "m^3/s")
+        drive = self._drive(fluid, head, source_pressure, back_pressure)
+        layout = self._layout(fluid, np.broadcast_shapes(q.shape, np.shape(drive)), pries_correction)
+        q = np.maximum(q * np.ones(layout.shape), 1e-300)
+        total, _, _, _ = self._exact_losses(layout, fluid, q)
+        return _lumen.scalar_or_array(total - drive)
+
+    def _exact_losses(self, layout, fluid, q):
+        if fluid.is_newtonian:
+            mu, dlog_mu, _ = self._apparent_viscosity(layout, fluid, np.log(q), None)
+        else:
+            radius = layout.diameter / 2.0
+            y, q_i, tau_i, dlog_q, dlog_tau = _lumen._solve_log_wall_shear_rate(
+                fluid.rheology, q * np.ones_like(radius), radius)
+            mu = layout.viscosity_factor * tau_i * np.pi * radius**3 / (4.0 * q_i)
+            dlog_mu = dlog_tau / dlog_q - 1.0
+        return self._losses(layout, q, mu, dlog_mu) + (mu,)
+
+    @staticmethod
+    def _drive(fluid, head, source_pressure, back_pressure):
+        h = check_finite("head", head)
+        ps = check_finite("source_pressure", source_pressure)
+        pb = check_finite("back_pressure", back_pressure)
+        return ps + fluid.density * GRAVITY * h - pb
+
+    def solve(self, fluid, head=0.0, source_pressure=None, back_pressure=0.0, *, flow=None,
+              pressure_limit=None, pries_correction=False):
+        """Flow at a drive, or the source pressure needed for a prescribed flow.
+
+        Parameters
+        ----------
+        fluid : Fluid
+            The fluid; its density and rheology may be arrays (one per scenario).
+        head : float or array_like
+            Height [m] of the fluid surface above the outlet (negative below it).
+        source_pressure : float or array_like, optional
+            Gauge pressure [Pa] applied at the source on top of gravity (pressure bag,
+            pressurized reservoir); default 0.  Not with ``flow``.
+        back_pressure : float or array_like
+            Gauge pressure [Pa] at the outlet (venous pressure; 0 for a beaker).
+        flow : float or array_like, optional
+            Prescribed flow [m^3/s] (a pump); the result's ``required_pressure`` is what the
+            source must supply above the gravity head.
+        pressure_limit : float or array_like, optional
+            Pressure [Pa] the source may not exceed (a part's rating, a pump's occlusion
+            limit), compared with ``required_pressure``.
+        pries_correction : bool
+            For blood, scale each lumen's apparent viscosity by the Pries 1992 in-vitro law
+            relative to its value at 1.978 mm (the Fahraeus-Lindqvist effect).
+
+        Returns
+        -------
+        LineResult
+
+        Raises
+        ------
+        InputRangeError
+            Negative flow, non-finite inputs, both ``flow`` and ``source_pressure``.
+
+        Notes
+        -----
+        Flow solve: safeguarded Newton iterations on ln(losses) - ln(drive) as a function
+        of ln(Q), started from the laminar-plus-kinetic closed form, with the derivative
+        computed together with the residual and a bracket kept from the residual's signs;
+        for a non-Newtonian fluid each lumen's wall shear rate is iterated jointly with the
+        flow.  A drive at or below the back pressure gives zero flow (no backflow model).
+        """
+        if flow is not None:
+            if source_pressure is not None:
+                raise InputRangeError(
+                    "give either flow (a pump: the pressure is solved) or source_pressure "
+                    "(the flow is solved), not both"
+                )
+            return self._solve_pressure(fluid, flow, head, back_pressure, pressure_limit,
+                                        pries_correction)
+        return self._solve_flow(fluid, head, 0.0 if source_pressure is None else source_pressure,
+                                back_pressure, pressure_limit, pries_correction)
+
+    def _solve_pressure(self, fluid, flow, head, back_pressure, pressure_limit, pries):
+        q_in = check_nonnegative("flow", flow, "m^3/s")
+        gravity = fluid.density * GRAVITY * check_finite("head", head)
+        pb = check_finite("back_pressure", back_pressure)
+        shape = np.broadcast_shapes(q_in.shape, np.shape(gravity), pb.shape)
+        layout = self._layout(fluid, shape, pries)
+        q = q_in * np.ones(layout.shape)
+        q_safe = np.maximum(q, 1e-300)
+        total, _, pieces, mu = self._exact_losses(layout, fluid, q_safe)
+        moving = q > 0
+        required = np.where(moving, total, 0.0) + pb - gravity
+        return self._result(layout, fluid, q, pieces, mu, moving, required + gravity - pb,
+                            required, pressure_limit, head, pb, iterations=1,
+                            converged=np.ones(layout.shape, bool))
+
+    def _solve_flow(self, fluid, head, source_pressure, back_pressure, pressure_limit, pries):
+        drive = self._drive(fluid, head, source_pressure, back_pressure)
+        layout = self._layout(fluid, np.shape(drive), pries)
+        drive = drive * np.ones(layout.shape)
+        moving = drive > 0
+        drive_pos = np.where(moving, drive, 1.0)
+        x = np.log(self._guess(layout, fluid, drive_pos))
+        log_drive = np.log(drive_pos)
+        lo = np.full(layout.shape, -np.inf)
+        hi = np.full(layout.shape, np.inf)
+        state = None
+        if not fluid.is_newtonian:
+            radius = layout.diameter / 2.0
+            state = np.log(4.0 / (np.pi * radius**3)) + x
+        converged = np.zeros(layout.shape, bool)
+        for iteration in range(1, _MAX_ITER + 1):  # noqa: B007 (read after the loop)
+            mu, dlog_mu, inner = self._apparent_viscosity(layout, fluid, x, state)
+            q = np.exp(x)
+            total, slope, pieces = self._losses(layout, q, mu, dlog_mu)
+            g = np.log(total) - log_drive
+            g_prime = slope / total
+            if inner is None:
+                consistent = np.ones(layout.shape, bool)
+                mismatch = 0.0
+            else:
+                mismatch = np.max(np.abs(inner[2]), axis=0)
+                consistent = mismatch < 1e-3
+            hi = np.where(consistent & (g > 0), np.minimum(hi, x), hi)
+            lo = np.where(consistent & (g <= 0), np.maximum(lo, x), lo)
+            x_new = x - g / g_prime
+            outside = ~((x_new >= lo) & (x_new <= hi))
+            both = np.isfinite(lo) & np.isfinite(hi)
+            fallback = np.where(both, 0.5 * (lo + hi),
+                                np.where(np.isfinite(hi), np.minimum(x, hi) - 2.0,
+                                         np.maximum(x, lo) + 2.0))
+            x_new = np.where(outside, fallback, x_new)
+            x_new = np.clip(x_new, x - 5.0, x + 5.0)
+            step = np.where(moving & ~converged, x_new - x, 0.0)
+            converged = converged | ((np.abs(step) < _TOL) & (np.asarray(mismatch) < _TOL))
+            if np.all(converged | ~moving):
+                break
+            if inner is not None:
+                log_q_i, dlog_q, _ = inner
+                state = np.where(converged, state,
+                                 state + np.clip((x_new - log_q_i) / dlog_q, -5.0, 5.0))
+            x = np.where(moving & ~converged, x_new, x)
+        q_out = np.where(moving, q, 0.0)
+        gravity = fluid.density * GRAVITY * check_finite("head", head)
+        pb = check_finite("back_pressure", back_pressure)
+        net = np.where(moving, total, 0.0)
+        return self._result(layout, fluid, q_out, pieces, mu, moving, net, net + pb - gravity,
+                            pressure_limit, head, pb, iteration, converged | ~moving)
+
+    def _result(self, layout, fluid, q, pieces, mu, moving, net, required, pressure_limit, head,
+                back_pressure, iterations, converged):
+        dp_lumen, dp_k, dp_meas, dp_exit, re, u = pieces
+        n = len(self.parts)
+        shape = layout.shape
+        drops = np.zeros((n, *shape))
+        reynolds = np.full((n, *shape), np.nan)
+        velocity = np.full((n, *shape), np.nan)
+        drops[layout.lumen_rows] = dp_lumen
+        drops[layout.k_rows] = dp_k
+        drops[layout.measured_rows] = dp_meas
+        reynolds[layout.lumen_rows] = re
+        velocity[layout.lumen_rows] = u
+        if len(layout.k_rows):
+            velocity[layout.k_rows] = q / layout.k_velocity_area
+        drops = np.where(moving, drops, 0.0)
+        reynolds = np.where(moving, reynolds, np.where(np.isnan(reynolds), np.nan, 0.0))
+        velocity = np.where(moving, velocity, np.where(np.isnan(velocity), np.nan, 0.0))
+        exceeds = np.zeros(shape, bool)
+        if pressure_limit is not None:
+            limit = check_finite("pressure_limit", pressure_limit)
+            exceeds = np.asarray(required > limit)
+        return LineResult(
+            flow=_lumen.scalar_or_array(q),
+            required_pressure=_lumen.scalar_or_array(required),
+            net_drive=_lumen.scalar_or_array(net),
+            part_pressure_drops=drops,
+            exit_pressure_drop=_lumen.scalar_or_array(np.where(moving, dp_exit, 0.0)),
+            part_reynolds=reynolds,
+            part_mean_velocity=velocity,
+            exceeds_pressure_limit=bool(exceeds) if exceeds.ndim == 0 else exceeds,
+            iterations=int(iterations),
+            converged=bool(np.all(converged)),
+            part_names=layout.names,
+            part_kinds=layout.kinds,
+            line=self,
+            fluid=fluid,
+            _layout=layout,
+            _viscosity=mu * np.ones_like(layout.diameter),
+            _moving=moving,
+            _pressure_limit=pressure_limit,
+        )
+
+
+def _first_shape(values):
+    return np.shape(values)[1:]
+
+
+@dataclass(frozen=True)
+class LineResult:
+    """The answer of :meth:`Line.solve`; fields carry SI units.
+
+    Scalars come back as Python floats (and str/bool); vectorized solves give arrays of the
+    scenario shape, and per-part arrays have shape ``(n_parts, *scenario_shape)`` (NaN
+    where a quantity does not apply, e.g. the Reynolds number of a measured part).
+
+    Attributes
+    ----------
+    flow : float or ndarray
+        [m^3/s].
+    required_pressure : float or ndarray
+        Source pressure [Pa] above the gravity head that this flow needs
+        (losses + back pressure - rho g h).
+    net_drive : float or ndarray
+        Sum of all losses [Pa] (equals source pressure + rho g h - back pressure).
+    part_pressure_drops : ndarray
+        [Pa] per part; a lumen's row includes its entrance, contraction or expansion loss.
+    exit_pressure_drop : float or ndarray
+        [Pa] the outlet jet (K = 1 at the last lumen); ``part_pressure_drops.sum(0) +
+        exit_pressure_drop == net_drive``.
+    part_reynolds, part_mean_velocity : ndarray
+        [-], [m/s].
+    exceeds_pressure_limit : bool or ndarray
+    iterations : int
+        Newton iterations used (1 for a prescribed flow).
+    converged : bool
+    """
+
+    flow: float | np.ndarray
+    required_pressure: float | np.ndarray
+    net_drive: float | np.ndarray
+    part_pressure_drops: np.ndarray
+    exit_pressure_drop: float | np.ndarray
+    part_reynolds: np.ndarray
+    part_mean_velocity: np.ndarray
+    exceeds_pressure_limit: bool | np.ndarray
+    iterations: int
+    converged: bool
+    part_names: tuple
+    part_kinds: tuple
+    line: object = field(repr=False)
+    fluid: object = field(repr=False)
+    _layout: object = field(repr=False)
+    _viscosity: np.ndarray = field(repr=False)
+    _moving: np.ndarray = field(repr=False)
+    _pressure_limit: object = field(repr=False, default=None)
+
+    @property
+    def scenario_shape(self):
+        """Shape of the scenario arrays (() for a single scenario)."""
+        return _first_shape(self.part_pressure_drops)
+
+    def _lumen_rows(self):
+        return self._layout.lumen_rows
+
+    @cached_property
+    def part_wall_shear_stress(self):
+        """Wall shear stress [Pa] of each lumen, f_fd rho u^2 / 8 (fully developed friction)."""
+        out = np.full(self.part_pressure_drops.shape, np.nan)
+        rows = self._lumen_rows()
+        if len(rows):
+            re = np.maximum(self.part_reynolds[rows], 1e-300)
+            u = self.part_mean_velocity[rows]
+            f, _ = _lumen._friction_and_slope(re, 1.0, self._layout.relative_roughness, False)
+            out[rows] = np.where(self._moving, f * self._layout.density * u * u / 8.0, 0.0)
+        return out
+
+    @cached_property
+    def part_wall_shear_rate(self):
+        """Wall shear rate [1/s] of each lumen, from the wall stress through the rheology."""
+        out = np.full(self.part_pressure_drops.shape, np.nan)
+        rows = self._lumen_rows()
+        if len(rows):
+            tau = self.part_wall_shear_stress[rows]
+            if self.fluid.is_newtonian:
+                out[rows] = tau / self._viscosity
+            else:
+                out[rows] = self.fluid.rheology.shear_rate_at_stress(
+                    tau / self._layout.viscosity_factor)
+        return out
+
+    @cached_property
+    def part_entrance_length(self):
+        """Hydrodynamic entrance length [m] of each lumen at its Reynolds number."""
+        out = np.full(self.part_pressure_drops.shape, np.nan)
+        rows = self._lumen_rows()
+        if len(rows):
+            out[rows] = _lumen.entrance_length(self.part_reynolds[rows], self._layout.diameter)
+        return out
+
+    @cached_property
+    def part_shares(self):
+        """Each part's share [-] of the net drive (the exit jet holds the rest)."""
+        net = np.asarray(self.net_drive, dtype=float)
+        return np.where(net > 0, self.part_pressure_drops / np.where(net > 0, net, 1.0), 0.0)
+
+    @cached_property
+    def exit_share(self):
+        """Share [-] of the net drive spent on the outlet jet."""
+        net = np.asarray(self.net_drive, dtype=float)
+        return _lumen.scalar_or_array(
+            np.where(net > 0, self.exit_pressure_drop / np.where(net > 0, net, 1.0), 0.0))
+
+    @cached_property
+    def part_regimes(self):
+        """Regime name of each part (``"n/a"`` for fittings and measured parts)."""
+        re = self.part_reynolds
+        names = np.where(np.isnan(re), "n/a", _lumen.regime_of(np.nan_to_num(re)))
+        return np.asarray(names)
+
+    @cached_property
+    def max_reynolds(self):
+        """Largest Reynolds number [-] over the lumens."""
+        re = np.nan_to_num(self.part_reynolds, nan=0.0)
+        return _lumen.scalar_or_array(re.max(axis=0))
+
+    @cached_property
+    def regime(self):
+        """Regime of the worst part: "laminar", "transitional" or "turbulent"."""
+        return _lumen.regime_of(self.max_reynolds)
+
+    @cached_property
+    def _dominant_index(self):
+        return np.argmax(self.part_pressure_drops, axis=0)
+
+    @cached_property
+    def dominant_part(self):
+        """Name of the part with the largest pressure drop (str, or array of str)."""
+        names = np.asarray(self.part_names)[self._dominant_index]
+        return str(names) if names.ndim == 0 else names
+
+    @cached_property
+    def dominant_share(self):
+        """Share [-] of the net drive taken by the dominant part."""
+        idx = np.expand_dims(self._dominant_index, 0)
+        return _lumen.scalar_or_array(np.take_along_axis(self.part_shares, idx, 0)[0])
+
+    @cached_property
+    def max_wall_shear_stress(self):
+        """Largest lumen wall shear stress [Pa]."""
+        return _lumen.scalar_or_array(np.nan_to_num(self.part_wall_shear_stress).max(axis=0))
+
+    @cached_property
+    def part_residence_time(self):
+        """Mean residence time [s] of each lumen, L / u."""
+        out = np.full(self.part_pressure_drops.shape, np.nan)
+        rows = self._lumen_rows()
+        if len(rows):
+            u = self.part_mean_velocity[rows]
+            out[rows] = np.where(u > 0, self._layout.length / np.where(u > 0, u, 1.0), np.inf)
+        return out
+
+    @cached_property
+    def part_hemolysis_index(self):
+        """Giersiepen 1990 index [%] of each lumen at its wall stress and residence time."""
+        out = np.full(self.part_pressure_drops.shape, np.nan)
+        rows = self._lumen_rows()
+        if len(rows):
+            tau = self.part_wall_shear_stress[rows]
+            t = self.part_residence_time[rows]
+            out[rows] = np.where(tau > 0, _giersiepen_index(tau, np.where(tau > 0, t, 0.0)), 0.0)
+        return out
+
+    @cached_property
+    def hemolysis_index(self):
+        """Hemolysis concern indicator [%]: Giersiepen 1990 summed over the lumens.
+
+        A comparative indicator for blood (see :mod:`rheoline.model.hemolysis` for its
+        limits); computed for any fluid.
+        """
+        return _lumen.scalar_or_array(np.nansum(self.part_hemolysis_index, axis=0))
+
+    @cached_property
+    def flags(self):
+        """Validity notes in words (tuple of str); counts are over the scenarios."""
+        return tuple(_flags(self))
+
+    @cached_property
+    def parts(self):
+        """A pandas DataFrame, a row per part plus an ``exit`` row (a scenario column if vectorized)."""
+        import pandas as pd
+
+        shape = self.scenario_shape
+        n_s = int(np.prod(shape)) if shape else 1
+        names = list(self.part_names) + ["exit"]
+        kinds = list(self.part_kinds) + ["exit"]
+        n = len(names)
+
+        def rows(per_part, exit_value):
+            arr = np.concatenate([per_part.reshape(len(self.part_names), n_s),
+                                  np.broadcast_to(np.asarray(exit_value, dtype=float), shape)
+                                  .reshape(1, n_s)], axis=0)
+            return arr.T.ravel()
+
+        diam = np.full((len(self.part_names), *shape), np.nan)
+        length = np.full((len(self.part_names), *shape), np.nan)
+        rows_l = self._lumen_rows()
+        if len(rows_l):
+            diam[rows_l] = self._layout.diameter
+            length[rows_l] = self._layout.length
+        regimes = np.concatenate([self.part_regimes.reshape(len(self.part_names), n_s),
+                                  np.full((1, n_s), "n/a")], axis=0).T.ravel()
+        table = {
+            "part": np.tile(names, n_s),
+            "kind": np.tile(kinds, n_s),
+            "inner_diameter [m]": rows(diam, np.nan),
+            "length [m]": rows(length, np.nan),
+            "reynolds": rows(self.part_reynolds, np.nan),
+            "regime": regimes,
+            "pressure_drop [Pa]": rows(self.part_pressure_drops, self.exit_pressure_drop),
+            "wall_shear_stress [Pa]": rows(self.part_wall_shear_stress, np.nan),
+            "wall_shear_rate [1/s]": rows(self.part_wall_shear_rate, np.nan),
+            "mean_velocity [m/s]": rows(self.part_mean_velocity, np.nan),
+            "entrance_length [m]": rows(self.part_entrance_length, np.nan),
+            "share [-]": rows(self.part_shares, self.exit_share),
+        }
+        frame = pd.DataFrame(table)
+        if shape:
+            frame.insert(0, "scenario", np.repeat(np.arange(n_s), n))
+        return frame
+
+
+def _count(mask, total):
+    k = int(np.count_nonzero(mask))
+    return "" if total == 1 else f" in {k} of {total} scenarios"
+
+
+def _flags(result):
+    """Validity notes for a result (see :attr:`LineResult.flags`)."""
+    out = []
+    moving = np.asarray(result._moving)
+    total = moving.size
+    re = result.part_reynolds
+    rows = result._layout.lumen_rows
+    for j, i in enumerate(rows):
+        name = result.part_names[i]
+        r = np.nan_to_num(re[i])
+        turb = moving & (r >= _lumen.TURBULENT_LIMIT_REYNOLDS)
+        trans = moving & (r >= _lumen.LAMINAR_LIMIT_REYNOLDS) & ~turb
+        if np.any(turb):
+            out.append(f"{name}: turbulent flow (Re up to {r.max():.0f}){_count(turb, total)}; "
+                       "Churchill 1977 friction used")
+        if np.any(trans):
+            out.append(f"{name}: transitional flow (Re 2300-4000){_count(trans, total)}; "
+                       "friction is uncertain there (Churchill 1977 interpolation)")
+        developing = np.asarray(result._layout.developing[j]).all()
+        if developing:
+            short = moving & (r < _lumen.LAMINAR_LIMIT_REYNOLDS) & (
+                result.part_entrance_length[i] > result._layout.length[j])
+            if np.any(short):
+                out.append(f"{name}: developing laminar flow (shorter than its entrance length)"
+                           f"{_count(short, total)}; Shah 1978 apparent friction used")
+    if not result.fluid.is_newtonian:
+        out.append("non-Newtonian fluid: laminar drops from the Rabinowitsch-Mooney integral of "
+                   f"the {result.fluid.rheology.name} model; transitional and turbulent friction "
+                   "use the Metzner-Reed Reynolds number (approximate)")
+    elif result.fluid.is_blood:
+        out.append("blood treated as Newtonian (high-shear viscosity); shear thinning ignored")
+    if result._layout.pries:
+        out.append("Pries 1992 in-vitro diameter correction applied to the apparent viscosity")
+    stopped = ~moving
+    if np.any(stopped):
+        out.append(f"no forward flow: the drive does not exceed the back pressure"
+                   f"{_count(stopped, total)}")
+    if np.any(result.exceeds_pressure_limit):
+        out.append(f"pressure limit exceeded{_count(result.exceeds_pressure_limit, total)}")
+    if result.fluid.is_blood:
+        tau = np.nan_to_num(result.part_wall_shear_stress)
+        t = np.nan_to_num(result.part_residence_time, posinf=0.0)
+        outside = (tau > GIERSIEPEN_1990_MAX_STRESS) | (
+            (tau > 0) & ((t < GIERSIEPEN_1990_TIME_RANGE[0]) | (t > GIERSIEPEN_1990_TIME_RANGE[1])))
+        if np.any(outside):
+            out.append("hemolysis index outside the Giersiepen 1990 fitted range "
+                       "(stress above 255 Pa or exposure outside 7-700 ms) in some part")
+    if not result.converged:
+        out.append("solver did not reach full convergence in some scenarios (result is the "
+                   "last bracketed iterate)")
+    return out
