@@ -71,6 +71,7 @@ from dataclasses import dataclass, field
 from pathlib import Path
 
 from rheoline.errors import ScenarioError, UnitError
+from rheoline.model import catalogue
 from rheoline.units import MMHG, parse_quantity, to_unit
 
 __all__ = [
@@ -222,20 +223,33 @@ PART_FIELDS = {
                  "length": _spec("length", "m", 1e-3, 1.5, help="catheter length")},
     "needle": {**_COMMON_PART,
                "gauge": _spec("gauge", None, 7, 34, help="needle gauge (ISO 9626)"),
-               "wall": _spec("choice", help="wall type: regular, thin or extra-thin"),
+               "wall": _spec("choice", help="wall type (ISO 9626): " + ", ".join(catalogue.NEEDLE_WALLS)),
                "length": _spec("length", "m", 1e-3, 0.5, help="needle length")},
     "cannula": {**_COMMON_PART,
                 "french": _spec("number", None, 1.0, 40.0, help="outer size in French (1 Fr = 1/3 mm)"),
                 "inner_diameter": _ID,
+                "wall_thickness": _spec("length", "mm", 1e-5, 5e-3, help="cannula wall thickness"),
                 "length": _spec("length", "m", 1e-3, 2.0, help="cannula length")},
+    "set": {**_COMMON_PART,
+            "kind": _spec("choice", help="a set from the catalogue: "
+                          + ", ".join(catalogue.EXTENSION_SETS)),
+            "inner_diameter": _ID, "length": _LEN},
     "fitting": {**_COMMON_PART,
-                "k": _spec("number", None, 0.0, 1000.0, help="loss coefficient K [-]")},
+                "k": _spec("number", None, 0.0, 1000.0, help="loss coefficient K [-]"),
+                "equivalent_length": _spec("length", "m", 1e-5, 100.0,
+                                           help="or: equivalent length of straight lumen"),
+                "inner_diameter": _spec("length", "mm", 1e-5, 0.06,
+                                        help="bore the K or equivalent length refers to")},
     "measured": {**_COMMON_PART,
                  "flows": _spec("quantity_list", "mL/min", 1e-12, 20e-3 / 60, sweep=False,
                                 help="bench flows", element_kind="flow"),
                  "pressure_drops": _spec("quantity_list", "mmHg", 0.0, 60 * _BAR, sweep=False,
                                          help="bench pressure drops at those flows",
-                                         element_kind="pressure")},
+                                         element_kind="pressure"),
+                 "test_viscosity": _spec("viscosity", "cP", 1e-5, 10.0, sweep=False,
+                                         help="viscosity of the bench fluid (rescales the fit)"),
+                 "test_density": _spec("density", "kg/m^3", 100.0, 5000.0, sweep=False,
+                                       help="density of the bench fluid (rescales the fit)")},
 }
 #: The part types a scenario file may name.
 PART_TYPES = tuple(PART_FIELDS)
@@ -244,7 +258,8 @@ _REQUIRED_PART = {
     "catheter": (("gauge", "inner_diameter"),),
     "needle": (("gauge",),),
     "cannula": (("french", "inner_diameter"),),
-    "fitting": (("k",),),
+    "set": (("kind",),),
+    "fitting": (("k", "equivalent_length"),),
     "measured": (("flows",), ("pressure_drops",)),
 }
 
@@ -255,7 +270,6 @@ PART_TOLERANCE_FIELDS = {
                     help="half-width of the length spread: '2 %' or '5 mm'"),
 }
 
-_WALLS = ("regular", "thin", "extra-thin")
 
 
 # --------------------------------------------------------------------------- data classes
@@ -607,6 +621,7 @@ def _parse_part(raw, j, source, where):
     for key, spec in fields.items():
         if key in raw and key not in ("type", "label", "tolerance"):
             values[key] = _value(raw[key], spec, source, where, prefix + key)
+    _check_catalogue(ptype, values, source, where, prefix)
     if ptype == "measured" and len(values["flows"]) != len(values["pressure_drops"]):
         raise ScenarioError(f"has {len(values['pressure_drops'])} values but flows has "
                             f"{len(values['flows'])}; give one pressure drop per flow",
@@ -624,6 +639,31 @@ def _parse_part(raw, j, source, where):
     return PartSpec(ptype, label, values, tolerance)
 
 
+def _check_catalogue(ptype, values, source, where, prefix):
+    """A catalogue gauge or set must exist unless the user gives the bore."""
+    table = {"catheter": catalogue.CATHETER_GAUGES, "needle": catalogue.NEEDLE_GAUGES,
+             "set": catalogue.EXTENSION_SETS}.get(ptype)
+    key = "kind" if ptype == "set" else "gauge"
+    if table is None or key not in values:
+        return
+    if ptype == "catheter" and "inner_diameter" in values and "length" in values:
+        return
+    value = values[key]
+    for v in value.values if isinstance(value, Axis) else (value,):
+        if v not in table:
+            if ptype == "set":
+                near = difflib.get_close_matches(str(v), list(table), n=1, cutoff=0.5)
+                hint = f"; did you mean '{near[0]}'?" if near else ""
+                allowed = ", ".join(table)
+                raise ScenarioError(f"unknown set '{_shown(v)}'{hint} Allowed: {allowed}",
+                                    source=source, scenario=where, field=prefix + key)
+            allowed = ", ".join(f"{g}G" for g in table)
+            extra = (" or give inner_diameter and length for another size"
+                     if ptype == "catheter" else "")
+            raise ScenarioError(f"gauge {v} is not in the {ptype} catalogue ({allowed}){extra}",
+                                source=source, scenario=where, field=prefix + key)
+
+
 def _default_label(ptype, raw):
     def one(key, fmt):
         v = raw.get(key)
@@ -632,6 +672,8 @@ def _default_label(ptype, raw):
     if ptype in ("catheter", "needle") and "gauge" in raw:
         g = one("gauge", "{}")
         return f"{ptype} {g}G".replace("GG", "G") if g else ptype
+    if ptype == "set" and "kind" in raw:
+        return one("kind", "{}") or ptype
     if ptype == "cannula" and "french" in raw:
         f = one("french", "{}")
         return f"cannula {f} Fr" if f else ptype
@@ -789,10 +831,11 @@ def _scalar(value, spec, source, where, path, check_range=True):
             fail(f"must be a name in quotes, got {_type(value)} {_shown(value)}")
         value = _text(value, source, where, path, MAX_NAME_CHARS).strip()
         if name == "wall":
-            if value.lower() not in _WALLS:
-                near = difflib.get_close_matches(value.lower(), _WALLS, n=1, cutoff=0.5)
+            walls = catalogue.NEEDLE_WALLS
+            if value.lower() not in walls:
+                near = difflib.get_close_matches(value.lower(), walls, n=1, cutoff=0.5)
                 hint = f"; did you mean '{near[0]}'?" if near else ""
-                fail(f"unknown wall type '{_shown(value)}'{hint} Allowed: {', '.join(_WALLS)}")
+                fail(f"unknown wall type '{_shown(value)}'{hint} Allowed: {', '.join(walls)}")
             return value.lower()
         return value
     if kind == "quantity_list":

@@ -1,0 +1,253 @@
+"""Review packs: formula neutralization, HTML escaping, atomic writes, cautions in every file."""
+
+import csv
+import hashlib
+import html
+import json
+from html.parser import HTMLParser
+
+import numpy as np
+import openpyxl
+import pandas as pd
+import pytest
+
+import rheoline
+from rheoline.scenario import export
+from rheoline.scenario.compare import _COLUMNS, _PART_COLUMNS, RunResult
+from rheoline.scenario.export import (
+    PACK_FILES,
+    PackExistsError,
+    neutralize_cell,
+    neutralize_frame,
+    write_pack,
+)
+from rheoline.scenario.files import loads_scenarios
+
+# Formula-injection payloads of the kinds OWASP's "CSV Injection" page describes
+# (leading =, +, -, @, tab and carriage return).
+HOSTILE = [
+    '=HYPERLINK("http://example.invalid/x","click")',
+    "+1+cmd|' /C calc'!A0",
+    "-2+3",
+    "@SUM(1+1)*cmd|' /C calc'!A0",
+    "\t=1+1",
+    "\r=1+1",
+]
+HTML_HOSTILE = '</script><script>alert("x")</script><img src=x onerror=alert(1)>'
+
+
+class _Tags(HTMLParser):
+    def __init__(self):
+        super().__init__()
+        self.tags, self.attrs, self.body_first = [], [], None
+        self._in_body = False
+
+    def handle_starttag(self, tag, attrs):
+        self.tags.append(tag)
+        self.attrs += [(tag, k, v) for k, v in attrs]
+        if tag == "body":
+            self._in_body = True
+        elif self._in_body and self.body_first is None:
+            self.body_first = (tag, dict(attrs))
+
+
+def _toml_name(name):
+    return json.dumps(name)  # a JSON string is a valid TOML basic string
+
+
+def fake_run(names):
+    """A RunResult with the real column layout, built without the line engine."""
+    doc = "format_version = 1\n" + "".join(
+        f"[[scenario]]\nname = {_toml_name(n)}\nfluid = \"water\"\nhead = \"1 m\"\n"
+        f"[[scenario.part]]\ntype = \"catheter\"\ngauge = 18\nlabel = {_toml_name(n[:100])}\n"
+        for n in names)
+    sset = loads_scenarios(doc, source="hostile.toml")
+    rows, prow = [], []
+    for i, n in enumerate(names):
+        row = dict.fromkeys(_COLUMNS, np.nan)
+        row.update({"case": n, "scenario": n, "point": "", "fluid": "water", "drive": "gravity",
+                    "regime": "laminar", "dominant part": n[:100], "flags": n,
+                    "flow [mL/min]": 50.0 + i, "hemolysis concern": False,
+                    "over pressure limit": None, "gauge": 18})
+        rows.append(row)
+        p = dict.fromkeys(_PART_COLUMNS, np.nan)
+        p.update({"case": n, "part": n[:100], "kind": "lumen", "regime": "laminar",
+                  "pressure drop [mmHg]": 70.0})
+        prow.append(p)
+    table = pd.DataFrame(rows, columns=_COLUMNS)
+    parts = pd.DataFrame(prow, columns=_PART_COLUMNS)
+    inputs = pd.DataFrame({"scenario": names, "field": ["name"] * len(names), "value as written": names})
+    assumptions = pd.DataFrame({"topic": ["t"], "model": [HOSTILE[0]], "reference": ["r"],
+                                "notes": ["n"]})
+    return RunResult(sset, table, parts, inputs, assumptions, warnings=(HOSTILE[1],))
+
+
+# --------------------------------------------------------------------------- neutralization
+@pytest.mark.parametrize("payload", HOSTILE)
+def test_formula_payloads_become_text(payload):
+    safe = neutralize_cell(payload)
+    assert safe.startswith("'")
+    assert "\t" not in safe[:2] and "\r" not in safe[:2] or safe[0] == "'"
+
+
+def test_plain_text_and_numbers_pass_unchanged():
+    assert neutralize_cell("18G catheter, 45 mm") == "18G catheter, 45 mm"
+    assert neutralize_cell(-3.5) == -3.5 and neutralize_cell(None) is None
+
+
+def test_control_characters_are_replaced():
+    assert neutralize_cell("a\x00b\x1bc") == "a\ufffdb\ufffdc"
+
+
+def test_neutralize_frame_covers_cells_and_column_names():
+    frame = pd.DataFrame({"=bad": ["=1", "ok"], "n": [1.0, -2.0]})
+    safe = neutralize_frame(frame)
+    assert list(safe.columns) == ["'=bad", "n"]
+    assert list(safe["'=bad"]) == ["'=1", "ok"]
+    assert list(safe["n"]) == [1.0, -2.0]
+
+
+# --------------------------------------------------------------------------- a hostile pack
+@pytest.fixture
+def hostile_pack(tmp_path):
+    run = fake_run(HOSTILE[:4] + [HTML_HOSTILE, "plain 18G"])
+    return run, write_pack(run, tmp_path / "pack")
+
+
+def test_pack_has_every_file_and_the_scenario_copy(hostile_pack):
+    run, folder = hostile_pack
+    names = {p.name for p in folder.iterdir()}
+    assert set(PACK_FILES) <= names
+    copy = folder / "scenario-hostile.toml"
+    assert copy.read_text(encoding="utf-8") == run.scenario_set.text
+
+
+def test_csv_cells_never_start_a_formula(hostile_pack):
+    _, folder = hostile_pack
+    for name in ("results.csv", "parts.csv"):
+        with (folder / name).open(encoding="utf-8", newline="") as fh:
+            cells = [c for row in csv.reader(fh) for c in row]
+        assert cells, name
+        assert not [c for c in cells if c[:1] in ("=", "+", "-", "@", "\t", "\r")], name
+        assert "'" + HOSTILE[0] in cells
+
+
+def test_csv_reads_back_with_pandas(hostile_pack):
+    run, folder = hostile_pack
+    back = pd.read_csv(folder / "results.csv", skiprows=1)
+    assert list(back.columns) == list(run.table.columns)
+    assert back["flow [mL/min]"].tolist() == pytest.approx(run.table["flow [mL/min]"].tolist())
+
+
+def test_xlsx_holds_no_formula_and_every_sheet(hostile_pack):
+    _, folder = hostile_pack
+    wb = openpyxl.load_workbook(folder / "results.xlsx")
+    assert wb.sheetnames[:5] == ["results", "parts", "scenario inputs", "assumptions", "cautions"]
+    for ws in wb.worksheets:
+        assert ws["A1"].value == "caution: " + rheoline.CAUTION
+        for row in ws.iter_rows():
+            for cell in row:
+                assert cell.data_type != "f", (ws.title, cell.coordinate, cell.value)
+                if isinstance(cell.value, str):
+                    assert cell.value[:1] not in ("=", "+", "-", "@", "\t", "\r")
+    results = wb["results"]
+    names = [results.cell(row=r, column=1).value for r in range(3, results.max_row + 1)]
+    assert "'" + HOSTILE[0] in names and "plain 18G" in names
+
+
+def test_html_escapes_hostile_text(hostile_pack):
+    _, folder = hostile_pack
+    page = (folder / "report.html").read_text(encoding="utf-8")
+    assert HTML_HOSTILE not in page
+    assert "<img src=x" not in page and "alert(1)>" not in page
+    assert "&lt;/script&gt;&lt;script&gt;alert(&quot;x&quot;)" in page
+    parser = _Tags()
+    parser.feed(page)
+    assert "img" not in parser.tags
+    assert not [a for a in parser.attrs if a[1].startswith("on")]
+    # the only scripts are plotly's, as many as in a pack of harmless names; none external
+    assert not [a for a in parser.attrs if a[0] == "script" and a[1] == "src"]
+    benign = write_pack(fake_run([f"case {i}" for i in range(6)]), folder.parent / "benign")
+    plain = _Tags()
+    plain.feed((benign / "report.html").read_text(encoding="utf-8"))
+    assert parser.tags.count("script") == plain.tags.count("script") >= 2
+
+
+def test_html_is_self_contained_with_cautions_first(hostile_pack):
+    run, folder = hostile_pack
+    page = (folder / "report.html").read_text(encoding="utf-8")
+    parser = _Tags()
+    parser.feed(page)
+    assert parser.body_first == ("div", {"class": "caution", "id": "caution", "role": "note"})
+    assert page.count(html.escape(rheoline.CAUTION)) >= 2
+    assert "cdn.plot.ly" not in page.split("<body>")[0]
+    assert len(page) > 1_000_000  # plotly.js is embedded, not fetched
+    assert hashlib.sha256(run.scenario_set.text.encode()).hexdigest() in page
+    assert f"rheoline {rheoline.__version__}" in page
+
+
+def test_manifest_hashes_every_file(hostile_pack):
+    _, folder = hostile_pack
+    manifest = json.loads((folder / "manifest.json").read_text())
+    assert manifest["caution"] == rheoline.CAUTION
+    for name, digest in manifest["files_sha256"].items():
+        assert hashlib.sha256((folder / name).read_bytes()).hexdigest() == digest
+
+
+# --------------------------------------------------------------------------- atomic writes
+def _snapshot(folder):
+    return {p.name: p.read_bytes() for p in folder.iterdir()}
+
+
+def test_existing_pack_is_kept_without_force(tmp_path):
+    run = fake_run(["a"])
+    folder = write_pack(run, tmp_path / "pack")
+    before = _snapshot(folder)
+    with pytest.raises(PackExistsError, match="pass --force"):
+        write_pack(fake_run(["b"]), folder)
+    assert _snapshot(folder) == before
+
+
+def test_a_failure_midway_leaves_the_earlier_pack_intact(tmp_path, monkeypatch):
+    folder = write_pack(fake_run(["first"]), tmp_path / "pack")
+    before = _snapshot(folder)
+    written = []
+    real_csv = export._write_csv
+
+    def csv_then_count(frame, path):
+        real_csv(frame, path)
+        written.append(path)
+
+    def disk_full(*args, **kwargs):
+        assert written, "the failure must come after some files were written"
+        raise OSError(28, "No space left on device")
+
+    monkeypatch.setattr(export, "_write_csv", csv_then_count)
+    monkeypatch.setattr(export, "_write_html", disk_full)
+    with pytest.raises(OSError, match="No space left"):
+        write_pack(fake_run(["second"]), folder, force=True)
+    assert _snapshot(folder) == before
+    assert [p.name for p in tmp_path.iterdir()] == ["pack"]  # no temporary folder left
+
+
+def test_a_failure_in_a_new_pack_leaves_nothing(tmp_path, monkeypatch):
+    monkeypatch.setattr(export, "_write_xlsx", lambda *a: (_ for _ in ()).throw(OSError("boom")))
+    with pytest.raises(OSError, match="boom"):
+        write_pack(fake_run(["x"]), tmp_path / "pack")
+    assert list(tmp_path.iterdir()) == []
+
+
+def test_force_replaces_a_pack_once_the_new_one_is_complete(tmp_path):
+    folder = write_pack(fake_run(["first"]), tmp_path / "pack")
+    write_pack(fake_run(["second"]), folder, force=True)
+    back = pd.read_csv(folder / "results.csv", skiprows=1)
+    assert back["case"].tolist() == ["second"]
+    assert [p.name for p in tmp_path.iterdir()] == ["pack"]
+
+
+def test_a_file_in_the_way_is_not_replaced(tmp_path):
+    target = tmp_path / "pack"
+    target.write_text("mine")
+    with pytest.raises(PackExistsError, match="not a folder"):
+        write_pack(fake_run(["x"]), target, force=True)
+    assert target.read_text() == "mine"
