@@ -326,3 +326,13 @@ def test_catheter_wider_than_vein_raises():
         infusion_site_context(3e-3, 2e-3)
     with pytest.raises(InputRangeError, match="diameter_ratio must be below 1"):
         annulus_resistance_factor(1.0)
+
+
+def test_public_names_of_vessels_and_hemodynamics_resolve():
+    # every name this area adds to rheoline's lazy map loads from its module
+    names = [name for name, module in rheoline._LAZY.items()
+             if module in ("rheoline.model.vessels", "rheoline.model.stenosis",
+                           "rheoline.model.network", "rheoline.model.hemodynamics")]
+    assert len(names) >= 20
+    for name in names:
+        assert callable(getattr(rheoline, name)), name
