@@ -194,7 +194,7 @@ def test_sensitivity_table_has_units_in_columns():
 
 
 def test_fahraeus_lindqvist_curve_minimum_and_rise():
-    # Pries 1992: at H_D 0.45 the minimum lies near 6-7 um (from memory: "about 6.5 um");
+    # Pries 1992: at H_D 0.45 the minimum lies near 6-7 um (from memory);
     # Fahraeus & Lindqvist 1931: apparent viscosity falls as the tube narrows below ~1 mm.
     curve = fahraeus_lindqvist_curve(np.geomspace(4e-6, 1e-3, 400))
     assert 5e-6 < curve.minimum_diameter < 8e-6

@@ -19,6 +19,10 @@ A segment's *share of the resistance* is its share of the viscous power
 dissipated, q_k^2 R_k / sum(q^2 R): for segments in series it is R_k / sum(R),
 for equal segments in parallel it is equal, and it sums to 1 over the network.
 
+Each segment's hematocrit is an input: red-cell phase separation at
+bifurcations (which sets hematocrits in real microvascular networks) is not
+modelled, and flows are steady.
+
 References
 ----------
 Kirchhoff, G., "Ueber die Aufloesung der Gleichungen, auf welche man bei der
