@@ -186,6 +186,11 @@ def test_non_positive_resistance_raises():
         VesselNetwork(["a"], ["b"], [0.0])
 
 
+def test_from_arrays_wrong_count_raises():
+    with pytest.raises(InputRangeError, match="one value per segment"):
+        VesselNetwork.from_arrays(["a", "b"], ["b", "c"], np.array([1e-5, 2e-5, 3e-5]), 1e-3)
+
+
 def test_bad_segment_tuple_raises():
     with pytest.raises(InputRangeError, match="each segment must be"):
         VesselNetwork.from_vessels([("only", "a")])

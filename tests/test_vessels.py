@@ -290,6 +290,21 @@ def test_hematocrit_as_percent_gets_a_hint():
         Vessel(radius=1e-3, length=0.1, hematocrit=45)
 
 
+def test_shapes_that_do_not_broadcast_raise():
+    with pytest.raises(InputRangeError, match="must broadcast together"):
+        Vessel(radius=np.array([1e-4, 2e-4, 3e-4]), length=0.01, hematocrit=np.array([0.3, 0.4]))
+
+
+@given(st.floats(2e-6, 5e-4), st.floats(0.0, 0.6), st.floats(0.01, 0.3))
+def test_pries_resistance_rises_with_hematocrit(radius, hematocrit, step):
+    # Pries 1992 and 1994: relative viscosity grows with discharge hematocrit at every diameter
+    for law in ("pries-1992", "pries-1994"):
+        low = Vessel(radius=radius, length=1e-3, hematocrit=hematocrit, viscosity_law=law)
+        high = Vessel(radius=radius, length=1e-3, hematocrit=hematocrit + step,
+                      viscosity_law=law)
+        assert high.resistance > low.resistance
+
+
 def test_unknown_viscosity_law_raises():
     with pytest.raises(InputRangeError, match="viscosity_law must be one of"):
         Vessel(radius=1e-3, length=0.1, viscosity_law="casson")

@@ -296,7 +296,13 @@ class VesselNetwork:
         n = len(upstream)
         vessel = Vessel(radius=radius, length=length, hematocrit=hematocrit,
                         temperature_c=temperature_c, viscosity_law=viscosity_law)
-        res = np.broadcast_to(np.asarray(vessel.resistance, dtype=float), (n,))
+        res = np.asarray(vessel.resistance, dtype=float)
+        if res.ndim > 1 or res.size not in (1, n):
+            raise InputRangeError(
+                f"radius, length, hematocrit and temperature_c must give one value per "
+                f"segment ({n}), got shape {res.shape}"
+            )
+        res = np.broadcast_to(res, (n,))
         return cls(upstream, downstream, np.array(res), pressures or {}, inflows or {}, names)
 
     # --- structure ------------------------------------------------------------------------------

@@ -304,6 +304,15 @@ class Vessel:
                 )
             set_(self, "viscosity",
                  scalar_or_array(check_positive("viscosity", self.viscosity, "Pa s")))
+        fields = ("radius", "length", "hematocrit", "temperature_c", "density", "viscosity")
+        shapes = {f: np.shape(getattr(self, f)) for f in fields if getattr(self, f) is not None}
+        try:
+            np.broadcast_shapes(*shapes.values())
+        except ValueError:
+            raise InputRangeError(
+                "radius, length, hematocrit, temperature_c, density and viscosity must "
+                f"broadcast together, got shapes {shapes}"
+            ) from None
         if np.any(np.asarray(self.radius) > 0.02):
             raise InputRangeError(
                 f"radius must be at most 0.02 m for a blood vessel, got "
