@@ -496,7 +496,7 @@ class Line:
             x_new = x - g / g_prime
             outside = ~((x_new >= lo) & (x_new <= hi))
             both = np.isfinite(lo) & np.isfinite(hi)
-            fallback = np.where(both, 0.5 * (lo + hi),
+            fallback = np.where(both, 0.5 * (np.where(both, lo, 0.0) + np.where(both, hi, 0.0)),
                                 np.where(np.isfinite(hi), np.minimum(x, hi) - 2.0,
                                          np.maximum(x, lo) + 2.0))
             x_new = np.where(outside, fallback, x_new)

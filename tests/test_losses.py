@@ -1,0 +1,78 @@
+"""Loss coefficients against the fluids library (fluids.fittings) and Crane TP-410."""
+
+import fluids.fittings
+import fluids.friction
+import numpy as np
+import pytest
+
+from rheoline.errors import InputRangeError
+from rheoline.model.losses import (
+    CRANE_L_OVER_D,
+    ENTRANCE_K,
+    EXIT_K,
+    borda_carnot_expansion_k,
+    crane_fitting_k,
+    crane_sudden_contraction_k,
+    crane_turbulent_friction,
+    entrance_k,
+    equivalent_length,
+    transition_k,
+)
+
+
+def test_entrance_and_exit_against_fluids():
+    # Crane TP-410 (2009) via fluids.fittings.entrance_sharp(method="Crane"), exit_normal
+    assert entrance_k("sharp-edged") == pytest.approx(fluids.fittings.entrance_sharp(method="Crane"))
+    assert EXIT_K == pytest.approx(fluids.fittings.exit_normal())
+    # rounded entrance r/d >= 0.15: Crane's 0.04 (fluids.fittings.entrance_rounded, Crane)
+    assert ENTRANCE_K["rounded"] == pytest.approx(
+        fluids.fittings.entrance_rounded(Di=1.0, rc=0.2, method="Crane"))
+    # inward projecting (Borda) 0.78: Crane TP-410 p. A-29 (from memory)
+    assert ENTRANCE_K["inward-projecting"] == 0.78
+
+
+@pytest.mark.parametrize("beta", [0.1, 0.3, 0.5, 0.7, 0.9, 0.99])
+def test_contraction_against_fluids_crane(beta):
+    # fluids.fittings.contraction_sharp(method="Crane"): K2 = 0.5 (1 - beta^2)
+    d1, d2 = 1e-2, beta * 1e-2
+    assert crane_sudden_contraction_k(d1, d2) == pytest.approx(
+        fluids.fittings.contraction_sharp(d1, d2, method="Crane"), rel=1e-9)
+
+
+@pytest.mark.parametrize("beta", [0.1, 0.3, 0.5, 0.7, 0.9])
+def test_expansion_against_fluids_rennels(beta):
+    # Borda-Carnot (1 - beta^2)^2 equals fluids.fittings.diffuser_sharp (Rennels 2012)
+    d1, d2 = beta * 1e-2, 1e-2
+    assert borda_carnot_expansion_k(d1, d2) == pytest.approx(
+        fluids.fittings.diffuser_sharp(d1, d2), rel=1e-9)
+
+
+def test_transition_refers_to_downstream_velocity():
+    # expansion 1 -> 2 mm: K1 = (1 - 1/4)^2 = 0.5625 on u1 = 4 u2, so K2 = 0.5625 * 16 = 9
+    assert transition_k(1e-3, 2e-3) == pytest.approx(9.0)
+    assert transition_k(2e-3, 1e-3) == pytest.approx(0.5 * (1 - 0.25))
+    assert transition_k(1e-3, 1e-3) == 0.0
+
+
+def test_crane_friction_and_fittings_against_fluids():
+    # Crane TP-410 f_T table, 2 inch: 0.019 (from memory); fluids.friction.ft_Crane fits it
+    assert crane_turbulent_friction(0.0525) == pytest.approx(0.019, abs=0.0005)
+    for d in (0.02, 0.05, 0.1, 0.3):
+        assert crane_turbulent_friction(d) == pytest.approx(fluids.friction.ft_Crane(d), rel=0.06)
+    # plug valves, fluids.fittings.K_plug_valve_Crane with the same f_T (styles 0, 1, 2)
+    for kind, style in (("plug-valve-straight", 0), ("stopcock-straight", 1), ("stopcock-branch", 2)):
+        expected = fluids.fittings.K_plug_valve_Crane(0.05, 0.05, 0.0, fd=0.02, style=style)
+        assert crane_fitting_k(kind, 0.05, friction_factor=0.02) == pytest.approx(expected)
+
+
+def test_equivalent_length():
+    # L_eq = K D / f: 0.6 * 2 mm / 0.04 = 30 mm (by hand)
+    assert equivalent_length(0.6, 2e-3, 0.04) == pytest.approx(0.03)
+    assert np.all(np.asarray(list(CRANE_L_OVER_D.values())) > 0)
+
+
+def test_unknown_names():
+    with pytest.raises(InputRangeError, match="entrance 'bevelled' is not known; choose one of"):
+        entrance_k("bevelled")
+    with pytest.raises(InputRangeError, match="fitting kind 'elbow' is not known"):
+        crane_fitting_k("elbow", 1e-3)

@@ -1,0 +1,105 @@
+"""Parts and the catalogue: dimensions, conversions, fits and bad input."""
+
+import numpy as np
+import pytest
+
+from rheoline.errors import InputRangeError
+from rheoline.model import catalogue
+from rheoline.model.parts import (
+    Cannula,
+    Catheter,
+    Fitting,
+    MeasuredPart,
+    Needle,
+    Tube,
+    central_line_lumen,
+    circuit_tubing,
+    extension_set,
+)
+
+
+def test_catheter_catalogue_is_ordered_by_gauge():
+    # common practice, no source: a smaller gauge number is a larger bore
+    gauges = sorted(catalogue.CATHETER_GAUGES)
+    ids = [Catheter(gauge=g).inner_diameter for g in gauges]
+    ods = [Catheter(gauge=g).outer_diameter for g in gauges]
+    assert ids == sorted(ids, reverse=True)
+    assert ods == sorted(ods, reverse=True)
+    assert all(i < o for i, o in zip(ids, ods, strict=True))
+
+
+def test_catheter_user_dimensions_override():
+    c = Catheter(gauge=18, inner_diameter=1.05e-3, length=0.032, name="my 18G")
+    assert (c.inner_diameter, c.length, c.name) == (1.05e-3, 0.032, "my 18G")
+
+
+def test_needle_iso_9626_nominal_sizes():
+    # ISO 9626 outer diameters, from memory: 18G 1.20-1.30 mm, 22G 0.698-0.730 mm,
+    # 25G 0.500-0.530 mm (nominal mid-range values held)
+    assert 1.20e-3 <= Needle(gauge=18).outer_diameter <= 1.30e-3
+    assert 0.698e-3 <= Needle(gauge=22).outer_diameter <= 0.730e-3
+    assert 0.500e-3 <= Needle(gauge=25).outer_diameter <= 0.530e-3
+    # a thin wall has a larger bore at the same gauge
+    for g in catalogue.NEEDLE_GAUGES:
+        assert Needle(gauge=g, wall="thin").inner_diameter >= Needle(gauge=g).inner_diameter
+
+
+def test_cannula_french_scale():
+    # Charriere scale: 1 Fr = 1/3 mm outer diameter
+    c = Cannula(french=18, inner_diameter=5.0e-3)
+    assert c.outer_diameter == pytest.approx(6.0e-3)
+    typical = Cannula(french=9)
+    assert typical.inner_diameter == pytest.approx(3e-3 - 2 * catalogue.CANNULA_TYPICAL_WALL)
+
+
+def test_circuit_tubing_inch_sizes():
+    # by definition of the nominal size: 3/8 inch = 9.525 mm
+    assert circuit_tubing("3/8", 1.0).inner_diameter == pytest.approx(9.525e-3)
+    assert circuit_tubing("1/4", 1.0).inner_diameter == pytest.approx(6.35e-3)
+    assert circuit_tubing("1/2", 1.0).inner_diameter == pytest.approx(12.7e-3)
+
+
+def test_sets_and_central_lines():
+    assert extension_set("microbore-extension").inner_diameter < extension_set().inner_diameter
+    distal = central_line_lumen("distal")
+    proximal = central_line_lumen("proximal")
+    assert distal.inner_diameter > proximal.inner_diameter
+    assert "16G equivalent" in distal.name
+
+
+def test_measured_part_fit_recovers_coefficients():
+    # demo data: pairs made from a = 2e9 Pa s/m^3, b = 5e13 Pa s^2/m^6
+    q = np.array([0.5, 1.0, 2.0, 3.0]) * 1e-6
+    part = MeasuredPart(flows=q, pressure_drops=2e9 * q + 5e13 * q**2)
+    assert part.a == pytest.approx(2e9, rel=1e-6)
+    assert part.b == pytest.approx(5e13, rel=1e-6)
+    assert part.pressure_drop(1e-6) == pytest.approx(2e3 + 50.0)
+    scaled = MeasuredPart(flows=q, pressure_drops=2e9 * q, test_viscosity=1e-3)
+    assert scaled.pressure_drop(1e-6, viscosity=3e-3) == pytest.approx(6e3, rel=1e-6)
+
+
+def test_array_dimensions():
+    t = Tube(inner_diameter=np.array([1e-3, 2e-3]), length=1.0)
+    assert t.inner_diameter.shape == (2,)
+    assert "1-2 mm" in t.name
+
+
+def test_bad_parts():
+    with pytest.raises(InputRangeError, match="catheter gauge 19 is not in the catalogue"):
+        Catheter(gauge=19)
+    with pytest.raises(InputRangeError, match="needle wall 'extra' is not known"):
+        Needle(gauge=18, wall="extra")
+    with pytest.raises(InputRangeError, match="inner_diameter must be greater than 0"):
+        Tube(inner_diameter=-1e-3, length=1.0)
+    with pytest.raises(InputRangeError, match="outer_diameter .* must exceed inner_diameter"):
+        Tube(inner_diameter=2e-3, length=1.0, outer_diameter=1e-3)
+    with pytest.raises(InputRangeError, match="exactly one of k"):
+        Fitting()
+    with pytest.raises(InputRangeError, match="needs inner_diameter"):
+        Fitting(equivalent_length=0.1)
+    with pytest.raises(InputRangeError, match="leaves no bore"):
+        Cannula(french=3, wall_thickness=0.6e-3)
+    with pytest.raises(InputRangeError, match="equal, non-zero length"):
+        MeasuredPart(flows=[1e-6, 2e-6], pressure_drops=[1.0])
+    with pytest.raises(InputRangeError, match="circuit tubing size '5/8'"):
+        circuit_tubing("5/8", 1.0)
