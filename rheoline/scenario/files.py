@@ -36,7 +36,8 @@ misspelled name, the nearest allowed one.
 Limits (module constants): :data:`MAX_FILE_BYTES` (1 MB), :data:`MAX_DEPTH`
 (nesting of tables and lists), :data:`MAX_SCENARIOS`, :data:`MAX_PARTS` per
 scenario, :data:`MAX_AXIS_VALUES` per swept field, :data:`MAX_SWEEP_POINTS`
-per scenario and :data:`MAX_TOTAL_POINTS` per file.
+per scenario, :data:`MAX_TOTAL_POINTS` per file, and
+:data:`MAX_TOLERANCE_SOLVES` (tolerance samples times sweep points) per scenario.
 
 Examples
 --------
@@ -83,6 +84,7 @@ __all__ = [
     "MAX_AXIS_VALUES",
     "MAX_SWEEP_POINTS",
     "MAX_TOTAL_POINTS",
+    "MAX_TOLERANCE_SOLVES",
     "PART_TYPES",
     "FieldSpec",
     "Axis",
@@ -117,6 +119,8 @@ MAX_SWEEP_POINTS = 5_000
 MAX_TOTAL_POINTS = 20_000
 #: Longest name or label [characters]; notes may be 20 times as long.
 MAX_NAME_CHARS = 120
+#: Most Monte Carlo solves (tolerance samples x sweep points) in one scenario.
+MAX_TOLERANCE_SOLVES = 400_000
 #: Most bench points of a measured part.
 MAX_MEASURED_POINTS = 50
 
@@ -189,7 +193,7 @@ SCENARIO_FIELDS = {
     "head_when_empty": _spec("length", "m", 0.0, 10.0,
                              help="head when the bag is empty (falling-head delivery time)"),
     "tolerance": _spec("tolerance", sweep=False, help="tolerances: temperature, hematocrit, "
-                       "viscosity, samples, seed"),
+                       "samples, seed"),
     "part": _spec("parts", sweep=False, help="the [[scenario.part]] tables, source to outlet"),
 }
 
@@ -198,8 +202,6 @@ SCENARIO_TOLERANCE_FIELDS = {
                          help="half-width of the temperature spread, e.g. '2 degC'"),
     "hematocrit": _spec("fraction", None, 0.0, 0.3, sweep=False,
                         help="half-width of the hematocrit spread, a fraction such as 0.03"),
-    "viscosity": _spec("relative", None, 0.0, 0.5, sweep=False,
-                       help="relative half-width of the viscosity spread, e.g. '5 %'"),
     "samples": _spec("integer", None, 100, 100_000, sweep=False,
                      help="Monte Carlo samples (2000 when not given)"),
     "seed": _spec("integer", None, 0, 2**32 - 1, sweep=False, help="random seed (0 when not given)"),
@@ -585,6 +587,13 @@ def _parse_scenario(raw, index, source):
         if len(axis) > MAX_AXIS_VALUES:  # pragma: no cover - _axis checks first
             raise ScenarioError(f"sweeps {len(axis)} values, above {MAX_AXIS_VALUES}",
                                 source=source, scenario=where, field=path)
+    has_tolerance = bool(tolerance) or any(p.tolerance for p in parts)
+    samples = tolerance.get("samples", 2000)
+    if has_tolerance and samples * sc.n_points > MAX_TOLERANCE_SOLVES:
+        raise ScenarioError(f"{samples} tolerance samples x {sc.n_points} sweep points is above "
+                            f"the limit of {MAX_TOLERANCE_SOLVES} solves; use fewer samples or "
+                            "sweep fewer values", source=source, scenario=where,
+                            field="tolerance.samples")
     if sc.n_points > MAX_SWEEP_POINTS:
         sizes = " x ".join(f"{len(a)} ({p})" for p, a in sc.axes)
         raise ScenarioError(f"the sweep expands to {sc.n_points} points ({sizes}), above the "
@@ -665,21 +674,9 @@ def _check_catalogue(ptype, values, source, where, prefix):
 
 
 def _default_label(ptype, raw):
-    def one(key, fmt):
-        v = raw.get(key)
-        return fmt.format(v) if isinstance(v, (int, float, str)) and not isinstance(v, bool) else ""
-
-    if ptype in ("catheter", "needle") and "gauge" in raw:
-        g = one("gauge", "{}")
-        return f"{ptype} {g}G".replace("GG", "G") if g else ptype
-    if ptype == "set" and "kind" in raw:
-        return one("kind", "{}") or ptype
-    if ptype == "cannula" and "french" in raw:
-        f = one("french", "{}")
-        return f"cannula {f} Fr" if f else ptype
-    if ptype == "fitting" and "k" in raw:
-        k = one("k", "{}")
-        return f"fitting K={k}" if k else ptype
+    """A set is named by its kind; other parts take the line engine's own name (the type)."""
+    if ptype == "set" and isinstance(raw.get("kind"), str):
+        return raw["kind"]
     return ptype
 
 
@@ -837,6 +834,8 @@ def _scalar(value, spec, source, where, path, check_range=True):
                 hint = f"; did you mean '{near[0]}'?" if near else ""
                 fail(f"unknown wall type '{_shown(value)}'{hint} Allowed: {', '.join(walls)}")
             return value.lower()
+        if name == "fluid":
+            _check_fluid(value, fail)
         return value
     if kind == "quantity_list":
         if not isinstance(value, list) or not value:
@@ -900,6 +899,17 @@ def _scalar(value, spec, source, where, path, check_range=True):
     if check_range:
         _check_range(out, value, spec, fail)
     return out
+
+
+def _check_fluid(value, fail):
+    from rheoline.model.fluids import fluid_names
+
+    names = fluid_names()
+    if value.strip().lower().replace("_", "-").replace(" ", "-") not in names:
+        near = difflib.get_close_matches(value.lower(), names, n=1, cutoff=0.6)
+        hint = f"; did you mean '{near[0]}'?" if near else ""
+        fail(f"unknown fluid '{_shown(value)}'{hint} Allowed: {', '.join(names)} "
+             "(see `rheoline fluids`)")
 
 
 def _strip_field(exc, name):

@@ -1,0 +1,747 @@
+"""Comparison runs: a validated scenario set solved into pandas tables.
+
+:func:`run_scenarios` solves every scenario and sweep point and returns a
+:class:`RunResult` whose ``table`` has one row per case (a scenario, or one point of
+its sweep) with the units in the column names:
+
+``flow [mL/min]``, ``flow [mL/h]``, ``required pressure [mmHg]`` (the source pressure
+above the gravity head), ``max Reynolds number``, ``regime`` (the worst part),
+``dominant part`` and ``dominant share [%]`` of the pressure budget,
+``max wall shear stress [Pa]``, ``hemolysis index [%]`` (Giersiepen 1990) and
+``hemolysis concern``, ``over pressure limit``, ``flags`` (validity notes),
+``flow p5 [mL/min]`` / ``flow p95 [mL/min]`` where tolerances are given, and
+``time to deliver [min]`` where a volume is given.
+
+Sweep points that share their fluid and catalogue sizes are solved together in one
+vectorized call of the line engine (no Python loop per point).
+
+:func:`smallest_reaching`, :func:`rank` and :func:`filter_cases` answer the usual
+review questions (e.g. the smallest catheter that reaches 100 mL/min at 1 m head).
+"""
+
+from __future__ import annotations
+
+import datetime as _dt
+import re
+import warnings
+from dataclasses import dataclass, field
+
+import numpy as np
+
+from rheoline.errors import RheolineError, ScenarioError
+from rheoline.scenario.files import Axis, ScenarioSet, sweep_points
+from rheoline.units import ML_PER_H, ML_PER_MIN, MMHG
+
+__all__ = [
+    "HEMOLYSIS_CONCERN_STRESS",
+    "RunResult",
+    "check_scenarios",
+    "run_scenarios",
+    "smallest_reaching",
+    "rank",
+    "filter_cases",
+    "fluid_table",
+    "parts_table",
+    "ASSUMPTIONS",
+]
+
+#: Wall shear stress [Pa] above which a blood case is flagged as a hemolysis concern.
+#: From memory: Leverett et al., Biophys. J. 12 (1972) 257-273, report red-cell damage
+#: above about 150 Pa for exposures of minutes; shorter exposures tolerate more, so this is
+#: a conservative screening threshold.
+HEMOLYSIS_CONCERN_STRESS = 150.0
+
+#: The models the line engine uses, with their references (the pack's "assumptions" sheet).
+ASSUMPTIONS = (
+    ("laminar lumen flow", "Hagen-Poiseuille", "Poiseuille 1840s; any fluid mechanics text",
+     "fully developed, rigid straight lumen, Newtonian"),
+    ("developing laminar flow", "apparent friction of the entrance region",
+     "Shah, J. Fluids Eng. 100 (1978) 177-179", "short lumens such as catheters"),
+    ("transitional and turbulent flow", "Darcy-Weisbach with the Churchill friction factor",
+     "Churchill, Chem. Eng. 84 (1977) 91-92", "laminar below Re 2300, turbulent above 4000 "
+     "(common practice)"),
+    ("minor losses", "entrance, contraction, expansion, fitting and exit coefficients",
+     "Idelchik, Handbook of Hydraulic Resistance; Crane Technical Paper 410", "K values of "
+     "fittings are the user's or typical"),
+    ("non-Newtonian flow", "Rabinowitsch-Mooney wall-shear integral of the rheology model",
+     "Rabinowitsch 1929; Mooney 1931", "blood as Carreau, Casson or Quemada per fluid"),
+    ("blood viscosity", "hematocrit and temperature dependence",
+     "Quemada, Rheol. Acta 17 (1978); Cho & Kensey, Biorheology 28 (1991); Pries et al., "
+     "Am. J. Physiol. 263 (1992)", "packed red cells taken as blood at a high hematocrit"),
+    ("hemolysis indicator", "Giersiepen power law with wall stress and mean residence time",
+     "Giersiepen et al., Int. J. Artif. Organs 13 (1990) 300-306", "screening only; concern "
+     f"flag above {HEMOLYSIS_CONCERN_STRESS:g} Pa wall stress (Leverett et al. 1972, from "
+     "memory)"),
+    ("catalogue sizes", "typical nominal catheter, needle and set dimensions",
+     "ISO 9626 for needles (from memory); catheters and sets typical, from memory",
+     "a maker's dimensions differ: measure the bore for a decision"),
+    ("units", "NIST SP 811 conversions", "NIST SP 811 (2008) Appendix B",
+     "1 mmHg = 133.322 Pa, 1 cmH2O = 98.0665 Pa"),
+)
+
+#: Monte Carlo samples per case when a scenario gives tolerances but no ``samples``.
+DEFAULT_TOLERANCE_SAMPLES = 2000
+
+_DISCRETE = {"gauge", "wall", "french", "kind", "k", "equivalent_length"}
+
+
+@dataclass
+class RunResult:
+    """A solved scenario set.
+
+    Attributes
+    ----------
+    scenario_set : ScenarioSet
+    table : pandas.DataFrame
+        One row per case; units in the column names.
+    parts : pandas.DataFrame
+        One row per case and part (and the outlet), with pressure drops, Reynolds numbers
+        and wall shear stresses.
+    inputs : pandas.DataFrame
+        The scenario inputs as written, one row per field.
+    assumptions : pandas.DataFrame
+        The models used and their references, and the fluids' property sources.
+    warnings : tuple of str
+        Notes raised while solving (correlations outside their range and the like).
+    """
+
+    scenario_set: ScenarioSet
+    table: object
+    parts: object
+    inputs: object
+    assumptions: object
+    warnings: tuple = ()
+    created: _dt.datetime = field(default_factory=lambda: _dt.datetime.now(_dt.UTC))
+
+    def summary(self):
+        """The columns printed by ``rheoline run``."""
+        t = self.table
+        out = t[["case", "flow [mL/min]", "required pressure [mmHg]"]].copy()
+        out.columns = ["case", "flow [mL/min]", "pressure [mmHg]"]
+        out["max Re"] = t["max Reynolds number"].round().astype("Int64")
+        out["regime"] = t["regime"]
+        out["dominant part (share)"] = [f"{p} ({s:.0f} %)" for p, s in
+                                        zip(t["dominant part"], t["dominant share [%]"],
+                                            strict=True)]
+        out["max wall shear [Pa]"] = t["max wall shear stress [Pa]"]
+        for what, unit in (("flow", "mL/min"), ("pressure", "mmHg")):
+            lo, hi = t[f"{what} p5 [{unit}]"], t[f"{what} p95 [{unit}]"]
+            if lo.notna().any():
+                out[f"{what} p5-p95 [{unit}]"] = [
+                    "" if np.isnan(a) else f"{a:.4g}-{b:.4g}"
+                    for a, b in zip(lo, hi, strict=True)]
+        if t["time to deliver [min]"].notna().any():
+            out["deliver [min]"] = t["time to deliver [min]"]
+        out["flags"] = t["flags"]
+        return out
+
+    def records(self):
+        """The table as a list of JSON-ready dicts (one per case), with the parts of each line.
+
+        Keys: ``name``, ``scenario``, ``point``, ``fluid``, ``flow_ml_min``, ``flow_ml_h``,
+        ``required_pressure_mmhg``, ``max_reynolds``, ``regime``, ``dominant_part``,
+        ``dominant_share``, ``max_wall_shear_stress_pa``, ``hemolysis_index_percent``,
+        ``hemolysis_concern``, ``exceeds_pressure_limit``, ``flow_p5_ml_min``,
+        ``flow_p95_ml_min``, ``time_to_deliver_min``, ``flags`` and ``parts`` (a list of
+        ``part``, ``kind``, ``pressure_drop_pa``, ``reynolds``, ``regime``,
+        ``wall_shear_stress_pa``, ``share``), and ``caution``.
+        """
+        from rheoline import CAUTION
+
+        by_case = {}
+        for row in self.parts.itertuples(index=False):
+            by_case.setdefault(row.case, []).append({
+                "part": row.part, "kind": row.kind,
+                "pressure_drop_pa": _num(row[self.parts.columns.get_loc("pressure drop [Pa]")]),
+                "reynolds": _num(row.reynolds), "regime": row.regime,
+                "wall_shear_stress_pa": _num(row[self.parts.columns.get_loc(
+                    "wall shear stress [Pa]")]),
+                "share": _num(row[self.parts.columns.get_loc("share [%]")] / 100.0),
+            })
+        out = []
+        t = self.table
+        for r in t.to_dict("records"):
+            out.append({
+                "name": r["case"], "scenario": r["scenario"], "point": r["point"],
+                "fluid": r["fluid"],
+                "flow_ml_min": _num(r["flow [mL/min]"]), "flow_ml_h": _num(r["flow [mL/h]"]),
+                "required_pressure_mmhg": _num(r["required pressure [mmHg]"]),
+                "max_reynolds": _num(r["max Reynolds number"]), "regime": r["regime"],
+                "dominant_part": r["dominant part"],
+                "dominant_share": _num(r["dominant share [%]"] / 100.0),
+                "max_wall_shear_stress_pa": _num(r["max wall shear stress [Pa]"]),
+                "hemolysis_index_percent": _num(r["hemolysis index [%]"]),
+                "hemolysis_concern": bool(r["hemolysis concern"]),
+                "exceeds_pressure_limit": None if r["over pressure limit"] is None
+                else bool(r["over pressure limit"]),
+                "flow_p5_ml_min": _num(r["flow p5 [mL/min]"]),
+                "flow_p95_ml_min": _num(r["flow p95 [mL/min]"]),
+                "required_pressure_p5_mmhg": _num(r["pressure p5 [mmHg]"]),
+                "required_pressure_p95_mmhg": _num(r["pressure p95 [mmHg]"]),
+                "time_to_deliver_min": _num(r["time to deliver [min]"]),
+                "flags": [f for f in r["flags"].split("; ") if f],
+                "parts": by_case.get(r["case"], []),
+                "caution": CAUTION,
+            })
+        return out
+
+
+def _num(v):
+    """A finite float, or None (JSON has no NaN)."""
+    if v is None:
+        return None
+    v = float(v)
+    return v if np.isfinite(v) else None
+
+
+# --------------------------------------------------------------------------- building blocks
+@dataclass
+class _Group:
+    """Sweep points of one scenario solved in one vectorized call."""
+
+    scenario: object
+    indices: list
+    labels: list
+    values: dict     # scenario field -> np.ndarray (n,) or a name
+    parts: list      # per part: dict field -> np.ndarray (n,) or a discrete value
+
+
+def _groups(sc):
+    points = sweep_points(sc)
+    keyed = {}
+    for i, pt in enumerate(points):
+        vals = {k: (pt[k][0] if k in pt else v) for k, v in sc.values.items()}
+        parts = []
+        for j, p in enumerate(sc.parts, start=1):
+            parts.append({k: (pt[f"part[{j}].{k}"][0] if isinstance(v, Axis) else v)
+                          for k, v in p.values.items()})
+        key = (vals["fluid"], tuple(tuple((k, v) for k, v in sorted(pv.items()) if k in _DISCRETE)
+                                    for pv in parts))
+        label = ", ".join(shown for _, shown in pt.values())
+        keyed.setdefault(key, []).append((i, label, vals, parts))
+    groups = []
+    for members in keyed.values():
+        idx = [m[0] for m in members]
+        labels = [m[1] for m in members]
+        vals = {}
+        for k in members[0][2]:
+            col = [m[2][k] for m in members]
+            vals[k] = col[0] if k == "fluid" else np.asarray(col, dtype=float)
+        parts = []
+        for j in range(len(sc.parts)):
+            pv = {}
+            for k in members[0][3][j]:
+                col = [m[3][j][k] for m in members]
+                if k in _DISCRETE:
+                    pv[k] = col[0]
+                elif isinstance(col[0], tuple):  # measured pairs, fixed
+                    pv[k] = np.asarray(col[0], dtype=float)
+                else:
+                    pv[k] = np.asarray(col, dtype=float)
+            parts.append(pv)
+        groups.append(_Group(sc, idx, labels, vals, parts))
+    return groups
+
+
+def _field_of(message, candidates, default):
+    low = message.lower()
+    for c in candidates:
+        if c.replace("_", " ") in low or c in low:
+            return c
+    return default
+
+
+def _build_fluid(group, source):
+    from rheoline.model.fluids import fluid
+
+    sc = group.scenario
+    opts = {k: group.values[k] for k in ("hematocrit", "mass_fraction") if k in group.values}
+    try:
+        return fluid(group.values["fluid"], temperature_c=group.values["temperature"], **opts)
+    except RheolineError as exc:
+        msg = str(exc)
+        if "has no option" in msg:
+            fieldname = next((k for k in opts if f"option {k!r}" in msg), "fluid")
+        else:
+            fieldname = _field_of(msg.split(";")[0], ["hematocrit", "mass_fraction",
+                                                      "temperature"], "fluid")
+        raise ScenarioError(str(exc), source=source, scenario=repr(sc.name),
+                            field=fieldname) from None
+
+
+def _build_parts(group, source):
+    from rheoline.model import parts as mp
+
+    sc = group.scenario
+    built, used = [], {}
+    for j, (spec, pv) in enumerate(zip(sc.parts, group.parts, strict=True), start=1):
+        name = None if spec.label == spec.type else spec.label  # None: the engine names it
+        if name is not None:
+            used[name] = used.get(name, 0) + 1
+            if used[name] > 1:
+                name = f"{name} ({used[name]})"
+        kw = dict(pv)
+        try:
+            if spec.type == "tube":
+                part = mp.Tube(name=name, **kw)
+            elif spec.type == "set":
+                kind = kw.pop("kind")
+                if "inner_diameter" in kw:
+                    length = kw.get("length", mp.catalogue.EXTENSION_SETS[kind][1])
+                    part = mp.Tube(inner_diameter=kw["inner_diameter"], length=length, name=name)
+                else:
+                    part = mp.extension_set(kind, length=kw.get("length"), name=name)
+            elif spec.type == "catheter":
+                part = mp.Catheter(name=name, **kw)
+            elif spec.type == "needle":
+                part = mp.Needle(name=name, **kw)
+            elif spec.type == "cannula":
+                part = mp.Cannula(name=name, **kw)
+            elif spec.type == "fitting":
+                part = mp.Fitting(name=name, **kw)
+            else:
+                part = mp.MeasuredPart(name=name, **kw)
+        except RheolineError as exc:
+            f = _field_of(str(exc), list(pv), next(iter(pv), "type"))
+            raise ScenarioError(str(exc), source=source, scenario=repr(sc.name),
+                                field=f"part[{j}].{f}") from None
+        built.append(part)
+    return built
+
+
+def check_scenarios(sset: ScenarioSet) -> None:
+    """Check what only the model knows (fluid names and options, part geometry).
+
+    Builds every fluid and part of every sweep group (cheap; nothing is solved) and turns
+    a model error into a :class:`ScenarioError` naming the file, scenario and field.
+    """
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")
+        for sc in sset.scenarios:
+            for g in _groups(sc):
+                _build_fluid(g, sset.source)
+                _build_parts(g, sset.source)
+
+
+# --------------------------------------------------------------------------- the run
+def run_scenarios(sset: ScenarioSet, progress=None) -> RunResult:
+    """Solve every scenario and sweep point of ``sset``.
+
+    Parameters
+    ----------
+    sset : ScenarioSet
+        From :func:`~rheoline.scenario.files.load_scenarios` or ``parse_scenarios``.
+    progress : callable, optional
+        ``progress(total)`` returning an object with ``update(n)`` and ``close()`` (a tqdm
+        bar); called with the number of cases.
+
+    Returns
+    -------
+    RunResult
+
+    Examples
+    --------
+    >>> from rheoline.scenario.files import example_path, load_scenarios
+    >>> run = run_scenarios(load_scenarios(example_path("minimal")))
+    >>> list(run.table["case"])
+    ['18G on a gravity set']
+    >>> bool(run.table["flow [mL/min]"].iloc[0] > 0)
+    True
+    """
+    import pandas as pd
+
+    rows, part_rows, notes = [], [], []
+    bar = progress(sset.n_points) if progress else None
+    try:
+        for sc in sset.scenarios:
+            sc_rows, sc_parts, sc_notes = {}, {}, []
+            for g in _groups(sc):
+                case_rows, case_parts, g_notes = _solve_group(g, sset.source)
+                for i, r, pr in zip(g.indices, case_rows, case_parts, strict=True):
+                    sc_rows[i], sc_parts[i] = r, pr
+                sc_notes += g_notes
+                if bar is not None:
+                    bar.update(len(g.indices))
+            notes += [f"{sc.name}: {n}" for n in _condense(sc_notes)]
+            for i in sorted(sc_rows):
+                rows.append(sc_rows[i])
+                part_rows += sc_parts[i]
+    finally:
+        if bar is not None:
+            bar.close()
+    table = pd.DataFrame(rows, columns=_COLUMNS)
+    parts = pd.DataFrame(part_rows, columns=_PART_COLUMNS)
+    return RunResult(sset, table, parts, _inputs_table(sset), _assumptions_table(sset),
+                     tuple(dict.fromkeys(notes)))
+
+
+_COLUMNS = [
+    "case", "scenario", "point", "fluid", "temperature [degC]", "drive", "gauge",
+    "smallest bore [mm]", "head [cm]", "source pressure [mmHg]", "back pressure [mmHg]",
+    "flow [mL/min]", "flow [mL/h]", "required pressure [mmHg]", "pressure limit [mmHg]",
+    "over pressure limit", "max Reynolds number", "regime", "dominant part",
+    "dominant share [%]", "max wall shear stress [Pa]", "hemolysis index [%]",
+    "hemolysis concern", "flow p5 [mL/min]", "flow p95 [mL/min]", "pressure p5 [mmHg]",
+    "pressure p95 [mmHg]", "time to deliver [min]",
+    "flags",
+]
+_PART_COLUMNS = [
+    "case", "part", "kind", "inner diameter [mm]", "length [m]", "reynolds", "regime",
+    "pressure drop [Pa]", "pressure drop [mmHg]", "share [%]", "mean velocity [m/s]",
+    "wall shear stress [Pa]", "wall shear rate [1/s]", "entrance length [m]",
+]
+
+
+def _vec(x, n):
+    return np.broadcast_to(np.asarray(x), (n,))
+
+
+def _solve_group(g, source):
+    from rheoline.model.line import Line
+
+    sc = g.scenario
+    n = len(g.indices)
+    with warnings.catch_warnings(record=True) as caught:
+        warnings.simplefilter("always")
+        fl = _build_fluid(g, source)
+        parts = _build_parts(g, source)
+        line = Line(parts)
+        v = g.values
+        back = v.get("back_pressure", 0.0)
+        if sc.mode == "flow":
+            res = line.solve(fl, flow=v["flow"], back_pressure=back)
+        else:
+            res = line.solve(fl, head=v.get("head", 0.0), source_pressure=v.get("source_pressure", 0.0),
+                             back_pressure=back)
+        band = _tolerance_band(sc, g, fl, line, res) if _has_tolerance(sc) else None
+        deliver = _delivery_minutes(sc, g, fl, line, res)
+    from rheoline.errors import RangeWarning, RheolineWarning
+    from rheoline.model.hemolysis import GIERSIEPEN_1990_MAX_STRESS
+
+    notes = [str(w.message) for w in caught if issubclass(w.category, RheolineWarning)]
+    notes += list(getattr(res, "flags", ()) or ())
+    flow = _vec(res.flow, n)
+    if sc.mode == "flow":
+        req = _vec(res.required_pressure, n)
+    else:  # the given source pressure (the engine's value agrees to rounding)
+        req = _vec(v.get("source_pressure", 0.0), n)
+    max_re = _vec(res.max_reynolds, n)
+    regime = _vec(res.regime, n)
+    dom = _vec(res.dominant_part, n)
+    share = _vec(res.dominant_share, n)
+    wss = _vec(res.max_wall_shear_stress, n)
+    hemo = _vec(res.hemolysis_index, n)
+    p_dp = np.broadcast_to(np.asarray(res.part_pressure_drops), (len(parts), n))
+    p_re = np.broadcast_to(np.asarray(res.part_reynolds), (len(parts), n))
+    p_u = np.broadcast_to(np.asarray(res.part_mean_velocity), (len(parts), n))
+    p_tau = np.broadcast_to(np.asarray(res.part_wall_shear_stress), (len(parts), n))
+    p_rate = np.broadcast_to(np.asarray(res.part_wall_shear_rate), (len(parts), n))
+    p_le = np.broadcast_to(np.asarray(res.part_entrance_length, dtype=float), (len(parts), n))
+    exit_dp = _vec(res.exit_pressure_drop, n)
+    limit = v.get("pressure_limit")
+    is_blood = bool(fl.is_blood)
+    budget = p_dp.sum(axis=0) + exit_dp
+    rows, part_rows = [], []
+    range_note = any(issubclass(w.category, RangeWarning) for w in caught)
+    converged = _vec(getattr(res, "converged", True), n)
+    for col in range(n):
+        case = sc.name + (f" | {g.labels[col]}" if g.labels[col] else "")
+        flags = []
+        for r in ("turbulent", "transitional"):
+            where = [line.part_names[j] for j, part in enumerate(parts)
+                     if part.kind == "lumen" and _regime(p_re[j, col]) == r]
+            if where:
+                flags.append(f"{r}: {', '.join(where)}")
+        over = None
+        lim = None
+        if limit is not None:
+            lim = float(_vec(limit, n)[col])
+            over = bool(req[col] > lim)
+            if over:
+                flags.append("over pressure limit")
+        concern = bool(is_blood and wss[col] > HEMOLYSIS_CONCERN_STRESS)
+        if concern:
+            flags.append("hemolysis concern")
+        if is_blood and np.any(p_tau[:, col] > GIERSIEPEN_1990_MAX_STRESS):
+            flags.append("hemolysis index extrapolated")
+        if not flow[col] > 0:
+            flags.append("no forward flow")
+        if not converged[col]:
+            flags.append("solver not converged")
+        if range_note:
+            flags.append("outside a correlation's range (see notes)")
+        bores = [float(_vec(p.inner_diameter, n)[col]) for p in parts
+                 if getattr(p, "inner_diameter", None) is not None]
+        gauges = [spec for spec in g.parts if "gauge" in spec]
+        rows.append([
+            case, sc.name, g.labels[col], v["fluid"], float(_vec(v["temperature"], n)[col]),
+            "pump" if sc.mode == "flow" else ("pressure" if "source_pressure" in v and
+                                              np.any(v["source_pressure"] > 0) else "gravity"),
+            int(gauges[-1]["gauge"]) if gauges else None,
+            min(bores) * 1e3 if bores else np.nan,
+            float(_vec(v["head"], n)[col]) * 100 if "head" in v else np.nan,
+            float(_vec(v["source_pressure"], n)[col]) / MMHG if "source_pressure" in v else np.nan,
+            float(_vec(back, n)[col]) / MMHG,
+            float(flow[col]) / ML_PER_MIN, float(flow[col]) / ML_PER_H,
+            float(req[col]) / MMHG + 0.0, lim / MMHG if lim is not None else np.nan, over,
+            float(max_re[col]), str(regime[col]), str(dom[col]), float(share[col]) * 100,
+            float(wss[col]), float(hemo[col]), concern,
+            band[0][col] if band and sc.mode == "drive" else np.nan,
+            band[1][col] if band and sc.mode == "drive" else np.nan,
+            band[0][col] if band and sc.mode == "flow" else np.nan,
+            band[1][col] if band and sc.mode == "flow" else np.nan,
+            deliver[col] if deliver is not None else np.nan,
+            "; ".join(flags),
+        ])
+        for j, part in enumerate(parts):
+            d = getattr(part, "inner_diameter", None)
+            length = getattr(part, "length", None)
+            part_rows.append([
+                case, line.part_names[j], getattr(part, "kind", "part"),
+                float(_vec(d, n)[col]) * 1e3 if d is not None else np.nan,
+                float(_vec(length, n)[col]) if length is not None else np.nan,
+                float(p_re[j, col]), _regime(p_re[j, col]),
+                float(p_dp[j, col]), float(p_dp[j, col]) / MMHG,
+                float(p_dp[j, col] / budget[col] * 100) if budget[col] > 0 else np.nan,
+                float(p_u[j, col]), float(p_tau[j, col]), float(p_rate[j, col]),
+                float(p_le[j, col]),
+            ])
+        part_rows.append([
+            case, "exit", "exit", np.nan, np.nan, np.nan, "", float(exit_dp[col]),
+            float(exit_dp[col]) / MMHG,
+            float(exit_dp[col] / budget[col] * 100) if budget[col] > 0 else np.nan,
+            np.nan, np.nan, np.nan, np.nan,
+        ])
+    per_case_rows = [rows[c] for c in range(n)]
+    per_case_parts = [part_rows[c * (len(parts) + 1):(c + 1) * (len(parts) + 1)]
+                      for c in range(n)]
+    return per_case_rows, per_case_parts, notes
+
+
+def _condense(notes):
+    """Shorter notes: regime notes are in each row's flags; developing flow is one line."""
+    out, developing = [], []
+    for m in notes:
+        m = re.sub(r" in \d+ of \d+ scenarios", "", m)
+        hit = re.match(r"^(.*): developing laminar flow", m)
+        if hit:
+            developing.append(hit.group(1))
+        elif not re.search(r": (turbulent|transitional) flow \(", m) and m not in out:
+            out.append(m)
+    if developing:
+        out.insert(0, "developing laminar flow (shorter than the entrance length) in "
+                   f"{', '.join(dict.fromkeys(developing))}; Shah 1978 apparent friction used")
+    return out
+
+
+def _regime(reynolds):
+    """The regime of one Reynolds number; "" where none applies (K fittings, measured parts)."""
+    from rheoline.model.lumen import regime_of
+
+    return str(regime_of(reynolds)) if np.isfinite(reynolds) else ""
+
+
+def _has_tolerance(sc):
+    return bool(sc.tolerance) or any(p.tolerance for p in sc.parts)
+
+
+def _tolerance_band(sc, g, fl, line, res):
+    """p5 and p95 per case of the flow [mL/min] (drive mode) or the required pressure [mmHg]
+    (flow mode), from a seeded Monte Carlo through one vectorized solve.
+
+    Each tolerance is the half-width of a uniform spread around the nominal value (a
+    tolerance band read as limits; uniform is the flat, assumption-light choice).  Samples of
+    every case are solved together: the arrays have ``samples * cases`` entries.
+    """
+    from rheoline.model.line import Line
+
+    n = len(g.indices)
+    tol = sc.tolerance
+    samples = int(tol.get("samples", DEFAULT_TOLERANCE_SAMPLES))
+    rng = np.random.default_rng([int(tol.get("seed", 0)), sc.index, g.indices[0]])
+
+    def spread(nominal, half_width, relative=False):
+        u = rng.uniform(-1.0, 1.0, size=(samples, n))
+        base = np.broadcast_to(np.asarray(nominal, dtype=float), (n,))
+        return (base * (1.0 + half_width * u) if relative else base + half_width * u).ravel()
+
+    def tile(x):
+        return np.tile(np.broadcast_to(np.asarray(x, dtype=float), (n,)), samples)
+
+    values = dict(g.values)
+    for k, v in values.items():
+        if k != "fluid":
+            values[k] = tile(v)
+    if "temperature" in tol:
+        values["temperature"] = spread(g.values["temperature"], tol["temperature"])
+    if "hematocrit" in tol and fl.is_blood:
+        nominal = g.values.get("hematocrit", fl.hematocrit)
+        values["hematocrit"] = np.clip(spread(nominal, tol["hematocrit"]), 0.0, 0.8)
+    parts = []
+    for spec, pv, built in zip(sc.parts, g.parts, line.parts, strict=True):
+        pv = {k: (tile(v) if isinstance(v, np.ndarray) and k not in ("flows", "pressure_drops")
+                  else v) for k, v in pv.items()}
+        for k, (how, width) in spec.tolerance.items():
+            nominal = getattr(built, k)
+            pv[k] = spread(nominal, width, relative=(how == "relative"))
+        if spec.type == "set" and spec.tolerance:
+            pv.setdefault("length", tile(built.length))
+        parts.append(pv)
+    mc = _Group(sc, g.indices, g.labels, values, parts)
+    mc_fluid = _build_fluid(mc, "")
+    mc_line = Line(_build_parts(mc, ""))
+    v = values
+    if sc.mode == "flow":
+        r = mc_line.solve(mc_fluid, flow=v["flow"], back_pressure=v.get("back_pressure", 0.0))
+        out = np.asarray(r.required_pressure).reshape(samples, n) / MMHG
+    else:
+        r = mc_line.solve(mc_fluid, head=v.get("head", 0.0),
+                          source_pressure=v.get("source_pressure", 0.0),
+                          back_pressure=v.get("back_pressure", 0.0))
+        out = np.asarray(r.flow).reshape(samples, n) / ML_PER_MIN
+    return np.percentile(out, 5, axis=0), np.percentile(out, 95, axis=0)
+
+
+def _delivery_minutes(sc, g, fl, line, res):
+    """Time [min] to deliver the scenario's volume, per case; None without a volume."""
+    if "volume" not in g.values:
+        return None
+    n = len(g.indices)
+    volume = _vec(g.values["volume"], n)
+    if "head_when_empty" in g.values:
+        from rheoline.model import delivery
+
+        t = delivery.falling_head_delivery_time(
+            line, fl, volume, g.values["head"], g.values["head_when_empty"],
+            source_pressure=g.values.get("source_pressure", 0.0),
+            back_pressure=g.values.get("back_pressure", 0.0))
+        return _vec(getattr(t, "time", t), n) / 60.0
+    return volume / _vec(res.flow, n) / 60.0
+
+
+# --------------------------------------------------------------------------- tables
+def _text_of(value):
+    if isinstance(value, dict):
+        return "{" + ", ".join(f"{k} = {_text_of(v)}" for k, v in value.items()) + "}"
+    if isinstance(value, list):
+        return "[" + ", ".join(_text_of(v) for v in value) + "]"
+    return str(value)
+
+
+def _inputs_table(sset):
+    import pandas as pd
+
+    rows = []
+    for sc in sset.scenarios:
+        for k, v in sc.raw.items():
+            if k != "part":
+                rows.append([sc.name, k, _text_of(v)])
+        for j, p in enumerate(sc.raw.get("part", []), start=1):
+            for k, v in p.items():
+                rows.append([sc.name, f"part[{j}].{k}", _text_of(v)])
+    return pd.DataFrame(rows, columns=["scenario", "field", "value as written"])
+
+
+def _assumptions_table(sset):
+    import pandas as pd
+
+    from rheoline.model.fluids import FLUID_LIBRARY
+
+    rows = [list(a) for a in ASSUMPTIONS]
+    names = []
+    for sc in sset.scenarios:
+        f = sc.values["fluid"]
+        names += list(f.values) if isinstance(f, Axis) else [f]
+    for name in dict.fromkeys(names):
+        entry = FLUID_LIBRARY.get(name.strip().lower().replace("_", "-").replace(" ", "-"))
+        if entry is not None:
+            rows.append([f"fluid: {name}", entry.description, entry.source,
+                         f"default temperature {entry.default_temperature_c:g} degC"])
+    return pd.DataFrame(rows, columns=["topic", "model", "reference", "notes"])
+
+
+def fluid_table():
+    """The fluid library as a table (``rheoline fluids``)."""
+    import pandas as pd
+
+    from rheoline.model.fluids import fluid_catalogue
+
+    rows = []
+    for e in fluid_catalogue():
+        opts = ", ".join(e["options"]) or "-"
+        rows.append([e["name"], e["description"], e["default_temperature_c"], opts, e["source"]])
+    return pd.DataFrame(rows, columns=["fluid", "description", "default [degC]", "options",
+                                       "source"])
+
+
+def parts_table(kind=None):
+    """The part catalogue as a table (``rheoline parts``); ``kind`` picks one catalogue."""
+    import pandas as pd
+
+    from rheoline.model import catalogue as cat
+
+    rows = []
+    for g, (od, d, length, _) in cat.CATHETER_GAUGES.items():
+        rows.append(["catheter", f"{g}G", od * 1e3, d * 1e3, length * 1e3,
+                     "typical nominal, from memory"])
+    for g, (od, d_reg, d_thin) in cat.NEEDLE_GAUGES.items():
+        rows.append(["needle", f"{g}G regular", od * 1e3, d_reg * 1e3, 38.0,
+                     "ISO 9626 minimum bore, from memory"])
+        rows.append(["needle", f"{g}G thin", od * 1e3, d_thin * 1e3, 38.0,
+                     "ISO 9626 minimum bore, from memory"])
+    for k, (d, length) in cat.EXTENSION_SETS.items():
+        rows.append(["set", k, np.nan, d * 1e3, length * 1e3, "typical, from memory"])
+    for k, d in cat.CIRCUIT_TUBING.items():
+        rows.append(["tubing", f"{k} inch", np.nan, d * 1e3, np.nan, "exact by definition"])
+    frame = pd.DataFrame(rows, columns=["catalogue", "size", "outer diameter [mm]",
+                                        "inner diameter [mm]", "length [mm]", "source"])
+    if kind:
+        kinds = sorted(set(frame["catalogue"]))
+        if kind not in kinds:
+            import difflib
+
+            near = difflib.get_close_matches(kind, kinds, n=1)
+            hint = f"; did you mean '{near[0]}'?" if near else ""
+            raise ScenarioError(f"no catalogue '{kind}'{hint} Catalogues: {', '.join(kinds)}",
+                                field="--kind")
+        frame = frame[frame["catalogue"] == kind].reset_index(drop=True)
+    return frame
+
+
+# --------------------------------------------------------------------------- questions
+def filter_cases(table, **conditions):
+    """Rows whose columns equal the given values (floats within 1e-9 relative).
+
+    Column names with spaces and units are passed through a dict:
+    ``filter_cases(t, **{"head [cm]": 100, "fluid": "saline-0.9"})``.
+    """
+    mask = np.ones(len(table), dtype=bool)
+    for col, value in conditions.items():
+        if col not in table.columns:
+            import difflib
+
+            near = difflib.get_close_matches(col, list(table.columns), n=1)
+            hint = f"; did you mean '{near[0]}'?" if near else ""
+            raise ScenarioError(f"no column '{col}'{hint}", field=col)
+        if isinstance(value, float | int) and not isinstance(value, bool):
+            mask &= np.isclose(table[col].astype(float), value, rtol=1e-9, atol=0.0)
+        else:
+            mask &= (table[col] == value).to_numpy()
+    return table[mask]
+
+
+def rank(table, by="flow [mL/min]", ascending=False):
+    """The table sorted by one column (highest flow first by default)."""
+    return table.sort_values(by, ascending=ascending, kind="stable").reset_index(drop=True)
+
+
+def smallest_reaching(table, flow_ml_min, by="smallest bore [mm]", **conditions):
+    """The case with the smallest ``by`` that still reaches ``flow_ml_min``.
+
+    Example: the smallest catheter reaching 100 mL/min at 1 m head:
+    ``smallest_reaching(run.table, 100, **{"head [cm]": 100, "fluid": "saline-0.9"})``.
+    Returns a one-row DataFrame, empty when no case reaches the flow.
+    """
+    cand = filter_cases(table, **conditions)
+    cand = cand[cand["flow [mL/min]"] >= flow_ml_min]
+    return cand.sort_values([by, "flow [mL/min]"], kind="stable").head(1)
