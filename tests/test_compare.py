@@ -1,0 +1,205 @@
+"""Comparison runs: tables with units, agreement with the line engine, rank and filter helpers."""
+
+import math
+
+import numpy as np
+import pytest
+
+import rheoline
+from rheoline.errors import ScenarioError
+from rheoline.scenario.compare import (
+    HEMOLYSIS_CONCERN_STRESS,
+    filter_cases,
+    rank,
+    run_scenarios,
+    smallest_reaching,
+)
+from rheoline.scenario.files import example_path, load_scenarios, parse_scenarios
+
+MMHG = 133.322387415  # Pa, NIST SP 811 (2008) Appendix B.8
+ML_PER_MIN = 1e-6 / 60
+
+
+def doc(*scenarios):
+    return {"format_version": 1, "scenario": list(scenarios)}
+
+
+def sc(name="case", parts=None, **fields):
+    out = {"name": name, "fluid": "water", "temperature": "20 degC"}
+    out.update(fields)
+    out["part"] = parts or [{"type": "catheter", "gauge": 18}]
+    return out
+
+
+def run(*scenarios):
+    return run_scenarios(parse_scenarios(doc(*scenarios)))
+
+
+# --------------------------------------------------------------------------- table shape
+def test_a_row_per_sweep_point_with_units_in_the_columns():
+    r = run(sc(head=["50 cm", "1 m"], parts=[{"type": "catheter", "gauge": [14, 18, 22]}]))
+    t = r.table
+    assert len(t) == 6
+    for col in ("flow [mL/min]", "flow [mL/h]", "required pressure [mmHg]",
+                "max wall shear stress [Pa]", "dominant share [%]", "head [cm]"):
+        assert col in t.columns
+    assert {"max Reynolds number", "regime", "dominant part", "hemolysis concern", "flags"} <= set(t)
+    assert t["case"].tolist()[0] == "case | 50 cm, 14G"
+    assert t["gauge"].tolist() == [14, 18, 22, 14, 18, 22]
+    assert t["flow [mL/h]"].to_numpy() == pytest.approx(60 * t["flow [mL/min]"].to_numpy())
+    # one row per part plus the outlet, for every case
+    assert len(r.parts) == 6 * 2
+
+
+def test_vectorized_sweep_equals_scalar_engine_solves():
+    r = run(sc(head=["40 cm", "1.5 m"], back_pressure="8 mmHg",
+               parts=[{"type": "tube", "inner_diameter": "3 mm", "length": "1.8 m"},
+                      {"type": "catheter", "gauge": [16, 20]}]))
+    water = rheoline.fluid("water", temperature_c=20.0)
+    for row in r.table.to_dict("records"):
+        line = rheoline.Line([rheoline.Tube(inner_diameter=3e-3, length=1.8),
+                              rheoline.Catheter(gauge=row["gauge"])])
+        res = line.solve(water, head=row["head [cm]"] / 100, back_pressure=8 * MMHG)
+        assert row["flow [mL/min]"] == pytest.approx(res.flow / ML_PER_MIN, rel=1e-9)
+        assert row["max Reynolds number"] == pytest.approx(res.max_reynolds, rel=1e-9)
+
+
+def test_low_reynolds_narrow_tube_matches_hagen_poiseuille_by_hand():
+    # Hagen-Poiseuille, Q = pi r^4 dp / (8 mu L), worked by hand:
+    # r = 0.25 mm, dp = 300 mmHg = 39996.7 Pa, mu(water, 20 degC) = 1.0016 mPa s
+    # (IAPWS 2008, Huber et al. 2009, Table 4), L = 2 m:
+    # Q = pi * 3.906e-15 * 39996.7 / (8 * 1.0016e-3 * 2) = 3.064e-8 m^3/s = 1.838 mL/min,
+    # Re = rho u D / mu = 998.2 * 0.156 * 0.5e-3 / 1.0016e-3 = 78 (laminar; exit loss ~0.03 %).
+    r = run(sc(source_pressure="300 mmHg",
+               parts=[{"type": "tube", "inner_diameter": "0.5 mm", "length": "2 m"}]))
+    assert r.table["flow [mL/min]"].iloc[0] == pytest.approx(1.838, rel=0.02)
+    assert r.table["regime"].iloc[0] == "laminar"
+
+
+def test_pump_pressure_drives_the_same_flow_back():
+    pumped = run(sc(flow="120 mL/min", back_pressure="8 mmHg",
+                    parts=[{"type": "set", "kind": "gravity-set"},
+                           {"type": "catheter", "gauge": 18}])).table.iloc[0]
+    driven = run(sc(source_pressure=f"{float(pumped['required pressure [mmHg]'])!r} mmHg",
+                    back_pressure="8 mmHg",
+                    parts=[{"type": "set", "kind": "gravity-set"},
+                           {"type": "catheter", "gauge": 18}])).table.iloc[0]
+    assert driven["flow [mL/min]"] == pytest.approx(120.0, rel=1e-3)  # the issue's 0.1 %
+
+
+def test_pressure_limit_flag_agrees_with_the_numbers():
+    t = run(sc(flow=["50 mL/min", "400 mL/min"], pressure_limit="300 mmHg")).table
+    assert t["over pressure limit"].tolist() == [
+        bool(p > 300) for p in t["required pressure [mmHg]"]]
+    assert t["over pressure limit"].tolist() == [False, True]
+    assert "over pressure limit" in t["flags"].iloc[1]
+
+
+def test_time_to_deliver_at_a_constant_drive_is_volume_over_flow():
+    t = run(sc(head="1 m", volume="500 mL")).table.iloc[0]
+    assert t["time to deliver [min]"] == pytest.approx(500 / t["flow [mL/min]"], rel=1e-12)
+
+
+def test_hemolysis_concern_only_for_blood_above_the_threshold():
+    t = run(sc(name="blood", fluid="whole-blood", temperature="37 degC", flow="150 mL/min",
+               parts=[{"type": "catheter", "gauge": [14, 20]}]),
+            sc(name="saline", fluid="saline-0.9", flow="150 mL/min",
+               parts=[{"type": "catheter", "gauge": [20]}])).table
+    for row in t.to_dict("records"):
+        blood = row["fluid"] == "whole-blood"
+        assert row["hemolysis concern"] == (
+            blood and row["max wall shear stress [Pa]"] > HEMOLYSIS_CONCERN_STRESS)
+    assert t["hemolysis concern"].any()
+    assert not t[t["fluid"] == "saline-0.9"]["hemolysis concern"].any()
+
+
+# --------------------------------------------------------------------------- tolerances
+def _tol_run(width, seed=3):
+    return run(sc(head="1 m", tolerance={"seed": seed, "samples": 1000},
+                  parts=[{"type": "catheter", "gauge": 18,
+                          "tolerance": {"inner_diameter": width}}])).table.iloc[0]
+
+
+def test_tolerance_band_brackets_the_nominal_and_widens_with_the_tolerance():
+    narrow, wide = _tol_run("2 %"), _tol_run("8 %")
+    for row in (narrow, wide):
+        assert row["flow p5 [mL/min]"] < row["flow [mL/min]"] < row["flow p95 [mL/min]"]
+    spread = [r["flow p95 [mL/min]"] - r["flow p5 [mL/min]"] for r in (narrow, wide)]
+    assert spread[1] > 2.5 * spread[0]
+
+
+def test_tolerance_band_is_reproducible_with_its_seed():
+    a, b, c = _tol_run("5 %", 7), _tol_run("5 %", 7), _tol_run("5 %", 8)
+    assert a["flow p5 [mL/min]"] == b["flow p5 [mL/min]"]
+    assert a["flow p5 [mL/min]"] != c["flow p5 [mL/min]"]
+
+
+def test_laminar_bore_tolerance_follows_the_fourth_power():
+    # A long laminar lumen: Q ~ d^4 (Hagen-Poiseuille), so a uniform +/-5 % bore gives
+    # p95/p5 of about ((1 + 0.9 * 0.05) / (1 - 0.9 * 0.05))^4 = 1.44 (5th and 95th
+    # percentiles of a uniform spread lie at -/+ 0.9 of its half-width).
+    t = run(sc(source_pressure="100 mmHg", tolerance={"samples": 4000},
+               parts=[{"type": "tube", "inner_diameter": "0.4 mm", "length": "2 m",
+                       "tolerance": {"inner_diameter": "5 %"}}])).table.iloc[0]
+    ratio = t["flow p95 [mL/min]"] / t["flow p5 [mL/min]"]
+    assert ratio == pytest.approx((1.045 / 0.955) ** 4, rel=0.03)
+
+
+def test_pump_tolerance_band_is_on_the_pressure():
+    t = run(sc(flow="100 mL/min", tolerance={"temperature": "3 degC"})).table.iloc[0]
+    assert math.isnan(t["flow p5 [mL/min]"])
+    assert t["pressure p5 [mmHg]"] < t["required pressure [mmHg]"] < t["pressure p95 [mmHg]"]
+
+
+# --------------------------------------------------------------------------- questions
+@pytest.fixture(scope="module")
+def bench():
+    return run_scenarios(load_scenarios(example_path("bench-sweep"))).table
+
+
+def test_smallest_catheter_reaching_a_flow_at_one_metre(bench):
+    best = smallest_reaching(bench, 100.0, **{"head [cm]": 100.0})
+    assert len(best) == 1
+    at_1m = bench[np.isclose(bench["head [cm]"], 100.0)]
+    reaching = at_1m[at_1m["flow [mL/min]"] >= 100.0]
+    assert best["smallest bore [mm]"].iloc[0] == reaching["smallest bore [mm]"].min()
+    # the next smaller catheter does not reach it
+    smaller = at_1m[at_1m["smallest bore [mm]"] < best["smallest bore [mm]"].iloc[0]]
+    assert (smaller["flow [mL/min]"] < 100.0).all() and len(smaller) > 0
+
+
+def test_flow_falls_with_gauge_number(bench):
+    # larger gauge number, smaller bore, less flow (common practice, no source)
+    at_1m = bench[np.isclose(bench["head [cm]"], 100.0)].sort_values("gauge")
+    assert np.all(np.diff(at_1m["flow [mL/min]"].to_numpy()) < 0)
+
+
+def test_nothing_reaches_an_impossible_flow(bench):
+    assert smallest_reaching(bench, 1e6).empty
+
+
+def test_rank_and_filter(bench):
+    ranked = rank(bench)
+    assert ranked["flow [mL/min]"].is_monotonic_decreasing
+    assert len(filter_cases(bench, gauge=18)) == 5
+    with pytest.raises(ScenarioError, match="did you mean 'head \\[cm\\]'"):
+        filter_cases(bench, **{"head [cn]": 100})
+
+
+# --------------------------------------------------------------------------- echo
+def test_inputs_and_assumptions_tables():
+    r = run(sc(head="80 cm", fluid="saline-0.9"))
+    assert ("case", "head", "80 cm") in set(map(tuple, r.inputs.to_numpy()))
+    assert ("case", "part[1].gauge", "18") in set(map(tuple, r.inputs.to_numpy()))
+    topics = r.assumptions["topic"].tolist()
+    assert "fluid: saline-0.9" in topics and "hemolysis indicator" in topics
+    assert r.assumptions["reference"].str.contains("Churchill").any()
+
+
+def test_records_are_json_ready_and_carry_the_caution():
+    import json
+
+    rec = run(sc(head="1 m")).records()
+    text = json.dumps(rec, allow_nan=False)
+    assert rheoline.CAUTION in text
+    assert {"pressure_drop_pa", "reynolds", "wall_shear_stress_pa"} <= set(rec[0]["parts"][0])
