@@ -93,7 +93,7 @@ __all__ = ["Line", "LineResult", "GRAVITY"]
 GRAVITY = 9.80665
 
 # Largest diameter of the data behind Pries 1992; the correction is relative to it.
-_PRIES_REFERENCE_DIAMETER = 1.978e-3
+_PRIES_REFERENCE_DIAMETER = 1.9779e-3
 
 _TOL = 1e-11          # convergence on ln(Q)
 _MAX_ITER = 60
@@ -419,7 +419,7 @@ class Line:
             limit), compared with ``required_pressure``.
         pries_correction : bool
             For blood, scale each lumen's apparent viscosity by the Pries 1992 in-vitro law
-            relative to its value at 1.978 mm (the Fahraeus-Lindqvist effect).
+            relative to its value at 1.978 mm (the largest tube of its data) (the Fahraeus-Lindqvist effect).
 
         Returns
         -------
