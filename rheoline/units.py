@@ -75,6 +75,8 @@ def registry():
     # The trade's pressure units with their conventional (NIST SP 811) values.
     ureg.define(f"mmHg_conv = {MMHG} * Pa = mmHg_c")
     ureg.define(f"cmH2O_conv = {CMH2O} * Pa = cmH2O_c")
+    # French catheter scale (Charriere): 1 Fr = 1/3 mm of outer diameter (ISO 10555-1).
+    ureg.define("french_gauge = mm / 3 = Fr")
     return ureg
 
 

@@ -255,7 +255,7 @@ def fluid(name: str, temperature_c=None, **options) -> Fluid:
     >>> round(fluid("saline-0.9", temperature_c=37.0).viscosity() * 1e3, 3)
     0.701
     >>> fluid("glycerol-water", mass_fraction=[0.3, 0.4]).viscosity().round(5)
-    array([0.0025 , 0.00372])
+    array([0.00245, 0.00367])
     """
     key, entry = _entry(name)
     unknown = sorted(set(options) - set(entry.options))

@@ -21,7 +21,7 @@ Casson, N., in "Rheology of Disperse Systems", Pergamon, 1959, pp. 84-104.
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from dataclasses import dataclass, fields
 
 import numpy as np
 
@@ -36,6 +36,7 @@ __all__ = [
     "CarreauYasuda",
     "Casson",
     "RHEOLOGY_MODELS",
+    "PARAMETER_UNITS",
 ]
 
 #: Shear rate [1/s] used for "high shear" in models with no finite infinite-shear
@@ -90,6 +91,26 @@ class RheologyModel:
         return self.viscosity(1e-12)
 
     @property
+    def parameters(self) -> dict:
+        """The model's parameters by name (SI; see :data:`PARAMETER_UNITS`)."""
+        return {f.name: getattr(self, f.name) for f in fields(self)}
+
+    def describe(self) -> str:
+        """One line naming the model and its parameters with units.
+
+        Examples
+        --------
+        >>> PowerLaw(0.01, 0.7).describe()
+        'power-law: consistency=0.01 Pa s^n, flow_index=0.7'
+        """
+        parts = []
+        for key, value in self.parameters.items():
+            unit = PARAMETER_UNITS.get(key, "")
+            shown = f"{value:.4g}" if np.ndim(value) == 0 else f"array{np.shape(value)}"
+            parts.append(f"{key}={shown}{' ' + unit if unit else ''}")
+        return f"{self.name}: " + ", ".join(parts)
+
+    @property
     def infinite_shear_viscosity(self):
         """Viscosity [Pa s] at high shear (the model's limit, or at HIGH_SHEAR_RATE)."""
         return self.viscosity(HIGH_SHEAR_RATE)
@@ -115,7 +136,7 @@ class Newtonian(RheologyModel):
     is_newtonian = True
 
     def __post_init__(self):
-        object.__setattr__(self, "mu", check_positive("viscosity", self.mu, "Pa s"))
+        object.__setattr__(self, "mu", _param(check_positive("viscosity", self.mu, "Pa s")))
 
     def viscosity(self, shear_rate=None):
         """Viscosity [Pa s], the same at every shear rate."""
@@ -158,8 +179,8 @@ class PowerLaw(RheologyModel):
     name = "power-law"
 
     def __post_init__(self):
-        object.__setattr__(self, "consistency", check_positive("consistency", self.consistency))
-        object.__setattr__(self, "flow_index", check_positive("flow_index", self.flow_index))
+        object.__setattr__(self, "consistency", _param(check_positive("consistency", self.consistency)))
+        object.__setattr__(self, "flow_index", _param(check_positive("flow_index", self.flow_index)))
 
     def viscosity(self, shear_rate=None):
         g = HIGH_SHEAR_RATE if shear_rate is None else np.asarray(shear_rate, dtype=float)
@@ -203,7 +224,7 @@ class CarreauYasuda(RheologyModel):
 
     def __post_init__(self):
         for field in ("mu_zero", "mu_inf", "relaxation_time", "flow_index", "a"):
-            object.__setattr__(self, field, check_positive(field, getattr(self, field)))
+            object.__setattr__(self, field, _param(check_positive(field, getattr(self, field))))
         if np.any(self.mu_zero < self.mu_inf):
             raise InputRangeError(
                 "mu_zero must be at least mu_inf (zero-shear viscosity is the larger); "
@@ -263,8 +284,8 @@ class Casson(RheologyModel):
     name = "casson"
 
     def __post_init__(self):
-        object.__setattr__(self, "yield_stress", check_nonnegative("yield_stress", self.yield_stress, "Pa"))
-        object.__setattr__(self, "casson_viscosity", check_positive("casson_viscosity", self.casson_viscosity, "Pa s"))
+        object.__setattr__(self, "yield_stress", _param(check_nonnegative("yield_stress", self.yield_stress, "Pa")))
+        object.__setattr__(self, "casson_viscosity", _param(check_positive("casson_viscosity", self.casson_viscosity, "Pa s")))
 
     def stress(self, shear_rate):
         g = np.maximum(np.asarray(shear_rate, dtype=float), 0.0)
@@ -285,6 +306,19 @@ class Casson(RheologyModel):
         return _out(np.where(self.yield_stress > 0, np.inf, self.casson_viscosity))
 
 
+#: Units of the parameters of every model (for tables, exports and ``describe``).
+PARAMETER_UNITS = {
+    "mu": "Pa s",
+    "consistency": "Pa s^n",
+    "flow_index": "",
+    "mu_zero": "Pa s",
+    "mu_inf": "Pa s",
+    "relaxation_time": "s",
+    "a": "",
+    "yield_stress": "Pa",
+    "casson_viscosity": "Pa s",
+}
+
 #: The family of models by name; dispatchers, choices and docs read this dict.
 RHEOLOGY_MODELS = {
     "newtonian": Newtonian,
@@ -293,6 +327,11 @@ RHEOLOGY_MODELS = {
     "carreau-yasuda": CarreauYasuda,
     "casson": Casson,
 }
+
+
+def _param(arr):
+    """Store 0-d parameters as floats (readable reprs); arrays stay arrays."""
+    return float(arr) if np.ndim(arr) == 0 else arr
 
 
 def _out(arr):

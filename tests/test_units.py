@@ -1,0 +1,75 @@
+"""Units at the edges: NIST SP 811 conversions, parsing, formatting and messages."""
+
+import pytest
+
+from rheoline.errors import UnitError
+from rheoline.units import CMH2O, MMHG, format_quantity, parse_quantity, to_unit
+
+
+@pytest.mark.parametrize(
+    ("text", "kind", "si"),
+    [
+        ("1 mmHg", "pressure", 133.3224),  # NIST SP 811 Appendix B: 1 mmHg = 1.333224 E+02 Pa
+        ("1 cmH2O", "pressure", 98.0665),  # NIST SP 811: 1 cmH2O (conventional) = 98.0665 Pa
+        ("10 P", "viscosity", 1.0),  # NIST SP 811: 1 P = 0.1 Pa s
+        ("1 cP", "viscosity", 1e-3),  # NIST SP 811: 1 cP = 1 mPa s
+        ("1 mPa s", "viscosity", 1e-3),
+        ("1 psi", "pressure", 6894.757),  # NIST SP 811: 1 psi = 6.894757 kPa
+        ("1 bar", "pressure", 1e5),  # NIST SP 811: 1 bar = 100 kPa (exact)
+        ("2 kPa", "pressure", 2000.0),
+        ("150 mL/h", "flow", 150e-6 / 3600.0),
+        ("1 mL/min", "flow", 1e-6 / 60.0),
+        ("1 mL/s", "flow", 1e-6),
+        ("1 L/min", "flow", 1e-3 / 60.0),
+        ("22 degC", "temperature", 22.0),
+        ("295.15 K", "temperature", 22.0),
+        ("98.6 degF", "temperature", 37.0),  # NIST SP 811: t/degC = (t/degF - 32)/1.8
+        ("1 dyn/cm^2", "stress", 0.1),  # NIST SP 811: 1 dyn/cm^2 = 0.1 Pa
+        ("20 Fr", "length", 20e-3 / 3.0),  # ISO 10555-1 French scale: 1 Fr = 1/3 mm
+        ("45 %", "dimensionless", 0.45),
+    ],
+)
+def test_parse_against_nist_sp811(text, kind, si):
+    # tolerance from the digits NIST gives (six or seven significant figures)
+    assert parse_quantity(text, kind) == pytest.approx(si, rel=1e-6)
+
+
+def test_constants_nist():
+    # NIST SP 811 (2008) Appendix B.8: mmHg 1.333224 E+02 Pa; cmH2O 9.80665 E+01 Pa
+    assert MMHG == pytest.approx(133.3224, rel=1e-6)
+    assert CMH2O == 98.0665
+
+
+def test_format_round_trips():
+    assert format_quantity(parse_quantity("300 mmHg", "pressure"), "pressure", "mmHg") == "300 mmHg"
+    assert format_quantity(parse_quantity("1.2 cP", "viscosity"), "viscosity", "cP") == "1.2 cP"
+    assert format_quantity(parse_quantity("150 mL/h", "flow"), "flow", "mL/h") == "150 mL/h"
+    assert to_unit(1.0, "mmHg", "pressure") == pytest.approx(1 / 133.322387415)
+
+
+def test_bare_number_with_default_unit():
+    assert parse_quantity(300, "pressure", default_unit="mmHg") == pytest.approx(300 * 133.322387415)
+    assert parse_quantity("300", "pressure", default_unit="mmHg") == pytest.approx(300 * 133.322387415)
+
+
+def test_wrong_kind_names_field_and_units():
+    with pytest.raises(UnitError, match=r"drive\.pressure: 'mL' is not a unit of pressure \(Pa, kPa, mmHg"):
+        parse_quantity("300 mL", "pressure", field="drive.pressure")
+
+
+def test_missing_unit_names_field():
+    with pytest.raises(UnitError, match=r"drive\.pressure: '300' has no unit; write it with one of Pa"):
+        parse_quantity("300", "pressure", field="drive.pressure")
+    with pytest.raises(UnitError, match=r"flow: a bare number 5 needs a unit.*'5 mL/h'"):
+        parse_quantity(5, "flow", field="flow")
+
+
+def test_unknown_unit_and_garbage():
+    with pytest.raises(UnitError, match=r"viscosity: unknown unit 'cPz'; use one of Pa s, mPa s, cP, P"):
+        parse_quantity("1 cPz", "viscosity", field="viscosity")
+    with pytest.raises(UnitError, match=r"cannot read 'abc' as a number with a unit"):
+        parse_quantity("abc", "pressure")
+    with pytest.raises(UnitError, match="unknown quantity kind 'speed'"):
+        parse_quantity("1 m/s", "speed")
+    with pytest.raises(UnitError, match="expected a pressure such as '300 mmHg', got True"):
+        parse_quantity(True, "pressure")
