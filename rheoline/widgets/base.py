@@ -1,0 +1,108 @@
+"""What every view shares: the banner on top, named controls, timed and guarded updates.
+
+A view is an ``ipywidgets.VBox`` whose first child is the caution banner.  Its
+controls live in ``view.controls`` (name -> widget) and its figures in
+``view.figures`` (name -> plotly ``FigureWidget``).  Each control is wired to the
+handlers of the figures it affects only, so a change recomputes what depends on
+it and nothing else.
+
+An update runs inside a guard: a :class:`~rheoline.errors.RheolineError` from the
+layers below (a negative length, a percent typed as a fraction) is shown in the
+view's message area as a flag in words, and the figures keep their last good
+state; rheoline warnings raised during the update are shown as caution flags.
+``view.last_update_seconds`` holds the Python time of the last update, from the
+observer call until the figure data were set; :meth:`View.set_control` returns it,
+which is the hook the benchmarks time.
+"""
+
+from __future__ import annotations
+
+import time
+import warnings
+
+import ipywidgets as widgets
+
+from rheoline.errors import RheolineError, RheolineWarning
+from rheoline.widgets.banner import caution_banner
+from rheoline.widgets.style import flag_html
+
+__all__ = ["View", "labelled", "time_control_change"]
+
+_STYLE = {"description_width": "initial"}
+
+
+def labelled(widget: widgets.Widget, css_class: str) -> widgets.Widget:
+    """Give ``widget`` a CSS class (for styling and for the browser test) and return it."""
+    widget.add_class(css_class)
+    return widget
+
+
+class View(widgets.VBox):
+    """Base of the views: banner, body, message area, guarded and timed updates.
+
+    Subclasses build ``self.controls`` and ``self.figures`` in their constructor,
+    set each figure's initial data there (a FigureWidget shown by Voila must be
+    complete when the page connects), then call :meth:`_finish` with the body.
+    """
+
+    title = "view"
+
+    def __init__(self, **kwargs):
+        super().__init__(**kwargs)
+        self.controls: dict[str, widgets.Widget] = {}
+        self.figures: dict = {}
+        self.last_update_seconds = float("nan")
+        self.banner = caution_banner()
+        self.messages = widgets.HTML(value="")
+        self.messages.add_class("rl-messages")
+        self.add_class("rl-view")
+
+    def _finish(self, body: list):
+        self.children = [self.banner, *body, self.messages]
+
+    # -- wiring ------------------------------------------------------------------
+    def _watch(self, dependencies: dict):
+        """Wire controls to what they affect: ``{control name: set of part names}``.
+
+        A change of the control calls ``self._refresh(parts)`` (guarded and timed)
+        with only the parts that depend on it.
+        """
+        for name, parts in dependencies.items():
+            frozen = frozenset(parts)
+
+            def observer(change, frozen=frozen):
+                self._run(lambda: self._refresh(frozen))
+
+            self.controls[name].observe(observer, names="value")
+
+    def _refresh(self, parts):  # pragma: no cover - every view overrides it
+        raise NotImplementedError
+
+    def _run(self, handler) -> bool:
+        """Run one update; show errors and warnings as flags. True when it succeeded."""
+        start = time.perf_counter()
+        ok = True
+        with warnings.catch_warnings(record=True) as caught:
+            warnings.simplefilter("always", RheolineWarning)
+            try:
+                handler()
+                notes = []
+            except RheolineError as exc:
+                ok = False
+                notes = [flag_html("exceeded", f"not computed: {exc}")]
+        notes += [flag_html("caution", str(w.message)) for w in caught
+                  if issubclass(w.category, RheolineWarning)]
+        self.messages.value = "".join(notes)
+        self.last_update_seconds = time.perf_counter() - start
+        return ok
+
+    def set_control(self, name: str, value) -> float:
+        """Set a control as a user would; return the update's Python time [s]."""
+        self.last_update_seconds = float("nan")
+        self.controls[name].value = value
+        return self.last_update_seconds
+
+
+def time_control_change(view: View, name: str, value) -> float:
+    """Python time [s] of one control change in ``view``, observer call to figure data set."""
+    return view.set_control(name, value)

@@ -1,0 +1,62 @@
+"""Serve the app as a local web page with Voila: ``python -m rheoline.widgets.serve``.
+
+Binds to 127.0.0.1 unless told otherwise, never opens a browser by itself, and
+lets Voila hand out pictures next to the app notebook.  The command it runs is printed by ``--print-command`` and is the same as the README's
+plain Voila command.
+
+Examples
+--------
+>>> " ".join(voila_command(port=8866)[1:4])
+'-m voila --no-browser'
+"""
+
+from __future__ import annotations
+
+import argparse
+import subprocess
+import sys
+from pathlib import Path
+
+__all__ = ["APP_NOTEBOOK", "voila_command", "main"]
+
+#: The served notebook.
+APP_NOTEBOOK = Path(__file__).resolve().parents[2] / "notebooks" / "app.ipynb"
+#: Files Voila may hand out next to the app (pictures only).
+FILE_ALLOWLIST = r"['.*\.(png|svg)']"
+
+
+def voila_command(port: int = 8866, ip: str = "127.0.0.1", notebook=APP_NOTEBOOK) -> list[str]:
+    """The Voila command line that serves ``notebook`` on ``ip:port``."""
+    return [sys.executable, "-m", "voila", "--no-browser", f"--port={port}",
+            f"--Voila.ip={ip}", f"--VoilaConfiguration.file_allowlist={FILE_ALLOWLIST}",
+            str(notebook)]
+
+
+def main(argv=None) -> int:
+    """Run Voila in the foreground until interrupted; returns its exit status."""
+    parser = argparse.ArgumentParser(prog="python -m rheoline.widgets.serve",
+                                     description="Serve the rheoline views as a local web page.")
+    parser.add_argument("--port", type=int, default=8866, help="port (default 8866)")
+    parser.add_argument("--ip", default="127.0.0.1",
+                        help="address to bind (default 127.0.0.1, this machine only)")
+    parser.add_argument("--print-command", action="store_true",
+                        help="print the Voila command instead of running it")
+    args = parser.parse_args(argv)
+    command = voila_command(args.port, args.ip)
+    if args.print_command:
+        sys.stdout.write(" ".join(command) + "\n")
+        return 0
+    if not APP_NOTEBOOK.exists():
+        sys.stderr.write(f"the app notebook {APP_NOTEBOOK} is missing; run from a clone of the "
+                         "repository (pip install -e '.[widgets]')\n")
+        return 2
+    sys.stderr.write(f"serving the rheoline app on http://{args.ip}:{args.port}/ "
+                     "(Ctrl-C stops it)\n")
+    try:
+        return subprocess.call(command, cwd=APP_NOTEBOOK.parent)
+    except KeyboardInterrupt:
+        return 0
+
+
+if __name__ == "__main__":  # pragma: no cover
+    raise SystemExit(main())

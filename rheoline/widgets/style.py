@@ -1,0 +1,123 @@
+"""Look of the views: a colour-blind-safe palette, flag symbols and words, number formats.
+
+Nothing here computes physics.  The formats convert SI values to the units the
+trade reads (mL/min, mL/h, mmHg, cmH2O, mPa s) with the constants of
+:mod:`rheoline.units`, and always print the unit beside the number.
+
+The palette is our own choice, checked in ``tests/test_widgets.py`` to keep every
+pair of series colours apart (CIE76 colour difference of at least 15) under
+simulated protanopia, deuteranopia and tritanopia (Machado, Oliveira and
+Fernandes 2009).  Series also differ by dash and marker, and every flag is a
+symbol plus words, so colour is never the only cue.
+
+Examples
+--------
+>>> format_flow(2.5e-6)
+'150 mL/min (9000 mL/h)'
+>>> format_pressure(39996.6)
+'300 mmHg'
+>>> flag_text("caution", "turbulent in part 2")
+'[!] caution: turbulent in part 2'
+"""
+
+from __future__ import annotations
+
+import html
+import math
+
+from rheoline.units import CMH2O, ML_PER_H, ML_PER_MIN, MMHG
+
+__all__ = [
+    "PALETTE",
+    "DASHES",
+    "MARKERS",
+    "BAND_OPACITY",
+    "series_style",
+    "FLAG_LEVELS",
+    "flag_text",
+    "flag_html",
+    "significant",
+    "format_flow",
+    "format_pressure",
+    "format_stress",
+    "format_viscosity",
+    "format_number",
+]
+
+#: Series colours, in order of use: ink blue, amber, sky, plum, pine, straw, charcoal.
+PALETTE = ("#1f4e9c", "#e08a00", "#5ab4e5", "#a8327a", "#138a63", "#f2d53c", "#2b2b2b")
+#: Plotly dash styles, one per series, so series differ without colour.
+DASHES = ("solid", "dash", "dot", "dashdot", "longdash", "longdashdot", "solid")
+#: Plotly marker symbols, one per series.
+MARKERS = ("circle", "square", "diamond", "triangle-up", "x", "star", "cross")
+#: Opacity of a shaded tolerance band.
+BAND_OPACITY = 0.22
+
+#: flag level -> (symbol, word, text colour).  The symbol and word carry the meaning;
+#: the colour only repeats it.
+FLAG_LEVELS = {
+    "ok": ("[ok]", "ok", "#138a63"),
+    "note": ("[i]", "note", "#1f4e9c"),
+    "caution": ("[!]", "caution", "#8a5a00"),
+    "exceeded": ("[X]", "limit exceeded", "#a8327a"),
+}
+
+
+def series_style(index: int) -> dict:
+    """Colour, dash and marker of the ``index``-th series (cycling)."""
+    n = len(PALETTE)
+    return {"color": PALETTE[index % n], "dash": DASHES[index % n], "marker": MARKERS[index % n]}
+
+
+def flag_text(level: str, message: str) -> str:
+    """A flag as plain text: symbol, word, message."""
+    symbol, word, _ = FLAG_LEVELS[level]
+    return f"{symbol} {word}: {message}"
+
+
+def flag_html(level: str, message: str) -> str:
+    """A flag as an HTML line (the message is escaped)."""
+    symbol, word, colour = FLAG_LEVELS[level]
+    return (f"<div class='rl-flag rl-flag-{level}' style='color:{colour}'>"
+            f"<b>{html.escape(symbol)} {html.escape(word)}</b>: {html.escape(str(message))}</div>")
+
+
+def significant(value: float, digits: int = 3) -> str:
+    """``value`` with ``digits`` significant figures, no exponent for everyday magnitudes."""
+    v = float(value)
+    if not math.isfinite(v):
+        return "n/a"
+    if v == 0:
+        return "0"
+    if 1e-3 <= abs(v) < 1e6:
+        decimals = max(digits - 1 - math.floor(math.log10(abs(v))), 0)
+        text = f"{round(v, decimals):.{decimals}f}"
+        return text
+    return f"{v:.{digits}g}"
+
+
+def format_number(value: float, unit: str, digits: int = 3) -> str:
+    """A number with its unit, e.g. ``'1.2 Pa'``."""
+    return f"{significant(value, digits)} {unit}"
+
+
+def format_flow(flow_si: float, digits: int = 3) -> str:
+    """A flow [m^3/s] in mL/min and mL/h."""
+    return (f"{significant(flow_si / ML_PER_MIN, digits)} mL/min "
+            f"({significant(flow_si / ML_PER_H, digits)} mL/h)")
+
+
+def format_pressure(pressure_si: float, unit: str = "mmHg", digits: int = 3) -> str:
+    """A pressure [Pa] in mmHg (default), cmH2O or kPa."""
+    factor = {"mmHg": MMHG, "cmH2O": CMH2O, "kPa": 1e3, "Pa": 1.0}[unit]
+    return format_number(pressure_si / factor, unit, digits)
+
+
+def format_stress(stress_si: float, digits: int = 3) -> str:
+    """A shear stress [Pa] in Pa."""
+    return format_number(stress_si, "Pa", digits)
+
+
+def format_viscosity(viscosity_si: float, digits: int = 3) -> str:
+    """A viscosity [Pa s] in mPa s."""
+    return format_number(viscosity_si * 1e3, "mPa s", digits)

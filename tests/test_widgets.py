@@ -1,0 +1,185 @@
+"""The widget views: they build, follow their controls with the layers' own numbers,
+carry the caution banner, flag in words and symbols, and hold no physics."""
+
+from __future__ import annotations
+
+import ast
+import itertools
+from pathlib import Path
+
+import numpy as np
+import pytest
+
+import rheoline
+from rheoline.units import MMHG
+from rheoline.widgets import style
+from rheoline.widgets.banner import BANNER_CLASS, caution_banner
+
+WIDGETS_DIR = Path(rheoline.__file__).parent / "widgets"
+
+
+# --- palette: distinguishable under colour-vision deficiency ------------------------------
+# Machado, G.M., Oliveira, M.M., Fernandes, L.A.F., "A physiologically-based model for
+# simulation of color vision deficiency", IEEE TVCG 15(6), 2009: severity-1.0 matrices on
+# linear RGB.  # from memory
+MACHADO_2009 = {
+    "protanopia": [[0.152286, 1.052583, -0.204868], [0.114503, 0.786281, 0.099216],
+                   [-0.003882, -0.048116, 1.051998]],
+    "deuteranopia": [[0.367322, 0.860646, -0.227968], [0.280085, 0.672501, 0.047413],
+                     [-0.011820, 0.042940, 0.968881]],
+    "tritanopia": [[1.255528, -0.076749, -0.178779], [-0.078411, 0.930809, 0.147602],
+                   [0.004733, 0.691367, 0.303900]],
+    "normal vision": np.eye(3),
+}
+
+
+def _linear_rgb(hex_colour):
+    c = np.array([int(hex_colour[i:i + 2], 16) for i in (1, 3, 5)]) / 255.0
+    # IEC 61966-2-1 (sRGB) transfer function
+    return np.where(c <= 0.04045, c / 12.92, ((c + 0.055) / 1.055) ** 2.4)
+
+
+def _cie_lab(linear):
+    # sRGB (D65) to XYZ, IEC 61966-2-1; XYZ to CIELAB, CIE 15:2004
+    xyz = np.array([[0.4124, 0.3576, 0.1805], [0.2126, 0.7152, 0.0722],
+                    [0.0193, 0.1192, 0.9505]]) @ np.clip(linear, 0, 1)
+    t = xyz / np.array([0.95047, 1.0, 1.08883])
+    f = np.where(t > (6 / 29) ** 3, np.cbrt(t), t / (3 * (6 / 29) ** 2) + 4 / 29)
+    return np.array([116 * f[1] - 16, 500 * (f[0] - f[1]), 200 * (f[1] - f[2])])
+
+
+@pytest.mark.parametrize("vision", sorted(MACHADO_2009))
+def test_palette_colours_stay_apart_under_simulated_colour_vision_deficiency(vision):
+    matrix = np.asarray(MACHADO_2009[vision])
+    labs = [_cie_lab(matrix @ _linear_rgb(c)) for c in style.PALETTE]
+    closest = min(np.linalg.norm(a - b) for a, b in itertools.combinations(labs, 2))
+    # CIE76 delta E of 15: clearly different side by side  # common practice, no source
+    assert closest >= 15.0, f"two series colours nearly merge for {vision}: dE {closest:.1f}"
+
+
+def test_series_differ_by_dash_and_marker_as_well_as_colour():
+    styles = [style.series_style(i) for i in range(len(style.PALETTE))]
+    pairs = {(s["dash"], s["marker"]) for s in styles}
+    assert len(pairs) == len(styles)
+
+
+def test_flags_carry_a_symbol_and_a_word_not_colour_alone():
+    for level, (symbol, word, _) in style.FLAG_LEVELS.items():
+        text = style.flag_html(level, "<b>bad</b> & worse")
+        assert symbol in text and word in text
+        assert "&lt;b&gt;bad&lt;/b&gt; &amp; worse" in text  # the message is escaped
+    assert len({s for s, _, _ in style.FLAG_LEVELS.values()}) == len(style.FLAG_LEVELS)
+
+
+def test_number_formats_carry_their_units():
+    # 1 mL/min = 1e-6/60 m^3/s; 300 mmHg = 300 * 133.322387415 Pa (NIST SP 811)
+    assert style.format_flow(100e-6 / 60) == "100 mL/min (6000 mL/h)"
+    assert style.format_pressure(300 * MMHG) == "300 mmHg"
+    assert style.format_pressure(300 * MMHG, "kPa") == "40.0 kPa"
+    assert style.format_viscosity(1.0e-3) == "1.00 mPa s"
+    assert style.significant(float("nan")) == "n/a"
+
+
+def test_banner_states_the_caution_and_links_to_the_cautions_file():
+    banner = caution_banner()
+    assert BANNER_CLASS in banner._dom_classes
+    assert rheoline.CAUTION.split(".")[0] in banner.value
+    assert "CAUTIONS.md</a>" in banner.value
+    assert "Air embolism" in banner.value  # the full text is on the page, folded
+    assert "<button" not in banner.value
+
+
+def test_banner_link_jumps_to_the_page_text_under_voila(monkeypatch):
+    monkeypatch.setenv("VOILA_BASE_URL", "/")
+    banner = caution_banner()
+    assert "href='#rl-cautions-" in banner.value
+
+
+# --- the blood and vessel view ---------------------------------------------------------------
+@pytest.fixture()
+def blood_view():
+    from rheoline.widgets.blood_view import BloodVesselView
+    return BloodVesselView()
+
+
+def test_blood_view_builds_with_banner_first_and_figures_filled(blood_view):
+    assert BANNER_CLASS in blood_view.children[0]._dom_classes
+    for fig in blood_view.figures.values():
+        assert len(fig.data[0].y) > 10 and len(fig.data[1].y) == 1
+    assert blood_view.messages.value == ""
+
+
+def test_blood_view_hematocrit_change_redraws_with_the_layers_values(blood_view):
+    from rheoline.widgets.blood_view import FAHRAEUS_DIAMETERS, VISCOSITY_AXES
+    blood_view.set_control("hematocrit", 0.30)
+    assert np.isfinite(blood_view.last_update_seconds)
+    fahraeus = blood_view.figures["fahraeus"].data[0]
+    expected = rheoline.pries_1992_relative_viscosity(FAHRAEUS_DIAMETERS, 0.30)
+    assert np.allclose(fahraeus.y, expected, rtol=1e-12)
+    blood_view.set_control("axis", "temperature")
+    grid = VISCOSITY_AXES["temperature"][1]
+    expected = rheoline.blood_viscosity(0.30, grid, 100.0) * 1e3  # mPa s on the chart
+    assert np.allclose(blood_view.figures["viscosity"].data[0].y, expected, rtol=1e-12)
+    assert blood_view.figures["viscosity"].layout.xaxis.title.text == "temperature [degC]"
+
+
+def test_blood_view_vessel_radius_moves_the_resistance_point(blood_view):
+    blood_view.set_control("vessel_radius_um", 25.0)
+    vessel = rheoline.Vessel(radius=25e-6, length=1e-3, hematocrit=0.45, temperature_c=37.0)
+    point = blood_view.figures["resistance"].data[1]
+    assert point.x == (25.0,)
+    # chart unit mmHg min/mL: 1 mmHg min/mL = 133.322387415 Pa * 60 s / 1e-6 m^3
+    assert point.y[0] == pytest.approx(vessel.resistance / (MMHG * 60 / 1e-6), rel=1e-12)
+
+
+def test_blood_view_resistance_calculator_uses_the_hemodynamics_layer(blood_view):
+    from rheoline.model import hemodynamics
+    c = blood_view.controls
+    c["upstream_mmhg"].value, c["downstream_mmhg"].value = 25.0, 10.0
+    blood_view.set_control("bed", "pulmonary")
+    # (25 - 10) mmHg / 5 L/min = 3 Wood units, worked by hand
+    assert "PVR <span class='rl-wood'>3.00 WU</span>" in blood_view.calculator_output.value
+    expected = hemodynamics.pulmonary_vascular_resistance(25.0, 10.0, 5.0).dyn_s_per_cm5
+    assert style.significant(expected) in blood_view.calculator_output.value
+
+
+def test_a_bad_input_is_shown_as_a_flag_and_keeps_the_last_figure(blood_view):
+    before = blood_view.figures["fahraeus"].data[0].y
+    blood_view.controls["cardiac_output_l_min"].value = 0.0
+    assert "[X]" in blood_view.messages.value and "cardiac_output_l_min" in \
+        blood_view.messages.value
+    assert np.array_equal(blood_view.figures["fahraeus"].data[0].y, before)
+
+
+# --- no physics in the widget layer --------------------------------------------------------
+FORBIDDEN_IN_WIDGETS = {"scipy", "rheoline.model.lumen", "rheoline.model.losses",
+                        "rheoline.model.rheology", "rheoline.model.blood",
+                        "rheoline.model.viscosity"}
+
+
+@pytest.mark.parametrize("module", sorted(p.name for p in WIDGETS_DIR.glob("*.py")))
+def test_widget_modules_call_the_layers_and_import_no_physics(module):
+    tree = ast.parse((WIDGETS_DIR / module).read_text())
+    imported = set()
+    for node in ast.walk(tree):
+        if isinstance(node, ast.Import):
+            imported |= {alias.name for alias in node.names}
+        elif isinstance(node, ast.ImportFrom) and node.module:
+            imported.add(node.module)
+    bad = {name for name in imported
+           if any(name == f or name.startswith(f + ".") for f in FORBIDDEN_IN_WIDGETS)}
+    assert not bad, f"{module} imports physics modules directly: {sorted(bad)}"
+    # no numpy maths beyond grids and array plumbing
+    maths = {"exp", "log", "log10", "sqrt", "power", "sinh", "cosh", "tanh"}
+    calls = {node.attr for node in ast.walk(tree)
+             if isinstance(node, ast.Attribute) and isinstance(node.value, ast.Name)
+             and node.value.id == "np"}
+    assert not calls & maths, f"{module} does maths itself: {sorted(calls & maths)}"
+
+
+def test_the_model_layer_never_imports_widget_libraries():
+    model_dir = Path(rheoline.__file__).parent / "model"
+    for path in model_dir.glob("*.py"):
+        text = path.read_text()
+        for library in ("ipywidgets", "plotly", "anywidget"):
+            assert f"import {library}" not in text and f"from {library}" not in text, path
