@@ -52,6 +52,10 @@ _LAZY = {
     "fluid": "rheoline.model.fluids",
     "fluid_names": "rheoline.model.fluids",
     "user_fluid_from_temperatures": "rheoline.model.fluids",
+    "register_fluid": "rheoline.model.fluids",
+    "fluid_catalogue": "rheoline.model.fluids",
+    "blood_rheology": "rheoline.model.blood",
+    "fit_viscosity_temperature": "rheoline.model.fitting",
     # rheology
     "Newtonian": "rheoline.model.rheology",
     "PowerLaw": "rheoline.model.rheology",
