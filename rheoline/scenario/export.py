@@ -123,6 +123,7 @@ def write_pack(run, out_dir, force: bool = False) -> Path:
     tmp = Path(tempfile.mkdtemp(prefix=f".{out.name}.", suffix=".partial", dir=parent))
     old = None
     try:
+        os.chmod(tmp, 0o777 & ~_umask())  # mkdtemp makes it private; a pack is shared
         _write_all(run, tmp)
         if out.exists():
             old = Path(tempfile.mkdtemp(prefix=f".{out.name}.", suffix=".old", dir=parent))
@@ -137,6 +138,12 @@ def write_pack(run, out_dir, force: bool = False) -> Path:
     if old is not None:
         shutil.rmtree(old, ignore_errors=True)
     return out
+
+
+def _umask():
+    mask = os.umask(0o022)
+    os.umask(mask)
+    return mask
 
 
 def check_target(out: Path, force: bool):

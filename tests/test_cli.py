@@ -1,0 +1,311 @@
+"""The command line: exit codes, one-line errors, JSON against the Python API, the demo pack."""
+
+import csv
+import html
+import json
+import shutil
+import subprocess
+import sys
+from html.parser import HTMLParser
+from pathlib import Path
+
+import openpyxl
+import pandas as pd
+import pytest
+
+import rheoline
+from rheoline import cli
+from rheoline.scenario.files import example_names, example_path
+
+MALFORMED = Path(__file__).with_name("malformed")
+EXPECTED = json.loads((MALFORMED / "expected.json").read_text())
+MMHG = 133.322387415  # Pa, NIST SP 811 (2008) Appendix B.8
+
+
+def call(capsys, *argv):
+    """Run the command line in-process; return (exit status, stdout, stderr)."""
+    try:
+        status = cli.main([str(a) for a in argv])
+    except SystemExit as exc:  # --help and --version exit through argparse
+        status = exc.code
+    out, err = capsys.readouterr()
+    return status, out, err
+
+
+def assert_one_line_error(err, expected=None):
+    assert err.startswith("rheoline: error: ")
+    assert err.count("\n") == 1, err
+    assert "Traceback" not in err
+    if expected:
+        assert expected.lower() in err.lower()
+
+
+# --------------------------------------------------------------------------- malformed corpus
+@pytest.mark.parametrize("name", sorted(EXPECTED))
+def test_malformed_file_exits_2_names_the_field_and_writes_nothing(name, capsys, tmp_path,
+                                                                   monkeypatch):
+    monkeypatch.chdir(tmp_path)
+    status, out, err = call(capsys, "check", MALFORMED / name)
+    assert status == 2 and out == ""
+    assert_one_line_error(err, EXPECTED[name])
+    status, out, err = call(capsys, "run", MALFORMED / name, "--out", "pack")
+    assert status == 2 and out == ""
+    assert_one_line_error(err, EXPECTED[name])
+    assert list(tmp_path.iterdir()) == []
+
+
+def test_oversized_file_exits_2(capsys, tmp_path):
+    big = tmp_path / "big.toml"
+    big.write_text("format_version = 1\n# " + "x" * 2_000_000)
+    status, _, err = call(capsys, "check", big)
+    assert status == 2
+    assert_one_line_error(err, "above the limit")
+
+
+def test_missing_file_exits_2(capsys, tmp_path):
+    status, _, err = call(capsys, "run", tmp_path / "nope.toml")
+    assert status == 2
+    assert_one_line_error(err, "cannot read the file")
+
+
+# --------------------------------------------------------------------------- usage
+@pytest.mark.parametrize("argv", [["bogus"], ["run"], ["run", "a.toml", "--colour"], []])
+def test_usage_errors_exit_2(argv, capsys):
+    status, _, err = call(capsys, *argv)
+    assert status == 2
+    if argv:
+        assert_one_line_error(err)
+
+
+@pytest.mark.parametrize("command", ["run", "check", "fluids", "parts", "demo", "examples"])
+def test_help_on_every_command(command, capsys):
+    status, out, _ = call(capsys, command, "--help")
+    assert status == 0 and f"usage: rheoline {command}" in out
+
+
+def test_internal_fault_exits_1_without_traceback(capsys, monkeypatch):
+    from rheoline.scenario import compare
+
+    def broken(*a, **k):
+        raise RuntimeError("simulated fault")
+
+    monkeypatch.setattr(compare, "run_scenarios", broken)
+    status, _, err = call(capsys, "run", example_path("minimal"))
+    assert status == 1
+    assert err.startswith("rheoline: internal error (RuntimeError: simulated fault)")
+    assert "Traceback" not in err and err.count("\n") == 1
+
+
+def test_installed_entry_point_exits_2_in_a_real_process(tmp_path):
+    exe = shutil.which("rheoline")
+    argv = [exe] if exe else [sys.executable, "-m", "rheoline.cli"]
+    done = subprocess.run([*argv, "run", str(MALFORMED / "pressure_in_ml.toml"), "--out",
+                           str(tmp_path / "p")], capture_output=True, text=True, timeout=120)
+    assert done.returncode == 2 and done.stdout == ""
+    assert_one_line_error(done.stderr, "field 'source_pressure'")
+    assert not (tmp_path / "p").exists()
+
+
+# --------------------------------------------------------------------------- output
+def test_every_command_output_carries_the_caution(capsys):
+    for argv in (["run", example_path("minimal")], ["check", example_path("minimal")],
+                 ["fluids"], ["parts"], ["examples"]):
+        status, out, _ = call(capsys, *argv)
+        assert status == 0, argv
+        assert rheoline.CAUTION in out, argv
+
+
+def test_run_prints_a_readable_table(capsys):
+    status, out, err = call(capsys, "run", example_path("bench-sweep"))
+    assert status == 0 and err == ""  # no progress bar when not a terminal
+    lines = out.splitlines()
+    assert lines[0] == f"CAUTION: {rheoline.CAUTION}"
+    assert lines[-1] == f"CAUTION: {rheoline.CAUTION}"
+    header = next(line for line in lines if "flow [mL/min]" in line)
+    assert "pressure [mmHg]" in header and "max Re" in header
+    assert sum(" | 50 cm, 14G" in line for line in lines) == 1
+    assert sum("water, gauge x height |" in line for line in lines) == 30
+
+
+def test_examples_print_loadable_files(capsys, tmp_path):
+    from rheoline.scenario.files import load_scenarios
+
+    for name in example_names():
+        status, out, _ = call(capsys, "examples", name)
+        assert status == 0
+        (tmp_path / f"{name}.toml").write_text(out)
+        assert load_scenarios(tmp_path / f"{name}.toml").scenarios
+    status, _, err = call(capsys, "examples", "minimul")
+    assert status == 2
+    assert_one_line_error(err, "did you mean 'minimal'")
+
+
+def test_parts_filters_one_catalogue(capsys):
+    status, out, _ = call(capsys, "parts", "--kind", "needle")
+    assert status == 0 and "27G thin" in out and "catheter" not in out.split("\n")[1]
+    status, _, err = call(capsys, "parts", "--kind", "nedle")
+    assert status == 2
+    assert_one_line_error(err, "did you mean 'needle'")
+
+
+# --------------------------------------------------------------------------- JSON
+def _api_result(fluid_name, temperature_c, parts, **drive):
+    line = rheoline.Line(parts)
+    return line.solve(rheoline.fluid(fluid_name, temperature_c=temperature_c), **drive)
+
+
+def test_json_agrees_with_the_python_api_for_a_drive(capsys):
+    status, out, err = call(capsys, "run", example_path("minimal"), "--json")
+    assert status == 0 and rheoline.CAUTION in err
+    [obj] = json.loads(out)
+    res = _api_result("saline-0.9", 22.0, [
+        rheoline.Tube(inner_diameter=3.0e-3, length=1.8, name="administration set"),
+        rheoline.Catheter(gauge=18)], head=1.0)
+    assert obj["name"] == "18G on a gravity set"
+    assert obj["flow_ml_min"] == pytest.approx(res.flow * 6e7, rel=1e-9)
+    assert obj["max_reynolds"] == pytest.approx(res.max_reynolds, rel=1e-9)
+    assert obj["regime"] == res.regime
+    assert obj["caution"] == rheoline.CAUTION
+    api_parts = res.parts
+    assert [p["part"] for p in obj["parts"]] == list(api_parts["part"])
+    for p, (_, row) in zip(obj["parts"], api_parts.iterrows(), strict=True):
+        assert p["pressure_drop_pa"] == pytest.approx(row["pressure_drop [Pa]"], rel=1e-9)
+        assert p["wall_shear_stress_pa"] == pytest.approx(row["wall_shear_stress [Pa]"],
+                                                          rel=1e-9, nan_ok=True) \
+            if p["wall_shear_stress_pa"] is not None else pd.isna(row["wall_shear_stress [Pa]"])
+
+
+def test_json_agrees_with_the_python_api_for_a_pump(capsys):
+    status, out, _ = call(capsys, "run", example_path("syringe-pump"), "--json")
+    assert status == 0
+    objs = json.loads(out)
+    assert len(objs) == 5
+    first = objs[0]  # 40 % glycerol-water, 60 mL/h, 25G regular-wall needle
+    assert first["point"] == "60 mL/h, 25G"
+    fl = rheoline.fluid("glycerol-water", temperature_c=22.0, mass_fraction=0.4)
+    res = rheoline.Line([rheoline.Tube(inner_diameter=1.0e-3, length=1.5),
+                         rheoline.Needle(gauge=25, wall="regular")]).solve(fl, flow=60e-6 / 3600)
+    assert first["required_pressure_mmhg"] == pytest.approx(res.required_pressure / MMHG,
+                                                            rel=1e-9)
+    assert first["flow_ml_h"] == pytest.approx(60.0, rel=1e-12)
+    assert first["exceeds_pressure_limit"] == bool(res.required_pressure > 900 * MMHG)
+
+
+# --------------------------------------------------------------------------- demo
+class _Page(HTMLParser):
+    def __init__(self):
+        super().__init__()
+        self.first_in_body, self.in_body, self.tables, self.text = None, False, 0, []
+
+    def handle_starttag(self, tag, attrs):
+        if tag == "body":
+            self.in_body = True
+        elif self.in_body and self.first_in_body is None:
+            self.first_in_body = dict(attrs).get("id")
+        self.tables += tag == "table"
+
+    def handle_data(self, data):
+        self.text.append(data)
+
+
+def test_demo_end_to_end_and_its_pack_reads_back(capsys, tmp_path):
+    out_dir = tmp_path / "demo-pack"
+    status, out, err = call(capsys, "demo", "--out", out_dir)
+    assert status == 0, err
+    assert rheoline.CAUTION in out and f"review pack written to {out_dir}" in out
+    # CSV with pandas
+    table = pd.read_csv(out_dir / "results.csv", skiprows=1)
+    assert len(table) == 53
+    assert set(table["fluid"]) == {"saline-0.9", "packed-red-cells"}
+    assert set(table["gauge"]) == {14, 16, 18, 20}
+    assert (table["flow [mL/min]"] > 0).all()
+    assert table["over pressure limit"].dropna().astype(bool).any()
+    assert table["flow p5 [mL/min]"].notna().sum() == 1
+    parts = pd.read_csv(out_dir / "parts.csv", skiprows=1)
+    assert set(parts["case"]) == set(table["case"])
+    # warm red cells flow faster than cold ones through the same line (common practice)
+    cold = table[table["case"] == "pressure bag 300 mmHg | packed-red-cells, 4 degC, 18G"]
+    warm = table[table["case"] == "pressure bag 300 mmHg | packed-red-cells, 37 degC, 18G"]
+    assert float(warm["flow [mL/min]"].iloc[0]) > 1.5 * float(cold["flow [mL/min]"].iloc[0])
+    # XLSX with openpyxl
+    wb = openpyxl.load_workbook(out_dir / "results.xlsx", read_only=True)
+    assert {"results", "scenario inputs", "assumptions", "cautions"} <= set(wb.sheetnames)
+    rows = list(wb["results"].iter_rows(values_only=True))
+    assert rows[0][0] == "caution: " + rheoline.CAUTION
+    assert len(rows) == 2 + 53
+    refs = [r[2] for r in wb["assumptions"].iter_rows(min_row=3, values_only=True)]
+    assert any("Churchill" in (r or "") for r in refs)
+    # HTML parsed
+    page = (out_dir / "report.html").read_text(encoding="utf-8")
+    parser = _Page()
+    parser.feed(page)
+    assert parser.first_in_body == "caution"
+    assert parser.tables >= 5
+    text = " ".join(parser.text)
+    assert rheoline.CAUTION in text and rheoline.__version__ in text
+    manifest = json.loads((out_dir / "manifest.json").read_text())
+    assert manifest["input_sha256"] in page
+    # the scenario copy is the file itself
+    copy = out_dir / "scenario-rapid-transfusion-cart.toml"
+    assert copy.read_bytes() == example_path("rapid-transfusion-cart").read_bytes()
+    assert html.escape("Rapid-transfusion cart") in page
+
+
+def test_demo_never_overwrites_without_force(capsys, tmp_path):
+    out_dir = tmp_path / "pack"
+    assert call(capsys, "demo", "--out", out_dir)[0] == 0
+    stamp = (out_dir / "manifest.json").read_text()
+    status, out, err = call(capsys, "demo", "--out", out_dir)
+    assert status == 2 and out == ""
+    assert_one_line_error(err, "--force")
+    assert (out_dir / "manifest.json").read_text() == stamp
+    assert call(capsys, "demo", "--out", out_dir, "--force")[0] == 0
+
+
+# --------------------------------------------------------------------------- hostile names
+HOSTILE_FILE = """format_version = 1
+title = "<script>alert('t')</script>"
+
+[[scenario]]
+name = "=HYPERLINK(\\"http://example.invalid\\",\\"x\\")"
+fluid = "water"
+head = "1 m"
+[[scenario.part]]
+type = "catheter"
+gauge = 18
+label = "@SUM(1+1)"
+
+[[scenario]]
+name = "</td><img src=x onerror=alert(1)>"
+notes = "-1+1 <b>bold</b>"
+fluid = "water"
+head = ["50 cm", "1 m"]
+[[scenario.part]]
+type = "tube"
+label = "+cmd|' /C calc'!A0"
+inner_diameter = "3 mm"
+length = "1.8 m"
+"""
+
+
+def test_hostile_names_through_the_whole_pipeline(capsys, tmp_path):
+    src = tmp_path / "hostile.toml"
+    src.write_text(HOSTILE_FILE)
+    status, out, err = call(capsys, "run", src, "--out", tmp_path / "pack")
+    assert status == 0, err
+    pack = tmp_path / "pack"
+    page = (pack / "report.html").read_text(encoding="utf-8")
+    assert "<img src=x" not in page and "<script>alert" not in page and "<b>bold" not in page
+    assert "&lt;img src=x onerror=alert(1)&gt;" in page
+    for name in ("results.csv", "parts.csv"):
+        with (pack / name).open(newline="", encoding="utf-8") as fh:
+            cells = [c for row in csv.reader(fh) for c in row]
+        assert "'=HYPERLINK(\"http://example.invalid\",\"x\")" in cells or name == "parts.csv"
+        assert not [c for c in cells if c.startswith(("=", "+", "-", "@"))], name
+    wb = openpyxl.load_workbook(pack / "results.xlsx")
+    for ws in wb.worksheets:
+        for row in ws.iter_rows():
+            for cell in row:
+                assert cell.data_type != "f"
+                assert not (isinstance(cell.value, str)
+                            and cell.value.startswith(("=", "+", "-", "@")))
