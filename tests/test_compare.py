@@ -203,3 +203,26 @@ def test_records_are_json_ready_and_carry_the_caution():
     text = json.dumps(rec, allow_nan=False)
     assert rheoline.CAUTION in text
     assert {"pressure_drop_pa", "reynolds", "wall_shear_stress_pa"} <= set(rec[0]["parts"][0])
+
+
+def test_falling_head_time_lies_between_the_full_and_empty_bag_times():
+    parts = [{"type": "set", "kind": "gravity-set"}, {"type": "catheter", "gauge": 18}]
+    t = run(sc(name="falling", head="1 m", head_when_empty="60 cm", volume="1 L", parts=parts),
+            sc(name="full", head="1 m", parts=parts),
+            sc(name="empty", head="60 cm", parts=parts)).table.set_index("case")
+    full = 1000 / t.loc["full", "flow [mL/min]"]
+    empty = 1000 / t.loc["empty", "flow [mL/min]"]
+    assert full < t.loc["falling", "time to deliver [min]"] < empty
+
+
+def test_a_loosening_pressure_bag_takes_longer_than_a_steady_one():
+    parts = [{"type": "set", "kind": "gravity-set"}, {"type": "catheter", "gauge": 18}]
+    t = run(sc(name="steady", head="80 cm", source_pressure="300 mmHg", volume="1 L",
+               parts=parts),
+            sc(name="loosening", head="80 cm", source_pressure="300 mmHg",
+               source_pressure_when_empty="100 mmHg", volume="1 L", parts=parts),
+            sc(name="leaking", head="80 cm", source_pressure="300 mmHg",
+               pressure_time_constant="20 min", volume="1 L", parts=parts)).table.set_index("case")
+    steady = t.loc["steady", "time to deliver [min]"]
+    assert t.loc["loosening", "time to deliver [min]"] > steady
+    assert t.loc["leaking", "time to deliver [min]"] > steady

@@ -607,16 +607,26 @@ def _delivery_minutes(sc, g, fl, line, res):
     if "volume" not in g.values:
         return None
     n = len(g.indices)
-    volume = _vec(g.values["volume"], n)
-    if "head_when_empty" in g.values:
-        from rheoline.model import delivery
+    v = g.values
+    volume = _vec(v["volume"], n)
+    if sc.mode == "flow" or not any(k in v for k in ("head_when_empty", "pressure_time_constant",
+                                                     "source_pressure_when_empty")):
+        return volume / _vec(res.flow, n) / 60.0  # a constant drive or a pump
+    from rheoline.model import delivery
 
+    head = v.get("head", 0.0)
+    back = v.get("back_pressure", 0.0)
+    if "source_pressure_when_empty" in v or "pressure_time_constant" in v:
+        t = delivery.pressure_bag_delivery_time(
+            line, fl, volume, v["source_pressure"],
+            pressure_empty=v.get("source_pressure_when_empty"),
+            time_constant=v.get("pressure_time_constant"), head_full=head,
+            head_empty=v.get("head_when_empty"), back_pressure=back)
+    else:
         t = delivery.falling_head_delivery_time(
-            line, fl, volume, g.values["head"], g.values["head_when_empty"],
-            source_pressure=g.values.get("source_pressure", 0.0),
-            back_pressure=g.values.get("back_pressure", 0.0))
-        return _vec(getattr(t, "time", t), n) / 60.0
-    return volume / _vec(res.flow, n) / 60.0
+            line, fl, volume, head, v["head_when_empty"],
+            source_pressure=v.get("source_pressure", 0.0), back_pressure=back)
+    return _vec(t.time, n) / 60.0
 
 
 # --------------------------------------------------------------------------- tables

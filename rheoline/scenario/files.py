@@ -192,6 +192,11 @@ SCENARIO_FIELDS = {
     "volume": _spec("volume", "mL", 1e-9, 0.05, help="volume to deliver, for the delivery time"),
     "head_when_empty": _spec("length", "m", 0.0, 10.0,
                              help="head when the bag is empty (falling-head delivery time)"),
+    "source_pressure_when_empty": _spec("pressure", "mmHg", 0.0, 30 * _BAR,
+                                        help="source pressure when the volume has gone "
+                                        "(a cuff that loosens as the bag shrinks)"),
+    "pressure_time_constant": _spec("time", "s", 1e-3, 1e7,
+                                    help="time constant of a cuff pressure decaying in time"),
     "tolerance": _spec("tolerance", sweep=False, help="tolerances: temperature, hematocrit, "
                        "samples, seed"),
     "part": _spec("parts", sweep=False, help="the [[scenario.part]] tables, source to outlet"),
@@ -562,6 +567,17 @@ def _parse_scenario(raw, index, source):
     if "head_when_empty" in values and "volume" not in values:
         raise ScenarioError("needs volume = \"...\" (the volume to deliver)", source=source,
                             scenario=where, field="head_when_empty")
+    decay = [k for k in ("source_pressure_when_empty", "pressure_time_constant") if k in values]
+    if decay and "volume" not in values:
+        raise ScenarioError("needs volume = \"...\" (the volume to deliver)", source=source,
+                            scenario=where, field=decay[0])
+    if decay and "source_pressure" not in values:
+        raise ScenarioError("needs source_pressure = \"...\" (the cuff pressure at the start)",
+                            source=source, scenario=where, field=decay[0])
+    if len(decay) == 2:
+        raise ScenarioError("give one decay law: source_pressure_when_empty (with the volume) "
+                            "or pressure_time_constant (in time), not both", source=source,
+                            scenario=where, field=decay[1])
     if "head_when_empty" in values and "head" not in values:
         raise ScenarioError("needs head = \"...\" (the head when the bag is full)", source=source,
                             scenario=where, field="head_when_empty")
