@@ -45,7 +45,10 @@ __all__ = [
     "whole_blood_high_shear_viscosity",
     "blood_zero_shear_viscosity",
     "merrill_1965_yield_stress",
+    "QUEMADA_K_INFINITE_SHEAR",
+    "ZERO_SHEAR_HEMATOCRIT_EXPONENT",
     "blood_rheology",
+    "blood_properties",
     "BLOOD_RHEOLOGY_MODELS",
     "blood_viscosity",
     "pries_1992_relative_viscosity",
@@ -178,8 +181,11 @@ def blood_density(hematocrit, temperature_c=37.0):
     """
     h = check_hematocrit(hematocrit)
     t = _temperature(temperature_c, "the blood density model")
-    rho = (1.0 - h) * PLASMA_DENSITY_37C + h * RED_CELL_DENSITY_37C
-    return scalar_or_array(rho * _density_scale(t))
+    return scalar_or_array(_blood_density(h, t))
+
+
+def _blood_density(h, t):
+    return ((1.0 - h) * PLASMA_DENSITY_37C + h * RED_CELL_DENSITY_37C) * _density_scale(t)
 
 
 def quemada_1978_relative_viscosity(hematocrit, intrinsic_viscosity):
@@ -463,9 +469,27 @@ def blood_rheology(hematocrit, temperature_c=37.0, model="carreau"):
     h = _hematocrit(hematocrit, f"the {model} blood model")
     t = _temperature(temperature_c, f"the {model} blood model")
     h, t = np.broadcast_arrays(h, t)
-    if h.ndim == 0:
-        h, t = float(h), float(t)
-    return builder(np.asarray(h), np.asarray(t))
+    return builder(np.asarray(h, dtype=float), np.asarray(t, dtype=float))
+
+
+def blood_properties(hematocrit, temperature_c=37.0, model="carreau"):
+    """Rheology, density and plasma viscosity of blood in one call (one range check).
+
+    Returns
+    -------
+    tuple
+        ``(rheology, density [kg/m^3], plasma_viscosity [Pa s])``, each broadcast
+        over ``hematocrit`` and ``temperature_c`` (floats for scalars).
+
+    Examples
+    --------
+    >>> rheology, density, mu_p = blood_properties(0.45, 37.0)
+    >>> round(density), round(mu_p * 1e3, 3)
+    (1059, 1.244)
+    """
+    rheology = blood_rheology(hematocrit, temperature_c, model)
+    h, t = np.broadcast_arrays(np.asarray(hematocrit, dtype=float), np.asarray(temperature_c, dtype=float))
+    return rheology, scalar_or_array(_blood_density(h, t)), scalar_or_array(_plasma(t))
 
 
 def blood_viscosity(hematocrit, temperature_c=37.0, shear_rate=None, model="carreau"):

@@ -23,6 +23,7 @@ Examples
 from __future__ import annotations
 
 import difflib
+import warnings
 from collections.abc import Callable
 from dataclasses import dataclass, field
 
@@ -133,18 +134,15 @@ def _plasma(temperature_c):
 
 def _blood(label, default_hematocrit, typical_note):
     def build(temperature_c, hematocrit=default_hematocrit, model="carreau"):
-        rheology = blood.blood_rheology(hematocrit, temperature_c, model)
-        h = np.asarray(hematocrit, dtype=float)
-        t = np.asarray(temperature_c, dtype=float)
-        h_b, t_b = np.broadcast_arrays(h, t)
-        mu_p = blood.plasma_viscosity(t_b)
+        rheology, density, mu_p = blood.blood_properties(hematocrit, temperature_c, model)
+        h_b, t_b = np.broadcast_arrays(np.asarray(hematocrit, dtype=float),
+                                       np.asarray(temperature_c, dtype=float))
         notes = [f"rheology model {model!r}; scaling with hematocrit and temperature is "
                  "anchored at Cho & Kensey 1991 (H 0.45, 37 degC)"]
         if hematocrit is default_hematocrit:
             notes.append(typical_note)
-        return Fluid(name=label, temperature_c=_t(t_b), density=blood.blood_density(h_b, t_b),
-                     rheology=rheology, hematocrit=float(h_b) if h_b.ndim == 0 else h_b,
-                     plasma_viscosity=mu_p,
+        return Fluid(name=label, temperature_c=_t(t_b), density=density, rheology=rheology,
+                     hematocrit=float(h_b) if h_b.ndim == 0 else h_b, plasma_viscosity=mu_p,
                      source="plasma 1.8 x water; Quemada 1978 high shear; Cho & Kensey 1991",
                      notes=tuple(notes))
     return build
@@ -184,8 +182,11 @@ FLUID_LIBRARY: dict[str, FluidEntry] = {
     "albumin-5": FluidEntry(_albumin(50.0, "albumin-5"), "5 % human albumin in saline", 20.0,
                             {"concentration": (50.0, "albumin [kg/m^3]")},
                             "Mooney form, parameters from memory"),
-    "albumin-20": FluidEntry(_albumin(200.0, "albumin-20"), "20-25 % human albumin", 20.0,
+    "albumin-20": FluidEntry(_albumin(200.0, "albumin-20"), "20 % human albumin", 20.0,
                              {"concentration": (200.0, "albumin [kg/m^3]; 250 for a 25 % solution")},
+                             "Mooney form, parameters from memory"),
+    "albumin-25": FluidEntry(_albumin(250.0, "albumin-25"), "25 % human albumin", 20.0,
+                             {"concentration": (250.0, "albumin [kg/m^3]")},
                              "Mooney form, parameters from memory"),
     "whole-blood": FluidEntry(_blood("whole-blood", 0.45, "hematocrit 0.45 is a typical value"),
                               "whole blood (shear-thinning)", 37.0,
@@ -195,7 +196,7 @@ FLUID_LIBRARY: dict[str, FluidEntry] = {
     "packed-red-cells": FluidEntry(_blood("packed-red-cells", 0.65,
                                           "hematocrit 0.65 is a typical value for a packed "
                                           "red-cell unit (units range about 0.55-0.80)"),
-                                   "packed red cells (default 4 degC, as from the refrigerator)",
+                                   "packed red cells (cold from storage by default)",
                                    4.0,
                                    {"hematocrit": (0.65, "red-cell volume fraction [-] (typical 0.65)"),
                                     "model": _MODEL_OPTION},
@@ -207,6 +208,15 @@ FLUID_LIBRARY: dict[str, FluidEntry] = {
 }
 
 _LIBRARY_NAMES = frozenset(FLUID_LIBRARY)
+
+
+def _library_table() -> str:
+    lines = []
+    for name, e in FLUID_LIBRARY.items():
+        opts = ", ".join(f"{k}={v[0]!r}" for k, v in e.options.items())
+        lines.append(f"* ``{name}``: {e.description} (default {e.default_temperature_c:g} degC"
+                     f"{'; options ' + opts if opts else ''}). Source: {e.source}.")
+    return "\n    ".join(lines)
 
 
 def _normalize(name):
@@ -250,6 +260,16 @@ def fluid(name: str, temperature_c=None, **options) -> Fluid:
     InputRangeError
         Unknown fluid (with near-miss suggestions) or option, or bad values.
 
+    Notes
+    -----
+    The library (generated from :data:`FLUID_LIBRARY`):
+
+    LIBRARY_TABLE
+
+    ``Fluid.viscosity()`` (no shear rate) is the rheology model's high-shear value:
+    the infinite-shear limit for Carreau models, the value at 1000 1/s for the
+    power law and Casson.
+
     Examples
     --------
     >>> round(fluid("saline-0.9", temperature_c=37.0).viscosity() * 1e3, 3)
@@ -267,7 +287,21 @@ def fluid(name: str, temperature_c=None, **options) -> Fluid:
             f"fluid {key!r} has no option {unknown[0]!r}{hint} (options: {allowed})"
         )
     t = entry.default_temperature_c if temperature_c is None else temperature_c
-    return entry.builder(t, **options)
+    # the property functions each check their range; pass each distinct warning on once
+    with warnings.catch_warnings(record=True) as caught:
+        warnings.simplefilter("always")
+        result = entry.builder(t, **options)
+    seen = set()
+    for w in caught:
+        key = (w.category, str(w.message))
+        if key not in seen:
+            seen.add(key)
+            warnings.warn(w.message, stacklevel=2)
+    return result
+
+
+if fluid.__doc__:
+    fluid.__doc__ = fluid.__doc__.replace("LIBRARY_TABLE", _library_table())
 
 
 def fluid_names() -> list[str]:
