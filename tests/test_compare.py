@@ -226,3 +226,21 @@ def test_a_loosening_pressure_bag_takes_longer_than_a_steady_one():
     steady = t.loc["steady", "time to deliver [min]"]
     assert t.loc["loosening", "time to deliver [min]"] > steady
     assert t.loc["leaking", "time to deliver [min]"] > steady
+
+
+def test_vein_diameter_gives_the_catheter_to_vein_ratio():
+    # 14G catheter, outer diameter 2.1 mm (catalogue, typical nominal), in a 4 mm vein: 0.525
+    t = run(sc(head="1 m", vein_diameter=["4 mm", "8 mm"],
+               parts=[{"type": "catheter", "gauge": 14}])).table
+    assert t["catheter-to-vein ratio [-]"].tolist() == pytest.approx([2.1 / 4, 2.1 / 8])
+    assert "catheter fills 52% of the vein diameter" in t["flags"].iloc[0]
+    assert "vein" not in t["flags"].iloc[1]
+
+
+def test_a_vein_smaller_than_the_catheter_is_a_scenario_error():
+    from rheoline.scenario.compare import check_scenarios
+
+    sset = parse_scenarios(doc(sc(head="1 m", vein_diameter="1.5 mm",
+                                  parts=[{"type": "catheter", "gauge": 14}])), source="v.toml")
+    with pytest.raises(ScenarioError, match="field 'vein_diameter'.*smaller than vein_diameter"):
+        check_scenarios(sset)

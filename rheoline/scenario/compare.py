@@ -10,7 +10,8 @@ above the gravity head), ``max Reynolds number``, ``regime`` (the worst part),
 ``max wall shear stress [Pa]``, ``hemolysis index [%]`` (Giersiepen 1990) and
 ``hemolysis concern``, ``over pressure limit``, ``flags`` (validity notes),
 ``flow p5 [mL/min]`` / ``flow p95 [mL/min]`` where tolerances are given, and
-``time to deliver [min]`` where a volume is given.
+``time to deliver [min]`` where a volume is given, and ``catheter-to-vein ratio [-]``
+(:func:`rheoline.model.vessels.infusion_site_context`) where a vein diameter is given.
 
 Sweep points that share their fluid and catalogue sizes are solved together in one
 vectorized call of the line engine (no Python loop per point).
@@ -75,6 +76,9 @@ ASSUMPTIONS = (
     ("catalogue sizes", "typical nominal catheter, needle and set dimensions",
      "ISO 9626 for needles (from memory); catheters and sets typical, from memory",
      "a maker's dimensions differ: measure the bore for a decision"),
+    ("catheter-to-vein ratio", "outer diameter over vein diameter, flagged above 0.45",
+     "rheoline.model.vessels.infusion_site_context", "common practice, no source; no "
+     "prediction of thrombosis or vein injury"),
     ("units", "NIST SP 811 conversions", "NIST SP 811 (2008) Appendix B",
      "1 mmHg = 133.322 Pa, 1 cmH2O = 98.0665 Pa"),
 )
@@ -179,6 +183,7 @@ class RunResult:
                 "required_pressure_p5_mmhg": _num(r["pressure p5 [mmHg]"]),
                 "required_pressure_p95_mmhg": _num(r["pressure p95 [mmHg]"]),
                 "time_to_deliver_min": _num(r["time to deliver [min]"]),
+                "catheter_to_vein_ratio": _num(r["catheter-to-vein ratio [-]"]),
                 "flags": [f for f in r["flags"].split("; ") if f],
                 "parts": by_case.get(r["case"], []),
                 "caution": CAUTION,
@@ -309,6 +314,26 @@ def _build_parts(group, source):
     return built
 
 
+def _site_context(group, parts, source):
+    """Catheter-to-vein context (rheoline.model.vessels) when the scenario gives a vein."""
+    if "vein_diameter" not in group.values:
+        return None
+    from rheoline.model.vessels import infusion_site_context
+
+    outlet = [p for p in parts if getattr(p, "outer_diameter", None) is not None]
+    if not outlet:
+        raise ScenarioError("needs a catheter, needle or cannula (a part with an outer "
+                            "diameter) in the line", source=source,
+                            scenario=repr(group.scenario.name), field="vein_diameter")
+    try:
+        return infusion_site_context(outlet[-1].outer_diameter, group.values["vein_diameter"],
+                                     vein_pressure=group.values.get("back_pressure", 0.0),
+                                     warn=False)
+    except RheolineError as exc:
+        raise ScenarioError(str(exc), source=source, scenario=repr(group.scenario.name),
+                            field="vein_diameter") from None
+
+
 def check_scenarios(sset: ScenarioSet) -> None:
     """Check what only the model knows (fluid names and options, part geometry).
 
@@ -320,7 +345,7 @@ def check_scenarios(sset: ScenarioSet) -> None:
         for sc in sset.scenarios:
             for g in _groups(sc):
                 _build_fluid(g, sset.source)
-                _build_parts(g, sset.source)
+                _site_context(g, _build_parts(g, sset.source), sset.source)
 
 
 # --------------------------------------------------------------------------- the run
@@ -382,7 +407,7 @@ _COLUMNS = [
     "over pressure limit", "max Reynolds number", "regime", "dominant part",
     "dominant share [%]", "max wall shear stress [Pa]", "hemolysis index [%]",
     "hemolysis concern", "flow p5 [mL/min]", "flow p95 [mL/min]", "pressure p5 [mmHg]",
-    "pressure p95 [mmHg]", "time to deliver [min]",
+    "pressure p95 [mmHg]", "time to deliver [min]", "catheter-to-vein ratio [-]",
     "flags",
 ]
 _PART_COLUMNS = [
@@ -415,6 +440,7 @@ def _solve_group(g, source):
                              back_pressure=back)
         band = _tolerance_band(sc, g, fl, line, res) if _has_tolerance(sc) else None
         deliver = _delivery_minutes(sc, g, fl, line, res)
+        site = _site_context(g, parts, source)
     from rheoline.errors import RangeWarning, RheolineWarning
     from rheoline.model.hemolysis import GIERSIEPEN_1990_MAX_STRESS
 
@@ -468,6 +494,9 @@ def _solve_group(g, source):
             flags.append("no forward flow")
         if not converged[col]:
             flags.append("solver not converged")
+        ratio = float(_vec(site.diameter_ratio, n)[col]) if site is not None else np.nan
+        if site is not None and bool(_vec(site.large_ratio, n)[col]):
+            flags.append(f"catheter fills {ratio:.0%} of the vein diameter")
         if range_note:
             flags.append("outside a correlation's range (see notes)")
         bores = [float(_vec(p.inner_diameter, n)[col]) for p in parts
@@ -490,7 +519,7 @@ def _solve_group(g, source):
             band[1][col] if band and sc.mode == "drive" else np.nan,
             band[0][col] if band and sc.mode == "flow" else np.nan,
             band[1][col] if band and sc.mode == "flow" else np.nan,
-            deliver[col] if deliver is not None else np.nan,
+            deliver[col] if deliver is not None else np.nan, ratio,
             "; ".join(flags),
         ])
         for j, part in enumerate(parts):

@@ -197,6 +197,8 @@ SCENARIO_FIELDS = {
                                         "(a cuff that loosens as the bag shrinks)"),
     "pressure_time_constant": _spec("time", "s", 1e-3, 1e7,
                                     help="time constant of a cuff pressure decaying in time"),
+    "vein_diameter": _spec("length", "mm", 5e-4, 0.03,
+                           help="inner diameter of the vein the catheter sits in (site context)"),
     "tolerance": _spec("tolerance", sweep=False, help="tolerances: temperature, hematocrit, "
                        "samples, seed"),
     "part": _spec("parts", sweep=False, help="the [[scenario.part]] tables, source to outlet"),
