@@ -327,6 +327,7 @@ th,td{border:1px solid #c8c8c8;padding:.25rem .45rem;text-align:left;vertical-al
 th{background:#eef1f4}td.num{text-align:right;font-variant-numeric:tabular-nums}
 pre{background:#f4f4f4;padding:.8rem;overflow-x:auto;font-size:.8rem}
 .meta td:first-child{font-weight:600}.scroll{overflow-x:auto}
+td:first-child{white-space:nowrap}details{margin-bottom:1.5rem}
 """
 
 
@@ -343,7 +344,8 @@ def _cell_html(v):
     if isinstance(v, int):
         return f'<td class="num">{v}</td>'
     if isinstance(v, float):
-        return f'<td class="num">{v:.4g}</td>'
+        text = f"{v:,.0f}" if abs(v) >= 1e4 and math.isfinite(v) else f"{v:.4g}"
+        return f'<td class="num">{text}</td>'
     return f"<td>{_e(v)}</td>"
 
 
@@ -409,6 +411,9 @@ def _write_html(run, path: Path, meta):
 
         text = dump_scenarios(sset)
     notes = f"<p>{_e(sset.notes)}</p>" if sset.notes else ""
+    run_notes = getattr(run, "warnings", ())
+    notes_html = ("<h3>Notes from the models</h3><ul>"
+                  + "".join(f"<li>{_e(w)}</li>" for w in run_notes) + "</ul>") if run_notes else ""
     body = f"""<!DOCTYPE html>
 <html lang="en"><head><meta charset="utf-8">
 <meta name="viewport" content="width=device-width, initial-scale=1">
@@ -419,7 +424,11 @@ def _write_html(run, path: Path, meta):
 {notes}
 <table class="meta">{meta_rows}</table>
 <h2>Results</h2>
+{frame_html(run.summary()) if hasattr(run, "summary") else ""}
+{notes_html}
+<details><summary>Every column (as in results.csv)</summary>
 {frame_html(run.table)}
+</details>
 <h2>Charts</h2>
 {''.join(charts)}
 <h2>Parts of each line</h2>
