@@ -82,6 +82,10 @@ _LAZY = {
     "extension_set": "rheoline.model.parts",
     "central_line_lumen": "rheoline.model.parts",
     "giersiepen_1990_hemolysis_index": "rheoline.model.hemolysis",
+    "falling_head_delivery_time": "rheoline.model.delivery",
+    "pressure_bag_delivery_time": "rheoline.model.delivery",
+    "flow_tolerance": "rheoline.model.tolerance",
+    "flow_curves": "rheoline.model.curves",
     # vessels and hemodynamics
     "Vessel": "rheoline.model.vessels",
     "vascular_resistance": "rheoline.model.hemodynamics",

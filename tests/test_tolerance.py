@@ -1,0 +1,76 @@
+"""Monte Carlo tolerance bands and their attribution."""
+
+import numpy as np
+import pytest
+
+import rheoline
+from rheoline.errors import InputRangeError
+from rheoline.model.fluid_base import newtonian_fluid
+from rheoline.model.line import Line
+from rheoline.model.parts import Catheter, Tube
+from rheoline.model.tolerance import flow_tolerance, scale_viscosity
+
+WATER = newtonian_fluid("water", viscosity=1.0e-3, density=1000.0)
+
+
+def test_laminar_diameter_tolerance_is_fourth_power():
+    # Hagen-Poiseuille, Q ~ D^4: +/-5 % on the bore gives about +22 % / -19 % on flow
+    line = Line([Tube(inner_diameter=0.4e-3, length=1.5)])
+    band = flow_tolerance(line, WATER, head=1.0, diameter_tolerance=0.05, n_samples=4000)
+    assert band.samples.max() / band.nominal == pytest.approx(1.05**4, rel=0.01)
+    assert band.samples.min() / band.nominal == pytest.approx(0.95**4, rel=0.01)
+    assert band.shares == {"inner_diameter of tube 0.4 mm x 1.5 m": pytest.approx(1.0)}
+
+
+def test_seeded_and_attribution_names_the_part():
+    line = Line([Tube(inner_diameter=3e-3, length=1.8), Catheter(gauge=22)])
+    kwargs = dict(head=1.0, diameter_tolerance=0.03, length_tolerance=0.05, n_samples=3000)
+    first = flow_tolerance(line, WATER, seed=7, **kwargs)
+    again = flow_tolerance(line, WATER, seed=7, **kwargs)
+    assert np.array_equal(first.samples, again.samples)
+    assert first.dominant_input == "inner_diameter of 22G catheter"
+    assert first.dominant_part == "22G catheter"
+    assert sum(first.shares.values()) == pytest.approx(1.0)
+    assert first.percentiles[5.0] < first.percentiles[50.0] < first.percentiles[95.0]
+
+
+def test_viscosity_and_fluid_tolerances():
+    line = Line([Tube(inner_diameter=0.5e-3, length=1.0)])
+    band = flow_tolerance(line, WATER, head=1.0, viscosity_tolerance=0.1, n_samples=2000)
+    # laminar: Q ~ 1/mu, so the extremes are 1/1.1 and 1/0.9 of nominal
+    assert band.samples.min() / band.nominal == pytest.approx(1 / 1.1, rel=0.01)
+    blood = rheoline.fluid("whole-blood", hematocrit=0.45, temperature_c=37.0)
+    band = flow_tolerance(line, blood, head=1.0, hematocrit_tolerance=0.05,
+                          temperature_tolerance=1.0, n_samples=2000)
+    assert band.dominant_input == "hematocrit"
+    assert band.dominant_part is None
+
+
+def test_required_pressure_band():
+    line = Line([Catheter(gauge=20)])
+    band = flow_tolerance(line, WATER, flow=1e-6, diameter_tolerance=0.05, n_samples=1000)
+    assert band.quantity == "required_pressure"
+    assert band.samples.max() > band.nominal > band.samples.min()
+
+
+def test_scale_viscosity_carreau():
+    blood = rheoline.fluid("whole-blood", hematocrit=0.45, temperature_c=37.0)
+    thicker = scale_viscosity(blood, 2.0)
+    assert thicker.rheology.mu_zero == pytest.approx(2 * blood.rheology.mu_zero)
+    assert thicker.rheology.relaxation_time == blood.rheology.relaxation_time
+
+
+def test_bad_tolerance_input():
+    line = Line([Catheter(gauge=20)])
+    with pytest.raises(InputRangeError, match="no tolerance given"):
+        flow_tolerance(line, WATER, head=1.0)
+    with pytest.raises(InputRangeError, match="is relative \\(0.05 = 5 %\\)"):
+        flow_tolerance(line, WATER, head=1.0, diameter_tolerance=5.0)
+    with pytest.raises(InputRangeError, match="hematocrit_tolerance needs a blood fluid"):
+        flow_tolerance(line, rheoline.fluid("water", temperature_c=22.0), head=1.0,
+                       hematocrit_tolerance=0.02)
+    with pytest.raises(InputRangeError, match="needs fluid_builder for the user fluid"):
+        flow_tolerance(line, newtonian_fluid("bench oil", 0.05, 870.0), head=1.0,
+                       temperature_tolerance=1.0)
+    with pytest.raises(InputRangeError, match="distribution 'flat' is not known"):
+        flow_tolerance(line, WATER, head=1.0, diameter_tolerance=0.01, distribution="flat")
