@@ -212,7 +212,8 @@ def _frame_text(frame):
             shown[col] = shown[col].map(lambda v: _printable(v) if isinstance(v, str) else v)
     with pd.option_context("display.max_rows", 10_000, "display.max_columns", 50,
                            "display.width", 200, "display.max_colwidth", 60):
-        return shown.to_string(index=False, float_format=lambda v: f"{v:.4g}")
+        text = shown.to_string(index=False, float_format=lambda v: f"{v:.4g}", na_rep="")
+    return "\n".join(line.rstrip() for line in text.splitlines())
 
 
 def format_run(run) -> str:

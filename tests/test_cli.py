@@ -122,7 +122,8 @@ def test_run_prints_a_readable_table(capsys):
     assert lines[0] == f"CAUTION: {rheoline.CAUTION}"
     assert lines[-1] == f"CAUTION: {rheoline.CAUTION}"
     header = next(line for line in lines if "flow [mL/min]" in line)
-    assert "pressure [mmHg]" in header and "max Re" in header
+    assert "source pressure [mmHg]" in header and "max Re" in header
+    assert "NaN" not in out
     assert sum(" | 50 cm, 14G" in line for line in lines) == 1
     assert sum("water, gauge x height |" in line for line in lines) == 30
 

@@ -118,10 +118,14 @@ class RunResult:
     created: _dt.datetime = field(default_factory=lambda: _dt.datetime.now(_dt.UTC))
 
     def summary(self):
-        """The columns printed by ``rheoline run``."""
+        """The columns printed by ``rheoline run``.
+
+        ``source pressure [mmHg]`` is the given bag or infuser pressure for a drive, and the
+        pressure the pump must supply (above the gravity head) for a prescribed flow.
+        """
         t = self.table
         out = t[["case", "flow [mL/min]", "required pressure [mmHg]"]].copy()
-        out.columns = ["case", "flow [mL/min]", "pressure [mmHg]"]
+        out.columns = ["case", "flow [mL/min]", "source pressure [mmHg]"]
         out["max Re"] = t["max Reynolds number"].round().astype("Int64")
         out["regime"] = t["regime"]
         out["dominant part (share)"] = [f"{p} ({s:.0f} %)" for p, s in
