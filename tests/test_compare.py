@@ -244,3 +244,22 @@ def test_a_vein_smaller_than_the_catheter_is_a_scenario_error():
                                   parts=[{"type": "catheter", "gauge": 14}])), source="v.toml")
     with pytest.raises(ScenarioError, match="field 'vein_diameter'.*smaller than vein_diameter"):
         check_scenarios(sset)
+
+
+def test_the_dominant_tolerance_is_named():
+    # 22G catheter bore +/-5 % against a 1 % set bore: the catheter's bore dominates
+    # (Q ~ D^4 in the laminar part that takes most of the pressure budget).
+    t = run(sc(head="1 m", tolerance={"viscosity": "1 %", "samples": 2000},
+               parts=[{"type": "tube", "label": "set", "inner_diameter": "3 mm", "length": "1.8 m",
+                       "tolerance": {"inner_diameter": "1 %"}},
+                      {"type": "catheter", "gauge": 22,
+                       "tolerance": {"inner_diameter": "0.03 mm"}}])).table.iloc[0]
+    assert t["dominant tolerance"] == "inner_diameter of 22G catheter"
+
+
+def test_tolerance_of_a_glycerol_mixture_keeps_its_mass_fraction():
+    t = run(sc(fluid="glycerol-water", mass_fraction=[0.2, 0.5], head="1 m",
+               tolerance={"temperature": "2 degC", "samples": 500})).table
+    assert (t["flow p5 [mL/min]"] < t["flow [mL/min]"]).all()
+    assert (t["flow [mL/min]"] < t["flow p95 [mL/min]"]).all()
+    assert t["flow [mL/min]"].iloc[0] > t["flow [mL/min]"].iloc[1]

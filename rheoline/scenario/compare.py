@@ -9,7 +9,8 @@ above the gravity head), ``max Reynolds number``, ``regime`` (the worst part),
 ``dominant part`` and ``dominant share [%]`` of the pressure budget,
 ``max wall shear stress [Pa]``, ``hemolysis index [%]`` (Giersiepen 1990) and
 ``hemolysis concern``, ``over pressure limit``, ``flags`` (validity notes),
-``flow p5 [mL/min]`` / ``flow p95 [mL/min]`` where tolerances are given, and
+``flow p5 [mL/min]`` / ``flow p95 [mL/min]`` (a pump: ``pressure p5/p95 [mmHg]``) and the
+``dominant tolerance`` where tolerances are given, and
 ``time to deliver [min]`` where a volume is given, and ``catheter-to-vein ratio [-]``
 (:func:`rheoline.model.vessels.infusion_site_context`) where a vein diameter is given.
 
@@ -138,6 +139,8 @@ class RunResult:
                 out[f"{what} p5-p95 [{unit}]"] = [
                     "" if np.isnan(a) else f"{a:.4g}-{b:.4g}"
                     for a, b in zip(lo, hi, strict=True)]
+        if t["dominant tolerance"].astype(bool).any():
+            out["spread led by"] = t["dominant tolerance"]
         if t["time to deliver [min]"].notna().any():
             out["deliver [min]"] = t["time to deliver [min]"]
         out["flags"] = t["flags"]
@@ -186,6 +189,7 @@ class RunResult:
                 "flow_p95_ml_min": _num(r["flow p95 [mL/min]"]),
                 "required_pressure_p5_mmhg": _num(r["pressure p5 [mmHg]"]),
                 "required_pressure_p95_mmhg": _num(r["pressure p95 [mmHg]"]),
+                "dominant_tolerance": r["dominant tolerance"] or None,
                 "time_to_deliver_min": _num(r["time to deliver [min]"]),
                 "catheter_to_vein_ratio": _num(r["catheter-to-vein ratio [-]"]),
                 "flags": [f for f in r["flags"].split("; ") if f],
@@ -411,7 +415,8 @@ _COLUMNS = [
     "over pressure limit", "max Reynolds number", "regime", "dominant part",
     "dominant share [%]", "max wall shear stress [Pa]", "hemolysis index [%]",
     "hemolysis concern", "flow p5 [mL/min]", "flow p95 [mL/min]", "pressure p5 [mmHg]",
-    "pressure p95 [mmHg]", "time to deliver [min]", "catheter-to-vein ratio [-]",
+    "pressure p95 [mmHg]", "dominant tolerance", "time to deliver [min]",
+    "catheter-to-vein ratio [-]",
     "flags",
 ]
 _PART_COLUMNS = [
@@ -523,6 +528,7 @@ def _solve_group(g, source):
             band[1][col] if band and sc.mode == "drive" else np.nan,
             band[0][col] if band and sc.mode == "flow" else np.nan,
             band[1][col] if band and sc.mode == "flow" else np.nan,
+            band[2][col] if band else "",
             deliver[col] if deliver is not None else np.nan, ratio,
             "; ".join(flags),
         ])
@@ -580,59 +586,54 @@ def _has_tolerance(sc):
 
 def _tolerance_band(sc, g, fl, line, res):
     """p5 and p95 per case of the flow [mL/min] (drive mode) or the required pressure [mmHg]
-    (flow mode), from a seeded Monte Carlo through one vectorized solve.
-
-    Each tolerance is the half-width of a uniform spread around the nominal value (a
-    tolerance band read as limits; uniform is the flat, assumption-light choice).  Samples of
-    every case are solved together: the arrays have ``samples * cases`` entries.
+    (flow mode), and the input that dominates the spread, from the line engine's seeded
+    Monte Carlo (:func:`rheoline.model.tolerance.flow_tolerance`, one vectorized solve of
+    all samples per case).  Each tolerance is a half-width (uniform spread unless the file
+    says ``distribution = "normal"``); an absolute bore or length tolerance is turned into a
+    relative one at the case's nominal value.
     """
+    from rheoline.model.fluids import fluid as make_fluid
     from rheoline.model.line import Line
+    from rheoline.model.tolerance import flow_tolerance
 
     n = len(g.indices)
     tol = sc.tolerance
-    samples = int(tol.get("samples", DEFAULT_TOLERANCE_SAMPLES))
-    rng = np.random.default_rng([int(tol.get("seed", 0)), sc.index, g.indices[0]])
-
-    def spread(nominal, half_width, relative=False):
-        u = rng.uniform(-1.0, 1.0, size=(samples, n))
-        base = np.broadcast_to(np.asarray(nominal, dtype=float), (n,))
-        return (base * (1.0 + half_width * u) if relative else base + half_width * u).ravel()
-
-    def tile(x):
-        return np.tile(np.broadcast_to(np.asarray(x, dtype=float), (n,)), samples)
-
-    values = dict(g.values)
-    for k, v in values.items():
-        if k != "fluid":
-            values[k] = tile(v)
-    if "temperature" in tol:
-        values["temperature"] = spread(g.values["temperature"], tol["temperature"])
-    if "hematocrit" in tol and fl.is_blood:
-        nominal = g.values.get("hematocrit", fl.hematocrit)
-        values["hematocrit"] = np.clip(spread(nominal, tol["hematocrit"]), 0.0, 0.8)
-    parts = []
-    for spec, pv, built in zip(sc.parts, g.parts, line.parts, strict=True):
-        pv = {k: (tile(v) if isinstance(v, np.ndarray) and k not in ("flows", "pressure_drops")
-                  else v) for k, v in pv.items()}
-        for k, (how, width) in spec.tolerance.items():
-            nominal = getattr(built, k)
-            pv[k] = spread(nominal, width, relative=(how == "relative"))
-        if spec.type == "set" and spec.tolerance:
-            pv.setdefault("length", tile(built.length))
-        parts.append(pv)
-    mc = _Group(sc, g.indices, g.labels, values, parts)
-    mc_fluid = _build_fluid(mc, "")
-    mc_line = Line(_build_parts(mc, ""))
-    v = values
-    if sc.mode == "flow":
-        r = mc_line.solve(mc_fluid, flow=v["flow"], back_pressure=v.get("back_pressure", 0.0))
-        out = np.asarray(r.required_pressure).reshape(samples, n) / MMHG
-    else:
-        r = mc_line.solve(mc_fluid, head=v.get("head", 0.0),
-                          source_pressure=v.get("source_pressure", 0.0),
-                          back_pressure=v.get("back_pressure", 0.0))
-        out = np.asarray(r.flow).reshape(samples, n) / ML_PER_MIN
-    return np.percentile(out, 5, axis=0), np.percentile(out, 95, axis=0)
+    lo, hi, top = np.full(n, np.nan), np.full(n, np.nan), [""] * n
+    for col in range(n):
+        one = _Group(sc, g.indices[col:col + 1], g.labels[col:col + 1],
+                     {k: (v if k == "fluid" else float(v[col])) for k, v in g.values.items()},
+                     [{k: (float(v[col]) if isinstance(v, np.ndarray) and v.shape == (n,)
+                           and k not in ("flows", "pressure_drops") else v)
+                       for k, v in pv.items()} for pv in g.parts])
+        opts = {k: one.values[k] for k in ("mass_fraction",) if k in one.values}
+        case_fluid = _build_fluid(one, "")
+        case_line = Line(_build_parts(one, ""))
+        d_tol, l_tol = {}, {}
+        for i, (spec, part) in enumerate(zip(sc.parts, case_line.parts, strict=True)):
+            for key, target in (("inner_diameter", d_tol), ("length", l_tol)):
+                if key in spec.tolerance:
+                    how, width = spec.tolerance[key]
+                    nominal = float(np.asarray(getattr(part, key)).ravel()[0])
+                    target[i] = width if how == "relative" else width / nominal
+        drive = {"back_pressure": one.values.get("back_pressure", 0.0)}
+        if sc.mode == "flow":
+            drive["flow"] = one.values["flow"]
+        else:
+            drive["head"] = one.values.get("head", 0.0)
+            drive["source_pressure"] = one.values.get("source_pressure", 0.0)
+        band = flow_tolerance(
+            case_line, case_fluid, **drive, diameter_tolerance=d_tol, length_tolerance=l_tol,
+            temperature_tolerance=tol.get("temperature", 0.0),
+            hematocrit_tolerance=tol.get("hematocrit", 0.0) if case_fluid.is_blood else 0.0,
+            viscosity_tolerance=tol.get("viscosity", 0.0),
+            fluid_builder=lambda opts=opts, **kw: make_fluid(g.values["fluid"], **opts, **kw),
+            n_samples=int(tol.get("samples", DEFAULT_TOLERANCE_SAMPLES)),
+            seed=int(tol.get("seed", 0)), distribution=tol.get("distribution", "uniform"),
+            percentiles=(5.0, 95.0))
+        scale = MMHG if sc.mode == "flow" else ML_PER_MIN
+        lo[col], hi[col] = band.percentiles[5.0] / scale, band.percentiles[95.0] / scale
+        top[col] = band.dominant_input
+    return lo, hi, top
 
 
 def _delivery_minutes(sc, g, fl, line, res):

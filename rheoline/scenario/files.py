@@ -200,7 +200,7 @@ SCENARIO_FIELDS = {
     "vein_diameter": _spec("length", "mm", 5e-4, 0.03,
                            help="inner diameter of the vein the catheter sits in (site context)"),
     "tolerance": _spec("tolerance", sweep=False, help="tolerances: temperature, hematocrit, "
-                       "samples, seed"),
+                       "viscosity, distribution, samples, seed"),
     "part": _spec("parts", sweep=False, help="the [[scenario.part]] tables, source to outlet"),
 }
 
@@ -209,6 +209,10 @@ SCENARIO_TOLERANCE_FIELDS = {
                          help="half-width of the temperature spread, e.g. '2 degC'"),
     "hematocrit": _spec("fraction", None, 0.0, 0.3, sweep=False,
                         help="half-width of the hematocrit spread, a fraction such as 0.03"),
+    "viscosity": _spec("relative", None, 0.0, 0.5, sweep=False,
+                       help="relative half-width of the viscosity spread, e.g. '5 %'"),
+    "distribution": _spec("choice", sweep=False, help="'uniform' (default: the tolerance is a "
+                          "limit) or 'normal' (the tolerance is two standard deviations)"),
     "samples": _spec("integer", None, 100, 100_000, sweep=False,
                      help="Monte Carlo samples (2000 when not given)"),
     "seed": _spec("integer", None, 0, 2**32 - 1, sweep=False, help="random seed (0 when not given)"),
@@ -854,6 +858,8 @@ def _scalar(value, spec, source, where, path, check_range=True):
             return value.lower()
         if name == "fluid":
             _check_fluid(value, fail)
+        if name == "distribution" and value not in ("uniform", "normal"):
+            fail(f"unknown distribution '{_shown(value)}'; choose 'uniform' or 'normal'")
         return value
     if kind == "quantity_list":
         if not isinstance(value, list) or not value:
