@@ -310,3 +310,39 @@ def test_hostile_names_through_the_whole_pipeline(capsys, tmp_path):
                 assert cell.data_type != "f"
                 assert not (isinstance(cell.value, str)
                             and cell.value.startswith(("=", "+", "-", "@")))
+
+
+# --------------------------------------------------------------------------- progress
+def test_progress_bar_only_on_a_terminal_and_only_after_a_delay(monkeypatch):
+    from rheoline.scenario import compare
+
+    seen = []
+    real = compare.run_scenarios
+    monkeypatch.setattr(compare, "run_scenarios",
+                        lambda sset, progress=None: seen.append(progress) or real(sset))
+    from rheoline.scenario.files import load_scenarios
+
+    sset = load_scenarios(example_path("minimal"))
+    cli._solve(sset)  # pytest's captured streams are not terminals
+    monkeypatch.setattr(sys.stdout, "isatty", lambda: True, raising=False)
+    monkeypatch.setattr(sys.stderr, "isatty", lambda: True, raising=False)
+    cli._solve(sset)
+    assert seen[0] is None and seen[1] is cli._tqdm_progress
+    bar = cli._tqdm_progress(10)
+    try:
+        assert bar.delay >= 2.0 and bar.total == 10
+    finally:
+        bar.close()
+
+
+def test_json_objects_have_the_documented_keys(capsys):
+    status, out, _ = call(capsys, "demo", "--json")
+    assert status == 0
+    objs = json.loads(out)
+    assert len(objs) == 53
+    for obj in objs:
+        assert {"name", "flow_ml_min", "required_pressure_mmhg", "max_reynolds", "regime",
+                "parts", "caution"} <= set(obj)
+        assert obj["parts"] and all(
+            {"pressure_drop_pa", "reynolds", "wall_shear_stress_pa"} <= set(p)
+            for p in obj["parts"])
