@@ -1,0 +1,43 @@
+"""Counts kept by the reliability tests (examples tried, grid points, files fuzzed).
+
+The tests print nothing.  Each reliability test module bumps counters here and, at the end
+of the module, merges them into ``reliability_figures.json`` under pytest's base temporary
+directory, so a dedicated run (``python -m pytest --basetemp=DIR tests/test_rel_*.py``)
+leaves the figures quoted in README's "Reliability" section in ``DIR``.
+"""
+
+from __future__ import annotations
+
+import collections
+import json
+
+import pytest
+
+COUNTS: collections.Counter = collections.Counter()
+
+FIGURES_FILE = "reliability_figures.json"
+
+
+def bump(key: str, n: int = 1) -> None:
+    """Add ``n`` to the counter ``key``."""
+    COUNTS[key] += int(n)
+
+
+def merge_into(tmp_path_factory, section: str, data: dict) -> None:
+    """Merge ``data`` into the section ``section`` of the figures file."""
+    path = tmp_path_factory.getbasetemp() / FIGURES_FILE
+    figures = json.loads(path.read_text()) if path.exists() else {}
+    figures.setdefault(section, {}).update(data)
+    path.write_text(json.dumps(figures, indent=2, sort_keys=True))
+
+
+def module_recorder(section: str, prefix: str):
+    """A module-scoped autouse fixture that records the counters starting with ``prefix``."""
+
+    @pytest.fixture(scope="module", autouse=True)
+    def _record(tmp_path_factory):
+        yield
+        data = {k[len(prefix):]: v for k, v in COUNTS.items() if k.startswith(prefix)}
+        merge_into(tmp_path_factory, section, data)
+
+    return _record
