@@ -82,8 +82,10 @@ CHO_KENSEY_1991 = {
                        "flow_index": 0.22, "a": 1.25},
 }
 
-#: Shear-rate window [1/s] of the power-law fit to the Carreau curve.
-POWER_LAW_SHEAR_RANGE = (1.0, 1000.0)
+#: Shear-rate window [1/s] of the power-law fit to the Carreau curve: from the
+#: shear rates of veins and arteries to those of catheters and needles.  Outside
+#: it a power law departs from blood (it has no high-shear plateau).
+POWER_LAW_SHEAR_RANGE = (10.0, 1.0e4)
 
 #: Plasma and red-cell densities at 37 degC [kg/m^3] (from memory; whole blood at
 #: hematocrit 0.45 then comes out at 1059 kg/m^3, the usual 1050-1060).
@@ -433,7 +435,8 @@ def blood_rheology(hematocrit, temperature_c=37.0, model="carreau"):
         * ``"casson"``: yield stress from :func:`merrill_1965_yield_stress`, Casson
           viscosity equal to the high-shear viscosity;
         * ``"power-law"``: the power law closest (log least squares) to the Carreau
-          curve over 1-1000 1/s;
+          curve over :data:`POWER_LAW_SHEAR_RANGE` (10-10^4 1/s); outside that window
+          it departs from blood (too thin at higher, too thick at lower shear);
         * ``"newtonian"``: the high-shear viscosity.
 
     Returns
