@@ -261,3 +261,28 @@ def test_model_import_does_not_load_pandas():
             "print('pandas' in sys.modules)")
     out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, check=True)
     assert out.stdout.strip() == "False"
+
+
+@pytest.mark.parametrize("fluid", [WATER_22, rheoline.fluid("packed-red-cells", hematocrit=0.65,
+                                                            temperature_c=4.0)],
+                         ids=["water", "packed-red-cells"])
+def test_shared_characteristic_path_equals_newton_path(fluid, monkeypatch):
+    # many drives through one line: the tabulated-characteristic path must match the
+    # per-scenario Newton path (same physics) within its checked interpolation error
+    import rheoline.model.line as line_module
+
+    heads = np.random.default_rng(3).uniform(0.3, 1.5, 600)
+    line = _line()
+    fast = line.solve(fluid, head=heads)
+    fast_back = line.solve(fluid, flow=fast.flow)
+    assert fast.iterations == 0                       # the curve path was taken
+    monkeypatch.setattr(line_module, "_CURVE_MIN_SCENARIOS", 10**9)
+    slow = line.solve(fluid, head=heads)
+    slow_back = line.solve(fluid, flow=fast.flow)
+    assert slow.iterations > 0
+    assert np.allclose(fast.flow, slow.flow, rtol=1e-8, atol=0)
+    assert np.allclose(fast.part_pressure_drops, slow.part_pressure_drops, rtol=1e-8, atol=0)
+    assert np.allclose(fast_back.required_pressure, slow_back.required_pressure, rtol=1e-8)
+    assert np.allclose(fast.part_reynolds, slow.part_reynolds, rtol=1e-8)
+    drive = fluid.density * GRAVITY * heads
+    assert np.allclose(fast.part_pressure_drops.sum(0) + fast.exit_pressure_drop, drive, rtol=1e-8)

@@ -96,6 +96,12 @@ GRAVITY = 9.80665
 _PRIES_REFERENCE_DIAMETER = 1.9779e-3
 
 _TOL = 1e-11          # convergence on ln(Q)
+#: From this many scenarios on, a line whose geometry and fluid are shared by every scenario
+#: (only the drive varies) is solved on its tabulated characteristic (see
+#: ``Line._solve_flow_on_curve``); fewer scenarios, or per-scenario parts or fluids, take
+#: the Newton path.
+_CURVE_MIN_SCENARIOS = 256
+_CURVE_TOL = 1e-9     # largest interpolation error in ln(Q) accepted on the characteristic
 _MAX_ITER = 60
 
 
@@ -308,9 +314,13 @@ class Line:
         )
 
     # ------------------------------------------------------------------ physics
+    @staticmethod
+    def _newtonian_path(layout, fluid):
+        return fluid.is_newtonian or layout.diameter.shape[0] == 0
+
     def _apparent_viscosity(self, layout, fluid, log_q, state):
         """Apparent viscosity of each lumen at ln(Q) from the Rabinowitsch state (Taylor step)."""
-        if fluid.is_newtonian:
+        if state is None:
             mu = fluid.rheology.viscosity() * layout.viscosity_factor
             return mu, 0.0, None
         radius = layout.diameter / 2.0
@@ -337,14 +347,30 @@ class Line:
         quad = layout.measured_b * q2
         dp_exit = layout.exit_coefficient * q2
         total = (dp_lumen.sum(axis=0) + dp_k.sum(axis=0) + (lin + quad).sum(axis=0) + dp_exit)
-        slope = ((dp_f * slope_f + 2.0 * dp_m).sum(axis=0) + 2.0 * dp_k.sum(axis=0)
+        lumen_slope = dp_f * slope_f + 2.0 * dp_m
+        slope = (lumen_slope.sum(axis=0) + 2.0 * dp_k.sum(axis=0)
                  + (lin + 2.0 * quad).sum(axis=0) + 2.0 * dp_exit)
-        return total, slope, (dp_lumen, dp_k, lin + quad, dp_exit, re, u)
+        return total, slope, (dp_lumen, dp_k, lin + quad, dp_exit, re, u, lumen_slope)
 
     def _guess(self, layout, fluid, drive):
-        """Flow from the laminar-plus-kinetic closed form dp = A Q + B Q^2 (quadratic in Q)."""
-        d, length = layout.diameter, layout.length
+        """Flow from the laminar-plus-kinetic closed form dp = A Q + B Q^2 (quadratic in Q).
+
+        For a non-Newtonian fluid the viscosity in A is refined by three cheap fixed-point
+        passes at each lumen's Newtonian wall shear rate 4Q/(pi R^3).
+        """
         mu = fluid.rheology.infinite_shear_viscosity * layout.viscosity_factor
+        q = self._quadratic_guess(layout, mu, drive)
+        if not self._newtonian_path(layout, fluid):
+            radius = layout.diameter / 2.0
+            for _ in range(3):
+                rate = 4.0 * q / (np.pi * radius**3)
+                mu = fluid.rheology.viscosity(rate) * layout.viscosity_factor
+                q = self._quadratic_guess(layout, mu, drive)
+        return q
+
+    @staticmethod
+    def _quadratic_guess(layout, mu, drive):
+        d, length = layout.diameter, layout.length
         a = (128.0 * mu * length / (np.pi * d**4)).sum(axis=0) + layout.measured_a.sum(axis=0)
         area = np.pi * d**2 / 4.0
         hagenbach = np.where(layout.developing, 1.25, 0.0)
@@ -379,7 +405,7 @@ class Line:
         return _lumen.scalar_or_array(total - drive)
 
     def _exact_losses(self, layout, fluid, q):
-        if fluid.is_newtonian:
+        if self._newtonian_path(layout, fluid):
             mu, dlog_mu, _ = self._apparent_viscosity(layout, fluid, np.log(q), None)
         else:
             radius = layout.diameter / 2.0
@@ -387,6 +413,7 @@ class Line:
                 fluid.rheology, q * np.ones_like(radius), radius)
             mu = layout.viscosity_factor * tau_i * np.pi * radius**3 / (4.0 * q_i)
             dlog_mu = dlog_tau / dlog_q - 1.0
+        self._last_dlog_mu = dlog_mu
         return self._losses(layout, q, mu, dlog_mu) + (mu,)
 
     @staticmethod
@@ -437,6 +464,12 @@ class Line:
         computed together with the residual and a bracket kept from the residual's signs;
         for a non-Newtonian fluid each lumen's wall shear rate is iterated jointly with the
         flow.  A drive at or below the back pressure gives zero flow (no backflow model).
+
+        Many scenarios (256 or more) through one line with one fluid, where only the drive
+        or the flow varies, share a single characteristic losses(Q): it is computed exactly
+        on a log grid of flows and inverted by cubic Hermite interpolation with the exact
+        slopes, its error checked at the grid midpoints (below 1e-9 in ln Q, else refined,
+        else the Newton path).  ``result.iterations`` is 0 on that path.
         """
         if flow is not None:
             if source_pressure is not None:
@@ -454,6 +487,23 @@ class Line:
         gravity = fluid.density * GRAVITY * check_finite("head", head)
         pb = check_finite("back_pressure", back_pressure)
         shape = np.broadcast_shapes(q_in.shape, np.shape(gravity), pb.shape)
+        positive = q_in[q_in > 0]
+        if q_in.size >= _CURVE_MIN_SCENARIOS and positive.size:
+            shared = self._layout(fluid, (), pries)
+            table = None
+            if shared.shape == ():
+                table = self._tabulate(fluid, float(positive.min()) / 1.01,
+                                       float(positive.max()) * 1.01, pries)
+            if table is not None:
+                layout = self._layout(fluid, shape, pries)
+                q = q_in * np.ones(shape)
+                moving = q > 0
+                y = np.log(np.where(moving, q, float(positive.min())))
+                pieces, mu, total = self._parts_on_curve(table, layout, fluid, y)
+                net = np.where(moving, total, 0.0)
+                return self._result(layout, fluid, q, pieces, mu, moving, net, net + pb - gravity,
+                                    pressure_limit, head, pb, iterations=0,
+                                    converged=np.ones(shape, bool))
         layout = self._layout(fluid, shape, pries)
         q = q_in * np.ones(layout.shape)
         q_safe = np.maximum(q, 1e-300)
@@ -466,6 +516,18 @@ class Line:
 
     def _solve_flow(self, fluid, head, source_pressure, back_pressure, pressure_limit, pries):
         drive = self._drive(fluid, head, source_pressure, back_pressure)
+        if np.size(drive) >= _CURVE_MIN_SCENARIOS:
+            shared = self._layout(fluid, (), pries)
+            if shared.shape == ():
+                solved = self._solve_flow_on_curve(shared, fluid, np.asarray(drive), pries)
+                if solved is not None:
+                    q_out, pieces, mu, moving, total, layout = solved
+                    gravity = fluid.density * GRAVITY * check_finite("head", head)
+                    pb = check_finite("back_pressure", back_pressure)
+                    net = np.where(moving, total, 0.0)
+                    return self._result(layout, fluid, q_out, pieces, mu, moving, net,
+                                        net + pb - gravity, pressure_limit, head, pb, 0,
+                                        np.ones(layout.shape, bool))
         layout = self._layout(fluid, np.shape(drive), pries)
         drive = drive * np.ones(layout.shape)
         moving = drive > 0
@@ -475,9 +537,19 @@ class Line:
         lo = np.full(layout.shape, -np.inf)
         hi = np.full(layout.shape, np.inf)
         state = None
-        if not fluid.is_newtonian:
+        if not self._newtonian_path(layout, fluid):
             radius = layout.diameter / 2.0
             state = np.log(4.0 / (np.pi * radius**3)) + x
+            # a yield-stress fluid needs the yield pressure 2 L tau_y / R in every lumen to move
+            tau_y = getattr(fluid.rheology, "yield_stress", None)
+            if tau_y is not None:
+                yield_drop = (2.0 * layout.length * tau_y * layout.viscosity_factor
+                              / radius).sum(axis=0)
+                moving = drive > yield_drop * (1.0 + 1e-9)
+                drive_pos = np.where(moving, drive, 1.0)
+                log_drive = np.log(drive_pos)
+                x = np.where(moving, x, 0.0)
+                state = np.log(4.0 / (np.pi * radius**3)) + x
         converged = np.zeros(layout.shape, bool)
         for iteration in range(1, _MAX_ITER + 1):  # noqa: B007 (read after the loop)
             mu, dlog_mu, inner = self._apparent_viscosity(layout, fluid, x, state)
@@ -517,9 +589,102 @@ class Line:
         return self._result(layout, fluid, q_out, pieces, mu, moving, net, net + pb - gravity,
                             pressure_limit, head, pb, iteration, converged | ~moving)
 
+    def _characteristic(self, fluid, q_grid, pries):
+        """The line's exact loss curve on a grid of flows (one small vectorized pass)."""
+        layout = self._layout(fluid, q_grid.shape, pries)
+        total, slope, pieces, mu = self._exact_losses(layout, fluid, q_grid)
+        return total, slope, pieces, mu, self._last_dlog_mu
+
+    def _solve_flow_on_curve(self, shared, fluid, drive, pries):
+        """Flow for many drives through one line whose geometry and fluid are shared.
+
+        Every scenario then lies on the same characteristic, losses(Q).  It is computed
+        exactly on a log-spaced grid of flows and inverted by cubic Hermite interpolation
+        in (ln losses, ln Q) with the exact slopes; each part's drop and apparent viscosity
+        are interpolated the same way.  The interpolation error is checked at the grid
+        midpoints against exact evaluations (below 1e-9 in ln Q, else the grid is refined
+        or the Newton path is used).  Returns None to fall back to the Newton path.
+        """
+        tau_y = getattr(fluid.rheology, "yield_stress", None)
+        threshold = 0.0
+        if tau_y is not None and shared.diameter.shape[0]:
+            threshold = float(np.sum(2.0 * shared.length * tau_y * shared.viscosity_factor
+                                     / (shared.diameter / 2.0))) * (1.0 + 1e-9)
+        moving = drive > threshold
+        if not np.any(moving):
+            return None
+        d_lo, d_hi = float(np.min(drive[moving])), float(np.max(drive[moving]))
+        q_lo = float(self._guess(shared, fluid, np.asarray(d_lo))) / 4.0
+        q_hi = float(self._guess(shared, fluid, np.asarray(d_hi))) * 4.0
+        for _ in range(12):      # widen until the curve spans every drive
+            ends = self._characteristic(fluid, np.array([q_lo, q_hi]), pries)[0]
+            if ends[0] < d_lo and ends[1] > d_hi:
+                break
+            q_lo = q_lo / 8.0 if ends[0] >= d_lo else q_lo
+            q_hi = q_hi * 8.0 if ends[1] <= d_hi else q_hi
+        else:
+            return None
+        table = self._tabulate(fluid, q_lo, q_hi, pries)
+        if table is None:
+            return None
+        log_q, log_t, dydx = table[0], table[1], table[2]
+        y = _hermite(log_t, log_q, dydx, np.log(np.where(moving, drive, d_lo)))
+        layout = self._layout(fluid, drive.shape, pries)
+        pieces_out, mu_out, total_out = self._parts_on_curve(table, layout, fluid, y)
+        return np.where(moving, np.exp(y), 0.0), pieces_out, mu_out, moving, total_out, layout
+
+    def _tabulate(self, fluid, q_lo, q_hi, pries):
+        """The characteristic on a log grid from q_lo to q_hi, checked at the midpoints."""
+        span = np.log(q_hi / q_lo)
+        n_grid = int(np.clip(np.ceil(span / 0.004), 64, 20000)) + 1
+        for _ in range(4):
+            log_q = np.linspace(np.log(q_lo), np.log(q_hi), n_grid)
+            total, slope, pieces, mu, dlog_mu = self._characteristic(fluid, np.exp(log_q), pries)
+            log_t = np.log(total)
+            dydx = total / slope                       # d ln Q / d ln losses
+            log_mid = 0.5 * (log_q[1:] + log_q[:-1])
+            log_mid_total = np.log(self._characteristic(fluid, np.exp(log_mid), pries)[0])
+            if np.all(np.diff(log_t) > 0):
+                err_q = np.abs(_hermite(log_t, log_q, dydx, log_mid_total) - log_mid)
+                forward = _hermite_apply(_hermite_basis(log_q, log_mid, uniform=True),
+                                         log_t, 1.0 / dydx)
+                err_t = np.abs(forward - log_mid_total)
+                if max(np.max(err_q), np.max(err_t)) < _CURVE_TOL:
+                    return log_q, log_t, dydx, pieces, mu, dlog_mu
+            n_grid = 2 * n_grid - 1
+        return None
+
+    def _parts_on_curve(self, table, layout, fluid, y):
+        """Per-part drops and apparent viscosities at ln(Q) = y from the tabulated curve."""
+        log_q, _, _, pieces, mu, dlog_mu = table
+        q = np.exp(y)
+        dp_lumen_grid, lumen_slope_grid = pieces[0], pieces[6]
+        n_l = dp_lumen_grid.shape[0]
+        dp_lumen = np.empty((n_l, *np.shape(y)))
+        mu_out = np.empty((n_l, *np.shape(y)))
+        mu_grid = mu * np.ones_like(dp_lumen_grid)
+        dlog_mu_grid = dlog_mu * np.ones_like(dp_lumen_grid)
+        basis = _hermite_basis(log_q, y, uniform=True)
+        for j in range(n_l):
+            dp_lumen[j] = np.exp(_hermite_apply(basis, np.log(dp_lumen_grid[j]),
+                                                lumen_slope_grid[j] / dp_lumen_grid[j]))
+            if self._newtonian_path(layout, fluid):
+                mu_out[j] = mu_grid[j, 0]
+            else:
+                mu_out[j] = np.exp(_hermite_apply(basis, np.log(mu_grid[j]), dlog_mu_grid[j]))
+        area = np.pi * layout.diameter**2 / 4.0
+        u = q / area
+        re = layout.density * u * layout.diameter / mu_out
+        q2 = q * q
+        dp_k = layout.k_coefficient * q2
+        dp_meas = layout.measured_a * q + layout.measured_b * q2
+        dp_exit = layout.exit_coefficient * q2
+        total_out = (dp_lumen.sum(axis=0) + dp_k.sum(axis=0) + dp_meas.sum(axis=0) + dp_exit)
+        return (dp_lumen, dp_k, dp_meas, dp_exit, re, u), mu_out, total_out
+
     def _result(self, layout, fluid, q, pieces, mu, moving, net, required, pressure_limit, head,
                 back_pressure, iterations, converged):
-        dp_lumen, dp_k, dp_meas, dp_exit, re, u = pieces
+        dp_lumen, dp_k, dp_meas, dp_exit, re, u = pieces[:6]
         n = len(self.parts)
         shape = layout.shape
         drops = np.zeros((n, *shape))
@@ -591,7 +756,8 @@ class LineResult:
         [-], [m/s].
     exceeds_pressure_limit : bool or ndarray
     iterations : int
-        Newton iterations used (1 for a prescribed flow).
+        Newton iterations used (1 for a prescribed flow; 0 when the scenarios were solved on
+        the line's shared, tabulated characteristic).
     converged : bool
     """
 
@@ -829,8 +995,8 @@ def _flags(result):
         out.append("Pries 1992 in-vitro diameter correction applied to the apparent viscosity")
     stopped = ~moving
     if np.any(stopped):
-        out.append(f"no forward flow: the drive does not exceed the back pressure"
-                   f"{_count(stopped, total)}")
+        out.append(f"no forward flow: the drive does not exceed the back pressure (or a "
+                   f"yield-stress fluid's yield pressure){_count(stopped, total)}")
     if np.any(result.exceeds_pressure_limit):
         out.append(f"pressure limit exceeded{_count(result.exceeds_pressure_limit, total)}")
     if result.fluid.is_blood:
@@ -845,3 +1011,50 @@ def _flags(result):
         out.append("solver did not reach full convergence in some scenarios (result is the "
                    "last bracketed iterate)")
     return out
+
+
+def _locate(x_grid, x):
+    """Index k with x_grid[k] <= x < x_grid[k+1] (clipped), for an increasing grid.
+
+    Buckets no wider than the smallest grid step hold at most one grid point, so a table
+    lookup plus one comparison replaces a binary search per value.
+    """
+    step = float(np.min(np.diff(x_grid)))
+    span = float(x_grid[-1] - x_grid[0])
+    n_buckets = int(np.ceil(span / step)) + 1 if step > 0 else 0
+    if not 0 < n_buckets <= 16 * x_grid.size:
+        return np.clip(np.searchsorted(x_grid, x, side="right") - 1, 0, x_grid.size - 2)
+    width = span / (n_buckets - 1) if n_buckets > 1 else 1.0
+    starts = x_grid[0] + width * np.arange(n_buckets)
+    table = np.clip(np.searchsorted(x_grid, starts, side="right") - 1, 0, x_grid.size - 2)
+    b = np.clip(((x - x_grid[0]) / width).astype(np.intp), 0, n_buckets - 1)
+    k = table[b]
+    k = k + (x >= x_grid[np.minimum(k + 1, x_grid.size - 1)])
+    return np.clip(k, 0, x_grid.size - 2)
+
+
+def _hermite_basis(x_grid, x, uniform=False):
+    """Interval index and the four cubic Hermite basis values (times the interval width)."""
+    if uniform:
+        h0 = x_grid[1] - x_grid[0]
+        k = np.clip(((x - x_grid[0]) / h0).astype(np.intp), 0, x_grid.size - 2)
+    else:
+        k = _locate(x_grid, x)
+    x0 = x_grid[k]
+    h = x_grid[k + 1] - x0
+    s = (x - x0) / h
+    s2 = s * s
+    s3 = s2 * s
+    b01 = 3.0 * s2 - 2.0 * s3
+    return k, (1.0 - b01, (s3 - 2.0 * s2 + s) * h, b01, (s3 - s2) * h)
+
+
+def _hermite_apply(basis, y_grid, slope_grid):
+    k, (b00, b10, b01, b11) = basis
+    return (b00 * y_grid[k] + b10 * slope_grid[k] + b01 * y_grid[k + 1]
+            + b11 * slope_grid[k + 1])
+
+
+def _hermite(x_grid, y_grid, slope_grid, x):
+    """Cubic Hermite interpolation of y(x) on an increasing grid with slopes dy/dx."""
+    return _hermite_apply(_hermite_basis(x_grid, x), y_grid, slope_grid)
