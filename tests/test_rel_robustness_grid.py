@@ -1,0 +1,260 @@
+"""Reliability: the robustness grid.
+
+Every fluid of :func:`rheoline.fluid_names` (and, for blood, every blood rheology model; for
+a bench analog, every model of :data:`rheoline.RHEOLOGY_MODELS`) is solved over the grid
+
+* inner diameter 0.1 mm to 10 mm, length 1 mm to 10 m,
+* gravity head 0 to 3 m, source pressure 0 to 2,000 mmHg,
+* temperature 0 to 45 degC, hematocrit 0 to 0.8 (blood fluids),
+
+each fluid in one vectorized call (no Python loop per scenario).  A grid point fails when
+the flow is not finite or negative, or when the line's own residual (losses at the returned
+flow minus the drive, :meth:`rheoline.Line.pressure_residual`) exceeds 1e-6 of the drive;
+the failures are counted (target zero) and the first few reported.  Results outside a
+correlation's validated range must carry a RangeWarning (fluid properties) or a flag
+(regime, developing flow); the flag counts are checked against the Reynolds numbers.
+"""
+
+from __future__ import annotations
+
+import re
+import warnings
+
+import numpy as np
+import pytest
+from rel_record import bump, module_recorder
+
+import rheoline
+from rheoline.errors import RangeWarning
+from rheoline.model.blood import BLOOD_RHEOLOGY_MODELS
+from rheoline.model.fluid_base import Fluid
+from rheoline.model.line import GRAVITY, Line
+from rheoline.model.lumen import LAMINAR_LIMIT_REYNOLDS, TURBULENT_LIMIT_REYNOLDS
+from rheoline.model.parts import Catheter, Fitting, Tube
+from rheoline.model.rheology import RHEOLOGY_MODELS
+
+_record = module_recorder("grid", "grid:")
+
+MMHG = 133.322387415  # NIST SP 811
+REL_RESIDUAL = 1e-6
+
+DIAMETERS = np.geomspace(1e-4, 1e-2, 7)          # m
+LENGTHS = np.geomspace(1e-3, 10.0, 7)            # m
+HEADS = np.array([0.0, 0.5, 1.5, 3.0])           # m
+SOURCE_PRESSURES = np.array([0.0, 50.0, 300.0, 2000.0]) * MMHG
+TEMPERATURES = np.array([0.0, 15.0, 37.0, 45.0])  # degC
+HEMATOCRITS = np.array([0.0, 0.3, 0.55, 0.8])
+
+#: Temperature span [degC] each library fluid's property models are validated over, as the
+#: fluid modules document it; a temperature outside it must warn.
+VALIDATED_TEMPERATURE_C = {
+    "water": (0.0, 100.0),          # IAPWS 2008 / Kell 1975 at 1 atm
+    "saline-0.9": (0.0, 100.0),     # Laliberte 2007
+    "lactated-ringers": (0.0, 100.0),
+    "dextrose-5": (0.0, 100.0),
+    "plasma": (0.0, 42.0),
+    "whole-blood": (0.0, 42.0),
+    "packed-red-cells": (0.0, 42.0),
+    "glycerol-water": (15.0, 30.0),  # Volk & Kaehler 2018 density
+}
+
+BLOOD = ("whole-blood", "packed-red-cells")
+
+#: Bench analogs for every generic rheology model (invented demo parameters, in the span of
+#: blood-mimicking fluids).
+ANALOG_PARAMETERS = {
+    "newtonian": {"mu": 3.5e-3},
+    "power-law": {"consistency": 0.0127, "flow_index": 0.78},
+    "carreau": {"mu_zero": 0.056, "mu_inf": 0.00345, "relaxation_time": 3.313,
+                "flow_index": 0.3568},
+    "carreau-yasuda": {"mu_zero": 0.056, "mu_inf": 0.00345, "relaxation_time": 1.902,
+                       "flow_index": 0.22, "a": 1.25},
+    "casson": {"yield_stress": 0.005, "casson_viscosity": 3.5e-3},
+}
+
+
+def _axes(extra):
+    """Grid axes as broadcastable arrays: d, L, head, source pressure, then ``extra``."""
+    base = [DIAMETERS, LENGTHS, HEADS, SOURCE_PRESSURES, *extra]
+    n = len(base)
+    return [a.reshape([-1 if i == j else 1 for j in range(n)]) for i, a in enumerate(base)]
+
+
+def _build_fluid(name, model, temperature, hematocrit):
+    """The library fluid on the grid, with the RangeWarnings it raised."""
+    options = {}
+    if name in BLOOD:
+        options = {"hematocrit": hematocrit, "model": model}
+    elif name == "glycerol-water":
+        options = {"mass_fraction": 0.4}
+    with warnings.catch_warnings(record=True) as caught:
+        warnings.simplefilter("always", RangeWarning)
+        fl = rheoline.fluid(name, temperature_c=temperature, **options)
+    return fl, [w for w in caught if issubclass(w.category, RangeWarning)]
+
+
+def _failures(line, fl, d_shape, head, ps, result):
+    """Boolean array of failed grid points and the relative residual."""
+    drive = ps + fl.density * GRAVITY * head
+    drive = np.broadcast_to(drive, np.shape(result.flow))
+    q = np.asarray(result.flow, dtype=float)
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", RangeWarning)
+        residual = np.asarray(line.pressure_residual(fl, q, head=head, source_pressure=ps))
+    moving = drive > 0
+    rel = np.where(moving, np.abs(residual) / np.where(moving, drive, 1.0), 0.0)
+    # a yield-stress fluid stays put while the wall stress is below its yield stress:
+    # zero flow is then the answer (the yield pressure of a tube is 4 L tau_y / D)
+    tau_y = getattr(fl.rheology, "yield_stress", 0.0)
+    yield_pressure = 4.0 * np.asarray(line.parts[0].length) * tau_y / np.asarray(
+        line.parts[0].inner_diameter) if len(line.parts) == 1 else 0.0
+    held = (q == 0) & (drive <= yield_pressure * (1 + 1e-9))
+    rel = np.where(held, 0.0, rel)
+    bad = ~np.isfinite(q) | (q < 0) | ~np.isfinite(rel) | (rel > REL_RESIDUAL)
+    bad |= ~moving & (q != 0)
+    return bad, rel
+
+
+def _describe(bad, axes, rel, q, limit=3):
+    out = []
+    for idx in list(zip(*np.nonzero(bad), strict=True))[:limit]:
+        values = [float(np.ravel(a)[i]) for a, i in zip(axes, idx, strict=False)]
+        out.append(f"point {values}: flow {q[idx]!r}, relative residual {rel[idx]:.3g}")
+    return "; ".join(out)
+
+
+def _check_regime_flags(result, part_index=0):
+    """The regime flags count exactly the scenarios whose Reynolds number needs them."""
+    re_ = np.nan_to_num(result.part_reynolds[part_index])
+    moving = np.asarray(result.flow) > 0
+    turbulent = int(np.count_nonzero(moving & (re_ >= TURBULENT_LIMIT_REYNOLDS)))
+    transitional = int(np.count_nonzero(moving & (re_ >= LAMINAR_LIMIT_REYNOLDS)
+                                        & (re_ < TURBULENT_LIMIT_REYNOLDS)))
+    text = " | ".join(result.flags)
+    for word, expected in (("turbulent flow", turbulent), ("transitional flow", transitional)):
+        m = re.search(word + r"[^|]*? in (\d+) of (\d+) scenarios", text)
+        if expected == 0:
+            assert m is None, f"flag '{word}' without any such scenario: {text}"
+        else:
+            assert m is not None, f"{expected} {word} scenarios carry no flag: {text}"
+            assert int(m.group(1)) == expected
+    return turbulent + transitional
+
+
+CASES = ([(name, None) for name in rheoline.fluid_names() if name not in BLOOD]
+         + [(name, model) for name in BLOOD for model in sorted(BLOOD_RHEOLOGY_MODELS)])
+
+
+@pytest.mark.parametrize(("name", "model"), CASES,
+                         ids=[f"{n}-{m}" if m else n for n, m in CASES])
+def test_library_fluid_grid_converges_everywhere(name, model):
+    blood = name in BLOOD
+    extra = [TEMPERATURES, HEMATOCRITS] if blood else [TEMPERATURES]
+    axes = _axes(extra)
+    d, length, head, ps, temperature = axes[:5]
+    hematocrit = axes[5] if blood else None
+    fl, range_warnings = _build_fluid(name, model, temperature, hematocrit)
+    low, high = VALIDATED_TEMPERATURE_C.get(name, (-np.inf, np.inf))
+    if TEMPERATURES.min() < low or TEMPERATURES.max() > high:
+        assert any("outside the validated range" in str(w.message) for w in range_warnings), (
+            f"{name}: temperatures outside {low}..{high} degC gave no RangeWarning")
+    line = Line([Tube(inner_diameter=d, length=length)])
+    result = line.solve(fl, head=head, source_pressure=ps)
+    bad, rel = _failures(line, fl, d.shape, head, ps, result)
+    q = np.asarray(result.flow)
+    bump("grid:points_solved", q.size)
+    bump("grid:failures", int(np.count_nonzero(bad)))
+    bump("grid:cases", 1)
+    bump("grid:flagged_regime_points", _check_regime_flags(result))
+    assert not bad.any(), (f"{name} ({model}): {np.count_nonzero(bad)} of {bad.size} grid "
+                           f"points failed: {_describe(bad, axes, rel, q)}")
+
+
+@pytest.mark.parametrize("model", sorted(RHEOLOGY_MODELS))
+def test_every_rheology_model_converges_on_the_grid(model):
+    rheology = RHEOLOGY_MODELS[model](**ANALOG_PARAMETERS[model])
+    fl = Fluid(name=f"analog ({model})", temperature_c=22.0, density=1050.0, rheology=rheology)
+    axes = _axes([])
+    d, length, head, ps = axes
+    line = Line([Tube(inner_diameter=d, length=length)])
+    result = line.solve(fl, head=head, source_pressure=ps)
+    bad, rel = _failures(line, fl, d.shape, head, ps, result)
+    q = np.asarray(result.flow)
+    bump("grid:points_solved", q.size)
+    bump("grid:failures", int(np.count_nonzero(bad)))
+    bump("grid:cases", 1)
+    assert not bad.any(), (f"{model}: {np.count_nonzero(bad)} of {bad.size} grid points "
+                           f"failed: {_describe(bad, axes, rel, q)}")
+
+
+@pytest.mark.parametrize("name", ["saline-0.9", "whole-blood"])
+def test_composite_line_grid_and_round_trip(name):
+    # a set, a stopcock-like K fitting and a catheter of varying bore: flow-solve, then
+    # pressure-solve at the flows found, must give back the source pressures (0.1 %)
+    extra = [TEMPERATURES[:3]]
+    axes = _axes(extra)
+    d, length, head, ps, temperature = axes
+    fl, _ = _build_fluid(name, "carreau", temperature, 0.45)
+    line = Line([Tube(inner_diameter=3e-3, length=1.8), Fitting(k=1.5),
+                 Tube(inner_diameter=d, length=np.minimum(length, 1.5)), Catheter(gauge=18)])
+    result = line.solve(fl, head=head, source_pressure=ps)
+    bad, rel = _failures(line, fl, d.shape, head, ps, result)
+    q = np.asarray(result.flow)
+    bump("grid:points_solved", q.size)
+    bump("grid:failures", int(np.count_nonzero(bad)))
+    bump("grid:cases", 1)
+    assert not bad.any(), f"{np.count_nonzero(bad)} failed: {_describe(bad, axes, rel, q)}"
+    moving = q > 0
+    back = line.solve(fl, flow=q, head=head)
+    required = np.broadcast_to(back.required_pressure, q.shape)
+    target = np.broadcast_to(ps, q.shape)
+    scale = np.broadcast_to(ps + fl.density * GRAVITY * head, q.shape)
+    error = np.abs(required - target)[moving] / scale[moving]
+    bump("grid:round_trips", int(np.count_nonzero(moving)))
+    assert error.max() < 1e-3
+
+
+@pytest.mark.parametrize("name", ["water", "packed-red-cells"])
+def test_drive_only_sweep_matches_point_solves(name):
+    # Many drives on one line (the engine may tabulate the line's characteristic for this):
+    # every point must still satisfy the line's own residual.
+    heads = np.linspace(0.0, 3.0, 40)[:, None]
+    ps = np.linspace(0.0, 2000.0, 41)[None, :] * MMHG
+    fl, _ = _build_fluid(name, "carreau", 20.0, 0.65)
+    line = Line([Tube(inner_diameter=3e-3, length=1.8), Catheter(gauge=16)])
+    result = line.solve(fl, head=heads, source_pressure=ps)
+    bad, rel = _failures(line, fl, (), heads, ps, result)
+    q = np.asarray(result.flow)
+    bump("grid:points_solved", q.size)
+    bump("grid:failures", int(np.count_nonzero(bad)))
+    bump("grid:cases", 1)
+    assert not bad.any(), f"{np.count_nonzero(bad)} failed: {_describe(bad, [heads, ps], rel, q)}"
+    picks = [(0, 5), (17, 0), (39, 40), (25, 33)]
+    for i, j in picks:
+        one = line.solve(fl, head=float(heads[i, 0]), source_pressure=float(ps[0, j]))
+        assert q[i, j] == pytest.approx(one.flow, rel=1e-6, abs=1e-15)
+
+
+def test_out_of_range_hematocrit_and_diameter_warn():
+    # Pries 1992 was fitted to 3.3-1978 um tubes; blood models above H 0.8 extrapolate.
+    with pytest.warns(RangeWarning, match="outside the validated range"):
+        rheoline.pries_1992_relative_viscosity(5e-3, 0.45)
+    with pytest.warns(RangeWarning, match="hematocrit"):
+        rheoline.fluid("whole-blood", hematocrit=0.9)
+    line = Line([Tube(inner_diameter=DIAMETERS, length=1.0)])
+    blood = rheoline.fluid("whole-blood", hematocrit=0.45)
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", RangeWarning)
+        result = line.solve(blood, source_pressure=300 * MMHG, pries_correction=True)
+    assert any("Pries 1992" in f for f in result.flags)
+
+
+def test_residual_at_zero_flow_is_finite_for_a_yield_stress_fluid():
+    # At Q = 0 a Casson fluid's losses equal the yield pressure 4 L tau_y / D (Casson 1959);
+    # the residual is then that minus the drive, a finite number.
+    blood = rheoline.fluid("whole-blood", hematocrit=0.8, model="casson")
+    line = Line([Tube(inner_diameter=1e-4, length=10.0)])
+    yield_pressure = 4.0 * 10.0 * blood.rheology.yield_stress / 1e-4
+    residual = line.pressure_residual(blood, 0.0, source_pressure=50 * MMHG)
+    assert np.isfinite(residual)
+    assert residual == pytest.approx(yield_pressure - 50 * MMHG, rel=1e-3)
