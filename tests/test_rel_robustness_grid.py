@@ -93,7 +93,7 @@ def _build_fluid(name, model, temperature, hematocrit):
     return fl, [w for w in caught if issubclass(w.category, RangeWarning)]
 
 
-def _failures(line, fl, d_shape, head, ps, result):
+def _failures(line, fl, head, ps, result):
     """Boolean array of failed grid points and the relative residual."""
     drive = ps + fl.density * GRAVITY * head
     drive = np.broadcast_to(drive, np.shape(result.flow))
@@ -113,6 +113,21 @@ def _failures(line, fl, d_shape, head, ps, result):
     bad = ~np.isfinite(q) | (q < 0) | ~np.isfinite(rel) | (rel > REL_RESIDUAL)
     bad |= ~moving & (q != 0)
     return bad, rel
+
+
+def _solve_and_count(line, fl, head, ps, axes, label, before_check=None):
+    """Solve the grid in one call, count points and failures, fail with the first few."""
+    result = line.solve(fl, head=head, source_pressure=ps)
+    if before_check is not None:
+        before_check(result)
+    bad, rel = _failures(line, fl, head, ps, result)
+    q = np.asarray(result.flow)
+    bump("grid:points_solved", q.size)
+    bump("grid:failures", int(np.count_nonzero(bad)))
+    bump("grid:cases", 1)
+    assert not bad.any(), (f"{label}: {np.count_nonzero(bad)} of {bad.size} grid points "
+                           f"failed: {_describe(bad, axes, rel, q)}")
+    return result, q
 
 
 def _describe(bad, axes, rel, q, limit=3):
@@ -159,15 +174,9 @@ def test_library_fluid_grid_converges_everywhere(name, model):
         assert any("outside the validated range" in str(w.message) for w in range_warnings), (
             f"{name}: temperatures outside {low}..{high} degC gave no RangeWarning")
     line = Line([Tube(inner_diameter=d, length=length)])
-    result = line.solve(fl, head=head, source_pressure=ps)
-    bad, rel = _failures(line, fl, d.shape, head, ps, result)
-    q = np.asarray(result.flow)
-    bump("grid:points_solved", q.size)
-    bump("grid:failures", int(np.count_nonzero(bad)))
-    bump("grid:cases", 1)
-    bump("grid:flagged_regime_points", _check_regime_flags(result))
-    assert not bad.any(), (f"{name} ({model}): {np.count_nonzero(bad)} of {bad.size} grid "
-                           f"points failed: {_describe(bad, axes, rel, q)}")
+    # regime flags are checked first, so a convergence failure does not hide them
+    _solve_and_count(line, fl, head, ps, axes, f"{name} ({model})",
+                     lambda r: bump("grid:flagged_regime_points", _check_regime_flags(r)))
 
 
 @pytest.mark.parametrize("model", sorted(RHEOLOGY_MODELS))
@@ -177,14 +186,7 @@ def test_every_rheology_model_converges_on_the_grid(model):
     axes = _axes([])
     d, length, head, ps = axes
     line = Line([Tube(inner_diameter=d, length=length)])
-    result = line.solve(fl, head=head, source_pressure=ps)
-    bad, rel = _failures(line, fl, d.shape, head, ps, result)
-    q = np.asarray(result.flow)
-    bump("grid:points_solved", q.size)
-    bump("grid:failures", int(np.count_nonzero(bad)))
-    bump("grid:cases", 1)
-    assert not bad.any(), (f"{model}: {np.count_nonzero(bad)} of {bad.size} grid points "
-                           f"failed: {_describe(bad, axes, rel, q)}")
+    _solve_and_count(line, fl, head, ps, axes, model)
 
 
 @pytest.mark.parametrize("name", ["saline-0.9", "whole-blood"])
@@ -197,13 +199,7 @@ def test_composite_line_grid_and_round_trip(name):
     fl, _ = _build_fluid(name, "carreau", temperature, 0.45)
     line = Line([Tube(inner_diameter=3e-3, length=1.8), Fitting(k=1.5),
                  Tube(inner_diameter=d, length=np.minimum(length, 1.5)), Catheter(gauge=18)])
-    result = line.solve(fl, head=head, source_pressure=ps)
-    bad, rel = _failures(line, fl, d.shape, head, ps, result)
-    q = np.asarray(result.flow)
-    bump("grid:points_solved", q.size)
-    bump("grid:failures", int(np.count_nonzero(bad)))
-    bump("grid:cases", 1)
-    assert not bad.any(), f"{np.count_nonzero(bad)} failed: {_describe(bad, axes, rel, q)}"
+    _, q = _solve_and_count(line, fl, head, ps, axes, f"{name} composite line")
     moving = q > 0
     back = line.solve(fl, flow=q, head=head)
     required = np.broadcast_to(back.required_pressure, q.shape)
@@ -222,13 +218,7 @@ def test_drive_only_sweep_matches_point_solves(name):
     ps = np.linspace(0.0, 2000.0, 41)[None, :] * MMHG
     fl, _ = _build_fluid(name, "carreau", 20.0, 0.65)
     line = Line([Tube(inner_diameter=3e-3, length=1.8), Catheter(gauge=16)])
-    result = line.solve(fl, head=heads, source_pressure=ps)
-    bad, rel = _failures(line, fl, (), heads, ps, result)
-    q = np.asarray(result.flow)
-    bump("grid:points_solved", q.size)
-    bump("grid:failures", int(np.count_nonzero(bad)))
-    bump("grid:cases", 1)
-    assert not bad.any(), f"{np.count_nonzero(bad)} failed: {_describe(bad, [heads, ps], rel, q)}"
+    _, q = _solve_and_count(line, fl, heads, ps, [heads, ps], f"{name} drive sweep")
     picks = [(0, 5), (17, 0), (39, 40), (25, 33)]
     for i, j in picks:
         one = line.solve(fl, head=float(heads[i, 0]), source_pressure=float(ps[0, j]))
