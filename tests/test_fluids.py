@@ -184,3 +184,9 @@ def test_user_fluid_input_errors():
         fluids.user_fluid_from_temperatures("x", [20.0, 30.0], [1e-3, -1.0], 1000.0)
     with pytest.raises(InputRangeError, match="density must be one value or one per temperature"):
         fluids.user_fluid_from_temperatures("x", [20.0, 30.0, 40.0], [1e-3, 0.8e-3, 0.7e-3], [1000.0, 990.0])
+
+
+def test_describe_names_values_with_units():
+    text = fluids.fluid("whole-blood", hematocrit=np.array([0.3, 0.5])).describe()
+    assert text.startswith("whole-blood at 37 degC; hematocrit 0.3..0.5; density 10")
+    assert "kg/m^3; carreau: mu_zero=" in text and "relaxation_time=3.313 s" in text

@@ -244,3 +244,9 @@ def test_glycerol_inverse_out_of_reach_names_limits():
 def test_glycerol_fraction_as_percent_suggests_fraction():
     with pytest.raises(InputRangeError, match=r"mass_fraction must be a fraction.*got 40; if that is wt %, pass 0\.4"):
         v.glycerol_water_viscosity(40.0, 20.0)
+
+
+def test_laliberte_warns_above_fitted_concentration():
+    # Laliberte 2009 compilation: NaCl coefficients fitted up to a mass fraction of about 0.26
+    with pytest.warns(RangeWarning, match=r"mass fraction of NaCl 0\.3\.\.0\.3 is outside the validated range 0\.\.0\.2645"):
+        v.laliberte_2007_viscosity({"NaCl": 0.3}, 20.0)

@@ -67,6 +67,24 @@ class Fluid:
             return self.rheology.infinite_shear_viscosity
         return self.rheology.viscosity(shear_rate)
 
+    def describe(self) -> str:
+        """One line: name, temperature, hematocrit, density and rheology with units.
+
+        Examples
+        --------
+        >>> newtonian_fluid("bench oil", viscosity=0.05, density=870.0).describe()
+        'bench oil at 20 degC; density 870 kg/m^3; newtonian: mu=0.05 Pa s'
+        """
+        parts = [f"{self.name} at {_span(self.temperature_c)} degC"]
+        if self.hematocrit is not None:
+            parts.append(f"hematocrit {_span(self.hematocrit)}")
+        parts.append(f"density {_span(self.density)} kg/m^3")
+        try:
+            parts.append(self.rheology.describe())
+        except (AttributeError, TypeError):  # a user's own rheology object
+            parts.append(getattr(self.rheology, "name", type(self.rheology).__name__))
+        return "; ".join(parts)
+
     @property
     def is_newtonian(self) -> bool:
         """True when the rheology model is Newtonian."""
@@ -76,6 +94,13 @@ class Fluid:
     def is_blood(self) -> bool:
         """True for blood and blood products (a hematocrit is set)."""
         return self.hematocrit is not None
+
+
+def _span(value) -> str:
+    arr = np.asarray(value, dtype=float)
+    if arr.ndim == 0 or np.min(arr) == np.max(arr):
+        return f"{float(arr.flat[0]):.4g}"
+    return f"{np.min(arr):.4g}..{np.max(arr):.4g}"
 
 
 def newtonian_fluid(name: str, viscosity, density, temperature_c=20.0, source: str = "user") -> Fluid:

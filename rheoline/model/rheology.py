@@ -106,7 +106,9 @@ class RheologyModel:
         parts = []
         for key, value in self.parameters.items():
             unit = PARAMETER_UNITS.get(key, "")
-            shown = f"{value:.4g}" if np.ndim(value) == 0 else f"array{np.shape(value)}"
+            arr = np.asarray(value, dtype=float)
+            lo, hi = float(np.min(arr)), float(np.max(arr))
+            shown = f"{lo:.4g}" if lo == hi else f"{lo:.4g}..{hi:.4g}"
             parts.append(f"{key}={shown}{' ' + unit if unit else ''}")
         return f"{self.name}: " + ", ".join(parts)
 

@@ -257,13 +257,16 @@ class LaliberteSolute:
     ``v1..v6`` are the viscosity coefficients of Laliberte 2007, ``c0..c4`` the
     apparent-density coefficients of Laliberte & Cooper 2004, as compiled in
     Laliberte 2009 (J. Chem. Eng. Data 54, 1725-1760, supporting tables).
-    ``molar_mass`` is in g/mol.
+    ``molar_mass`` is in g/mol; ``max_mass_fraction`` is the highest solute mass
+    fraction of the data the coefficients were fitted to (the lower of the
+    viscosity and density data ranges in the 2009 compilation).
     """
 
     name: str
     molar_mass: float
     v: tuple
     c: tuple
+    max_mass_fraction: float = 0.25
 
 
 #: Solute coefficients (Laliberte 2007 viscosity; Laliberte & Cooper 2004 density;
@@ -271,13 +274,13 @@ class LaliberteSolute:
 LALIBERTE_SOLUTES = {
     "NaCl": LaliberteSolute("sodium chloride", 58.44,
                             (16.221789, 1.322931, 1.48486, 0.007469, 30.780201, 2.058269),
-                            (-0.003241, 0.063635, 1.013714, 0.014595, 3317.348544)),
+                            (-0.003241, 0.063635, 1.013714, 0.014595, 3317.348544), 0.2645),
     "KCl": LaliberteSolute("potassium chloride", 74.55,
                            (6.48806, 1.317531, -0.777821, 0.092716, -1.300203, 2.081207),
-                           (-0.855929, 6.040736, 2.817874, 0.025392, 2681.617235)),
+                           (-0.855929, 6.040736, 2.817874, 0.025392, 2681.617235), 0.2643),
     "CaCl2": LaliberteSolute("calcium chloride", 110.98,
                              (32.01437, 0.788104, -1.141205, 0.0027, 776516.746907, 5.838881),
-                             (-9.728937, 14.700535, 4.190333, 0.03974, 2708.127789)),
+                             (-9.728937, 14.700535, 4.190333, 0.03974, 2708.127789), 0.5132),
 }
 
 #: 0.9 % w/v sodium chloride: 9 g of NaCl per litre of solution (common practice, no source).
@@ -304,6 +307,9 @@ def _check_mass_fractions(mass_fractions):
     total = sum(ws.values()) if ws else np.zeros(())
     if np.any(total >= 1.0):
         raise InputRangeError("solute mass fractions must add up to less than 1 (water is the rest)")
+    for k, w in ws.items():
+        warn_outside(f"mass fraction of {k}", w, 0.0, LALIBERTE_SOLUTES[k].max_mass_fraction,
+                     "the Laliberte coefficients (their fitted data)", stacklevel=4)
     return ws, 1.0 - total
 
 
@@ -406,6 +412,18 @@ def solution_mass_fractions(grams_per_litre, temperature_c=20.0):
     The solution's own density closes the conversion, ``w_i = c_i / rho``, solved
     by fixed-point iteration (it converges in a few steps for dilute solutions).
 
+    Parameters
+    ----------
+    grams_per_litre : dict
+        Solute formula -> concentration [g/L] (= kg/m^3), 0 to 500.
+    temperature_c : float or array_like
+        Temperature [degC] at which the solution was made up.
+
+    Returns
+    -------
+    dict
+        Solute formula -> mass fraction [-].
+
     Examples
     --------
     >>> round(float(solution_mass_fractions({"NaCl": 9.0})["NaCl"]), 5)
@@ -455,7 +473,23 @@ def saline_viscosity(temperature_c, concentration=9.0):
 
 
 def saline_density(temperature_c, concentration=9.0):
-    """Density [kg/m^3] of sodium chloride solution (0.9 % w/v), Laliberte & Cooper 2004.
+    """Density of sodium chloride solution (0.9 % w/v by default), Laliberte & Cooper 2004.
+
+    Parameters
+    ----------
+    temperature_c : float or array_like
+        Temperature [degC].
+    concentration : float or array_like
+        NaCl per volume of solution [g/L].
+
+    Returns
+    -------
+    float or ndarray
+        Density [kg/m^3].
+
+    References
+    ----------
+    Laliberte & Cooper, J. Chem. Eng. Data 49 (2004) 1141-1151.
 
     Examples
     --------
@@ -467,11 +501,25 @@ def saline_density(temperature_c, concentration=9.0):
 
 
 def lactated_ringers_viscosity(temperature_c):
-    """Viscosity [Pa s] of lactated Ringer's solution, Laliberte 2007 mixture rule.
+    """Viscosity of lactated Ringer's solution, Laliberte 2007 mixture rule.
 
-    Salts of :data:`LACTATED_RINGERS_G_PER_L` (sodium lactate as the NaCl of the
-    same sodium content, an assumption; its effect on viscosity is a fraction of a
-    percent).
+    Salts of :data:`LACTATED_RINGERS_G_PER_L` (recipe from memory; sodium lactate
+    as the NaCl of the same sodium content, an assumption whose effect on
+    viscosity is a fraction of a percent).
+
+    Parameters
+    ----------
+    temperature_c : float or array_like
+        Temperature [degC].
+
+    Returns
+    -------
+    float or ndarray
+        Dynamic viscosity [Pa s].
+
+    References
+    ----------
+    Laliberte, J. Chem. Eng. Data 52 (2007) 321-335.
 
     Examples
     --------
@@ -483,7 +531,17 @@ def lactated_ringers_viscosity(temperature_c):
 
 
 def lactated_ringers_density(temperature_c):
-    """Density [kg/m^3] of lactated Ringer's solution, Laliberte & Cooper 2004 mixture rule.
+    """Density of lactated Ringer's solution, Laliberte & Cooper 2004 mixture rule.
+
+    Parameters
+    ----------
+    temperature_c : float or array_like
+        Temperature [degC].
+
+    Returns
+    -------
+    float or ndarray
+        Density [kg/m^3].
 
     Examples
     --------
@@ -510,6 +568,16 @@ def dextrose_5_viscosity(temperature_c):
     holds for dilute sugar solutions within about 2 % over 5-40 degC (an
     assumption).
 
+    Parameters
+    ----------
+    temperature_c : float or array_like
+        Temperature [degC].
+
+    Returns
+    -------
+    float or ndarray
+        Dynamic viscosity [Pa s].
+
     Examples
     --------
     >>> round(dextrose_5_viscosity(20.0) * 1e3, 2)
@@ -522,7 +590,17 @@ def dextrose_5_viscosity(temperature_c):
 
 
 def dextrose_5_density(temperature_c):
-    """Density [kg/m^3] of 5 % dextrose: 1017 kg/m^3 at 20 degC scaled with water's expansion.
+    """Density of 5 % dextrose: 1017 kg/m^3 at 20 degC (from memory) scaled with water's expansion.
+
+    Parameters
+    ----------
+    temperature_c : float or array_like
+        Temperature [degC].
+
+    Returns
+    -------
+    float or ndarray
+        Density [kg/m^3].
 
     Examples
     --------
