@@ -7,9 +7,10 @@ noise, so each check says what the fit must recover.
 import numpy as np
 import pytest
 
-from rheoline.errors import InputRangeError, RangeWarning
+from rheoline.errors import InputRangeError, RangeWarning, RegimeWarning
 from rheoline.model.fitting import (
     RheologyFit,
+    couette_viscosity,
     fit_rheology,
     fit_viscosity_temperature,
     plate_drag_viscosity,
@@ -43,6 +44,27 @@ def test_plate_drag_rejects_nonpositive_naming_argument(arg):
     kwargs[arg] = -1.0
     with pytest.raises(InputRangeError, match=f"{arg} must be greater than 0"):
         plate_drag_viscosity(**kwargs)
+
+
+def test_plate_drag_warns_when_film_may_be_turbulent():
+    # water film 5 mm thick at 1 m/s: Re = 998 * 1 * 5e-3 / 1e-3 ~ 5000 > ~1400
+    # (plane Couette transition, Tillmark & Alfredsson 1992, from memory)
+    force = 1.0e-3 * 0.01 * 1.0 / 5e-3
+    with pytest.warns(RegimeWarning, match="may not be laminar"):
+        plate_drag_viscosity(force, 0.01, 1.0, 5e-3, density=998.0)
+    plate_drag_viscosity(1.002e-3, 0.01, 0.05, 5e-4, density=998.0)  # Re = 25: silent
+
+
+def test_couette_by_hand_and_narrow_gap_limit():
+    # Bird, Stewart & Lightfoot 2002, Example 3.6-3: mu = T (Ro^2 - Ri^2) / (4 pi L Omega Ri^2 Ro^2)
+    # T 1e-4 N m, Ri 20 mm, Ro 21 mm, L 50 mm, Omega 2 rad/s: 4.1e-9 / 2.2167e-7 = 0.018496 Pa s
+    assert couette_viscosity(1.0e-4, 0.02, 0.021, 0.05, 2.0) == pytest.approx(0.018496, rel=1e-4)
+    # narrow gap: the annulus reduces to a plate of area 2 pi R L sliding at Omega R over the gap
+    r, gap, length, omega, torque = 0.02, 1e-5, 0.05, 2.0, 1e-4
+    plate = plate_drag_viscosity(torque / r, 2 * np.pi * r * length, omega * r, gap)
+    assert couette_viscosity(torque, r, r + gap, length, omega) == pytest.approx(plate, rel=1e-3)
+    with pytest.raises(InputRangeError, match="outer_radius must be larger than inner_radius"):
+        couette_viscosity(1e-4, 0.02, 0.02, 0.05, 2.0)
 
 
 # ---------------------------------------------------------------- rheology fits

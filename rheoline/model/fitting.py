@@ -14,16 +14,19 @@
 from __future__ import annotations
 
 import difflib
+import warnings
 from dataclasses import dataclass, field
 
 import numpy as np
 
-from rheoline.errors import InputRangeError
+from rheoline.errors import InputRangeError, RegimeWarning
 from rheoline.model.rheology import RHEOLOGY_MODELS, RheologyModel
 from rheoline.model.validation import check_positive, scalar_or_array, warn_outside
 
 __all__ = [
     "plate_drag_viscosity",
+    "couette_viscosity",
+    "COUETTE_TRANSITION_REYNOLDS",
     "ModelFit",
     "RheologyFit",
     "fit_rheology",
@@ -36,7 +39,7 @@ _KELVIN = 273.15
 
 
 # ------------------------------------------------------------------ plate drag
-def plate_drag_viscosity(force, area, speed, gap):
+def plate_drag_viscosity(force, area, speed, gap, density=None):
     r"""Viscosity from a plate dragged over a thin film (plane Couette flow).
 
     .. math:: \mu = \frac{F\,h}{A\,U}, \qquad \dot\gamma = U / h
@@ -51,6 +54,9 @@ def plate_drag_viscosity(force, area, speed, gap):
         Plate speed U relative to the fixed wall [m/s], > 0.
     gap : float or array_like
         Film thickness h [m], > 0.
+    density : float or array_like, optional
+        Fluid density [kg/m^3]; given, the film Reynolds number rho U h / mu is
+        checked against :data:`COUETTE_TRANSITION_REYNOLDS`.
 
     Returns
     -------
@@ -58,13 +64,17 @@ def plate_drag_viscosity(force, area, speed, gap):
         Dynamic viscosity [Pa s] at the shear rate U/h (apparent viscosity for a
         non-Newtonian fluid).
 
+    Warns
+    -----
+    RegimeWarning
+        When ``density`` is given and the film Reynolds number exceeds about 1400.
+
     Notes
     -----
-    Assumes a linear velocity profile: laminar film (Reynolds number
-    rho U h / mu well below about 1000), gap much smaller than the plate, and
-    edge effects neglected.  A coaxial-cylinder (Couette) viscometer with a gap
-    much narrower than its radius reduces the same way with F = torque / radius
-    and A = 2 pi R L.
+    Assumes a linear velocity profile: laminar film, gap much smaller than the
+    plate, edge effects neglected.  A coaxial-cylinder viscometer with a gap much
+    narrower than its radius reduces the same way with F = torque / radius and
+    A = 2 pi R L; :func:`couette_viscosity` handles any gap.
 
     References
     ----------
@@ -80,7 +90,72 @@ def plate_drag_viscosity(force, area, speed, gap):
     a = check_positive("area", area, "m^2")
     u = check_positive("speed", speed, "m/s")
     h = check_positive("gap", gap, "m")
-    return scalar_or_array(f * h / (a * u))
+    mu = f * h / (a * u)
+    if density is not None:
+        rho = check_positive("density", density, "kg/m^3")
+        _warn_couette_regime(rho * u * h / mu)
+    return scalar_or_array(mu)
+
+
+#: Reynolds number (full gap, full wall speed) above which plane Couette flow may
+#: turn turbulent: about 4 x 360 (transition near 360 on half-gap and half-speed,
+#: Tillmark & Alfredsson 1992, J. Fluid Mech. 235:89, from memory).
+COUETTE_TRANSITION_REYNOLDS = 1400.0
+
+
+def _warn_couette_regime(reynolds):
+    re = np.asarray(reynolds, dtype=float)
+    if np.any(re > COUETTE_TRANSITION_REYNOLDS):
+        warnings.warn(
+            f"film Reynolds number up to {float(np.max(re)):.3g} exceeds about "
+            f"{COUETTE_TRANSITION_REYNOLDS:g}: the film may not be laminar and the one-point "
+            "reduction overestimates viscosity; lower the speed or the gap",
+            RegimeWarning, stacklevel=3)
+
+
+def couette_viscosity(torque, inner_radius, outer_radius, length, angular_speed):
+    r"""Viscosity from a coaxial-cylinder (Couette) viscometer, any gap width.
+
+    .. math:: \mu = \frac{T\,(R_o^2 - R_i^2)}{4\pi L\,\Omega\,R_i^2 R_o^2}
+
+    Parameters
+    ----------
+    torque : float or array_like
+        Torque on the inner cylinder T [N m], > 0.
+    inner_radius, outer_radius : float or array_like
+        Cylinder radii R_i < R_o [m].
+    length : float or array_like
+        Wetted length L [m], > 0 (end effects neglected).
+    angular_speed : float or array_like
+        Relative angular speed Omega [rad/s], > 0.
+
+    Returns
+    -------
+    float or ndarray
+        Dynamic viscosity [Pa s] (Newtonian; for a shear-thinning fluid an
+        apparent viscosity at the inner-wall shear rate
+        :math:`2\Omega R_o^2/(R_o^2 - R_i^2)`).
+
+    References
+    ----------
+    Bird, R.B., Stewart, W.E., Lightfoot, E.N., "Transport Phenomena", 2nd ed.,
+    Wiley, 2002, Example 3.6-3 (tangential annular flow).
+
+    Examples
+    --------
+    >>> round(couette_viscosity(1.0e-4, 0.02, 0.021, 0.05, 2.0), 6)
+    0.018496
+    """
+    t = check_positive("torque", torque, "N m")
+    ri = check_positive("inner_radius", inner_radius, "m")
+    ro = check_positive("outer_radius", outer_radius, "m")
+    if np.any(ro <= ri):
+        raise InputRangeError(
+            f"outer_radius must be larger than inner_radius, got {np.min(ro):g} m <= {np.max(ri):g} m"
+        )
+    length = check_positive("length", length, "m")
+    omega = check_positive("angular_speed", angular_speed, "rad/s")
+    return scalar_or_array(t * (ro**2 - ri**2) / (4.0 * np.pi * length * omega * ri**2 * ro**2))
 
 
 # ---------------------------------------------------------------- rheology fits
@@ -156,7 +231,7 @@ def _starts(name, g, tau, n_pl, k_pl):
     return starts
 
 
-@dataclass(frozen=True)
+@dataclass(frozen=True, eq=False)
 class ModelFit:
     """The least-squares fit of one rheology model.
 
@@ -266,7 +341,7 @@ def _fmt(v):
     return "nan" if not np.isfinite(v) else f"{v:.4g}"
 
 
-@dataclass(frozen=True, repr=False)
+@dataclass(frozen=True, repr=False, eq=False)
 class RheologyFit:
     """Result of :func:`fit_rheology`.
 
@@ -480,7 +555,7 @@ TEMPERATURE_MODELS = {
 }
 
 
-@dataclass(frozen=True)
+@dataclass(frozen=True, eq=False)
 class TemperatureFit:
     r"""A viscosity-temperature law fitted to measurements.
 
