@@ -122,6 +122,19 @@ def test_saline_0_9_matches_thermo(temperature_c):
     assert v.saline_viscosity(temperature_c) == pytest.approx(ref, rel=0.01)
 
 
+@pytest.mark.parametrize("temperature_c", [5.0, 20.0, 37.0])
+def test_saline_matches_coolprop_incompressible_nacl(temperature_c):
+    # source: CoolProp INCOMP::MNA (aqueous NaCl, Melinder 2010 fit), a second reference:
+    # viscosity within 2 %, density within 0.1 %
+    coolprop = pytest.importorskip("CoolProp.CoolProp")
+    w = float(v.solution_mass_fractions({"NaCl": 9.0})["NaCl"])
+    fluid = f"INCOMP::MNA[{w}]"
+    mu = coolprop.PropsSI("V", "T", temperature_c + 273.15, "P", 101325.0, fluid)
+    rho = coolprop.PropsSI("D", "T", temperature_c + 273.15, "P", 101325.0, fluid)
+    assert v.saline_viscosity(temperature_c) == pytest.approx(mu, rel=0.02)
+    assert v.saline_density(temperature_c) == pytest.approx(rho, rel=1e-3)
+
+
 def test_lactated_ringers_salts_match_thermo_mixture():
     # source: thermo.electrochem.Laliberte_viscosity mixture rule for NaCl + KCl + CaCl2
     electrochem = pytest.importorskip("thermo.electrochem")
@@ -189,6 +202,19 @@ SEGUR_OBERSTAR_20C = {0.40: 3.72, 0.50: 6.00, 0.60: 10.8, 0.70: 22.5, 0.80: 60.1
 def test_glycerol_water_matches_segur_oberstar_20c(mass_fraction, mpa_s):
     # source: Segur & Oberstar 1951 table (values from memory), within 5 %
     assert v.glycerol_water_viscosity(mass_fraction, 20.0) * 1e3 == pytest.approx(mpa_s, rel=0.05)
+
+
+@pytest.mark.parametrize("mass_fraction", [0.1, 0.2, 0.3, 0.4, 0.5, 0.6])
+@pytest.mark.parametrize("temperature_c", [20.0, 30.0])
+def test_glycerol_water_matches_coolprop_incompressible(mass_fraction, temperature_c):
+    # source: CoolProp INCOMP::MGL (aqueous glycerol, Melinder 2010 fit, valid to 60 wt %):
+    # viscosity within 5 % (the two correlations' own scatter), density within 0.3 %
+    coolprop = pytest.importorskip("CoolProp.CoolProp")
+    fluid = f"INCOMP::MGL[{mass_fraction}]"
+    mu = coolprop.PropsSI("V", "T", temperature_c + 273.15, "P", 101325.0, fluid)
+    rho = coolprop.PropsSI("D", "T", temperature_c + 273.15, "P", 101325.0, fluid)
+    assert v.glycerol_water_viscosity(mass_fraction, temperature_c) == pytest.approx(mu, rel=0.05)
+    assert v.glycerol_water_density(mass_fraction, temperature_c) == pytest.approx(rho, rel=3e-3)
 
 
 def test_glycerol_pure_and_water_ends():
