@@ -231,8 +231,17 @@ def test_glycerol_water_density_20c(mass_fraction, density):
 
 
 def test_glycerol_density_warns_outside_fitted_range():
-    with pytest.warns(RangeWarning, match=r"15\.\.30 degC of Volk & Kaehler 2018"):
-        v.glycerol_water_density(0.5, 37.0)
+    with pytest.warns(RangeWarning, match=r"0\.\.40 degC of Volk & Kaehler 2018"):
+        v.glycerol_water_density(0.5, 60.0)
+
+
+@pytest.mark.parametrize("temperature_c", [5.0, 10.0, 37.0, 40.0])
+def test_glycerol_density_over_the_warned_range(temperature_c):
+    # source: CoolProp INCOMP::MGL (Melinder 2010): within 0.3 % over 5-40 degC
+    coolprop = pytest.importorskip("CoolProp.CoolProp")
+    for w in (0.2, 0.4, 0.6):
+        rho = coolprop.PropsSI("D", "T", temperature_c + 273.15, "P", 101325.0, f"INCOMP::MGL[{w}]")
+        assert v.glycerol_water_density(w, temperature_c) == pytest.approx(rho, rel=3e-3)
 
 
 @given(st.floats(0.0, 1.0), st.floats(0.0, 100.0))
