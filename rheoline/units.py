@@ -82,6 +82,11 @@ def registry():
 
 _ALIASES = {
     "mmhg": "mmHg_conv",
+    "mm hg": "mmHg_conv",
+    "cm h2o": "cmH2O_conv",
+    "cmh20": "cmH2O_conv",  # the common letter-O/zero slip
+    "mpas": "mPa*s",
+    "pas": "Pa*s",
     "cmh2o": "cmH2O_conv",
     "cmH2O": "cmH2O_conv",
     "mmHg": "mmHg_conv",
@@ -132,6 +137,8 @@ def _normalize_unit(text: str) -> str:
         return _ALIASES[low]
     # "Pa s", "mPa s" and similar products written with a space
     key = re.sub(r"(?<=[A-Za-z])\s+(?=[A-Za-z])", "*", key)
+    # "cm3", "m3/s": a length unit with a bare power
+    key = re.sub(r"\b(km|dm|cm|mm|um|m)([23])\b", r"\1**\2", key)
     return key.replace("^", "**").replace("·", "*")
 
 

@@ -34,6 +34,18 @@ def test_parse_against_nist_sp811(text, kind, si):
     assert parse_quantity(text, kind) == pytest.approx(si, rel=1e-6)
 
 
+@pytest.mark.parametrize(
+    ("text", "kind", "si"),
+    [("300 mm Hg", "pressure", 300 * 133.322387415), ("10 cm H2O", "pressure", 980.665),
+     ("10 cmH20", "pressure", 980.665), ("1.1 mPas", "viscosity", 1.1e-3),
+     ("1.1 mPa·s", "viscosity", 1.1e-3), ("1 g/cm3", "density", 1000.0), ("150 ml/hr", "flow", 150e-6 / 3600),
+     ("37 °C", "temperature", 37.0), ("-5 degC", "temperature", -5.0)],
+)
+def test_practitioner_spellings(text, kind, si):
+    # the same NIST SP 811 factors, reached through the spellings found on forms and labels
+    assert parse_quantity(text, kind) == pytest.approx(si, rel=1e-9)
+
+
 def test_constants_nist():
     # NIST SP 811 (2008) Appendix B.8: mmHg 1.333224 E+02 Pa; cmH2O 9.80665 E+01 Pa
     assert MMHG == pytest.approx(133.3224, rel=1e-6)
