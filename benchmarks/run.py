@@ -95,6 +95,32 @@ def median_time(function, repeats, warmup=True):
     return statistics.median(times), value
 
 
+def interleaved_medians(functions, repeats, limited=None):
+    """Median wall times [s] of several functions timed in turn, round after round.
+
+    Interleaving keeps a ratio of two medians fair on a shared machine whose load drifts.
+    Each function is called once untimed first; a function listed in ``limited`` (index ->
+    rounds) is timed in that many rounds only (a long scalar loop).  Returns the medians and
+    each function's last value.
+    """
+    limited = limited or {}
+    values = [f() for f in functions]
+    times = [[] for _ in functions]
+    for round_ in range(max(1, repeats)):
+        for i, f in enumerate(functions):
+            if round_ >= limited.get(i, repeats):
+                continue
+            gc.collect()
+            gc.disable()
+            try:
+                start = time.perf_counter()
+                values[i] = f()
+                times[i].append(time.perf_counter() - start)
+            finally:
+                gc.enable()
+    return [statistics.median(t) for t in times], values
+
+
 def machine():
     """CPU count, model, Python, numpy/scipy versions and BLAS (threadpoolctl)."""
     info = {
@@ -198,29 +224,31 @@ def solve_rows(n, repeats, scalar_repeats=3, subset_scale=1.0):
             for what in ("flow", "pressure"):
                 if what == "flow":
                     drive = {"head": h}
-                    t_solve, result = median_time(partial(line.solve, fluid, **drive), repeats)
-                    answer = np.asarray(result.flow, dtype=float)
-                    if path == "shared":
-                        flows = answer
-                        regimes[kind] = regime_counts(result)
-                    at = answer
+                    solve = partial(line.solve, fluid, **drive)
+                    at = flows if flows is not None else np.asarray(solve().flow, dtype=float)
                 else:
                     drive = {"head": 0.0}
-                    t_solve, result = median_time(partial(line.solve, fluid, flow=flows),
-                                                  repeats)
-                    answer = np.asarray(result.required_pressure, dtype=float)
+                    solve = partial(line.solve, fluid, flow=flows)
                     at = flows
-                t_res, _ = median_time(partial(line.pressure_residual, fluid, at, **drive),
-                                       repeats)
+                residual = partial(line.pressure_residual, fluid, at, **drive)
                 idx = _subset(n, max(1, int(SCALAR_SUBSET[(kind, what)] * subset_scale)))
+                functions = [solve, residual]
                 if (kind, what) not in loops:     # the same loop serves both engine paths
                     inputs = (h if what == "flow" else flows)[idx].tolist()
                     loop = partial(_scalar_flows if what == "flow" else _scalar_pressures,
                                    sline, sfluid)
                     loop(inputs[:1])              # warm up on one scenario, untimed
-                    loops[(kind, what)] = median_time(partial(loop, inputs), scalar_repeats,
-                                                      warmup=False)
+                    functions.append(partial(loop, inputs))
+                medians, values = interleaved_medians(functions, repeats, {2: scalar_repeats})
+                (t_solve, t_res), result = medians[:2], values[0]
+                if len(functions) == 3:
+                    loops[(kind, what)] = medians[2], values[2]
                 t_loop, reference = loops[(kind, what)]
+                if what == "flow" and path == "shared":
+                    flows = np.asarray(result.flow, dtype=float)
+                    regimes[kind] = regime_counts(result)
+                answer = np.asarray(result.flow if what == "flow" else result.required_pressure,
+                                    dtype=float)
                 diff = float(np.max(np.abs(answer[idx] / np.asarray(reference) - 1.0)))
                 per_scenario = t_loop / idx.size
                 rows.append({
