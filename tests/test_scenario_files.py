@@ -284,3 +284,10 @@ def test_fuzzed_documents_give_a_scenario_error_or_a_valid_set(data):
             assert str(exc)
         else:
             assert all(s.n_points >= 1 and math.isfinite(s.n_points) for s in sset.scenarios)
+
+
+@pytest.mark.parametrize("text", ["1 m/0", "1 (m", "1 m**(1/0)", "1 9**9**9", "1 m^999999999",
+                                  "1 10**1000 m", "1 __class__", "1 m; import os"])
+def test_hostile_unit_text_is_refused_before_pint(text):
+    with pytest.raises(ScenarioError, match="field 'head'"):
+        parse_scenarios(one(head=text))
