@@ -291,3 +291,25 @@ def test_fuzzed_documents_give_a_scenario_error_or_a_valid_set(data):
 def test_hostile_unit_text_is_refused_before_pint(text):
     with pytest.raises(ScenarioError, match="field 'head'"):
         parse_scenarios(one(head=text))
+
+
+_EXAMPLE_TEXT = example_path("rapid-transfusion-cart").read_text(encoding="utf-8")
+_EDIT = st.tuples(st.integers(0, len(_EXAMPLE_TEXT)), st.integers(0, 8),
+                  st.text(alphabet=st.sampled_from(list('=[]{}"\',.-+#\n 0123456789eEnaifm%G')),
+                          max_size=6))
+
+
+@given(st.lists(_EDIT, min_size=1, max_size=4))
+def test_mutated_example_text_gives_a_scenario_error_or_a_valid_set(edits):
+    """Random cuts and insertions in the demo file: never anything but a ScenarioError."""
+    from rheoline.scenario.compare import check_scenarios
+
+    text = _EXAMPLE_TEXT
+    for at, cut, insert in edits:
+        at = min(at, len(text))
+        text = text[:at] + insert + text[at + cut:]
+    try:
+        sset = loads_scenarios(text, source="mutated.toml")
+        check_scenarios(sset)
+    except ScenarioError as exc:
+        assert "mutated.toml" in str(exc)
