@@ -482,11 +482,15 @@ def main(argv=None):
     parser.add_argument("--subset-scale", type=float, default=1.0,
                         help="scale the scalar loop's timed subset")
     parser.add_argument("--json", action="store_true", help="print one JSON object instead")
+    parser.add_argument("--json-out", metavar="FILE",
+                        help="also write the JSON object to FILE (the table is printed)")
     args = parser.parse_args(argv)
     if args.n < 1:
         parser.error(f"--n must be at least 1, got {args.n}")
     report = run(args.n, args.repeats, args.widget_repeats, args.import_repeats,
                  args.subset_scale)
+    if args.json_out:
+        Path(args.json_out).write_text(json.dumps(report, indent=1) + "\n")
     print(json.dumps(report, indent=1) if args.json else table(report))
     return 0 if report["all_agree"] else 1
 
