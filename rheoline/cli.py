@@ -6,6 +6,7 @@ Commands::
     rheoline check FILE                                validate a scenario file, solve nothing
     rheoline fluids                                    the fluid library and its sources
     rheoline parts [--kind KIND]                       the part catalogue and its sources
+    rheoline fields                                    every scenario-file field, unit and range
     rheoline demo [--out DIR] [--json] [--force]       the built-in demo (invented cart review)
     rheoline examples [NAME]                           list the shipped example files, or print one
 
@@ -75,6 +76,11 @@ def build_parser() -> argparse.ArgumentParser:
                                        "catalogue of nominal sizes, with their sources.")
     parts.add_argument("--kind", help="show one catalogue only (e.g. catheter, needle)")
     parts.set_defaults(func=_cmd_parts)
+
+    flds = sub.add_parser("fields", help="list every scenario-file field with units and ranges",
+                          description="List the keys a scenario file may use, the unit of a "
+                                      "bare number, the allowed range and whether it sweeps.")
+    flds.set_defaults(func=_cmd_fields)
 
     demo = sub.add_parser("demo", help="run the built-in demo scenario set",
                           description="Run the built-in demo: an invented bench team compares "
@@ -175,6 +181,13 @@ def _cmd_fluids(args, out):
     return EXIT_OK
 
 
+def _cmd_fields(args, out):
+    from rheoline.scenario.files import fields_table
+
+    out.write(_frame_text(fields_table()) + "\n" + _caution() + "\n")
+    return EXIT_OK
+
+
 def _cmd_parts(args, out):
     from rheoline.scenario.compare import parts_table
 
@@ -203,17 +216,39 @@ def _printable(text):
     return "".join(c if c.isprintable() else "?" for c in str(text))
 
 
-def _frame_text(frame):
+def _cell_text(v):
+    """(text, is_number) of one table cell."""
     import pandas as pd
 
-    shown = frame.copy()
-    for col in shown.columns:
-        if shown[col].dtype == object:
-            shown[col] = shown[col].map(lambda v: _printable(v) if isinstance(v, str) else v)
-    with pd.option_context("display.max_rows", 10_000, "display.max_columns", 50,
-                           "display.width", 200, "display.max_colwidth", 60):
-        text = shown.to_string(index=False, float_format=lambda v: f"{v:.4g}", na_rep="")
-    return "\n".join(line.rstrip() for line in text.splitlines())
+    if hasattr(v, "item") and not isinstance(v, str):
+        try:
+            v = v.item()
+        except (ValueError, AttributeError):
+            pass
+    if v is None or (not isinstance(v, str | bool) and pd.isna(v)):
+        return "", True
+    if isinstance(v, bool):
+        return ("yes" if v else "no"), False
+    if isinstance(v, int):
+        return str(v), True
+    if isinstance(v, float):
+        return f"{v:.4g}", True
+    return _printable(v), False
+
+
+def _frame_text(frame):
+    """A plain-text table: text left-aligned, numbers right-aligned, blanks for missing values."""
+    columns = [_printable(c) for c in frame.columns]
+    cells = [[_cell_text(v) for v in row] for row in frame.itertuples(index=False)]
+    numeric = [all(c[j][1] for c in cells) if cells else False for j in range(len(columns))]
+    widths = [max([len(columns[j])] + [len(c[j][0]) for c in cells]) for j in range(len(columns))]
+
+    def line(texts):
+        parts = [t.rjust(w) if num else t.ljust(w)
+                 for t, w, num in zip(texts, widths, numeric, strict=True)]
+        return "  ".join(parts).rstrip()
+
+    return "\n".join([line(columns)] + [line([t for t, _ in c]) for c in cells])
 
 
 def format_run(run) -> str:

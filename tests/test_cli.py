@@ -77,7 +77,8 @@ def test_usage_errors_exit_2(argv, capsys):
         assert_one_line_error(err)
 
 
-@pytest.mark.parametrize("command", ["run", "check", "fluids", "parts", "demo", "examples"])
+@pytest.mark.parametrize("command", ["run", "check", "fluids", "parts", "fields", "demo",
+                                     "examples"])
 def test_help_on_every_command(command, capsys):
     status, out, _ = call(capsys, command, "--help")
     assert status == 0 and f"usage: rheoline {command}" in out
@@ -109,7 +110,7 @@ def test_installed_entry_point_exits_2_in_a_real_process(tmp_path):
 # --------------------------------------------------------------------------- output
 def test_every_command_output_carries_the_caution(capsys):
     for argv in (["run", example_path("minimal")], ["check", example_path("minimal")],
-                 ["fluids"], ["parts"], ["examples"]):
+                 ["fluids"], ["parts"], ["fields"], ["examples"]):
         status, out, _ = call(capsys, *argv)
         assert status == 0, argv
         assert rheoline.CAUTION in out, argv

@@ -97,6 +97,7 @@ __all__ = [
     "dump_scenarios",
     "save_scenarios",
     "sweep_points",
+    "fields_table",
     "example_names",
     "example_path",
 ]
@@ -821,7 +822,8 @@ def _show_si(si, spec, unit):
 
 
 KIND_OF = {"length": "length", "pressure": "pressure", "flow": "flow", "volume": "volume",
-           "temperature": "temperature"}
+           "temperature": "temperature", "time": "time", "viscosity": "viscosity",
+           "density": "density"}
 
 _FIELD_HINTS = {
     "head": "head is a height of fluid (m, cm); for a pressure bag use source_pressure",
@@ -1079,6 +1081,46 @@ def save_scenarios(sset: ScenarioSet, path, force: bool = False) -> Path:
         Path(tmp).unlink(missing_ok=True)
         raise
     return path
+
+
+# --------------------------------------------------------------------------- documentation
+def fields_table():
+    """Every field a scenario file may hold, with its default unit and allowed range.
+
+    Read from the same specs the validator uses, so the list cannot go stale
+    (``rheoline fields`` prints it).
+
+    Examples
+    --------
+    >>> t = fields_table()
+    >>> t[(t["table"] == "[[scenario]]") & (t["field"] == "head")]["bare number in"].item()
+    'm'
+    """
+    import pandas as pd
+
+    def rows(table, specs):
+        out = []
+        for name, spec in specs.items():
+            kind = KIND_OF.get(spec.kind) or KIND_OF.get(spec.element_kind or "")
+            rng = ""
+            if spec.low is not None and spec.high is not None:
+                if kind and spec.unit:
+                    lo = float(to_unit(spec.low, spec.unit, kind))
+                    hi = float(to_unit(spec.high, spec.unit, kind))
+                    rng = f"{lo:.4g} to {hi:.4g} {spec.unit}"
+                else:
+                    rng = f"{spec.low:g} to {spec.high:g}"
+            out.append([table, name, spec.unit or "", rng, "yes" if spec.sweep else "",
+                        spec.help])
+        return out
+
+    data = rows("top level", TOP_FIELDS) + rows("[[scenario]]", SCENARIO_FIELDS)
+    data += rows("[scenario.tolerance]", SCENARIO_TOLERANCE_FIELDS)
+    for ptype, specs in PART_FIELDS.items():
+        data += rows(f"part type = \"{ptype}\"", specs)
+    data += rows("[part].tolerance", PART_TOLERANCE_FIELDS)
+    return pd.DataFrame(data, columns=["table", "field", "bare number in", "allowed",
+                                       "sweeps", "what it is"])
 
 
 # --------------------------------------------------------------------------- examples
