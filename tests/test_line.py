@@ -286,3 +286,28 @@ def test_shared_characteristic_path_equals_newton_path(fluid, monkeypatch):
     assert np.allclose(fast.part_reynolds, slow.part_reynolds, rtol=1e-8)
     drive = fluid.density * GRAVITY * heads
     assert np.allclose(fast.part_pressure_drops.sum(0) + fast.exit_pressure_drop, drive, rtol=1e-8)
+
+
+def test_yield_stress_fluid_needs_the_yield_pressure():
+    # Casson (1959): no flow until the wall stress exceeds the yield stress, i.e. until the
+    # drive exceeds 4 L tau_y / D; the losses at vanishing flow equal that yield pressure
+    from rheoline.model.rheology import Casson
+
+    fluid = Fluid(name="casson", temperature_c=20.0, density=1050.0,
+                  rheology=Casson(yield_stress=0.01, casson_viscosity=0.004))
+    line = Line([Tube(inner_diameter=0.2e-3, length=2.0)])
+    yield_pressure = 4 * 2.0 * 0.01 / 0.2e-3                  # 400 Pa, by hand
+    below = line.solve(fluid, source_pressure=0.9 * yield_pressure)
+    above = line.solve(fluid, source_pressure=3.0 * yield_pressure)
+    assert below.flow == 0.0 and any("no forward flow" in f for f in below.flags)
+    assert above.flow > 0 and above.converged
+    residual = line.pressure_residual(fluid, 0.0, source_pressure=yield_pressure)
+    assert residual == pytest.approx(0.0, abs=1e-3 * yield_pressure)
+
+
+@pytest.mark.parametrize("drive", [1e-300, 1e-120, 1e-30])
+def test_vanishing_drives_stay_finite(drive):
+    result = _line().solve(WATER_22, source_pressure=drive)
+    assert np.isfinite(result.flow) and result.flow >= 0
+    assert np.all(np.isfinite(result.part_pressure_drops))
+    assert np.isfinite(result.required_pressure)

@@ -96,6 +96,10 @@ GRAVITY = 9.80665
 _PRIES_REFERENCE_DIAMETER = 1.9779e-3
 
 _TOL = 1e-11          # convergence on ln(Q)
+#: Drives [Pa] and flows [m^3/s] at or below these are numerically zero: flows that small
+#: would underflow double precision in the friction terms, so they give a zero result.
+_MIN_DRIVE = 1e-150
+_MIN_FLOW = 1e-200
 #: From this many scenarios on, a line whose geometry and fluid are shared by every scenario
 #: (only the drive varies) is solved on its tabulated characteristic (see
 #: ``Line._solve_flow_on_curve``); fewer scenarios, or per-scenario parts or fluids, take
@@ -325,11 +329,14 @@ class Line:
             return mu, 0.0, None
         radius = layout.diameter / 2.0
         q_i, tau_i, dlog_q, dlog_tau = _lumen._rabinowitsch_state(fluid.rheology, state, radius)
-        mu_i = tau_i * np.pi * radius**3 / (4.0 * q_i)
-        dlog_mu = dlog_tau / dlog_q - 1.0
+        dlog_tau_q = dlog_tau / dlog_q            # d ln(tau_w) / d ln(Q)
+        dlog_mu = dlog_tau_q - 1.0
         log_q_i = np.log(q_i)
         mismatch = log_q - log_q_i
-        mu = layout.viscosity_factor * mu_i * np.exp(dlog_mu * mismatch)
+        # wall stress carried from the inner state to ln(Q) by one Taylor step, then
+        # mu_app = tau_w / (4 Q / (pi R^3))
+        tau = tau_i * np.exp(dlog_tau_q * mismatch)
+        mu = layout.viscosity_factor * tau * np.pi * radius**3 / (4.0 * np.exp(log_q))
         return mu, dlog_mu, (log_q_i, dlog_q, mismatch)
 
     @staticmethod
@@ -400,7 +407,7 @@ class Line:
         q = check_nonnegative("flow", flow, "m^3/s")
         drive = self._drive(fluid, head, source_pressure, back_pressure)
         layout = self._layout(fluid, np.broadcast_shapes(q.shape, np.shape(drive)), pries_correction)
-        q = np.maximum(q * np.ones(layout.shape), 1e-300)
+        q = np.maximum(q * np.ones(layout.shape), _MIN_FLOW)
         total, _, _, _ = self._exact_losses(layout, fluid, q)
         return _lumen.scalar_or_array(total - drive)
 
@@ -411,7 +418,9 @@ class Line:
             radius = layout.diameter / 2.0
             y, q_i, tau_i, dlog_q, dlog_tau = _lumen._solve_log_wall_shear_rate(
                 fluid.rheology, q * np.ones_like(radius), radius)
-            mu = layout.viscosity_factor * tau_i * np.pi * radius**3 / (4.0 * q_i)
+            # with the target flow, so that 64/Re gives 2 L tau_w / R even where the inner
+            # solve is limited by rounding (a yield-stress fluid at a vanishing flow)
+            mu = layout.viscosity_factor * tau_i * np.pi * radius**3 / (4.0 * q)
             dlog_mu = dlog_tau / dlog_q - 1.0
         self._last_dlog_mu = dlog_mu
         return self._losses(layout, q, mu, dlog_mu) + (mu,)
@@ -487,7 +496,7 @@ class Line:
         gravity = fluid.density * GRAVITY * check_finite("head", head)
         pb = check_finite("back_pressure", back_pressure)
         shape = np.broadcast_shapes(q_in.shape, np.shape(gravity), pb.shape)
-        positive = q_in[q_in > 0]
+        positive = q_in[q_in > _MIN_FLOW]
         if q_in.size >= _CURVE_MIN_SCENARIOS and positive.size:
             shared = self._layout(fluid, (), pries)
             table = None
@@ -497,7 +506,7 @@ class Line:
             if table is not None:
                 layout = self._layout(fluid, shape, pries)
                 q = q_in * np.ones(shape)
-                moving = q > 0
+                moving = q > _MIN_FLOW
                 y = np.log(np.where(moving, q, float(positive.min())))
                 pieces, mu, total = self._parts_on_curve(table, layout, fluid, y)
                 net = np.where(moving, total, 0.0)
@@ -506,9 +515,9 @@ class Line:
                                     converged=np.ones(shape, bool))
         layout = self._layout(fluid, shape, pries)
         q = q_in * np.ones(layout.shape)
-        q_safe = np.maximum(q, 1e-300)
+        moving = q > _MIN_FLOW
+        q_safe = np.where(moving, q, 1e-100)     # any flow; the results are masked below
         total, _, pieces, mu = self._exact_losses(layout, fluid, q_safe)
-        moving = q > 0
         required = np.where(moving, total, 0.0) + pb - gravity
         return self._result(layout, fluid, q, pieces, mu, moving, required + gravity - pb,
                             required, pressure_limit, head, pb, iterations=1,
@@ -530,7 +539,7 @@ class Line:
                                         np.ones(layout.shape, bool))
         layout = self._layout(fluid, np.shape(drive), pries)
         drive = drive * np.ones(layout.shape)
-        moving = drive > 0
+        moving = drive > _MIN_DRIVE
         drive_pos = np.where(moving, drive, 1.0)
         x = np.log(self._guess(layout, fluid, drive_pos))
         log_drive = np.log(drive_pos)
@@ -545,7 +554,7 @@ class Line:
             if tau_y is not None:
                 yield_drop = (2.0 * layout.length * tau_y * layout.viscosity_factor
                               / radius).sum(axis=0)
-                moving = drive > yield_drop * (1.0 + 1e-9)
+                moving = (drive > yield_drop * (1.0 + 1e-9)) & (drive > _MIN_DRIVE)
                 drive_pos = np.where(moving, drive, 1.0)
                 log_drive = np.log(drive_pos)
                 x = np.where(moving, x, 0.0)
@@ -566,7 +575,9 @@ class Line:
             hi = np.where(consistent & (g > 0), np.minimum(hi, x), hi)
             lo = np.where(consistent & (g <= 0), np.maximum(lo, x), lo)
             x_new = x - g / g_prime
-            outside = ~((x_new >= lo) & (x_new <= hi))
+            # strictly inside the bracket, else bisect (converged scenarios are frozen below,
+            # so a step that lands on a bracket end is a cycle, not convergence)
+            outside = ~((x_new > lo) & (x_new < hi)) & (np.abs(x_new - x) >= _TOL)
             both = np.isfinite(lo) & np.isfinite(hi)
             fallback = np.where(both, 0.5 * (np.where(both, lo, 0.0) + np.where(both, hi, 0.0)),
                                 np.where(np.isfinite(hi), np.minimum(x, hi) - 2.0,
@@ -606,10 +617,11 @@ class Line:
         or the Newton path is used).  Returns None to fall back to the Newton path.
         """
         tau_y = getattr(fluid.rheology, "yield_stress", None)
-        threshold = 0.0
+        threshold = _MIN_DRIVE
         if tau_y is not None and shared.diameter.shape[0]:
-            threshold = float(np.sum(2.0 * shared.length * tau_y * shared.viscosity_factor
-                                     / (shared.diameter / 2.0))) * (1.0 + 1e-9)
+            threshold = max(_MIN_DRIVE, float(np.sum(
+                2.0 * shared.length * tau_y * shared.viscosity_factor
+                / (shared.diameter / 2.0))) * (1.0 + 1e-9))
         moving = drive > threshold
         if not np.any(moving):
             return None
@@ -796,8 +808,11 @@ class LineResult:
         if len(rows):
             re = np.maximum(self.part_reynolds[rows], 1e-300)
             u = self.part_mean_velocity[rows]
-            f, _ = _lumen._friction_and_slope(re, 1.0, self._layout.relative_roughness, False)
-            out[rows] = np.where(self._moving, f * self._layout.density * u * u / 8.0, 0.0)
+            f_re, _ = _lumen._friction_re_and_slope(re, 1.0, self._layout.relative_roughness,
+                                                    False)
+            # f rho u^2 / 8 = (f Re) mu u / (8 D)
+            tau = f_re * self._viscosity * u / (8.0 * self._layout.diameter)
+            out[rows] = np.where(self._moving, tau, 0.0)
         return out
 
     @cached_property

@@ -155,18 +155,22 @@ def reynolds_number(mean_velocity, diameter, density, viscosity):
 
 
 def _shah_fre(x):
-    """Shah 1978 f_app*Re (Fanning) at x+ = L/(D Re), and d ln(f_app Re) / d ln x+."""
+    """Shah 1978 f_app*Re (Fanning) at x+ = L/(D Re), and d ln(f_app Re) / d ln x+.
+
+    Written with x-scaled derivatives so that x+ -> inf (vanishing Re) stays finite.
+    """
     rs = 1.0 / np.sqrt(x)
     p = 3.44 * rs
-    num = 0.3125 / x + 16.0 - p
-    den = 1.0 + 0.00021 / (x * x)
+    inv_x = 1.0 / x
+    num = 0.3125 * inv_x + 16.0 - p
+    den = 1.0 + 0.00021 * inv_x * inv_x
     fre = p + num / den
-    # derivatives with respect to x
-    dp = -0.5 * p / x
-    dnum = -0.3125 / (x * x) - dp
-    dden = -0.00042 / (x * x * x)
-    dfre = dp + (dnum * den - num * dden) / (den * den)
-    return fre, x * dfre / fre
+    # x * derivatives with respect to x
+    x_dp = -0.5 * p
+    x_dnum = -0.3125 * inv_x - x_dp
+    x_dden = -0.00042 * inv_x * inv_x
+    x_dfre = x_dp + (x_dnum * den - num * x_dden) / (den * den)
+    return fre, x_dfre / fre
 
 
 def shah_1978_apparent_friction(reynolds, length, diameter):
@@ -219,34 +223,35 @@ def shah_1978_apparent_friction(reynolds, length, diameter):
     return scalar_or_array(fre / re)
 
 
-def _friction_and_slope(re, length_over_diameter, relative_roughness, developing=True):
-    """Apparent Darcy friction (Shah laminar term in Churchill 1977) and d ln f / d ln Re.
+def _friction_re_and_slope(re, length_over_diameter, relative_roughness, developing=True):
+    """f*Re of the apparent Darcy friction (Shah laminar term in Churchill 1977), d ln f/d ln Re.
 
     ``length_over_diameter`` is only used where ``developing`` is true.  Works in
-    logarithms so that neither the laminar term at tiny Re nor Churchill's B term
-    overflows.
+    logarithms and returns f*Re (64 in fully developed laminar flow), so that neither the
+    laminar term at a vanishing Reynolds number nor Churchill's B term overflows.
     """
-    re = np.asarray(re, dtype=float)
+    # a yield-stress fluid at a vanishing flow has an unbounded apparent viscosity, so Re can
+    # underflow to 0; f*Re is 64 there whatever Re is, so a floor changes nothing else
+    re = np.maximum(np.asarray(re, dtype=float), 1e-300)
     log_re = np.log(re)
     if developing is False:
-        log_a = np.log(8.0) - log_re
+        log_a_re = np.full_like(re, np.log(8.0))
         dlog_a = -np.ones_like(re)
     else:
         x = np.asarray(length_over_diameter, dtype=float) / re
         fre, dlog_fre_dlog_x = _shah_fre(x)
         dev = np.asarray(developing, dtype=bool)
         # Darcy laminar f = 4 fre / Re; Churchill's laminar term is f/8 = fre / (2 Re)
-        log_a_dev = np.log(fre / 2.0) - log_re
-        dlog_a_dev = -1.0 - dlog_fre_dlog_x
-        log_a = np.where(dev, log_a_dev, np.log(8.0) - log_re)
-        dlog_a = np.where(dev, dlog_a_dev, -1.0)
-    w7 = (7.0 / re) ** 0.9
+        log_a_re = np.where(dev, np.log(fre / 2.0), np.log(8.0))
+        dlog_a = np.where(dev, -1.0 - dlog_fre_dlog_x, -1.0)
+    log_a = log_a_re - log_re
+    w7 = np.exp(0.9 * (np.log(7.0) - log_re))
     w = w7 + 0.27 * np.asarray(relative_roughness, dtype=float)
     log_w = np.log(w)
     # A is an even power, so use |ln w| (w > 1 below Re ~ 7, where A is negligible anyway)
     abs_log_w = np.maximum(np.abs(log_w), 1e-300)
     log_big_a = 16.0 * np.log(2.457 * abs_log_w)
-    dlog_big_a = 16.0 * (-0.9 * w7) / (w * np.where(log_w < 0, -abs_log_w, abs_log_w))
+    dlog_big_a = 16.0 * (-0.9 * (w7 / w)) / np.where(log_w < 0, -abs_log_w, abs_log_w)
     log_big_b = 16.0 * (np.log(37530.0) - log_re)
     log_sum = np.logaddexp(log_big_a, log_big_b)
     share_a = np.exp(log_big_a - log_sum)
@@ -254,10 +259,16 @@ def _friction_and_slope(re, length_over_diameter, relative_roughness, developing
     log_t = -1.5 * log_sum
     dlog_t = -1.5 * dlog_sum
     ratio = np.exp(np.minimum(log_t - 12.0 * log_a, 700.0))
-    f = 8.0 * np.exp(log_a) * (1.0 + ratio) ** (1.0 / 12.0)
+    f_re = 8.0 * np.exp(log_a_re) * (1.0 + ratio) ** (1.0 / 12.0)
     weight = ratio / (1.0 + ratio)
     slope = dlog_a + weight * (dlog_t - 12.0 * dlog_a) / 12.0
-    return f, slope
+    return f_re, slope
+
+
+def _friction_and_slope(re, length_over_diameter, relative_roughness, developing=True):
+    """Apparent Darcy friction factor and d ln f / d ln Re (see ``_friction_re_and_slope``)."""
+    f_re, slope = _friction_re_and_slope(re, length_over_diameter, relative_roughness, developing)
+    return f_re / np.asarray(re, dtype=float), slope
 
 
 def churchill_1977_friction(reynolds, relative_roughness=0.0):
@@ -363,7 +374,9 @@ def _rabinowitsch_state(rheology, log_wall_shear_rate, radius):
     s = _S_NODES.reshape((-1,) + (1,) * len(shape))
     ratio = np.asarray(rheology.stress(s * gw), dtype=float) / tau_w
     integral = np.tensordot(_S_WEIGHTS, ratio * ratio * ratio, axes=(0, 0))
-    bracket = 1.0 - integral
+    # near zero flow of a yield-stress fluid 1 - J is a difference of nearly equal numbers;
+    # keep it positive (the wall stress, which sets the pressure drop, stays accurate)
+    bracket = np.maximum(1.0 - integral, 1e-300)
     flow = np.pi * radius**3 * gw * bracket / 3.0
     h = 1e-5
     up = np.asarray(rheology.stress(gw * np.exp(h)), dtype=float)
@@ -372,6 +385,10 @@ def _rabinowitsch_state(rheology, log_wall_shear_rate, radius):
     # Q = (pi R^3 / 3) (gw - I / tau_w^3) with I = int_0^gw tau^3 dg = gw tau_w^3 J, so
     # dQ/dgw = pi R^3 I tau_w' / tau_w^4 and d ln Q / d ln gw = 3 J t / (1 - J)
     dlog_flow = 3.0 * dlog_stress * integral / bracket
+    # at a vanishing flow of a yield-stress fluid the stress is tau_y to the last digit and
+    # both slopes round to 0; keep the Newton steps defined (their true limit is about 1.5)
+    dlog_flow = np.where(dlog_flow > 1e-9, dlog_flow, 1.0)
+    flow = np.maximum(flow, 1e-300)
     return flow, tau_w, dlog_flow, dlog_stress
 
 
@@ -555,8 +572,9 @@ def _lumen_friction(flow, area, diameter, length, relative_roughness, density, v
     u = flow / area
     re = density * u * diameter / viscosity
     lod = length / diameter
-    f, dlog_f = _friction_and_slope(re, lod, relative_roughness, developing)
-    dp = f * lod * 0.5 * density * u * u
+    f_re, dlog_f = _friction_re_and_slope(re, lod, relative_roughness, developing)
+    # f (L/D) rho u^2 / 2 written with f*Re, so that a vanishing flow stays finite
+    dp = f_re * lod * 0.5 * viscosity * u / diameter
     slope = 2.0 + dlog_f * (1.0 - dlog_viscosity)
     return dp, slope, re, u
 
