@@ -49,51 +49,56 @@ def build_parser() -> argparse.ArgumentParser:
 
     p = _Parser(prog="rheoline",
                 description="Flow, pressure and shear estimates for infusion lines and "
-                            "vascular access. " + _caution())
+                            "vascular access.", epilog=_caution())
     p.add_argument("--version", action="version", version=f"rheoline {__version__}")
     sub = p.add_subparsers(dest="command", metavar="COMMAND", parser_class=_Parser)
 
-    run = sub.add_parser("run", help="solve a scenario file and print the comparison table",
+    run = _command(sub, "run", help="solve a scenario file and print the comparison table",
                          description="Solve every scenario (and sweep point) of FILE, print the "
                                      "comparison table, and write a review pack with --out.")
     run.add_argument("file", metavar="FILE", help="scenario file (.toml or .json)")
     _output_options(run)
     run.set_defaults(func=_cmd_run)
 
-    check = sub.add_parser("check", help="validate a scenario file without solving",
+    check = _command(sub, "check", help="validate a scenario file without solving",
                            description="Read and validate FILE (units, ranges, names, sweep "
                                        "sizes); print a summary or the first problem.")
     check.add_argument("file", metavar="FILE", help="scenario file (.toml or .json)")
     check.set_defaults(func=_cmd_check)
 
-    fluids = sub.add_parser("fluids", help="list the fluid library with sources",
+    fluids = _command(sub, "fluids", help="list the fluid library with sources",
                             description="List the named fluids a scenario may use, with their "
                                         "property sources.")
     fluids.set_defaults(func=_cmd_fluids)
 
-    parts = sub.add_parser("parts", help="list the part catalogue with sources",
+    parts = _command(sub, "parts", help="list the part catalogue with sources",
                            description="List the part types a scenario may use and the "
                                        "catalogue of nominal sizes, with their sources.")
     parts.add_argument("--kind", help="show one catalogue only (e.g. catheter, needle)")
     parts.set_defaults(func=_cmd_parts)
 
-    flds = sub.add_parser("fields", help="list every scenario-file field with units and ranges",
+    flds = _command(sub, "fields", help="list every scenario-file field with units and ranges",
                           description="List the keys a scenario file may use, the unit of a "
                                       "bare number, the allowed range and whether it sweeps.")
     flds.set_defaults(func=_cmd_fields)
 
-    demo = sub.add_parser("demo", help="run the built-in demo scenario set",
+    demo = _command(sub, "demo", help="run the built-in demo scenario set",
                           description="Run the built-in demo: an invented bench team compares "
                                       "rapid-transfusion lines. Writes a pack with --out.")
     _output_options(demo)
     demo.set_defaults(func=_cmd_demo)
 
-    ex = sub.add_parser("examples", help="list the shipped example files, or print one",
+    ex = _command(sub, "examples", help="list the shipped example files, or print one",
                         description="Without NAME, list the example scenario files; with NAME, "
                                     "print that file (save it and edit it as a start).")
     ex.add_argument("name", nargs="?", metavar="NAME", help="an example's name")
     ex.set_defaults(func=_cmd_examples)
     return p
+
+
+def _command(sub, name, **kwargs):
+    """A sub-command whose --help ends with the caution."""
+    return sub.add_parser(name, epilog=_caution(), **kwargs)
 
 
 def _output_options(cmd):
@@ -164,7 +169,8 @@ def _cmd_examples(args, out):
     from rheoline.scenario.files import example_names, example_path
 
     if args.name:
-        out.write(example_path(args.name).read_text(encoding="utf-8"))
+        # a TOML comment, so that the printed file still loads when saved
+        out.write(f"# {_caution()}\n" + example_path(args.name).read_text(encoding="utf-8"))
         return EXIT_OK
     out.write("Example scenario files (print one with 'rheoline examples NAME'):\n")
     for name in example_names():
