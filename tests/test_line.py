@@ -311,3 +311,18 @@ def test_vanishing_drives_stay_finite(drive):
     assert np.isfinite(result.flow) and result.flow >= 0
     assert np.all(np.isfinite(result.part_pressure_drops))
     assert np.isfinite(result.required_pressure)
+
+
+def test_hemolysis_index_is_giersiepen_at_wall_stress_and_residence_time():
+    # Giersiepen et al. 1990 power law evaluated per lumen at its wall shear stress and
+    # mean residence time L/u, summed over the lumens
+    from rheoline.model.hemolysis import giersiepen_1990_hemolysis_index
+
+    blood = rheoline.fluid("whole-blood", hematocrit=0.45, temperature_c=37.0)
+    result = Line([Needle(gauge=22, length=0.03)]).solve(blood, flow=50e-6 / 60)
+    tau = result.part_wall_shear_stress[0]
+    t = 0.03 / result.part_mean_velocity[0]
+    assert result.hemolysis_index == pytest.approx(
+        giersiepen_1990_hemolysis_index(tau, t, warn=False), rel=1e-9)
+    faster = Line([Needle(gauge=22, length=0.03)]).solve(blood, flow=200e-6 / 60)
+    assert faster.max_wall_shear_stress > result.max_wall_shear_stress
