@@ -326,3 +326,13 @@ def test_hemolysis_index_is_giersiepen_at_wall_stress_and_residence_time():
         giersiepen_1990_hemolysis_index(tau, t, warn=False), rel=1e-9)
     faster = Line([Needle(gauge=22, length=0.03)]).solve(blood, flow=200e-6 / 60)
     assert faster.max_wall_shear_stress > result.max_wall_shear_stress
+
+
+def test_catalogue_dimensions_are_flagged():
+    typical = Line([Catheter(gauge=20)]).solve(WATER_22, head=1.0)
+    measured = Line([Catheter(gauge=20, inner_diameter=0.82e-3, length=0.030)]).solve(
+        WATER_22, head=1.0)
+    assert any("typical catalogue bore/length (from memory)" in f for f in typical.flags)
+    assert not any("catalogue" in f for f in measured.flags)
+    needle = Line([Needle(gauge=25)]).solve(WATER_22, head=1.0)
+    assert any("ISO 9626 minimum bore" in f for f in needle.flags)

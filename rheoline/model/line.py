@@ -1015,6 +1015,9 @@ def _flags(result):
             if np.any(short):
                 out.append(f"{name}: developing laminar flow (shorter than its entrance length)"
                            f"{_count(short, total)}; Shah 1978 apparent friction used")
+    for name, part in zip(result.part_names, result.line.parts, strict=True):
+        if part.source_note:
+            out.append(f"{name}: {part.source_note}")
     if not result.fluid.is_newtonian:
         out.append("non-Newtonian fluid: laminar drops from the Rabinowitsch-Mooney integral of "
                    f"the {result.fluid.rheology.name} model; transitional and turbulent friction "

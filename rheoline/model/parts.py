@@ -63,9 +63,14 @@ def _lookup(table, key, what, fix):
 
 
 class Part:
-    """Base of all parts.  ``kind`` is "lumen", "fitting" or "measured"."""
+    """Base of all parts.  ``kind`` is "lumen", "fitting" or "measured".
+
+    ``source_note`` is None, or says where a catalogue dimension came from (the line's
+    flags repeat it).
+    """
 
     kind = "part"
+    source_note = None
 
 
 @dataclass(frozen=True)
@@ -153,6 +158,10 @@ class Catheter(Lumen):
     def __init__(self, gauge, inner_diameter=None, length=None, name=None, roughness=0.0):
         od, d, length = _catheter_dims(gauge, inner_diameter, length)
         object.__setattr__(self, "gauge", gauge)
+        if inner_diameter is None or length is None:
+            object.__setattr__(self, "source_note",
+                               "typical catalogue bore/length (from memory); pass the measured "
+                               "inner_diameter and length")
         super().__init__(inner_diameter=d, length=length, roughness=roughness,
                          name=name or f"{gauge}G catheter", outer_diameter=od)
 
@@ -193,6 +202,10 @@ class Needle(Lumen):
         d = (id_regular if wall == "regular" else id_thin) if inner_diameter is None else inner_diameter
         object.__setattr__(self, "gauge", gauge)
         object.__setattr__(self, "wall", wall)
+        if inner_diameter is None:
+            object.__setattr__(self, "source_note",
+                               "ISO 9626 minimum bore (from memory), a low flow estimate; pass "
+                               "the measured inner_diameter")
         super().__init__(inner_diameter=d, length=length, roughness=roughness,
                          name=name or f"{gauge}G {wall}-wall needle", outer_diameter=od)
 
@@ -227,6 +240,10 @@ class Cannula(Lumen):
         fr = check_positive("french", french, "Fr")
         od = fr * catalogue.FRENCH_TO_METRE
         if inner_diameter is None:
+            if wall_thickness is None:
+                object.__setattr__(self, "source_note",
+                                   "typical wall thickness (from memory) sets the bore; pass "
+                                   "inner_diameter or wall_thickness")
             wall = catalogue.CANNULA_TYPICAL_WALL if wall_thickness is None else wall_thickness
             wall = check_positive("wall_thickness", wall, "m")
             inner_diameter = od - 2.0 * wall
