@@ -263,3 +263,21 @@ def test_tolerance_of_a_glycerol_mixture_keeps_its_mass_fraction():
     assert (t["flow p5 [mL/min]"] < t["flow [mL/min]"]).all()
     assert (t["flow [mL/min]"] < t["flow p95 [mL/min]"]).all()
     assert t["flow [mL/min]"].iloc[0] > t["flow [mL/min]"].iloc[1]
+
+
+def test_a_catheter_given_by_its_measured_bore_is_that_lumen():
+    by_bore = run(sc(head="1 m", parts=[{"type": "catheter", "inner_diameter": "1.1 mm",
+                                         "length": "45 mm"}])).table.iloc[0]
+    water = rheoline.fluid("water", temperature_c=20.0)
+    res = rheoline.Line([rheoline.Tube(inner_diameter=1.1e-3, length=0.045)]).solve(water, head=1.0)
+    assert by_bore["flow [mL/min]"] == pytest.approx(res.flow / ML_PER_MIN, rel=1e-9)
+
+
+def test_measured_part_with_its_bench_fluid_in_several_scenarios():
+    part = {"type": "measured", "flows": ["100 mL/min", "200 mL/min"],
+            "pressure_drops": ["50 mmHg", "120 mmHg"], "test_density": "1000 kg/m^3",
+            "test_viscosity": "1 cP"}
+    t = run(sc(name="a", head="1 m", parts=[part]),
+            sc(name="b", head=["1 m", "2 m"], parts=[part])).table
+    assert len(t) == 3 and (t["flow [mL/min]"] > 0).all()
+    assert t["flow [mL/min]"].iloc[2] > t["flow [mL/min]"].iloc[1]

@@ -87,7 +87,10 @@ ASSUMPTIONS = (
 #: Monte Carlo samples per case when a scenario gives tolerances but no ``samples``.
 DEFAULT_TOLERANCE_SAMPLES = 2000
 
-_DISCRETE = {"gauge", "wall", "french", "kind", "k", "equivalent_length"}
+# Part fields that select a catalogue entry, or are single values by nature: grouped on,
+# never vectorized.
+_DISCRETE = {"gauge", "wall", "french", "kind", "k", "equivalent_length", "test_viscosity",
+             "test_density"}
 
 
 @dataclass
@@ -304,6 +307,8 @@ def _build_parts(group, source):
                     part = mp.Tube(inner_diameter=kw["inner_diameter"], length=length, name=name)
                 else:
                     part = mp.extension_set(kind, length=kw.get("length"), name=name)
+            elif spec.type == "catheter" and "gauge" not in kw:  # a measured bore only
+                part = mp.Tube(name=name or "catheter", **kw)
             elif spec.type == "catheter":
                 part = mp.Catheter(name=name, **kw)
             elif spec.type == "needle":

@@ -126,6 +126,8 @@ MAX_TOLERANCE_SOLVES = 400_000
 MAX_MEASURED_POINTS = 50
 
 _MAX_QUANTITY_CHARS = 60
+# Widest catheter or needle bore accepted [m]: above any 10G lumen (common practice, no source).
+_MAX_CATHETER_BORE = 5e-3
 _UNIT_CHARS = re.compile(r"^[A-Za-z0-9 µμ°%/*^.·_()\-]*$")
 _CONTROL = re.compile(r"[\x00-\x1f\x7f-\x9f]")
 
@@ -654,6 +656,20 @@ def _parse_part(raw, j, source, where):
         if key in raw and key not in ("type", "label", "tolerance"):
             values[key] = _value(raw[key], spec, source, where, prefix + key)
     _check_catalogue(ptype, values, source, where, prefix)
+    if ptype == "catheter" and "gauge" not in values and "length" not in values:
+        raise ScenarioError("is missing: a catheter given by its bore (no gauge) needs its length",
+                            source=source, scenario=where, field=prefix + "length")
+    bore = values.get("inner_diameter")
+    if ptype in ("catheter", "needle") and bore is not None:
+        biggest = max(bore.values) if isinstance(bore, Axis) else bore
+        if biggest > _MAX_CATHETER_BORE:
+            raw_bore = raw["inner_diameter"]
+            hint = (f"; if {raw_bore} is a gauge, write gauge = {raw_bore}"
+                    if isinstance(raw_bore, int) and not isinstance(raw_bore, bool) else "")
+            raise ScenarioError(f"{biggest * 1e3:g} mm is larger than any {ptype} bore "
+                                f"(up to {_MAX_CATHETER_BORE * 1e3:g} mm){hint}; for a wider "
+                                "lumen use a tube or a cannula", source=source, scenario=where,
+                                field=prefix + "inner_diameter")
     if ptype == "measured" and len(values["flows"]) != len(values["pressure_drops"]):
         raise ScenarioError(f"has {len(values['pressure_drops'])} values but flows has "
                             f"{len(values['flows'])}; give one pressure drop per flow",
@@ -907,8 +923,9 @@ def _scalar(value, spec, source, where, path, check_range=True):
             out = parse_quantity(value, "dimensionless", field=name)
         except UnitError as exc:
             fail(f"{_strip_field(exc, name)}; write a fraction such as 0.45 or a percent such as '45 %'")
-        if kind == "fraction" and isinstance(value, (int, float)) and out > 1:
-            fail(f"{value:g} is above 1; if that is a percent, write {value / 100:g} or '{value:g} %'")
+        if kind == "fraction" and out > 1 and not (isinstance(value, str) and "%" in value):
+            fail(f"{_shown(value)} is above 1; if that is a percent, write {out / 100:g} or "
+                 f"'{out:g} %'")
     elif kind == "temperature_delta":
         out = _temperature_delta(value, fail)
     elif kind == "tolerance_value":
