@@ -336,3 +336,28 @@ def test_catalogue_dimensions_are_flagged():
     assert not any("catalogue" in f for f in measured.flags)
     needle = Line([Needle(gauge=25)]).solve(WATER_22, head=1.0)
     assert any("ISO 9626 minimum bore" in f for f in needle.flags)
+
+
+def test_turbulent_tube_against_fluids_library_assembly():
+    # independent assembly with the fluids library (fluids.friction.Churchill_1977,
+    # fluids.fittings.entrance_sharp(method="Crane"), fluids.fittings.exit_normal):
+    # rho g h = (f L/D + K_entrance + K_exit) rho u^2 / 2, solved with scipy brentq
+    import fluids.fittings
+    import fluids.friction
+    from scipy.optimize import brentq
+
+    d, length, head = 4e-3, 2.0, 20.0
+    rho, mu = WATER_22.density, WATER_22.viscosity()
+    k = fluids.fittings.entrance_sharp(method="Crane") + fluids.fittings.exit_normal()
+
+    def residual(u):
+        re = rho * u * d / mu
+        f = fluids.friction.Churchill_1977(re, 0.0)
+        return (f * length / d + k) * rho * u * u / 2 - rho * GRAVITY * head
+
+    u = brentq(residual, 1e-3, 100.0, xtol=1e-12)
+    expected = u * np.pi * d * d / 4
+    result = Line([Tube(inner_diameter=d, length=length)]).solve(WATER_22, head=head)
+    assert result.regime == "turbulent"
+    # the developing-flow (Shah) term left inside the blend is negligible at Re ~ 1e4
+    assert result.flow == pytest.approx(expected, rel=1e-3)
