@@ -133,12 +133,12 @@ def _cmd_check(args, out):
 def _cmd_run(args, out, sset=None):
     from rheoline.scenario.export import check_target
 
+    if sset is None:
+        sset = _load(args.file)
     if args.out:
         from pathlib import Path
 
-        check_target(Path(args.out), args.force)  # refuse before any work
-    if sset is None:
-        sset = _load(args.file)
+        check_target(Path(args.out), args.force)  # refuse before solving anything
     run = _solve(sset)
     if args.json:
         out.write(json.dumps(run.records(), indent=2, allow_nan=False) + "\n")

@@ -259,9 +259,6 @@ def _write_sheet(ws, frame, title_row):
         cell.font = Font(bold=True)
     for row in frame.itertuples(index=False):
         ws.append([_xlsx_value(v) for v in row])
-    for cell in ws[ws.max_row]:  # no cell may hold a formula, whatever its text
-        if cell.data_type == "f":  # pragma: no cover - neutralize_cell prevents it
-            cell.data_type = "s"
     ws.freeze_panes = "A3"
     for col in ws.columns:
         width = max((len(str(c.value)) for c in col[1:] if c.value is not None), default=8)
