@@ -251,3 +251,16 @@ def test_a_file_in_the_way_is_not_replaced(tmp_path):
     with pytest.raises(PackExistsError, match="not a folder"):
         write_pack(fake_run(["x"]), target, force=True)
     assert target.read_text() == "mine"
+
+
+def test_scenario_copy_and_hash_are_of_the_bytes_as_given(tmp_path):
+    from rheoline.scenario.compare import run_scenarios
+    from rheoline.scenario.files import example_path, load_scenarios
+
+    src = tmp_path / "crlf.toml"
+    data = b"\xef\xbb\xbf" + example_path("minimal").read_bytes().replace(b"\n", b"\r\n")
+    src.write_bytes(data)  # a BOM and Windows line ends
+    folder = write_pack(run_scenarios(load_scenarios(src)), tmp_path / "pack")
+    assert (folder / "scenario-crlf.toml").read_bytes() == data
+    manifest = json.loads((folder / "manifest.json").read_text())
+    assert manifest["input_sha256"] == hashlib.sha256(data).hexdigest()

@@ -161,12 +161,13 @@ def _write_all(run, folder: Path):
     sset = run.scenario_set
     copy_name = "scenario-" + _safe_filename(sset.source if sset.source.endswith(
         (".toml", ".json")) else "scenarios.toml")
-    text = sset.text
-    if not text:
+    if sset.raw:
+        (folder / copy_name).write_bytes(sset.raw)  # byte for byte, as given
+    else:
         from rheoline.scenario.files import dump_scenarios
 
-        text = dump_scenarios(sset)
-    (folder / copy_name).write_text(text, encoding="utf-8", newline="")
+        (folder / copy_name).write_text(sset.text or dump_scenarios(sset), encoding="utf-8",
+                                        newline="")
     _write_csv(run.table, folder / "results.csv")
     _write_csv(run.parts, folder / "parts.csv")
     _write_xlsx(run, folder / "results.xlsx", meta)
@@ -183,7 +184,7 @@ def pack_metadata(run):
     from rheoline import __version__
 
     sset = run.scenario_set
-    digest = sset.sha256 or hashlib.sha256(sset.text.encode("utf-8")).hexdigest()
+    digest = sset.sha256 or hashlib.sha256(sset.raw or sset.text.encode("utf-8")).hexdigest()
     created = getattr(run, "created", None) or _dt.datetime.now(_dt.UTC)
     return {
         "tool": "rheoline",

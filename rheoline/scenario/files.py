@@ -359,6 +359,7 @@ class ScenarioSet:
     source: str = field(default="<string>", compare=False)
     text: str = field(default="", compare=False, repr=False)
     sha256: str = field(default="", compare=False)
+    raw: bytes = field(default=b"", compare=False, repr=False)
 
     @property
     def n_points(self):
@@ -404,7 +405,11 @@ def load_scenarios(path) -> ScenarioSet:
 
 
 def loads_scenarios(text, source: str = "<string>", fmt: str = "toml") -> ScenarioSet:
-    """Parse and validate scenario text (``str`` or UTF-8 ``bytes``) in TOML or JSON."""
+    """Parse and validate scenario text (``str`` or UTF-8 ``bytes``) in TOML or JSON.
+
+    The set's ``sha256`` is the hash of the bytes as given (of the UTF-8 text for a ``str``).
+    """
+    raw = text if isinstance(text, bytes) else text.encode("utf-8")
     if isinstance(text, bytes):
         if len(text) > MAX_FILE_BYTES:
             raise ScenarioError(f"text is {len(text)} bytes, above the limit of {MAX_FILE_BYTES}",
@@ -436,7 +441,7 @@ def loads_scenarios(text, source: str = "<string>", fmt: str = "toml") -> Scenar
         raise ScenarioError(f"cannot be parsed as {fmt.upper()}: {exc}", source=source) from None
     sset = parse_scenarios(data, source=source)
     return ScenarioSet(sset.scenarios, sset.title, sset.notes, source, text,
-                       hashlib.sha256(text.encode("utf-8")).hexdigest())
+                       hashlib.sha256(raw).hexdigest(), raw)
 
 
 def parse_scenarios(data, source: str = "<dict>") -> ScenarioSet:
