@@ -68,7 +68,7 @@ def test_flags_carry_a_symbol_and_a_word_not_colour_alone():
         text = style.flag_html(level, "<b>bad</b> & worse")
         assert symbol in text and word in text
         assert "&lt;b&gt;bad&lt;/b&gt; &amp; worse" in text  # the message is escaped
-    assert len({s for s, _, _ in style.FLAG_LEVELS.values()}) == len(style.FLAG_LEVELS)
+    assert len({w for _, w, _ in style.FLAG_LEVELS.values()}) == len(style.FLAG_LEVELS)
 
 
 def test_number_formats_carry_their_units():

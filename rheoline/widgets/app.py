@@ -52,7 +52,7 @@ class App(widgets.VBox):
             stand_in = View()
             stand_in.title = name
             stand_in.messages.value = flag_html(
-                "exceeded", f"the {name} view could not be built: {type(exc).__name__}: {exc}")
+                "error", f"the {name} view could not be built: {type(exc).__name__}: {exc}")
             stand_in._finish([])
             return stand_in
 

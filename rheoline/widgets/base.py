@@ -26,7 +26,8 @@ from rheoline.errors import RheolineError, RheolineWarning
 from rheoline.widgets.banner import caution_banner
 from rheoline.widgets.style import flag_html
 
-__all__ = ["View", "labelled", "time_control_change"]
+__all__ = ["View", "labelled", "number_field", "fluid_controls", "drive_controls",
+           "time_control_change"]
 
 _STYLE = {"description_width": "initial"}
 
@@ -37,12 +38,46 @@ def labelled(widget: widgets.Widget, css_class: str) -> widgets.Widget:
     return widget
 
 
+def number_field(value, low, high, step, description, css_class):
+    """A bounded number box with its unit in the description (e.g. ``"head [cm]"``)."""
+    return labelled(widgets.BoundedFloatText(value=value, min=low, max=high, step=step,
+                                             description=description, style=_STYLE), css_class)
+
+
+def fluid_controls(fluid, temperature_c, hematocrit, mass_fraction=0.4) -> dict:
+    """The fluid controls the line and comparison views share."""
+    import rheoline
+
+    return {
+        "fluid": labelled(widgets.Dropdown(options=list(rheoline.fluid_names()), value=fluid,
+                                           description="fluid", style=_STYLE), "rl-fluid"),
+        "temperature_c": number_field(temperature_c, 0.0, 60.0, 0.5, "temperature [degC]",
+                                      "rl-temperature"),
+        "hematocrit": number_field(hematocrit, 0.0, 0.8, 0.01, "hematocrit [-]",
+                                   "rl-hematocrit"),
+        "mass_fraction": number_field(mass_fraction, 0.0, 1.0, 0.01,
+                                      "glycerol mass fraction [-]", "rl-mass-fraction"),
+    }
+
+
+def drive_controls(head_cm, source_pressure_mmhg, back_pressure_mmhg) -> dict:
+    """The gravity-and-pressure drive controls the line and comparison views share."""
+    return {
+        "head_cm": number_field(head_cm, 0.0, 1000.0, 5.0, "head [cm]", "rl-head"),
+        "source_pressure_mmhg": number_field(source_pressure_mmhg, 0.0, 20000.0, 10.0,
+                                             "source pressure [mmHg]", "rl-source-pressure"),
+        "back_pressure_mmhg": number_field(back_pressure_mmhg, -200.0, 1000.0, 1.0,
+                                           "back pressure [mmHg]", "rl-back-pressure"),
+    }
+
+
 class View(widgets.VBox):
     """Base of the views: banner, body, message area, guarded and timed updates.
 
-    Subclasses build ``self.controls`` and ``self.figures`` in their constructor,
-    set each figure's initial data there (a FigureWidget shown by Voila must be
-    complete when the page connects), then call :meth:`_finish` with the body.
+    Subclasses build ``self.controls`` and ``self.figures`` (plain ``go.Figure``) in
+    their constructor, run the first update, call :meth:`_widgetize` (a FigureWidget
+    shown by Voila must be complete when it is built), then :meth:`_finish` with the
+    body.
     """
 
     title = "view"
@@ -52,10 +87,19 @@ class View(widgets.VBox):
         self.controls: dict[str, widgets.Widget] = {}
         self.figures: dict = {}
         self.last_update_seconds = float("nan")
+        self._paused = False  # True while a view sets several controls at once
         self.banner = caution_banner()
         self.messages = widgets.HTML(value="")
         self.messages.add_class("rl-messages")
         self.add_class("rl-view")
+
+    def _widgetize(self):
+        """Turn the filled figures into FigureWidgets (their constructor carries the state)."""
+        import plotly.graph_objects as go
+
+        for name, fig in self.figures.items():
+            if not isinstance(fig, go.FigureWidget):
+                self.figures[name] = go.FigureWidget(fig)
 
     def _finish(self, body: list):
         self.children = [self.banner, *body, self.messages]
@@ -71,7 +115,8 @@ class View(widgets.VBox):
             frozen = frozenset(parts)
 
             def observer(change, frozen=frozen):
-                self._run(lambda: self._refresh(frozen))
+                if not self._paused:
+                    self._run(lambda: self._refresh(frozen))
 
             self.controls[name].observe(observer, names="value")
 
@@ -89,7 +134,7 @@ class View(widgets.VBox):
                 notes = []
             except RheolineError as exc:
                 ok = False
-                notes = [flag_html("exceeded", f"not computed: {exc}")]
+                notes = [flag_html("error", str(exc))]
         notes += [flag_html("caution", str(w.message)) for w in caught
                   if issubclass(w.category, RheolineWarning)]
         self.messages.value = "".join(notes)

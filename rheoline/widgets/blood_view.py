@@ -118,6 +118,7 @@ class BloodVesselView(View):
                                            "cardiac_output_l_min", "height_cm", "weight_kg")},
         })
         self._run(lambda: self._refresh(everything | {"calculator"}))
+        self._widgetize()
 
         blood_box = widgets.VBox([c["hematocrit"], c["temperature_c"], c["shear_rate"], c["axis"],
                                   self.figures["viscosity"]])

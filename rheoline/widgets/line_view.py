@@ -29,7 +29,7 @@ import plotly.graph_objects as go
 
 import rheoline
 from rheoline.units import ML_PER_H, ML_PER_MIN, MMHG
-from rheoline.widgets.base import _STYLE, View, labelled
+from rheoline.widgets.base import _STYLE, View, drive_controls, fluid_controls, labelled
 from rheoline.widgets.figures import BASE_LAYOUT, curve_and_point_figure
 from rheoline.widgets.parts_editor import DEFAULT_PARTS, PartsEditor, build_part
 from rheoline.widgets.style import PALETTE, flag_html, format_number, significant
@@ -46,16 +46,38 @@ DRIVE_CURVE_POINTS = 41
 
 
 @functools.lru_cache(maxsize=64)
+def fluid_options(name: str) -> frozenset:
+    """The options a library fluid takes (``hematocrit``, ``mass_fraction``, ...)."""
+    from rheoline.model.fluids import FLUID_LIBRARY
+
+    return frozenset(FLUID_LIBRARY[name].options) if name in FLUID_LIBRARY else frozenset()
+
+
 def _is_blood(name: str) -> bool:
-    return rheoline.fluid(name).is_blood
+    return "hematocrit" in fluid_options(name)
+
+
+def fluid_for(name: str, temperature_c, hematocrit: float, mass_fraction: float = 0.4):
+    """The library fluid at a temperature [degC] (float or array), with the hematocrit [-]
+    for blood and the glycerol mass fraction [-] for glycerol-water; cached for floats."""
+    if np.ndim(temperature_c) == 0:
+        return _fluid_cached(name, float(temperature_c), float(hematocrit), float(mass_fraction))
+    return _fluid(name, temperature_c, hematocrit, mass_fraction)
+
+
+def _fluid(name, temperature_c, hematocrit, mass_fraction):
+    options = fluid_options(name)
+    kwargs = {}
+    if "hematocrit" in options:
+        kwargs["hematocrit"] = hematocrit
+    if "mass_fraction" in options:
+        kwargs["mass_fraction"] = mass_fraction
+    return rheoline.fluid(name, temperature_c=temperature_c, **kwargs)
 
 
 @functools.lru_cache(maxsize=256)
-def fluid_for(name: str, temperature_c: float, hematocrit: float):
-    """The library fluid at a temperature [degC] (and hematocrit [-] for blood), cached."""
-    if _is_blood(name):
-        return rheoline.fluid(name, temperature_c=temperature_c, hematocrit=hematocrit)
-    return rheoline.fluid(name, temperature_c=temperature_c)
+def _fluid_cached(name, temperature_c, hematocrit, mass_fraction):
+    return _fluid(name, temperature_c, hematocrit, mass_fraction)
 
 
 def _frozen(descriptions):
@@ -102,36 +124,20 @@ class LineView(View):
         c = self.controls
         self.editor = PartsEditor(parts)
         c["parts"] = self.editor.version
-        names = list(rheoline.fluid_names())
-        c["fluid"] = labelled(widgets.Dropdown(options=names, value=fluid,
-                                               description="fluid", style=_STYLE), "rl-fluid")
-        c["temperature_c"] = labelled(widgets.BoundedFloatText(
-            value=temperature_c, min=0.0, max=60.0, step=0.5, description="temperature [degC]",
-            style=_STYLE), "rl-temperature")
-        c["hematocrit"] = labelled(widgets.BoundedFloatText(
-            value=hematocrit, min=0.0, max=0.8, step=0.01, description="hematocrit [-]",
-            style=_STYLE), "rl-hematocrit")
+        c.update(fluid_controls(fluid, temperature_c, hematocrit))
         c["mode"] = labelled(widgets.ToggleButtons(options=list(DRIVE_MODES), value=mode,
                                                    description="drive", style=_STYLE), "rl-mode")
-        c["head_cm"] = labelled(widgets.BoundedFloatText(
-            value=head_cm, min=0.0, max=1000.0, step=5.0, description="head [cm]",
-            style=_STYLE), "rl-head")
-        c["source_pressure_mmhg"] = labelled(widgets.BoundedFloatText(
-            value=source_pressure_mmhg, min=0.0, max=20000.0, step=10.0,
-            description="source pressure [mmHg]", style=_STYLE), "rl-source-pressure")
+        c.update(drive_controls(head_cm, source_pressure_mmhg, back_pressure_mmhg))
         c["flow_ml_min"] = labelled(widgets.BoundedFloatText(
             value=flow_ml_min, min=0.001, max=20000.0, step=5.0,
             description="set flow [mL/min]", style=_STYLE), "rl-set-flow")
         c["pressure_limit_mmhg"] = labelled(widgets.BoundedFloatText(
             value=pressure_limit_mmhg, min=0.0, max=45000.0, step=10.0,
             description="pressure limit [mmHg] (0 = none)", style=_STYLE), "rl-pressure-limit")
-        c["back_pressure_mmhg"] = labelled(widgets.BoundedFloatText(
-            value=back_pressure_mmhg, min=-200.0, max=1000.0, step=1.0,
-            description="back pressure [mmHg]", style=_STYLE), "rl-back-pressure")
         self.results = labelled(widgets.HTML(), "rl-results")
         self.result = None
 
-        self.figures["budget"] = go.FigureWidget(
+        self.figures["budget"] = go.Figure(
             data=[go.Bar(name="pressure drop", orientation="h",
                          marker=dict(color=PALETTE[0], line=dict(color="#1a1a1a", width=1)),
                          textposition="auto")],
@@ -148,11 +154,13 @@ class LineView(View):
         self._line = None
         self._watch({name: {"solve"} for name in c})
         self._run(lambda: self._refresh({"solve"}))
+        self._widgetize()
 
         drive_box = widgets.VBox([c["mode"], c["head_cm"], c["source_pressure_mmhg"],
                                   c["flow_ml_min"], c["pressure_limit_mmhg"],
                                   c["back_pressure_mmhg"]])
-        fluid_box = widgets.VBox([c["fluid"], c["temperature_c"], c["hematocrit"]])
+        fluid_box = widgets.VBox([c["fluid"], c["temperature_c"], c["hematocrit"],
+                                  c["mass_fraction"]])
         self._finish([self.editor, widgets.HBox([fluid_box, drive_box]), self.results,
                       widgets.HBox([self.figures["budget"], self.figures["drive"]])])
 
@@ -169,19 +177,20 @@ class LineView(View):
     def fluid(self):
         """The fluid at the current temperature and hematocrit."""
         c = self.controls
-        return fluid_for(c["fluid"].value, float(c["temperature_c"].value),
-                         float(c["hematocrit"].value))
+        return fluid_for(c["fluid"].value, c["temperature_c"].value, c["hematocrit"].value,
+                         c["mass_fraction"].value)
 
     def drive(self) -> dict:
         """Keyword arguments of :meth:`rheoline.Line.solve` for the current drive (SI)."""
         c = self.controls
-        common = {"head": c["head_cm"].value * 1e-2,
-                  "back_pressure": c["back_pressure_mmhg"].value * MMHG}
+        back = c["back_pressure_mmhg"].value * MMHG
         if c["mode"].value == "set flow (pump)":
+            # the pump's outlet pressure is the whole drive (no bag head), as in scenario files
             limit = c["pressure_limit_mmhg"].value
-            return {**common, "flow": c["flow_ml_min"].value * ML_PER_MIN,
+            return {"back_pressure": back, "flow": c["flow_ml_min"].value * ML_PER_MIN,
                     "pressure_limit": limit * MMHG if limit > 0 else None}
-        return {**common, "source_pressure": c["source_pressure_mmhg"].value * MMHG}
+        return {"head": c["head_cm"].value * 1e-2, "back_pressure": back,
+                "source_pressure": c["source_pressure_mmhg"].value * MMHG}
 
     def solve(self):
         """The line engine's result for the current inputs."""
@@ -203,10 +212,12 @@ class LineView(View):
     # -- drawing ---------------------------------------------------------------------
     def _refresh(self, parts):
         c = self.controls
-        blood = _is_blood(c["fluid"].value)
-        c["hematocrit"].disabled = not blood
+        options = fluid_options(c["fluid"].value)
+        c["hematocrit"].disabled = "hematocrit" not in options
+        c["mass_fraction"].disabled = "mass_fraction" not in options
         pump = c["mode"].value == "set flow (pump)"
         c["source_pressure_mmhg"].disabled = pump
+        c["head_cm"].disabled = pump
         c["flow_ml_min"].disabled = not pump
         c["pressure_limit_mmhg"].disabled = not pump
         result = self.solve()
@@ -224,9 +235,11 @@ class LineView(View):
             f"<div>flow <b><span class='rl-flow' data-flow-ml-min='{flow / ML_PER_MIN!r}'>"
             f"{significant(flow / ML_PER_MIN)} mL/min</span></b> "
             f"(<span class='rl-flow-h'>{significant(flow / ML_PER_H)} mL/h</span>)</div>",
-            f"<div>required source pressure <b><span class='rl-required-pressure'>"
-            f"{format_number(required / MMHG, 'mmHg')}</span></b> above the gravity head "
-            f"({format_number(required / 1e3, 'kPa')})</div>",
+            (f"<div>required pump pressure <b><span class='rl-required-pressure'>"
+             f"{format_number(required / MMHG, 'mmHg')}</span></b> "
+             f"({format_number(required / 1e3, 'kPa')})</div>" if pump else
+             f"<div>net drive <b>{format_number(float(result.net_drive) / MMHG, 'mmHg')}</b> "
+             f"(gravity head plus source pressure, less back pressure)</div>"),
             f"<div>regime <b><span class='rl-regime'>{html.escape(regime)}</span></b> "
             f"(largest Reynolds number {significant(float(result.max_reynolds))})</div>",
             f"<div>largest wall shear stress <b>"

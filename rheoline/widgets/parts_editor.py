@@ -17,17 +17,20 @@ Examples
 
 from __future__ import annotations
 
+import html
+
 import ipywidgets as widgets
 
 import rheoline
+from rheoline.model import catalogue
 
 __all__ = ["PartsEditor", "PartRow", "build_part", "PART_KINDS", "DEFAULT_PARTS", "part_label"]
 
 #: Part kinds the editor offers (a measured part comes only from a scenario file).
 PART_KINDS = ("catheter", "needle", "cannula", "tube", "fitting")
-#: Gauges offered for catheters and needles, and French sizes for cannulas.
-CATHETER_GAUGES = (14, 16, 18, 20, 22, 24, 26)
-NEEDLE_GAUGES = (14, 15, 16, 17, 18, 19, 20, 21, 22, 23, 25, 27, 30)
+#: Gauges offered for catheters and needles (the catalogue's), and French sizes for cannulas.
+CATHETER_GAUGES = tuple(sorted(catalogue.CATHETER_GAUGES))
+NEEDLE_GAUGES = tuple(sorted(catalogue.NEEDLE_GAUGES))
 CANNULA_FRENCH = (6, 8, 10, 12, 14, 16, 18, 20, 22, 24)
 
 #: A standard gravity set behind an 18G peripheral catheter (invented demo line).
@@ -52,6 +55,8 @@ def part_label(description: dict, index: int) -> str:
         return f"{index}. tube {description.get('inner_diameter_mm')} mm"
     if kind == "fitting":
         return f"{index}. fitting K={description.get('k')}"
+    if "part" in description:
+        return f"{index}. {description['part'].name}"
     return f"{index}. {kind}"
 
 
@@ -60,17 +65,21 @@ def _given(description, key):
     return None if value in (None, 0, 0.0) else float(value)
 
 
-def build_part(description: dict):
+def build_part(description: dict, inner_diameter=None, length=None):
     """The model layer's part for a description (bore [mm] and length [cm] become metres).
 
-    A ``"measured"`` description carries the part object itself under ``"part"``.
+    ``inner_diameter`` and ``length`` [m] (floats or arrays, one per scenario) replace the
+    description's values; the comparison view uses them for bore sweeps and tolerance
+    samples.  A ``"measured"`` description carries the part object itself under ``"part"``.
     """
     kind = description["type"]
     name = description.get("label") or None
     bore = _given(description, "inner_diameter_mm")
-    length = _given(description, "length_cm")
-    bore_m = None if bore is None else bore * 1e-3
-    length_m = None if length is None else length * 1e-2
+    given_length = _given(description, "length_cm")
+    bore_m = inner_diameter if inner_diameter is not None else (
+        None if bore is None else bore * 1e-3)
+    length_m = length if length is not None else (
+        None if given_length is None else given_length * 1e-2)
     if kind == "catheter":
         return rheoline.Catheter(gauge=int(description["gauge"]), inner_diameter=bore_m,
                                  length=length_m, name=name)
@@ -86,7 +95,7 @@ def build_part(description: dict):
         return rheoline.Tube(inner_diameter=bore_m, length=length_m, name=name)
     if kind == "fitting":
         return rheoline.Fitting(k=float(description.get("k", 0.0)), name=name)
-    if kind == "measured":
+    if "part" in description:  # a set or a measured part from a scenario file
         return description["part"]
     raise rheoline.RheolineError(
         f"part type {kind!r} is not one the editor knows; choose one of {PART_KINDS}")
@@ -98,9 +107,9 @@ class PartRow(widgets.HBox):
     def __init__(self, description: dict, on_change, on_remove):
         super().__init__()
         self.add_class("rl-part-row")
-        self._measured = description if description["type"] == "measured" else None
+        self._fixed = description if "part" in description else None
         self._label = description.get("label", "")
-        options = PART_KINDS if self._measured is None else ("measured",)
+        options = PART_KINDS if self._fixed is None else (description["type"],)
         self.kind = widgets.Dropdown(options=options, value=description["type"],
                                      layout=widgets.Layout(width=_W["type"]))
         self.kind.add_class("rl-part-type")
@@ -151,12 +160,11 @@ class PartRow(widgets.HBox):
             "cannula": (self.size, self.bore, self.length),
             "tube": (self.bore, self.length),
             "fitting": (self.k,),
-            "measured": (),
-        }[kind]
-        name = widgets.HTML(f"<i>{self._label or 'measured part'} (bench pairs from file)</i>"
-                            if kind == "measured" else "")
-        self.children = [self.kind, *visible, *( [name] if kind == "measured" else []),
-                         self.remove]
+        }.get(kind, ())
+        if self._fixed is not None:
+            name = html.escape(self._fixed["part"].name)
+            visible = (widgets.HTML(f"<i>{name} (from the scenario file, not editable here)</i>"),)
+        self.children = [self.kind, *visible, self.remove]
 
     def _kind_changed(self, change):
         self._quiet = True
@@ -173,8 +181,8 @@ class PartRow(widgets.HBox):
     def description(self) -> dict:
         """This row as a part description."""
         kind = self.kind.value
-        if kind == "measured":
-            return dict(self._measured)
+        if self._fixed is not None:
+            return dict(self._fixed)
         out = {"type": kind}
         if self._label:
             out["label"] = self._label

@@ -60,6 +60,7 @@ FLAG_LEVELS = {
     "note": ("[i]", "note", "#1f4e9c"),
     "caution": ("[!]", "caution", "#8a5a00"),
     "exceeded": ("[X]", "limit exceeded", "#a8327a"),
+    "error": ("[X]", "not computed", "#a8327a"),
 }
 
 
