@@ -51,6 +51,8 @@ def test_every_example_round_trips(name, tmp_path):
     saved = save_scenarios(original, tmp_path / f"{name}.toml")
     again = load_scenarios(saved)
     assert again == original
+    as_json = load_scenarios(save_scenarios(original, tmp_path / f"{name}.json"))
+    assert as_json == original
     assert [s.n_points for s in again.scenarios] == [s.n_points for s in original.scenarios]
 
 

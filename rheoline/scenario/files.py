@@ -1063,16 +1063,18 @@ def sweep_points(scenario: Scenario):
 
 
 # --------------------------------------------------------------------------- writing
-def dump_scenarios(sset: ScenarioSet) -> str:
-    """Write a scenario set as TOML text that :func:`loads_scenarios` reads back equal."""
-    import tomli_w
-
+def dump_scenarios(sset: ScenarioSet, fmt: str = "toml") -> str:
+    """Write a scenario set as TOML (or JSON) text that :func:`loads_scenarios` reads back equal."""
     doc = {"format_version": FORMAT_VERSION}
     if sset.title:
         doc["title"] = sset.title
     if sset.notes:
         doc["notes"] = sset.notes
     doc["scenario"] = [_plain(s.raw) for s in sset.scenarios]
+    if fmt == "json":
+        return json.dumps(doc, indent=2, ensure_ascii=False, allow_nan=False) + "\n"
+    import tomli_w
+
     return tomli_w.dumps(doc)
 
 
@@ -1085,15 +1087,16 @@ def _plain(obj):
 
 
 def save_scenarios(sset: ScenarioSet, path, force: bool = False) -> Path:
-    """Write ``sset`` to ``path`` as TOML, atomically (temporary file, then rename).
+    """Write ``sset`` to ``path`` atomically (temporary file, then rename).
 
-    An existing file is kept unless ``force`` is true.
+    JSON for a ``.json`` path, TOML otherwise.  An existing file is kept unless ``force``
+    is true.
     """
     path = Path(path)
     if path.exists() and not force:
         raise ScenarioError("exists already; choose another name or pass force=True",
                             source=str(path))
-    text = dump_scenarios(sset)
+    text = dump_scenarios(sset, fmt="json" if path.suffix.lower() == ".json" else "toml")
     fd, tmp = tempfile.mkstemp(prefix=f".{path.name}.", suffix=".tmp", dir=path.parent or ".")
     try:
         with os.fdopen(fd, "w", encoding="utf-8", newline="\n") as fh:
