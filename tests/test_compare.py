@@ -281,3 +281,10 @@ def test_measured_part_with_its_bench_fluid_in_several_scenarios():
             sc(name="b", head=["1 m", "2 m"], parts=[part])).table
     assert len(t) == 3 and (t["flow [mL/min]"] > 0).all()
     assert t["flow [mL/min]"].iloc[2] > t["flow [mL/min]"].iloc[1]
+
+
+def test_hemolysis_index_is_given_for_blood_only():
+    t = run(sc(name="saline", fluid="saline-0.9", head="1 m"),
+            sc(name="blood", fluid="whole-blood", temperature="37 degC", head="1 m")).table
+    assert math.isnan(t["hemolysis index [%]"].iloc[0])
+    assert t["hemolysis index [%]"].iloc[1] > 0

@@ -7,7 +7,7 @@ its sweep) with the units in the column names:
 ``flow [mL/min]``, ``flow [mL/h]``, ``required pressure [mmHg]`` (the source pressure
 above the gravity head), ``max Reynolds number``, ``regime`` (the worst part),
 ``dominant part`` and ``dominant share [%]`` of the pressure budget,
-``max wall shear stress [Pa]``, ``hemolysis index [%]`` (Giersiepen 1990) and
+``max wall shear stress [Pa]``, ``hemolysis index [%]`` (Giersiepen 1990, blood fluids only) and
 ``hemolysis concern``, ``over pressure limit``, ``flags`` (validity notes),
 ``flow p5 [mL/min]`` / ``flow p95 [mL/min]`` (a pump: ``pressure p5/p95 [mmHg]``) and the
 ``dominant tolerance`` where tolerances are given, and
@@ -528,7 +528,7 @@ def _solve_group(g, source):
             float(flow[col]) / ML_PER_MIN, float(flow[col]) / ML_PER_H,
             float(req[col]) / MMHG + 0.0, lim / MMHG if lim is not None else np.nan, over,
             float(max_re[col]), str(regime[col]), str(dom[col]), float(share[col]) * 100,
-            float(wss[col]), float(hemo[col]), concern,
+            float(wss[col]), float(hemo[col]) if is_blood else np.nan, concern,
             band[0][col] if band and sc.mode == "drive" else np.nan,
             band[1][col] if band and sc.mode == "drive" else np.nan,
             band[0][col] if band and sc.mode == "flow" else np.nan,
