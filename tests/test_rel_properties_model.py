@@ -536,3 +536,98 @@ def test_bad_poiseuille_input_names_the_field(bad, field):
     kwargs[field] = bad
     with pytest.raises(InputRangeError, match=field):
         poiseuille_flow(**kwargs)
+
+
+# --------------------------------------------------------------------------- vessels, delivery
+@given(d=_log_uniform(1e-3, 1e-2), q1=_log_uniform(1e-8, 1e-4), q2=_log_uniform(1e-8, 1e-4),
+       ratio=st.floats(0.2, 0.95), mu=_log_uniform(2e-3, 6e-3))
+def test_stenosis_drop_rises_with_flow_and_narrowing(d, q1, q2, ratio, mu):
+    # Young & Tsai 1973: viscous term ~ U, expansion term ~ U^2 (A0/A1 - 1)^2
+    _count("stenosis_monotonic")
+    from rheoline.model.stenosis import young_tsai_1973_pressure_drop
+
+    assume(abs(q1 - q2) > 1e-6 * max(q1, q2))
+    lo, hi = sorted((q1, q2))
+    dp = young_tsai_1973_pressure_drop(np.array([lo, hi]), d, ratio * d, 2 * d, mu)
+    assert 0 < dp[0] < dp[1]
+    narrower = young_tsai_1973_pressure_drop(lo, d, 0.9 * ratio * d, 2 * d, mu)
+    assert narrower > dp[0]
+
+
+@given(r=_log_uniform(1e-3, 5e-3), dp=st.floats(100.0, 2e4),
+       reductions=st.lists(st.floats(0.0, 95.0), min_size=2, max_size=6))
+def test_flow_lost_to_a_stenosis_rises_with_its_severity(r, dp, reductions):
+    _count("stenosis_flow_lost")
+    from rheoline.model.stenosis import stenosis_flow_fraction_lost
+
+    vessel = Vessel(radius=r, length=0.05, viscosity_law="newtonian", viscosity=3.5e-3)
+    values = np.array(sorted(reductions))
+    lost = np.asarray(stenosis_flow_fraction_lost(vessel, dp, values))
+    assert _finite(lost) and np.all((lost >= -1e-12) & (lost < 1))
+    assert np.all(np.diff(lost) >= -1e-9)
+
+
+@given(dp=st.floats(0.1, 200.0), q=st.floats(0.1, 20.0), k=st.floats(1.1, 5.0))
+def test_vascular_resistance_scales_and_converts(dp, q, k):
+    # (upstream - downstream) / flow; 1 Wood unit = 79.99 dyn s cm^-5 (NIST SP 811 factors)
+    _count("vascular_resistance")
+    r = rheoline.vascular_resistance(dp + 5.0, 5.0, q)
+    assert r.wood_units == pytest.approx(dp / q, rel=1e-12)
+    assert rheoline.vascular_resistance(dp + 5.0, 5.0, k * q).wood_units == pytest.approx(
+        r.wood_units / k, rel=1e-12)
+    assert r.dyn_s_per_cm5 == pytest.approx(79.993 * r.wood_units, rel=1e-4)
+    # NIST SP 811 gives 1 mmHg = 1.333224e2 Pa: agreement to its 6 digits
+    assert r.pa_s_per_m3 == pytest.approx(r.wood_units * MMHG / (1e-3 / 60.0), rel=1e-5)
+
+
+@given(h1=st.floats(100.0, 220.0), h2=st.floats(100.0, 220.0), w=st.floats(30.0, 200.0),
+       method=st.sampled_from(["mosteller", "dubois"]))
+def test_body_surface_area_rises_with_height(h1, h2, w, method):
+    _count("body_surface_area")
+    assume(abs(h1 - h2) > 0.1)
+    lo, hi = sorted((h1, h2))
+    assert rheoline.body_surface_area(lo, w, method) < rheoline.body_surface_area(hi, w, method)
+
+
+@given(r=st.lists(_log_uniform(1e6, 1e13), min_size=2, max_size=6))
+def test_network_equivalent_resistance_of_series_and_parallel(r):
+    # Kirchhoff: series resistances add, parallel conductances add
+    _count("network_series_parallel")
+    n = len(r)
+    series = VesselNetwork(list(range(n)), list(range(1, n + 1)), np.array(r))
+    # rounding of the sparse solve grows with the spread of the resistances (up to 1e7 here)
+    assert series.equivalent_resistance(0, n) == pytest.approx(sum(r), rel=1e-6)
+    parallel = VesselNetwork(["a"] * n, ["b"] * n, np.array(r))
+    assert parallel.equivalent_resistance("a", "b") == pytest.approx(
+        1.0 / sum(1.0 / x for x in r), rel=1e-6)
+
+
+@given(d=_log_uniform(5e-4, 3e-3), h_full=st.floats(0.5, 2.0), fall=st.floats(0.0, 0.4),
+       volume=st.floats(1e-5, 1e-3), fluid_name=st.sampled_from(["water", "saline-0.9"]))
+def test_falling_head_time_lies_between_the_full_and_empty_times(d, h_full, fall, volume,
+                                                                 fluid_name):
+    _count("delivery_bounds")
+    from rheoline.model.delivery import falling_head_delivery_time
+
+    fl = rheoline.fluid(fluid_name, temperature_c=22.0)
+    line = Line([Tube(inner_diameter=3e-3, length=1.8), Tube(inner_diameter=d, length=0.05)])
+    h_empty = h_full * (1 - fall)
+    t = falling_head_delivery_time(line, fl, volume, h_full, h_empty).time
+    q_full = line.solve(fl, head=h_full).flow
+    q_empty = line.solve(fl, head=h_empty).flow
+    assert volume / q_full * (1 - 1e-6) <= t <= volume / q_empty * (1 + 1e-6)
+
+
+@given(tol=st.floats(0.005, 0.1), seed=st.integers(0, 2**32 - 1), gauge=catheter_gauges)
+def test_tolerance_band_brackets_the_nominal(tol, seed, gauge):
+    _count("tolerance_band")
+    from rheoline.model.tolerance import flow_tolerance
+
+    fl = rheoline.fluid("saline-0.9", temperature_c=22.0)
+    line = Line([Tube(inner_diameter=3e-3, length=1.8), Catheter(gauge=gauge)])
+    band = flow_tolerance(line, fl, head=1.0, diameter_tolerance={1: tol}, n_samples=400,
+                          seed=seed)
+    assert _finite(band.samples)
+    p5, p50, p95 = (band.percentiles[p] for p in (5.0, 50.0, 95.0))
+    assert p5 <= band.nominal * (1 + 1e-9) and band.nominal * (1 - 1e-9) <= p95
+    assert p5 <= p50 <= p95
