@@ -2,12 +2,13 @@
 
 Commands::
 
-    rheoline run FILE [--out DIR] [--json] [--force]   solve a scenario file, print the table
+    rheoline run FILE [--out DIR] [--json] [--force] [--sort COLUMN] [--reach FLOW]
+                                                       solve a scenario file, print the table
     rheoline check FILE                                validate a scenario file, solve nothing
     rheoline fluids                                    the fluid library and its sources
     rheoline parts [--kind KIND]                       the part catalogue and its sources
     rheoline fields                                    every scenario-file field, unit and range
-    rheoline demo [--out DIR] [--json] [--force]       the built-in demo (invented cart review)
+    rheoline demo [--out DIR] [--json] [--force] ...   the built-in demo (invented cart review)
     rheoline examples [NAME]                           list the shipped example files, or print one
 
 Exit status: 0 on success, 2 on bad input (one line on stderr, no traceback), 1 on an
@@ -106,6 +107,11 @@ def _output_options(cmd):
     cmd.add_argument("--json", action="store_true",
                      help="print a JSON array (one object per scenario or sweep point)")
     cmd.add_argument("--force", action="store_true", help="replace an existing pack at --out")
+    cmd.add_argument("--sort", metavar="COLUMN",
+                     help="sort the printed table by a column, highest first (e.g. 'flow [mL/min]')")
+    cmd.add_argument("--reach", metavar="FLOW",
+                     help="also name, per scenario, the smallest-bore case reaching FLOW "
+                          "(e.g. '100 mL/min')")
 
 
 # --------------------------------------------------------------------------- commands
@@ -139,12 +145,22 @@ def _cmd_run(args, out, sset=None):
         from pathlib import Path
 
         check_target(Path(args.out), args.force)  # refuse before solving anything
+    reach = None
+    if args.reach:
+        from rheoline.units import ML_PER_MIN, parse_quantity
+
+        reach = parse_quantity(args.reach, "flow", default_unit="mL/min", field="--reach")
+        reach /= ML_PER_MIN
     run = _solve(sset)
+    if args.sort:
+        from rheoline.scenario.compare import rank
+
+        run.table = rank(run.table, by=args.sort)
     if args.json:
         out.write(json.dumps(run.records(), indent=2, allow_nan=False) + "\n")
         print(_caution(), file=sys.stderr)
     else:
-        out.write(format_run(run) + "\n")
+        out.write(format_run(run, reach) + "\n")
     if args.out:
         from rheoline.scenario.export import write_pack
 
@@ -257,13 +273,29 @@ def _frame_text(frame):
     return "\n".join([line(columns)] + [line([t for t, _ in c]) for c in cells])
 
 
-def format_run(run) -> str:
-    """The comparison table as printed by ``rheoline run``, with the caution above and below."""
+def format_run(run, reach=None) -> str:
+    """The comparison table as printed by ``rheoline run``, with the caution above and below.
+
+    With ``reach`` [mL/min], a line per scenario names its smallest-bore case reaching it.
+    """
     lines = [f"CAUTION: {_caution()}", ""]
     title = run.scenario_set.title
     if title:
         lines += [_printable(title), ""]
     lines.append(_frame_text(run.summary()))
+    if reach is not None:
+        from rheoline.scenario.compare import smallest_reaching
+
+        lines += ["", f"Smallest bore reaching {reach:g} mL/min:"]
+        for name in dict.fromkeys(run.table["scenario"]):
+            best = smallest_reaching(run.table, reach, scenario=name)
+            if best.empty:
+                lines.append(f"  - {_printable(name)}: no case reaches it")
+            else:
+                row = best.iloc[0]
+                lines.append(f"  - {_printable(name)}: {_printable(row['case'])} "
+                             f"({row['smallest bore [mm]']:.3g} mm bore, "
+                             f"{row['flow [mL/min]']:.4g} mL/min)")
     if run.warnings:
         lines += ["", "Notes:"] + [f"  - {_printable(w)}" for w in run.warnings]
     lines += ["", f"CAUTION: {_caution()}"]

@@ -3,7 +3,7 @@
 import csv
 import html
 import json
-import shutil
+import os
 import subprocess
 import sys
 from html.parser import HTMLParser
@@ -97,11 +97,15 @@ def test_internal_fault_exits_1_without_traceback(capsys, monkeypatch):
     assert "Traceback" not in err and err.count("\n") == 1
 
 
-def test_installed_entry_point_exits_2_in_a_real_process(tmp_path):
-    exe = shutil.which("rheoline")
-    argv = [exe] if exe else [sys.executable, "-m", "rheoline.cli"]
-    done = subprocess.run([*argv, "run", str(MALFORMED / "pressure_in_ml.toml"), "--out",
-                           str(tmp_path / "p")], capture_output=True, text=True, timeout=120)
+def test_entry_point_exits_2_in_a_real_process(tmp_path):
+    # the tree under test, whatever copy of rheoline is installed
+    root = Path(cli.__file__).resolve().parents[1]
+    pyproject = (root / "pyproject.toml").read_text()
+    assert 'rheoline = "rheoline.cli:main"' in pyproject
+    env = {**os.environ, "PYTHONPATH": str(root)}
+    done = subprocess.run([sys.executable, "-m", "rheoline.cli", "run",
+                           str(MALFORMED / "pressure_in_ml.toml"), "--out", str(tmp_path / "p")],
+                          capture_output=True, text=True, timeout=120, env=env, cwd=tmp_path)
     assert done.returncode == 2 and done.stdout == ""
     assert_one_line_error(done.stderr, "field 'source_pressure'")
     assert not (tmp_path / "p").exists()
@@ -347,3 +351,21 @@ def test_json_objects_have_the_documented_keys(capsys):
         assert obj["parts"] and all(
             {"pressure_drop_pa", "reynolds", "wall_shear_stress_pa"} <= set(p)
             for p in obj["parts"])
+
+
+def test_sort_and_reach(capsys):
+    status, out, _ = call(capsys, "run", example_path("bench-sweep"), "--sort", "flow [mL/min]",
+                          "--reach", "100 mL/min")
+    assert status == 0
+    lines = out.splitlines()
+    rows = [line for line in lines if line.startswith("water, gauge x height |")]
+    flows = [float(line.split()[8]) for line in rows]  # after "water, gauge x height | 150 cm, 14G"
+    assert flows == sorted(flows, reverse=True)
+    at = lines.index("Smallest bore reaching 100 mL/min:")
+    assert lines[at + 1].startswith("  - water, gauge x height: water, gauge x height | ")
+    status, _, err = call(capsys, "run", example_path("bench-sweep"), "--sort", "flow [mL/mn]")
+    assert status == 2
+    assert_one_line_error(err, "did you mean 'flow [mL/min]'")
+    status, _, err = call(capsys, "run", example_path("bench-sweep"), "--reach", "100 mmHg")
+    assert status == 2
+    assert_one_line_error(err, "not a unit of flow")

@@ -766,12 +766,7 @@ def filter_cases(table, **conditions):
     """
     mask = np.ones(len(table), dtype=bool)
     for col, value in conditions.items():
-        if col not in table.columns:
-            import difflib
-
-            near = difflib.get_close_matches(col, list(table.columns), n=1)
-            hint = f"; did you mean '{near[0]}'?" if near else ""
-            raise ScenarioError(f"no column '{col}'{hint}", field=col)
+        _check_column(table, col)
         if isinstance(value, float | int) and not isinstance(value, bool):
             mask &= np.isclose(table[col].astype(float), value, rtol=1e-9, atol=0.0)
         else:
@@ -779,8 +774,18 @@ def filter_cases(table, **conditions):
     return table[mask]
 
 
+def _check_column(table, col):
+    if col not in table.columns:
+        import difflib
+
+        near = difflib.get_close_matches(col, list(table.columns), n=1)
+        hint = f"; did you mean '{near[0]}'?" if near else ""
+        raise ScenarioError(f"no column '{col}'{hint}", field=col)
+
+
 def rank(table, by="flow [mL/min]", ascending=False):
     """The table sorted by one column (highest flow first by default)."""
+    _check_column(table, by)
     return table.sort_values(by, ascending=ascending, kind="stable").reset_index(drop=True)
 
 
