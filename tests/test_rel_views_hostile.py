@@ -1,0 +1,89 @@
+"""Reliability: a hostile scenario file loaded into the app shows its text as text.
+
+The files view loads a file whose title, names and labels carry HTML and script payloads
+into the line and comparison views; every HTML widget of the app (and the status line)
+must then hold the payloads escaped, never as tags.  A malformed file is reported in the
+status line as a flag, without an exception escaping to the notebook.
+"""
+
+from __future__ import annotations
+
+import json
+
+import pytest
+from rel_record import bump, module_recorder
+
+pytest.importorskip("ipywidgets")
+
+import ipywidgets as widgets  # noqa: E402
+
+_record = module_recorder("views", "views:")
+
+PAYLOAD = '<img src=x onerror=alert(1)><script>alert(2)</script>'
+
+HOSTILE = f"""format_version = 1
+title = {json.dumps(PAYLOAD)}
+
+[[scenario]]
+name = {json.dumps(PAYLOAD[:60])}
+fluid = "saline-0.9"
+head = "1 m"
+
+[[scenario.part]]
+type = "tube"
+label = {json.dumps(PAYLOAD[:60])}
+inner_diameter = "3 mm"
+length = "1.8 m"
+
+[[scenario.part]]
+type = "catheter"
+gauge = 18
+label = {json.dumps("<b onmouseover=alert(3)>x</b>")}
+"""
+
+
+def _html_values(widget):
+    stack, out = [widget], []
+    while stack:
+        w = stack.pop()
+        if isinstance(w, widgets.HTML):
+            out.append(w.value)
+        stack.extend(getattr(w, "children", ()))
+    return out
+
+
+@pytest.fixture(scope="module")
+def app(tmp_path_factory):
+    from rheoline.widgets.app import build_app
+
+    built = build_app()
+    assert built.failures == {}
+    path = tmp_path_factory.mktemp("views") / "hostile.toml"
+    path.write_text(HOSTILE, encoding="utf-8")
+    built.views["files"].load(path)
+    return built
+
+
+def test_loaded_hostile_text_is_escaped_in_every_view(app):
+    values = _html_values(app)
+    bump("views:html_widgets_checked", len(values))
+    raw = [v for v in values for bad in ("<img src=x", "<script>alert", "<b onmouseover")
+           if bad in v]
+    assert raw == []
+
+
+def test_the_hostile_labels_did_reach_the_views(app):
+    # the check above means something only if the text is on screen, escaped
+    text = " ".join(_html_values(app))
+    assert "&lt;b onmouseover=alert(3)&gt;" in text or "&lt;img src=x" in text
+
+
+def test_a_malformed_file_becomes_a_flag_in_the_status_line(app, tmp_path):
+    bad = tmp_path / "bad.toml"
+    bad.write_text('format_version = 1\n[[scenario]]\nname = "<i>x</i>"\nfluid = "water"\n'
+                   'head = "300 mmHg"\n[[scenario.part]]\ntype = "catheter"\ngauge = 18\n')
+    files = app.views["files"]
+    files.controls["scenario_path"].value = str(bad)
+    files._run(files.load)
+    shown = files.messages.value + files.status.value
+    assert "head" in shown and "<i>x</i>" not in shown
