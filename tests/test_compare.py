@@ -14,7 +14,7 @@ from rheoline.scenario.compare import (
     run_scenarios,
     smallest_reaching,
 )
-from rheoline.scenario.files import example_path, load_scenarios, parse_scenarios
+from rheoline.scenario.files import example_names, example_path, load_scenarios, parse_scenarios
 
 MMHG = 133.322387415  # Pa, NIST SP 811 (2008) Appendix B.8
 ML_PER_MIN = 1e-6 / 60
@@ -288,3 +288,15 @@ def test_hemolysis_index_is_given_for_blood_only():
             sc(name="blood", fluid="whole-blood", temperature="37 degC", head="1 m")).table
     assert math.isnan(t["hemolysis index [%]"].iloc[0])
     assert t["hemolysis index [%]"].iloc[1] > 0
+
+
+@pytest.mark.parametrize("name", example_names())
+def test_every_example_runs_to_finite_positive_flows(name):
+    from rheoline.scenario.compare import check_scenarios
+
+    sset = load_scenarios(example_path(name))
+    check_scenarios(sset)
+    t = run_scenarios(sset).table
+    assert len(t) == sset.n_points
+    assert np.isfinite(t["flow [mL/min]"]).all() and (t["flow [mL/min]"] > 0).all()
+    assert np.isfinite(t["required pressure [mmHg]"]).all()
