@@ -683,10 +683,10 @@ def _parse_part(raw, j, source, where):
     if "tolerance" in raw:
         tolerance = _tolerance_table(raw["tolerance"], PART_TOLERANCE_FIELDS, source, where,
                                      prefix + "tolerance.")
-        for key in tolerance:
-            if key not in fields:
-                raise ScenarioError(f"a {ptype} has no {key}", source=source, scenario=where,
-                                    field=prefix + "tolerance." + key)
+        if ptype in ("fitting", "measured"):
+            raise ScenarioError(f"a {ptype} takes no tolerance (only lumens: tube, set, catheter, "
+                                "needle, cannula)", source=source, scenario=where,
+                                field=prefix + "tolerance")
     if not label:
         label = _default_label(ptype, raw)
     return PartSpec(ptype, label, values, tolerance)
