@@ -41,3 +41,19 @@ def module_recorder(section: str, prefix: str):
         merge_into(tmp_path_factory, section, data)
 
     return _record
+
+
+def hostile_scenario_file(title, name, tube_label, catheter_label, notes="", scenario_notes=""):
+    """A valid scenario file (TOML text) whose free-text fields carry the given strings."""
+    import json as _json
+
+    def q(text):
+        return _json.dumps(text)  # a JSON string is a valid TOML basic string
+
+    top = f"title = {q(title)}\n" + (f"notes = {q(notes)}\n" if notes else "")
+    sc_notes = f"notes = {q(scenario_notes)}\n" if scenario_notes else ""
+    return (f"format_version = 1\n{top}\n[[scenario]]\nname = {q(name)}\n{sc_notes}"
+            'fluid = "saline-0.9"\nhead = "1 m"\n\n'
+            f'[[scenario.part]]\ntype = "tube"\nlabel = {q(tube_label)}\n'
+            'inner_diameter = "3 mm"\nlength = "1.8 m"\n\n'
+            f'[[scenario.part]]\ntype = "catheter"\ngauge = 18\nlabel = {q(catheter_label)}\n')

@@ -14,7 +14,6 @@ Adds to the scenario owner's tests/test_export.py and tests/test_cli.py what the
 from __future__ import annotations
 
 import csv
-import json
 import os
 from html.parser import HTMLParser
 from pathlib import Path
@@ -24,7 +23,7 @@ import pandas as pd
 import pytest
 from hypothesis import given
 from hypothesis import strategies as st
-from rel_record import bump, module_recorder
+from rel_record import bump, hostile_scenario_file, module_recorder
 
 from rheoline import cli
 from rheoline.scenario import export
@@ -79,27 +78,10 @@ def test_html_table_shows_any_text_as_text(text):
             or text in shown
 
 
-HOSTILE_FILE = f"""format_version = 1
-title = {json.dumps(HOSTILE_HTML)}
-notes = {json.dumps(HOSTILE_CELL + " " + HOSTILE_HTML)}
-
-[[scenario]]
-name = {json.dumps("@SUM(1+1) " + HOSTILE_HTML[:60])}
-notes = {json.dumps("-2+3 " + HOSTILE_HTML)}
-fluid = "saline-0.9"
-head = "1 m"
-
-[[scenario.part]]
-type = "tube"
-label = {json.dumps(HOSTILE_CELL[:60])}
-inner_diameter = "3 mm"
-length = "1.8 m"
-
-[[scenario.part]]
-type = "catheter"
-gauge = 18
-label = {json.dumps("+cmd|' /C calc'!A0")}
-"""
+HOSTILE_FILE = hostile_scenario_file(
+    title=HOSTILE_HTML, notes=HOSTILE_CELL + " " + HOSTILE_HTML,
+    name="@SUM(1+1) " + HOSTILE_HTML[:60], scenario_notes="-2+3 " + HOSTILE_HTML,
+    tube_label=HOSTILE_CELL[:60], catheter_label="+cmd|' /C calc'!A0")
 
 
 @pytest.fixture(scope="module")

@@ -8,10 +8,8 @@ status line as a flag, without an exception escaping to the notebook.
 
 from __future__ import annotations
 
-import json
-
 import pytest
-from rel_record import bump, module_recorder
+from rel_record import bump, hostile_scenario_file, module_recorder
 
 pytest.importorskip("ipywidgets")
 
@@ -21,25 +19,8 @@ _record = module_recorder("views", "views:")
 
 PAYLOAD = '<img src=x onerror=alert(1)><script>alert(2)</script>'
 
-HOSTILE = f"""format_version = 1
-title = {json.dumps(PAYLOAD)}
-
-[[scenario]]
-name = {json.dumps(PAYLOAD[:60])}
-fluid = "saline-0.9"
-head = "1 m"
-
-[[scenario.part]]
-type = "tube"
-label = {json.dumps(PAYLOAD[:60])}
-inner_diameter = "3 mm"
-length = "1.8 m"
-
-[[scenario.part]]
-type = "catheter"
-gauge = 18
-label = {json.dumps("<b onmouseover=alert(3)>x</b>")}
-"""
+HOSTILE = hostile_scenario_file(title=PAYLOAD, name=PAYLOAD[:60], tube_label=PAYLOAD[:60],
+                                catheter_label="<b onmouseover=alert(3)>x</b>")
 
 
 def _html_values(widget):
