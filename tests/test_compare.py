@@ -300,3 +300,13 @@ def test_every_example_runs_to_finite_positive_flows(name):
     assert len(t) == sset.n_points
     assert np.isfinite(t["flow [mL/min]"]).all() and (t["flow [mL/min]"] > 0).all()
     assert np.isfinite(t["required pressure [mmHg]"]).all()
+
+
+def test_notes_about_several_parts_become_one_line():
+    from rheoline.scenario.compare import _condense
+
+    notes = ["14G catheter: typical bore (from memory)", "18G catheter: typical bore (from memory)",
+             "set: turbulent flow (Re up to 5000) in 1 of 2 scenarios; Churchill 1977 used",
+             "non-Newtonian fluid: Rabinowitsch-Mooney", "no forward flow"]
+    assert _condense(notes) == ["14G catheter, 18G catheter: typical bore (from memory)",
+                                "non-Newtonian fluid: Rabinowitsch-Mooney", "no forward flow"]

@@ -563,18 +563,25 @@ def _solve_group(g, source):
 
 
 def _condense(notes):
-    """Shorter notes: regime notes are in each row's flags; developing flow is one line."""
-    out, developing = [], []
+    """Shorter notes: regime notes are in each row's flags, and one message about several
+    parts ("14G catheter: ...", "16G catheter: ...") becomes one line naming the parts."""
+    by_message = {}
     for m in notes:
         m = re.sub(r" in \d+ of \d+ scenarios", "", m)
-        hit = re.match(r"^(.*): developing laminar flow", m)
-        if hit:
-            developing.append(hit.group(1))
-        elif not re.search(r": (turbulent|transitional) flow \(", m) and m not in out:
-            out.append(m)
-    if developing:
-        out.insert(0, "developing laminar flow (shorter than the entrance length) in "
-                   f"{', '.join(dict.fromkeys(developing))}; Shah 1978 apparent friction used")
+        if re.search(r": (turbulent|transitional) flow \(", m):
+            continue
+        part, sep, message = m.partition(": ")
+        key = message if sep else m
+        by_message.setdefault(key, []).append(part if sep else None)
+    out = []
+    for message, parts in by_message.items():
+        named = [p for p in dict.fromkeys(parts) if p is not None]
+        if len(named) > 1:
+            out.append(f"{', '.join(named)}: {message}")
+        elif named:
+            out.append(f"{named[0]}: {message}")
+        else:
+            out.append(message)
     return out
 
 
