@@ -315,3 +315,17 @@ def test_mutated_example_text_gives_a_scenario_error_or_a_valid_set(edits):
         check_scenarios(sset)
     except ScenarioError as exc:
         assert "mutated.toml" in str(exc)
+
+
+def test_no_code_paths_from_file_content():
+    """The scenario layer never evaluates, unpickles or imports anything a file names."""
+    import re as _re
+
+    import rheoline.cli
+    import rheoline.scenario.compare
+    import rheoline.scenario.export
+
+    for module in (files, rheoline.scenario.compare, rheoline.scenario.export, rheoline.cli):
+        source = Path(module.__file__).read_text(encoding="utf-8")
+        assert not _re.search(r"\b(eval|exec|compile)\(|pickle|marshal|__import__|importlib",
+                              source), module.__name__
