@@ -55,7 +55,7 @@ VALIDATED_TEMPERATURE_C = {
     "plasma": (0.0, 42.0),
     "whole-blood": (0.0, 42.0),
     "packed-red-cells": (0.0, 42.0),
-    "glycerol-water": (15.0, 30.0),  # Volk & Kaehler 2018 density
+    "glycerol-water": (0.0, 40.0),   # Volk & Kaehler 2018 density, as viscosity.py uses it
 }
 
 BLOOD = ("whole-blood", "packed-red-cells")

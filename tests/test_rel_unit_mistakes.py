@@ -10,14 +10,18 @@ of these; here each goes end to end through the command line and both file forma
 from __future__ import annotations
 
 import json
+import math
 import re
 
 import pytest
+from hypothesis import example, given
+from hypothesis import strategies as st
 from rel_record import bump, module_recorder
 
 from rheoline import cli
-from rheoline.errors import InputRangeError
+from rheoline.errors import InputRangeError, UnitError
 from rheoline.scenario.files import loads_scenarios
+from rheoline.units import parse_quantity
 
 _record = module_recorder("unit_mistakes", "units:")
 
@@ -140,3 +144,27 @@ def test_catheter_given_by_its_measured_bore_checks_and_runs(capsys, tmp_path):
     status, out, err = _check(capsys, path)
     assert (status, err) == (0, ""), err
     assert "ok:" in out
+
+
+_UNIT_TOKENS = (list("0123456789.eE+-/ *^()%") + ["mmHg", "cmH2O", "mL", "min", "h", "degC", "K",
+                "Pa", "kPa", "psi", "bar", "cP", "s", "m", "L", "inch", "Fr", "**", "1e999",
+                "nan", "inf", "__class__", "Quantity", "exp", "1/0", "°", "µ"])
+
+
+@given(text=st.one_of(st.lists(st.sampled_from(_UNIT_TOKENS), max_size=8).map("".join),
+                      st.floats(allow_nan=True, allow_infinity=True)),
+       kind=st.sampled_from(["pressure", "length", "flow", "temperature", "viscosity",
+                             "dimensionless", "volume"]),
+       default=st.sampled_from([None, "mmHg", "m", "degC", "mL/min"]))
+@example(text="1e999", kind="dimensionless", default=None)       # bug U1 in the notes
+@example(text=float("nan"), kind="dimensionless", default=None)
+def test_parse_quantity_gives_a_finite_number_or_a_unit_error(text, kind, default):
+    # the edge of the package: anything typed in must become a finite SI float or a
+    # UnitError naming the field, never another exception or a NaN/inf
+    bump("units:parse_examples")
+    try:
+        value = parse_quantity(text, kind, default_unit=default, field="x")
+    except UnitError as exc:
+        assert str(exc).startswith("x: ") or "x" in str(exc)
+        return
+    assert isinstance(value, float) and math.isfinite(value), (text, kind, value)
