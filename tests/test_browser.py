@@ -57,11 +57,11 @@ def _free_port() -> int:
 def served_app(tmp_path_factory):
     """Start the app with the launcher's own Voila command; yield its URL; stop it."""
     _need_chromium()
-    from rheoline.widgets.serve import APP_NOTEBOOK, voila_command
+    from rheoline.widgets.serve import APP_NOTEBOOK, serve_environment, voila_command
 
     port = _free_port()
     runtime = tmp_path_factory.mktemp("jupyter-runtime")
-    env = {**os.environ, "JUPYTER_RUNTIME_DIR": str(runtime)}
+    env = {**serve_environment(), "JUPYTER_RUNTIME_DIR": str(runtime)}
     log = open(runtime / "voila.log", "w")  # noqa: SIM115 (closed below)
     process = subprocess.Popen(voila_command(port=port), cwd=APP_NOTEBOOK.parent, env=env,
                                stdout=log, stderr=subprocess.STDOUT, start_new_session=True)

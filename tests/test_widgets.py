@@ -11,7 +11,7 @@ import numpy as np
 import pytest
 
 import rheoline
-from rheoline.units import MMHG
+from rheoline.units import ML_PER_MIN, MMHG
 from rheoline.widgets import style
 from rheoline.widgets.banner import BANNER_CLASS, caution_banner
 
@@ -183,3 +183,213 @@ def test_the_model_layer_never_imports_widget_libraries():
         text = path.read_text()
         for library in ("ipywidgets", "plotly", "anywidget"):
             assert f"import {library}" not in text and f"from {library}" not in text, path
+
+
+# --- the line view -------------------------------------------------------------------------
+def _api_line(gauge=18):
+    return rheoline.Line([rheoline.Tube(inner_diameter=3.0e-3, length=1.8),
+                          rheoline.Catheter(gauge=gauge)])
+
+
+@pytest.fixture()
+def line_view():
+    from rheoline.widgets.line_view import LineView
+    return LineView()
+
+
+def test_line_view_starts_with_the_apis_numbers_in_its_figures(line_view):
+    saline = rheoline.fluid("saline-0.9", temperature_c=22.0)
+    expected = _api_line().solve(saline, head=1.0)
+    assert BANNER_CLASS in line_view.children[0]._dom_classes
+    assert f"data-flow-ml-min='{expected.flow / ML_PER_MIN!r}'" in line_view.results.value
+    budget = line_view.figures["budget"].data[0]
+    drops = np.append(expected.part_pressure_drops, expected.exit_pressure_drop) / MMHG
+    assert np.allclose(budget.x, drops, rtol=1e-12)
+    assert budget.y[-1] == "exit" and "(dominant)" in "".join(budget.text)
+
+
+def test_line_view_gauge_change_updates_figures_to_the_apis_values(line_view):
+    row = line_view.editor.rows[1]
+    row.size.value = 14
+    assert np.isfinite(line_view.last_update_seconds)
+    saline = rheoline.fluid("saline-0.9", temperature_c=22.0)
+    expected = _api_line(14).solve(saline, head=1.0)
+    assert line_view.result.flow == pytest.approx(expected.flow, rel=1e-12)
+    heads = np.linspace(0.0, 2.0, 41)
+    curve = _api_line(14).solve(saline, head=heads).flow / ML_PER_MIN
+    assert np.allclose(line_view.figures["drive"].data[0].y, curve, rtol=1e-12)
+    assert line_view.figures["drive"].data[1].y == pytest.approx([expected.flow / ML_PER_MIN])
+
+
+def test_line_view_pump_mode_shows_the_required_pressure_and_the_limit(line_view):
+    line_view.controls["pressure_limit_mmhg"].value = 50.0
+    line_view.controls["fluid"].value = "packed-red-cells"
+    line_view.set_control("mode", "set flow (pump)")
+    cells = rheoline.fluid("packed-red-cells", temperature_c=22.0, hematocrit=0.45)
+    expected = _api_line().solve(cells, flow=100.0 * ML_PER_MIN, pressure_limit=50.0 * MMHG)
+    assert line_view.result.required_pressure == pytest.approx(expected.required_pressure,
+                                                               rel=1e-12)
+    assert expected.exceeds_pressure_limit
+    assert "[X] limit exceeded" in line_view.results.value
+    assert line_view.figures["drive"].data[2].y == (50.0, 50.0)
+    assert line_view.figures["drive"].layout.yaxis.title.text.endswith("[mmHg]")
+    assert not line_view.controls["hematocrit"].disabled  # blood: the hematocrit counts
+
+
+def test_line_view_every_number_shown_carries_a_unit(line_view):
+    import re
+    text = re.sub(r"<[^>]+>", " ", line_view.results.value)
+    text = re.sub(r"\d+G\b|Re \d+-\d+|\(Re up to \d+\)|Giersiepen 1990|Churchill 1977|"
+                  r"Shah 1978|\d+\. ", " ", text)
+    for match in re.finditer(r"(-?\d[\d.e+-]*)\s*(\S+)", text):
+        number, after = match.groups()
+        assert after.strip("(),;") in {"mL/min", "mL/h", "mmHg", "kPa", "Pa", "%"} or \
+            "Reynolds" in text[max(0, match.start() - 30):match.start()], (number, after)
+
+
+def test_line_view_added_and_removed_parts_reach_the_line(line_view):
+    line_view.editor.add({"type": "fitting", "k": 2.0})
+    assert [p.name for p in line_view.line().parts][-1].lower().startswith("fitting")
+    assert len(line_view.figures["budget"].data[0].y) == 4  # 3 parts and the exit
+    line_view.editor.remove(line_view.editor.rows[-1])
+    assert len(line_view.figures["budget"].data[0].y) == 3
+
+
+def test_line_view_bad_part_shows_an_error_flag_not_a_traceback(line_view):
+    line_view.editor.rows[1].bore.value = 5.0  # wider than an 18G catheter's wall allows
+    assert "[X] not computed" in line_view.messages.value
+    assert "inner_diameter" in line_view.messages.value
+
+
+# --- the comparison view ---------------------------------------------------------------------
+@pytest.fixture()
+def compare_view():
+    from rheoline.widgets.compare_view import ComparisonView
+    return ComparisonView(points=50)
+
+
+def test_comparison_curves_are_the_line_engines_flows(compare_view):
+    saline = rheoline.fluid("saline-0.9", temperature_c=22.0)
+    heads_cm = compare_view.sweep_values()
+    assert BANNER_CLASS in compare_view.children[0]._dom_classes
+    for i, gauge in enumerate((16, 18, 20)):
+        trace = compare_view.figures["curves"].data[3 + i]
+        expected = _api_line(gauge).solve(saline, head=heads_cm / 100.0).flow / ML_PER_MIN
+        assert trace.name == f"set + {gauge}G"
+        assert np.allclose(trace.y, expected, rtol=1e-12)
+    assert "rl-compare-flow" in compare_view.table.value
+
+
+def test_comparison_band_brackets_the_curve_and_is_seeded(compare_view):
+    compare_view.set_control("bore_tolerance_percent", 5.0)
+    band = compare_view.figures["curves"].data[1]  # the 18G candidate's band
+    curve = compare_view.figures["curves"].data[4]
+    n = len(band.x) // 2
+    upper, lower = np.asarray(band.y[:n]), np.asarray(band.y[n:])[::-1]
+    nominal = np.interp(band.x[:n], curve.x, curve.y)
+    assert np.all(lower[1:] < nominal[1:]) and np.all(nominal[1:] < upper[1:])
+    first = np.array(band.y)
+    compare_view._cache.clear()
+    compare_view._run(lambda: compare_view._refresh({"curves"}))
+    assert np.array_equal(compare_view.figures["curves"].data[1].y, first)
+    assert "p5-p95" in compare_view.figures["curves"].layout.title.text
+    assert "flow p5-p95 [mL/min]" in compare_view.table.value
+
+
+def test_comparison_adds_and_removes_candidates_solving_only_the_new_one(compare_view):
+    compare_view.controls["sweep"].value = "bore"
+    solved = []
+    original = compare_view._solve
+
+    def counting(candidate, *args, **kwargs):
+        solved.append(candidate["name"])
+        return original(candidate, *args, **kwargs)
+
+    compare_view._solve = counting
+    compare_view.add_candidate({"name": "14G alone", "parts": [{"type": "catheter",
+                                                                 "gauge": 14}]})
+    assert set(solved) == {"14G alone"}
+    assert len(compare_view.figures["curves"].data) == 8
+    assert compare_view.figures["curves"].layout.xaxis.title.text.startswith("inner diameter")
+    compare_view.remove_candidates(["set + 16G", "set + 20G"])
+    assert [t.name for t in compare_view.figures["curves"].data[2:]] == ["set + 18G", "14G alone"]
+
+
+def test_comparison_temperature_sweep_uses_the_fluid_library(compare_view):
+    compare_view.set_control("sweep", "temperature")
+    temperatures = compare_view.sweep_values()
+    saline = rheoline.fluid("saline-0.9", temperature_c=temperatures)
+    expected = _api_line(18).solve(saline, head=1.0).flow / ML_PER_MIN
+    assert np.allclose(compare_view.figures["curves"].data[4].y, expected, rtol=1e-12)
+
+
+# --- files: scenario files and review packs ----------------------------------------------------
+@pytest.fixture()
+def app():
+    from rheoline.widgets.app import build_app
+    return build_app()
+
+
+def test_app_builds_every_view_with_a_banner(app):
+    assert app.failures == {}
+    for view in app.views.values():
+        assert BANNER_CLASS in view.children[0]._dom_classes
+
+
+def test_saved_scenario_file_reruns_to_the_views_numbers(app, tmp_path):
+    from rheoline.scenario.compare import run_scenarios
+    from rheoline.scenario.files import load_scenarios
+    files = app.views["files"]
+    path = files.save(tmp_path / "views.toml")
+    table = run_scenarios(load_scenarios(path)).table.set_index("case")
+    line_flow = app.views["line"].result.flow / ML_PER_MIN
+    assert table.loc["line view", "flow [mL/min]"] == pytest.approx(line_flow, rel=1e-6)
+    for candidate in app.views["compare"].candidates:
+        shown = app.views["compare"].operating_point(candidate).flow / ML_PER_MIN
+        row = table.loc[f"compare: {candidate['name']}", "flow [mL/min]"]
+        assert row == pytest.approx(shown, rel=1e-6)
+
+
+def test_loading_an_example_file_fills_both_views(app):
+    from rheoline.scenario.files import example_path
+    app.views["files"].load(example_path("rapid-transfusion-cart"))
+    line = app.views["line"]
+    assert line.controls["back_pressure_mmhg"].value == pytest.approx(8.0)
+    assert [d["type"] for d in line.editor.descriptions()] == ["set", "fitting", "catheter"]
+    assert len(app.views["compare"].candidates) == 7
+    assert "[ok]" in app.views["files"].status.value
+    assert line.messages.value == "" or "[X]" not in line.messages.value
+
+
+def test_review_pack_is_written_by_the_scenario_layer(app, tmp_path):
+    from rheoline.scenario.export import PACK_FILES
+    folder = app.views["files"].write_pack(tmp_path / "pack")
+    assert {p.name for p in folder.iterdir()} >= set(PACK_FILES)
+    with pytest.raises(rheoline.ScenarioError, match="exist"):
+        app.views["files"].write_pack(tmp_path / "pack")
+
+
+def test_a_bad_scenario_file_is_a_flag_in_the_files_view(app, tmp_path):
+    bad = tmp_path / "bad.toml"
+    bad.write_text('format_version = 1\n[[scenario]]\nname = "x"\nfluid = "salty"\n')
+    files = app.views["files"]
+    files.controls["scenario_path"].value = str(bad)
+    files.load_button.click()
+    assert "[X] not computed" in files.messages.value and "fluid" in files.messages.value
+
+
+def test_bore_only_band_equals_solving_every_sample(compare_view):
+    # The shortcut rests on flow rising strictly with the bore; solve all 2000 samples here
+    # through the public API and compare the order statistics.
+    from rheoline.widgets.compare_view import BAND_SAMPLES
+    compare_view.set_control("bore_tolerance_percent", 5.0)
+    x, p5, p95 = compare_view.band(compare_view.candidates[1])  # set + 18G
+    scale, _ = compare_view._samples()
+    assert scale.shape == (BAND_SAMPLES, 1)
+    heads = x[[0, len(x) // 2, -1]] / 100.0
+    line = rheoline.Line([rheoline.Tube(inner_diameter=3.0e-3, length=1.8),
+                          rheoline.Catheter(gauge=18, inner_diameter=1.0e-3 * scale)])
+    flows = line.solve(rheoline.fluid("saline-0.9", temperature_c=22.0), head=heads).flow
+    low, high = np.percentile(flows, [5.0, 95.0], axis=0, method="inverted_cdf")
+    assert np.allclose(low, p5[[0, len(x) // 2, -1]], rtol=1e-9)
+    assert np.allclose(high, p95[[0, len(x) // 2, -1]], rtol=1e-9)

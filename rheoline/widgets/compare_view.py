@@ -12,9 +12,11 @@ fluid and drive:
 
 With a tolerance set (bore [%] of the sized part, temperature [degC], as half-widths
 of uniform spreads), each candidate gets a shaded p5-p95 band from a seeded Monte
-Carlo of :data:`BAND_SAMPLES` samples, solved by the line engine at
-:data:`BAND_POINTS` points of the sweep in one vectorized call; the band is drawn
-through those points.  The table below gives each candidate at the shared
+Carlo of :data:`BAND_SAMPLES` samples, solved by the line engine in one vectorized
+call: at every curve point for a bore tolerance alone (where the flows' order
+statistics are the flows at the bore's order statistics, see
+:meth:`ComparisonView._percentiles`), else at :data:`BAND_POINTS` points, the band
+drawn through them.  The table below gives each candidate at the shared
 operating point (the current head, bore and temperature).
 
 Responsiveness: every candidate's curve, band and table row are cached under the
@@ -315,25 +317,51 @@ class ComparisonView(View):
                                 np.asarray(result.flow, dtype=float))
         return self._cache[key]
 
+    def _samples(self):
+        """The seeded tolerance samples: bore scale [-] and temperature [degC], or None."""
+        bore_tol, temperature_tol = self._tolerances()
+        u = np.random.default_rng(BAND_SEED).uniform(-1.0, 1.0, size=(2, BAND_SAMPLES, 1))
+        scale = 1.0 + bore_tol * u[0] if bore_tol else None
+        temperature = (self._shared()["temperature_c"] + temperature_tol * u[1]
+                       if temperature_tol else None)
+        return scale, temperature
+
+    def _percentiles(self, candidate, shared, sweep, values):
+        """p5 and p95 of the flow [m^3/s] over the tolerance samples at each of ``values``.
+
+        Percentiles are order statistics (``method="inverted_cdf"``).  With the bore as the
+        only spread input, flow rises strictly with the bore (a property of the line engine,
+        tested there), so the flows' order statistics are the flows at the bore samples'
+        order statistics: two solves per point give exactly what solving all
+        :data:`BAND_SAMPLES` samples gives (``tests/test_widgets.py`` checks the two agree).
+        With a temperature spread too, every sample is solved.
+        """
+        scale, temperature = self._samples()
+        if temperature is None:
+            scale = np.percentile(scale, [5.0, 95.0], axis=0, method="inverted_cdf")
+        result = self._solve(candidate, shared, sweep, values * SWEEPS[sweep][2],
+                             bore_scale=scale, temperature=temperature)
+        flows = np.asarray(result.flow, dtype=float)
+        if temperature is None:
+            return flows[0], flows[1]
+        p5, p95 = np.percentile(flows, [5.0, 95.0], axis=0, method="inverted_cdf")
+        return p5, p95
+
     def band(self, candidate):
-        """(sweep values, p5, p95 flow [m^3/s]) at :data:`BAND_POINTS` points, or None."""
+        """(x, p5, p95 flow [m^3/s]) of one candidate's tolerance band, or None, cached.
+
+        The band is solved at every curve point when the bore is the only spread input,
+        else at :data:`BAND_POINTS` points (every sample solved there).
+        """
         bore_tol, temperature_tol = self._tolerances()
         if bore_tol == 0 and temperature_tol == 0:
             return None
         shared, sweep = self._shared(), self.controls["sweep"].value
-        values = self.sweep_values(BAND_POINTS)
-        key = self._key("band", candidate, shared, sweep, values[0], values[-1], bore_tol,
-                        temperature_tol)
+        values = self.sweep_values(None if temperature_tol == 0 else BAND_POINTS)
+        key = self._key("band", candidate, shared, sweep, values[0], values[-1], len(values),
+                        bore_tol, temperature_tol)
         if key not in self._cache:
-            rng = np.random.default_rng(BAND_SEED)
-            u = rng.uniform(-1.0, 1.0, size=(2, BAND_SAMPLES, 1))
-            scale = 1.0 + bore_tol * u[0] if bore_tol else None
-            temperature = shared["temperature_c"] + temperature_tol * u[1] \
-                if temperature_tol else None
-            result = self._solve(candidate, shared, sweep, values * SWEEPS[sweep][2],
-                                 bore_scale=scale, temperature=temperature)
-            flows = np.asarray(result.flow, dtype=float)
-            p5, p95 = np.percentile(flows, [5.0, 95.0], axis=0)
+            p5, p95 = self._percentiles(candidate, shared, sweep, values)
             self._cache[key] = (self._x(candidate, sweep, values), p5, p95)
         return self._cache[key]
 
@@ -404,8 +432,7 @@ class ComparisonView(View):
             fig.layout.xaxis.title.text = SWEEPS[sweep][0]
             title = f"Candidates: flow against {sweep}"
             if any(b is not None for b in bands):
-                title += (f" (shaded: p5-p95 of {BAND_SAMPLES} samples at {BAND_POINTS} "
-                          "points)")
+                title += f" (shaded: p5-p95 of {BAND_SAMPLES} tolerance samples)"
             fig.layout.title.text = title
 
     def _draw_table(self):
@@ -450,18 +477,13 @@ class ComparisonView(View):
             f"cellpadding='4'>{head}{''.join(rows)}</table>")
 
     def _point_band(self, candidate):
-        """p5-p95 flow [mL/min] at the operating point, read from the band's solve."""
+        """p5-p95 flow [mL/min] at the operating point, cached."""
         bore_tol, temperature_tol = self._tolerances()
         shared = self._shared()
         key = ("point-band", _freeze(candidate), _freeze(shared), bore_tol, temperature_tol)
         if key not in self._cache:
-            rng = np.random.default_rng(BAND_SEED)
-            u = rng.uniform(-1.0, 1.0, size=(2, BAND_SAMPLES))
-            scale = 1.0 + bore_tol * u[0] if bore_tol else None
-            temperature = shared["temperature_c"] + temperature_tol * u[1] \
-                if temperature_tol else None
-            result = self._solve(candidate, shared, "head", np.asarray(shared["head"]),
-                                 bore_scale=scale, temperature=temperature)
-            p5, p95 = np.percentile(np.asarray(result.flow, dtype=float), [5.0, 95.0])
-            self._cache[key] = f"{significant(p5 / ML_PER_MIN)}-{significant(p95 / ML_PER_MIN)}"
+            p5, p95 = self._percentiles(candidate, shared, "head",
+                                        np.asarray([shared["head"] / SWEEPS["head"][2]]))
+            self._cache[key] = (f"{significant(p5[0] / ML_PER_MIN)}-"
+                                f"{significant(p95[0] / ML_PER_MIN)}")
         return self._cache[key]

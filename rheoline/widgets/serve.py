@@ -13,11 +13,13 @@ Examples
 from __future__ import annotations
 
 import argparse
+import os
+import shlex
 import subprocess
 import sys
 from pathlib import Path
 
-__all__ = ["APP_NOTEBOOK", "voila_command", "main"]
+__all__ = ["APP_NOTEBOOK", "voila_command", "serve_environment", "main"]
 
 #: The served notebook.
 APP_NOTEBOOK = Path(__file__).resolve().parents[2] / "notebooks" / "app.ipynb"
@@ -32,6 +34,14 @@ def voila_command(port: int = 8866, ip: str = "127.0.0.1", notebook=APP_NOTEBOOK
             str(notebook)]
 
 
+def serve_environment(environ=None) -> dict:
+    """The environment for Voila: the app's kernel imports this checkout's rheoline first."""
+    env = dict(os.environ if environ is None else environ)
+    root = str(APP_NOTEBOOK.parents[1])
+    env["PYTHONPATH"] = os.pathsep.join([root, *filter(None, [env.get("PYTHONPATH")])])
+    return env
+
+
 def main(argv=None) -> int:
     """Run Voila in the foreground until interrupted; returns its exit status."""
     parser = argparse.ArgumentParser(prog="python -m rheoline.widgets.serve",
@@ -44,7 +54,7 @@ def main(argv=None) -> int:
     args = parser.parse_args(argv)
     command = voila_command(args.port, args.ip)
     if args.print_command:
-        sys.stdout.write(" ".join(command) + "\n")
+        sys.stdout.write(shlex.join(command) + "\n")
         return 0
     if not APP_NOTEBOOK.exists():
         sys.stderr.write(f"the app notebook {APP_NOTEBOOK} is missing; run from a clone of the "
@@ -53,7 +63,7 @@ def main(argv=None) -> int:
     sys.stderr.write(f"serving the rheoline app on http://{args.ip}:{args.port}/ "
                      "(Ctrl-C stops it)\n")
     try:
-        return subprocess.call(command, cwd=APP_NOTEBOOK.parent)
+        return subprocess.call(command, cwd=APP_NOTEBOOK.parent, env=serve_environment())
     except KeyboardInterrupt:
         return 0
 
