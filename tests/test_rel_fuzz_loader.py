@@ -42,6 +42,7 @@ from rheoline.scenario.files import (
     load_scenarios,
 )
 
+bump("fuzz:tracebacks_seen", 0)  # recorded even when none is seen
 _record = module_recorder("fuzz", "fuzz:")
 
 MALFORMED = Path(__file__).with_name("malformed")
