@@ -174,12 +174,12 @@ def parse_quantity(text, kind: str, default_unit: str | None = None, field: str 
         raise UnitError(f"{field}: expected a {kind} such as '{_example(kind)}', got {text!r}")
     if isinstance(text, (int, float)):
         if kind == "dimensionless":
-            return float(text)
+            return _finite(text, text, field)
         if default_unit is None:
             raise UnitError(
                 f"{field}: a bare number {text!r} needs a unit ({examples}), e.g. '{text} {_example_unit(kind)}'"
             )
-        number, unit = float(text), default_unit
+        number, unit = _finite(text, text, field), default_unit
     elif isinstance(text, str):
         m = _NUMBER_UNIT.match(text)
         if not m:
@@ -188,7 +188,7 @@ def parse_quantity(text, kind: str, default_unit: str | None = None, field: str 
         unit = m.group(2)
         if not unit:
             if kind == "dimensionless":
-                return number
+                return _finite(number, text, field)
             if default_unit is None:
                 raise UnitError(f"{field}: {text!r} has no unit; write it with one of {examples}")
             unit = default_unit
@@ -196,7 +196,18 @@ def parse_quantity(text, kind: str, default_unit: str | None = None, field: str 
         raise UnitError(f"{field}: expected a {kind} such as '{_example(kind)}', got {type(text).__name__}")
     if not math.isfinite(number):
         raise UnitError(f"{field}: {text!r} is not a finite number")
-    return from_unit(number, unit, kind, field=field)
+    return _finite(from_unit(number, unit, kind, field=field), text, field)
+
+
+def _finite(number, text, field):
+    """``number`` as a finite float, or a UnitError naming ``field``."""
+    try:
+        value = float(number)
+    except OverflowError:
+        value = math.inf
+    if not math.isfinite(value):
+        raise UnitError(f"{field}: {text!r} is not a finite number (or is too large)")
+    return value
 
 
 def from_unit(number, unit: str, kind: str, field: str = "value"):
