@@ -1,7 +1,7 @@
 """Serve the app as a local web page with Voila: ``python -m rheoline.widgets.serve``.
 
-Binds to 127.0.0.1 unless told otherwise, never opens a browser by itself, and
-lets Voila hand out pictures next to the app notebook.  The command it runs is printed by ``--print-command`` and is the same as the README's
+Binds to 127.0.0.1 unless told otherwise and never opens a browser by itself.  The
+command it runs is printed by ``--print-command`` and is the same as the README's
 plain Voila command.
 
 Examples
@@ -23,15 +23,12 @@ __all__ = ["APP_NOTEBOOK", "voila_command", "serve_environment", "main"]
 
 #: The served notebook.
 APP_NOTEBOOK = Path(__file__).resolve().parents[2] / "notebooks" / "app.ipynb"
-#: Files Voila may hand out next to the app (pictures only).
-FILE_ALLOWLIST = r"['.*\.(png|svg)']"
 
 
 def voila_command(port: int = 8866, ip: str = "127.0.0.1", notebook=APP_NOTEBOOK) -> list[str]:
     """The Voila command line that serves ``notebook`` on ``ip:port``."""
     return [sys.executable, "-m", "voila", "--no-browser", f"--port={port}",
-            f"--Voila.ip={ip}", f"--VoilaConfiguration.file_allowlist={FILE_ALLOWLIST}",
-            str(notebook)]
+            f"--Voila.ip={ip}", str(notebook)]
 
 
 def serve_environment(environ=None) -> dict:
