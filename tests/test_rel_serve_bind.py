@@ -1,7 +1,8 @@
 """Reliability: the web app binds to this machine only unless told otherwise.
 
 The widget owner's ``python -m rheoline.widgets.serve`` builds a Voila command; by default
-it must bind 127.0.0.1 (never all interfaces), open no browser, and hand out pictures only.
+it must bind 127.0.0.1 (never all interfaces), open no browser, and hand out pictures only
+(its own allowlist or Voila's default one).
 Voila's own default address is "localhost" (voila.app.Voila.ip), also loopback, so the
 plain Voila command is safe as well; no file in the repository may configure 0.0.0.0.
 """
@@ -43,9 +44,17 @@ def test_another_address_only_when_asked():
 
 
 def test_served_files_are_pictures_only():
+    # the command's own allowlist if it sets one, else Voila's default (VoilaConfiguration)
     command = " ".join(serve.voila_command())
-    allow = re.search(r"file_allowlist=(\S+)", command).group(1)
-    assert re.findall(r"\.\(([^)]*)\)", allow) == ["png|svg"]
+    given = re.search(r"file_allowlist=(\S+)", command)
+    if given:
+        patterns = [given.group(1)]
+    else:
+        configuration = pytest.importorskip("voila.configuration")
+        patterns = configuration.VoilaConfiguration().file_allowlist
+    extensions = {e for p in patterns for group in re.findall(r"\.\(([^)]*)\)", p)
+                  for e in group.split("|")}
+    assert extensions and extensions <= {"png", "jpg", "jpeg", "gif", "svg"}
 
 
 def test_voila_default_is_loopback_too():
