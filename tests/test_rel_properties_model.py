@@ -631,3 +631,19 @@ def test_tolerance_band_brackets_the_nominal(tol, seed, gauge):
     p5, p50, p95 = (band.percentiles[p] for p in (5.0, 50.0, 95.0))
     assert p5 <= band.nominal * (1 + 1e-9) and band.nominal * (1 - 1e-9) <= p95
     assert p5 <= p50 <= p95
+
+
+@given(ratio=_log_uniform(1e-4, 0.9), volume=_log_uniform(1e-7, 1e-5))
+@example(ratio=1e-3, volume=1e-6)  # bug B5 in the reliability notes
+def test_falling_head_time_matches_the_closed_form_for_a_linear_line(ratio, volume):
+    # Creeping flow through a long narrow tube (Re < 10): Q = c h, so the bag empties in
+    # T = V ln(h_full / h_empty) / (c (h_full - h_empty))   (by hand: dV/dt = -c h, h linear in V)
+    _count("delivery_closed_form")
+    from rheoline.model.delivery import falling_head_delivery_time
+
+    water = newtonian_fluid("water", 1e-3, 1000.0)
+    line = Line([Tube(inner_diameter=3e-4, length=1.0)])
+    c = line.solve(water, head=1.0).flow      # m^3/s per metre of head
+    t = falling_head_delivery_time(line, water, volume, 1.0, ratio).time
+    exact = volume * math.log(1.0 / ratio) / (c * (1.0 - ratio))
+    assert t == pytest.approx(exact, rel=1e-2)
