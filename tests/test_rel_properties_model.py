@@ -647,3 +647,23 @@ def test_falling_head_time_matches_the_closed_form_for_a_linear_line(ratio, volu
     t = falling_head_delivery_time(line, water, volume, 1.0, ratio).time
     exact = volume * math.log(1.0 / ratio) / (c * (1.0 - ratio))
     assert t == pytest.approx(exact, rel=1e-2)
+
+
+def test_decaying_bag_time_matches_the_closed_form_for_a_linear_line():
+    # p = p0 exp(-t/tau) and Q = c p give V(t) = c p0 tau (1 - exp(-t/tau)), so a volume
+    # fraction phi of c p0 tau takes t = -tau ln(1 - phi)   (by hand).  A grid in one
+    # vectorized call (each solve_ivp integration is too slow for 200 examples).
+    from rheoline.model.delivery import pressure_bag_delivery_time
+
+    water = newtonian_fluid("water", 1e-3, 1000.0)
+    line = Line([Tube(inner_diameter=3e-4, length=1.0)])
+    p0 = 300 * MMHG
+    c = line.solve(water, source_pressure=p0).flow / p0
+    taus = np.geomspace(10.0, 1e4, 6)[:, None]
+    fractions = np.linspace(0.01, 0.99, 25)[None, :]
+    t = pressure_bag_delivery_time(line, water, fractions * c * p0 * taus, p0,
+                                   time_constant=taus).time
+    np.testing.assert_allclose(t, -taus * np.log(1.0 - fractions), rtol=1e-2)
+    beyond = pressure_bag_delivery_time(line, water, 1.02 * c * p0 * 100.0, p0,
+                                        time_constant=100.0)
+    assert beyond.time == math.inf
