@@ -667,3 +667,21 @@ def test_decaying_bag_time_matches_the_closed_form_for_a_linear_line():
     beyond = pressure_bag_delivery_time(line, water, 1.02 * c * p0 * 100.0, p0,
                                         time_constant=100.0)
     assert beyond.time == math.inf
+
+
+@given(a=_log_uniform(1e6, 1e12), b=_log_uniform(1e9, 1e16),
+       flows=st.lists(_log_uniform(1e-8, 1e-4), min_size=2, max_size=8, unique=True),
+       k_mu=st.floats(0.2, 5.0), k_rho=st.floats(0.5, 2.0))
+def test_measured_part_recovers_its_coefficients_and_rescales(a, b, flows, k_mu, k_rho):
+    # exact bench data dp = a Q + b Q^2; the laminar term scales with viscosity and the
+    # quadratic term with density (dimensional analysis, common practice, no source)
+    _count("measured_part_fit")
+    q = np.array(sorted(flows))
+    assume(q[-1] / q[0] > 1.5)
+    part = MeasuredPart(flows=q, pressure_drops=a * q + b * q * q, test_viscosity=1e-3,
+                        test_density=1000.0)
+    fitted = part.a * q + part.b * q * q
+    np.testing.assert_allclose(fitted, a * q + b * q * q, rtol=1e-6)
+    a2, b2 = part.scaled_coefficients(k_mu * 1e-3, k_rho * 1000.0)
+    assert float(np.asarray(a2)) == pytest.approx(k_mu * part.a, rel=1e-9)
+    assert float(np.asarray(b2)) == pytest.approx(k_rho * part.b, rel=1e-9)
