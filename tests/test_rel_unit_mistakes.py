@@ -168,3 +168,33 @@ def test_parse_quantity_gives_a_finite_number_or_a_unit_error(text, kind, defaul
         assert str(exc).startswith("x: ") or "x" in str(exc)
         return
     assert isinstance(value, float) and math.isfinite(value), (text, kind, value)
+
+
+#: Each documented limit, written as a person would copy it from the message or the docs.
+BOUNDARIES = [
+    ("flow", "20 L/min", {"head": None}), ("flow", "20000 mL/min", {"head": None}),
+    ("head", "10 m", {}), ("head", "0 m", {"source_pressure": "100 mmHg"}),
+    ("source_pressure", "30 bar", {}), ("back_pressure", "1000 mmHg", {}),
+    ("back_pressure", "-200 mmHg", {}), ("temperature", "60 degC", {}),
+    ("temperature", "0 degC", {}), ("volume", "50 L", {}),
+    ("pressure_limit", "60 bar", {"head": None, "flow": "100 mL/min"}),
+]
+
+
+@pytest.mark.parametrize(("field", "text", "others"), BOUNDARIES,
+                         ids=[f"{f}={t}" for f, t, _ in BOUNDARIES])
+def test_a_documented_limit_itself_is_accepted(field, text, others):
+    fields = {field: text, **{k: v for k, v in others.items() if v is not None}}
+    doc = scenario(**fields)
+    for key, value in others.items():
+        if value is None:
+            doc["scenario"][0].pop(key, None)
+    bump("units:boundaries_checked")
+    loads_scenarios(to_toml(doc))
+
+
+@pytest.mark.parametrize(("field", "text"), [("inner_diameter", "60 mm"), ("length", "30 m"),
+                                             ("inner_diameter", "0.01 mm")])
+def test_a_documented_tube_limit_itself_is_accepted(field, text):
+    part = {"type": "tube", "inner_diameter": "3 mm", "length": "1 m", field: text}
+    loads_scenarios(to_toml(scenario(part=part)))
