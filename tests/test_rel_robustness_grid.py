@@ -248,3 +248,18 @@ def test_residual_at_zero_flow_is_finite_for_a_yield_stress_fluid():
     residual = line.pressure_residual(blood, 0.0, source_pressure=50 * MMHG)
     assert np.isfinite(residual)
     assert residual == pytest.approx(yield_pressure - 50 * MMHG, rel=1e-3)
+
+
+def test_range_flags_in_a_swept_table_mark_only_the_points_outside():
+    # A sweep across a model's validated temperature span (blood: 0-42 degC): the table's
+    # validity flag must single out the points outside it, not the whole sweep.
+    from rheoline.scenario.compare import run_scenarios
+    from rheoline.scenario.files import loads_scenarios
+
+    text = ('format_version = 1\n[[scenario]]\nname = "warm and hot"\nfluid = "whole-blood"\n'
+            'temperature = ["20 degC", "37 degC", "55 degC"]\nsource_pressure = "300 mmHg"\n'
+            '[[scenario.part]]\ntype = "catheter"\ngauge = 18\n')
+    table = run_scenarios(loads_scenarios(text)).table
+    flagged = table["flags"].astype(str).str.contains("outside").tolist()
+    bump("grid:table_points_flag_checked", len(flagged))
+    assert flagged == [False, False, True]
