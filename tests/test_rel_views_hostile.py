@@ -68,3 +68,20 @@ def test_a_malformed_file_becomes_a_flag_in_the_status_line(app, tmp_path):
     files._run(files.load)
     shown = files.messages.value + files.status.value
     assert "head" in shown and "<i>x</i>" not in shown
+
+
+def test_the_files_view_never_overwrites_unless_asked(app, tmp_path):
+    files = app.views["files"]
+    assert files.controls["overwrite"].value is False
+    target = tmp_path / "mine.toml"
+    target.write_text("# my own notes\n")
+    files.controls["scenario_path"].value = str(target)
+    assert files._run(files.save) is False          # refused, shown as a flag
+    assert target.read_text() == "# my own notes\n"
+    folder = tmp_path / "pack"
+    folder.mkdir()
+    (folder / "keep.txt").write_text("earlier pack")
+    files.controls["pack_path"].value = str(folder)
+    assert files._run(files.write_pack) is False
+    assert [p.name for p in folder.iterdir()] == ["keep.txt"]
+    assert "exists" in files.messages.value
