@@ -685,3 +685,39 @@ def test_measured_part_recovers_its_coefficients_and_rescales(a, b, flows, k_mu,
     a2, b2 = part.scaled_coefficients(k_mu * 1e-3, k_rho * 1000.0)
     assert float(np.asarray(a2)) == pytest.approx(k_mu * part.a, rel=1e-9)
     assert float(np.asarray(b2)) == pytest.approx(k_rho * part.b, rel=1e-9)
+
+
+def _solve_with(fluid):
+    return Line([Tube(inner_diameter=1e-3, length=1.0)]).solve(fluid, head=1.0)
+
+
+#: Mistakes a user makes with the Python API: each must be a RheolineError (a ValueError)
+#: whose message names the argument.  (call, regex the message must match)
+API_MISTAKES = [
+    ("fluid-name-instead-of-fluid", lambda: _solve_with("water"), r"fluid"),
+    ("no-fluid", lambda: _solve_with(None), r"fluid"),
+    ("one-part-not-a-list", lambda: Line(Tube(inner_diameter=1e-3, length=1.0)), r"part"),
+    ("string-part", lambda: Line(["tube"]), r"part\[0\]"),
+    ("several-catheter-gauges", lambda: Catheter(gauge=np.array([18, 20])), r"gauge"),
+    ("several-needle-gauges", lambda: Needle(gauge=[18, 20]), r"gauge"),
+    ("shapes-that-do-not-broadcast",
+     lambda: Line([Tube(inner_diameter=np.full(3, 1e-3), length=1.0)]).solve(
+         rheoline.fluid("water"), head=np.ones(4)), r"broadcast|shape"),
+    ("flow-and-source-pressure", lambda: Line([Tube(inner_diameter=1e-3, length=1.0)]).solve(
+        rheoline.fluid("water"), flow=1e-6, source_pressure=1.0), r"flow.*source_pressure"),
+    ("unknown-blood-model", lambda: rheoline.fluid("whole-blood", model="bingham"), r"model"),
+    ("unknown-entrance", lambda: Line([Tube(inner_diameter=1e-3, length=1.0)],
+                                      entrance="rounded-ish"), r"entrance|rounded-ish"),
+    ("format-in-a-unit-of-another-kind", lambda: rheoline.format_quantity(1.0, "pressure", "m"),
+     r"pressure|unit"),
+    ("format-in-an-unknown-unit", lambda: rheoline.format_quantity(1.0, "pressure", "furlong"),
+     r"unit|furlong"),
+]
+
+
+@pytest.mark.parametrize("call, match", [m[1:] for m in API_MISTAKES],
+                         ids=[m[0] for m in API_MISTAKES])
+def test_api_mistakes_are_library_errors_naming_the_argument(call, match):
+    bump("prop:api_mistakes_checked")
+    with pytest.raises(RheolineError, match=match):
+        call()
