@@ -201,3 +201,18 @@ def test_command_line_never_replaces_a_file_even_with_force(capsys, tmp_path):
     assert target.read_text() == "my notes"
     status, _, err = _cli(capsys, "run", src, "--out", src, "--force")  # not even the input
     assert status == 2 and src.read_text(encoding="utf-8").startswith("format_version")
+
+
+def test_force_never_replaces_a_folder_that_is_not_a_pack(capsys, tmp_path):
+    # --force may replace an earlier review pack, never someone's folder of other files
+    src = tmp_path / "s.toml"
+    src.write_text(HOSTILE_FILE.replace("saline-0.9", "water"), encoding="utf-8")
+    documents = tmp_path / "documents"
+    documents.mkdir()
+    (documents / "thesis.txt").write_text("years of work")
+    status, out, err = _cli(capsys, "run", src, "--out", documents, "--force")
+    assert status == 2 and "pack" in err, (status, err)
+    assert sorted(p.name for p in documents.iterdir()) == ["thesis.txt"]
+    with pytest.raises(export.PackExistsError):
+        write_pack(_small_run(tmp_path, "x"), documents, force=True)
+    assert (documents / "thesis.txt").read_text() == "years of work"
