@@ -40,6 +40,7 @@ EXPECTED_FIGURES = (
                     "max_relative_difference")]
     + ["monte_carlo_10k_ms", "widget_update_ms[line_view head]",
        "widget_update_ms[comparison_view temperature]", "widget_update_ms[comparison_view head]",
+       "widget_update_ms[comparison_view temperature, bore+temperature band]",
        "import_model_ms"])
 
 
