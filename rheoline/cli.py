@@ -106,7 +106,8 @@ def _output_options(cmd):
     cmd.add_argument("--out", metavar="DIR", help="write a review pack into this new folder")
     cmd.add_argument("--json", action="store_true",
                      help="print a JSON array (one object per scenario or sweep point)")
-    cmd.add_argument("--force", action="store_true", help="replace an existing pack at --out")
+    cmd.add_argument("--force", action="store_true", help="replace an earlier review pack at --out "
+                     "(never a folder of other files)")
     cmd.add_argument("--sort", metavar="COLUMN",
                      help="sort the printed table by a column, highest first (e.g. 'flow [mL/min]')")
     cmd.add_argument("--reach", metavar="FLOW",

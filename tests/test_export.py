@@ -245,6 +245,85 @@ def test_force_replaces_a_pack_once_the_new_one_is_complete(tmp_path):
     assert [p.name for p in tmp_path.iterdir()] == ["pack"]
 
 
+def _edit_added_file(folder):
+    (folder / "my notes.txt").write_text("mine")
+
+
+def _edit_changed_file(folder):
+    with (folder / "results.csv").open("a", encoding="utf-8") as fh:
+        fh.write("my own row\n")
+
+
+def _edit_subfolder(folder):
+    (folder / "drafts").mkdir()
+
+
+def _edit_foreign_manifest(folder):
+    manifest = json.loads((folder / "manifest.json").read_text(encoding="utf-8"))
+    (folder / "manifest.json").write_text(json.dumps({**manifest, "tool": "other"}))
+
+
+def _edit_manifest_lists_outside(folder):
+    manifest = json.loads((folder / "manifest.json").read_text(encoding="utf-8"))
+    manifest["files_sha256"]["../outside.txt"] = "0" * 64
+    (folder / "manifest.json").write_text(json.dumps(manifest))
+
+
+def _edit_no_manifest(folder):
+    (folder / "manifest.json").unlink()
+
+
+@pytest.mark.parametrize("edit", [_edit_added_file, _edit_changed_file, _edit_subfolder,
+                                  _edit_foreign_manifest, _edit_manifest_lists_outside,
+                                  _edit_no_manifest])
+def test_force_replaces_only_an_unchanged_pack(tmp_path, edit):
+    folder = write_pack(fake_run(["first"]), tmp_path / "pack")
+    assert export.is_review_pack(folder)
+    edit(folder)
+    before = _tree(folder)
+    assert not export.is_review_pack(folder)
+    with pytest.raises(PackExistsError, match=r"pack.*is not a rheoline review pack.*choose a "
+                                              r"new folder"):
+        write_pack(fake_run(["second"]), folder, force=True)
+    assert _tree(folder) == before
+    assert [p.name for p in tmp_path.iterdir()] == ["pack"]
+
+
+def _tree(folder):
+    return {str(p.relative_to(folder)): p.read_bytes() if p.is_file() else None
+            for p in sorted(folder.rglob("*"))}
+
+
+def test_force_never_replaces_an_empty_or_linked_folder(tmp_path):
+    empty = tmp_path / "empty"
+    empty.mkdir()
+    with pytest.raises(PackExistsError, match="empty.*not a rheoline review pack"):
+        write_pack(fake_run(["x"]), empty, force=True)
+    assert empty.is_dir() and list(empty.iterdir()) == []
+    pack = write_pack(fake_run(["first"]), tmp_path / "pack")
+    link = tmp_path / "link"
+    link.symlink_to(pack, target_is_directory=True)
+    before = _snapshot(pack)
+    with pytest.raises(PackExistsError, match="symbolic link"):
+        write_pack(fake_run(["x"]), link, force=True)
+    assert link.is_symlink() and _snapshot(pack) == before
+
+
+def test_a_folder_changed_while_the_pack_is_written_is_kept(tmp_path, monkeypatch):
+    folder = write_pack(fake_run(["first"]), tmp_path / "pack")
+    real_html = export._write_html
+
+    def html_then_user_saves_a_file(run, path, meta):
+        real_html(run, path, meta)
+        (folder / "added meanwhile.txt").write_text("mine")
+
+    monkeypatch.setattr(export, "_write_html", html_then_user_saves_a_file)
+    with pytest.raises(PackExistsError, match="added meanwhile"):
+        write_pack(fake_run(["second"]), folder, force=True)
+    assert (folder / "added meanwhile.txt").read_text() == "mine"
+    assert [p.name for p in tmp_path.iterdir()] == ["pack"]
+
+
 def test_a_file_in_the_way_is_not_replaced(tmp_path):
     target = tmp_path / "pack"
     target.write_text("mine")

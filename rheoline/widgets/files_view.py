@@ -259,7 +259,7 @@ class FilesView(View):
                                                layout=widgets.Layout(width="520px")),
                                   "rl-pack-path")
         c["overwrite"] = widgets.Checkbox(value=False, description="replace an existing file "
-                                          "or pack", indent=False)
+                                          "or an earlier review pack", indent=False)
         self.load_button = labelled(widgets.Button(description="load scenario file",
                                                    icon="folder-open"), "rl-load")
         self.save_button = labelled(widgets.Button(description="save as scenario file",
