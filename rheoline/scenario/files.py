@@ -945,7 +945,7 @@ def _scalar(value, spec, source, where, path, check_range=True):
     if not math.isfinite(out):
         fail(f"{_shown(value)!r} is not a finite number")
     if check_range:
-        _check_range(out, value, spec, fail)
+        out = _check_range(out, value, spec, fail)
     return out
 
 
@@ -1016,13 +1016,23 @@ def _tolerance_value(value, spec, fail, name):
     return ("absolute", si)
 
 
+#: Relative slack at a documented bound: a limit written in another unit ("20 L/min" for a
+#: high of 2e4 mL/min, "50 L") lands a few ulps off it after the unit conversion.
+_BOUND_RELATIVE_TOLERANCE = 1e-9
+
+
 def _check_range(si, raw, spec, fail):
+    """``si`` if it lies in the field's documented range (a bound itself is accepted, within
+    a relative 1e-9, and then returned exactly); otherwise ``fail`` with the range."""
     if spec.low is None and spec.high is None:
-        return
+        return si
     low = -math.inf if spec.low is None else spec.low
     high = math.inf if spec.high is None else spec.high
     if low <= si <= high:
-        return
+        return si
+    for bound in (low, high):
+        if math.isfinite(bound) and abs(si - bound) <= _BOUND_RELATIVE_TOLERANCE * abs(bound):
+            return float(bound)
     unit = spec.unit
     kind = KIND_OF.get(spec.kind)
 
