@@ -712,6 +712,8 @@ API_MISTAKES = [
      r"pressure|unit"),
     ("format-in-an-unknown-unit", lambda: rheoline.format_quantity(1.0, "pressure", "furlong"),
      r"unit|furlong"),
+    ("list-as-a-network-node", lambda: VesselNetwork([["a"]], ["b"], [1e9], pressures={"b": 0.0}),
+     r"node label"),
 ]
 
 

@@ -200,6 +200,14 @@ class VesselNetwork:
 
     def __post_init__(self):
         up, down = tuple(self.upstream), tuple(self.downstream)
+        for node in (*up, *down):
+            try:
+                hash(node)
+            except TypeError:
+                raise NetworkError(
+                    f"node {node!r} cannot be a node label ({type(node).__name__} is mutable); "
+                    "use a str, int or tuple, e.g. 'artery'"
+                ) from None
         res = np.atleast_1d(check_positive("resistance", self.resistance, "Pa s/m^3"))
         if res.ndim != 1 or not (len(up) == len(down) == res.size):
             raise InputRangeError(
