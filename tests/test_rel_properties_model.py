@@ -723,3 +723,16 @@ def test_api_mistakes_are_library_errors_naming_the_argument(call, match):
     bump("prop:api_mistakes_checked")
     with pytest.raises(RheolineError, match=match):
         call()
+
+
+@given(r=_log_uniform(1e-3, 5e-3), reduction=st.floats(0.0, 99.0), small=_log_uniform(1e-12, 1e-6))
+def test_flow_lost_to_a_stenosis_is_finite_at_zero_drive(r, reduction, small):
+    # zero drive is valid input: the fraction lost tends to its creeping-flow limit
+    _count("stenosis_zero_drive")
+    from rheoline.model.stenosis import stenosis_flow_fraction_lost
+
+    vessel = Vessel(radius=r, length=0.05, viscosity_law="newtonian", viscosity=3.5e-3)
+    at_zero, near_zero = np.asarray(stenosis_flow_fraction_lost(vessel, [0.0, small], reduction))
+    assert np.isfinite(at_zero)
+    assert at_zero <= near_zero + 1e-12   # the loss only grows with the drive (U^2 term)
+    assert at_zero == pytest.approx(near_zero, abs=1e-6)

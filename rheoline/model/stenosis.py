@@ -329,10 +329,18 @@ class StenosedVessel:
         return scalar_or_array(dp / total)
 
     def flow_fraction_lost(self, pressure_drop):
-        """1 - Q_stenosed / Q_unobstructed [-] at a driving pressure [Pa]."""
-        q = np.asarray(self.flow(pressure_drop))
-        q0 = np.asarray(self.unobstructed_flow(pressure_drop))
-        return scalar_or_array(1.0 - q / q0)
+        """1 - Q_stenosed / Q_unobstructed [-] at a driving pressure [Pa].
+
+        Written as ``1 - 2 R_0 / (b + sqrt(b^2 + 4 a |dp|))`` (R_0 the unobstructed
+        resistance), the ratio of :meth:`flow` to :meth:`unobstructed_flow` with the drive
+        cancelled, so it stays finite at zero drive (the creeping-flow limit 1 - R_0 / b).
+        """
+        dp = check_finite("pressure_drop", pressure_drop)
+        linear, quadratic, rest = self._terms()
+        b = linear + rest
+        total = np.asarray(self.vessel.resistance) + np.asarray(self.downstream_resistance)
+        ratio = 2.0 * total / (b + np.sqrt(b**2 + 4.0 * quadratic * np.abs(dp)))
+        return scalar_or_array(1.0 - ratio)
 
 
 def stenosis_flow_fraction_lost(vessel: Vessel, pressure_drop, reduction_percent, kind="area",
