@@ -1,5 +1,7 @@
 """Delivery time from a falling-head bag and a decaying pressure bag, against closed forms."""
 
+import re
+
 import numpy as np
 import pytest
 
@@ -62,3 +64,77 @@ def test_bad_delivery_input():
         falling_head_delivery_time(LINEAR, WATER, 0.0, 1.0, 0.5)
     with pytest.raises(InputRangeError, match="exactly one decay law"):
         pressure_bag_delivery_time(LINEAR, WATER, 1e-3, 2e4)
+
+
+@pytest.mark.parametrize("ratio", [1e-2, 1e-6, 1e-12, 1e-30])
+def test_falling_head_closed_form_when_the_bag_empties_at_the_outlet_level(ratio):
+    # linear line Q = c h: T = V ln(h_full / h_empty) / (c (h_full - h_empty))   (by hand);
+    # the drive ends at a tiny fraction of its start, where a fixed rule in the delivered
+    # volume misses the 1/Q singularity (bug B5 of the reliability notes)
+    v, hf = 1e-3, 1.0
+    he = hf * ratio
+    r = falling_head_delivery_time(LINEAR, WATER, v, hf, he)
+    c = 1000.0 * GRAVITY / A
+    assert r.time == pytest.approx(v * np.log(hf / he) / (c * (hf - he)), rel=1e-9)
+    assert r.relative_error < 1e-9 and r.flags == ()
+
+
+def test_falling_head_with_a_back_pressure_just_below_the_empty_drive():
+    # the same closed form in the net drive D = rho g h - p_back (linear in h), ending at
+    # 1e-6 of its start: T = V A ln(D_full / D_empty) / (D_full - D_empty)   (by hand)
+    v, hf, he = 1e-3, 1.0, 0.5
+    pb = 1000.0 * GRAVITY * he * (1 - 1e-6)
+    d_full, d_empty = 1000.0 * GRAVITY * hf - pb, 1000.0 * GRAVITY * he - pb
+    r = falling_head_delivery_time(LINEAR, WATER, v, hf, he, back_pressure=pb)
+    assert r.time == pytest.approx(v * A * np.log(d_full / d_empty) / (d_full - d_empty),
+                                   rel=1e-7)
+
+
+def test_pressure_bag_ending_just_above_the_yield_pressure_matches_adaptive_quadrature():
+    # a Casson fluid stops at the yield pressure 4 L tau_y / D; a bag ending 1e-4 above it
+    # takes ~1e4 times longer.  Reference: scipy.integrate.quad of dV/Q in ln(excess drive)
+    # (QUADPACK, adaptive), on the line's own flows
+    from scipy.integrate import quad
+
+    from rheoline.model.fluid_base import Fluid
+    from rheoline.model.rheology import Casson
+
+    paste = Fluid("paste", temperature_c=20.0, density=1000.0, rheology=Casson(0.01, 3e-3))
+    line = Line([Tube(inner_diameter=3e-4, length=0.5)])
+    yield_p = line.yield_pressure(paste)
+    assert yield_p == pytest.approx(4 * 0.5 * 0.01 / 3e-4)        # 4 L tau_y / D (by hand)
+    p_full, v = 10.0 * yield_p, 1e-8
+    p_empty = yield_p * (1.0 + 1e-4)
+    r = pressure_bag_delivery_time(line, paste, v, p_full, p_empty)
+
+    def integrand(log_excess):
+        excess = np.exp(log_excess)
+        return excess / line.solve(paste, source_pressure=yield_p + excess).flow
+
+    ref = quad(integrand, np.log(p_empty - yield_p), np.log(p_full - yield_p),
+               epsrel=1e-10, limit=200)[0] * v / (p_full - p_empty)
+    assert r.time == pytest.approx(ref, rel=1e-6)
+    assert r.flags == ()
+
+
+def test_delivery_broadcasts_volume_heads_and_swept_parts():
+    line = Line([Tube(inner_diameter=np.array([1e-3, 2e-3, 3e-3]), length=1.0)])
+    heads = np.array([[1.0], [2.0]])
+    r = falling_head_delivery_time(line, WATER, 1e-4, heads, 0.01)
+    assert r.time.shape == (2, 3)
+    one = falling_head_delivery_time(Line([Tube(inner_diameter=2e-3, length=1.0)]), WATER,
+                                     1e-4, 2.0, 0.01)
+    assert r.time[1, 1] == pytest.approx(one.time, rel=1e-9)
+
+
+def test_delivery_flags_a_time_whose_accuracy_is_not_assured(monkeypatch):
+    # the flag's wording, with the accuracy threshold lowered so that a transitional
+    # 5 mm line (whose friction blend bends sharply near Re 2300-4000) crosses it
+    from rheoline.model import delivery
+
+    monkeypatch.setattr(delivery, "_FLAG_RTOL", 1e-12)
+    line = Line([Tube(inner_diameter=5e-3, length=1.0)])
+    r = delivery.pressure_bag_delivery_time(line, WATER, 1e-4, 4e4, np.array([4e2, 4e-3]))
+    assert np.all(r.relative_error > 1e-12)
+    assert any(re.search(r"accuracy not assured in 2 of 2 scenarios .* as little as 1\.0e-07 "
+                         r"of the initial one", f) for f in r.flags)

@@ -45,6 +45,7 @@ Line (this module)
     ``line.part_names`` (unique labels, "#2" appended to repeats), ``line.parts``.
     ``line.pressure_residual(fluid, flow, head=0.0, source_pressure=0.0, back_pressure=0.0)``
         one vectorized evaluation of the line's physics: losses(flow) - net drive [Pa].
+    ``line.yield_pressure(fluid)`` the net drive [Pa] a yield-stress fluid needs to move.
     Every numeric input, the fluid's array properties and array part dimensions broadcast
     into one solve (no Python loop per scenario).
 
@@ -73,7 +74,8 @@ Delivery, tolerance, curves
     ``delivery.falling_head_delivery_time(line, fluid, volume, head_full, head_empty,
     source_pressure=0, back_pressure=0)``, ``delivery.pressure_bag_delivery_time(line, fluid,
     volume, pressure_full, pressure_empty=None, time_constant=None, head_full=0, ...)`` ->
-    ``DeliveryResult`` (``.time`` [s], ``.initial_flow``, ``.final_flow``, ``.mean_flow``);
+    ``DeliveryResult`` (``.time`` [s], ``.initial_flow``, ``.final_flow``, ``.mean_flow``,
+    ``.relative_error`` [-], ``.flags``);
     ``tolerance.flow_tolerance(line, fluid, head=..., diameter_tolerance=0.05, ...,
     n_samples=10000, seed=0)`` -> ``ToleranceResult`` (``.percentiles``, ``.shares``,
     ``.dominant_input``, ``.dominant_part``, ``.samples``);
@@ -441,6 +443,32 @@ class Line:
         return self._losses(layout, q, mu, dlog_mu) + (mu,)
 
     @staticmethod
+    def _yield_drop(layout, fluid):
+        """Net drive [Pa] a yield-stress fluid needs to move, sum of 2 L tau_y / R (else 0)."""
+        tau_y = getattr(fluid.rheology, "yield_stress", None)
+        if tau_y is None or not layout.diameter.shape[0]:
+            return np.zeros(layout.shape)
+        return (2.0 * layout.length * tau_y * layout.viscosity_factor
+                / (layout.diameter / 2.0)).sum(axis=0)
+
+    def yield_pressure(self, fluid, pries_correction=False):
+        """Net drive [Pa] below which a yield-stress fluid does not move (0 for other fluids).
+
+        :math:`\\sum 2 L \\tau_y / R` over the lumens (a Casson fluid's plug spans the bore).
+
+        Examples
+        --------
+        >>> from rheoline.model.fluid_base import Fluid
+        >>> from rheoline.model.parts import Tube
+        >>> from rheoline.model.rheology import Casson
+        >>> paste = Fluid("paste", temperature_c=20.0, density=1000.0, rheology=Casson(0.01, 3e-3))
+        >>> Line([Tube(inner_diameter=1e-3, length=1.0)]).yield_pressure(paste)   # 4 L tau_y / D
+        40.0
+        """
+        return _lumen.scalar_or_array(
+            self._yield_drop(self._layout(fluid, (), pries_correction), fluid))
+
+    @staticmethod
     def _drive(fluid, head, source_pressure, back_pressure):
         h = check_finite("head", head)
         ps = check_finite("source_pressure", source_pressure)
@@ -565,10 +593,8 @@ class Line:
             radius = layout.diameter / 2.0
             state = np.log(4.0 / (np.pi * radius**3)) + x
             # a yield-stress fluid needs the yield pressure 2 L tau_y / R in every lumen to move
-            tau_y = getattr(fluid.rheology, "yield_stress", None)
-            if tau_y is not None:
-                yield_drop = (2.0 * layout.length * tau_y * layout.viscosity_factor
-                              / radius).sum(axis=0)
+            if getattr(fluid.rheology, "yield_stress", None) is not None:
+                yield_drop = self._yield_drop(layout, fluid)
                 moving = (drive > yield_drop * (1.0 + 1e-9)) & (drive > _MIN_DRIVE)
                 drive_pos = np.where(moving, drive, 1.0)
                 log_drive = np.log(drive_pos)
@@ -631,12 +657,7 @@ class Line:
         midpoints against exact evaluations (below 1e-9 in ln Q, else the grid is refined
         or the Newton path is used).  Returns None to fall back to the Newton path.
         """
-        tau_y = getattr(fluid.rheology, "yield_stress", None)
-        threshold = _MIN_DRIVE
-        if tau_y is not None and shared.diameter.shape[0]:
-            threshold = max(_MIN_DRIVE, float(np.sum(
-                2.0 * shared.length * tau_y * shared.viscosity_factor
-                / (shared.diameter / 2.0))) * (1.0 + 1e-9))
+        threshold = max(_MIN_DRIVE, float(self._yield_drop(shared, fluid)) * (1.0 + 1e-9))
         moving = drive > threshold
         if not np.any(moving):
             return None
