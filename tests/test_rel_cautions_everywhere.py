@@ -2,9 +2,8 @@
 
 One parametrized test walks every output the toolkit produces for a person to read:
 
-* command line: ``run`` (table and JSON), ``check``, ``fluids``, ``parts``, ``demo``,
-  ``examples`` (the list and a printed example), and ``--help`` of the program and of
-  each command;
+* command line: every command of the parser alone (with the example file where it needs
+  one), ``run --json``, a printed example, and ``--help`` of the program and of each command;
 * the review pack: both CSV files, every sheet of the workbook, the HTML report and the
   manifest;
 * the views: each tab of the app (line, comparison, blood and vessels, files), each with
@@ -33,7 +32,25 @@ from rheoline.scenario.files import example_path
 _record = module_recorder("cautions", "cautions:")
 
 EXAMPLE = str(example_path("minimal"))
-COMMANDS = ["run", "check", "fluids", "parts", "demo", "examples"]
+
+
+def _commands():
+    """Every command of the parser, so that a new command is checked too."""
+    parser = cli.build_parser()
+    sub = next(a for a in parser._actions if a.__class__.__name__ == "_SubParsersAction")
+    return list(sub.choices)
+
+
+def _plain_invocation(command):
+    """The command alone, or with the example file where it needs one."""
+    try:
+        cli.build_parser().parse_args([command])
+    except Exception:  # noqa: BLE001 - the parser refuses: it needs FILE
+        return [command, EXAMPLE]
+    return [command]
+
+
+COMMANDS = _commands()
 
 
 def _plain(text):
@@ -86,8 +103,8 @@ def _sheets(path):
 
 OUTPUTS = (
     [(f"cli {' '.join(a)}", "cli", a) for a in (
-        ["run", EXAMPLE], ["run", EXAMPLE, "--json"], ["check", EXAMPLE], ["fluids"], ["parts"],
-        ["demo"], ["examples"], ["examples", "minimal"], ["--help"])]
+        *[_plain_invocation(c) for c in COMMANDS], ["run", EXAMPLE, "--json"],
+        ["examples", "minimal"], ["--help"])]
     + [(f"cli {c} --help", "cli", [c, "--help"]) for c in COMMANDS]
     + [(f"pack {n}", "pack", n) for n in ("results.csv", "parts.csv", "report.html",
                                            "manifest.json", "results.xlsx")]
