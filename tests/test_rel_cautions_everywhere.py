@@ -102,7 +102,7 @@ def _sheets(path):
 
 
 OUTPUTS = (
-    [(f"cli {' '.join(a)}", "cli", a) for a in (
+    [(f"cli {' '.join(a).replace(EXAMPLE, 'minimal.toml')}", "cli", a) for a in (
         *[_plain_invocation(c) for c in COMMANDS], ["run", EXAMPLE, "--json"],
         ["examples", "minimal"], ["--help"])]
     + [(f"cli {c} --help", "cli", [c, "--help"]) for c in COMMANDS]
