@@ -302,6 +302,31 @@ def test_every_example_runs_to_finite_positive_flows(name):
     assert np.isfinite(t["required pressure [mmHg]"]).all()
 
 
+OUTSIDE = "outside a correlation's range"
+
+
+def test_range_flags_mark_each_sweep_point_by_its_own_temperature():
+    from rheoline.model.blood import BLOOD_TEMPERATURE_RANGE_C
+
+    temps = [0.0, 20.0, 42.0, 50.0, 60.0]
+    r = run(sc(fluid="whole-blood", temperature=[f"{t:g} degC" for t in temps],
+               source_pressure="200 mmHg", parts=[{"type": "catheter", "gauge": [18, 20]}]))
+    low, high = BLOOD_TEMPERATURE_RANGE_C
+    flagged = r.table["flags"].str.contains(OUTSIDE, regex=False).tolist()
+    expected = [not low <= t <= high for t in temps for _ in (18, 20)]
+    assert flagged == expected and any(expected) and not all(expected)
+    assert any("outside the validated range" in w for w in r.warnings)
+
+
+def test_a_tolerance_band_reaching_outside_a_range_flags_only_its_case():
+    # 41 degC +- 2 degC samples up to 43 degC, beyond the blood models' 42 degC; 30 degC does not
+    r = run(sc(fluid="whole-blood", temperature=["30 degC", "41 degC"],
+               source_pressure="200 mmHg", tolerance={"temperature": "2 degC", "samples": 200}))
+    flagged = r.table["flags"].str.contains(OUTSIDE, regex=False).tolist()
+    assert flagged == [False, True]
+    assert r.table["flow p5 [mL/min]"].notna().all()
+
+
 def test_notes_about_several_parts_become_one_line():
     from rheoline.scenario.compare import _condense
 

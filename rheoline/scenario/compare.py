@@ -259,6 +259,45 @@ def _groups(sc):
     return groups
 
 
+def _point_group(g, col):
+    """The one-point group of sweep point ``col`` of ``g`` (scalars instead of arrays)."""
+    n = len(g.indices)
+    return _Group(g.scenario, g.indices[col:col + 1], g.labels[col:col + 1],
+                  {k: (v if k == "fluid" else float(v[col])) for k, v in g.values.items()},
+                  [{k: (float(v[col]) if isinstance(v, np.ndarray) and v.shape == (n,)
+                        and k not in ("flows", "pressure_drops") else v)
+                    for k, v in pv.items()} for pv in g.parts])
+
+
+#: The scenario fields a fluid is built from (besides its name).
+_FLUID_FIELDS = ("temperature", "hematocrit", "mass_fraction")
+
+
+def _fluid_range_mask(g, source):
+    """Per point of ``g``: does building its fluid warn that a model is outside its range?
+
+    The vectorized build warns once for the whole group; here the fluid is built again,
+    once per distinct (temperature, hematocrit, mass fraction), under its own
+    ``catch_warnings``.  Building a fluid solves nothing, so this is cheap.
+    """
+    from rheoline.errors import RangeWarning
+
+    n = len(g.indices)
+    present = [k for k in _FLUID_FIELDS if k in g.values]
+    states = {}
+    for col in range(n):
+        states.setdefault(tuple(float(g.values[k][col]) for k in present), []).append(col)
+    mask = np.zeros(n, dtype=bool)
+    for cols in states.values():
+        with warnings.catch_warnings(record=True) as caught:
+            warnings.simplefilter("always")
+            _build_fluid(_point_group(g, cols[0]), source)
+        mask[cols] = any(issubclass(w.category, RangeWarning) for w in caught)
+    if not mask.any():  # the group warned, but no single point does: keep it on all
+        mask[:] = True
+    return mask
+
+
 def _field_of(message, candidates, default):
     low = message.lower()
     for c in candidates:
@@ -440,9 +479,14 @@ def _solve_group(g, source):
 
     sc = g.scenario
     n = len(g.indices)
+    from rheoline.errors import RangeWarning, RheolineWarning
+    from rheoline.model.hemolysis import GIERSIEPEN_1990_MAX_STRESS
+
+    band_range = np.zeros(n, dtype=bool)
     with warnings.catch_warnings(record=True) as caught:
         warnings.simplefilter("always")
         fl = _build_fluid(g, source)
+        from_fluid = len(caught)
         parts = _build_parts(g, source)
         line = Line(parts)
         v = g.values
@@ -452,11 +496,24 @@ def _solve_group(g, source):
         else:
             res = line.solve(fl, head=v.get("head", 0.0), source_pressure=v.get("source_pressure", 0.0),
                              back_pressure=back)
-        band = _tolerance_band(sc, g, fl, line, res) if _has_tolerance(sc) else None
+        before_band = len(caught)
+        band = None
+        if _has_tolerance(sc):
+            *band, band_range = _tolerance_band(sc, g, fl, line, res)
+        after_band = len(caught)
         deliver = _delivery_minutes(sc, g, fl, line, res)
         site = _site_context(g, parts, source)
-    from rheoline.errors import RangeWarning, RheolineWarning
-    from rheoline.model.hemolysis import GIERSIEPEN_1990_MAX_STRESS
+
+    def ranged(ws):
+        return any(issubclass(w.category, RangeWarning) for w in ws)
+
+    # which points rest on a correlation outside its range: the fluid's models per point,
+    # the tolerance band per case; a range note from anywhere else marks the whole group
+    range_note = band_range.copy()
+    if ranged(caught[:from_fluid]):
+        range_note |= _fluid_range_mask(g, source)
+    if ranged(caught[from_fluid:before_band]) or ranged(caught[after_band:]):
+        range_note[:] = True
 
     notes = [str(w.message) for w in caught if issubclass(w.category, RheolineWarning)]
     notes += list(getattr(res, "flags", ()) or ())
@@ -482,7 +539,6 @@ def _solve_group(g, source):
     is_blood = bool(fl.is_blood)
     budget = p_dp.sum(axis=0) + exit_dp
     rows, part_rows = [], []
-    range_note = any(issubclass(w.category, RangeWarning) for w in caught)
     converged = _vec(getattr(res, "converged", True), n)
     for col in range(n):
         case = sc.name + (f" | {g.labels[col]}" if g.labels[col] else "")
@@ -511,7 +567,7 @@ def _solve_group(g, source):
         ratio = float(_vec(site.diameter_ratio, n)[col]) if site is not None else np.nan
         if site is not None and bool(_vec(site.large_ratio, n)[col]):
             flags.append(f"catheter fills {ratio:.0%} of the vein diameter")
-        if range_note:
+        if range_note[col]:
             flags.append("outside a correlation's range (see notes)")
         bores = [float(_vec(p.inner_diameter, n)[col]) for p in parts
                  if getattr(p, "inner_diameter", None) is not None]
@@ -602,50 +658,60 @@ def _tolerance_band(sc, g, fl, line, res):
     Monte Carlo (:func:`rheoline.model.tolerance.flow_tolerance`, one vectorized solve of
     all samples per case).  Each tolerance is a half-width (uniform spread unless the file
     says ``distribution = "normal"``); an absolute bore or length tolerance is turned into a
-    relative one at the case's nominal value.
+    relative one at the case's nominal value.  The fourth array says, per case, whether a
+    model was used outside its range while sampling (its warnings are passed on).
     """
-    from rheoline.model.fluids import fluid as make_fluid
-    from rheoline.model.line import Line
-    from rheoline.model.tolerance import flow_tolerance
+    from rheoline.errors import RangeWarning
 
     n = len(g.indices)
     tol = sc.tolerance
     lo, hi, top = np.full(n, np.nan), np.full(n, np.nan), [""] * n
+    outside = np.zeros(n, dtype=bool)
     for col in range(n):
-        one = _Group(sc, g.indices[col:col + 1], g.labels[col:col + 1],
-                     {k: (v if k == "fluid" else float(v[col])) for k, v in g.values.items()},
-                     [{k: (float(v[col]) if isinstance(v, np.ndarray) and v.shape == (n,)
-                           and k not in ("flows", "pressure_drops") else v)
-                       for k, v in pv.items()} for pv in g.parts])
-        opts = {k: one.values[k] for k in ("mass_fraction",) if k in one.values}
-        case_fluid = _build_fluid(one, "")
-        case_line = Line(_build_parts(one, ""))
-        d_tol, l_tol = {}, {}
-        for i, (spec, part) in enumerate(zip(sc.parts, case_line.parts, strict=True)):
-            for key, target in (("inner_diameter", d_tol), ("length", l_tol)):
-                if key in spec.tolerance:
-                    how, width = spec.tolerance[key]
-                    nominal = float(np.asarray(getattr(part, key)).ravel()[0])
-                    target[i] = width if how == "relative" else width / nominal
-        drive = {"back_pressure": one.values.get("back_pressure", 0.0)}
-        if sc.mode == "flow":
-            drive["flow"] = one.values["flow"]
-        else:
-            drive["head"] = one.values.get("head", 0.0)
-            drive["source_pressure"] = one.values.get("source_pressure", 0.0)
-        band = flow_tolerance(
-            case_line, case_fluid, **drive, diameter_tolerance=d_tol, length_tolerance=l_tol,
-            temperature_tolerance=tol.get("temperature", 0.0),
-            hematocrit_tolerance=tol.get("hematocrit", 0.0) if case_fluid.is_blood else 0.0,
-            viscosity_tolerance=tol.get("viscosity", 0.0),
-            fluid_builder=lambda opts=opts, **kw: make_fluid(g.values["fluid"], **opts, **kw),
-            n_samples=int(tol.get("samples", DEFAULT_TOLERANCE_SAMPLES)),
-            seed=int(tol.get("seed", 0)), distribution=tol.get("distribution", "uniform"),
-            percentiles=(5.0, 95.0))
-        scale = MMHG if sc.mode == "flow" else ML_PER_MIN
-        lo[col], hi[col] = band.percentiles[5.0] / scale, band.percentiles[95.0] / scale
-        top[col] = band.dominant_input
-    return lo, hi, top
+        with warnings.catch_warnings(record=True) as caught:
+            warnings.simplefilter("always")
+            lo[col], hi[col], top[col] = _tolerance_case(sc, g, col, tol)
+        outside[col] = any(issubclass(w.category, RangeWarning) for w in caught)
+        for w in caught:  # on to the caller's notes
+            warnings.warn_explicit(w.message, w.category, w.filename, w.lineno)
+    return lo, hi, top, outside
+
+
+def _tolerance_case(sc, g, col, tol):
+    """p5, p95 and the dominant input of the tolerance band of sweep point ``col``."""
+    from rheoline.model.fluids import fluid as make_fluid
+    from rheoline.model.line import Line
+    from rheoline.model.tolerance import flow_tolerance
+
+    one = _point_group(g, col)
+    opts = {k: one.values[k] for k in ("mass_fraction",) if k in one.values}
+    case_fluid = _build_fluid(one, "")
+    case_line = Line(_build_parts(one, ""))
+    d_tol, l_tol = {}, {}
+    for i, (spec, part) in enumerate(zip(sc.parts, case_line.parts, strict=True)):
+        for key, target in (("inner_diameter", d_tol), ("length", l_tol)):
+            if key in spec.tolerance:
+                how, width = spec.tolerance[key]
+                nominal = float(np.asarray(getattr(part, key)).ravel()[0])
+                target[i] = width if how == "relative" else width / nominal
+    drive = {"back_pressure": one.values.get("back_pressure", 0.0)}
+    if sc.mode == "flow":
+        drive["flow"] = one.values["flow"]
+    else:
+        drive["head"] = one.values.get("head", 0.0)
+        drive["source_pressure"] = one.values.get("source_pressure", 0.0)
+    band = flow_tolerance(
+        case_line, case_fluid, **drive, diameter_tolerance=d_tol, length_tolerance=l_tol,
+        temperature_tolerance=tol.get("temperature", 0.0),
+        hematocrit_tolerance=tol.get("hematocrit", 0.0) if case_fluid.is_blood else 0.0,
+        viscosity_tolerance=tol.get("viscosity", 0.0),
+        fluid_builder=lambda opts=opts, **kw: make_fluid(g.values["fluid"], **opts, **kw),
+        n_samples=int(tol.get("samples", DEFAULT_TOLERANCE_SAMPLES)),
+        seed=int(tol.get("seed", 0)), distribution=tol.get("distribution", "uniform"),
+        percentiles=(5.0, 95.0))
+    scale = MMHG if sc.mode == "flow" else ML_PER_MIN
+    return (band.percentiles[5.0] / scale, band.percentiles[95.0] / scale,
+            band.dominant_input)
 
 
 def _delivery_minutes(sc, g, fl, line, res):
