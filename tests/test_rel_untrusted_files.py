@@ -227,3 +227,19 @@ def test_example_files_pass_check(capsys, tmp_path, monkeypatch):
         assert cli.main(["check", str(example_path(name))]) == 0, capsys.readouterr().err
     capsys.readouterr()
     assert list(tmp_path.iterdir()) == []
+
+
+@pytest.mark.parametrize("text", [
+    '{"format_version": 1, "scenario": [{"name": "a", "fluid": "saline-0.9", "head": "1 m",'
+    ' "head": "10 m", "part": [{"type": "catheter", "gauge": 18}]}]}',
+    '{"format_version": 1, "format_version": 1, "scenario": [{"name": "a", "fluid": "water",'
+    ' "head": "1 m", "part": [{"type": "catheter", "gauge": 18, "gauge": 14}]}]}',
+], ids=["scenario-key", "part-key"])
+def test_a_json_key_given_twice_is_refused(text):
+    # TOML refuses a repeated key; JSON parsers keep the last one silently, so a reviewer
+    # reading the first value would see another number than the one solved
+    with pytest.raises(ScenarioError, match=r"(twice|more than once|duplicate|repeated).*"
+                                            r"(head|gauge|format_version)|"
+                                            r"(head|gauge|format_version).*(twice|more than once|"
+                                            r"duplicate|repeated)"):
+        loads_scenarios(text, fmt="json")
