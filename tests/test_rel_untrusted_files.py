@@ -243,3 +243,15 @@ def test_a_json_key_given_twice_is_refused(text):
                                             r"(head|gauge|format_version).*(twice|more than once|"
                                             r"duplicate|repeated)"):
         loads_scenarios(text, fmt="json")
+
+
+@pytest.mark.timeout(60)
+@pytest.mark.skipif(not hasattr(os, "mkfifo") or not Path("/dev/zero").exists(),
+                    reason="needs a POSIX system")
+def test_special_files_are_refused_without_reading_forever(tmp_path, capsys):
+    # an endless device and a pipe nobody writes to must not hang the loader
+    fifo = tmp_path / "pipe.toml"
+    os.mkfifo(fifo)
+    for path in (Path("/dev/zero"), fifo):
+        assert cli.main(["check", str(path)]) == 2
+        assert "not a regular file" in capsys.readouterr().err
