@@ -85,3 +85,30 @@ def test_the_files_view_never_overwrites_unless_asked(app, tmp_path):
     assert files._run(files.write_pack) is False
     assert [p.name for p in folder.iterdir()] == ["keep.txt"]
     assert "exists" in files.messages.value
+
+
+def test_every_control_at_its_limits_never_raises(app):
+    # a view turns bad input into a flag; nothing may escape to the page as a traceback
+    tried = 0
+    for view in app.views.values():
+        for control in view.controls.values():
+            if not (hasattr(control, "min") and hasattr(control, "max")):
+                continue
+            start = control.value
+            for value in (control.min, control.max, start):
+                control.value = value
+                tried += 1
+    bump("views:control_limits_tried", tried)
+    assert tried > 10
+
+
+def test_the_largest_bore_tolerance_the_comparison_offers_is_computed(app):
+    # 30 % is the top of the comparison's bore-tolerance control: valid input, so a band
+    compare = app.views["compare"]
+    control = compare.controls["bore_tolerance_percent"]
+    start = control.value
+    try:
+        control.value = control.max
+        assert "not computed" not in compare.messages.value, compare.messages.value
+    finally:
+        control.value = start
