@@ -361,3 +361,35 @@ def test_turbulent_tube_against_fluids_library_assembly():
     assert result.regime == "turbulent"
     # the developing-flow (Shah) term left inside the blend is negligible at Re ~ 2e4
     assert result.flow == pytest.approx(expected, rel=1e-6)
+
+
+def test_api_mistakes_name_the_argument_and_the_fix():
+    line = Line([Tube(inner_diameter=1e-3, length=1.0)])
+    with pytest.raises(InputRangeError, match=r"got the name 'water'.*rheoline\.fluid\('water'\)"):
+        line.solve("water", head=1.0)
+    with pytest.raises(InputRangeError, match=r"fluid must be a Fluid object, got None"):
+        line.pressure_residual(None, 1e-6, head=1.0)
+    with pytest.raises(InputRangeError, match=r"got one Tube .*Pass a list of parts"):
+        Line(Tube(inner_diameter=1e-3, length=1.0))
+    with pytest.raises(InputRangeError, match=r"head \(4,\), part\[0\] .*inner_diameter \(3,\)"):
+        Line([Tube(inner_diameter=np.full(3, 1e-3), length=1.0)]).solve(WATER_22, head=np.ones(4))
+    with pytest.raises(InputRangeError, match=r"fluid\.temperature_c \(2,\).*length \(3,\)"):
+        Line([Tube(inner_diameter=1e-3, length=np.ones(3))]).solve(
+            rheoline.fluid("water", temperature_c=np.array([20.0, 30.0])), head=1.0)
+    with pytest.raises(InputRangeError, match=r"back_pressure \(3,\), flow \(2,\)"):
+        line.solve(WATER_22, flow=np.ones(2) * 1e-6, back_pressure=np.zeros(3))
+    # shapes that broadcast still solve: a 4 x 3 grid of heads against bores
+    grid = Line([Tube(inner_diameter=np.full(3, 1e-3), length=1.0)]).solve(
+        WATER_22, head=np.ones((4, 1)))
+    assert np.shape(grid.flow) == (4, 3)
+
+
+def test_functions_taking_a_line_reject_a_list_of_parts():
+    from rheoline.model.delivery import falling_head_delivery_time
+    from rheoline.model.tolerance import flow_tolerance
+
+    parts = [Tube(inner_diameter=1e-3, length=1.0)]
+    with pytest.raises(InputRangeError, match=r"line must be a Line, got list.*Line\(\["):
+        falling_head_delivery_time(parts, WATER_22, 1e-4, 1.0, 0.5)
+    with pytest.raises(InputRangeError, match=r"rheoline\.fluid\('saline-0\.9'\)"):
+        flow_tolerance(Line(parts), "saline-0.9", head=1.0, diameter_tolerance=0.05)

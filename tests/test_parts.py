@@ -103,3 +103,18 @@ def test_bad_parts():
         MeasuredPart(flows=[1e-6, 2e-6], pressure_drops=[1.0])
     with pytest.raises(InputRangeError, match="circuit tubing size '5/8'"):
         circuit_tubing("5/8", 1.0)
+
+
+def test_several_gauges_in_one_part_say_how_to_sweep_sizes():
+    with pytest.raises(InputRangeError, match=r"catheter gauge must be one catalogue size .*"
+                                              r"\[Catheter\(gauge=g\).*inner_diameter=np\.array"):
+        Catheter(gauge=np.array([18, 20]))
+    with pytest.raises(InputRangeError, match=r"needle gauge must be one catalogue size .*"
+                                              r"got \[18, 20\]"):
+        Needle(gauge=[18, 20])
+    # one size given as a numpy scalar or a whole float is still that size
+    assert Catheter(gauge=np.int64(18)).name == Catheter(gauge=np.array(18)).name == "18G catheter"
+    assert Needle(gauge=22.0).inner_diameter == Needle(gauge=22).inner_diameter
+    # sweeping the bore of one catalogue part is the vectorized way
+    swept = Catheter(gauge=18, inner_diameter=np.array([0.9e-3, 1.0e-3, 1.1e-3]))
+    assert swept.inner_diameter.shape == (3,)

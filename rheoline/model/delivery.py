@@ -30,7 +30,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from rheoline.errors import InputRangeError
-from rheoline.model.line import Line
+from rheoline.model.line import Line, _check_line
 from rheoline.model.validation import check_finite, check_nonnegative, check_positive
 
 __all__ = [
@@ -240,6 +240,9 @@ def falling_head_delivery_time(line, fluid, volume, head_full, head_empty, sourc
     >>> round(r.time / 60.0, 1)      # minutes for one litre
     10.8
     """
+    _check_line(line, fluid, volume=volume, head_full=head_full,
+                head_empty=head_empty, source_pressure=source_pressure,
+                back_pressure=back_pressure)
     v = check_positive("volume", volume, "m^3")
     h_full = check_finite("head_full", head_full)
     h_empty = check_finite("head_empty", head_empty)
@@ -294,6 +297,10 @@ def pressure_bag_delivery_time(line, fluid, volume, pressure_full, pressure_empt
     >>> round(r.time / 60.0, 2)
     1.17
     """
+    _check_line(line, fluid, volume=volume, pressure_full=pressure_full,
+                pressure_empty=pressure_empty, time_constant=time_constant,
+                head_full=head_full, head_empty=head_empty,
+                back_pressure=back_pressure)
     v = check_positive("volume", volume, "m^3")
     p_full = check_finite("pressure_full", pressure_full)
     h_full = check_finite("head_full", head_full)

@@ -126,6 +126,47 @@ _CURVE_TOL = 1e-9     # largest interpolation error in ln(Q) accepted on the cha
 _MAX_ITER = 60
 
 
+def _check_fluid(fluid):
+    """Reject what is not a Fluid (a library name, None, a rheology model) with the fix."""
+    if isinstance(fluid, str):
+        raise InputRangeError(
+            f"fluid must be a Fluid object, got the name {fluid!r}; build it first with "
+            f"rheoline.fluid({fluid!r}) (or rheoline.fluid({fluid!r}, temperature_c=...)) and "
+            "pass that"
+        )
+    if not (hasattr(fluid, "density") and hasattr(fluid, "rheology")):
+        raise InputRangeError(
+            f"fluid must be a Fluid object, got {fluid!r} ({type(fluid).__name__}); build one "
+            "with rheoline.fluid(\"water\") (see rheoline.fluid_names()) or "
+            "rheoline.model.fluid_base.newtonian_fluid(name, viscosity, density)"
+        )
+
+
+def _check_line(line, fluid, **named):
+    """For functions taking a line: a Line, a Fluid, and array inputs that broadcast."""
+    if not isinstance(line, Line):
+        raise InputRangeError(
+            f"line must be a Line, got {type(line).__name__} ({line!r}); wrap the parts, "
+            "e.g. Line([Tube(...), Catheter(gauge=18)])"
+        )
+    return line._check_inputs(fluid, **named)
+
+
+def _broadcast_named(named):
+    """np.broadcast_shapes of ``{label: array}``, or an InputRangeError naming the shapes."""
+    shapes = {label: np.shape(value) for label, value in named.items() if value is not None}
+    try:
+        return np.broadcast_shapes(*shapes.values())
+    except ValueError:
+        arrays = {label: shape for label, shape in shapes.items() if shape != ()}
+        listed = ", ".join(f"{label} {shape}" for label, shape in arrays.items())
+        raise InputRangeError(
+            f"array inputs whose shapes do not broadcast together: {listed}. Give them the "
+            "same shape, or shapes that broadcast (numpy rules: trailing axes equal or 1), "
+            "e.g. a column of shape (n, 1) against a row of shape (m,) for an n x m grid"
+        ) from None
+
+
 def _shape_of(*values):
     return np.broadcast_shapes(*(np.shape(v) for v in values if v is not None))
 
@@ -203,6 +244,12 @@ class Line:
     """
 
     def __init__(self, parts, entrance="sharp-edged", name=None):
+        if isinstance(parts, (Part, str)) or not hasattr(parts, "__iter__"):
+            kind = type(parts).__name__
+            raise InputRangeError(
+                f"parts must be a list of parts, upstream first; got one {kind} ({parts!r}). "
+                f"Pass a list of parts, e.g. Line([part]) or Line([tube, catheter])"
+            )
         parts = tuple(parts)
         if not parts:
             raise InputRangeError("Line needs at least one part; got an empty list")
@@ -225,6 +272,17 @@ class Line:
 
     def __repr__(self):
         return f"Line({list(self.part_names)!r})"
+
+    def _check_inputs(self, fluid, **named):
+        """Check the fluid and that every array (inputs, fluid, part sizes) broadcasts."""
+        _check_fluid(fluid)
+        arrays = dict(named)
+        for attr in ("density", "temperature_c", "hematocrit"):
+            arrays[f"fluid.{attr}"] = getattr(fluid, attr, None)
+        for i, part in enumerate(self.parts):
+            for attr in ("inner_diameter", "length", "roughness", "k", "equivalent_length"):
+                arrays[f"part[{i}] ({part.name}) {attr}"] = getattr(part, attr, None)
+        return _broadcast_named(arrays)
 
     def __len__(self):
         return len(self.parts)
@@ -421,6 +479,8 @@ class Line:
         >>> bool(line.pressure_residual(water, 1e-8, source_pressure=1e4) < 0)
         True
         """
+        self._check_inputs(fluid, flow=flow, head=head, source_pressure=source_pressure,
+                           back_pressure=back_pressure)
         q = check_nonnegative("flow", flow, "m^3/s")
         drive = self._drive(fluid, head, source_pressure, back_pressure)
         layout = self._layout(fluid, np.broadcast_shapes(q.shape, np.shape(drive)), pries_correction)
@@ -507,7 +567,9 @@ class Line:
         Raises
         ------
         InputRangeError
-            Negative flow, non-finite inputs, both ``flow`` and ``source_pressure``.
+            Negative flow, non-finite inputs, both ``flow`` and ``source_pressure``, a
+            ``fluid`` that is not a Fluid (a name: pass ``rheoline.fluid(name)``), arrays
+            (inputs, fluid properties, part sizes) whose shapes do not broadcast.
 
         Notes
         -----
@@ -523,6 +585,8 @@ class Line:
         slopes, its error checked at the grid midpoints (below 1e-9 in ln Q, else refined,
         else the Newton path).  ``result.iterations`` is 0 on that path.
         """
+        self._check_inputs(fluid, head=head, source_pressure=source_pressure,
+                           back_pressure=back_pressure, flow=flow, pressure_limit=pressure_limit)
         if flow is not None:
             if source_pressure is not None:
                 raise InputRangeError(

@@ -55,7 +55,26 @@ def _mm(value):
     return f"{float(arr.min()) * 1e3:.3g}-{float(arr.max()) * 1e3:.3g} mm"
 
 
+def _one_size(gauge, what, sweep):
+    """A catalogue key must be one size: reject arrays and lists with how to sweep sizes."""
+    if np.ndim(gauge) != 0 or isinstance(gauge, (list, tuple, set, dict)):
+        raise InputRangeError(
+            f"{what} must be one catalogue size (e.g. 18), got {gauge!r}. For several sizes "
+            f"build one part per size ({sweep}), or sweep the bore of one part with "
+            "inner_diameter=np.array([...]) [m] (and length)"
+        )
+    if isinstance(gauge, (np.ndarray, np.generic)):
+        gauge = gauge.item()
+    if isinstance(gauge, float) and gauge.is_integer():
+        gauge = int(gauge)
+    return gauge
+
+
 def _lookup(table, key, what, fix):
+    try:
+        hash(key)
+    except TypeError:
+        raise InputRangeError(f"{what} {key!r} is not a catalogue key; {fix}") from None
     if key not in table:
         allowed = ", ".join(str(k) for k in sorted(table))
         raise InputRangeError(f"{what} {key!r} is not in the catalogue (allowed: {allowed}); {fix}")
@@ -156,6 +175,8 @@ class Catheter(Lumen):
     """
 
     def __init__(self, gauge, inner_diameter=None, length=None, name=None, roughness=0.0):
+        gauge = _one_size(gauge, "catheter gauge",
+                          "[Catheter(gauge=g) for g in (18, 20)], a Line each")
         od, d, length = _catheter_dims(gauge, inner_diameter, length)
         object.__setattr__(self, "gauge", gauge)
         if inner_diameter is None or length is None:
@@ -197,6 +218,8 @@ class Needle(Lumen):
                 f"needle wall {wall!r} is not known; choose one of "
                 f"{', '.join(catalogue.NEEDLE_WALLS)}, or pass inner_diameter"
             )
+        gauge = _one_size(gauge, "needle gauge",
+                          "[Needle(gauge=g) for g in (18, 20)], a Line each")
         od, id_regular, id_thin = _lookup(catalogue.NEEDLE_GAUGES, gauge, "needle gauge",
                                           "pass inner_diameter in metres for other sizes")
         d = (id_regular if wall == "regular" else id_thin) if inner_diameter is None else inner_diameter

@@ -26,7 +26,7 @@ from dataclasses import dataclass, fields, replace
 import numpy as np
 
 from rheoline.errors import InputRangeError
-from rheoline.model.line import Line
+from rheoline.model.line import Line, _check_line
 from rheoline.model.parts import Lumen, Tube
 from rheoline.model.validation import check_nonnegative
 
@@ -154,6 +154,8 @@ def flow_tolerance(line, fluid, *, head=0.0, source_pressure=None, back_pressure
     >>> band.dominant_input
     'inner_diameter of 22G catheter'
     """
+    _check_line(line, fluid, head=head, source_pressure=source_pressure,
+                back_pressure=back_pressure, flow=flow)
     if distribution not in ("uniform", "normal"):
         raise InputRangeError(
             f"distribution {distribution!r} is not known; choose 'uniform' or 'normal'")
