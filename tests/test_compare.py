@@ -327,6 +327,31 @@ def test_a_tolerance_band_reaching_outside_a_range_flags_only_its_case():
     assert r.table["flow p5 [mL/min]"].notna().all()
 
 
+def test_a_swept_tube_is_named_by_each_points_own_size():
+    # 1 mm x 0.1 m vs 1 mm x 30 m at a 9 m head: the long point is dominated by the tube,
+    # whose row must not carry the 30 m name on the 0.1 m point, nor "3-3 mm" for a size
+    # that is one value in the whole sweep
+    r = run(sc(head="9 m", parts=[
+        {"type": "tube", "inner_diameter": "1 mm", "length": ["0.1 m", "30 m"]},
+        {"type": "tube", "inner_diameter": "3 mm", "length": "1 m"},
+        {"type": "catheter", "gauge": 18}]))
+    short, long = rheoline.Tube(inner_diameter=1e-3, length=0.1).name, rheoline.Tube(
+        inner_diameter=1e-3, length=30.0).name
+    plain = rheoline.Tube(inner_diameter=3e-3, length=1.0).name
+    assert r.table["dominant part"].tolist()[1] == long
+    parts = r.parts[r.parts["kind"] == "lumen"]["part"].tolist()
+    assert parts == [short, plain, "18G catheter", long, plain, "18G catheter"]
+    # per-row flags: a turbulent 5 mm tube at a 2 m head (Re well above 4000 at both lengths)
+    t = run(sc(head="2 m", parts=[{"type": "tube", "inner_diameter": "5 mm",
+                                   "length": ["0.5 m", "3 m"]}])).table
+    assert t["flags"].tolist() == [
+        f"turbulent: {rheoline.Tube(inner_diameter=5e-3, length=x).name}" for x in (0.5, 3.0)]
+    # one line, one trace per part in the pack's pressure-budget chart
+    from rheoline.scenario.export import _figures
+
+    assert [t.name for t in _figures(r)[1].data][1:] == [plain, "18G catheter", "exit"]
+
+
 def test_notes_about_several_parts_become_one_line():
     from rheoline.scenario.compare import _condense
 

@@ -111,6 +111,10 @@ class RunResult:
         The models used and their references, and the fluids' property sources.
     warnings : tuple of str
         Notes raised while solving (correlations outside their range and the like).
+    part_keys : tuple of str
+        Per row of ``parts``, the part's name in its line (the same for every point of a
+        sweep), where ``parts["part"]`` names each point's own size; the pack's charts
+        group on it.
     """
 
     scenario_set: ScenarioSet
@@ -120,6 +124,7 @@ class RunResult:
     assumptions: object
     warnings: tuple = ()
     created: _dt.datetime = field(default_factory=lambda: _dt.datetime.now(_dt.UTC))
+    part_keys: tuple = ()
 
     def summary(self):
         """The columns printed by ``rheoline run``.
@@ -324,9 +329,33 @@ def _build_fluid(group, source):
                             field=fieldname) from None
 
 
-def _build_parts(group, source):
+def _build_part(spec, kw, name):
+    """One model part of the file's part ``spec`` with the field values ``kw``."""
     from rheoline.model import parts as mp
 
+    kw = dict(kw)
+    if spec.type == "tube":
+        return mp.Tube(name=name, **kw)
+    if spec.type == "set":
+        kind = kw.pop("kind")
+        if "inner_diameter" in kw:
+            length = kw.get("length", mp.catalogue.EXTENSION_SETS[kind][1])
+            return mp.Tube(inner_diameter=kw["inner_diameter"], length=length, name=name)
+        return mp.extension_set(kind, length=kw.get("length"), name=name)
+    if spec.type == "catheter" and "gauge" not in kw:  # a measured bore only
+        return mp.Tube(name=name or "catheter", **kw)
+    if spec.type == "catheter":
+        return mp.Catheter(name=name, **kw)
+    if spec.type == "needle":
+        return mp.Needle(name=name, **kw)
+    if spec.type == "cannula":
+        return mp.Cannula(name=name, **kw)
+    if spec.type == "fitting":
+        return mp.Fitting(name=name, **kw)
+    return mp.MeasuredPart(name=name, **kw)
+
+
+def _build_parts(group, source):
     sc = group.scenario
     built, used = [], {}
     for j, (spec, pv) in enumerate(zip(sc.parts, group.parts, strict=True), start=1):
@@ -335,35 +364,63 @@ def _build_parts(group, source):
             used[name] = used.get(name, 0) + 1
             if used[name] > 1:
                 name = f"{name} ({used[name]})"
-        kw = dict(pv)
         try:
-            if spec.type == "tube":
-                part = mp.Tube(name=name, **kw)
-            elif spec.type == "set":
-                kind = kw.pop("kind")
-                if "inner_diameter" in kw:
-                    length = kw.get("length", mp.catalogue.EXTENSION_SETS[kind][1])
-                    part = mp.Tube(inner_diameter=kw["inner_diameter"], length=length, name=name)
-                else:
-                    part = mp.extension_set(kind, length=kw.get("length"), name=name)
-            elif spec.type == "catheter" and "gauge" not in kw:  # a measured bore only
-                part = mp.Tube(name=name or "catheter", **kw)
-            elif spec.type == "catheter":
-                part = mp.Catheter(name=name, **kw)
-            elif spec.type == "needle":
-                part = mp.Needle(name=name, **kw)
-            elif spec.type == "cannula":
-                part = mp.Cannula(name=name, **kw)
-            elif spec.type == "fitting":
-                part = mp.Fitting(name=name, **kw)
-            else:
-                part = mp.MeasuredPart(name=name, **kw)
+            if name is None:
+                name = _unswept_name(spec, pv)
+            part = _build_part(spec, pv, name)
         except RheolineError as exc:
             f = _field_of(str(exc), list(pv), next(iter(pv), "type"))
             raise ScenarioError(str(exc), source=source, scenario=repr(sc.name),
                                 field=f"part[{j}].{f}") from None
         built.append(part)
     return built
+
+
+#: Part fields whose sweep changes the name the engine gives a part ("tube 3 mm x 1.8 m").
+_SIZE_FIELDS = ("inner_diameter", "length")
+
+
+def _unswept_name(spec, pv):
+    """The engine's name of a part whose sizes are one value repeated over a group.
+
+    A group passes every size as an array of its points; the engine would name it by the
+    range ("tube 3-3 mm x 1 m").  None (the engine names it) when a size varies.
+    """
+    sizes = {k: pv[k] for k in _SIZE_FIELDS if isinstance(pv.get(k), np.ndarray)}
+    if not sizes or any(v.ndim != 1 or v.size == 0 or np.ptp(v) > 0 for v in sizes.values()):
+        return None
+    return _build_part(spec, {**pv, **{k: float(v[0]) for k, v in sizes.items()}}, None).name
+
+
+def _point_part_names(g, line):
+    """Per part, the name of each sweep point's own part: shape (parts, points).
+
+    The engine names a part built from a whole sweep by its range or largest size; a row
+    of the table names the part as built for that point alone (once per distinct size).
+    Parts with a label, or whose size is not swept within the group, keep the line's name.
+    """
+    n = len(g.indices)
+    names = np.empty((len(line.parts), n), dtype=object)
+    for j, (spec, pv) in enumerate(zip(g.scenario.parts, g.parts, strict=True)):
+        names[j, :] = line.parts[j].name
+        swept = [k for k in _SIZE_FIELDS if isinstance(pv.get(k), np.ndarray)
+                 and pv[k].shape == (n,) and np.ptp(pv[k]) > 0]
+        if spec.label != spec.type or not swept:
+            continue
+        by_size = {}
+        for col in range(n):
+            by_size.setdefault(tuple(float(pv[k][col]) for k in swept), []).append(col)
+        with warnings.catch_warnings():
+            warnings.simplefilter("ignore")  # noted already for the whole group
+            for cols in by_size.values():
+                names[j, cols] = _build_part(spec, _point_group(g, cols[0]).parts[j], None).name
+    for col in range(n):  # repeats as the engine marks them: "name #2"
+        seen = {}
+        for j in range(len(line.parts)):
+            seen[names[j, col]] = seen.get(names[j, col], 0) + 1
+            if seen[names[j, col]] > 1:
+                names[j, col] = f"{names[j, col]} #{seen[names[j, col]]}"
+    return names
 
 
 def _site_context(group, parts, source):
@@ -447,9 +504,9 @@ def run_scenarios(sset: ScenarioSet, progress=None) -> RunResult:
         if bar is not None:
             bar.close()
     table = pd.DataFrame(rows, columns=_COLUMNS)
-    parts = pd.DataFrame(part_rows, columns=_PART_COLUMNS)
+    parts = pd.DataFrame([r[:-1] for r in part_rows], columns=_PART_COLUMNS)
     return RunResult(sset, table, parts, _inputs_table(sset), _assumptions_table(sset),
-                     tuple(dict.fromkeys(notes)))
+                     tuple(dict.fromkeys(notes)), part_keys=tuple(r[-1] for r in part_rows))
 
 
 _COLUMNS = [
@@ -524,7 +581,9 @@ def _solve_group(g, source):
         req = _vec(v.get("source_pressure", 0.0), n)
     max_re = _vec(res.max_reynolds, n)
     regime = _vec(res.regime, n)
-    dom = _vec(res.dominant_part, n)
+    point_names = _point_part_names(g, line)
+    dom = [point_names[line.part_names.index(str(d)), col]
+           for col, d in enumerate(_vec(res.dominant_part, n))]
     share = _vec(res.dominant_share, n)
     wss = _vec(res.max_wall_shear_stress, n)
     hemo = _vec(res.hemolysis_index, n)
@@ -544,7 +603,7 @@ def _solve_group(g, source):
         case = sc.name + (f" | {g.labels[col]}" if g.labels[col] else "")
         flags = []
         for r in ("turbulent", "transitional"):
-            where = [line.part_names[j] for j, part in enumerate(parts)
+            where = [point_names[j, col] for j, part in enumerate(parts)
                      if part.kind == "lumen" and _regime(p_re[j, col]) == r]
             if where:
                 flags.append(f"{r}: {', '.join(where)}")
@@ -597,7 +656,7 @@ def _solve_group(g, source):
             d = getattr(part, "inner_diameter", None)
             length = getattr(part, "length", None)
             part_rows.append([
-                case, line.part_names[j], getattr(part, "kind", "part"),
+                case, point_names[j, col], getattr(part, "kind", "part"),
                 float(_vec(d, n)[col]) * 1e3 if d is not None else np.nan,
                 float(_vec(length, n)[col]) if length is not None else np.nan,
                 float(p_re[j, col]), _regime(p_re[j, col]),
@@ -605,12 +664,13 @@ def _solve_group(g, source):
                 float(p_dp[j, col] / budget[col] * 100) if budget[col] > 0 else np.nan,
                 float(p_u[j, col]), float(p_tau[j, col]), float(p_rate[j, col]),
                 float(p_le[j, col]),
+                line.part_names[j],  # the part's key (not a column)
             ])
         part_rows.append([
             case, "exit", "exit", np.nan, np.nan, np.nan, "", float(exit_dp[col]),
             float(exit_dp[col]) / MMHG,
             float(exit_dp[col] / budget[col] * 100) if budget[col] > 0 else np.nan,
-            np.nan, np.nan, np.nan, np.nan,
+            np.nan, np.nan, np.nan, np.nan, "exit",
         ])
     per_case_rows = [rows[c] for c in range(n)]
     per_case_parts = [part_rows[c * (len(parts) + 1):(c + 1) * (len(parts) + 1)]

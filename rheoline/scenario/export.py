@@ -498,6 +498,7 @@ def frame_html(frame, max_rows: int = 2000) -> str:
 
 def _figures(run):
     """Plotly figures of the run: flow per case, and the pressure budget of each line."""
+    import numpy as np
     import plotly.graph_objects as go
 
     table = run.table
@@ -515,10 +516,15 @@ def _figures(run):
     parts = run.parts
     if len(parts):
         fig2 = go.Figure()
-        for part in dict.fromkeys(parts["part"]):
-            sub = parts[parts["part"] == part]
+        # one trace per part of a line: a swept part keeps one colour (its rows name each
+        # point's own size, shown on hover)
+        keys = list(getattr(run, "part_keys", ()) or ())
+        keys = np.asarray(keys if len(keys) == len(parts) else parts["part"], dtype=object)
+        for key in dict.fromkeys(keys):
+            sub = parts[keys == key]
             fig2.add_bar(x=sub["pressure drop [mmHg]"], y=[_e(c) for c in sub["case"]],
-                         orientation="h", name=_e(part))
+                         orientation="h", name=_e(key), hovertext=[_e(p) for p in sub["part"]],
+                         hovertemplate="%{hovertext}<br>%{y}<br>%{x:.4g} mmHg<extra></extra>")
         fig2.update_layout(barmode="stack", title="Pressure budget per part [mmHg]",
                            xaxis_title="pressure drop [mmHg]",
                            height=max(300, 22 * len(names) + 120), margin={"l": 10, "r": 10},
