@@ -110,3 +110,24 @@ def test_the_largest_bore_tolerance_the_comparison_offers_is_computed():
     control = compare.controls["bore_tolerance_percent"]
     control.value = control.max
     assert "not computed" not in compare.messages.value, compare.messages.value
+
+
+def test_unwritable_targets_become_flags_not_tracebacks(app, tmp_path):
+    # saving onto a folder, into a folder that does not exist, or a pack where nothing can be
+    # written: the files view must say so in its status line, with no exception on the page
+    files = app.views["files"]
+    (tmp_path / "a folder").mkdir()
+    files.controls["overwrite"].value = True
+    try:
+        for target in (tmp_path / "a folder", tmp_path / "no such folder" / "s.toml"):
+            files.controls["scenario_path"].value = str(target)
+            assert files._run(files.save) is False
+            assert "not computed" in files.messages.value
+        blocker = tmp_path / "a file"
+        blocker.write_text("x")
+        files.controls["pack_path"].value = str(blocker / "pack")  # parent is a file
+        assert files._run(files.write_pack) is False
+        assert "not computed" in files.messages.value
+    finally:
+        files.controls["overwrite"].value = False
+    assert (tmp_path / "a folder").is_dir() and blocker.read_text() == "x"
