@@ -216,3 +216,14 @@ def test_force_never_replaces_a_folder_that_is_not_a_pack(capsys, tmp_path):
     with pytest.raises(export.PackExistsError):
         write_pack(_small_run(tmp_path, "x"), documents, force=True)
     assert (documents / "thesis.txt").read_text() == "years of work"
+
+
+def test_command_line_reports_an_unwritable_pack_in_one_line(capsys, tmp_path):
+    src = tmp_path / "s.toml"
+    src.write_text(HOSTILE_FILE.replace("saline-0.9", "water"), encoding="utf-8")
+    blocker = tmp_path / "a file"
+    blocker.write_text("x")
+    status, out, err = _cli(capsys, "run", src, "--out", blocker / "pack")
+    assert status == 2 and err.startswith("rheoline: error: cannot write the pack")
+    assert err.count("\n") == 1 and "Traceback" not in err
+    assert blocker.read_text() == "x"
