@@ -167,9 +167,7 @@ def parse_quantity(text, kind: str, default_unit: str | None = None, field: str 
     UnitError
         For a missing, unknown or wrong-kind unit, naming the field and the units allowed.
     """
-    if kind not in KINDS:
-        raise UnitError(f"unknown quantity kind {kind!r}; choose one of {sorted(KINDS)}")
-    si_unit, dimensionality, examples = KINDS[kind]
+    si_unit, dimensionality, examples = _checked_kind(kind)
     if isinstance(text, bool):
         raise UnitError(f"{field}: expected a {kind} such as '{_example(kind)}', got {text!r}")
     if isinstance(text, (int, float)):
@@ -210,40 +208,72 @@ def _finite(number, text, field):
     return value
 
 
-def from_unit(number, unit: str, kind: str, field: str = "value"):
-    """Convert ``number`` given in ``unit`` to SI for ``kind`` (vectorized over number)."""
+def _checked_kind(kind):
+    if kind not in KINDS:
+        raise UnitError(f"unknown quantity kind {kind!r}; choose one of {sorted(KINDS)}")
+    return KINDS[kind]
+
+
+def _units_of(unit, kind: str, field: str):
+    """``unit`` of ``kind`` as a pint Unit, or a UnitError naming the field, kind and the units allowed."""
     import pint
 
     ureg = registry()
-    si_unit, dimensionality, examples = KINDS[kind]
+    si_unit, _, examples = _checked_kind(kind)
+    unknown = f"{field}: unknown unit {unit!r}; use one of {examples} (a {kind})"
+    if not isinstance(unit, str):
+        raise UnitError(unknown)
     normalized = _normalize_unit(unit)
     if len(normalized) > 40 or not _SAFE_UNIT.match(normalized):
-        raise UnitError(f"{field}: unknown unit {unit!r}; use one of {examples}")
+        raise UnitError(unknown)
     try:
-        q = ureg.Quantity(number, normalized)
+        parsed = ureg.Unit(normalized)
     except Exception as exc:  # noqa: BLE001 - pint's parser raises many kinds; all mean "unknown"
-        raise UnitError(f"{field}: unknown unit {unit!r}; use one of {examples}") from exc
+        raise UnitError(unknown) from exc
     if kind == "dimensionless":
-        if not q.dimensionless:
+        if not parsed.dimensionless:
             raise UnitError(f"{field}: expected a plain number or %, got unit {unit!r}")
-        return q.to("dimensionless").magnitude
+        return parsed
     try:
-        return q.to(si_unit).magnitude
+        ureg.Quantity(1.0, si_unit).to(parsed)
     except pint.errors.DimensionalityError as exc:
-        raise UnitError(
-            f"{field}: {unit!r} is not a unit of {kind} ({examples})"
-        ) from exc
+        raise UnitError(f"{field}: {unit!r} is not a unit of {kind} ({examples})") from exc
+    return parsed
 
 
-def to_unit(value_si, unit: str, kind: str):
-    """Convert an SI value (or array) of ``kind`` to ``unit``."""
-    ureg = registry()
-    si_unit = KINDS[kind][0]
-    return ureg.Quantity(value_si, si_unit).to(_normalize_unit(unit)).magnitude
+def from_unit(number, unit: str, kind: str, field: str = "value"):
+    """Convert ``number`` given in ``unit`` to SI for ``kind`` (vectorized over number)."""
+    parsed = _units_of(unit, kind, field)
+    return registry().Quantity(number, parsed).to(KINDS[kind][0]).magnitude
+
+
+def to_unit(value_si, unit: str, kind: str, field: str = "unit"):
+    """Convert an SI value (or array) of ``kind`` to ``unit``.
+
+    Raises
+    ------
+    UnitError
+        For an unknown kind, an unknown unit, or a unit of another kind, naming the kind
+        and the units allowed.
+
+    Examples
+    --------
+    >>> round(to_unit(1.0e-6 / 60.0, "mL/min", "flow"), 6)
+    1.0
+    >>> to_unit(1.0, "m", "pressure")
+    Traceback (most recent call last):
+    ...
+    rheoline.errors.UnitError: unit: 'm' is not a unit of pressure (Pa, kPa, mmHg, cmH2O, psi, bar)
+    """
+    parsed = _units_of(unit, kind, field)
+    return registry().Quantity(value_si, KINDS[kind][0]).to(parsed).magnitude
 
 
 def format_quantity(value_si, kind: str, unit: str, digits: int = 3) -> str:
-    """Format an SI value in ``unit`` with ``digits`` significant figures."""
+    """Format an SI value in ``unit`` with ``digits`` significant figures.
+
+    Raises :class:`~rheoline.errors.UnitError` as :func:`to_unit` does.
+    """
     v = float(to_unit(value_si, unit, kind))
     return f"{v:.{digits}g} {unit}"
 

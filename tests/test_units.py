@@ -85,3 +85,23 @@ def test_unknown_unit_and_garbage():
         parse_quantity("1 m/s", "speed")
     with pytest.raises(UnitError, match="expected a pressure such as '300 mmHg', got True"):
         parse_quantity(True, "pressure")
+
+
+def test_formatting_in_a_wrong_or_unknown_unit_is_a_unit_error():
+    # pint's DimensionalityError / UndefinedUnitError never reach the user (bug U2)
+    with pytest.raises(UnitError, match=r"'m' is not a unit of pressure \(Pa, kPa, mmHg"):
+        format_quantity(1.0, "pressure", "m")
+    with pytest.raises(UnitError, match=r"'furlong' is not a unit of pressure"):
+        format_quantity(1.0, "pressure", "furlong")
+    with pytest.raises(UnitError, match=r"unknown unit 'blah'; use one of mL/h.*\(a flow\)"):
+        to_unit(1e-6, "blah", "flow")
+    with pytest.raises(UnitError, match=r"unknown unit '9\*\*9\*\*9'"):
+        to_unit(1.0, "9**9**9", "pressure")
+    with pytest.raises(UnitError, match="unknown quantity kind 'speed'"):
+        to_unit(1.0, "m/s", "speed")
+    with pytest.raises(UnitError, match=r"expected a plain number or %, got unit 'mm'"):
+        to_unit(0.45, "mm", "dimensionless")
+    # NIST SP 811: 1 mmHg = 133.322 Pa, degF = 9/5 degC + 32
+    assert format_quantity(133.322387415 * 300, "pressure", "mmHg") == "300 mmHg"
+    assert to_unit(37.0, "degF", "temperature") == pytest.approx(98.6)
+    assert format_quantity(0.45, "dimensionless", "%") == "45 %"
