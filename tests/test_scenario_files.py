@@ -240,6 +240,18 @@ def test_json_reads_like_toml():
     assert from_json.sha256 and len(from_json.sha256) == 64
 
 
+def test_a_json_key_given_twice_names_the_key_and_its_object(tmp_path):
+    # RFC 8259 section 4: names within an object SHOULD be unique; TOML requires it
+    text = json.dumps(one(head="1 m")).replace('"head": "1 m"', '"head": "1 m", "head": "10 m"')
+    with pytest.raises(ScenarioError, match=r"dup\.json: key 'head' is given more than once "
+                                            r"in one JSON object \(in the object named 'case'\)"):
+        loads_scenarios(text, source="dup.json", fmt="json")
+    path = tmp_path / "dup.json"
+    path.write_text(json.dumps(one()).replace('"gauge": 18', '"gauge": 18, "gauge": 14'))
+    with pytest.raises(ScenarioError, match="key 'gauge' is given more than once"):
+        load_scenarios(path)
+
+
 def test_save_never_overwrites_without_force(tmp_path):
     target = tmp_path / "s.toml"
     target.write_text("keep me")

@@ -404,6 +404,21 @@ def load_scenarios(path) -> ScenarioSet:
     return loads_scenarios(data, source=source, fmt=fmt)
 
 
+def _json_object(pairs, source):
+    """A JSON object as a dict, refusing a key given twice (TOML refuses it too; JSON
+    readers keep the last value silently, so the file would read as one number and solve
+    as another)."""
+    out = {}
+    for key, value in pairs:
+        if key in out:
+            name = out.get("name", dict(pairs).get("name"))
+            where = f" (in the object named {_shown(name)!r})" if isinstance(name, str) else ""
+            raise ScenarioError(f"key {_shown(key)!r} is given more than once in one JSON "
+                                f"object{where}; keep one value", source=source)
+        out[key] = value
+    return out
+
+
 def loads_scenarios(text, source: str = "<string>", fmt: str = "toml") -> ScenarioSet:
     """Parse and validate scenario text (``str`` or UTF-8 ``bytes``) in TOML or JSON.
 
@@ -426,9 +441,11 @@ def loads_scenarios(text, source: str = "<string>", fmt: str = "toml") -> Scenar
         raise ScenarioError(f"unknown format {fmt!r}; use 'toml' or 'json'", source=source)
     try:
         if fmt == "json":
-            data = json.loads(text)
+            data = json.loads(text, object_pairs_hook=lambda pairs: _json_object(pairs, source))
         else:
             data = tomllib.loads(text)
+    except ScenarioError:
+        raise
     except tomllib.TOMLDecodeError as exc:
         raise ScenarioError(f"is not valid TOML: {exc}", source=source) from None
     except json.JSONDecodeError as exc:
