@@ -332,6 +332,18 @@ def test_a_file_in_the_way_is_not_replaced(tmp_path):
     assert target.read_text() == "mine"
 
 
+def test_the_report_shows_hidden_format_characters_of_the_file(tmp_path):
+    # a comment may hold a right-to-left override (names refuse it); the echo shows it
+    from rheoline.scenario.compare import run_scenarios
+
+    text = ('format_version = 1\n# 18G \u202e cart\n[[scenario]]\nname = "a"\n'
+            'fluid = "water"\nhead = "1 m"\n[[scenario.part]]\ntype = "catheter"\ngauge = 18\n')
+    folder = write_pack(run_scenarios(loads_scenarios(text, source="c.toml")), tmp_path / "p")
+    page = (folder / "report.html").read_text(encoding="utf-8")
+    assert "# 18G [U+202E] cart" in page and "\u202e" not in page
+    assert (folder / "scenario-c.toml").read_text(encoding="utf-8") == text  # copy as given
+
+
 def test_scenario_copy_and_hash_are_of_the_bytes_as_given(tmp_path):
     from rheoline.scenario.compare import run_scenarios
     from rheoline.scenario.files import example_path, load_scenarios

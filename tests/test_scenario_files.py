@@ -144,6 +144,23 @@ def test_a_bound_written_in_another_unit_is_the_bound_itself():
         parse_scenarios(one(volume="50.001 L"))
 
 
+@pytest.mark.parametrize("char", ["\u202e", "\u2066", "\u200b", "\u00ad", "\ufeff"])
+@pytest.mark.parametrize("where", ["name", "notes", "label"])
+def test_invisible_format_characters_in_names_are_refused(char, where):
+    # bidirectional overrides and isolates can make a name read as another one
+    # (Boucher & Anderson 2021, "Trojan Source: Invisible Vulnerabilities")
+    text = f"18G{char} cart"
+    doc = one(part=[{"type": "catheter", "gauge": 18, "label": text}]) if where == "label" \
+        else one(**{where: text})
+    with pytest.raises(ScenarioError, match=rf"invisible character U\+{ord(char):04X}.*remove"):
+        parse_scenarios(doc)
+
+
+def test_joiners_that_emoji_and_scripts_need_are_kept():
+    name = "team \U0001F468\u200d\U0001F469 \u0645\u06cc\u200c\u062e\u0648\u0627\u0647\u0645"
+    assert parse_scenarios(one(name=name)).scenarios[0].name == name
+
+
 def test_gauge_given_as_a_diameter_points_to_inner_diameter():
     with pytest.raises(ScenarioError, match="use inner_diameter"):
         parse_scenarios(one(part=[{"type": "catheter", "gauge": 1.2}]))

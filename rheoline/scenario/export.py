@@ -469,6 +469,20 @@ def _e(text) -> str:
     return html.escape(str(text), quote=True)
 
 
+def _visible_format_characters(text: str) -> str:
+    """Invisible format characters (bidirectional overrides, zero-width spaces...) shown as
+    ``[U+202E]``, so the echoed scenario file (its comments too) reads as it is stored.
+    The zero-width joiner and non-joiner are kept.
+
+    >>> _visible_format_characters("a\u202eb\u200dc")
+    'a[U+202E]b\u200dc'
+    """
+    import unicodedata
+
+    return "".join(f"[U+{ord(c):04X}]" if unicodedata.category(c) == "Cf"
+                   and c not in "\u200c\u200d" else c for c in text)
+
+
 def _cell_html(v):
     v = _py(v)
     if v is None:
@@ -581,7 +595,7 @@ def _write_html(run, path: Path, meta):
 <ul>{cautions}</ul>
 <h2>Scenario file as given</h2>
 <p>{_e(sset.source)}, SHA-256 {_e(meta['input_sha256'])}</p>
-<pre>{_e(text)}</pre>
+<pre>{_e(_visible_format_characters(text))}</pre>
 <p>rheoline {_e(meta['version'])}, {_e(meta['created_utc'])}. {_e(_caution())}</p>
 </body></html>
 """

@@ -68,6 +68,7 @@ import os
 import re
 import tempfile
 import tomllib
+import unicodedata
 from dataclasses import dataclass, field
 from pathlib import Path
 
@@ -130,6 +131,12 @@ _MAX_QUANTITY_CHARS = 60
 _MAX_CATHETER_BORE = 5e-3
 _UNIT_CHARS = re.compile(r"^[A-Za-z0-9 µμ°%/*^.·_()\-]*$")
 _CONTROL = re.compile(r"[\x00-\x1f\x7f-\x9f]")
+#: Invisible format characters (Unicode category Cf) a name may keep: the zero-width
+#: joiner and non-joiner, which emoji sequences and some scripts need.  Every other one
+#: (the bidirectional overrides and isolates U+202A-202E and U+2066-2069, marks, zero-width
+#: spaces, soft hyphens) can make a name display as something else in a review pack
+#: (Boucher & Anderson 2021, "Trojan Source"), so it is refused.
+_FORMAT_KEPT = {"\u200c", "\u200d"}
 
 
 # --------------------------------------------------------------------------- field specs
@@ -557,6 +564,13 @@ def _text(value, source, scenario, path, limit, notes=False):
         raise ScenarioError(f"contains the control character U+{ord(bad.group()):04X}; use "
                             "printable characters only", source=source, scenario=scenario,
                             field=path)
+    hidden = next((c for c in value if c not in _FORMAT_KEPT
+                   and unicodedata.category(c) == "Cf"), None)
+    if hidden is not None:
+        what = unicodedata.name(hidden, "a format character")
+        raise ScenarioError(f"contains the invisible character U+{ord(hidden):04X} ({what}), "
+                            "which can make the text display as something else; remove it",
+                            source=source, scenario=scenario, field=path)
     return value
 
 
