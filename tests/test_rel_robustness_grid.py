@@ -263,3 +263,18 @@ def test_range_flags_in_a_swept_table_mark_only_the_points_outside():
     flagged = table["flags"].astype(str).str.contains("outside").tolist()
     bump("grid:table_points_flag_checked", len(flagged))
     assert flagged == [False, False, True]
+
+
+def test_a_delivery_that_never_finishes_is_flagged():
+    # a bag that empties down to the outlet level (or is hung below the vein) never delivers
+    # the last of its volume: the table's time is inf, and the row must say why in words,
+    # since JSON has no infinity (the record's time is null, as when no volume is asked)
+    from rheoline.scenario.compare import run_scenarios
+    from rheoline.scenario.files import loads_scenarios
+
+    text = ('format_version = 1\n[[scenario]]\nname = "down to the outlet"\n'
+            'fluid = "saline-0.9"\nhead = "1 m"\nhead_when_empty = "0 m"\nvolume = "500 mL"\n'
+            '[[scenario.part]]\ntype = "catheter"\ngauge = 18\n')
+    table = run_scenarios(loads_scenarios(text)).table
+    assert table["time to deliver [min]"].iloc[0] == float("inf")
+    assert re.search(r"deliver|never|not finish|stops", str(table["flags"].iloc[0]))
