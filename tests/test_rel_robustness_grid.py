@@ -290,3 +290,31 @@ def test_a_delivery_that_never_finishes_is_flagged():
     table = run_scenarios(loads_scenarios(text)).table
     assert table["time to deliver [min]"].iloc[0] == float("inf")
     assert re.search(r"deliver|never|not finish|stops", str(table["flags"].iloc[0]))
+
+
+PUMP_FLOWS = np.geomspace(1e-12, 20e-3 / 60, 9)   # m^3/s: the scenario files' whole range
+
+
+@pytest.mark.parametrize(("name", "model"), CASES,
+                         ids=[f"{n}-{m}" if m else n for n, m in CASES])
+def test_pump_grid_pressure_is_finite_and_rises_with_flow(name, model):
+    # the inverse problem over the same grid: a prescribed flow (pump) gives a finite source
+    # pressure everywhere, rising strictly with the flow
+    blood = name in BLOOD
+    extra = [TEMPERATURES[:3], HEMATOCRITS] if blood else [TEMPERATURES[:3]]
+    n = 3 + len(extra)
+    shape = lambda i: [-1 if j == i else 1 for j in range(n)]  # noqa: E731
+    d, length, flow = (DIAMETERS.reshape(shape(0)), LENGTHS.reshape(shape(1)),
+                       PUMP_FLOWS.reshape(shape(2)))
+    temperature = extra[0].reshape(shape(3))
+    hematocrit = extra[1].reshape(shape(4)) if blood else None
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", RangeWarning)  # checked in the flow grid above
+        fl, _ = _build_fluid(name, model, temperature, hematocrit)
+        result = Line([Tube(inner_diameter=d, length=length)]).solve(fl, flow=flow)
+    required = np.asarray(result.required_pressure)
+    bump("grid:pump_points_solved", required.size)
+    bad = ~np.isfinite(required)
+    bad[:, :, 1:] |= ~(np.diff(required, axis=2) > 0)
+    bump("grid:pump_failures", int(np.count_nonzero(bad)))
+    assert not bad.any(), f"{name} ({model}): {np.count_nonzero(bad)} pump points failed"
