@@ -20,6 +20,7 @@ import signal
 import socket
 import subprocess
 import time
+import urllib.error
 import urllib.request
 from pathlib import Path
 
@@ -68,10 +69,11 @@ def served_app(tmp_path_factory):
     url = f"http://127.0.0.1:{port}/"
     deadline = time.monotonic() + 90
     while True:
-        try:
-            with urllib.request.urlopen(url, timeout=5) as reply:
-                if reply.status == 200:
-                    break
+        try:  # any HTTP answer means the server is up; "/" itself would start a kernel
+            urllib.request.urlopen(url + "voila/files/readiness-probe", timeout=5).close()
+            break
+        except urllib.error.HTTPError:
+            break
         except OSError:
             pass
         if process.poll() is not None or time.monotonic() > deadline:
@@ -217,6 +219,11 @@ def test_line_view_follows_controls_in_a_real_browser(page, tmp_path):
 
 def test_blood_view_follows_the_vessel_radius_in_a_real_browser(page):
     page.get_by_role("tab", name="Blood and vessels").click()
+    # let the charts of the newly shown tab finish their first layout, as a person would
+    page.wait_for_function("""() => [...document.querySelectorAll('.js-plotly-plot')]
+        .filter(gd => gd.layout.title.text.startsWith('Fahraeus'))
+        .every(gd => gd.offsetWidth > 0 && gd._fullLayout)""")
+    page.wait_for_timeout(2000)
     view = page.locator(".rl-view").filter(has=page.locator(".rl-vessel-radius")).first
     assert view.locator(".rl-caution-banner").is_visible()
     radius = view.locator(".rl-vessel-radius input")

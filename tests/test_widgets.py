@@ -393,3 +393,38 @@ def test_bore_only_band_equals_solving_every_sample(compare_view):
     low, high = np.percentile(flows, [5.0, 95.0], axis=0, method="inverted_cdf")
     assert np.allclose(low, p5[[0, len(x) // 2, -1]], rtol=1e-9)
     assert np.allclose(high, p95[[0, len(x) // 2, -1]], rtol=1e-9)
+
+
+def test_the_responsiveness_case_is_seven_candidates_with_bands():
+    from rheoline.widgets.base import time_control_change
+    from rheoline.widgets.compare_view import responsiveness_case
+    view = responsiveness_case(points=20)
+    assert len(view.candidates) == 7 and len(view.figures["curves"].data) == 14
+    seconds = time_control_change(view, "temperature_c", 23.0)
+    assert np.isfinite(seconds) and seconds > 0  # timed, not asserted (benchmarks/ time it)
+    assert all(len(trace.y) == 40 for trace in view.figures["curves"].data[:7])
+
+
+def test_line_view_flags_a_hemolysis_concern_for_blood_at_high_wall_stress():
+    from rheoline.scenario.compare import HEMOLYSIS_CONCERN_STRESS
+    from rheoline.widgets.line_view import LineView
+    view = LineView(parts=[{"type": "needle", "gauge": 25}], fluid="packed-red-cells",
+                    temperature_c=37.0, hematocrit=0.65, mode="set flow (pump)",
+                    flow_ml_min=20.0, pressure_limit_mmhg=0.0)
+    assert view.result.max_wall_shear_stress > HEMOLYSIS_CONCERN_STRESS
+    assert "hemolysis concern" in view.results.value and "[!]" in view.results.value
+
+
+def test_app_makes_a_tabs_figurewidgets_only_when_the_tab_opens(app):
+    # each FigureWidget makes the browser start plotly's widget code under a short deadline
+    # (anywidget allows 2 s), so only the open tab's charts are widgets
+    import plotly.graph_objects as go
+    assert all(isinstance(f, go.FigureWidget) for f in app.views["line"].figures.values())
+    blood = app.views["blood"]
+    assert not any(isinstance(f, go.FigureWidget) for f in blood.figures.values())
+    blood.set_control("hematocrit", 0.35)  # updates work on the plain figures too
+    app.tabs.selected_index = list(app.views).index("blood")
+    assert all(isinstance(f, go.FigureWidget) for f in blood.figures.values())
+    from rheoline.widgets.blood_view import FAHRAEUS_DIAMETERS
+    expected = rheoline.pries_1992_relative_viscosity(FAHRAEUS_DIAMETERS, 0.35)
+    assert np.allclose(blood.figure_box("fahraeus").children[0].data[0].y, expected)

@@ -27,18 +27,25 @@ class App(widgets.VBox):
         self.views = {}
         self.failures = {}
         builders = {"line": _line, "compare": _compare, "blood": _blood}
+        first = True
         for name in tabs:
             if name in builders:
-                self.views[name] = self._build(name, builders[name])
+                self.views[name] = self._build(name, lambda b=builders[name], f=first: b(not f))
+                first = False
         if "files" in tabs:
             self.views["files"] = self._build(
                 "files", lambda: _files(self.views.get("line"), self.views.get("compare")))
         self.tabs = widgets.Tab(children=list(self.views.values()))
         self.tabs.titles = tuple(view.title for view in self.views.values())
         self.tabs.add_class("rl-tabs")
+        self.tabs.observe(self._opened, names="selected_index")
         header = widgets.HTML("<h2 style='margin:4px 0'>rheoline: infusion lines and vessels</h2>")
         self.children = [header, self.tabs]
 
+    def _opened(self, change):
+        """A tab's charts become FigureWidgets when the tab is first opened."""
+        if change.new is not None:
+            list(self.views.values())[change.new].show_figures()
 
     def _build(self, name, builder):
         """Build one view; a view that fails shows why instead of taking the app down."""
@@ -57,19 +64,19 @@ class App(widgets.VBox):
             return stand_in
 
 
-def _line():
+def _line(lazy=False):
     from rheoline.widgets.line_view import LineView
-    return LineView()
+    return LineView(lazy=lazy)
 
 
-def _compare():
+def _compare(lazy=False):
     from rheoline.widgets.compare_view import ComparisonView
-    return ComparisonView()
+    return ComparisonView(lazy=lazy)
 
 
-def _blood():
+def _blood(lazy=False):
     from rheoline.widgets.blood_view import BloodVesselView
-    return BloodVesselView()
+    return BloodVesselView(lazy=lazy)
 
 
 def _files(line_view, compare_view):

@@ -77,7 +77,7 @@ class View(widgets.VBox):
     Subclasses build ``self.controls`` and ``self.figures`` (plain ``go.Figure``) in
     their constructor, run the first update, call :meth:`_widgetize` (a FigureWidget
     shown by Voila must be complete when it is built), then :meth:`_finish` with the
-    body.
+    body, placing each figure with :meth:`figure_box`.
     """
 
     title = "view"
@@ -88,18 +88,43 @@ class View(widgets.VBox):
         self.figures: dict = {}
         self.last_update_seconds = float("nan")
         self._paused = False  # True while a view sets several controls at once
+        self._shown = False  # figures are FigureWidgets in their boxes
+        self._figure_boxes: dict = {}
         self.banner = caution_banner()
         self.messages = widgets.HTML(value="")
         self.messages.add_class("rl-messages")
         self.add_class("rl-view")
 
-    def _widgetize(self):
-        """Turn the filled figures into FigureWidgets (their constructor carries the state)."""
+    def figure_box(self, name: str) -> widgets.Box:
+        """The box in the layout that holds figure ``name`` once it is a FigureWidget."""
+        if name not in self._figure_boxes:
+            box = widgets.Box(layout=widgets.Layout(min_height="60px"))
+            box.add_class(f"rl-figure-{name}")
+            self._figure_boxes[name] = box
+            if self._shown:
+                box.children = [self.figures[name]]
+        return self._figure_boxes[name]
+
+    def _widgetize(self, lazy: bool = False):
+        """Turn the filled figures into FigureWidgets now, or at :meth:`show_figures`."""
+        if not lazy:
+            self.show_figures()
+
+    def show_figures(self):
+        """Make the figures FigureWidgets (their constructor carries the current state).
+
+        Each FigureWidget makes the browser load and start plotly's widget code within a
+        short deadline, so the app does this per tab, when the tab is first opened, rather
+        than for every chart at once when the page loads.
+        """
         import plotly.graph_objects as go
 
         for name, fig in self.figures.items():
             if not isinstance(fig, go.FigureWidget):
                 self.figures[name] = go.FigureWidget(fig)
+        self._shown = True
+        for name, box in self._figure_boxes.items():
+            box.children = [self.figures[name]]
 
     def _finish(self, body: list):
         self.children = [self.banner, *body, self.messages]

@@ -50,12 +50,15 @@ class BloodVesselView(View):
         Starting temperature [degC].
     shear_rate : float
         Starting shear rate [1/s] of the viscosity chart.
+    lazy : bool
+        Keep the charts as plain figures until :meth:`show_figures` (the app does this for
+        tabs not yet opened).
     """
 
     title = "Blood and vessels"
 
     def __init__(self, hematocrit: float = 0.45, temperature_c: float = 37.0,
-                 shear_rate: float = 100.0):
+                 shear_rate: float = 100.0, lazy: bool = False):
         super().__init__()
         c = self.controls
         c["hematocrit"] = labelled(widgets.FloatSlider(
@@ -118,13 +121,13 @@ class BloodVesselView(View):
                                            "cardiac_output_l_min", "height_cm", "weight_kg")},
         })
         self._run(lambda: self._refresh(everything | {"calculator"}))
-        self._widgetize()
+        self._widgetize(lazy)
 
         blood_box = widgets.VBox([c["hematocrit"], c["temperature_c"], c["shear_rate"], c["axis"],
-                                  self.figures["viscosity"]])
+                                  self.figure_box("viscosity")])
         vessel_box = widgets.VBox([widgets.HBox([c["vessel_radius_um"], c["vessel_length_mm"]]),
                                    self.point_output,
-                                   self.figures["fahraeus"], self.figures["resistance"]])
+                                   self.figure_box("fahraeus"), self.figure_box("resistance")])
         calculator = widgets.VBox([
             widgets.HTML("<b>Vascular resistance from measurements</b>"), c["bed"],
             c["upstream_mmhg"], c["downstream_mmhg"], c["cardiac_output_l_min"],

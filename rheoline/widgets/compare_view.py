@@ -47,7 +47,7 @@ from rheoline.widgets.line_view import _is_blood, fluid_for, fluid_options
 from rheoline.widgets.parts_editor import CATHETER_GAUGES, build_part, part_label
 from rheoline.widgets.style import BAND_OPACITY, flag_text, series_style, significant
 
-__all__ = ["ComparisonView", "SWEEPS", "BAND_SAMPLES", "BAND_POINTS", "DEFAULT_CANDIDATES",
+__all__ = ["ComparisonView", "responsiveness_case", "SWEEPS", "BAND_SAMPLES", "BAND_POINTS", "DEFAULT_CANDIDATES",
            "sized_part_index"]
 
 #: Sweep choices: name -> (axis title, default range, SI factor of the shown unit).
@@ -105,6 +105,8 @@ class ComparisonView(View):
         Points per curve.
     bore_tolerance_percent, temperature_tolerance_c : float
         Half-widths of the uniform tolerance spreads (0 = no band).
+    lazy : bool
+        Keep the chart a plain figure until :meth:`show_figures`.
     """
 
     title = "Compare"
@@ -113,7 +115,8 @@ class ComparisonView(View):
                  temperature_c: float = 22.0, hematocrit: float = 0.45,
                  head_cm: float = 100.0, source_pressure_mmhg: float = 0.0,
                  back_pressure_mmhg: float = 0.0, sweep: str = "head", points: int = 200,
-                 bore_tolerance_percent: float = 0.0, temperature_tolerance_c: float = 0.0):
+                 bore_tolerance_percent: float = 0.0, temperature_tolerance_c: float = 0.0,
+                 lazy: bool = False):
         super().__init__()
         self.candidates = [{"name": c["name"], "parts": [dict(p) for p in c["parts"]]}
                            for c in candidates]
@@ -176,7 +179,7 @@ class ComparisonView(View):
         c["fluid"].observe(lambda change: self._enable(), names="value")
         self._enable()
         self._run(lambda: self._refresh(everything))
-        self._widgetize()
+        self._widgetize(lazy)
 
         shared = widgets.HBox([
             widgets.VBox([c["fluid"], c["temperature_c"], c["hematocrit"], c["mass_fraction"]]),
@@ -188,7 +191,7 @@ class ComparisonView(View):
         self.new_kind.observe(self._kind_changed, names="value")
         self._finish([widgets.HBox([widgets.VBox([adder, widgets.HBox(
             [self.chooser, self.remove_button])])]), shared, sweep_box,
-            self.figures["curves"], self.table])
+            self.figure_box("curves"), self.table])
 
     # -- candidates --------------------------------------------------------------------
     def _kind_changed(self, change):
@@ -487,3 +490,16 @@ class ComparisonView(View):
             self._cache[key] = (f"{significant(p5[0] / ML_PER_MIN)}-"
                                 f"{significant(p95[0] / ML_PER_MIN)}")
         return self._cache[key]
+
+
+def responsiveness_case(points: int = 200, bore_tolerance_percent: float = 5.0) -> ComparisonView:
+    """The comparison the responsiveness target names: 7 candidates x ``points`` points with
+    a :data:`BAND_SAMPLES`-sample bore tolerance band (catheters 14G-26G behind one set).
+
+    Time one control change with :meth:`View.set_control`, e.g.
+    ``view.set_control("temperature_c", 23.0)`` returns the update's Python time [s].
+    """
+    candidates = [{"name": f"set + {g}G", "parts": (_SET, {"type": "catheter", "gauge": g})}
+                  for g in CATHETER_GAUGES[:7]]
+    return ComparisonView(candidates=candidates, points=points,
+                          bore_tolerance_percent=bore_tolerance_percent)

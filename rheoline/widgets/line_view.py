@@ -28,6 +28,7 @@ import numpy as np
 import plotly.graph_objects as go
 
 import rheoline
+from rheoline.scenario.compare import HEMOLYSIS_CONCERN_STRESS
 from rheoline.units import ML_PER_H, ML_PER_MIN, MMHG
 from rheoline.widgets.base import _STYLE, View, drive_controls, fluid_controls, labelled
 from rheoline.widgets.figures import BASE_LAYOUT, curve_and_point_figure
@@ -111,6 +112,8 @@ class LineView(View):
         the "set flow (pump)" mode.
     mode : str
         A key of :data:`DRIVE_MODES`.
+    lazy : bool
+        Keep the charts as plain figures until :meth:`show_figures`.
     """
 
     title = "Line"
@@ -119,7 +122,8 @@ class LineView(View):
                  temperature_c: float = 22.0, hematocrit: float = 0.45,
                  head_cm: float = 100.0, source_pressure_mmhg: float = 0.0,
                  back_pressure_mmhg: float = 0.0, flow_ml_min: float = 100.0,
-                 pressure_limit_mmhg: float = 300.0, mode: str = "gravity and pressure"):
+                 pressure_limit_mmhg: float = 300.0, mode: str = "gravity and pressure",
+                 lazy: bool = False):
         super().__init__()
         c = self.controls
         self.editor = PartsEditor(parts)
@@ -154,7 +158,7 @@ class LineView(View):
         self._line = None
         self._watch({name: {"solve"} for name in c})
         self._run(lambda: self._refresh({"solve"}))
-        self._widgetize()
+        self._widgetize(lazy)
 
         drive_box = widgets.VBox([c["mode"], c["head_cm"], c["source_pressure_mmhg"],
                                   c["flow_ml_min"], c["pressure_limit_mmhg"],
@@ -162,7 +166,7 @@ class LineView(View):
         fluid_box = widgets.VBox([c["fluid"], c["temperature_c"], c["hematocrit"],
                                   c["mass_fraction"]])
         self._finish([self.editor, widgets.HBox([fluid_box, drive_box]), self.results,
-                      widgets.HBox([self.figures["budget"], self.figures["drive"]])])
+                      widgets.HBox([self.figure_box("budget"), self.figure_box("drive")])])
 
     # -- inputs to the line engine ---------------------------------------------------
     def line(self) -> rheoline.Line:
@@ -254,6 +258,11 @@ class LineView(View):
             flags.append(flag_html("caution", f"{regime} flow: losses rise faster than the flow"))
         if pump and bool(np.any(result.exceeds_pressure_limit)):
             flags.append(flag_html("exceeded", "the required pressure is above the pressure limit"))
+        if _is_blood(self.controls["fluid"].value) and \
+                float(result.max_wall_shear_stress) > HEMOLYSIS_CONCERN_STRESS:
+            flags.append(flag_html("caution", "hemolysis concern: wall shear stress above "
+                                   f"{HEMOLYSIS_CONCERN_STRESS:g} Pa (screening threshold of the "
+                                   "scenario layer)"))
         flags += [flag_html("caution", text) for text in result.flags]
         if not flags:
             flags.append(flag_html("ok", "no validity flags for these inputs"))
