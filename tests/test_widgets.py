@@ -428,3 +428,12 @@ def test_app_makes_a_tabs_figurewidgets_only_when_the_tab_opens(app):
     from rheoline.widgets.blood_view import FAHRAEUS_DIAMETERS
     expected = rheoline.pries_1992_relative_viscosity(FAHRAEUS_DIAMETERS, 0.35)
     assert np.allclose(blood.figure_box("fahraeus").children[0].data[0].y, expected)
+
+
+def test_the_line_views_line_joins_the_comparison(app):
+    line, compare = app.views["line"], app.views["compare"]
+    line.editor.rows[1].size.value = 16
+    compare.add_line_button.click()
+    added = compare.candidates[-1]
+    assert added["name"] == "line view" and added["parts"][1]["gauge"] == 16
+    assert compare.operating_point(added).flow == pytest.approx(line.result.flow, rel=1e-12)

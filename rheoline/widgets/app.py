@@ -26,7 +26,7 @@ class App(widgets.VBox):
         self.add_class("rl-app")
         self.views = {}
         self.failures = {}
-        builders = {"line": _line, "compare": _compare, "blood": _blood}
+        builders = {"line": _line, "compare": self._compare, "blood": _blood}
         first = True
         for name in tabs:
             if name in builders:
@@ -41,6 +41,13 @@ class App(widgets.VBox):
         self.tabs.observe(self._opened, names="selected_index")
         header = widgets.HTML("<h2 style='margin:4px 0'>rheoline: infusion lines and vessels</h2>")
         self.children = [header, self.tabs]
+
+    def _compare(self, lazy=False):
+        from rheoline.widgets.compare_view import ComparisonView
+
+        line = self.views.get("line")
+        source = None if line is None else (lambda: line.editor.descriptions())
+        return ComparisonView(lazy=lazy, line_source=source)
 
     def _opened(self, change):
         """A tab's charts become FigureWidgets when the tab is first opened."""
@@ -67,11 +74,6 @@ class App(widgets.VBox):
 def _line(lazy=False):
     from rheoline.widgets.line_view import LineView
     return LineView(lazy=lazy)
-
-
-def _compare(lazy=False):
-    from rheoline.widgets.compare_view import ComparisonView
-    return ComparisonView(lazy=lazy)
 
 
 def _blood(lazy=False):

@@ -107,6 +107,9 @@ class ComparisonView(View):
         Half-widths of the uniform tolerance spreads (0 = no band).
     lazy : bool
         Keep the chart a plain figure until :meth:`show_figures`.
+    line_source : callable, optional
+        Returns the part descriptions of another view's line (the app passes the line
+        view's); a button then adds that line as a candidate.
     """
 
     title = "Compare"
@@ -116,7 +119,7 @@ class ComparisonView(View):
                  head_cm: float = 100.0, source_pressure_mmhg: float = 0.0,
                  back_pressure_mmhg: float = 0.0, sweep: str = "head", points: int = 200,
                  bore_tolerance_percent: float = 0.0, temperature_tolerance_c: float = 0.0,
-                 lazy: bool = False):
+                 lazy: bool = False, line_source=None):
         super().__init__()
         self.candidates = [{"name": c["name"], "parts": [dict(p) for p in c["parts"]]}
                            for c in candidates]
@@ -159,6 +162,12 @@ class ComparisonView(View):
                                                      icon="trash"), "rl-remove-candidate")
         self.remove_button.on_click(lambda b: self.remove_candidates(self.chooser.value))
         self.table = labelled(widgets.HTML(), "rl-compare-table")
+        self.line_source = line_source
+        self.add_line_button = labelled(widgets.Button(
+            description="add the line view's line", icon="plus",
+            layout=widgets.Layout(display=None if line_source else "none")), "rl-add-line")
+        self.add_line_button.on_click(lambda b: self.add_candidate(
+            {"name": "line view", "parts": self.line_source()}))
 
         self.figures["curves"] = go.Figure(
             data=self._traces(), layout=go.Layout(
@@ -187,7 +196,7 @@ class ComparisonView(View):
             widgets.VBox([c["bore_tolerance_percent"], c["temperature_tolerance_c"]])])
         sweep_box = widgets.HBox([c["sweep"], c["sweep_from"], c["sweep_to"]])
         adder = widgets.HBox([self.new_kind, self.new_gauge, self.new_behind_set,
-                              self.add_button])
+                              self.add_button, self.add_line_button])
         self.new_kind.observe(self._kind_changed, names="value")
         self._finish([widgets.HBox([widgets.VBox([adder, widgets.HBox(
             [self.chooser, self.remove_button])])]), shared, sweep_box,
