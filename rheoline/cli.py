@@ -145,7 +145,10 @@ def _cmd_run(args, out, sset=None):
     if args.out:
         from pathlib import Path
 
-        check_target(Path(args.out), args.force)  # refuse before solving anything
+        try:
+            check_target(Path(args.out), args.force)  # refuse before solving anything
+        except OSError as exc:  # OutputError: a file in the way of the folder
+            raise _pack_write_error(args.out, exc) from None
     reach = None
     if args.reach:
         from rheoline.units import ML_PER_MIN, parse_quantity
@@ -168,11 +171,15 @@ def _cmd_run(args, out, sset=None):
         try:
             folder = write_pack(run, args.out, force=args.force)
         except OSError as exc:
-            raise RheolineError(f"cannot write the pack to {args.out}: "
-                                f"{exc.strerror or exc}") from None
+            raise _pack_write_error(args.out, exc) from None
         msg = f"review pack written to {folder}/"
         print(msg, file=sys.stderr if args.json else out)
     return EXIT_OK
+
+
+def _pack_write_error(out_dir, exc):
+    reason = getattr(exc, "reason", None) or exc.strerror or exc
+    return RheolineError(f"cannot write the pack to {out_dir}: {reason}")
 
 
 def _cmd_demo(args, out):

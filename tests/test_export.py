@@ -344,6 +344,24 @@ def test_the_report_shows_hidden_format_characters_of_the_file(tmp_path):
     assert (folder / "scenario-c.toml").read_text(encoding="utf-8") == text  # copy as given
 
 
+def test_a_pack_that_cannot_be_written_is_a_scenario_error_and_an_os_error(tmp_path,
+                                                                           monkeypatch):
+    from rheoline.errors import ScenarioError
+
+    blocker = tmp_path / "a file"
+    blocker.write_text("mine")
+    with pytest.raises(export.OutputError, match="a file' is a file, not a folder") as info:
+        write_pack(fake_run(["x"]), blocker / "pack")
+    assert isinstance(info.value, ScenarioError) and isinstance(info.value, OSError)
+    assert blocker.read_text() == "mine"
+    monkeypatch.setattr(export, "_write_xlsx", lambda *a: (_ for _ in ()).throw(
+        PermissionError(13, "Permission denied")))
+    with pytest.raises(export.OutputError, match=r"pack: cannot write the review pack: "
+                                                 r"Permission denied"):
+        write_pack(fake_run(["x"]), tmp_path / "pack")
+    assert sorted(p.name for p in tmp_path.iterdir()) == ["a file"]
+
+
 def test_scenario_copy_and_hash_are_of_the_bytes_as_given(tmp_path):
     from rheoline.scenario.compare import run_scenarios
     from rheoline.scenario.files import example_path, load_scenarios

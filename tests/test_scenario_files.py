@@ -281,6 +281,29 @@ def test_save_never_overwrites_without_force(tmp_path):
     assert [p.name for p in tmp_path.iterdir()] == ["s.toml"]
 
 
+def test_save_where_nothing_can_be_written_is_a_scenario_error_naming_the_path(tmp_path,
+                                                                              monkeypatch):
+    sset = parse_scenarios(one())
+    (tmp_path / "a folder").mkdir()
+    cases = [(tmp_path / "a folder", "is a folder; give a file name"),
+             (tmp_path / "none" / "s.toml", "the folder .*none' does not exist")]
+    for target, match in cases:
+        with pytest.raises(files.OutputError, match=match) as info:
+            save_scenarios(sset, target, force=True)
+        assert isinstance(info.value, ScenarioError) and isinstance(info.value, OSError)
+        assert str(target) in str(info.value)
+
+    def disk_full(*args, **kwargs):
+        raise OSError(28, "No space left on device")
+
+    monkeypatch.setattr(files.os, "replace", disk_full)
+    with pytest.raises(files.OutputError, match="s.toml: cannot write the scenario file: No "
+                                                "space left on device") as info:
+        save_scenarios(sset, tmp_path / "s.toml")
+    assert info.value.errno == 28 and info.value.reason == "No space left on device"
+    assert sorted(p.name for p in tmp_path.iterdir()) == ["a folder"]  # no temporary file
+
+
 @pytest.mark.parametrize("path", sorted(p for p in MALFORMED.iterdir() if p.name != "expected.json"),
                          ids=lambda p: p.name)
 def test_malformed_corpus_fails_in_the_loader_or_the_model_check(path):

@@ -46,9 +46,11 @@ import tempfile
 from pathlib import Path
 
 from rheoline.errors import ScenarioError
+from rheoline.scenario.files import OutputError, check_output_folder, output_error
 
 __all__ = [
     "PackExistsError",
+    "OutputError",
     "write_pack",
     "is_review_pack",
     "neutralize_cell",
@@ -130,9 +132,22 @@ def write_pack(run, out_dir, force: bool = False) -> Path:
     Raises
     ------
     PackExistsError
-        When ``out_dir`` exists and ``force`` is false.
+        When ``out_dir`` exists and ``force`` is false, or it is not an earlier pack.
+    rheoline.scenario.files.OutputError
+        When the pack cannot be written there (a file in the way, no permission, a full
+        disk): a ScenarioError and an OSError, naming the folder and the reason.  Any
+        earlier pack is kept as it was.
     """
     out = Path(out_dir)
+    try:
+        return _write_pack(run, out, force)
+    except OutputError:
+        raise
+    except OSError as exc:
+        raise output_error(out, "cannot write the review pack", exc) from exc
+
+
+def _write_pack(run, out: Path, force: bool) -> Path:
     check_target(out, force)
     parent = out.parent if str(out.parent) else Path(".")
     parent.mkdir(parents=True, exist_ok=True)
@@ -191,6 +206,7 @@ def check_target(out: Path, force: bool):
     an unchanged pack is never replaced.
     """
     out = Path(out)
+    check_output_folder(out, "pack")
     if out.is_symlink():
         raise PackExistsError("is a symbolic link; rheoline does not replace links (nor "
                               "what they point to); choose a new folder for --out",

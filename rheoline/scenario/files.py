@@ -97,6 +97,7 @@ __all__ = [
     "parse_scenarios",
     "dump_scenarios",
     "save_scenarios",
+    "OutputError",
     "sweep_points",
     "fields_table",
     "example_names",
@@ -105,6 +106,46 @@ __all__ = [
 
 #: The format version this module reads and writes.
 FORMAT_VERSION = 1
+
+
+class OutputError(ScenarioError, OSError):
+    """A scenario file or a review pack cannot be written where asked (a folder in the
+    way, a missing or read-only folder, a full disk).
+
+    A :class:`~rheoline.errors.ScenarioError` naming the path, so views and the command
+    line show it as a message, and an :class:`OSError`, so ``except OSError`` still
+    catches it (as :class:`io.UnsupportedOperation` is both).  ``reason`` is the why alone
+    (the system's words, such as "No space left on device"), for a caller's own message.
+    """
+
+    def __init__(self, message: str, *, source=None, reason=None):
+        super().__init__(message, source=source)
+        self.reason = reason or message
+
+
+def output_error(path, what: str, exc: OSError) -> OutputError:
+    """An :class:`OutputError` for ``path`` from the operating system's ``exc``."""
+    reason = exc.strerror or str(exc)
+    err = OutputError(f"{what}: {reason}", source=str(path), reason=reason)
+    err.errno = exc.errno
+    return err
+
+
+def check_output_folder(path: Path, kind: str = "file"):
+    """Raise :class:`OutputError` unless the folder that is to hold ``path`` exists (for a
+    ``kind`` of ``"file"``) or can be created (``"pack"``): no file stands in the way."""
+    parent = path.parent if str(path.parent) else Path(".")
+    if kind == "file" and not parent.is_dir():
+        why = "is not a folder" if parent.exists() else "does not exist"
+        raise OutputError(f"the folder {str(parent)!r} {why}; choose an existing folder",
+                          source=str(path))
+    for folder in (parent, *parent.parents):
+        if folder.exists():
+            if not folder.is_dir():
+                raise OutputError(f"{str(folder)!r} is a file, not a folder; choose another "
+                                  "place", source=str(path))
+            return
+
 #: Largest scenario file read [bytes].
 MAX_FILE_BYTES = 1_000_000
 #: Deepest nesting of tables and lists accepted (a part's tolerance table is depth 5).
@@ -1132,19 +1173,40 @@ def save_scenarios(sset: ScenarioSet, path, force: bool = False) -> Path:
 
     JSON for a ``.json`` path, TOML otherwise.  An existing file is kept unless ``force``
     is true.
+
+    Raises
+    ------
+    ScenarioError
+        When ``path`` exists and ``force`` is false.
+    OutputError
+        When ``path`` is a folder or not a regular file, its folder does not exist, or the
+        system refuses the write (the reason named); nothing is left behind.
     """
     path = Path(path)
+    if path.is_dir():
+        raise OutputError("is a folder; give a file name, such as scenarios.toml inside it",
+                          source=str(path))
     if path.exists() and not force:
         raise ScenarioError("exists already; choose another name or pass force=True",
                             source=str(path))
+    if path.exists() and not path.is_file():
+        raise OutputError("exists and is not a regular file; choose another name",
+                          source=str(path))
+    check_output_folder(path, "file")
     text = dump_scenarios(sset, fmt="json" if path.suffix.lower() == ".json" else "toml")
-    fd, tmp = tempfile.mkstemp(prefix=f".{path.name}.", suffix=".tmp", dir=path.parent or ".")
+    try:
+        fd, tmp = tempfile.mkstemp(prefix=f".{path.name}.", suffix=".tmp",
+                                   dir=path.parent or ".")
+    except OSError as exc:
+        raise output_error(path, "cannot write the scenario file", exc) from None
     try:
         with os.fdopen(fd, "w", encoding="utf-8", newline="\n") as fh:
             fh.write(text)
         os.replace(tmp, path)
-    except BaseException:
+    except BaseException as exc:
         Path(tmp).unlink(missing_ok=True)
+        if isinstance(exc, OSError):
+            raise output_error(path, "cannot write the scenario file", exc) from None
         raise
     return path
 
