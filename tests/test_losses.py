@@ -10,12 +10,14 @@ from rheoline.model.losses import (
     CRANE_L_OVER_D,
     ENTRANCE_K,
     EXIT_K,
+    HOOPER_1981_2K,
     borda_carnot_expansion_k,
     crane_fitting_k,
     crane_sudden_contraction_k,
     crane_turbulent_friction,
     entrance_k,
     equivalent_length,
+    hooper_1981_2k_k,
     transition_k,
 )
 
@@ -76,3 +78,62 @@ def test_unknown_names():
         entrance_k("bevelled")
     with pytest.raises(InputRangeError, match="fitting kind 'elbow' is not known"):
         crane_fitting_k("elbow", 1e-3)
+
+
+#: Our kinds and the names of the same fittings in fluids' table of Hooper 1981 constants.
+HOOPER_NAMES = {
+    "gate-valve-open": "Valve, Gate, Full line size, Beta = 1",
+    "elbow-90-standard": "Elbow, 90°, Standard (R/D = 1), Screwed",
+    "tee-through-run": "Tee, Run, Screwed",
+    "tee-through-branch": "Elbow, Used as, Standard, Screwed",
+}
+
+
+@pytest.mark.parametrize("kind", sorted(HOOPER_NAMES))
+def test_hooper_2k_against_fluids(kind):
+    # Hooper 1981, Chem. Eng. 88: K = K1/Re + Kinf (1 + 1 in / D); reference fluids.fittings
+    assert set(HOOPER_NAMES) == set(HOOPER_1981_2K)
+    re = np.array([10.0, 300.0, 2000.0, 1e5])
+    for d in (1.0e-3, 3.0e-3, 0.05):
+        ref = [fluids.fittings.Hooper2K(Di=d / 0.0254, Re=r, name=HOOPER_NAMES[kind]) for r in re]
+        np.testing.assert_allclose(hooper_1981_2k_k(re, d, kind), ref, rtol=1e-12)
+    k1, k_inf = HOOPER_1981_2K[kind]
+    assert hooper_1981_2k_k(500.0, 2e-3, k1=k1, k_infinity=k_inf) == pytest.approx(
+        hooper_1981_2k_k(500.0, 2e-3, kind))
+
+
+@pytest.mark.parametrize("n_heads", [3, 300])   # the Newton path and the shared characteristic
+def test_line_uses_the_2k_coefficient_at_the_solved_reynolds_number(n_heads):
+    from rheoline.model.fluid_base import newtonian_fluid
+    from rheoline.model.line import Line
+    from rheoline.model.parts import Fitting, Tube
+
+    water = newtonian_fluid("water", viscosity=1.0e-3, density=998.0)
+    d = 2.0e-3
+    line = Line([Tube(inner_diameter=d, length=1.0), Fitting.hooper("elbow-90-standard", d)])
+    res = line.solve(water, head=np.geomspace(0.01, 2.0, n_heads))
+    u = res.flow / (np.pi * d * d / 4.0)
+    re = 998.0 * u * d / 1.0e-3
+    k = res.part_pressure_drops[1] / (0.5 * 998.0 * u * u)
+    ref = [fluids.fittings.Hooper2K(Di=d / 0.0254, Re=r, name=HOOPER_NAMES["elbow-90-standard"])
+           for r in re]
+    np.testing.assert_allclose(k, ref, rtol=1e-7)
+    # the default (constant, turbulent handbook) K does not change with the Reynolds number
+    crane = Line([Tube(inner_diameter=d, length=1.0), Fitting.crane("elbow-90-standard", d)])
+    res = crane.solve(water, head=np.array([0.01, 2.0]))
+    u = res.flow / (np.pi * d * d / 4.0)
+    k = res.part_pressure_drops[1] / (0.5 * 998.0 * u * u)
+    assert k[0] == pytest.approx(k[1], rel=1e-9)
+
+
+def test_hooper_bad_input():
+    from rheoline.model.parts import Fitting
+
+    with pytest.raises(InputRangeError, match="fitting kind 'stopcock-branch' is not known"):
+        hooper_1981_2k_k(100.0, 2e-3, "stopcock-branch")
+    with pytest.raises(InputRangeError, match="needs kind .* or both k1 and k_infinity"):
+        hooper_1981_2k_k(100.0, 2e-3, k1=500.0)
+    with pytest.raises(InputRangeError, match="Hooper 1981 fitting kind 'stopcock-branch' is not in"):
+        Fitting.hooper("stopcock-branch", 2e-3)
+    with pytest.raises(InputRangeError, match="laminar_k .* goes with k"):
+        Fitting(equivalent_length=0.1, inner_diameter=2e-3, laminar_k=500.0)

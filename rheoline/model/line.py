@@ -193,7 +193,8 @@ class _Layout:
     developing: np.ndarray      # (n_lumen, 1...) bool
     minor_k: np.ndarray         # (n_lumen, *shape) entrance/transition K at the lumen velocity
     viscosity_factor: np.ndarray  # (n_lumen, *shape) Pries 1992 factor (1 without it)
-    k_coefficient: np.ndarray   # (n_k, *shape): dp = c Q^2
+    k_coefficient: np.ndarray   # (n_k, *shape): dp = c Q^2 (+ k_linear Q)
+    k_linear: np.ndarray        # (n_k, *shape): Hooper 1981 laminar term of a 2-K fitting
     k_velocity_area: np.ndarray  # (n_k, *shape) area [m^2] the K refers to
     measured_a: np.ndarray      # (n_measured, *shape)
     measured_b: np.ndarray
@@ -335,7 +336,8 @@ class Line:
         if previous is None and n_l:
             minor[0] = self.entrance_k * ones
         # K fittings refer to their own bore, else the nearest upstream lumen, else downstream
-        k_coef, k_area = [], []
+        k_coef, k_area, k_lin = [], [], []
+        mu_ref = fluid.rheology.infinite_shear_viscosity
         for i in k_rows:
             part = self.parts[i]
             d = part.inner_diameter
@@ -352,7 +354,9 @@ class Line:
             area = np.pi * (d * ones) ** 2 / 4.0
             k_area.append(area)
             k_coef.append(part.k * rho / (2.0 * area * area))
-        mu_ref = fluid.rheology.infinite_shear_viscosity
+            # Hooper 1981: K_1/Re rho u^2/2 = K_1 mu Q / (2 D A), linear in Q
+            k1 = 0.0 if part.laminar_k is None else part.laminar_k
+            k_lin.append(k1 * mu_ref / (2.0 * (d * ones) * area))
         m_a, m_b = [], []
         for i in measured_rows:
             a, b = self.parts[i].scaled_coefficients(mu_ref, fluid.density)
@@ -386,6 +390,7 @@ class Line:
             relative_roughness=np.array(rough).reshape((n_l, *shape)), developing=dev,
             minor_k=minor, viscosity_factor=factor,
             k_coefficient=np.array(k_coef).reshape((len(k_rows), *shape)),
+            k_linear=np.array(k_lin).reshape((len(k_rows), *shape)),
             k_velocity_area=np.array(k_area).reshape((len(k_rows), *shape)),
             measured_a=np.array(m_a).reshape((len(measured_rows), *shape)),
             measured_b=np.array(m_b).reshape((len(measured_rows), *shape)),
@@ -424,13 +429,15 @@ class Line:
         dp_m = layout.minor_k * 0.5 * layout.density * u * u
         dp_lumen = dp_f + dp_m
         q2 = q * q
-        dp_k = layout.k_coefficient * q2
+        k_quad = layout.k_coefficient * q2
+        k_lin = layout.k_linear * q
+        dp_k = k_quad + k_lin
         lin = layout.measured_a * q
         quad = layout.measured_b * q2
         dp_exit = layout.exit_coefficient * q2
         total = (dp_lumen.sum(axis=0) + dp_k.sum(axis=0) + (lin + quad).sum(axis=0) + dp_exit)
         lumen_slope = dp_f * slope_f + 2.0 * dp_m
-        slope = (lumen_slope.sum(axis=0) + 2.0 * dp_k.sum(axis=0)
+        slope = (lumen_slope.sum(axis=0) + (2.0 * k_quad + k_lin).sum(axis=0)
                  + (lin + 2.0 * quad).sum(axis=0) + 2.0 * dp_exit)
         return total, slope, (dp_lumen, dp_k, lin + quad, dp_exit, re, u, lumen_slope)
 
@@ -454,6 +461,7 @@ class Line:
     def _quadratic_guess(layout, mu, drive):
         d, length = layout.diameter, layout.length
         a = (128.0 * mu * length / (np.pi * d**4)).sum(axis=0) + layout.measured_a.sum(axis=0)
+        a = a + layout.k_linear.sum(axis=0)
         area = np.pi * d**2 / 4.0
         hagenbach = np.where(layout.developing, 1.25, 0.0)
         b = ((layout.minor_k + hagenbach) * layout.density / (2.0 * area * area)).sum(axis=0)
@@ -788,7 +796,7 @@ class Line:
         u = q / area
         re = layout.density * u * layout.diameter / mu_out
         q2 = q * q
-        dp_k = layout.k_coefficient * q2
+        dp_k = layout.k_coefficient * q2 + layout.k_linear * q
         dp_meas = layout.measured_a * q + layout.measured_b * q2
         dp_exit = layout.exit_coefficient * q2
         total_out = (dp_lumen.sum(axis=0) + dp_k.sum(axis=0) + dp_meas.sum(axis=0) + dp_exit)

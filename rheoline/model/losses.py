@@ -9,12 +9,22 @@ The coefficients are the turbulent-flow handbook values (Crane Technical Paper
 410; Idelchik).  At the low Reynolds numbers of most infusion lines real minor
 losses grow roughly as C/Re; the laminar pressure budget is dominated by lumen
 friction, which is modelled separately, so the constant K is kept as a simple
-and slightly low estimate.
+and slightly low estimate, and it is the default everywhere.
+
+Option: Hooper's 1981 two-K method, :func:`hooper_1981_2k_k`,
+:math:`K = K_1/Re + K_\infty (1 + 1\,\text{in}/D)`, adds the laminar rise for the
+fittings of :data:`HOOPER_1981_2K` (``Fitting.hooper(kind, inner_diameter)``).  It is
+not the default: its constants come from industrial pipe fittings of 1/2 inch and up
+(from memory), and at infusion bores of 1-4 mm the size term :math:`1\,\text{in}/D`
+multiplies :math:`K_\infty` by 7-26, an extrapolation that is not clearly better than
+the constant K; small plastic parts are best measured (:class:`~rheoline.MeasuredPart`).
 
 References
 ----------
 Crane Co., "Flow of Fluids Through Valves, Fittings, and Pipe", Technical Paper 410, 2009.
 Idelchik, I.E., "Handbook of Hydraulic Resistance", 3rd ed., Begell House, 1996.
+Hooper, W.B., "The two-K method predicts head losses in pipe fittings", Chem. Eng. 88 (17)
+(1981) 96-100.
 """
 
 from __future__ import annotations
@@ -37,6 +47,8 @@ __all__ = [
     "crane_turbulent_friction",
     "crane_fitting_k",
     "equivalent_length",
+    "HOOPER_1981_2K",
+    "hooper_1981_2k_k",
 ]
 
 #: Entrance loss coefficients, referred to the velocity in the lumen entered.
@@ -64,6 +76,21 @@ CRANE_L_OVER_D = {
     "tee-through-run": 20.0,
     "tee-through-branch": 60.0,
 }
+
+#: Hooper 1981 two-K constants (K_1, K_infinity) [-] for the kinds of :data:`CRANE_L_OVER_D`
+#: with a clear counterpart in Hooper's Table 1 (screwed fittings; a tee's branch as a
+#: tee used as an elbow), as tabulated in the ``fluids`` library (fluids.fittings.Hooper),
+#: which the tests compare against.  Stopcocks (plug valves in Crane's terms) have no
+#: counterpart in that table: give their K, or measure them.
+HOOPER_1981_2K = {
+    "gate-valve-open": (300.0, 0.10),        # gate valve, full line size
+    "elbow-90-standard": (800.0, 0.40),      # 90 deg elbow, standard, screwed
+    "tee-through-run": (200.0, 0.10),        # tee, run through, screwed
+    "tee-through-branch": (500.0, 0.70),     # tee used as an elbow, standard, screwed
+}
+
+#: 1 inch [m], Hooper's reference size (exact by definition).
+_INCH = 0.0254
 
 #: Roughness [m] behind Crane's f_T (clean commercial steel, 0.0018 in).
 CRANE_ROUGHNESS = 4.572e-5
@@ -210,3 +237,41 @@ def equivalent_length(k, inner_diameter, friction_factor):
     d = check_positive("inner_diameter", inner_diameter, "m")
     f = check_positive("friction_factor", friction_factor)
     return scalar_or_array(k * d / f)
+
+
+def hooper_1981_2k_k(reynolds, inner_diameter, kind=None, k1=None, k_infinity=None):
+    r"""Loss coefficient K [-] of a fitting by Hooper's 1981 two-K method.
+
+    .. math:: K = \frac{K_1}{Re} + K_\infty \left(1 + \frac{1\ \text{inch}}{D}\right)
+
+    Parameters
+    ----------
+    reynolds : float or array_like
+        Reynolds number [-] in the fitting's bore, > 0.
+    inner_diameter : float or array_like
+        Bore [m] the K refers to.
+    kind : str, optional
+        A key of :data:`HOOPER_1981_2K`; or give ``k1`` and ``k_infinity``.
+    k1, k_infinity : float, optional
+        Hooper's constants [-].
+
+    Notes
+    -----
+    Hooper fitted industrial fittings over laminar to turbulent flow; below a bore of
+    about 1/2 inch (from memory) the size term is an extrapolation.  The line engine uses
+    it only for fittings built with ``Fitting.hooper`` (the constant K stays the default).
+
+    Examples
+    --------
+    >>> round(hooper_1981_2k_k(500.0, 2.0e-3, "elbow-90-standard"), 2)   # 1.6 + 0.4 * 13.7
+    7.08
+    """
+    if kind is not None:
+        k1, k_infinity = _choice("fitting kind", kind, HOOPER_1981_2K)
+    elif k1 is None or k_infinity is None:
+        raise InputRangeError(
+            "hooper_1981_2k_k needs kind (one of "
+            f"{', '.join(sorted(HOOPER_1981_2K))}) or both k1 and k_infinity")
+    re = check_positive("reynolds", reynolds)
+    d = check_positive("inner_diameter", inner_diameter, "m")
+    return scalar_or_array(k1 / re + k_infinity * (1.0 + _INCH / d))

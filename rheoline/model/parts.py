@@ -25,7 +25,7 @@ import numpy as np
 
 from rheoline.errors import InputRangeError
 from rheoline.model import catalogue
-from rheoline.model.losses import crane_fitting_k
+from rheoline.model.losses import _INCH, HOOPER_1981_2K, crane_fitting_k
 from rheoline.model.validation import check_nonnegative, check_positive
 
 __all__ = [
@@ -68,6 +68,11 @@ def _one_size(gauge, what, sweep):
     if isinstance(gauge, float) and gauge.is_integer():
         gauge = int(gauge)
     return gauge
+
+
+def _hooper_constants(kind):
+    return _lookup(HOOPER_1981_2K, kind, "Hooper 1981 fitting kind",
+                   "give the fitting's k (constant K), or Fitting.crane for Crane TP-410 kinds")
 
 
 def _lookup(table, key, what, fix):
@@ -342,6 +347,9 @@ class Fitting(Part):
     inner_diameter : float, optional
         Bore [m] the coefficient refers to.
     name : str, optional
+    laminar_k : float or array_like, optional
+        Hooper 1981 :math:`K_1` [-]: the coefficient becomes :math:`K = K_1/Re + k`, Re in
+        the bore the K refers to (default None: a constant K).  See :meth:`hooper`.
 
     Examples
     --------
@@ -349,12 +357,15 @@ class Fitting(Part):
     'fitting K=0.9'
     >>> Fitting.crane("stopcock-branch", inner_diameter=2e-3).name
     'stopcock-branch (Crane TP-410)'
+    >>> Fitting.hooper("elbow-90-standard", inner_diameter=2e-3).laminar_k
+    800.0
     """
 
     k: float | np.ndarray | None = None
     equivalent_length: float | np.ndarray | None = None
     inner_diameter: float | np.ndarray | None = None
     name: str | None = None
+    laminar_k: float | np.ndarray | None = None
     kind = "fitting"
 
     def __post_init__(self):
@@ -376,6 +387,14 @@ class Fitting(Part):
         if self.inner_diameter is not None:
             object.__setattr__(self, "inner_diameter",
                                _value(check_positive("inner_diameter", self.inner_diameter, "m")))
+        if self.laminar_k is not None:
+            if self.k is None:
+                raise InputRangeError(
+                    "Fitting laminar_k (Hooper K_1) goes with k (its K_infinity term), not with "
+                    "an equivalent_length; pass k= as well"
+                )
+            object.__setattr__(self, "laminar_k",
+                               _value(check_nonnegative("laminar_k", self.laminar_k)))
         if self.name is None:
             label = (f"K={np.max(self.k):.3g}" if self.k is not None
                      else f"Leq={np.max(self.equivalent_length):.3g} m")
@@ -391,6 +410,19 @@ class Fitting(Part):
         """A fitting from Crane TP-410's L/D for ``kind`` (see ``losses.CRANE_L_OVER_D``)."""
         k = crane_fitting_k(kind, inner_diameter, friction_factor)
         return cls(k=k, inner_diameter=inner_diameter, name=name or f"{kind} (Crane TP-410)")
+
+    @classmethod
+    def hooper(cls, kind, inner_diameter, name=None):
+        """A fitting by Hooper's 1981 two-K method, K = K_1/Re + K_inf (1 + 1 inch/D).
+
+        ``kind`` is a key of :data:`rheoline.model.losses.HOOPER_1981_2K`; see
+        :func:`rheoline.model.losses.hooper_1981_2k_k` for why it is an option, not the
+        default.
+        """
+        k1, k_inf = _hooper_constants(kind)
+        d = check_positive("inner_diameter", inner_diameter, "m")
+        return cls(k=k_inf * (1.0 + _INCH / d), inner_diameter=inner_diameter,
+                   laminar_k=k1, name=name or f"{kind} (Hooper 1981 2-K)")
 
 
 @dataclass(frozen=True)
