@@ -352,6 +352,19 @@ def test_a_swept_tube_is_named_by_each_points_own_size():
     assert [t.name for t in _figures(r)[1].data][1:] == [plain, "18G catheter", "exit"]
 
 
+def test_a_bag_emptying_to_the_outlet_level_is_flagged_as_never_delivering():
+    # Q -> 0 as the head falls to 0, and the time for the last of the volume diverges
+    # (T = V ln(h_full/h_empty) / (c (h_full - h_empty)) for a linear line)
+    r = run(sc(fluid="saline-0.9", head="1 m", head_when_empty=["0 m", "20 cm"],
+               volume="500 mL"))
+    t = r.table
+    assert t["time to deliver [min]"].tolist()[0] == math.inf
+    assert math.isfinite(t["time to deliver [min]"].tolist()[1])
+    never = [("never delivers the whole volume" in f) for f in t["flags"]]
+    assert never == [True, False]
+    assert "never delivers the whole volume" in " ".join(r.records()[0]["flags"])
+
+
 def test_notes_about_several_parts_become_one_line():
     from rheoline.scenario.compare import _condense
 

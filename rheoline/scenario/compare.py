@@ -621,6 +621,11 @@ def _solve_group(g, source):
             flags.append("hemolysis index extrapolated")
         if not flow[col] > 0:
             flags.append("no forward flow")
+        if deliver is not None and np.isinf(deliver[col]):
+            flags.append("never delivers the whole volume: the flow stops first (the drive "
+                         "falls to the back pressure)")
+        elif deliver is not None and np.isnan(deliver[col]):
+            flags.append("time to deliver not computed")
         if not converged[col]:
             flags.append("solver not converged")
         ratio = float(_vec(site.diameter_ratio, n)[col]) if site is not None else np.nan
