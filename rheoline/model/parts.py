@@ -48,11 +48,15 @@ def _value(arr):
     return float(arr) if arr.ndim == 0 else arr
 
 
+def _size_text(value, scale, unit):
+    """'3 mm' for one size (or one repeated), '0.8-1.2 mm' for a swept one."""
+    arr = np.asarray(value, dtype=float) * scale
+    low, high = f"{float(np.min(arr)):.3g}", f"{float(np.max(arr)):.3g}"
+    return f"{low} {unit}" if low == high else f"{low}-{high} {unit}"
+
+
 def _mm(value):
-    arr = np.asarray(value, dtype=float)
-    if arr.ndim == 0:
-        return f"{float(arr) * 1e3:.3g} mm"
-    return f"{float(arr.min()) * 1e3:.3g}-{float(arr.max()) * 1e3:.3g} mm"
+    return _size_text(value, 1e3, "mm")
 
 
 def _one_size(gauge, what, sweep):
@@ -140,7 +144,7 @@ class Lumen(Part):
             object.__setattr__(self, "name", self._default_name())
 
     def _default_name(self):
-        return f"tube {_mm(self.inner_diameter)} x {np.max(self.length):.3g} m"
+        return f"tube {_mm(self.inner_diameter)} x {_size_text(self.length, 1.0, 'm')}"
 
 
 @dataclass(frozen=True)
