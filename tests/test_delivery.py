@@ -138,3 +138,17 @@ def test_delivery_flags_a_time_whose_accuracy_is_not_assured(monkeypatch):
     assert np.all(r.relative_error > 1e-12)
     assert any(re.search(r"accuracy not assured in 2 of 2 scenarios .* as little as 1\.0e-07 "
                          r"of the initial one", f) for f in r.flags)
+
+
+def test_a_delivery_that_never_finishes_says_so():
+    # the drive ends at the back pressure (empty head at the outlet level): the time is inf
+    # and the result says why in words
+    r = falling_head_delivery_time(LINEAR, WATER, 1e-3, np.array([1.0, 1.0]),
+                                   np.array([0.5, 0.0]))
+    assert np.isinf(r.time[1]) and np.isfinite(r.time[0])
+    assert r.flags == ("the flow stops before the volume is delivered in 1 of 2 scenarios (the "
+                       "drive falls to the back pressure, or to a yield-stress fluid's yield "
+                       "pressure): time is inf",)
+    beyond = pressure_bag_delivery_time(LINEAR, WATER, 1.3e-3, 2e4, time_constant=60.0)
+    assert np.isinf(beyond.time)
+    assert any("the flow stops before the volume is delivered" in f for f in beyond.flags)

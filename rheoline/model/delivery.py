@@ -91,6 +91,14 @@ def _out(arr):
     return float(arr) if arr.ndim == 0 else arr
 
 
+def _stopped_flag(stopped):
+    """The words for deliveries that never finish (time inf), as a list of 0 or 1 flag."""
+    if not np.any(stopped):
+        return []
+    return [f"the flow stops before the volume is delivered{_count(stopped)} (the drive falls "
+            "to the back pressure, or to a yield-stress fluid's yield pressure): time is inf"]
+
+
 def _count(mask):
     mask = np.asarray(mask)
     return "" if mask.size == 1 else f" in {int(np.count_nonzero(mask))} of {mask.size} scenarios"
@@ -181,7 +189,7 @@ def _volume_quadrature(line, fluid, volume, head_of, pressure_of, back_pressure,
     time = np.where(stopped, np.inf, time)
     error = np.where(stopped, 0.0, error)
     mean = np.where(np.isfinite(time), volume / np.where(np.isfinite(time), time, 1.0), 0.0)
-    flags = []
+    flags = _stopped_flag(stopped)
     doubtful = error > _FLAG_RTOL
     if np.any(doubtful):
         ratio = np.where(doubtful, np.where(positive, e1, 0.0) / np.where(positive, e0, 1.0),
@@ -347,9 +355,14 @@ def _time_decay(line, fluid, volume, p_full, tau, h_full, h_empty, back_pressure
                     atol=1e-9 * float(np.min(vol / np.maximum(q0, 1e-300))))
     t_end = sol.y[:, -1]
     q_end = flow(t_end, 1.0)
-    stopped = (q_end <= 10.0 * floor) | (q0 <= 0) | (not sol.success)
+    halted = (q_end <= 10.0 * floor) | (q0 <= 0)
+    stopped = halted | (not sol.success)
     time = np.where(stopped, np.inf, t_end)
     mean = np.where(np.isfinite(time), vol / np.where(np.isfinite(time), time, 1.0), 0.0)
     return DeliveryResult(time=_out(time.reshape(shape)), initial_flow=_out(q0.reshape(shape)),
                           final_flow=_out(np.where(stopped, 0.0, q_end).reshape(shape)),
-                          mean_flow=_out(mean.reshape(shape)), method="solve_ivp")
+                          mean_flow=_out(mean.reshape(shape)), method="solve_ivp",
+                          relative_error=_out(np.where(stopped, 0.0, 1e-8).reshape(shape)),
+                          flags=tuple(_stopped_flag(halted.reshape(shape)) + (
+                              [] if sol.success else
+                              [f"solve_ivp did not finish ({sol.message}): time set to inf"])))
