@@ -50,6 +50,17 @@ def _plain_invocation(command):
     return [command]
 
 
+def _tabs():
+    """The app's tabs as build_app builds them by default (a new view is checked too)."""
+    import inspect
+
+    try:
+        from rheoline.widgets.app import build_app
+    except ImportError:  # pragma: no cover - the widgets extra is not installed
+        return []
+    return list(inspect.signature(build_app).parameters["tabs"].default)
+
+
 COMMANDS = _commands()
 
 
@@ -108,7 +119,7 @@ OUTPUTS = (
     + [(f"cli {c} --help", "cli", [c, "--help"]) for c in COMMANDS]
     + [(f"pack {n}", "pack", n) for n in ("results.csv", "parts.csv", "report.html",
                                            "manifest.json", "results.xlsx")]
-    + [(f"view {t}", "view", t) for t in ("line", "compare", "blood", "files")]
+    + [(f"view {t}", "view", t) for t in _tabs()]
 )
 
 
