@@ -53,6 +53,10 @@ VALIDATED_TEMPERATURE_C = {
     "lactated-ringers": (0.0, 100.0),
     "dextrose-5": (0.0, 100.0),
     "plasma": (0.0, 42.0),
+    # albumin: its saline base's span (Laliberte 2007); the albumin factor states none
+    "albumin-5": (0.0, 100.0),
+    "albumin-20": (0.0, 100.0),
+    "albumin-25": (0.0, 100.0),
     "whole-blood": (0.0, 42.0),
     "packed-red-cells": (0.0, 42.0),
     "glycerol-water": (0.0, 40.0),   # Volk & Kaehler 2018 density, as viscosity.py uses it
@@ -318,3 +322,22 @@ def test_pump_grid_pressure_is_finite_and_rises_with_flow(name, model):
     bad[:, :, 1:] |= ~(np.diff(required, axis=2) > 0)
     bump("grid:pump_failures", int(np.count_nonzero(bad)))
     assert not bad.any(), f"{name} ({model}): {np.count_nonzero(bad)} pump points failed"
+
+
+@pytest.mark.parametrize("name", rheoline.fluid_names())
+def test_a_table_row_outside_its_fluid_range_is_flagged(name):
+    # through the scenario layer: a fluid at 60 degC (the files' top temperature) is flagged
+    # exactly when 60 degC is outside the span its property models are validated for
+    from rheoline.scenario.compare import run_scenarios
+    from rheoline.scenario.files import loads_scenarios
+
+    extra = 'mass_fraction = 0.4\n' if name == "glycerol-water" else ""
+    text = (f'format_version = 1\n[[scenario]]\nname = "hot"\nfluid = "{name}"\n{extra}'
+            'temperature = "60 degC"\nhead = "1 m"\n'
+            '[[scenario.part]]\ntype = "tube"\ninner_diameter = "3 mm"\nlength = "1.8 m"\n')
+    table = run_scenarios(loads_scenarios(text)).table
+    flagged = "outside" in str(table["flags"].iloc[0])
+    low, high = VALIDATED_TEMPERATURE_C.get(name, (None, None))
+    if low is None:
+        pytest.skip(f"no documented temperature span for {name} in this test")
+    assert flagged == (not low <= 60.0 <= high), table["flags"].iloc[0]
