@@ -129,7 +129,7 @@ def _finite(*arrays):
 
 
 def _lumen_rows(result):
-    return result._layout.lumen_rows
+    return [i for i, kind in enumerate(result.part_kinds) if kind == "lumen"]
 
 
 # --------------------------------------------------------------------------- scaling laws
