@@ -1,12 +1,12 @@
 """Reliability: a hostile scenario file loaded into the app shows its text as text.
 
-(``files._run(files.load)`` is what the view's buttons call; it lets any exception that the
-view does not turn into a flag reach the test, where ipywidgets would only log it.)
-
 The files view loads a file whose title, names and labels carry HTML and script payloads
 into the line and comparison views; every HTML widget of the app (and the status line)
 must then hold the payloads escaped, never as tags.  A malformed file is reported in the
 status line as a flag, without an exception escaping to the notebook.
+
+The tests call ``view._run(handler)``, which is what the view's buttons call: it lets any
+exception the view does not turn into a flag reach the test, where ipywidgets would only log it.
 """
 
 from __future__ import annotations
