@@ -599,25 +599,62 @@ def _solve_group(g, source):
     budget = p_dp.sum(axis=0) + exit_dp
     rows, part_rows = [], []
     converged = _vec(getattr(res, "converged", True), n)
+    # per-point columns as Python lists, built once (the loop below only picks values)
+    n_p = len(parts)
+    part_regime = _regimes(p_re).tolist()
+    lumen_rows = [j for j, part in enumerate(parts) if part.kind == "lumen"]
+    part_kind = [getattr(part, "kind", "part") for part in parts]
+    diam = [None if getattr(p, "inner_diameter", None) is None
+            else _vec(p.inner_diameter, n).astype(float) for p in parts]
+    lengths = [None if getattr(p, "length", None) is None
+               else _vec(p.length, n).astype(float) for p in parts]
+    nan_col = [np.nan] * n
+    diam_mm = [nan_col if d is None else (d * 1e3).tolist() for d in diam]
+    length_m = [nan_col if x is None else x.tolist() for x in lengths]
+    bores = [d for d in diam if d is not None]
+    smallest_mm = (np.min(bores, axis=0) * 1e3).tolist() if bores else nan_col
+    with np.errstate(divide="ignore", invalid="ignore"):
+        part_share = np.where(budget > 0, p_dp / budget * 100, np.nan).tolist()
+        exit_share = np.where(budget > 0, exit_dp / budget * 100, np.nan).tolist()
+    p_re_l, p_dp_l = p_re.astype(float).tolist(), p_dp.astype(float).tolist()
+    p_dp_mmhg = (p_dp / MMHG).tolist()
+    p_u_l, p_tau_l = p_u.astype(float).tolist(), p_tau.astype(float).tolist()
+    p_rate_l, p_le_l = p_rate.astype(float).tolist(), p_le.astype(float).tolist()
+    exit_l, exit_mmhg = exit_dp.astype(float).tolist(), (exit_dp / MMHG).tolist()
+    names_l = point_names.tolist()
+    hemo_extrapolated = (np.any(p_tau > GIERSIEPEN_1990_MAX_STRESS, axis=0).tolist()
+                         if is_blood and n_p else [False] * n)
+    temperature_l = _vec(v["temperature"], n).astype(float).tolist()
+    head_cm = (_vec(v["head"], n) * 100).tolist() if "head" in v else nan_col
+    source_mmhg = (_vec(v["source_pressure"], n) / MMHG).tolist() if "source_pressure" in v \
+        else nan_col
+    back_mmhg = (_vec(back, n) / MMHG).tolist()
+    limit_l = _vec(limit, n).astype(float).tolist() if limit is not None else None
+    drive = "pump" if sc.mode == "flow" else ("pressure" if "source_pressure" in v and
+                                              np.any(v["source_pressure"] > 0) else "gravity")
+    gauges = [spec for spec in g.parts if "gauge" in spec]
+    gauge = int(gauges[-1]["gauge"]) if gauges else None
+    ratio_l = _vec(site.diameter_ratio, n).astype(float).tolist() if site is not None \
+        else nan_col
+    large_l = _vec(site.large_ratio, n).tolist() if site is not None else [False] * n
     for col in range(n):
         case = sc.name + (f" | {g.labels[col]}" if g.labels[col] else "")
         flags = []
         for r in ("turbulent", "transitional"):
-            where = [point_names[j, col] for j, part in enumerate(parts)
-                     if part.kind == "lumen" and _regime(p_re[j, col]) == r]
+            where = [names_l[j][col] for j in lumen_rows if part_regime[j][col] == r]
             if where:
                 flags.append(f"{r}: {', '.join(where)}")
         over = None
         lim = None
-        if limit is not None:
-            lim = float(_vec(limit, n)[col])
+        if limit_l is not None:
+            lim = limit_l[col]
             over = bool(req[col] > lim)
             if over:
                 flags.append("over pressure limit")
         concern = bool(is_blood and wss[col] > HEMOLYSIS_CONCERN_STRESS)
         if concern:
             flags.append("hemolysis concern")
-        if is_blood and np.any(p_tau[:, col] > GIERSIEPEN_1990_MAX_STRESS):
+        if hemo_extrapolated[col]:
             flags.append("hemolysis index extrapolated")
         if not flow[col] > 0:
             flags.append("no forward flow")
@@ -628,23 +665,14 @@ def _solve_group(g, source):
             flags.append("time to deliver not computed")
         if not converged[col]:
             flags.append("solver not converged")
-        ratio = float(_vec(site.diameter_ratio, n)[col]) if site is not None else np.nan
-        if site is not None and bool(_vec(site.large_ratio, n)[col]):
+        ratio = ratio_l[col]
+        if large_l[col]:
             flags.append(f"catheter fills {ratio:.0%} of the vein diameter")
         if range_note[col]:
             flags.append("outside a correlation's range (see notes)")
-        bores = [float(_vec(p.inner_diameter, n)[col]) for p in parts
-                 if getattr(p, "inner_diameter", None) is not None]
-        gauges = [spec for spec in g.parts if "gauge" in spec]
         rows.append([
-            case, sc.name, g.labels[col], v["fluid"], float(_vec(v["temperature"], n)[col]),
-            "pump" if sc.mode == "flow" else ("pressure" if "source_pressure" in v and
-                                              np.any(v["source_pressure"] > 0) else "gravity"),
-            int(gauges[-1]["gauge"]) if gauges else None,
-            min(bores) * 1e3 if bores else np.nan,
-            float(_vec(v["head"], n)[col]) * 100 if "head" in v else np.nan,
-            float(_vec(v["source_pressure"], n)[col]) / MMHG if "source_pressure" in v else np.nan,
-            float(_vec(back, n)[col]) / MMHG,
+            case, sc.name, g.labels[col], v["fluid"], temperature_l[col], drive, gauge,
+            smallest_mm[col], head_cm[col], source_mmhg[col], back_mmhg[col],
             float(flow[col]) / ML_PER_MIN, float(flow[col]) / ML_PER_H,
             float(req[col]) / MMHG + 0.0, lim / MMHG if lim is not None else np.nan, over,
             float(max_re[col]), str(regime[col]), str(dom[col]), float(share[col]) * 100,
@@ -657,25 +685,17 @@ def _solve_group(g, source):
             deliver[col] if deliver is not None else np.nan, ratio,
             "; ".join(flags),
         ])
-        for j, part in enumerate(parts):
-            d = getattr(part, "inner_diameter", None)
-            length = getattr(part, "length", None)
+        for j in range(n_p):
             part_rows.append([
-                case, point_names[j, col], getattr(part, "kind", "part"),
-                float(_vec(d, n)[col]) * 1e3 if d is not None else np.nan,
-                float(_vec(length, n)[col]) if length is not None else np.nan,
-                float(p_re[j, col]), _regime(p_re[j, col]),
-                float(p_dp[j, col]), float(p_dp[j, col]) / MMHG,
-                float(p_dp[j, col] / budget[col] * 100) if budget[col] > 0 else np.nan,
-                float(p_u[j, col]), float(p_tau[j, col]), float(p_rate[j, col]),
-                float(p_le[j, col]),
+                case, names_l[j][col], part_kind[j], diam_mm[j][col], length_m[j][col],
+                p_re_l[j][col], part_regime[j][col], p_dp_l[j][col], p_dp_mmhg[j][col],
+                part_share[j][col], p_u_l[j][col], p_tau_l[j][col], p_rate_l[j][col],
+                p_le_l[j][col],
                 line.part_names[j],  # the part's key (not a column)
             ])
         part_rows.append([
-            case, "exit", "exit", np.nan, np.nan, np.nan, "", float(exit_dp[col]),
-            float(exit_dp[col]) / MMHG,
-            float(exit_dp[col] / budget[col] * 100) if budget[col] > 0 else np.nan,
-            np.nan, np.nan, np.nan, np.nan, "exit",
+            case, "exit", "exit", np.nan, np.nan, np.nan, "", exit_l[col], exit_mmhg[col],
+            exit_share[col], np.nan, np.nan, np.nan, np.nan, "exit",
         ])
     per_case_rows = [rows[c] for c in range(n)]
     per_case_parts = [part_rows[c * (len(parts) + 1):(c + 1) * (len(parts) + 1)]
@@ -706,11 +726,14 @@ def _condense(notes):
     return out
 
 
-def _regime(reynolds):
-    """The regime of one Reynolds number; "" where none applies (K fittings, measured parts)."""
+def _regimes(reynolds):
+    """The regime of each Reynolds number; "" where none applies (K fittings, measured
+    parts: no Reynolds number)."""
     from rheoline.model.lumen import regime_of
 
-    return str(regime_of(reynolds)) if np.isfinite(reynolds) else ""
+    re = np.asarray(reynolds, dtype=float)
+    finite = np.isfinite(re)
+    return np.where(finite, regime_of(np.where(finite, re, 0.0)), "").astype(object)
 
 
 def _has_tolerance(sc):
