@@ -118,3 +118,13 @@ def test_several_gauges_in_one_part_say_how_to_sweep_sizes():
     # sweeping the bore of one catalogue part is the vectorized way
     swept = Catheter(gauge=18, inner_diameter=np.array([0.9e-3, 1.0e-3, 1.1e-3]))
     assert swept.inner_diameter.shape == (3,)
+
+
+def test_a_measured_bore_beyond_the_catalogue_outer_diameter_names_the_size():
+    # the catalogue 16G outer diameter is 1.7 mm (from memory): a 1.71 mm bore cannot be a
+    # 16G catheter; the message names the bore and the size, not an outer_diameter never given
+    with pytest.raises(InputRangeError, match=r"inner_diameter 1\.2-1\.71 mm of a 16G catheter "
+                                              r"reaches its typical outer diameter 1\.7 mm.*Tube"):
+        Catheter(gauge=16, inner_diameter=np.array([1.2e-3, 1.71e-3]))
+    with pytest.raises(InputRangeError, match=r"of a 18G needle reaches its typical outer"):
+        Needle(gauge=18, inner_diameter=2e-3)

@@ -158,6 +158,19 @@ class Tube(Lumen):
     """
 
 
+def _check_bore_inside(label, inner_diameter, outer_diameter):
+    """A measured bore must lie inside the catalogue outer diameter of the size."""
+    if inner_diameter is None:
+        return
+    d = check_positive("inner_diameter", inner_diameter, "m")
+    if np.any(d >= outer_diameter):
+        raise InputRangeError(
+            f"inner_diameter {_mm(d)} of a {label} reaches its typical outer diameter "
+            f"{_mm(outer_diameter)} (catalogue, from memory); pass a smaller measured bore, or "
+            "a Tube(inner_diameter=..., length=...) for a part of another size"
+        )
+
+
 def _catheter_dims(gauge, inner_diameter, length):
     od, id_typ, len_typ, _ = _lookup(catalogue.CATHETER_GAUGES, gauge, "catheter gauge",
                                      "pass inner_diameter and length in metres for other sizes")
@@ -187,6 +200,7 @@ class Catheter(Lumen):
         gauge = _one_size(gauge, "catheter gauge",
                           "[Catheter(gauge=g) for g in (18, 20)], a Line each")
         od, d, length = _catheter_dims(gauge, inner_diameter, length)
+        _check_bore_inside(f"{gauge}G catheter", inner_diameter, od)
         object.__setattr__(self, "gauge", gauge)
         if inner_diameter is None or length is None:
             object.__setattr__(self, "source_note",
@@ -232,6 +246,7 @@ class Needle(Lumen):
         od, id_regular, id_thin = _lookup(catalogue.NEEDLE_GAUGES, gauge, "needle gauge",
                                           "pass inner_diameter in metres for other sizes")
         d = (id_regular if wall == "regular" else id_thin) if inner_diameter is None else inner_diameter
+        _check_bore_inside(f"{gauge}G needle", inner_diameter, od)
         object.__setattr__(self, "gauge", gauge)
         object.__setattr__(self, "wall", wall)
         if inner_diameter is None:
