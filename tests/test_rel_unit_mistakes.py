@@ -198,3 +198,24 @@ def test_a_documented_limit_itself_is_accepted(field, text, others):
 def test_a_documented_tube_limit_itself_is_accepted(field, text):
     part = {"type": "tube", "inner_diameter": "3 mm", "length": "1 m", field: text}
     loads_scenarios(to_toml(scenario(part=part)))
+
+
+def test_a_viscosity_rising_with_temperature_is_questioned():
+    # a liquid thins as it warms (Andrade's law; common practice, no source): measured
+    # viscosities that rise with temperature are most likely typed in the wrong order, and
+    # must be refused or warned about, not become a silent fluid
+    import warnings
+
+    from rheoline import user_fluid_from_temperatures
+    from rheoline.errors import RheolineError, RheolineWarning
+
+    pattern = r"(rise|increase|grow)s? with temperature"
+    with warnings.catch_warnings(record=True) as caught:
+        warnings.simplefilter("always")
+        try:
+            user_fluid_from_temperatures("swapped", [20.0, 40.0], [0.025, 0.060], 870.0)
+            questioned = any(issubclass(w.category, RheolineWarning)
+                             and re.search(pattern, str(w.message)) for w in caught)
+        except RheolineError as exc:
+            questioned = bool(re.search(pattern, str(exc)))
+    assert questioned
