@@ -736,3 +736,30 @@ def test_flow_lost_to_a_stenosis_is_finite_at_zero_drive(r, reduction, small):
     assert np.isfinite(at_zero)
     assert at_zero <= near_zero + 1e-12   # the loss only grows with the drive (U^2 term)
     assert at_zero == pytest.approx(near_zero, abs=1e-6)
+
+
+def _rheologies():
+    from rheoline.model.rheology import CarreauYasuda, Casson, PowerLaw
+
+    return st.one_of(
+        st.builds(PowerLaw, _log_uniform(1e-4, 1.0), st.floats(0.2, 2.0)),  # thinning/thickening
+        st.builds(lambda m0, ratio, lam, n, a: CarreauYasuda(m0, m0 * ratio, lam, n, a),
+                  _log_uniform(1e-3, 1.0), st.floats(0.001, 1.0), _log_uniform(1e-3, 100.0),
+                  st.floats(0.1, 1.0), st.floats(0.3, 4.0)),
+        st.builds(Casson, _log_uniform(1e-4, 1.0), _log_uniform(1e-3, 0.1)))
+
+
+@given(rheology=_rheologies(), d=bores, length=lengths, ps=st.floats(1.0, 2000 * MMHG),
+       head=st.floats(0.0, 3.0))
+def test_any_rheology_parameters_solve_to_the_line_residual(rheology, d, length, ps, head):
+    # the engine must converge for a user's own fitted model, not only the library's
+    _count("random_rheology_converges")
+    from rheoline.model.fluid_base import Fluid
+
+    fl = Fluid(name="user", temperature_c=22.0, density=1050.0, rheology=rheology)
+    line = Line([Tube(inner_diameter=d, length=length)])
+    r = line.solve(fl, head=head, source_pressure=ps)
+    residual = line.pressure_residual(fl, r.flow, head=head, source_pressure=ps)
+    drive = ps + 1050.0 * GRAVITY * head
+    assert np.isfinite(r.flow) and r.flow >= 0
+    assert abs(residual) <= 1e-6 * drive or (r.flow == 0 and residual >= 0)
