@@ -134,3 +134,23 @@ def test_unwritable_targets_become_flags_not_tracebacks(app, tmp_path):
     finally:
         files.controls["overwrite"].value = False
     assert (tmp_path / "a folder").is_dir() and blocker.read_text() == "x"
+
+
+def _upload(files, name, content):
+    import datetime
+
+    files.upload.value = ({"name": name, "type": "", "size": len(content),
+                           "content": memoryview(content),
+                           "last_modified": datetime.datetime.now(datetime.UTC)},)
+
+
+@pytest.mark.parametrize("name, content", [
+    ("latin-1.toml", "format_version = 1\ntitle = \"caf\u00e9\"\n".encode("latin-1")),
+    ("binary.toml", b"\xff\xfe\x00\x01 not text"),
+    ("huge.json", b"[" * 1_100_000),
+], ids=["latin-1", "binary", "oversized"])
+def test_an_uploaded_bad_file_becomes_a_flag(app, name, content):
+    # the app's upload button gets whatever bytes a colleague sent
+    files = app.views["files"]
+    _upload(files, name, content)  # the upload's observer runs the load
+    assert "not computed" in files.messages.value
