@@ -95,10 +95,16 @@ def test_every_control_at_its_limits_never_raises(app):
     tried = 0
     for view in app.views.values():
         for control in view.controls.values():
-            if not (hasattr(control, "min") and hasattr(control, "max")):
-                continue
             start = control.value
-            for value in (control.min, control.max, start):
+            if hasattr(control, "min") and hasattr(control, "max"):
+                values = [control.min, control.max]
+            elif isinstance(control, widgets.Dropdown):
+                values = [o[1] if isinstance(o, tuple) else o for o in control.options]
+            elif isinstance(control, widgets.Checkbox):
+                values = [not start]
+            else:
+                continue
+            for value in [*values, start]:
                 control.value = value
                 tried += 1
     bump("views:control_limits_tried", tried)
