@@ -470,10 +470,10 @@ def table(report):
         extra["widget_update_ms[comparison_view ...]"] = (
             f"7 candidates x 200 points, {w['comparison_band_samples']:,}-sample band of a 5 % "
             "bore tolerance (+ 2 degC temperature in the last row)")
-    out.append(f"{'target':<58} {'value':>9} {'target':>8}  holds")
-    out.append("-" * 86)
+    out.append(f"{'target':<72} {'value':>9} {'target':>8}  holds")
+    out.append("-" * 100)
     for t in report["targets"]:
-        out.append(f"{t['figure']:<58} {t['value']:9.2f} {t['target']:>8}  "
+        out.append(f"{t['figure']:<72} {t['value']:9.2f} {t['target']:>8}  "
                    f"{'yes' if t['holds'] else 'NO'}")
     for key, note in extra.items():
         out.append(f"  {key}: {note}")
