@@ -437,3 +437,26 @@ def test_the_line_views_line_joins_the_comparison(app):
     added = compare.candidates[-1]
     assert added["name"] == "line view" and added["parts"][1]["gauge"] == 16
     assert compare.operating_point(added).flow == pytest.approx(line.result.flow, rel=1e-12)
+
+
+def test_no_view_shadows_an_ipywidgets_method():
+    # App._compare once replaced ipywidgets' own Widget._compare and broke the page's sync
+    import ipywidgets as widgets
+
+    from rheoline.widgets.app import App
+    from rheoline.widgets.base import View
+    from rheoline.widgets.blood_view import BloodVesselView
+    from rheoline.widgets.compare_view import ComparisonView
+    from rheoline.widgets.files_view import FilesView
+    from rheoline.widgets.line_view import LineView
+    from rheoline.widgets.parts_editor import PartRow, PartsEditor
+    inherited = set(dir(widgets.VBox)) | set(dir(widgets.HBox))
+    allowed = {"__init__", "__doc__", "__module__", "__qualname__", "__firstlineno__",
+               "__static_attributes__", "_trait_default_generators", "__annotations__",
+               # set on every HasTraits subclass by traitlets' metaclass
+               "_all_trait_default_generators", "_descriptors", "_instance_inits",
+               "_static_immutable_initial_values", "_traits"}
+    for cls in (App, View, LineView, ComparisonView, BloodVesselView, FilesView, PartsEditor,
+                PartRow):
+        clash = (set(vars(cls)) & inherited) - allowed
+        assert not clash, f"{cls.__name__} shadows {sorted(clash)}"

@@ -26,7 +26,7 @@ class App(widgets.VBox):
         self.add_class("rl-app")
         self.views = {}
         self.failures = {}
-        builders = {"line": _line, "compare": self._compare, "blood": _blood}
+        builders = {"line": _line, "compare": self._comparison_view, "blood": _blood}
         first = True
         for name in tabs:
             if name in builders:
@@ -42,7 +42,7 @@ class App(widgets.VBox):
         header = widgets.HTML("<h2 style='margin:4px 0'>rheoline: infusion lines and vessels</h2>")
         self.children = [header, self.tabs]
 
-    def _compare(self, lazy=False):
+    def _comparison_view(self, lazy=False):
         from rheoline.widgets.compare_view import ComparisonView
 
         line = self.views.get("line")
