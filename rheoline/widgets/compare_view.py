@@ -294,10 +294,12 @@ class ComparisonView(View):
         if bore_scale is not None:
             bore = bore * bore_scale
         parts = [build_part(d) for d in descriptions]
+        from rheoline import Line, Tube
         if bore is not sized.inner_diameter:
-            parts[index] = build_part(descriptions[index], inner_diameter=bore,
-                                      length=sized.length)
-        from rheoline import Line
+            # a swept or sampled bore is the same lumen (its bore, length, roughness and name)
+            # without the catalogue's outer diameter, which only bounds a nominal part's bore
+            parts[index] = Tube(inner_diameter=bore, length=sized.length, name=sized.name,
+                                roughness=getattr(sized, "roughness", 0.0))
         t = shared["temperature_c"] if temperature is None else temperature
         if sweep == "temperature":
             t = values if temperature is None else values + (temperature - shared["temperature_c"])

@@ -22,8 +22,9 @@ from pathlib import Path
 
 import ipywidgets as widgets
 
-from rheoline.errors import RheolineError
+from rheoline.errors import RheolineError, ScenarioError
 from rheoline.scenario.files import (
+    MAX_FILE_BYTES,
     Axis,
     load_scenarios,
     loads_scenarios,
@@ -301,7 +302,16 @@ class FilesView(View):
             return
         item = self.upload.value[0]
         name = item["name"]
-        text = bytes(item["content"]).decode("utf-8")
+        raw = bytes(item["content"])
+        if len(raw) > MAX_FILE_BYTES:
+            raise ScenarioError(f"{len(raw)} bytes is more than the {MAX_FILE_BYTES} bytes a "
+                                "scenario file may hold; split it into smaller files",
+                                source=name)
+        try:
+            text = raw.decode("utf-8")
+        except UnicodeDecodeError:
+            raise ScenarioError("is not UTF-8 text; save the scenario file as UTF-8 TOML or "
+                                "JSON and upload it again", source=name) from None
         sset = loads_scenarios(text, source=name, fmt="json" if name.endswith(".json")
                                else "toml")
         account = apply_scenarios(sset, self.line_view, self.compare_view)
