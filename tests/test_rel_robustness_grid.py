@@ -341,3 +341,16 @@ def test_a_table_row_outside_its_fluid_range_is_flagged(name):
     if low is None:
         pytest.skip(f"no documented temperature span for {name} in this test")
     assert flagged == (not low <= 60.0 <= high), table["flags"].iloc[0]
+
+
+@pytest.mark.parametrize("model", sorted(BLOOD_RHEOLOGY_MODELS))
+def test_a_drive_sweep_across_the_yield_pressure_matches_point_solves(model):
+    # 400 drives from 0 to 1 kPa on one line (the engine may tabulate its characteristic);
+    # for Casson blood the yield pressure 4 L tau_y / D (about 170 Pa here) lies inside
+    fl, _ = _build_fluid("whole-blood", model, 37.0, 0.8)
+    line = Line([Tube(inner_diameter=5e-4, length=1.0)])
+    ps = np.linspace(0.0, 1000.0, 400)
+    _, q = _solve_and_count(line, fl, 0.0, ps, [ps], f"{model} near the yield pressure")
+    for i in range(0, 400, 19):
+        one = line.solve(fl, source_pressure=float(ps[i])).flow
+        assert q[i] == pytest.approx(one, rel=1e-6, abs=1e-18)
