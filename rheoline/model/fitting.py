@@ -19,7 +19,7 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
-from rheoline.errors import InputRangeError, RegimeWarning
+from rheoline.errors import InputRangeError, RegimeWarning, RheolineWarning
 from rheoline.model.rheology import RHEOLOGY_MODELS, RheologyModel
 from rheoline.model.validation import check_positive, scalar_or_array, warn_outside
 
@@ -638,6 +638,13 @@ def fit_viscosity_temperature(temperatures_c, viscosities, model: str = "andrade
             f"the {model} law needs viscosities at {minimum} or more distinct temperatures, got {np.unique(t).size}"
         )
     y = np.log(mu)
+    # A liquid thins as it warms (Andrade's law; common practice, no source).  Viscosities
+    # that rise with temperature are most often two lists typed in opposite orders.
+    if np.polyfit(1.0 / (t + _KELVIN), y, 1)[0] <= 0.0:
+        warnings.warn(
+            "viscosities rise with temperature in the data given, unlike a liquid; check that "
+            "temperatures_c and viscosities are listed in the same order",
+            RheolineWarning, stacklevel=3)
     if model == "andrade":
         design = np.column_stack([np.ones_like(t), 1.0 / (t + _KELVIN)])
         p = np.linalg.lstsq(design, y, rcond=None)[0]
