@@ -246,6 +246,27 @@ def test_total_points_limit(monkeypatch):
         parse_scenarios(doc)
 
 
+def test_part_points_limit_counts_every_scenario(monkeypatch):
+    # sweep points x parts over the whole file bounds the work a file can ask for
+    monkeypatch.setattr(files, "MAX_PART_POINTS", 10)
+    parts = [{"type": "tube", "inner_diameter": "3 mm", "length": "1.8 m"},
+             {"type": "catheter", "gauge": 18}]
+    doc = one(head=["1 m", "2 m", "3 m"], part=parts)   # 3 points x 2 parts = 6
+    parse_scenarios(doc)                                 # one scenario fits
+    doc["scenario"].append(dict(doc["scenario"][0], name="second"))   # 12 > 10
+    with pytest.raises(ScenarioError, match="more than 10 part solves"):
+        parse_scenarios(doc)
+
+
+def test_file_tolerance_solves_limit(monkeypatch):
+    monkeypatch.setattr(files, "MAX_FILE_TOLERANCE_SOLVES", 150)
+    doc = one(tolerance={"temperature": "1 degC", "samples": 100})
+    parse_scenarios(doc)                            # 100 solves fit
+    doc["scenario"].append(dict(doc["scenario"][0], name="second"))
+    with pytest.raises(ScenarioError, match="more than 150 tolerance solves"):
+        parse_scenarios(doc)
+
+
 # --------------------------------------------------------------------------- formats
 def test_json_reads_like_toml():
     doc = one(head=["50 cm", "1 m"])

@@ -37,7 +37,9 @@ Limits (module constants): :data:`MAX_FILE_BYTES` (1 MB), :data:`MAX_DEPTH`
 (nesting of tables and lists), :data:`MAX_SCENARIOS`, :data:`MAX_PARTS` per
 scenario, :data:`MAX_AXIS_VALUES` per swept field, :data:`MAX_SWEEP_POINTS`
 per scenario, :data:`MAX_TOTAL_POINTS` per file, and
-:data:`MAX_TOLERANCE_SOLVES` (tolerance samples times sweep points) per scenario.
+:data:`MAX_TOLERANCE_SOLVES` (tolerance samples times sweep points) per scenario,
+:data:`MAX_FILE_TOLERANCE_SOLVES` per file, and :data:`MAX_PART_POINTS` (sweep points
+times parts) per file.
 
 Examples
 --------
@@ -86,6 +88,8 @@ __all__ = [
     "MAX_SWEEP_POINTS",
     "MAX_TOTAL_POINTS",
     "MAX_TOLERANCE_SOLVES",
+    "MAX_FILE_TOLERANCE_SOLVES",
+    "MAX_PART_POINTS",
     "PART_TYPES",
     "FieldSpec",
     "Axis",
@@ -164,6 +168,11 @@ MAX_TOTAL_POINTS = 20_000
 MAX_NAME_CHARS = 120
 #: Most Monte Carlo solves (tolerance samples x sweep points) in one scenario.
 MAX_TOLERANCE_SOLVES = 400_000
+#: Most Monte Carlo solves (tolerance samples x sweep points) in one file, all scenarios.
+MAX_FILE_TOLERANCE_SOLVES = 2_000_000
+#: Most part evaluations (sweep points x parts) in one file, all scenarios: bounds the
+#: time and memory a colleague's file can ask of the machine (about 10 s and 1 GB here).
+MAX_PART_POINTS = 200_000
 #: Most bench points of a measured part.
 MAX_MEASURED_POINTS = 50
 
@@ -536,7 +545,7 @@ def parse_scenarios(data, source: str = "<dict>") -> ScenarioSet:
     if len(raw_list) > MAX_SCENARIOS:
         raise ScenarioError(f"{len(raw_list)} scenarios is above the limit of {MAX_SCENARIOS}; "
                             "split the file", source=source, field="scenario")
-    scenarios, names, total = [], {}, 0
+    scenarios, names, total, work, tolerance_solves = [], {}, 0, 0, 0
     for i, raw in enumerate(raw_list, start=1):
         sc = _parse_scenario(raw, i, source)
         if sc.name in names:
@@ -549,8 +558,27 @@ def parse_scenarios(data, source: str = "<dict>") -> ScenarioSet:
             raise ScenarioError(f"the file expands to more than {MAX_TOTAL_POINTS} sweep points; "
                                 "sweep fewer values", source=source, scenario=repr(sc.name),
                                 field="scenario")
+        work += sc.n_points * len(sc.parts)
+        if work > MAX_PART_POINTS:
+            raise ScenarioError(f"the file asks for more than {MAX_PART_POINTS} part solves "
+                                "(sweep points x parts, all scenarios together); sweep fewer "
+                                "values or split the file", source=source,
+                                scenario=repr(sc.name), field="scenario")
+        tolerance_solves += _tolerance_solves(sc)
+        if tolerance_solves > MAX_FILE_TOLERANCE_SOLVES:
+            raise ScenarioError(f"the file asks for more than {MAX_FILE_TOLERANCE_SOLVES} "
+                                "tolerance solves (samples x sweep points, all scenarios "
+                                "together); use fewer samples or split the file",
+                                source=source, scenario=repr(sc.name), field="tolerance.samples")
         scenarios.append(sc)
     return ScenarioSet(tuple(scenarios), title, notes, source)
+
+
+def _tolerance_solves(sc) -> int:
+    """Monte Carlo solves a scenario asks for: samples x sweep points, 0 without tolerances."""
+    if not (sc.tolerance or any(p.tolerance for p in sc.parts)):
+        return 0
+    return sc.tolerance.get("samples", 2000) * sc.n_points
 
 
 def _check_depth(data, source):
@@ -689,9 +717,8 @@ def _parse_scenario(raw, index, source):
         if len(axis) > MAX_AXIS_VALUES:  # pragma: no cover - _axis checks first
             raise ScenarioError(f"sweeps {len(axis)} values, above {MAX_AXIS_VALUES}",
                                 source=source, scenario=where, field=path)
-    has_tolerance = bool(tolerance) or any(p.tolerance for p in parts)
     samples = tolerance.get("samples", 2000)
-    if has_tolerance and samples * sc.n_points > MAX_TOLERANCE_SOLVES:
+    if _tolerance_solves(sc) > MAX_TOLERANCE_SOLVES:
         raise ScenarioError(f"{samples} tolerance samples x {sc.n_points} sweep points is above "
                             f"the limit of {MAX_TOLERANCE_SOLVES} solves; use fewer samples or "
                             "sweep fewer values", source=source, scenario=where,
