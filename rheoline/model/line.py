@@ -451,10 +451,14 @@ class Line:
         q = self._quadratic_guess(layout, mu, drive)
         if not self._newtonian_path(layout, fluid):
             radius = layout.diameter / 2.0
-            for _ in range(3):
-                rate = 4.0 * q / (np.pi * radius**3)
-                mu = fluid.rheology.viscosity(rate) * layout.viscosity_factor
-                q = self._quadratic_guess(layout, mu, drive)
+            # a yield-stress fluid's viscosity is unbounded at vanishing shear: a pass whose
+            # guess overflows or underflows keeps the previous, finite guess
+            with np.errstate(over="ignore", divide="ignore", invalid="ignore"):
+                for _ in range(3):
+                    rate = 4.0 * q / (np.pi * radius**3)
+                    mu = fluid.rheology.viscosity(rate) * layout.viscosity_factor
+                    refined = self._quadratic_guess(layout, mu, drive)
+                    q = np.where(np.isfinite(refined) & (refined > 0.0), refined, q)
         return q
 
     @staticmethod
