@@ -909,46 +909,44 @@ class LineResult:
         """Shape of the scenario arrays (() for a single scenario)."""
         return _first_shape(self.part_pressure_drops)
 
-    def _lumen_rows(self):
-        return self._layout.lumen_rows
+    def _per_lumen(self, compute):
+        """A per-part array: ``compute(rows)`` on the lumen rows, NaN for fittings and measured parts."""
+        out = np.full(self.part_pressure_drops.shape, np.nan)
+        rows = self._layout.lumen_rows
+        if len(rows):
+            out[rows] = compute(rows)
+        return out
 
     @cached_property
     def part_wall_shear_stress(self):
         """Wall shear stress [Pa] of each lumen, f_fd rho u^2 / 8 (fully developed friction)."""
-        out = np.full(self.part_pressure_drops.shape, np.nan)
-        rows = self._lumen_rows()
-        if len(rows):
+        def stress(rows):
             re = np.maximum(self.part_reynolds[rows], 1e-300)
             u = self.part_mean_velocity[rows]
             f_re, _ = _lumen._friction_re_and_slope(re, 1.0, self._layout.relative_roughness,
                                                     False)
             # f rho u^2 / 8 = (f Re) mu u / (8 D)
             tau = f_re * self._viscosity * u / (8.0 * self._layout.diameter)
-            out[rows] = np.where(self._moving, tau, 0.0)
-        return out
+            return np.where(self._moving, tau, 0.0)
+
+        return self._per_lumen(stress)
 
     @cached_property
     def part_wall_shear_rate(self):
         """Wall shear rate [1/s] of each lumen, from the wall stress through the rheology."""
-        out = np.full(self.part_pressure_drops.shape, np.nan)
-        rows = self._lumen_rows()
-        if len(rows):
+        def rate(rows):
             tau = self.part_wall_shear_stress[rows]
             if self.fluid.is_newtonian:
-                out[rows] = tau / self._viscosity
-            else:
-                out[rows] = self.fluid.rheology.shear_rate_at_stress(
-                    tau / self._layout.viscosity_factor)
-        return out
+                return tau / self._viscosity
+            return self.fluid.rheology.shear_rate_at_stress(tau / self._layout.viscosity_factor)
+
+        return self._per_lumen(rate)
 
     @cached_property
     def part_entrance_length(self):
         """Hydrodynamic entrance length [m] of each lumen at its Reynolds number."""
-        out = np.full(self.part_pressure_drops.shape, np.nan)
-        rows = self._lumen_rows()
-        if len(rows):
-            out[rows] = _lumen.entrance_length(self.part_reynolds[rows], self._layout.diameter)
-        return out
+        return self._per_lumen(
+            lambda rows: _lumen.entrance_length(self.part_reynolds[rows], self._layout.diameter))
 
     @cached_property
     def part_shares(self):
@@ -1005,23 +1003,21 @@ class LineResult:
     @cached_property
     def part_residence_time(self):
         """Mean residence time [s] of each lumen, L / u."""
-        out = np.full(self.part_pressure_drops.shape, np.nan)
-        rows = self._lumen_rows()
-        if len(rows):
+        def residence(rows):
             u = self.part_mean_velocity[rows]
-            out[rows] = np.where(u > 0, self._layout.length / np.where(u > 0, u, 1.0), np.inf)
-        return out
+            return np.where(u > 0, self._layout.length / np.where(u > 0, u, 1.0), np.inf)
+
+        return self._per_lumen(residence)
 
     @cached_property
     def part_hemolysis_index(self):
         """Giersiepen 1990 index [%] of each lumen at its wall stress and residence time."""
-        out = np.full(self.part_pressure_drops.shape, np.nan)
-        rows = self._lumen_rows()
-        if len(rows):
+        def index(rows):
             tau = self.part_wall_shear_stress[rows]
             t = self.part_residence_time[rows]
-            out[rows] = np.where(tau > 0, _giersiepen_index(tau, np.where(tau > 0, t, 0.0)), 0.0)
-        return out
+            return np.where(tau > 0, _giersiepen_index(tau, np.where(tau > 0, t, 0.0)), 0.0)
+
+        return self._per_lumen(index)
 
     @cached_property
     def hemolysis_index(self):
@@ -1054,12 +1050,8 @@ class LineResult:
                                   .reshape(1, n_s)], axis=0)
             return arr.T.ravel()
 
-        diam = np.full((len(self.part_names), *shape), np.nan)
-        length = np.full((len(self.part_names), *shape), np.nan)
-        rows_l = self._lumen_rows()
-        if len(rows_l):
-            diam[rows_l] = self._layout.diameter
-            length[rows_l] = self._layout.length
+        diam = self._per_lumen(lambda _rows: self._layout.diameter)
+        length = self._per_lumen(lambda _rows: self._layout.length)
         regimes = np.concatenate([self.part_regimes.reshape(len(self.part_names), n_s),
                                   np.full((1, n_s), "n/a")], axis=0).T.ravel()
         table = {
