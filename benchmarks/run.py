@@ -52,11 +52,11 @@ from rheoline.model.parts import Catheter, Tube  # noqa: E402
 
 #: Seed of the random heads (the same seed, the same scenarios).
 SEED = 20261201
-HEAD_RANGE = (0.3, 1.5)          # [m]
-TUBE = (3.0e-3, 1.8)             # inner diameter, length [m]
+HEAD_RANGE = (0.3, 1.5)  # [m]
+TUBE = (3.0e-3, 1.8)  # inner diameter, length [m]
 GAUGE = 18
 TEMPERATURE_C = 22.0
-AGREEMENT = 1e-6                 # largest relative difference accepted, vector vs scalar
+AGREEMENT = 1e-6  # largest relative difference accepted, vector vs scalar
 
 #: Targets of issue 7: figure -> (comparison, bound).
 SPEEDUP_TARGET = {"newtonian": 100.0, "blood": 50.0}
@@ -65,8 +65,12 @@ MS_TARGET = 100.0
 IMPORT_TARGET = 300.0
 
 #: Scenarios of the scalar loop timed per solve (strided over the N), scaled per scenario.
-SCALAR_SUBSET = {("newtonian", "flow"): 2000, ("blood", "flow"): 200,
-                 ("newtonian", "pressure"): 20000, ("blood", "pressure"): 2000}
+SCALAR_SUBSET = {
+    ("newtonian", "flow"): 2000,
+    ("blood", "flow"): 200,
+    ("newtonian", "pressure"): 20000,
+    ("blood", "pressure"): 2000,
+}
 
 IMPORT_SNIPPET = (
     "import time; t = time.perf_counter(); import rheoline; "
@@ -135,9 +139,11 @@ def machine():
     try:
         from threadpoolctl import threadpool_info
 
-        info["blas"] = [{k: pool.get(k) for k in ("internal_api", "version", "num_threads",
-                                                  "threading_layer")}
-                        for pool in threadpool_info() if pool.get("user_api") == "blas"]
+        info["blas"] = [
+            {k: pool.get(k) for k in ("internal_api", "version", "num_threads", "threading_layer")}
+            for pool in threadpool_info()
+            if pool.get("user_api") == "blas"
+        ]
     except ImportError:
         info["blas"] = "threadpoolctl not installed (pip install threadpoolctl)"
     return info
@@ -181,11 +187,18 @@ def fluids():
     blood = rheoline.fluid("packed-red-cells", temperature_c=TEMPERATURE_C, model="carreau")
     r = blood.rheology
     return {
-        "newtonian": (f"water {TEMPERATURE_C:g} degC", water,
-                      scalar.ScalarNewtonian(water.rheology.mu, water.density)),
-        "blood": (f"packed red cells {TEMPERATURE_C:g} degC Carreau", blood,
-                  scalar.ScalarCarreau(r.mu_zero, r.mu_inf, r.relaxation_time, r.flow_index,
-                                       blood.density)),
+        "newtonian": (
+            f"water {TEMPERATURE_C:g} degC",
+            water,
+            scalar.ScalarNewtonian(water.rheology.mu, water.density),
+        ),
+        "blood": (
+            f"packed red cells {TEMPERATURE_C:g} degC Carreau",
+            blood,
+            scalar.ScalarCarreau(
+                r.mu_zero, r.mu_inf, r.relaxation_time, r.flow_index, blood.density
+            ),
+        ),
     }
 
 
@@ -197,8 +210,10 @@ def heads(n):
 def regime_counts(result):
     """{"laminar": k, "transitional": k, "turbulent": k} of a vectorized result."""
     regimes = np.asarray(result.regime)
-    return {name: int(np.count_nonzero(regimes == name))
-            for name in ("laminar", "transitional", "turbulent")}
+    return {
+        name: int(np.count_nonzero(regimes == name))
+        for name in ("laminar", "transitional", "turbulent")
+    }
 
 
 def _subset(n, size):
@@ -233,11 +248,12 @@ def solve_rows(n, repeats, scalar_repeats=3, subset_scale=1.0):
                 residual = partial(line.pressure_residual, fluid, at, **drive)
                 idx = _subset(n, max(1, int(SCALAR_SUBSET[(kind, what)] * subset_scale)))
                 functions = [solve, residual]
-                if (kind, what) not in loops:     # the same loop serves both engine paths
+                if (kind, what) not in loops:  # the same loop serves both engine paths
                     inputs = (h if what == "flow" else flows)[idx].tolist()
-                    loop = partial(_scalar_flows if what == "flow" else _scalar_pressures,
-                                   sline, sfluid)
-                    loop(inputs[:1])              # warm up on one scenario, untimed
+                    loop = partial(
+                        _scalar_flows if what == "flow" else _scalar_pressures, sline, sfluid
+                    )
+                    loop(inputs[:1])  # warm up on one scenario, untimed
                     functions.append(partial(loop, inputs))
                 medians, values = interleaved_medians(functions, repeats, {2: scalar_repeats})
                 (t_solve, t_res), result = medians[:2], values[0]
@@ -247,27 +263,32 @@ def solve_rows(n, repeats, scalar_repeats=3, subset_scale=1.0):
                 if what == "flow" and path == "shared":
                     flows = np.asarray(result.flow, dtype=float)
                     regimes[kind] = regime_counts(result)
-                answer = np.asarray(result.flow if what == "flow" else result.required_pressure,
-                                    dtype=float)
+                answer = np.asarray(
+                    result.flow if what == "flow" else result.required_pressure, dtype=float
+                )
                 diff = float(np.max(np.abs(answer[idx] / np.asarray(reference) - 1.0)))
                 per_scenario = t_loop / idx.size
-                rows.append({
-                    "key": f"{kind}_{what}" + ("" if path == "shared" else "_newton_path"),
-                    "label": f"{label}: {'flow at head' if what == 'flow' else 'pressure for flow'}"
-                             + ("" if path == "shared" else ", per-scenario parts"),
-                    "kind": kind, "solve": what, "path": path,
-                    "headline": path == "shared",
-                    "vector_solve_ms": 1e3 * t_solve,
-                    "vector_residual_ms": 1e3 * t_res,
-                    "vector_us_per_scenario": 1e6 * t_solve / n,
-                    "scalar_us_per_scenario": 1e6 * per_scenario,
-                    "scalar_scenarios_timed": int(idx.size),
-                    "speedup_vs_scalar_loop": per_scenario * n / t_solve,
-                    "residual_evals_equivalent": t_solve / t_res,
-                    "max_relative_difference": diff,
-                    "agree": diff <= AGREEMENT,
-                    "iterations": int(result.iterations),
-                })
+                rows.append(
+                    {
+                        "key": f"{kind}_{what}" + ("" if path == "shared" else "_newton_path"),
+                        "label": f"{label}: {'flow at head' if what == 'flow' else 'pressure for flow'}"
+                        + ("" if path == "shared" else ", per-scenario parts"),
+                        "kind": kind,
+                        "solve": what,
+                        "path": path,
+                        "headline": path == "shared",
+                        "vector_solve_ms": 1e3 * t_solve,
+                        "vector_residual_ms": 1e3 * t_res,
+                        "vector_us_per_scenario": 1e6 * t_solve / n,
+                        "scalar_us_per_scenario": 1e6 * per_scenario,
+                        "scalar_scenarios_timed": int(idx.size),
+                        "speedup_vs_scalar_loop": per_scenario * n / t_solve,
+                        "residual_evals_equivalent": t_solve / t_res,
+                        "max_relative_difference": diff,
+                        "agree": diff <= AGREEMENT,
+                        "iterations": int(result.iterations),
+                    }
+                )
     return rows, regimes
 
 
@@ -278,9 +299,17 @@ def monte_carlo_ms(repeats, n_samples=10_000):
     water = rheoline.fluid("water", temperature_c=TEMPERATURE_C)
 
     def band():
-        return rheoline.flow_tolerance(line, water, head=1.0, diameter_tolerance=0.05,
-                                       length_tolerance=0.02, temperature_tolerance=2.0,
-                                       n_samples=n_samples, seed=SEED)
+        return rheoline.flow_tolerance(
+            line,
+            water,
+            head=1.0,
+            diameter_tolerance=0.05,
+            length_tolerance=0.02,
+            temperature_tolerance=2.0,
+            n_samples=n_samples,
+            seed=SEED,
+        )
+
     t, result = median_time(band, repeats)
     return 1e3 * t, result
 
@@ -289,7 +318,7 @@ def _timed_change(view, name, value):
     """Seconds of one control change: the views' hook, or the observer call timed here."""
     if hasattr(view, "set_control"):
         return view.set_control(name, value)
-    start = time.perf_counter()          # observers run synchronously inside the setter
+    start = time.perf_counter()  # observers run synchronously inside the setter
     view.controls[name].value = value
     return time.perf_counter() - start
 
@@ -312,7 +341,8 @@ def widget_ms(repeats):
         return {"pending": f"line view not importable: {exc}"}
     view = LineView(fluid="water")
     out["line_view head"] = _median_change(
-        view, "head_cm", [100.0 + (k + 1) for k in range(repeats)])
+        view, "head_cm", [100.0 + (k + 1) for k in range(repeats)]
+    )
     try:
         from rheoline.widgets import compare_view
     except ImportError as exc:
@@ -322,14 +352,17 @@ def widget_ms(repeats):
     view = _comparison_case(compare_view)
     # temperature: every curve, band and table row is recomputed (nothing cached)
     out["comparison_view temperature"] = _median_change(
-        view, "temperature_c", [TEMPERATURE_C + 0.1 * (k + 1) for k in range(repeats)])
+        view, "temperature_c", [TEMPERATURE_C + 0.1 * (k + 1) for k in range(repeats)]
+    )
     # head: the head-sweep curves and bands are cached; the table's operating points are not
     out["comparison_view head"] = _median_change(
-        view, "head_cm", [100.0 + (k + 1) for k in range(repeats)])
+        view, "head_cm", [100.0 + (k + 1) for k in range(repeats)]
+    )
     # a temperature spread as well: every band sample is solved (no bore-only shortcut)
     view.controls["temperature_tolerance_c"].value = 2.0
     out["comparison_view temperature, bore+temperature band"] = _median_change(
-        view, "temperature_c", [TEMPERATURE_C - 0.1 * (k + 1) for k in range(repeats)])
+        view, "temperature_c", [TEMPERATURE_C - 0.1 * (k + 1) for k in range(repeats)]
+    )
     return out
 
 
@@ -338,13 +371,19 @@ def _comparison_case(compare_view):
     view's own responsiveness case where it has one."""
     if hasattr(compare_view, "responsiveness_case"):
         return compare_view.responsiveness_case(points=200, bore_tolerance_percent=5.0)
-    set_tube = {"type": "tube", "label": "administration set", "inner_diameter_mm": 3.0,
-                "length_cm": 180.0}
-    candidates = [{"name": f"set + {g}G", "parts": [dict(set_tube),
-                                                   {"type": "catheter", "gauge": g}]}
-                  for g in (14, 16, 18, 20, 22, 24, 26)]
-    return compare_view.ComparisonView(candidates=candidates, points=200,
-                                       bore_tolerance_percent=5.0)
+    set_tube = {
+        "type": "tube",
+        "label": "administration set",
+        "inner_diameter_mm": 3.0,
+        "length_cm": 180.0,
+    }
+    candidates = [
+        {"name": f"set + {g}G", "parts": [dict(set_tube), {"type": "catheter", "gauge": g}]}
+        for g in (14, 16, 18, 20, 22, 24, 26)
+    ]
+    return compare_view.ComparisonView(
+        candidates=candidates, points=200, bore_tolerance_percent=5.0
+    )
 
 
 def import_ms(repeats):
@@ -352,8 +391,9 @@ def import_ms(repeats):
     interpreter; interpreter start-up is not counted."""
     times = []
     for _ in range(max(1, repeats)):
-        done = subprocess.run([sys.executable, "-c", IMPORT_SNIPPET], capture_output=True,
-                              text=True, check=True)
+        done = subprocess.run(
+            [sys.executable, "-c", IMPORT_SNIPPET], capture_output=True, text=True, check=True
+        )
         times.append(float(done.stdout.strip().splitlines()[-1]))
     return 1e3 * statistics.median(times)
 
@@ -365,18 +405,41 @@ def targets(report):
     for row in report["solves"]:
         if row["headline"]:
             bound = SPEEDUP_TARGET[row["kind"]]
-            out.append((f"{row['key']}.speedup_vs_scalar_loop", row["speedup_vs_scalar_loop"],
-                        f">= {bound:g}", row["speedup_vs_scalar_loop"] >= bound))
-        out.append((f"{row['key']}.residual_evals_equivalent", row["residual_evals_equivalent"],
-                    f"<= {EVALS_TARGET:g}", row["residual_evals_equivalent"] <= EVALS_TARGET))
-    out.append(("monte_carlo_10k_ms", report["monte_carlo_10k_ms"], f"< {MS_TARGET:g}",
-                report["monte_carlo_10k_ms"] < MS_TARGET))
+            out.append(
+                (
+                    f"{row['key']}.speedup_vs_scalar_loop",
+                    row["speedup_vs_scalar_loop"],
+                    f">= {bound:g}",
+                    row["speedup_vs_scalar_loop"] >= bound,
+                )
+            )
+        out.append(
+            (
+                f"{row['key']}.residual_evals_equivalent",
+                row["residual_evals_equivalent"],
+                f"<= {EVALS_TARGET:g}",
+                row["residual_evals_equivalent"] <= EVALS_TARGET,
+            )
+        )
+    out.append(
+        (
+            "monte_carlo_10k_ms",
+            report["monte_carlo_10k_ms"],
+            f"< {MS_TARGET:g}",
+            report["monte_carlo_10k_ms"] < MS_TARGET,
+        )
+    )
     for name, value in report["widget_update_ms"].items():
         if isinstance(value, float):
-            out.append((f"widget_update_ms[{name}]", value, f"< {MS_TARGET:g}",
-                        value < MS_TARGET))
-    out.append(("import_model_ms", report["import_model_ms"], f"< {IMPORT_TARGET:g}",
-                report["import_model_ms"] < IMPORT_TARGET))
+            out.append((f"widget_update_ms[{name}]", value, f"< {MS_TARGET:g}", value < MS_TARGET))
+    out.append(
+        (
+            "import_model_ms",
+            report["import_model_ms"],
+            f"< {IMPORT_TARGET:g}",
+            report["import_model_ms"] < IMPORT_TARGET,
+        )
+    )
     return out
 
 
@@ -384,8 +447,11 @@ def figures(report):
     """Every figure by a flat key (what the table prints and the smoke test checks)."""
     flat = {}
     for row in report["solves"]:
-        for key in ("speedup_vs_scalar_loop", "residual_evals_equivalent",
-                    "max_relative_difference"):
+        for key in (
+            "speedup_vs_scalar_loop",
+            "residual_evals_equivalent",
+            "max_relative_difference",
+        ):
             flat[f"{row['key']}.{key}"] = row[key]
     flat["monte_carlo_10k_ms"] = report["monte_carlo_10k_ms"]
     for name, value in report["widget_update_ms"].items():
@@ -399,14 +465,15 @@ def figures(report):
 def run(n=100_000, repeats=7, widget_repeats=20, import_repeats=7, subset_scale=1.0):
     """Measure everything; return the report (a JSON-ready dict)."""
     load_before = load_average()
-    rows, regimes = solve_rows(n, repeats, scalar_repeats=min(3, repeats),
-                               subset_scale=subset_scale)
+    rows, regimes = solve_rows(
+        n, repeats, scalar_repeats=min(3, repeats), subset_scale=subset_scale
+    )
     mc_ms, band = monte_carlo_ms(repeats)
     report = {
         "n": int(n),
         "seed": SEED,
         "line": f"tube {TUBE[0] * 1e3:g} mm x {TUBE[1]:g} m + {GAUGE}G catheter "
-                f"(catalogue), heads {HEAD_RANGE[0]:g}-{HEAD_RANGE[1]:g} m",
+        f"(catalogue), heads {HEAD_RANGE[0]:g}-{HEAD_RANGE[1]:g} m",
         "machine": machine(),
         "load_average_before": load_before,
         "regime_counts": regimes,
@@ -418,8 +485,9 @@ def run(n=100_000, repeats=7, widget_repeats=20, import_repeats=7, subset_scale=
     }
     report["load_average_after"] = load_average()
     report["figures"] = figures(report)
-    report["targets"] = [{"figure": k, "value": v, "target": t, "holds": bool(ok)}
-                         for k, v, t, ok in targets(report)]
+    report["targets"] = [
+        {"figure": k, "value": v, "target": t, "holds": bool(ok)} for k, v, t, ok in targets(report)
+    ]
     report["all_agree"] = all(row["agree"] for row in rows)
     return report
 
@@ -429,9 +497,12 @@ def _blas_text(blas):
         return blas
     if not blas:
         return "none found by threadpoolctl"
-    return "; ".join(f"{b['internal_api']} {b['version']} ({b['num_threads']} threads"
-                     + (f", {b['threading_layer']}" if b.get("threading_layer") else "") + ")"
-                     for b in blas)
+    return "; ".join(
+        f"{b['internal_api']} {b['version']} ({b['num_threads']} threads"
+        + (f", {b['threading_layer']}" if b.get("threading_layer") else "")
+        + ")"
+        for b in blas
+    )
 
 
 def table(report):
@@ -448,40 +519,57 @@ def table(report):
     ]
     for kind, counts in report["regime_counts"].items():
         missing = [k for k, v in counts.items() if v == 0]
-        out.append(f"regimes, {kind} line: " + ", ".join(f"{k} {v:,}" for k, v in counts.items())
-                   + (f"  (none {'/'.join(missing)})" if missing else ""))
+        out.append(
+            f"regimes, {kind} line: "
+            + ", ".join(f"{k} {v:,}" for k, v in counts.items())
+            + (f"  (none {'/'.join(missing)})" if missing else "")
+        )
     out.append("")
-    head = (f"{'solve':<70} {'vector':>8} {'residual':>8} {'scalar':>9} {'speedup':>8} "
-            f"{'evals':>6} {'max rel':>8}")
-    out += [head, f"{'':<70} {'[ms]':>8} {'[ms]':>8} {'[us/case]':>9} {'[x]':>8} "
-                  f"{'equiv':>6} {'diff':>8}", "-" * len(head)]
+    head = (
+        f"{'solve':<70} {'vector':>8} {'residual':>8} {'scalar':>9} {'speedup':>8} "
+        f"{'evals':>6} {'max rel':>8}"
+    )
+    out += [
+        head,
+        f"{'':<70} {'[ms]':>8} {'[ms]':>8} {'[us/case]':>9} {'[x]':>8} {'equiv':>6} {'diff':>8}",
+        "-" * len(head),
+    ]
     for row in report["solves"]:
-        out.append(f"{row['label']:<70} {row['vector_solve_ms']:8.1f} "
-                   f"{row['vector_residual_ms']:8.1f} {row['scalar_us_per_scenario']:9.1f} "
-                   f"{row['speedup_vs_scalar_loop']:8.0f} {row['residual_evals_equivalent']:6.2f} "
-                   f"{row['max_relative_difference']:8.1e}")
-    out.append("(scalar: plain-Python residual of the same physics, brentq per scenario for "
-               "flows, one evaluation per scenario for pressures; strided subset timed)")
+        out.append(
+            f"{row['label']:<70} {row['vector_solve_ms']:8.1f} "
+            f"{row['vector_residual_ms']:8.1f} {row['scalar_us_per_scenario']:9.1f} "
+            f"{row['speedup_vs_scalar_loop']:8.0f} {row['residual_evals_equivalent']:6.2f} "
+            f"{row['max_relative_difference']:8.1e}"
+        )
+    out.append(
+        "(scalar: plain-Python residual of the same physics, brentq per scenario for "
+        "flows, one evaluation per scenario for pressures; strided subset timed)"
+    )
     out.append("")
     w = report["widget_update_ms"]
-    extra = {"monte_carlo_10k_ms": f"10,000 samples; dominant: "
-                                   f"{report['monte_carlo_dominant_input']}"}
+    extra = {
+        "monte_carlo_10k_ms": f"10,000 samples; dominant: {report['monte_carlo_dominant_input']}"
+    }
     if "comparison_band_samples" in w:
         extra["widget_update_ms[comparison_view ...]"] = (
             f"7 candidates x 200 points, {w['comparison_band_samples']:,}-sample band of a 5 % "
-            "bore tolerance (+ 2 degC temperature in the last row)")
+            "bore tolerance (+ 2 degC temperature in the last row)"
+        )
     out.append(f"{'target':<72} {'value':>9} {'target':>8}  holds")
     out.append("-" * 100)
     for t in report["targets"]:
-        out.append(f"{t['figure']:<72} {t['value']:9.2f} {t['target']:>8}  "
-                   f"{'yes' if t['holds'] else 'NO'}")
+        out.append(
+            f"{t['figure']:<72} {t['value']:9.2f} {t['target']:>8}  {'yes' if t['holds'] else 'NO'}"
+        )
     for key, note in extra.items():
         out.append(f"  {key}: {note}")
     for key, value in w.items():
         if isinstance(value, str):
             out.append(f"  widget_update_ms[{key}]: {value}")
-    out.append(f"vectorized and scalar answers agree within {AGREEMENT:g}: "
-               f"{'yes' if report['all_agree'] else 'NO'}")
+    out.append(
+        f"vectorized and scalar answers agree within {AGREEMENT:g}: "
+        f"{'yes' if report['all_agree'] else 'NO'}"
+    )
     return "\n".join(out)
 
 
@@ -489,20 +577,28 @@ def main(argv=None):
     parser = argparse.ArgumentParser(description=__doc__.splitlines()[0])
     parser.add_argument("--n", type=int, default=100_000, help="scenarios per solve")
     parser.add_argument("--repeats", type=int, default=7, help="repeats per timing (median)")
-    parser.add_argument("--widget-repeats", type=int, default=20,
-                        help="control changes per view (median)")
-    parser.add_argument("--import-repeats", type=int, default=7,
-                        help="fresh interpreters for the import time (median)")
-    parser.add_argument("--subset-scale", type=float, default=1.0,
-                        help="scale the scalar loop's timed subset")
+    parser.add_argument(
+        "--widget-repeats", type=int, default=20, help="control changes per view (median)"
+    )
+    parser.add_argument(
+        "--import-repeats",
+        type=int,
+        default=7,
+        help="fresh interpreters for the import time (median)",
+    )
+    parser.add_argument(
+        "--subset-scale", type=float, default=1.0, help="scale the scalar loop's timed subset"
+    )
     parser.add_argument("--json", action="store_true", help="print one JSON object instead")
-    parser.add_argument("--json-out", metavar="FILE",
-                        help="also write the JSON object to FILE (the table is printed)")
+    parser.add_argument(
+        "--json-out",
+        metavar="FILE",
+        help="also write the JSON object to FILE (the table is printed)",
+    )
     args = parser.parse_args(argv)
     if args.n < 1:
         parser.error(f"--n must be at least 1, got {args.n}")
-    report = run(args.n, args.repeats, args.widget_repeats, args.import_repeats,
-                 args.subset_scale)
+    report = run(args.n, args.repeats, args.widget_repeats, args.import_repeats, args.subset_scale)
     if args.json_out:
         Path(args.json_out).write_text(json.dumps(report, indent=1) + "\n")
     print(json.dumps(report, indent=1) if args.json else table(report))

@@ -50,8 +50,16 @@ import math
 import numpy as np
 from scipy.optimize import brentq
 
-__all__ = ["GRAVITY", "ScalarLine", "ScalarNewtonian", "ScalarCarreau", "losses",
-           "residual", "solve_flow", "solve_pressure"]
+__all__ = [
+    "GRAVITY",
+    "ScalarLine",
+    "ScalarNewtonian",
+    "ScalarCarreau",
+    "losses",
+    "residual",
+    "solve_flow",
+    "solve_pressure",
+]
 
 #: Standard gravity [m/s^2] (NIST SP 811), as rheoline.model.line.GRAVITY.
 GRAVITY = 9.80665
@@ -89,7 +97,7 @@ class ScalarLine:
             self.lumens.append((d, length / d, area, k, d / 2.0))
             previous = d
         a_out = self.lumens[-1][2]
-        self.exit_factor = EXIT_K / (2.0 * a_out * a_out)      # times rho Q^2
+        self.exit_factor = EXIT_K / (2.0 * a_out * a_out)  # times rho Q^2
 
 
 class ScalarNewtonian:
@@ -164,8 +172,8 @@ def _apparent_darcy_friction(re, length_over_diameter):
     x = length_over_diameter / re
     rs = 1.0 / math.sqrt(x)
     p = 3.44 * rs
-    fre = p + (0.3125 / x + 16.0 - p) / (1.0 + 0.00021 / (x * x))    # Fanning f_app Re
-    laminar = fre / (2.0 * re)                                      # replaces Churchill's 8/Re
+    fre = p + (0.3125 / x + 16.0 - p) / (1.0 + 0.00021 / (x * x))  # Fanning f_app Re
+    laminar = fre / (2.0 * re)  # replaces Churchill's 8/Re
     big_a = (2.457 * math.log(1.0 / (7.0 / re) ** 0.9)) ** 16
     big_b = (37530.0 / re) ** 16
     return 8.0 * (laminar**12 + (big_a + big_b) ** -1.5) ** (1.0 / 12.0)
@@ -192,8 +200,7 @@ def _upper_flow(line, fluid, drive):
     """Hagen-Poiseuille flow at the drive with the lowest viscosity: above the solution
     (every loss term is at least the fully developed laminar one)."""
     mu = getattr(fluid, "mu_inf", getattr(fluid, "viscosity", None))
-    resistance = sum(128.0 * mu * lod * d / (math.pi * d**4)
-                     for d, lod, _, _, _ in line.lumens)
+    resistance = sum(128.0 * mu * lod * d / (math.pi * d**4) for d, lod, _, _, _ in line.lumens)
     return drive / resistance
 
 
@@ -206,8 +213,15 @@ def solve_flow(line, fluid, head=0.0, source_pressure=0.0, back_pressure=0.0):
     if drive <= 0.0:
         return 0.0, 0
     q_hi = _upper_flow(line, fluid, drive)
-    flow, info = brentq(residual, 1e-6 * q_hi, q_hi, args=(line, fluid, drive),
-                        xtol=1e-16 * q_hi, rtol=1e-13, full_output=True)
+    flow, info = brentq(
+        residual,
+        1e-6 * q_hi,
+        q_hi,
+        args=(line, fluid, drive),
+        xtol=1e-16 * q_hi,
+        rtol=1e-13,
+        full_output=True,
+    )
     return flow, info.function_calls
 
 

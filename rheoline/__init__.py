@@ -113,8 +113,19 @@ _LAZY = {
 }
 
 __all__ = sorted(
-    [*_LAZY, "CAUTION", "__version__", "RheolineError", "InputRangeError", "UnitError",
-     "ScenarioError", "NetworkError", "RheolineWarning", "RangeWarning", "RegimeWarning"]
+    [
+        *_LAZY,
+        "CAUTION",
+        "__version__",
+        "RheolineError",
+        "InputRangeError",
+        "UnitError",
+        "ScenarioError",
+        "NetworkError",
+        "RheolineWarning",
+        "RangeWarning",
+        "RegimeWarning",
+    ]
 )
 
 

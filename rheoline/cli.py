@@ -48,50 +48,79 @@ def build_parser() -> argparse.ArgumentParser:
     """The argument parser (also used to document the commands)."""
     from rheoline import __version__
 
-    p = _Parser(prog="rheoline",
-                description="Flow, pressure and shear estimates for infusion lines and "
-                            "vascular access.", epilog=_caution())
+    p = _Parser(
+        prog="rheoline",
+        description="Flow, pressure and shear estimates for infusion lines and vascular access.",
+        epilog=_caution(),
+    )
     p.add_argument("--version", action="version", version=f"rheoline {__version__}")
     sub = p.add_subparsers(dest="command", metavar="COMMAND", parser_class=_Parser)
 
-    run = _command(sub, "run", help="solve a scenario file and print the comparison table",
-                         description="Solve every scenario (and sweep point) of FILE, print the "
-                                     "comparison table, and write a review pack with --out.")
+    run = _command(
+        sub,
+        "run",
+        help="solve a scenario file and print the comparison table",
+        description="Solve every scenario (and sweep point) of FILE, print the "
+        "comparison table, and write a review pack with --out.",
+    )
     run.add_argument("file", metavar="FILE", help="scenario file (.toml or .json)")
     _output_options(run)
     run.set_defaults(func=_cmd_run)
 
-    check = _command(sub, "check", help="validate a scenario file without solving",
-                           description="Read and validate FILE (units, ranges, names, sweep "
-                                       "sizes); print a summary or the first problem.")
+    check = _command(
+        sub,
+        "check",
+        help="validate a scenario file without solving",
+        description="Read and validate FILE (units, ranges, names, sweep "
+        "sizes); print a summary or the first problem.",
+    )
     check.add_argument("file", metavar="FILE", help="scenario file (.toml or .json)")
     check.set_defaults(func=_cmd_check)
 
-    fluids = _command(sub, "fluids", help="list the fluid library with sources",
-                            description="List the named fluids a scenario may use, with their "
-                                        "property sources.")
+    fluids = _command(
+        sub,
+        "fluids",
+        help="list the fluid library with sources",
+        description="List the named fluids a scenario may use, with their property sources.",
+    )
     fluids.set_defaults(func=_cmd_fluids)
 
-    parts = _command(sub, "parts", help="list the part catalogue with sources",
-                           description="List the part types a scenario may use and the "
-                                       "catalogue of nominal sizes, with their sources.")
+    parts = _command(
+        sub,
+        "parts",
+        help="list the part catalogue with sources",
+        description="List the part types a scenario may use and the "
+        "catalogue of nominal sizes, with their sources.",
+    )
     parts.add_argument("--kind", help="show one catalogue only (e.g. catheter, needle)")
     parts.set_defaults(func=_cmd_parts)
 
-    flds = _command(sub, "fields", help="list every scenario-file field with units and ranges",
-                          description="List the keys a scenario file may use, the unit of a "
-                                      "bare number, the allowed range and whether it sweeps.")
+    flds = _command(
+        sub,
+        "fields",
+        help="list every scenario-file field with units and ranges",
+        description="List the keys a scenario file may use, the unit of a "
+        "bare number, the allowed range and whether it sweeps.",
+    )
     flds.set_defaults(func=_cmd_fields)
 
-    demo = _command(sub, "demo", help="run the built-in demo scenario set",
-                          description="Run the built-in demo: an invented bench team compares "
-                                      "rapid-transfusion lines. Writes a pack with --out.")
+    demo = _command(
+        sub,
+        "demo",
+        help="run the built-in demo scenario set",
+        description="Run the built-in demo: an invented bench team compares "
+        "rapid-transfusion lines. Writes a pack with --out.",
+    )
     _output_options(demo)
     demo.set_defaults(func=_cmd_demo)
 
-    ex = _command(sub, "examples", help="list the shipped example files, or print one",
-                        description="Without NAME, list the example scenario files; with NAME, "
-                                    "print that file (save it and edit it as a start).")
+    ex = _command(
+        sub,
+        "examples",
+        help="list the shipped example files, or print one",
+        description="Without NAME, list the example scenario files; with NAME, "
+        "print that file (save it and edit it as a start).",
+    )
     ex.add_argument("name", nargs="?", metavar="NAME", help="an example's name")
     ex.set_defaults(func=_cmd_examples)
     return p
@@ -104,15 +133,26 @@ def _command(sub, name, **kwargs):
 
 def _output_options(cmd):
     cmd.add_argument("--out", metavar="DIR", help="write a review pack into this new folder")
-    cmd.add_argument("--json", action="store_true",
-                     help="print a JSON array (one object per scenario or sweep point)")
-    cmd.add_argument("--force", action="store_true", help="replace an earlier review pack at --out "
-                     "(never a folder of other files)")
-    cmd.add_argument("--sort", metavar="COLUMN",
-                     help="sort the printed table by a column, highest first (e.g. 'flow [mL/min]')")
-    cmd.add_argument("--reach", metavar="FLOW",
-                     help="also name, per scenario, the smallest-bore case reaching FLOW "
-                          "(e.g. '100 mL/min')")
+    cmd.add_argument(
+        "--json",
+        action="store_true",
+        help="print a JSON array (one object per scenario or sweep point)",
+    )
+    cmd.add_argument(
+        "--force",
+        action="store_true",
+        help="replace an earlier review pack at --out (never a folder of other files)",
+    )
+    cmd.add_argument(
+        "--sort",
+        metavar="COLUMN",
+        help="sort the printed table by a column, highest first (e.g. 'flow [mL/min]')",
+    )
+    cmd.add_argument(
+        "--reach",
+        metavar="FLOW",
+        help="also name, per scenario, the smallest-bore case reaching FLOW (e.g. '100 mL/min')",
+    )
 
 
 # --------------------------------------------------------------------------- commands
@@ -128,8 +168,10 @@ def _load(path):
 def _cmd_check(args, out):
     sset = _load(args.file)
     swept = sum(1 for s in sset.scenarios if s.axes)
-    out.write(f"ok: {sset.source}: {len(sset.scenarios)} scenario(s), {sset.n_points} case(s) "
-              f"to solve ({swept} with sweeps)\n")
+    out.write(
+        f"ok: {sset.source}: {len(sset.scenarios)} scenario(s), {sset.n_points} case(s) "
+        f"to solve ({swept} with sweeps)\n"
+    )
     for s in sset.scenarios:
         axes = ", ".join(f"{p} x{len(a)}" for p, a in s.axes) or "no sweep"
         out.write(f"  - {_printable(s.name)}: {s.mode} mode, {len(s.parts)} part(s), {axes}\n")
@@ -274,8 +316,10 @@ def _frame_text(frame):
     widths = [max([len(columns[j])] + [len(c[j][0]) for c in cells]) for j in range(len(columns))]
 
     def line(texts):
-        parts = [t.rjust(w) if num else t.ljust(w)
-                 for t, w, num in zip(texts, widths, numeric, strict=True)]
+        parts = [
+            t.rjust(w) if num else t.ljust(w)
+            for t, w, num in zip(texts, widths, numeric, strict=True)
+        ]
         return "  ".join(parts).rstrip()
 
     return "\n".join([line(columns)] + [line([t for t, _ in c]) for c in cells])
@@ -301,9 +345,11 @@ def format_run(run, reach=None) -> str:
                 lines.append(f"  - {_printable(name)}: no case reaches it")
             else:
                 row = best.iloc[0]
-                lines.append(f"  - {_printable(name)}: {_printable(row['case'])} "
-                             f"({row['smallest bore [mm]']:.3g} mm bore, "
-                             f"{row['flow [mL/min]']:.4g} mL/min)")
+                lines.append(
+                    f"  - {_printable(name)}: {_printable(row['case'])} "
+                    f"({row['smallest bore [mm]']:.3g} mm bore, "
+                    f"{row['flow [mL/min]']:.4g} mL/min)"
+                )
     if run.warnings:
         lines += ["", "Notes:"] + [f"  - {_printable(w)}" for w in run.warnings]
     lines += ["", f"CAUTION: {_caution()}"]
@@ -338,8 +384,11 @@ def main(argv=None) -> int:
     except BrokenPipeError:
         return EXIT_OK
     except Exception as exc:  # noqa: BLE001 - the last line of defence: no traceback
-        print(f"rheoline: internal error ({type(exc).__name__}: {_one_line(exc)}); "
-              "please report it with the scenario file", file=sys.stderr)
+        print(
+            f"rheoline: internal error ({type(exc).__name__}: {_one_line(exc)}); "
+            "please report it with the scenario file",
+            file=sys.stderr,
+        )
         return EXIT_FAULT
 
 

@@ -191,7 +191,9 @@ def parse_quantity(text, kind: str, default_unit: str | None = None, field: str 
                 raise UnitError(f"{field}: {text!r} has no unit; write it with one of {examples}")
             unit = default_unit
     else:
-        raise UnitError(f"{field}: expected a {kind} such as '{_example(kind)}', got {type(text).__name__}")
+        raise UnitError(
+            f"{field}: expected a {kind} such as '{_example(kind)}', got {type(text).__name__}"
+        )
     if not math.isfinite(number):
         raise UnitError(f"{field}: {text!r} is not a finite number")
     return _finite(from_unit(number, unit, kind, field=field), text, field)
@@ -283,5 +285,10 @@ def _example_unit(kind):
 
 
 def _example(kind):
-    return {"pressure": "300 mmHg", "viscosity": "1.1 cP", "flow": "150 mL/h",
-            "length": "1.8 m", "temperature": "22 degC"}.get(kind, f"1 {_example_unit(kind)}")
+    return {
+        "pressure": "300 mmHg",
+        "viscosity": "1.1 cP",
+        "flow": "150 mL/h",
+        "length": "1.8 m",
+        "temperature": "22 degC",
+    }.get(kind, f"1 {_example_unit(kind)}")

@@ -37,7 +37,7 @@ def module_recorder(section: str, prefix: str):
     @pytest.fixture(scope="module", autouse=True)
     def _record(tmp_path_factory):
         yield
-        data = {k[len(prefix):]: v for k, v in COUNTS.items() if k.startswith(prefix)}
+        data = {k[len(prefix) :]: v for k, v in COUNTS.items() if k.startswith(prefix)}
         merge_into(tmp_path_factory, section, data)
 
     return _record
@@ -52,8 +52,10 @@ def hostile_scenario_file(title, name, tube_label, catheter_label, notes="", sce
 
     top = f"title = {q(title)}\n" + (f"notes = {q(notes)}\n" if notes else "")
     sc_notes = f"notes = {q(scenario_notes)}\n" if scenario_notes else ""
-    return (f"format_version = 1\n{top}\n[[scenario]]\nname = {q(name)}\n{sc_notes}"
-            'fluid = "saline-0.9"\nhead = "1 m"\n\n'
-            f'[[scenario.part]]\ntype = "tube"\nlabel = {q(tube_label)}\n'
-            'inner_diameter = "3 mm"\nlength = "1.8 m"\n\n'
-            f'[[scenario.part]]\ntype = "catheter"\ngauge = 18\nlabel = {q(catheter_label)}\n')
+    return (
+        f"format_version = 1\n{top}\n[[scenario]]\nname = {q(name)}\n{sc_notes}"
+        'fluid = "saline-0.9"\nhead = "1 m"\n\n'
+        f'[[scenario.part]]\ntype = "tube"\nlabel = {q(tube_label)}\n'
+        'inner_diameter = "3 mm"\nlength = "1.8 m"\n\n'
+        f'[[scenario.part]]\ntype = "catheter"\ngauge = 18\nlabel = {q(catheter_label)}\n'
+    )

@@ -32,24 +32,44 @@ def _load(name):
 
 scalar = _load("scalar_reference")
 
-EXPECTED_FIGURES = (
-    [f"{kind}_{what}{path}.{figure}"
-     for kind in ("newtonian", "blood") for what in ("flow", "pressure")
-     for path in ("", "_newton_path")
-     for figure in ("speedup_vs_scalar_loop", "residual_evals_equivalent",
-                    "max_relative_difference")]
-    + ["monte_carlo_10k_ms", "widget_update_ms[line_view head]",
-       "widget_update_ms[comparison_view temperature]", "widget_update_ms[comparison_view head]",
-       "widget_update_ms[comparison_view temperature, bore+temperature band]",
-       "import_model_ms"])
+EXPECTED_FIGURES = [
+    f"{kind}_{what}{path}.{figure}"
+    for kind in ("newtonian", "blood")
+    for what in ("flow", "pressure")
+    for path in ("", "_newton_path")
+    for figure in ("speedup_vs_scalar_loop", "residual_evals_equivalent", "max_relative_difference")
+] + [
+    "monte_carlo_10k_ms",
+    "widget_update_ms[line_view head]",
+    "widget_update_ms[comparison_view temperature]",
+    "widget_update_ms[comparison_view head]",
+    "widget_update_ms[comparison_view temperature, bore+temperature band]",
+    "import_model_ms",
+]
 
 
 @pytest.mark.slow
 def test_benchmark_script_runs_at_tiny_n_and_reports_every_figure():
     done = subprocess.run(
-        [sys.executable, str(BENCHMARKS / "run.py"), "--n", "300", "--json", "--repeats", "1",
-         "--widget-repeats", "1", "--import-repeats", "1", "--subset-scale", "0.05"],
-        capture_output=True, text=True, timeout=600)
+        [
+            sys.executable,
+            str(BENCHMARKS / "run.py"),
+            "--n",
+            "300",
+            "--json",
+            "--repeats",
+            "1",
+            "--widget-repeats",
+            "1",
+            "--import-repeats",
+            "1",
+            "--subset-scale",
+            "0.05",
+        ],
+        capture_output=True,
+        text=True,
+        timeout=600,
+    )
     assert done.returncode == 0, done.stderr
     report = json.loads(done.stdout)
     for key, value in report["figures"].items():
@@ -68,26 +88,49 @@ def test_benchmark_script_runs_at_tiny_n_and_reports_every_figure():
 def test_printed_table_names_every_target():
     run = _load("run")
     report = {
-        "n": 3, "seed": 1, "line": "demo", "load_average_before": [0.1, 0.1, 0.1],
+        "n": 3,
+        "seed": 1,
+        "line": "demo",
+        "load_average_before": [0.1, 0.1, 0.1],
         "load_average_after": [0.2, 0.1, 0.1],
-        "machine": {"cpu_count": 2, "cpus_usable": 2, "cpu_model": "x", "python": "3",
-                    "numpy": "2", "scipy": "1", "blas": []},
+        "machine": {
+            "cpu_count": 2,
+            "cpus_usable": 2,
+            "cpu_model": "x",
+            "python": "3",
+            "numpy": "2",
+            "scipy": "1",
+            "blas": [],
+        },
         "regime_counts": {"newtonian": {"laminar": 3, "transitional": 0, "turbulent": 0}},
-        "solves": [{"key": "newtonian_flow", "label": "water", "kind": "newtonian",
-                    "headline": True, "vector_solve_ms": 1.0, "vector_residual_ms": 0.5,
-                    "scalar_us_per_scenario": 40.0, "speedup_vs_scalar_loop": 120.0,
-                    "residual_evals_equivalent": 2.0, "max_relative_difference": 1e-10,
-                    "agree": True}],
-        "monte_carlo_10k_ms": 150.0, "monte_carlo_dominant_input": "bore",
+        "solves": [
+            {
+                "key": "newtonian_flow",
+                "label": "water",
+                "kind": "newtonian",
+                "headline": True,
+                "vector_solve_ms": 1.0,
+                "vector_residual_ms": 0.5,
+                "scalar_us_per_scenario": 40.0,
+                "speedup_vs_scalar_loop": 120.0,
+                "residual_evals_equivalent": 2.0,
+                "max_relative_difference": 1e-10,
+                "agree": True,
+            }
+        ],
+        "monte_carlo_10k_ms": 150.0,
+        "monte_carlo_dominant_input": "bore",
         "widget_update_ms": {"line_view head": 20.0, "comparison_view pending": "not built"},
-        "import_model_ms": 250.0, "all_agree": True,
+        "import_model_ms": 250.0,
+        "all_agree": True,
     }
-    report["targets"] = [{"figure": k, "value": v, "target": t, "holds": ok}
-                         for k, v, t, ok in run.targets(report)]
+    report["targets"] = [
+        {"figure": k, "value": v, "target": t, "holds": ok} for k, v, t, ok in run.targets(report)
+    ]
     text = run.table(report)
     print(text)
     assert "newtonian_flow.speedup_vs_scalar_loop" in text
-    assert "monte_carlo_10k_ms" in text and "NO" in text          # 150 ms misses < 100 ms
+    assert "monte_carlo_10k_ms" in text and "NO" in text  # 150 ms misses < 100 ms
     assert "widget_update_ms[comparison_view pending]: not built" in text
     assert "(none transitional/turbulent)" in text
 
@@ -95,8 +138,9 @@ def test_printed_table_names_every_target():
 @pytest.mark.parametrize("model", ["newtonian", "carreau"])
 def test_scalar_reference_matches_the_line_engine_in_every_regime(model):
     # laminar to turbulent: 1 m of head plus source pressures up to 60 kPa (pressure bag)
-    line = rheoline.Line([rheoline.Tube(inner_diameter=3.0e-3, length=1.8),
-                          rheoline.Catheter(gauge=18)])
+    line = rheoline.Line(
+        [rheoline.Tube(inner_diameter=3.0e-3, length=1.8), rheoline.Catheter(gauge=18)]
+    )
     cath = rheoline.Catheter(gauge=18)
     sline = scalar.ScalarLine([(3.0e-3, 1.8), (cath.inner_diameter, cath.length)])
     if model == "newtonian":
@@ -105,20 +149,26 @@ def test_scalar_reference_matches_the_line_engine_in_every_regime(model):
     else:
         fluid = rheoline.fluid("packed-red-cells", temperature_c=37.0, model="carreau")
         r = fluid.rheology
-        sfluid = scalar.ScalarCarreau(r.mu_zero, r.mu_inf, r.relaxation_time, r.flow_index,
-                                      fluid.density)
+        sfluid = scalar.ScalarCarreau(
+            r.mu_zero, r.mu_inf, r.relaxation_time, r.flow_index, fluid.density
+        )
     pressures = np.linspace(0.0, 6.0e4, 13)
     result = line.solve(fluid, head=1.0, source_pressure=pressures)
-    flows = np.array([scalar.solve_flow(sline, sfluid, head=1.0, source_pressure=p)[0]
-                      for p in pressures])
+    flows = np.array(
+        [scalar.solve_flow(sline, sfluid, head=1.0, source_pressure=p)[0] for p in pressures]
+    )
     np.testing.assert_allclose(flows, result.flow, rtol=1e-6)
     if model == "newtonian":
         assert set(np.asarray(result.regime)) == {"laminar", "transitional", "turbulent"}
     drive = fluid.density * scalar.GRAVITY * 1.0 + pressures
-    residuals = [scalar.residual(q * 1.1, sline, sfluid, d) for q, d in zip(flows, drive,
-                                                                             strict=True)]
-    np.testing.assert_allclose(residuals, line.pressure_residual(
-        fluid, flows * 1.1, head=1.0, source_pressure=pressures), rtol=1e-9)
+    residuals = [
+        scalar.residual(q * 1.1, sline, sfluid, d) for q, d in zip(flows, drive, strict=True)
+    ]
+    np.testing.assert_allclose(
+        residuals,
+        line.pressure_residual(fluid, flows * 1.1, head=1.0, source_pressure=pressures),
+        rtol=1e-9,
+    )
     back = [scalar.solve_pressure(sline, sfluid, q, head=1.0) for q in flows]
     np.testing.assert_allclose(back, pressures, rtol=1e-6, atol=1e-6 * pressures.max())
 

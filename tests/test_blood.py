@@ -28,7 +28,8 @@ def test_plasma_viscosity_normal_range():
     assert 1.10e-3 <= blood.plasma_viscosity(37.0) <= 1.35e-3
     # plasma follows water's temperature dependence (the stated assumption)
     assert blood.plasma_viscosity(20.0) / blood.plasma_viscosity(37.0) == pytest.approx(
-        water_viscosity(20.0) / water_viscosity(37.0), rel=1e-12)
+        water_viscosity(20.0) / water_viscosity(37.0), rel=1e-12
+    )
 
 
 def test_carreau_reproduces_cho_kensey_at_reference_state():
@@ -79,7 +80,9 @@ def test_power_law_blood_follows_carreau_in_its_window():
     assert 0.5 < m.flow_index < 1.0
     # plasma (H = 0) is Newtonian in every model
     assert blood.blood_rheology(0.0, 37.0, "power-law").flow_index == pytest.approx(1.0, abs=1e-9)
-    assert blood.blood_rheology(0.0, 37.0, "carreau").mu_zero == pytest.approx(blood.plasma_viscosity(37.0))
+    assert blood.blood_rheology(0.0, 37.0, "carreau").mu_zero == pytest.approx(
+        blood.plasma_viscosity(37.0)
+    )
 
 
 def test_newtonian_blood_model():
@@ -107,7 +110,9 @@ def test_viscosity_rises_with_hematocrit(h, dh, t):
     h2 = min(h + dh, 0.8)
     assume(h2 - h >= 1e-3)
     assert blood.blood_viscosity(h2, t) > blood.blood_viscosity(h, t)
-    assert blood.blood_viscosity(h2, t, shear_rate=10.0) > blood.blood_viscosity(h, t, shear_rate=10.0)
+    assert blood.blood_viscosity(h2, t, shear_rate=10.0) > blood.blood_viscosity(
+        h, t, shear_rate=10.0
+    )
 
 
 @given(hematocrits, temperatures, st.floats(0.5, 10.0))
@@ -134,8 +139,12 @@ def test_vectorized_equals_scalar(rows):
         vec = blood.blood_viscosity(h, t, shear_rate=g, model=model)
         scal = [blood.blood_viscosity(a, b, shear_rate=c, model=model) for a, b, c in rows]
         assert np.allclose(vec, scal, rtol=1e-10, atol=0)
-    assert np.allclose(blood.blood_viscosity(h, t), [blood.blood_viscosity(a, b) for a, b, _ in rows],
-                       rtol=1e-12, atol=0)
+    assert np.allclose(
+        blood.blood_viscosity(h, t),
+        [blood.blood_viscosity(a, b) for a, b, _ in rows],
+        rtol=1e-12,
+        atol=0,
+    )
 
 
 def test_rheology_parameters_broadcast():
@@ -152,12 +161,20 @@ def test_rheology_parameters_broadcast():
 
 
 def test_hematocrit_percent_suggests_fraction():
-    with pytest.raises(ValueError, match=r"hematocrit must be a fraction from 0 to 1, got 45; if that is a percent, pass 0\.45"):
+    with pytest.raises(
+        ValueError,
+        match=r"hematocrit must be a fraction from 0 to 1, got 45; if that is a percent, pass 0\.45",
+    ):
         blood.blood_viscosity(45, 37.0)
 
 
-@pytest.mark.parametrize(("value", "pattern"), [(-0.1, r"hematocrit must lie between 0 and 0\.95"),
-                                                 (float("nan"), "hematocrit must be finite")])
+@pytest.mark.parametrize(
+    ("value", "pattern"),
+    [
+        (-0.1, r"hematocrit must lie between 0 and 0\.95"),
+        (float("nan"), "hematocrit must be finite"),
+    ],
+)
 def test_bad_hematocrit_names_argument(value, pattern):
     with pytest.raises(InputRangeError, match=pattern):
         blood.blood_viscosity(value)
@@ -171,17 +188,25 @@ def test_bad_shear_rate_and_temperature():
 
 
 def test_temperature_outside_range_warns_with_range():
-    with pytest.warns(RangeWarning, match=r"temperature_c 45\.\.45 degC is outside the validated range 0\.\.42 degC"):
+    with pytest.warns(
+        RangeWarning,
+        match=r"temperature_c 45\.\.45 degC is outside the validated range 0\.\.42 degC",
+    ):
         blood.blood_viscosity(0.45, 45.0)
 
 
 def test_high_hematocrit_warns():
-    with pytest.warns(RangeWarning, match=r"hematocrit 0\.9\.\.0\.9 is outside the validated range 0\.\.0\.8"):
+    with pytest.warns(
+        RangeWarning, match=r"hematocrit 0\.9\.\.0\.9 is outside the validated range 0\.\.0\.8"
+    ):
         blood.blood_viscosity(0.9)
 
 
 def test_unknown_model_suggests():
-    with pytest.raises(InputRangeError, match=r"model 'carreu' is not a blood rheology model.*did you mean 'carreau'"):
+    with pytest.raises(
+        InputRangeError,
+        match=r"model 'carreu' is not a blood rheology model.*did you mean 'carreau'",
+    ):
         blood.blood_rheology(0.45, 37.0, "carreu")
 
 
@@ -191,7 +216,9 @@ def test_unknown_model_suggests():
 def pries_in_vitro(d_um, h):
     """Pries, Neuhaus & Gaehtgens 1992, Am. J. Physiol. 263:H1770, eqs. for mu_0.45 and C (written here)."""
     mu45 = 220.0 * np.exp(-1.3 * d_um) + 3.2 - 2.44 * np.exp(-0.06 * d_um**0.645)
-    c = (0.8 + np.exp(-0.075 * d_um)) * (-1.0 + 1.0 / (1.0 + 1e-11 * d_um**12)) + 1.0 / (1.0 + 1e-11 * d_um**12)
+    c = (0.8 + np.exp(-0.075 * d_um)) * (-1.0 + 1.0 / (1.0 + 1e-11 * d_um**12)) + 1.0 / (
+        1.0 + 1e-11 * d_um**12
+    )
     return 1.0 + (mu45 - 1.0) * ((1.0 - h) ** c - 1.0) / ((1.0 - 0.45) ** c - 1.0)
 
 
@@ -199,7 +226,9 @@ def pries_in_vitro(d_um, h):
 @pytest.mark.parametrize("h", [0.2, 0.45, 0.6])
 def test_pries_matches_published_equations(d_um, h):
     # source: Pries et al. 1992 in-vitro law, equations evaluated independently above
-    assert blood.pries_1992_relative_viscosity(d_um * 1e-6, h) == pytest.approx(pries_in_vitro(d_um, h), rel=1e-12)
+    assert blood.pries_1992_relative_viscosity(d_um * 1e-6, h) == pytest.approx(
+        pries_in_vitro(d_um, h), rel=1e-12
+    )
 
 
 def test_pries_hand_value():
@@ -229,4 +258,6 @@ def test_pries_warns_outside_diameter_range():
 @given(st.floats(3.5, 1900.0), st.floats(0.05, 0.8), st.floats(0.01, 0.1))
 def test_pries_rises_with_hematocrit(d_um, h, dh):
     h2 = min(h + dh, 0.9)
-    assert blood.pries_1992_relative_viscosity(d_um * 1e-6, h2) > blood.pries_1992_relative_viscosity(d_um * 1e-6, h)
+    assert blood.pries_1992_relative_viscosity(
+        d_um * 1e-6, h2
+    ) > blood.pries_1992_relative_viscosity(d_um * 1e-6, h)

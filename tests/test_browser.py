@@ -33,9 +33,16 @@ from rheoline.units import ML_PER_MIN, MMHG
 pytestmark = [pytest.mark.browser, pytest.mark.timeout(600)]
 
 CHROMIUM = Path("/usr/bin/chromium")
-CHROMIUM_ARGS = ["--headless", "--no-sandbox", "--disable-gpu", "--disable-quic",
-                 "--no-first-run", "--disable-background-networking",
-                 "--disable-component-update", "--disable-sync"]
+CHROMIUM_ARGS = [
+    "--headless",
+    "--no-sandbox",
+    "--disable-gpu",
+    "--disable-quic",
+    "--no-first-run",
+    "--disable-background-networking",
+    "--disable-component-update",
+    "--disable-sync",
+]
 PAGE_TIMEOUT_MS = 180_000  # the first load starts a kernel and builds every view
 UPDATE_TIMEOUT_MS = 60_000
 
@@ -64,8 +71,14 @@ def served_app(tmp_path_factory):
     runtime = tmp_path_factory.mktemp("jupyter-runtime")
     env = {**serve_environment(), "JUPYTER_RUNTIME_DIR": str(runtime)}
     log = open(runtime / "voila.log", "w")  # noqa: SIM115 (closed below)
-    process = subprocess.Popen(voila_command(port=port), cwd=APP_NOTEBOOK.parent, env=env,
-                               stdout=log, stderr=subprocess.STDOUT, start_new_session=True)
+    process = subprocess.Popen(
+        voila_command(port=port),
+        cwd=APP_NOTEBOOK.parent,
+        env=env,
+        stdout=log,
+        stderr=subprocess.STDOUT,
+        start_new_session=True,
+    )
     url = f"http://127.0.0.1:{port}/"
     deadline = time.monotonic() + 90
     while True:
@@ -96,22 +109,28 @@ def page(served_app, tmp_path):
     playwright_api = pytest.importorskip("playwright.sync_api")
     with playwright_api.sync_playwright() as p:
         context = p.chromium.launch_persistent_context(
-            str(tmp_path / "chromium-profile"), executable_path=str(CHROMIUM),
-            args=CHROMIUM_ARGS, headless=True, viewport={"width": 1400, "height": 1300})
+            str(tmp_path / "chromium-profile"),
+            executable_path=str(CHROMIUM),
+            args=CHROMIUM_ARGS,
+            headless=True,
+            viewport={"width": 1400, "height": 1300},
+        )
         page = context.new_page()
         page.set_default_timeout(UPDATE_TIMEOUT_MS)
         page.goto(served_app, timeout=PAGE_TIMEOUT_MS)
         page.wait_for_selector(".rl-app .rl-caution-banner", timeout=PAGE_TIMEOUT_MS)
-        page.wait_for_selector(".rl-view .js-plotly-plot", state="attached",
-                               timeout=PAGE_TIMEOUT_MS)
+        page.wait_for_selector(
+            ".rl-view .js-plotly-plot", state="attached", timeout=PAGE_TIMEOUT_MS
+        )
         yield page
         context.close()
 
 
 # --- what the Python API says, built here from the public names, not from the widgets ----
 def _api(gauge: int, head_m: float):
-    line = rheoline.Line([rheoline.Tube(inner_diameter=3.0e-3, length=1.8),
-                          rheoline.Catheter(gauge=gauge)])
+    line = rheoline.Line(
+        [rheoline.Tube(inner_diameter=3.0e-3, length=1.8), rheoline.Catheter(gauge=gauge)]
+    )
     fluid = rheoline.fluid("saline-0.9", temperature_c=22.0)
     result = line.solve(fluid, head=head_m, source_pressure=0.0, back_pressure=0.0)
     heads = np.linspace(0.0, max(2.0 * head_m, 1.5), 41)
@@ -157,7 +176,9 @@ def _shown_flow(page) -> float:
 def _wait_flow_change(page, before: float):
     page.wait_for_function(
         "before => Math.abs(parseFloat(document.querySelector('.rl-view .rl-flow')"
-        ".getAttribute('data-flow-ml-min')) - before) > 1e-9 * Math.abs(before)", arg=before)
+        ".getAttribute('data-flow-ml-min')) - before) > 1e-9 * Math.abs(before)",
+        arg=before,
+    )
 
 
 def _check_against_api(page, gauge, head_m):
@@ -166,6 +187,7 @@ def _check_against_api(page, gauge, head_m):
     _wait_for_trace(page, "Flow against bag height", 0, "y", curve)
     assert _shown_flow(page) == pytest.approx(flow, rel=1e-9)
     from rheoline.widgets.style import significant
+
     assert page.inner_text(".rl-view .rl-flow") == f"{significant(flow)} mL/min"
     bars = page.evaluate(_PLOT_DATA, "Pressure budget")
     assert np.allclose(bars[0]["x"], budget, rtol=1e-9)
@@ -196,7 +218,8 @@ def test_line_view_follows_controls_in_a_real_browser(page, tmp_path):
     # a larger catheter: pick 14G in the second part's gauge list
     before = _shown_flow(page)
     line_view.locator(".rl-part-row").nth(1).locator(".rl-part-size select").select_option(
-        label="14G")
+        label="14G"
+    )
     _wait_flow_change(page, before)
     _check_against_api(page, gauge=14, head_m=1.0)
     assert _shown_flow(page) > before  # a larger bore runs faster
@@ -235,6 +258,7 @@ def test_blood_view_follows_the_vessel_radius_in_a_real_browser(page):
     assert fahraeus[1]["y"] == pytest.approx([expected], rel=1e-12)
     vessel = rheoline.Vessel(radius=20e-6, length=1e-3, hematocrit=0.45, temperature_c=37.0)
     # the chart shows mmHg min/mL: 1 mmHg min/mL = 133.322 Pa * 60 s / 1e-6 m^3
-    _wait_for_trace(page, "Resistance of one vessel", 1, "y",
-                    [vessel.resistance / (MMHG * 60.0 / 1e-6)])
+    _wait_for_trace(
+        page, "Resistance of one vessel", 1, "y", [vessel.resistance / (MMHG * 60.0 / 1e-6)]
+    )
     assert view.locator(".rl-caution-banner").is_visible()

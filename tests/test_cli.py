@@ -42,8 +42,9 @@ def assert_one_line_error(err, expected=None):
 
 # --------------------------------------------------------------------------- malformed corpus
 @pytest.mark.parametrize("name", sorted(EXPECTED))
-def test_malformed_file_exits_2_names_the_field_and_writes_nothing(name, capsys, tmp_path,
-                                                                   monkeypatch):
+def test_malformed_file_exits_2_names_the_field_and_writes_nothing(
+    name, capsys, tmp_path, monkeypatch
+):
     monkeypatch.chdir(tmp_path)
     status, out, err = call(capsys, "check", MALFORMED / name)
     assert status == 2 and out == ""
@@ -77,8 +78,9 @@ def test_usage_errors_exit_2(argv, capsys):
         assert_one_line_error(err)
 
 
-@pytest.mark.parametrize("command", ["run", "check", "fluids", "parts", "fields", "demo",
-                                     "examples"])
+@pytest.mark.parametrize(
+    "command", ["run", "check", "fluids", "parts", "fields", "demo", "examples"]
+)
 def test_help_on_every_command(command, capsys):
     status, out, _ = call(capsys, command, "--help")
     assert status == 0 and f"usage: rheoline {command}" in out
@@ -103,9 +105,22 @@ def test_entry_point_exits_2_in_a_real_process(tmp_path):
     pyproject = (root / "pyproject.toml").read_text()
     assert 'rheoline = "rheoline.cli:main"' in pyproject
     env = {**os.environ, "PYTHONPATH": str(root)}
-    done = subprocess.run([sys.executable, "-m", "rheoline.cli", "run",
-                           str(MALFORMED / "pressure_in_ml.toml"), "--out", str(tmp_path / "p")],
-                          capture_output=True, text=True, timeout=120, env=env, cwd=tmp_path)
+    done = subprocess.run(
+        [
+            sys.executable,
+            "-m",
+            "rheoline.cli",
+            "run",
+            str(MALFORMED / "pressure_in_ml.toml"),
+            "--out",
+            str(tmp_path / "p"),
+        ],
+        capture_output=True,
+        text=True,
+        timeout=120,
+        env=env,
+        cwd=tmp_path,
+    )
     assert done.returncode == 2 and done.stdout == ""
     assert_one_line_error(done.stderr, "field 'source_pressure'")
     assert not (tmp_path / "p").exists()
@@ -113,8 +128,14 @@ def test_entry_point_exits_2_in_a_real_process(tmp_path):
 
 # --------------------------------------------------------------------------- output
 def test_every_command_output_carries_the_caution(capsys):
-    for argv in (["run", example_path("minimal")], ["check", example_path("minimal")],
-                 ["fluids"], ["parts"], ["fields"], ["examples"]):
+    for argv in (
+        ["run", example_path("minimal")],
+        ["check", example_path("minimal")],
+        ["fluids"],
+        ["parts"],
+        ["fields"],
+        ["examples"],
+    ):
         status, out, _ = call(capsys, *argv)
         assert status == 0, argv
         assert rheoline.CAUTION in out, argv
@@ -164,9 +185,15 @@ def test_json_agrees_with_the_python_api_for_a_drive(capsys):
     status, out, err = call(capsys, "run", example_path("minimal"), "--json")
     assert status == 0 and rheoline.CAUTION in err
     [obj] = json.loads(out)
-    res = _api_result("saline-0.9", 22.0, [
-        rheoline.Tube(inner_diameter=3.0e-3, length=1.8, name="administration set"),
-        rheoline.Catheter(gauge=18)], head=1.0)
+    res = _api_result(
+        "saline-0.9",
+        22.0,
+        [
+            rheoline.Tube(inner_diameter=3.0e-3, length=1.8, name="administration set"),
+            rheoline.Catheter(gauge=18),
+        ],
+        head=1.0,
+    )
     assert obj["name"] == "18G on a gravity set"
     assert obj["flow_ml_min"] == pytest.approx(res.flow * 6e7, rel=1e-9)
     assert obj["max_reynolds"] == pytest.approx(res.max_reynolds, rel=1e-9)
@@ -176,9 +203,12 @@ def test_json_agrees_with_the_python_api_for_a_drive(capsys):
     assert [p["part"] for p in obj["parts"]] == list(api_parts["part"])
     for p, (_, row) in zip(obj["parts"], api_parts.iterrows(), strict=True):
         assert p["pressure_drop_pa"] == pytest.approx(row["pressure_drop [Pa]"], rel=1e-9)
-        assert p["wall_shear_stress_pa"] == pytest.approx(row["wall_shear_stress [Pa]"],
-                                                          rel=1e-9, nan_ok=True) \
-            if p["wall_shear_stress_pa"] is not None else pd.isna(row["wall_shear_stress [Pa]"])
+        assert (
+            p["wall_shear_stress_pa"]
+            == pytest.approx(row["wall_shear_stress [Pa]"], rel=1e-9, nan_ok=True)
+            if p["wall_shear_stress_pa"] is not None
+            else pd.isna(row["wall_shear_stress [Pa]"])
+        )
 
 
 def test_json_agrees_with_the_python_api_for_a_pump(capsys):
@@ -189,10 +219,13 @@ def test_json_agrees_with_the_python_api_for_a_pump(capsys):
     first = objs[0]  # 40 % glycerol-water, 60 mL/h, 25G regular-wall needle
     assert first["point"] == "60 mL/h, 25G"
     fl = rheoline.fluid("glycerol-water", temperature_c=22.0, mass_fraction=0.4)
-    res = rheoline.Line([rheoline.Tube(inner_diameter=1.0e-3, length=1.5),
-                         rheoline.Needle(gauge=25, wall="regular")]).solve(fl, flow=60e-6 / 3600)
-    assert first["required_pressure_mmhg"] == pytest.approx(res.required_pressure / MMHG,
-                                                            rel=1e-9)
+    res = rheoline.Line(
+        [
+            rheoline.Tube(inner_diameter=1.0e-3, length=1.5),
+            rheoline.Needle(gauge=25, wall="regular"),
+        ]
+    ).solve(fl, flow=60e-6 / 3600)
+    assert first["required_pressure_mmhg"] == pytest.approx(res.required_pressure / MMHG, rel=1e-9)
     assert first["flow_ml_h"] == pytest.approx(60.0, rel=1e-12)
     assert first["exceeds_pressure_limit"] == bool(res.required_pressure > 900 * MMHG)
 
@@ -306,15 +339,16 @@ def test_hostile_names_through_the_whole_pipeline(capsys, tmp_path):
     for name in ("results.csv", "parts.csv"):
         with (pack / name).open(newline="", encoding="utf-8") as fh:
             cells = [c for row in csv.reader(fh) for c in row]
-        assert "'=HYPERLINK(\"http://example.invalid\",\"x\")" in cells or name == "parts.csv"
+        assert '\'=HYPERLINK("http://example.invalid","x")' in cells or name == "parts.csv"
         assert not [c for c in cells if c.startswith(("=", "+", "-", "@"))], name
     wb = openpyxl.load_workbook(pack / "results.xlsx")
     for ws in wb.worksheets:
         for row in ws.iter_rows():
             for cell in row:
                 assert cell.data_type != "f"
-                assert not (isinstance(cell.value, str)
-                            and cell.value.startswith(("=", "+", "-", "@")))
+                assert not (
+                    isinstance(cell.value, str) and cell.value.startswith(("=", "+", "-", "@"))
+                )
 
 
 # --------------------------------------------------------------------------- progress
@@ -323,8 +357,9 @@ def test_progress_bar_only_on_a_terminal_and_only_after_a_delay(monkeypatch):
 
     seen = []
     real = compare.run_scenarios
-    monkeypatch.setattr(compare, "run_scenarios",
-                        lambda sset, progress=None: seen.append(progress) or real(sset))
+    monkeypatch.setattr(
+        compare, "run_scenarios", lambda sset, progress=None: seen.append(progress) or real(sset)
+    )
     from rheoline.scenario.files import load_scenarios
 
     sset = load_scenarios(example_path("minimal"))
@@ -346,16 +381,30 @@ def test_json_objects_have_the_documented_keys(capsys):
     objs = json.loads(out)
     assert len(objs) == 53
     for obj in objs:
-        assert {"name", "flow_ml_min", "required_pressure_mmhg", "max_reynolds", "regime",
-                "parts", "caution"} <= set(obj)
+        assert {
+            "name",
+            "flow_ml_min",
+            "required_pressure_mmhg",
+            "max_reynolds",
+            "regime",
+            "parts",
+            "caution",
+        } <= set(obj)
         assert obj["parts"] and all(
-            {"pressure_drop_pa", "reynolds", "wall_shear_stress_pa"} <= set(p)
-            for p in obj["parts"])
+            {"pressure_drop_pa", "reynolds", "wall_shear_stress_pa"} <= set(p) for p in obj["parts"]
+        )
 
 
 def test_sort_and_reach(capsys):
-    status, out, _ = call(capsys, "run", example_path("bench-sweep"), "--sort", "flow [mL/min]",
-                          "--reach", "100 mL/min")
+    status, out, _ = call(
+        capsys,
+        "run",
+        example_path("bench-sweep"),
+        "--sort",
+        "flow [mL/min]",
+        "--reach",
+        "100 mL/min",
+    )
     assert status == 0
     lines = out.splitlines()
     rows = [line for line in lines if line.startswith("water, gauge x height |")]

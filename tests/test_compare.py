@@ -40,10 +40,18 @@ def test_a_row_per_sweep_point_with_units_in_the_columns():
     r = run(sc(head=["50 cm", "1 m"], parts=[{"type": "catheter", "gauge": [14, 18, 22]}]))
     t = r.table
     assert len(t) == 6
-    for col in ("flow [mL/min]", "flow [mL/h]", "required pressure [mmHg]",
-                "max wall shear stress [Pa]", "dominant share [%]", "head [cm]"):
+    for col in (
+        "flow [mL/min]",
+        "flow [mL/h]",
+        "required pressure [mmHg]",
+        "max wall shear stress [Pa]",
+        "dominant share [%]",
+        "head [cm]",
+    ):
         assert col in t.columns
-    assert {"max Reynolds number", "regime", "dominant part", "hemolysis concern", "flags"} <= set(t)
+    assert {"max Reynolds number", "regime", "dominant part", "hemolysis concern", "flags"} <= set(
+        t
+    )
     assert t["case"].tolist()[0] == "case | 50 cm, 14G"
     assert t["gauge"].tolist() == [14, 18, 22, 14, 18, 22]
     assert t["flow [mL/h]"].to_numpy() == pytest.approx(60 * t["flow [mL/min]"].to_numpy())
@@ -52,13 +60,21 @@ def test_a_row_per_sweep_point_with_units_in_the_columns():
 
 
 def test_vectorized_sweep_equals_scalar_engine_solves():
-    r = run(sc(head=["40 cm", "1.5 m"], back_pressure="8 mmHg",
-               parts=[{"type": "tube", "inner_diameter": "3 mm", "length": "1.8 m"},
-                      {"type": "catheter", "gauge": [16, 20]}]))
+    r = run(
+        sc(
+            head=["40 cm", "1.5 m"],
+            back_pressure="8 mmHg",
+            parts=[
+                {"type": "tube", "inner_diameter": "3 mm", "length": "1.8 m"},
+                {"type": "catheter", "gauge": [16, 20]},
+            ],
+        )
+    )
     water = rheoline.fluid("water", temperature_c=20.0)
     for row in r.table.to_dict("records"):
-        line = rheoline.Line([rheoline.Tube(inner_diameter=3e-3, length=1.8),
-                              rheoline.Catheter(gauge=row["gauge"])])
+        line = rheoline.Line(
+            [rheoline.Tube(inner_diameter=3e-3, length=1.8), rheoline.Catheter(gauge=row["gauge"])]
+        )
         res = line.solve(water, head=row["head [cm]"] / 100, back_pressure=8 * MMHG)
         assert row["flow [mL/min]"] == pytest.approx(res.flow / ML_PER_MIN, rel=1e-9)
         assert row["max Reynolds number"] == pytest.approx(res.max_reynolds, rel=1e-9)
@@ -70,27 +86,39 @@ def test_low_reynolds_narrow_tube_matches_hagen_poiseuille_by_hand():
     # (IAPWS 2008, Huber et al. 2009, Table 4), L = 2 m:
     # Q = pi * 3.906e-15 * 39996.7 / (8 * 1.0016e-3 * 2) = 3.064e-8 m^3/s = 1.838 mL/min,
     # Re = rho u D / mu = 998.2 * 0.156 * 0.5e-3 / 1.0016e-3 = 78 (laminar; exit loss ~0.03 %).
-    r = run(sc(source_pressure="300 mmHg",
-               parts=[{"type": "tube", "inner_diameter": "0.5 mm", "length": "2 m"}]))
+    r = run(
+        sc(
+            source_pressure="300 mmHg",
+            parts=[{"type": "tube", "inner_diameter": "0.5 mm", "length": "2 m"}],
+        )
+    )
     assert r.table["flow [mL/min]"].iloc[0] == pytest.approx(1.838, rel=0.02)
     assert r.table["regime"].iloc[0] == "laminar"
 
 
 def test_pump_pressure_drives_the_same_flow_back():
-    pumped = run(sc(flow="120 mL/min", back_pressure="8 mmHg",
-                    parts=[{"type": "set", "kind": "gravity-set"},
-                           {"type": "catheter", "gauge": 18}])).table.iloc[0]
-    driven = run(sc(source_pressure=f"{float(pumped['required pressure [mmHg]'])!r} mmHg",
-                    back_pressure="8 mmHg",
-                    parts=[{"type": "set", "kind": "gravity-set"},
-                           {"type": "catheter", "gauge": 18}])).table.iloc[0]
+    pumped = run(
+        sc(
+            flow="120 mL/min",
+            back_pressure="8 mmHg",
+            parts=[{"type": "set", "kind": "gravity-set"}, {"type": "catheter", "gauge": 18}],
+        )
+    ).table.iloc[0]
+    driven = run(
+        sc(
+            source_pressure=f"{float(pumped['required pressure [mmHg]'])!r} mmHg",
+            back_pressure="8 mmHg",
+            parts=[{"type": "set", "kind": "gravity-set"}, {"type": "catheter", "gauge": 18}],
+        )
+    ).table.iloc[0]
     assert driven["flow [mL/min]"] == pytest.approx(120.0, rel=1e-3)  # the issue's 0.1 %
 
 
 def test_pressure_limit_flag_agrees_with_the_numbers():
     t = run(sc(flow=["50 mL/min", "400 mL/min"], pressure_limit="300 mmHg")).table
     assert t["over pressure limit"].tolist() == [
-        bool(p > 300) for p in t["required pressure [mmHg]"]]
+        bool(p > 300) for p in t["required pressure [mmHg]"]
+    ]
     assert t["over pressure limit"].tolist() == [False, True]
     assert "over pressure limit" in t["flags"].iloc[1]
 
@@ -101,23 +129,39 @@ def test_time_to_deliver_at_a_constant_drive_is_volume_over_flow():
 
 
 def test_hemolysis_concern_only_for_blood_above_the_threshold():
-    t = run(sc(name="blood", fluid="whole-blood", temperature="37 degC", flow="150 mL/min",
-               parts=[{"type": "catheter", "gauge": [14, 20]}]),
-            sc(name="saline", fluid="saline-0.9", flow="150 mL/min",
-               parts=[{"type": "catheter", "gauge": [20]}])).table
+    t = run(
+        sc(
+            name="blood",
+            fluid="whole-blood",
+            temperature="37 degC",
+            flow="150 mL/min",
+            parts=[{"type": "catheter", "gauge": [14, 20]}],
+        ),
+        sc(
+            name="saline",
+            fluid="saline-0.9",
+            flow="150 mL/min",
+            parts=[{"type": "catheter", "gauge": [20]}],
+        ),
+    ).table
     for row in t.to_dict("records"):
         blood = row["fluid"] == "whole-blood"
         assert row["hemolysis concern"] == (
-            blood and row["max wall shear stress [Pa]"] > HEMOLYSIS_CONCERN_STRESS)
+            blood and row["max wall shear stress [Pa]"] > HEMOLYSIS_CONCERN_STRESS
+        )
     assert t["hemolysis concern"].any()
     assert not t[t["fluid"] == "saline-0.9"]["hemolysis concern"].any()
 
 
 # --------------------------------------------------------------------------- tolerances
 def _tol_run(width, seed=3):
-    return run(sc(head="1 m", tolerance={"seed": seed, "samples": 1000},
-                  parts=[{"type": "catheter", "gauge": 18,
-                          "tolerance": {"inner_diameter": width}}])).table.iloc[0]
+    return run(
+        sc(
+            head="1 m",
+            tolerance={"seed": seed, "samples": 1000},
+            parts=[{"type": "catheter", "gauge": 18, "tolerance": {"inner_diameter": width}}],
+        )
+    ).table.iloc[0]
 
 
 def test_tolerance_band_brackets_the_nominal_and_widens_with_the_tolerance():
@@ -138,9 +182,20 @@ def test_laminar_bore_tolerance_follows_the_fourth_power():
     # A long laminar lumen: Q ~ d^4 (Hagen-Poiseuille), so a uniform +/-5 % bore gives
     # p95/p5 of about ((1 + 0.9 * 0.05) / (1 - 0.9 * 0.05))^4 = 1.44 (5th and 95th
     # percentiles of a uniform spread lie at -/+ 0.9 of its half-width).
-    t = run(sc(source_pressure="100 mmHg", tolerance={"samples": 4000},
-               parts=[{"type": "tube", "inner_diameter": "0.4 mm", "length": "2 m",
-                       "tolerance": {"inner_diameter": "5 %"}}])).table.iloc[0]
+    t = run(
+        sc(
+            source_pressure="100 mmHg",
+            tolerance={"samples": 4000},
+            parts=[
+                {
+                    "type": "tube",
+                    "inner_diameter": "0.4 mm",
+                    "length": "2 m",
+                    "tolerance": {"inner_diameter": "5 %"},
+                }
+            ],
+        )
+    ).table.iloc[0]
     ratio = t["flow p95 [mL/min]"] / t["flow p5 [mL/min]"]
     assert ratio == pytest.approx((1.045 / 0.955) ** 4, rel=0.03)
 
@@ -207,9 +262,11 @@ def test_records_are_json_ready_and_carry_the_caution():
 
 def test_falling_head_time_lies_between_the_full_and_empty_bag_times():
     parts = [{"type": "set", "kind": "gravity-set"}, {"type": "catheter", "gauge": 18}]
-    t = run(sc(name="falling", head="1 m", head_when_empty="60 cm", volume="1 L", parts=parts),
-            sc(name="full", head="1 m", parts=parts),
-            sc(name="empty", head="60 cm", parts=parts)).table.set_index("case")
+    t = run(
+        sc(name="falling", head="1 m", head_when_empty="60 cm", volume="1 L", parts=parts),
+        sc(name="full", head="1 m", parts=parts),
+        sc(name="empty", head="60 cm", parts=parts),
+    ).table.set_index("case")
     full = 1000 / t.loc["full", "flow [mL/min]"]
     empty = 1000 / t.loc["empty", "flow [mL/min]"]
     assert full < t.loc["falling", "time to deliver [min]"] < empty
@@ -217,12 +274,25 @@ def test_falling_head_time_lies_between_the_full_and_empty_bag_times():
 
 def test_a_loosening_pressure_bag_takes_longer_than_a_steady_one():
     parts = [{"type": "set", "kind": "gravity-set"}, {"type": "catheter", "gauge": 18}]
-    t = run(sc(name="steady", head="80 cm", source_pressure="300 mmHg", volume="1 L",
-               parts=parts),
-            sc(name="loosening", head="80 cm", source_pressure="300 mmHg",
-               source_pressure_when_empty="100 mmHg", volume="1 L", parts=parts),
-            sc(name="leaking", head="80 cm", source_pressure="300 mmHg",
-               pressure_time_constant="20 min", volume="1 L", parts=parts)).table.set_index("case")
+    t = run(
+        sc(name="steady", head="80 cm", source_pressure="300 mmHg", volume="1 L", parts=parts),
+        sc(
+            name="loosening",
+            head="80 cm",
+            source_pressure="300 mmHg",
+            source_pressure_when_empty="100 mmHg",
+            volume="1 L",
+            parts=parts,
+        ),
+        sc(
+            name="leaking",
+            head="80 cm",
+            source_pressure="300 mmHg",
+            pressure_time_constant="20 min",
+            volume="1 L",
+            parts=parts,
+        ),
+    ).table.set_index("case")
     steady = t.loc["steady", "time to deliver [min]"]
     assert t.loc["loosening", "time to deliver [min]"] > steady
     assert t.loc["leaking", "time to deliver [min]"] > steady
@@ -230,8 +300,9 @@ def test_a_loosening_pressure_bag_takes_longer_than_a_steady_one():
 
 def test_vein_diameter_gives_the_catheter_to_vein_ratio():
     # 14G catheter, outer diameter 2.1 mm (catalogue, typical nominal), in a 4 mm vein: 0.525
-    t = run(sc(head="1 m", vein_diameter=["4 mm", "8 mm"],
-               parts=[{"type": "catheter", "gauge": 14}])).table
+    t = run(
+        sc(head="1 m", vein_diameter=["4 mm", "8 mm"], parts=[{"type": "catheter", "gauge": 14}])
+    ).table
     assert t["catheter-to-vein ratio [-]"].tolist() == pytest.approx([2.1 / 4, 2.1 / 8])
     assert "catheter fills 52% of the vein diameter" in t["flags"].iloc[0]
     assert "vein" not in t["flags"].iloc[1]
@@ -240,8 +311,10 @@ def test_vein_diameter_gives_the_catheter_to_vein_ratio():
 def test_a_vein_smaller_than_the_catheter_is_a_scenario_error():
     from rheoline.scenario.compare import check_scenarios
 
-    sset = parse_scenarios(doc(sc(head="1 m", vein_diameter="1.5 mm",
-                                  parts=[{"type": "catheter", "gauge": 14}])), source="v.toml")
+    sset = parse_scenarios(
+        doc(sc(head="1 m", vein_diameter="1.5 mm", parts=[{"type": "catheter", "gauge": 14}])),
+        source="v.toml",
+    )
     with pytest.raises(ScenarioError, match="field 'vein_diameter'.*smaller than vein_diameter"):
         check_scenarios(sset)
 
@@ -249,43 +322,68 @@ def test_a_vein_smaller_than_the_catheter_is_a_scenario_error():
 def test_the_dominant_tolerance_is_named():
     # 22G catheter bore +/-5 % against a 1 % set bore: the catheter's bore dominates
     # (Q ~ D^4 in the laminar part that takes most of the pressure budget).
-    t = run(sc(head="1 m", tolerance={"viscosity": "1 %", "samples": 2000},
-               parts=[{"type": "tube", "label": "set", "inner_diameter": "3 mm", "length": "1.8 m",
-                       "tolerance": {"inner_diameter": "1 %"}},
-                      {"type": "catheter", "gauge": 22,
-                       "tolerance": {"inner_diameter": "0.03 mm"}}])).table.iloc[0]
+    t = run(
+        sc(
+            head="1 m",
+            tolerance={"viscosity": "1 %", "samples": 2000},
+            parts=[
+                {
+                    "type": "tube",
+                    "label": "set",
+                    "inner_diameter": "3 mm",
+                    "length": "1.8 m",
+                    "tolerance": {"inner_diameter": "1 %"},
+                },
+                {"type": "catheter", "gauge": 22, "tolerance": {"inner_diameter": "0.03 mm"}},
+            ],
+        )
+    ).table.iloc[0]
     assert t["dominant tolerance"] == "inner_diameter of 22G catheter"
 
 
 def test_tolerance_of_a_glycerol_mixture_keeps_its_mass_fraction():
-    t = run(sc(fluid="glycerol-water", mass_fraction=[0.2, 0.5], head="1 m",
-               tolerance={"temperature": "2 degC", "samples": 500})).table
+    t = run(
+        sc(
+            fluid="glycerol-water",
+            mass_fraction=[0.2, 0.5],
+            head="1 m",
+            tolerance={"temperature": "2 degC", "samples": 500},
+        )
+    ).table
     assert (t["flow p5 [mL/min]"] < t["flow [mL/min]"]).all()
     assert (t["flow [mL/min]"] < t["flow p95 [mL/min]"]).all()
     assert t["flow [mL/min]"].iloc[0] > t["flow [mL/min]"].iloc[1]
 
 
 def test_a_catheter_given_by_its_measured_bore_is_that_lumen():
-    by_bore = run(sc(head="1 m", parts=[{"type": "catheter", "inner_diameter": "1.1 mm",
-                                         "length": "45 mm"}])).table.iloc[0]
+    by_bore = run(
+        sc(head="1 m", parts=[{"type": "catheter", "inner_diameter": "1.1 mm", "length": "45 mm"}])
+    ).table.iloc[0]
     water = rheoline.fluid("water", temperature_c=20.0)
     res = rheoline.Line([rheoline.Tube(inner_diameter=1.1e-3, length=0.045)]).solve(water, head=1.0)
     assert by_bore["flow [mL/min]"] == pytest.approx(res.flow / ML_PER_MIN, rel=1e-9)
 
 
 def test_measured_part_with_its_bench_fluid_in_several_scenarios():
-    part = {"type": "measured", "flows": ["100 mL/min", "200 mL/min"],
-            "pressure_drops": ["50 mmHg", "120 mmHg"], "test_density": "1000 kg/m^3",
-            "test_viscosity": "1 cP"}
-    t = run(sc(name="a", head="1 m", parts=[part]),
-            sc(name="b", head=["1 m", "2 m"], parts=[part])).table
+    part = {
+        "type": "measured",
+        "flows": ["100 mL/min", "200 mL/min"],
+        "pressure_drops": ["50 mmHg", "120 mmHg"],
+        "test_density": "1000 kg/m^3",
+        "test_viscosity": "1 cP",
+    }
+    t = run(
+        sc(name="a", head="1 m", parts=[part]), sc(name="b", head=["1 m", "2 m"], parts=[part])
+    ).table
     assert len(t) == 3 and (t["flow [mL/min]"] > 0).all()
     assert t["flow [mL/min]"].iloc[2] > t["flow [mL/min]"].iloc[1]
 
 
 def test_hemolysis_index_is_given_for_blood_only():
-    t = run(sc(name="saline", fluid="saline-0.9", head="1 m"),
-            sc(name="blood", fluid="whole-blood", temperature="37 degC", head="1 m")).table
+    t = run(
+        sc(name="saline", fluid="saline-0.9", head="1 m"),
+        sc(name="blood", fluid="whole-blood", temperature="37 degC", head="1 m"),
+    ).table
     assert math.isnan(t["hemolysis index [%]"].iloc[0])
     assert t["hemolysis index [%]"].iloc[1] > 0
 
@@ -309,8 +407,14 @@ def test_range_flags_mark_each_sweep_point_by_its_own_temperature():
     from rheoline.model.blood import BLOOD_TEMPERATURE_RANGE_C
 
     temps = [0.0, 20.0, 42.0, 50.0, 60.0]
-    r = run(sc(fluid="whole-blood", temperature=[f"{t:g} degC" for t in temps],
-               source_pressure="200 mmHg", parts=[{"type": "catheter", "gauge": [18, 20]}]))
+    r = run(
+        sc(
+            fluid="whole-blood",
+            temperature=[f"{t:g} degC" for t in temps],
+            source_pressure="200 mmHg",
+            parts=[{"type": "catheter", "gauge": [18, 20]}],
+        )
+    )
     low, high = BLOOD_TEMPERATURE_RANGE_C
     flagged = r.table["flags"].str.contains(OUTSIDE, regex=False).tolist()
     expected = [not low <= t <= high for t in temps for _ in (18, 20)]
@@ -320,8 +424,14 @@ def test_range_flags_mark_each_sweep_point_by_its_own_temperature():
 
 def test_a_tolerance_band_reaching_outside_a_range_flags_only_its_case():
     # 41 degC +- 2 degC samples up to 43 degC, beyond the blood models' 42 degC; 30 degC does not
-    r = run(sc(fluid="whole-blood", temperature=["30 degC", "41 degC"],
-               source_pressure="200 mmHg", tolerance={"temperature": "2 degC", "samples": 200}))
+    r = run(
+        sc(
+            fluid="whole-blood",
+            temperature=["30 degC", "41 degC"],
+            source_pressure="200 mmHg",
+            tolerance={"temperature": "2 degC", "samples": 200},
+        )
+    )
     flagged = r.table["flags"].str.contains(OUTSIDE, regex=False).tolist()
     assert flagged == [False, True]
     assert r.table["flow p5 [mL/min]"].notna().all()
@@ -331,21 +441,34 @@ def test_a_swept_tube_is_named_by_each_points_own_size():
     # 1 mm x 0.1 m vs 1 mm x 30 m at a 9 m head: the long point is dominated by the tube,
     # whose row must not carry the 30 m name on the 0.1 m point, nor "3-3 mm" for a size
     # that is one value in the whole sweep
-    r = run(sc(head="9 m", parts=[
-        {"type": "tube", "inner_diameter": "1 mm", "length": ["0.1 m", "30 m"]},
-        {"type": "tube", "inner_diameter": "3 mm", "length": "1 m"},
-        {"type": "catheter", "gauge": 18}]))
-    short, long = rheoline.Tube(inner_diameter=1e-3, length=0.1).name, rheoline.Tube(
-        inner_diameter=1e-3, length=30.0).name
+    r = run(
+        sc(
+            head="9 m",
+            parts=[
+                {"type": "tube", "inner_diameter": "1 mm", "length": ["0.1 m", "30 m"]},
+                {"type": "tube", "inner_diameter": "3 mm", "length": "1 m"},
+                {"type": "catheter", "gauge": 18},
+            ],
+        )
+    )
+    short, long = (
+        rheoline.Tube(inner_diameter=1e-3, length=0.1).name,
+        rheoline.Tube(inner_diameter=1e-3, length=30.0).name,
+    )
     plain = rheoline.Tube(inner_diameter=3e-3, length=1.0).name
     assert r.table["dominant part"].tolist()[1] == long
     parts = r.parts[r.parts["kind"] == "lumen"]["part"].tolist()
     assert parts == [short, plain, "18G catheter", long, plain, "18G catheter"]
     # per-row flags: a turbulent 5 mm tube at a 2 m head (Re well above 4000 at both lengths)
-    t = run(sc(head="2 m", parts=[{"type": "tube", "inner_diameter": "5 mm",
-                                   "length": ["0.5 m", "3 m"]}])).table
+    t = run(
+        sc(
+            head="2 m",
+            parts=[{"type": "tube", "inner_diameter": "5 mm", "length": ["0.5 m", "3 m"]}],
+        )
+    ).table
     assert t["flags"].tolist() == [
-        f"turbulent: {rheoline.Tube(inner_diameter=5e-3, length=x).name}" for x in (0.5, 3.0)]
+        f"turbulent: {rheoline.Tube(inner_diameter=5e-3, length=x).name}" for x in (0.5, 3.0)
+    ]
     # one line, one trace per part in the pack's pressure-budget chart
     from rheoline.scenario.export import _figures
 
@@ -355,8 +478,7 @@ def test_a_swept_tube_is_named_by_each_points_own_size():
 def test_a_bag_emptying_to_the_outlet_level_is_flagged_as_never_delivering():
     # Q -> 0 as the head falls to 0, and the time for the last of the volume diverges
     # (T = V ln(h_full/h_empty) / (c (h_full - h_empty)) for a linear line)
-    r = run(sc(fluid="saline-0.9", head="1 m", head_when_empty=["0 m", "20 cm"],
-               volume="500 mL"))
+    r = run(sc(fluid="saline-0.9", head="1 m", head_when_empty=["0 m", "20 cm"], volume="500 mL"))
     t = r.table
     assert t["time to deliver [min]"].tolist()[0] == math.inf
     assert math.isfinite(t["time to deliver [min]"].tolist()[1])
@@ -368,8 +490,15 @@ def test_a_bag_emptying_to_the_outlet_level_is_flagged_as_never_delivering():
 def test_notes_about_several_parts_become_one_line():
     from rheoline.scenario.compare import _condense
 
-    notes = ["14G catheter: typical bore (from memory)", "18G catheter: typical bore (from memory)",
-             "set: turbulent flow (Re up to 5000) in 1 of 2 scenarios; Churchill 1977 used",
-             "non-Newtonian fluid: Rabinowitsch-Mooney", "no forward flow"]
-    assert _condense(notes) == ["14G catheter, 18G catheter: typical bore (from memory)",
-                                "non-Newtonian fluid: Rabinowitsch-Mooney", "no forward flow"]
+    notes = [
+        "14G catheter: typical bore (from memory)",
+        "18G catheter: typical bore (from memory)",
+        "set: turbulent flow (Re up to 5000) in 1 of 2 scenarios; Churchill 1977 used",
+        "non-Newtonian fluid: Rabinowitsch-Mooney",
+        "no forward flow",
+    ]
+    assert _condense(notes) == [
+        "14G catheter, 18G catheter: typical bore (from memory)",
+        "non-Newtonian fluid: Rabinowitsch-Mooney",
+        "no forward flow",
+    ]

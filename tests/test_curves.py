@@ -10,8 +10,10 @@ from rheoline.model.line import Line
 from rheoline.model.parts import Catheter, Tube
 
 WATER = rheoline.fluid("water", temperature_c=22.0)
-LINES = {"18G": Line([Tube(inner_diameter=3e-3, length=1.8), Catheter(gauge=18)]),
-         "22G": Line([Tube(inner_diameter=3e-3, length=1.8), Catheter(gauge=22)])}
+LINES = {
+    "18G": Line([Tube(inner_diameter=3e-3, length=1.8), Catheter(gauge=18)]),
+    "22G": Line([Tube(inner_diameter=3e-3, length=1.8), Catheter(gauge=22)]),
+}
 
 
 def test_flow_vs_head_matches_single_solves():
@@ -28,10 +30,10 @@ def test_flow_vs_diameter_temperature_hematocrit():
     d = flow_curves(LINES, WATER, over="inner_diameter", values=[0.5e-3, 0.8e-3, 1.1e-3], head=1.0)
     assert np.all(np.diff(d.flows["22G"]) > 0)
     t = flow_curves(LINES, WATER, over="temperature_c", values=[5.0, 22.0, 37.0], head=1.0)
-    assert np.all(np.diff(t.flows["18G"]) > 0)      # warmer water is thinner (IAPWS 2008)
+    assert np.all(np.diff(t.flows["18G"]) > 0)  # warmer water is thinner (IAPWS 2008)
     blood = rheoline.fluid("whole-blood", hematocrit=0.45, temperature_c=37.0)
     h = flow_curves(LINES, blood, over="hematocrit", values=[0.2, 0.4, 0.6], head=1.0)
-    assert np.all(np.diff(h.flows["18G"]) < 0)      # more cells, more viscous
+    assert np.all(np.diff(h.flows["18G"]) < 0)  # more cells, more viscous
 
 
 def test_bad_curve_input():

@@ -12,7 +12,7 @@ from rheoline.model.line import GRAVITY, Line
 from rheoline.model.parts import Catheter, MeasuredPart, Tube
 
 WATER = newtonian_fluid("water", viscosity=1.0e-3, density=1000.0)
-A = 1e9   # demo data: a purely linear part, dp = A Q  [Pa s/m^3]
+A = 1e9  # demo data: a purely linear part, dp = A Q  [Pa s/m^3]
 LINEAR = Line([MeasuredPart(flows=[1e-6, 2e-6], pressure_drops=[A * 1e-6, A * 2e-6])])
 
 
@@ -86,8 +86,7 @@ def test_falling_head_with_a_back_pressure_just_below_the_empty_drive():
     pb = 1000.0 * GRAVITY * he * (1 - 1e-6)
     d_full, d_empty = 1000.0 * GRAVITY * hf - pb, 1000.0 * GRAVITY * he - pb
     r = falling_head_delivery_time(LINEAR, WATER, v, hf, he, back_pressure=pb)
-    assert r.time == pytest.approx(v * A * np.log(d_full / d_empty) / (d_full - d_empty),
-                                   rel=1e-7)
+    assert r.time == pytest.approx(v * A * np.log(d_full / d_empty) / (d_full - d_empty), rel=1e-7)
 
 
 def test_pressure_bag_ending_just_above_the_yield_pressure_matches_adaptive_quadrature():
@@ -102,7 +101,7 @@ def test_pressure_bag_ending_just_above_the_yield_pressure_matches_adaptive_quad
     paste = Fluid("paste", temperature_c=20.0, density=1000.0, rheology=Casson(0.01, 3e-3))
     line = Line([Tube(inner_diameter=3e-4, length=0.5)])
     yield_p = line.yield_pressure(paste)
-    assert yield_p == pytest.approx(4 * 0.5 * 0.01 / 3e-4)        # 4 L tau_y / D (by hand)
+    assert yield_p == pytest.approx(4 * 0.5 * 0.01 / 3e-4)  # 4 L tau_y / D (by hand)
     p_full, v = 10.0 * yield_p, 1e-8
     p_empty = yield_p * (1.0 + 1e-4)
     r = pressure_bag_delivery_time(line, paste, v, p_full, p_empty)
@@ -111,8 +110,13 @@ def test_pressure_bag_ending_just_above_the_yield_pressure_matches_adaptive_quad
         excess = np.exp(log_excess)
         return excess / line.solve(paste, source_pressure=yield_p + excess).flow
 
-    ref = quad(integrand, np.log(p_empty - yield_p), np.log(p_full - yield_p),
-               epsrel=1e-10, limit=200)[0] * v / (p_full - p_empty)
+    ref = (
+        quad(
+            integrand, np.log(p_empty - yield_p), np.log(p_full - yield_p), epsrel=1e-10, limit=200
+        )[0]
+        * v
+        / (p_full - p_empty)
+    )
     assert r.time == pytest.approx(ref, rel=1e-6)
     assert r.flags == ()
 
@@ -122,8 +126,9 @@ def test_delivery_broadcasts_volume_heads_and_swept_parts():
     heads = np.array([[1.0], [2.0]])
     r = falling_head_delivery_time(line, WATER, 1e-4, heads, 0.01)
     assert r.time.shape == (2, 3)
-    one = falling_head_delivery_time(Line([Tube(inner_diameter=2e-3, length=1.0)]), WATER,
-                                     1e-4, 2.0, 0.01)
+    one = falling_head_delivery_time(
+        Line([Tube(inner_diameter=2e-3, length=1.0)]), WATER, 1e-4, 2.0, 0.01
+    )
     assert r.time[1, 1] == pytest.approx(one.time, rel=1e-9)
 
 
@@ -136,19 +141,26 @@ def test_delivery_flags_a_time_whose_accuracy_is_not_assured(monkeypatch):
     line = Line([Tube(inner_diameter=5e-3, length=1.0)])
     r = delivery.pressure_bag_delivery_time(line, WATER, 1e-4, 4e4, np.array([4e2, 4e-3]))
     assert np.all(r.relative_error > 1e-12)
-    assert any(re.search(r"accuracy not assured in 2 of 2 scenarios .* as little as 1\.0e-07 "
-                         r"of the initial one", f) for f in r.flags)
+    assert any(
+        re.search(
+            r"accuracy not assured in 2 of 2 scenarios .* as little as 1\.0e-07 "
+            r"of the initial one",
+            f,
+        )
+        for f in r.flags
+    )
 
 
 def test_a_delivery_that_never_finishes_says_so():
     # the drive ends at the back pressure (empty head at the outlet level): the time is inf
     # and the result says why in words
-    r = falling_head_delivery_time(LINEAR, WATER, 1e-3, np.array([1.0, 1.0]),
-                                   np.array([0.5, 0.0]))
+    r = falling_head_delivery_time(LINEAR, WATER, 1e-3, np.array([1.0, 1.0]), np.array([0.5, 0.0]))
     assert np.isinf(r.time[1]) and np.isfinite(r.time[0])
-    assert r.flags == ("the flow stops before the volume is delivered in 1 of 2 scenarios (the "
-                       "drive falls to the back pressure, or to a yield-stress fluid's yield "
-                       "pressure): time is inf",)
+    assert r.flags == (
+        "the flow stops before the volume is delivered in 1 of 2 scenarios (the "
+        "drive falls to the back pressure, or to a yield-stress fluid's yield "
+        "pressure): time is inf",
+    )
     beyond = pressure_bag_delivery_time(LINEAR, WATER, 1.3e-3, 2e4, time_constant=60.0)
     assert np.isinf(beyond.time)
     assert any("the flow stops before the volume is delivered" in f for f in beyond.flags)

@@ -58,27 +58,50 @@ def _toml_name(name):
 def fake_run(names):
     """A RunResult with the real column layout, built without the line engine."""
     doc = "format_version = 1\n" + "".join(
-        f"[[scenario]]\nname = {_toml_name(n)}\nfluid = \"water\"\nhead = \"1 m\"\n"
-        f"[[scenario.part]]\ntype = \"catheter\"\ngauge = 18\nlabel = {_toml_name(n[:100])}\n"
-        for n in names)
+        f'[[scenario]]\nname = {_toml_name(n)}\nfluid = "water"\nhead = "1 m"\n'
+        f'[[scenario.part]]\ntype = "catheter"\ngauge = 18\nlabel = {_toml_name(n[:100])}\n'
+        for n in names
+    )
     sset = loads_scenarios(doc, source="hostile.toml")
     rows, prow = [], []
     for i, n in enumerate(names):
         row = dict.fromkeys(_COLUMNS, np.nan)
-        row.update({"case": n, "scenario": n, "point": "", "fluid": "water", "drive": "gravity",
-                    "regime": "laminar", "dominant part": n[:100], "flags": n,
-                    "flow [mL/min]": 50.0 + i, "hemolysis concern": False,
-                    "over pressure limit": None, "gauge": 18})
+        row.update(
+            {
+                "case": n,
+                "scenario": n,
+                "point": "",
+                "fluid": "water",
+                "drive": "gravity",
+                "regime": "laminar",
+                "dominant part": n[:100],
+                "flags": n,
+                "flow [mL/min]": 50.0 + i,
+                "hemolysis concern": False,
+                "over pressure limit": None,
+                "gauge": 18,
+            }
+        )
         rows.append(row)
         p = dict.fromkeys(_PART_COLUMNS, np.nan)
-        p.update({"case": n, "part": n[:100], "kind": "lumen", "regime": "laminar",
-                  "pressure drop [mmHg]": 70.0})
+        p.update(
+            {
+                "case": n,
+                "part": n[:100],
+                "kind": "lumen",
+                "regime": "laminar",
+                "pressure drop [mmHg]": 70.0,
+            }
+        )
         prow.append(p)
     table = pd.DataFrame(rows, columns=_COLUMNS)
     parts = pd.DataFrame(prow, columns=_PART_COLUMNS)
-    inputs = pd.DataFrame({"scenario": names, "field": ["name"] * len(names), "value as written": names})
-    assumptions = pd.DataFrame({"topic": ["t"], "model": [HOSTILE[0]], "reference": ["r"],
-                                "notes": ["n"]})
+    inputs = pd.DataFrame(
+        {"scenario": names, "field": ["name"] * len(names), "value as written": names}
+    )
+    assumptions = pd.DataFrame(
+        {"topic": ["t"], "model": [HOSTILE[0]], "reference": ["r"], "notes": ["n"]}
+    )
     return RunResult(sset, table, parts, inputs, assumptions, warnings=(HOSTILE[1],))
 
 
@@ -273,25 +296,38 @@ def _edit_no_manifest(folder):
     (folder / "manifest.json").unlink()
 
 
-@pytest.mark.parametrize("edit", [_edit_added_file, _edit_changed_file, _edit_subfolder,
-                                  _edit_foreign_manifest, _edit_manifest_lists_outside,
-                                  _edit_no_manifest])
+@pytest.mark.parametrize(
+    "edit",
+    [
+        _edit_added_file,
+        _edit_changed_file,
+        _edit_subfolder,
+        _edit_foreign_manifest,
+        _edit_manifest_lists_outside,
+        _edit_no_manifest,
+    ],
+)
 def test_force_replaces_only_an_unchanged_pack(tmp_path, edit):
     folder = write_pack(fake_run(["first"]), tmp_path / "pack")
     assert export.is_review_pack(folder)
     edit(folder)
     before = _tree(folder)
     assert not export.is_review_pack(folder)
-    with pytest.raises(PackExistsError, match=r"pack.*is not a rheoline review pack.*choose a "
-                                              r"new folder"):
+    with pytest.raises(
+        PackExistsError,
+        match=r"pack.*is not a rheoline review pack.*choose a "
+        r"new folder",
+    ):
         write_pack(fake_run(["second"]), folder, force=True)
     assert _tree(folder) == before
     assert [p.name for p in tmp_path.iterdir()] == ["pack"]
 
 
 def _tree(folder):
-    return {str(p.relative_to(folder)): p.read_bytes() if p.is_file() else None
-            for p in sorted(folder.rglob("*"))}
+    return {
+        str(p.relative_to(folder)): p.read_bytes() if p.is_file() else None
+        for p in sorted(folder.rglob("*"))
+    }
 
 
 def test_force_never_replaces_an_empty_or_linked_folder(tmp_path):
@@ -336,16 +372,17 @@ def test_the_report_shows_hidden_format_characters_of_the_file(tmp_path):
     # a comment may hold a right-to-left override (names refuse it); the echo shows it
     from rheoline.scenario.compare import run_scenarios
 
-    text = ('format_version = 1\n# 18G \u202e cart\n[[scenario]]\nname = "a"\n'
-            'fluid = "water"\nhead = "1 m"\n[[scenario.part]]\ntype = "catheter"\ngauge = 18\n')
+    text = (
+        'format_version = 1\n# 18G \u202e cart\n[[scenario]]\nname = "a"\n'
+        'fluid = "water"\nhead = "1 m"\n[[scenario.part]]\ntype = "catheter"\ngauge = 18\n'
+    )
     folder = write_pack(run_scenarios(loads_scenarios(text, source="c.toml")), tmp_path / "p")
     page = (folder / "report.html").read_text(encoding="utf-8")
     assert "# 18G [U+202E] cart" in page and "\u202e" not in page
     assert (folder / "scenario-c.toml").read_text(encoding="utf-8") == text  # copy as given
 
 
-def test_a_pack_that_cannot_be_written_is_a_scenario_error_and_an_os_error(tmp_path,
-                                                                           monkeypatch):
+def test_a_pack_that_cannot_be_written_is_a_scenario_error_and_an_os_error(tmp_path, monkeypatch):
     from rheoline.errors import ScenarioError
 
     blocker = tmp_path / "a file"
@@ -354,10 +391,16 @@ def test_a_pack_that_cannot_be_written_is_a_scenario_error_and_an_os_error(tmp_p
         write_pack(fake_run(["x"]), blocker / "pack")
     assert isinstance(info.value, ScenarioError) and isinstance(info.value, OSError)
     assert blocker.read_text() == "mine"
-    monkeypatch.setattr(export, "_write_xlsx", lambda *a: (_ for _ in ()).throw(
-        PermissionError(13, "Permission denied")))
-    with pytest.raises(export.OutputError, match=r"pack: cannot write the review pack: "
-                                                 r"Permission denied"):
+    monkeypatch.setattr(
+        export,
+        "_write_xlsx",
+        lambda *a: (_ for _ in ()).throw(PermissionError(13, "Permission denied")),
+    )
+    with pytest.raises(
+        export.OutputError,
+        match=r"pack: cannot write the review pack: "
+        r"Permission denied",
+    ):
         write_pack(fake_run(["x"]), tmp_path / "pack")
     assert sorted(p.name for p in tmp_path.iterdir()) == ["a file"]
 

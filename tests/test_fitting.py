@@ -93,15 +93,20 @@ def test_power_law_data_not_newtonian_and_recovered():
     n, se = fit.parameters["flow_index"], fit.standard_errors["flow_index"]
     assert abs(n - 0.7) < 3 * se + 1e-3
     assert fit.parameters["consistency"] == pytest.approx(0.02, rel=0.05)
-    assert fit.flow_index == pytest.approx(n, rel=1e-6)  # the straight-line fit is the power-law fit
+    assert fit.flow_index == pytest.approx(
+        n, rel=1e-6
+    )  # the straight-line fit is the power-law fit
 
 
 def test_carreau_blood_like_data_recovered():
     # parameters of Cho & Kensey 1991 (from memory) used only to generate the data
     truth = Carreau(mu_zero=0.056, mu_inf=0.00345, relaxation_time=3.313, flow_index=0.3568)
     rate = np.logspace(-2, 3, 30)
-    fit = fit_rheology(rate, viscosity=truth.viscosity(rate) * np.exp(np.random.default_rng(3).normal(0, 0.01, 30)),
-                       models=["newtonian", "power-law", "carreau", "carreau-yasuda"])
+    fit = fit_rheology(
+        rate,
+        viscosity=truth.viscosity(rate) * np.exp(np.random.default_rng(3).normal(0, 0.01, 30)),
+        models=["newtonian", "power-law", "carreau", "carreau-yasuda"],
+    )
     assert fit.best in ("carreau", "carreau-yasuda")
     c = fit.fits["carreau"].parameters
     assert c["mu_zero"] == pytest.approx(0.056, rel=0.05)
@@ -116,7 +121,9 @@ def test_carreau_blood_like_data_recovered():
 def test_casson_data_recovered():
     truth = Casson(yield_stress=0.005, casson_viscosity=0.0035)
     rate = np.logspace(-1, 3, 25)
-    fit = fit_rheology(rate, noisy(truth, rate, 0.01, seed=5), models=["newtonian", "power-law", "casson"])
+    fit = fit_rheology(
+        rate, noisy(truth, rate, 0.01, seed=5), models=["newtonian", "power-law", "casson"]
+    )
     assert fit.best == "casson"
     assert fit.parameters["yield_stress"] == pytest.approx(0.005, rel=0.05)
     assert fit.parameters["casson_viscosity"] == pytest.approx(0.0035, rel=0.03)
@@ -143,11 +150,15 @@ def test_fit_input_errors():
         fit_rheology(rate, rate, viscosity=rate)
     with pytest.raises(InputRangeError, match="same length, got 3 and 2"):
         fit_rheology(rate, [1.0, 2.0])
-    with pytest.raises(InputRangeError, match="at least 3 points at 2 or more distinct shear rates"):
+    with pytest.raises(
+        InputRangeError, match="at least 3 points at 2 or more distinct shear rates"
+    ):
         fit_rheology([5.0, 5.0, 5.0], [1.0, 1.1, 0.9])
     with pytest.raises(InputRangeError, match="shear_stress must be greater than 0"):
         fit_rheology(rate, [1.0, -2.0, 3.0])
-    with pytest.raises(InputRangeError, match=r"'carrau' is not a rheology model; did you mean 'carreau'"):
+    with pytest.raises(
+        InputRangeError, match=r"'carrau' is not a rheology model; did you mean 'carreau'"
+    ):
         fit_rheology(rate, rate, models=["carrau"])
     with pytest.raises(InputRangeError, match="confidence must lie between"):
         fit_rheology(rate, rate, confidence=1.5)
@@ -177,7 +188,9 @@ def test_andrade_on_water_interpolates():
 def test_vft_on_glycerol_like_data():
     # synthetic VFT data with seeded 0.5 % noise: a = -11, b = 1500 K, t0 = -150 degC
     temps = np.linspace(0.0, 60.0, 9)
-    mu = np.exp(-11.0 + 1500.0 / (temps + 150.0)) * np.exp(np.random.default_rng(2).normal(0, 0.005, 9))
+    mu = np.exp(-11.0 + 1500.0 / (temps + 150.0)) * np.exp(
+        np.random.default_rng(2).normal(0, 0.005, 9)
+    )
     fit = fit_viscosity_temperature(temps, mu, "vft")
     assert fit.viscosity(30.0) == pytest.approx(np.exp(-11.0 + 1500.0 / 180.0), rel=0.01)
     assert np.all(np.isfinite(list(fit.standard_errors.values())))

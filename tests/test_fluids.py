@@ -9,8 +9,18 @@ from rheoline.errors import InputRangeError, RangeWarning
 from rheoline.model import blood, fluids, viscosity
 from rheoline.model.fluid_base import Fluid
 
-REQUIRED = ["water", "saline-0.9", "dextrose-5", "lactated-ringers", "plasma", "albumin-5",
-            "albumin-20", "whole-blood", "packed-red-cells", "glycerol-water"]
+REQUIRED = [
+    "water",
+    "saline-0.9",
+    "dextrose-5",
+    "lactated-ringers",
+    "plasma",
+    "albumin-5",
+    "albumin-20",
+    "whole-blood",
+    "packed-red-cells",
+    "glycerol-water",
+]
 
 
 def test_required_names_listed():
@@ -84,7 +94,9 @@ def test_glycerol_water_options():
 
 
 def test_unknown_name_suggests_near_miss():
-    with pytest.raises(InputRangeError, match=r"fluid 'saline' is not in the library; did you mean 'saline-0\.9'"):
+    with pytest.raises(
+        InputRangeError, match=r"fluid 'saline' is not in the library; did you mean 'saline-0\.9'"
+    ):
         fluids.fluid("saline")
     with pytest.raises(InputRangeError, match=r"did you mean 'whole-blood'.*Known fluids: water, "):
         fluids.fluid("whole-bloood")
@@ -95,14 +107,18 @@ def test_name_normalization():
 
 
 def test_unknown_option_lists_options():
-    with pytest.raises(InputRangeError, match=r"'whole-blood' has no option 'hct'.*options: hematocrit, model"):
+    with pytest.raises(
+        InputRangeError, match=r"'whole-blood' has no option 'hct'.*options: hematocrit, model"
+    ):
         fluids.fluid("whole-blood", hct=0.4)
     with pytest.raises(InputRangeError, match=r"'water' has no option 'hematocrit'.*options: none"):
         fluids.fluid("water", hematocrit=0.4)
 
 
 def test_hematocrit_percent_suggests_fraction():
-    with pytest.raises(ValueError, match=r"hematocrit must be a fraction from 0 to 1, got 45; .*pass 0\.45"):
+    with pytest.raises(
+        ValueError, match=r"hematocrit must be a fraction from 0 to 1, got 45; .*pass 0\.45"
+    ):
         fluids.fluid("whole-blood", hematocrit=45)
 
 
@@ -133,9 +149,14 @@ def test_user_fluid_andrade_reproduces_water_between_points(cleanup):
     # source: IAPWS 2008 water (this package, itself checked against iapws): Andrade through
     # 10, 25 and 40 degC reproduces 30 degC within 1 % (water follows Andrade closely over a few tens of K)
     temps = np.array([10.0, 25.0, 40.0])
-    f = fluids.user_fluid_from_temperatures("bench water", temps, viscosity.water_viscosity(temps),
-                                            viscosity.water_density(temps), temperature_c=30.0,
-                                            register=True)
+    f = fluids.user_fluid_from_temperatures(
+        "bench water",
+        temps,
+        viscosity.water_viscosity(temps),
+        viscosity.water_density(temps),
+        temperature_c=30.0,
+        register=True,
+    )
     cleanup.append("bench-water")
     assert f.viscosity() == pytest.approx(viscosity.water_viscosity(30.0), rel=0.01)
     assert f.density == pytest.approx(viscosity.water_density(30.0), rel=1e-3)
@@ -151,17 +172,21 @@ def test_user_fluid_vft_recovers_parameters():
     temps = np.array([0.0, 20.0, 40.0, 60.0, 80.0])
     mu = np.exp(-10.0 + 600.0 / (temps + 120.0))
     from rheoline.model.fitting import fit_viscosity_temperature
+
     fit = fit_viscosity_temperature(temps, mu, "vft")
     assert fit.parameters["a"] == pytest.approx(-10.0, rel=1e-5)
     assert fit.parameters["b"] == pytest.approx(600.0, rel=1e-5)
     assert fit.parameters["t0_c"] == pytest.approx(-120.0, rel=1e-5)
-    f = fluids.user_fluid_from_temperatures("syrup", temps, mu, 1300.0, model="vft", temperature_c=50.0)
+    f = fluids.user_fluid_from_temperatures(
+        "syrup", temps, mu, 1300.0, model="vft", temperature_c=50.0
+    )
     assert f.viscosity() == pytest.approx(np.exp(-10.0 + 600.0 / 170.0), rel=1e-6)
 
 
 def test_register_rules(cleanup):
     def build(temperature_c):
         return fluids.fluid("water", temperature_c)
+
     with pytest.raises(InputRangeError, match="built-in fluid and cannot be replaced"):
         fluids.register_fluid("water", build)
     fluids.register_fluid("my-rinse", build)
@@ -174,16 +199,22 @@ def test_register_rules(cleanup):
 
 
 def test_user_fluid_input_errors():
-    with pytest.raises(InputRangeError, match="andrade law needs viscosities at 2 or more distinct"):
+    with pytest.raises(
+        InputRangeError, match="andrade law needs viscosities at 2 or more distinct"
+    ):
         fluids.user_fluid_from_temperatures("x", [20.0], [1e-3], 1000.0)
     with pytest.raises(InputRangeError, match="vft law needs viscosities at 3"):
         fluids.user_fluid_from_temperatures("x", [20.0, 30.0], [1e-3, 0.8e-3], 1000.0, model="vft")
     with pytest.raises(InputRangeError, match="did you mean 'andrade'"):
-        fluids.user_fluid_from_temperatures("x", [20.0, 30.0], [1e-3, 0.8e-3], 1000.0, model="andrad")
+        fluids.user_fluid_from_temperatures(
+            "x", [20.0, 30.0], [1e-3, 0.8e-3], 1000.0, model="andrad"
+        )
     with pytest.raises(InputRangeError, match="viscosities must be greater than 0"):
         fluids.user_fluid_from_temperatures("x", [20.0, 30.0], [1e-3, -1.0], 1000.0)
     with pytest.raises(InputRangeError, match="density must be one value or one per temperature"):
-        fluids.user_fluid_from_temperatures("x", [20.0, 30.0, 40.0], [1e-3, 0.8e-3, 0.7e-3], [1000.0, 990.0])
+        fluids.user_fluid_from_temperatures(
+            "x", [20.0, 30.0, 40.0], [1e-3, 0.8e-3, 0.7e-3], [1000.0, 990.0]
+        )
 
 
 def test_describe_names_values_with_units():

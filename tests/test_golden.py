@@ -43,10 +43,10 @@ def _same(got, want, where):
             return
         assert got == want, f"{where}: {got!r} != {want!r}"
     elif isinstance(want, (int, float)):
-        assert isinstance(got, (int, float)) and not isinstance(got, bool), \
+        assert isinstance(got, (int, float)) and not isinstance(got, bool), (
             f"{where}: {got!r} is not a number (golden {want!r})"
-        np.testing.assert_allclose(got, want, rtol=1e-12, atol=0, equal_nan=True,
-                                   err_msg=where)
+        )
+        np.testing.assert_allclose(got, want, rtol=1e-12, atol=0, equal_nan=True, err_msg=where)
     else:  # pragma: no cover - the golden files hold JSON scalars only
         raise AssertionError(f"{where}: unexpected golden value {want!r}")
 

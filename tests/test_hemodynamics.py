@@ -82,7 +82,9 @@ def test_indexed_worked_examples():
     assert svri.wood_units == pytest.approx(22.5, rel=1e-15)
     assert svri.dyn_s_per_cm5 == pytest.approx(1799.847, rel=1e-12)
     # PVRI = (20 - 12) / (4 / 2) = 4 WU m^2
-    assert pulmonary_vascular_resistance_index(20.0, 12.0, 4.0, 2.0).wood_units == pytest.approx(4.0)
+    assert pulmonary_vascular_resistance_index(20.0, 12.0, 4.0, 2.0).wood_units == pytest.approx(
+        4.0
+    )
 
 
 def test_vectorized_over_arrays():
@@ -142,8 +144,9 @@ def test_mosteller_and_dubois_agree_for_average_adults():
     # a few percent for ordinary adult builds (from memory).
     h = np.array([160.0, 170.0, 180.0])
     w = np.array([55.0, 70.0, 85.0])
-    np.testing.assert_allclose(body_surface_area(h, w), body_surface_area(h, w, "dubois"),
-                               rtol=0.03)
+    np.testing.assert_allclose(
+        body_surface_area(h, w), body_surface_area(h, w, "dubois"), rtol=0.03
+    )
 
 
 @given(st.floats(100.0, 220.0), st.floats(20.0, 200.0), st.floats(1.01, 2.0))

@@ -28,6 +28,7 @@ def _line():
 
 # --- against Hagen-Poiseuille ---------------------------------------------------------------
 
+
 def test_long_narrow_lumen_is_poiseuille():
     # Hagen-Poiseuille holds for long lumens at low Re; entrance/exit terms are small there
     tube = Tube(inner_diameter=0.3e-3, length=1.0)
@@ -57,11 +58,14 @@ def test_power_law_fluid_long_tube_is_exact():
 
 # --- facts of the trade -----------------------------------------------------------------------
 
+
 def test_larger_bore_much_more_gravity_flow():
     # common practice, no source: each step down in gauge number buys a lot of flow;
     # 14G carries over ten times what 26G does under the same head
-    flows = {g: Line([Catheter(gauge=g)]).solve(WATER_22, head=0.525).flow
-             for g in catalogue.CATHETER_GAUGES}
+    flows = {
+        g: Line([Catheter(gauge=g)]).solve(WATER_22, head=0.525).flow
+        for g in catalogue.CATHETER_GAUGES
+    }
     gauges = sorted(flows)
     assert all(flows[a] > 1.3 * flows[b] for a, b in zip(gauges, gauges[1:], strict=False))
     assert flows[14] > 10 * flows[26]
@@ -96,14 +100,23 @@ def test_regime_transition_in_a_line():
 
 # --- bookkeeping, inverse, vectorization --------------------------------------------------------
 
+
 def test_result_table_and_bookkeeping():
     result = _line().solve(WATER_22, head=1.0, back_pressure=500.0)
     drive = WATER_22.density * GRAVITY * 1.0 - 500.0
     assert result.part_pressure_drops.sum() + result.exit_pressure_drop == pytest.approx(drive)
     table = result.parts
-    for column in ("part", "reynolds", "regime", "pressure_drop [Pa]", "wall_shear_stress [Pa]",
-                   "wall_shear_rate [1/s]", "mean_velocity [m/s]", "entrance_length [m]",
-                   "share [-]"):
+    for column in (
+        "part",
+        "reynolds",
+        "regime",
+        "pressure_drop [Pa]",
+        "wall_shear_stress [Pa]",
+        "wall_shear_rate [1/s]",
+        "mean_velocity [m/s]",
+        "entrance_length [m]",
+        "share [-]",
+    ):
         assert column in table.columns
     assert list(table["part"]) == ["tube 3 mm x 1.8 m", "18G catheter", "exit"]
     assert table["pressure_drop [Pa]"].sum() == pytest.approx(drive)
@@ -114,7 +127,8 @@ def test_result_table_and_bookkeeping():
     # Newtonian wall shear: tau = 8 mu u / D in laminar flow
     u = result.part_mean_velocity[0]
     assert result.part_wall_shear_stress[0] == pytest.approx(
-        8 * WATER_22.viscosity() * u / 3e-3, rel=1e-6)
+        8 * WATER_22.viscosity() * u / 3e-3, rel=1e-6
+    )
     assert result.part_wall_shear_rate[0] == pytest.approx(8 * u / 3e-3, rel=1e-6)
 
 
@@ -151,9 +165,10 @@ def test_drops_add_up_and_inverse_round_trip(head, diameter, length, viscosity):
     drive = 1000.0 * GRAVITY * head
     assert np.isfinite(result.flow) and result.flow > 0
     assert result.part_pressure_drops.sum() + result.exit_pressure_drop == pytest.approx(
-        drive, rel=1e-9)
+        drive, rel=1e-9
+    )
     back = line.solve(fluid, flow=result.flow)
-    assert back.required_pressure == pytest.approx(drive, rel=1e-3)     # 0.1 % round trip
+    assert back.required_pressure == pytest.approx(drive, rel=1e-3)  # 0.1 % round trip
     assert back.required_pressure == pytest.approx(drive, rel=1e-8)
 
 
@@ -183,8 +198,9 @@ def test_vectorized_equals_scalar():
     assert vec.flow.shape == (4,)
     assert vec.part_pressure_drops.shape == (3, 4)
     for i in range(4):
-        one = Line([Tube(inner_diameter=ids[i], length=1.8), Catheter(gauge=18),
-                    Fitting(k=0.8)]).solve(WATER_22, head=heads[i])
+        one = Line(
+            [Tube(inner_diameter=ids[i], length=1.8), Catheter(gauge=18), Fitting(k=0.8)]
+        ).solve(WATER_22, head=heads[i])
         assert vec.flow[i] == pytest.approx(one.flow, rel=1e-9)
         assert vec.regime[i] == one.regime
         assert vec.dominant_part[i] == one.dominant_part
@@ -208,9 +224,9 @@ def test_fittings_and_measured_parts_in_a_line():
     result = line.solve(PLAIN, flow=2e-6)
     drops = dict(zip(line.part_names, result.part_pressure_drops, strict=True))
     assert drops["filter"] == pytest.approx(3e9 * 2e-6 + 2e14 * 4e-12, rel=1e-6)
-    u = 2e-6 / (np.pi * (3e-3) ** 2 / 4)          # stopcock K refers to the upstream tube
+    u = 2e-6 / (np.pi * (3e-3) ** 2 / 4)  # stopcock K refers to the upstream tube
     assert drops["stopcock"] == pytest.approx(2.0 * 1000.0 * u**2 / 2)
-    assert result.part_reynolds[2] != result.part_reynolds[2]      # NaN: no bore
+    assert result.part_reynolds[2] != result.part_reynolds[2]  # NaN: no bore
 
 
 def test_blood_line_round_trip_and_flags():
@@ -257,15 +273,16 @@ def test_bad_input():
 
 
 def test_model_import_does_not_load_pandas():
-    code = ("import sys, rheoline.model.line, rheoline.model.parts; "
-            "print('pandas' in sys.modules)")
+    code = "import sys, rheoline.model.line, rheoline.model.parts; print('pandas' in sys.modules)"
     out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, check=True)
     assert out.stdout.strip() == "False"
 
 
-@pytest.mark.parametrize("fluid", [WATER_22, rheoline.fluid("packed-red-cells", hematocrit=0.65,
-                                                            temperature_c=4.0)],
-                         ids=["water", "packed-red-cells"])
+@pytest.mark.parametrize(
+    "fluid",
+    [WATER_22, rheoline.fluid("packed-red-cells", hematocrit=0.65, temperature_c=4.0)],
+    ids=["water", "packed-red-cells"],
+)
 def test_shared_characteristic_path_equals_newton_path(fluid, monkeypatch):
     # many drives through one line: the tabulated-characteristic path must match the
     # per-scenario Newton path (same physics) within its checked interpolation error
@@ -275,7 +292,7 @@ def test_shared_characteristic_path_equals_newton_path(fluid, monkeypatch):
     line = _line()
     fast = line.solve(fluid, head=heads)
     fast_back = line.solve(fluid, flow=fast.flow)
-    assert fast.iterations == 0                       # the curve path was taken
+    assert fast.iterations == 0  # the curve path was taken
     monkeypatch.setattr(line_module, "_CURVE_MIN_SCENARIOS", 10**9)
     slow = line.solve(fluid, head=heads)
     slow_back = line.solve(fluid, flow=fast.flow)
@@ -293,10 +310,14 @@ def test_yield_stress_fluid_needs_the_yield_pressure():
     # drive exceeds 4 L tau_y / D; the losses at vanishing flow equal that yield pressure
     from rheoline.model.rheology import Casson
 
-    fluid = Fluid(name="casson", temperature_c=20.0, density=1050.0,
-                  rheology=Casson(yield_stress=0.01, casson_viscosity=0.004))
+    fluid = Fluid(
+        name="casson",
+        temperature_c=20.0,
+        density=1050.0,
+        rheology=Casson(yield_stress=0.01, casson_viscosity=0.004),
+    )
     line = Line([Tube(inner_diameter=0.2e-3, length=2.0)])
-    yield_pressure = 4 * 2.0 * 0.01 / 0.2e-3                  # 400 Pa, by hand
+    yield_pressure = 4 * 2.0 * 0.01 / 0.2e-3  # 400 Pa, by hand
     below = line.solve(fluid, source_pressure=0.9 * yield_pressure)
     above = line.solve(fluid, source_pressure=3.0 * yield_pressure)
     assert below.flow == 0.0 and any("no forward flow" in f for f in below.flags)
@@ -323,7 +344,8 @@ def test_hemolysis_index_is_giersiepen_at_wall_stress_and_residence_time():
     tau = result.part_wall_shear_stress[0]
     t = 0.03 / result.part_mean_velocity[0]
     assert result.hemolysis_index == pytest.approx(
-        giersiepen_1990_hemolysis_index(tau, t, warn=False), rel=1e-9)
+        giersiepen_1990_hemolysis_index(tau, t, warn=False), rel=1e-9
+    )
     faster = Line([Needle(gauge=22, length=0.03)]).solve(blood, flow=200e-6 / 60)
     assert faster.max_wall_shear_stress > result.max_wall_shear_stress
 
@@ -331,7 +353,8 @@ def test_hemolysis_index_is_giersiepen_at_wall_stress_and_residence_time():
 def test_catalogue_dimensions_are_flagged():
     typical = Line([Catheter(gauge=20)]).solve(WATER_22, head=1.0)
     measured = Line([Catheter(gauge=20, inner_diameter=0.82e-3, length=0.030)]).solve(
-        WATER_22, head=1.0)
+        WATER_22, head=1.0
+    )
     assert any("typical catalogue bore/length (from memory)" in f for f in typical.flags)
     assert not any("catalogue" in f for f in measured.flags)
     needle = Line([Needle(gauge=25)]).solve(WATER_22, head=1.0)
@@ -375,12 +398,14 @@ def test_api_mistakes_name_the_argument_and_the_fix():
         Line([Tube(inner_diameter=np.full(3, 1e-3), length=1.0)]).solve(WATER_22, head=np.ones(4))
     with pytest.raises(InputRangeError, match=r"fluid\.temperature_c \(2,\).*length \(3,\)"):
         Line([Tube(inner_diameter=1e-3, length=np.ones(3))]).solve(
-            rheoline.fluid("water", temperature_c=np.array([20.0, 30.0])), head=1.0)
+            rheoline.fluid("water", temperature_c=np.array([20.0, 30.0])), head=1.0
+        )
     with pytest.raises(InputRangeError, match=r"back_pressure \(3,\), flow \(2,\)"):
         line.solve(WATER_22, flow=np.ones(2) * 1e-6, back_pressure=np.zeros(3))
     # shapes that broadcast still solve: a 4 x 3 grid of heads against bores
     grid = Line([Tube(inner_diameter=np.full(3, 1e-3), length=1.0)]).solve(
-        WATER_22, head=np.ones((4, 1)))
+        WATER_22, head=np.ones((4, 1))
+    )
     assert np.shape(grid.flow) == (4, 3)
 
 

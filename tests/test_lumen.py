@@ -30,6 +30,7 @@ ML_PER_MIN = 1e-6 / 60.0
 
 # --- Hagen-Poiseuille -------------------------------------------------------------------
 
+
 def test_poiseuille_worked_example():
     # Worked by hand (Hagen-Poiseuille, Q = pi r^4 dp / (8 mu L)):
     # dp = 1000 Pa, r = 0.5 mm, L = 0.1 m, mu = 1.0 mPa s
@@ -65,6 +66,7 @@ def test_reynolds_number():
 
 # --- friction across regimes --------------------------------------------------------------
 
+
 @pytest.mark.parametrize("relative_roughness", [0.0, 1e-5, 1e-4, 1e-3, 1e-2, 0.05])
 def test_churchill_matches_fluids_library(relative_roughness):
     # reference: fluids.friction.Churchill_1977 (Churchill, Chem. Eng. 84 (1977) 91-92)
@@ -77,7 +79,7 @@ def test_churchill_against_colebrook_turbulent():
     # Colebrook (1939) via fluids.friction.Colebrook; Churchill states ~1 % agreement
     for re in np.logspace(4, 7, 13):
         for rr in (0.0, 1e-4, 1e-3):
-            with warnings.catch_warnings():   # fluids' own overflow note in its explicit form
+            with warnings.catch_warnings():  # fluids' own overflow note in its explicit form
                 warnings.simplefilter("ignore", RuntimeWarning)
                 expected = fluids.friction.Colebrook(re, rr)
             assert churchill_1977_friction(re, rr) == pytest.approx(expected, rel=0.03)
@@ -93,14 +95,15 @@ def test_transition_near_2000_to_2300():
     # common practice, no source: pipe flow leaves the laminar law near Re 2000-2300
     f_lam = churchill_1977_friction(1800.0) * 1800.0 / 64.0
     f_past = churchill_1977_friction(3000.0) * 3000.0 / 64.0
-    assert f_lam == pytest.approx(1.0, abs=0.01)        # still laminar at 1800
-    assert f_past > 1.3                                  # well above laminar by 3000
+    assert f_lam == pytest.approx(1.0, abs=0.01)  # still laminar at 1800
+    assert f_past > 1.3  # well above laminar by 3000
     assert regime_of(2000.0) == "laminar"
     assert regime_of(2400.0) == "transitional"
     assert regime_of(5000.0) == "turbulent"
 
 
 # --- developing laminar flow (Shah 1978) --------------------------------------------------
+
 
 def test_shah_worked_example():
     # Shah, J. Fluids Eng. 100 (1978) 177, eq. for f_app Re, by hand at x+ = 0.01:
@@ -130,7 +133,8 @@ def test_apparent_friction_blends_shah_and_churchill():
     shah_darcy = 4.0 * shah_1978_apparent_friction(re, lod * 1e-3, 1e-3)
     assert apparent_darcy_friction(re, lod) == pytest.approx(shah_darcy, rel=1e-6)
     assert apparent_darcy_friction(1e5, lod, 1e-4) == pytest.approx(
-        churchill_1977_friction(1e5, 1e-4), rel=1e-4)
+        churchill_1977_friction(1e5, 1e-4), rel=1e-4
+    )
     assert apparent_darcy_friction(500.0) == pytest.approx(64.0 / 500.0, rel=1e-6)
 
 
@@ -142,6 +146,7 @@ def test_entrance_length():
 
 
 # --- non-Newtonian tube flow ----------------------------------------------------------------
+
 
 @pytest.mark.parametrize("n", [0.3, 0.5, 0.8, 1.0, 1.3])
 def test_rabinowitsch_power_law_exact(n):
@@ -167,8 +172,9 @@ def test_casson_plug_flow_closed_form():
     model, radius = Casson(0.004, 0.0035), 1e-3
     q, tau_w = rabinowitsch_flow(model, 50.0, radius)
     c = 0.004 / tau_w
-    exact = np.pi * radius**3 * tau_w / (4 * 0.0035) * (
-        1 - 16 / 7 * np.sqrt(c) + 4 / 3 * c - c**4 / 21)
+    exact = (
+        np.pi * radius**3 * tau_w / (4 * 0.0035) * (1 - 16 / 7 * np.sqrt(c) + 4 / 3 * c - c**4 / 21)
+    )
     assert q == pytest.approx(exact, rel=1e-6)
 
 
@@ -185,7 +191,8 @@ def test_carreau_limits_are_poiseuille():
     _, tau_high = wall_shear_rate_for_flow(model, high_q, radius)
     dp_high = 2 * length * tau_high / radius
     assert dp_high == pytest.approx(
-        poiseuille_pressure_drop(high_q, radius, length, 0.00345), rel=0.02)
+        poiseuille_pressure_drop(high_q, radius, length, 0.00345), rel=0.02
+    )
 
 
 def test_lumen_pressure_drop_newtonian_long_tube():
@@ -216,7 +223,7 @@ def test_velocity_profile_parabolic_and_blunted():
     r, u = velocity_profile(pl, q, d)
     exact = mean * (3 * n + 1) / (n + 1) * (1 - (r / (d / 2)) ** ((n + 1) / n))
     assert np.allclose(u, exact, rtol=5e-3, atol=1e-3 * mean)
-    assert u[0] < 2 * mean                      # blunter than the parabola
+    assert u[0] < 2 * mean  # blunter than the parabola
 
 
 def test_newtonian_rabinowitsch_exact():

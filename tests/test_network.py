@@ -24,8 +24,9 @@ def capillary(radius=4e-6, length=5e-4, hematocrit=0.45):
 def test_two_equal_parallel_segments_halve_the_resistance():
     # Kirchhoff 1847 / Poiseuille: two equal conductances in parallel add, so R_eq = R / 2
     v = capillary()
-    net = VesselNetwork.from_vessels([("left", "a", "b", v), ("right", "a", "b", v)],
-                                     pressures={"a": 2000.0, "b": 500.0})
+    net = VesselNetwork.from_vessels(
+        [("left", "a", "b", v), ("right", "a", "b", v)], pressures={"a": 2000.0, "b": 500.0}
+    )
     assert net.equivalent_resistance("a", "b") == pytest.approx(v.resistance / 2, rel=1e-12)
     sol = net.solve()
     # each branch carries 1500 Pa / R; the shares are equal
@@ -38,8 +39,13 @@ def test_sparse_solve_matches_series_parallel_formula():
     # Series/parallel reduction by hand: R1 then (R2 || R3) then R4:
     # R = R1 + R2 R3 / (R2 + R3) + R4 = 1 + 2*3/5 + 4 = 6.2 (units of 1e9 Pa s/m^3)
     r = np.array([1.0, 2.0, 3.0, 4.0]) * 1e9
-    net = VesselNetwork(["in", "m", "m", "n"], ["m", "n", "n", "out"], r,
-                        pressures={"in": 6200.0, "out": 0.0}, names=["r1", "r2", "r3", "r4"])
+    net = VesselNetwork(
+        ["in", "m", "m", "n"],
+        ["m", "n", "n", "out"],
+        r,
+        pressures={"in": 6200.0, "out": 0.0},
+        names=["r1", "r2", "r3", "r4"],
+    )
     expected = 1e9 + 2e9 * 3e9 / 5e9 + 4e9
     assert net.equivalent_resistance("in", "out") == pytest.approx(expected, rel=1e-12)
     sol = net.solve()
@@ -65,8 +71,9 @@ def test_balanced_wheatstone_bridge_carries_no_bridge_flow():
     up = ["a", "c", "a", "d", "c"]
     down = ["c", "b", "d", "b", "d"]
     r = np.array([1.0, 2.0, 3.0, 6.0, 5.0]) * 1e9
-    sol = VesselNetwork(up, down, r, pressures={"a": 100.0, "b": 0.0},
-                        names=["r1", "r2", "r3", "r4", "bridge"]).solve()
+    sol = VesselNetwork(
+        up, down, r, pressures={"a": 100.0, "b": 0.0}, names=["r1", "r2", "r3", "r4", "bridge"]
+    ).solve()
     assert abs(sol.flow("bridge")) < 1e-12 * sol.total_inflow
 
 
@@ -81,8 +88,14 @@ def test_inflow_boundary():
 def test_segment_viscosity_uses_its_own_diameter_and_hematocrit():
     radius = np.array([3e-6, 10e-6, 40e-6])
     hematocrit = np.array([0.2, 0.45, 0.6])
-    net = VesselNetwork.from_arrays(["a", "b", "c"], ["b", "c", "d"], radius, 1e-3, hematocrit,
-                                    pressures={"a": 3000.0, "d": 0.0})
+    net = VesselNetwork.from_arrays(
+        ["a", "b", "c"],
+        ["b", "c", "d"],
+        radius,
+        1e-3,
+        hematocrit,
+        pressures={"a": 3000.0, "d": 0.0},
+    )
     for i in range(3):
         single = Vessel(radius=radius[i], length=1e-3, hematocrit=hematocrit[i]).resistance
         assert net.resistance[i] == pytest.approx(single, rel=1e-12)
@@ -102,8 +115,15 @@ def _random_tree(seed, n_nodes):
             inflows[int(leaf)] = float(rng.uniform(-1e-12, 1e-12))
         else:
             pressures[int(leaf)] = float(rng.uniform(0.0, 2000.0))
-    return VesselNetwork.from_arrays(parent.tolist(), child.tolist(), radius, 2e-4,
-                                     hematocrit, pressures=pressures, inflows=inflows)
+    return VesselNetwork.from_arrays(
+        parent.tolist(),
+        child.tolist(),
+        radius,
+        2e-4,
+        hematocrit,
+        pressures=pressures,
+        inflows=inflows,
+    )
 
 
 @given(st.integers(0, 2**32 - 1), st.integers(2, 120))
@@ -114,10 +134,16 @@ def test_random_tree_conserves_mass_at_every_node(seed, n_nodes):
     sol = net.solve()
     n = len(sol.nodes)
     index = {node: i for i, node in enumerate(sol.nodes)}
-    a = sp.csr_matrix((np.tile([1.0, -1.0], len(net.upstream)),
-                       (np.repeat(np.arange(len(net.upstream)), 2),
-                        [index[x] for pair in zip(net.upstream, net.downstream, strict=True)
-                         for x in pair])), shape=(len(net.upstream), n))
+    a = sp.csr_matrix(
+        (
+            np.tile([1.0, -1.0], len(net.upstream)),
+            (
+                np.repeat(np.arange(len(net.upstream)), 2),
+                [index[x] for pair in zip(net.upstream, net.downstream, strict=True) for x in pair],
+            ),
+        ),
+        shape=(len(net.upstream), n),
+    )
     net_out = a.T @ sol.segment_flow
     expected = np.zeros(n)
     for node, q in net.inflows.items():
@@ -142,8 +168,9 @@ def test_solution_table_has_units():
 
 def test_disconnected_network_raises():
     with pytest.raises(NetworkError, match="disconnected: 2 separate parts"):
-        VesselNetwork(["a", "c"], ["b", "d"], [1e9, 1e9],
-                      pressures={"a": 1.0, "b": 0.0, "c": 1.0}).solve()
+        VesselNetwork(
+            ["a", "c"], ["b", "d"], [1e9, 1e9], pressures={"a": 1.0, "b": 0.0, "c": 1.0}
+        ).solve()
 
 
 def test_no_pressure_node_is_singular():

@@ -106,11 +106,17 @@ def test_bad_parts():
 
 
 def test_several_gauges_in_one_part_say_how_to_sweep_sizes():
-    with pytest.raises(InputRangeError, match=r"catheter gauge must be one catalogue size .*"
-                                              r"\[Catheter\(gauge=g\).*inner_diameter=np\.array"):
+    with pytest.raises(
+        InputRangeError,
+        match=r"catheter gauge must be one catalogue size .*"
+        r"\[Catheter\(gauge=g\).*inner_diameter=np\.array",
+    ):
         Catheter(gauge=np.array([18, 20]))
-    with pytest.raises(InputRangeError, match=r"needle gauge must be one catalogue size .*"
-                                              r"got \[18, 20\]"):
+    with pytest.raises(
+        InputRangeError,
+        match=r"needle gauge must be one catalogue size .*"
+        r"got \[18, 20\]",
+    ):
         Needle(gauge=[18, 20])
     # one size given as a numpy scalar or a whole float is still that size
     assert Catheter(gauge=np.int64(18)).name == Catheter(gauge=np.array(18)).name == "18G catheter"
@@ -123,8 +129,11 @@ def test_several_gauges_in_one_part_say_how_to_sweep_sizes():
 def test_a_measured_bore_beyond_the_catalogue_outer_diameter_names_the_size():
     # the catalogue 16G outer diameter is 1.7 mm (from memory): a 1.71 mm bore cannot be a
     # 16G catheter; the message names the bore and the size, not an outer_diameter never given
-    with pytest.raises(InputRangeError, match=r"inner_diameter 1\.2-1\.71 mm of a 16G catheter "
-                                              r"reaches its typical outer diameter 1\.7 mm.*Tube"):
+    with pytest.raises(
+        InputRangeError,
+        match=r"inner_diameter 1\.2-1\.71 mm of a 16G catheter "
+        r"reaches its typical outer diameter 1\.7 mm.*Tube",
+    ):
         Catheter(gauge=16, inner_diameter=np.array([1.2e-3, 1.71e-3]))
     with pytest.raises(InputRangeError, match=r"of a 18G needle reaches its typical outer"):
         Needle(gauge=18, inner_diameter=2e-3)

@@ -113,12 +113,20 @@ def _sheets(path):
 
 
 OUTPUTS = (
-    [(f"cli {' '.join(a).replace(EXAMPLE, 'minimal.toml')}", "cli", a) for a in (
-        *[_plain_invocation(c) for c in COMMANDS], ["run", EXAMPLE, "--json"],
-        ["examples", "minimal"], ["--help"])]
+    [
+        (f"cli {' '.join(a).replace(EXAMPLE, 'minimal.toml')}", "cli", a)
+        for a in (
+            *[_plain_invocation(c) for c in COMMANDS],
+            ["run", EXAMPLE, "--json"],
+            ["examples", "minimal"],
+            ["--help"],
+        )
+    ]
     + [(f"cli {c} --help", "cli", [c, "--help"]) for c in COMMANDS]
-    + [(f"pack {n}", "pack", n) for n in ("results.csv", "parts.csv", "report.html",
-                                           "manifest.json", "results.xlsx")]
+    + [
+        (f"pack {n}", "pack", n)
+        for n in ("results.csv", "parts.csv", "report.html", "manifest.json", "results.xlsx")
+    ]
     + [(f"view {t}", "view", t) for t in _tabs()]
 )
 
@@ -142,7 +150,7 @@ def test_every_output_carries_the_caution(kind, what, request):
             texts = {what: json.loads(path.read_text(encoding="utf-8")).get("caution", "")}
         else:
             page = path.read_text(encoding="utf-8")
-            body = page[page.find("<body"):]
+            body = page[page.find("<body") :]
             texts = {what: _plain(body[:20000])}  # near the top of the page
     else:
         view = request.getfixturevalue("app").views[what]

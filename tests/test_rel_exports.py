@@ -74,14 +74,20 @@ def test_html_table_shows_any_text_as_text(text):
     assert set(parsed.tags) <= {"table", "thead", "tbody", "tr", "th", "td", "div"}
     shown = "".join(parsed.text)
     if text.strip():
-        assert text.replace("\r\n", "\n").replace("\r", "\n") in shown.replace("\r\n", "\n") \
+        assert (
+            text.replace("\r\n", "\n").replace("\r", "\n") in shown.replace("\r\n", "\n")
             or text in shown
+        )
 
 
 HOSTILE_FILE = hostile_scenario_file(
-    title=HOSTILE_HTML, notes=HOSTILE_CELL + " " + HOSTILE_HTML,
-    name="@SUM(1+1) " + HOSTILE_HTML[:60], scenario_notes="-2+3 " + HOSTILE_HTML,
-    tube_label=HOSTILE_CELL[:60], catheter_label="+cmd|' /C calc'!A0")
+    title=HOSTILE_HTML,
+    notes=HOSTILE_CELL + " " + HOSTILE_HTML,
+    name="@SUM(1+1) " + HOSTILE_HTML[:60],
+    scenario_notes="-2+3 " + HOSTILE_HTML,
+    tube_label=HOSTILE_CELL[:60],
+    catheter_label="+cmd|' /C calc'!A0",
+)
 
 
 @pytest.fixture(scope="module")
@@ -134,8 +140,10 @@ def _snapshot(folder):
 
 def _small_run(tmp_path, name):
     src = tmp_path / f"{name}.toml"
-    src.write_text(HOSTILE_FILE.replace("saline-0.9", "water").replace(
-        'title = "', f'title = "{name} '), encoding="utf-8")
+    src.write_text(
+        HOSTILE_FILE.replace("saline-0.9", "water").replace('title = "', f'title = "{name} '),
+        encoding="utf-8",
+    )
     return run_scenarios(load_scenarios(src))
 
 

@@ -47,33 +47,95 @@ _record = module_recorder("fuzz", "fuzz:")
 
 MALFORMED = Path(__file__).with_name("malformed")
 SEEDS = [example_path(n) for n in example_names()] + sorted(
-    p for p in MALFORMED.iterdir() if p.suffix in (".toml", ".json"))
+    p for p in MALFORMED.iterdir() if p.suffix in (".toml", ".json")
+)
 
 # --------------------------------------------------------------------------- generators
-good_quantities = st.sampled_from([
-    "300 mmHg", "1.8 m", "100 cm", "22 degC", "4 degC", "150 mL/h", "5 mL/min", "1.1 cP",
-    "3 mm", "0.5 mm", "45 mm", "40 kPa", "2 psi", "10 cmH2O", "500 mL", "0.45", "45 %",
-    "37 degC", "1 L/min", "1e-3 m", "0.1 bar"])
-bad_quantities = st.sampled_from([
-    "300 mL", "-1 m", "1e400 mmHg", "nan", "inf m", "18G", "1.3 mm", "3 mmHg/s", "degC",
-    "", " ", "1..2 m", "__import__('os')", "1 m; rm -rf /", "${HOME}", "0x10 m",
-    "\u202e3 mm", "3\u00a0mm", "1 \u00b5m", "10 \u00b0C", "+-3 m", "1e-300 m", "99999999999 m",
-    "=HYPERLINK(\"x\")", "<script>alert(1)</script>"])
-numbers = st.one_of(st.integers(-10**20, 10**20), st.floats(allow_nan=True, allow_infinity=True),
-                    st.sampled_from([0, 1, 18, 45, 0.45, 300, 1e-300, 1e300, -0.0]))
+good_quantities = st.sampled_from(
+    [
+        "300 mmHg",
+        "1.8 m",
+        "100 cm",
+        "22 degC",
+        "4 degC",
+        "150 mL/h",
+        "5 mL/min",
+        "1.1 cP",
+        "3 mm",
+        "0.5 mm",
+        "45 mm",
+        "40 kPa",
+        "2 psi",
+        "10 cmH2O",
+        "500 mL",
+        "0.45",
+        "45 %",
+        "37 degC",
+        "1 L/min",
+        "1e-3 m",
+        "0.1 bar",
+    ]
+)
+bad_quantities = st.sampled_from(
+    [
+        "300 mL",
+        "-1 m",
+        "1e400 mmHg",
+        "nan",
+        "inf m",
+        "18G",
+        "1.3 mm",
+        "3 mmHg/s",
+        "degC",
+        "",
+        " ",
+        "1..2 m",
+        "__import__('os')",
+        "1 m; rm -rf /",
+        "${HOME}",
+        "0x10 m",
+        "\u202e3 mm",
+        "3\u00a0mm",
+        "1 \u00b5m",
+        "10 \u00b0C",
+        "+-3 m",
+        "1e-300 m",
+        "99999999999 m",
+        '=HYPERLINK("x")',
+        "<script>alert(1)</script>",
+    ]
+)
+numbers = st.one_of(
+    st.integers(-(10**20), 10**20),
+    st.floats(allow_nan=True, allow_infinity=True),
+    st.sampled_from([0, 1, 18, 45, 0.45, 300, 1e-300, 1e300, -0.0]),
+)
 texts = st.text(st.characters(codec="utf-8", exclude_categories=("Cs",)), max_size=30)
-scalars = st.one_of(good_quantities, bad_quantities, numbers, st.booleans(), texts,
-                    st.sampled_from(rheoline.fluid_names() + ["blood", "salin", "Water"]))
-ranges = st.fixed_dictionaries({}, optional={
-    "start": st.one_of(good_quantities, numbers), "stop": st.one_of(good_quantities, numbers),
-    "step": st.one_of(good_quantities, numbers), "count": st.one_of(st.integers(-5, 600), numbers),
-    "junk": scalars})
+scalars = st.one_of(
+    good_quantities,
+    bad_quantities,
+    numbers,
+    st.booleans(),
+    texts,
+    st.sampled_from(rheoline.fluid_names() + ["blood", "salin", "Water"]),
+)
+ranges = st.fixed_dictionaries(
+    {},
+    optional={
+        "start": st.one_of(good_quantities, numbers),
+        "stop": st.one_of(good_quantities, numbers),
+        "step": st.one_of(good_quantities, numbers),
+        "count": st.one_of(st.integers(-5, 600), numbers),
+        "junk": scalars,
+    },
+)
 values = st.one_of(scalars, st.lists(scalars, max_size=3), ranges)
 
 scenario_keys = st.sampled_from([*SCENARIO_FIELDS, "nmae", "fluids", "hed", "pressure"])
 part_types = st.sampled_from([*PART_FIELDS, "Tube", "cath", "", "valve"])
-part_keys = st.sampled_from(sorted({k for f in PART_FIELDS.values() for k in f})
-                            + ["gage", "diameter", "len"])
+part_keys = st.sampled_from(
+    sorted({k for f in PART_FIELDS.values() for k in f}) + ["gage", "diameter", "len"]
+)
 
 #: plausible values by field kind (FieldSpec.kind), so that many documents pass validation
 #: and reach the solver with odd but valid values
@@ -110,17 +172,23 @@ def _value_for(spec, hostile):
 
 
 _PART_TEMPLATES = {
-    "tube": {"inner_diameter": "3 mm", "length": "1.8 m"}, "catheter": {"gauge": 18},
-    "needle": {"gauge": 21}, "cannula": {"french": 12, "inner_diameter": "3 mm"},
-    "set": {"kind": "gravity-set"}, "fitting": {"k": 0.8},
-    "measured": {"flows": ["100 mL/min", "200 mL/min"],
-                 "pressure_drops": ["50 mmHg", "120 mmHg"]}}
+    "tube": {"inner_diameter": "3 mm", "length": "1.8 m"},
+    "catheter": {"gauge": 18},
+    "needle": {"gauge": 21},
+    "cannula": {"french": 12, "inner_diameter": "3 mm"},
+    "set": {"kind": "gravity-set"},
+    "fitting": {"k": 0.8},
+    "measured": {"flows": ["100 mL/min", "200 mL/min"], "pressure_drops": ["50 mmHg", "120 mmHg"]},
+}
 
 
 @st.composite
 def parts(draw, hostile):
-    ptype = draw(st.one_of(st.sampled_from(sorted(PART_FIELDS)), part_types) if hostile
-                 else st.sampled_from(sorted(PART_FIELDS)))
+    ptype = draw(
+        st.one_of(st.sampled_from(sorted(PART_FIELDS)), part_types)
+        if hostile
+        else st.sampled_from(sorted(PART_FIELDS))
+    )
     fields = PART_FIELDS.get(ptype, {})
     part = {"type": ptype, **_PART_TEMPLATES.get(ptype, {})}
     keys = sorted(k for k in fields if k not in ("type", "tolerance", "label"))
@@ -136,12 +204,19 @@ def parts(draw, hostile):
 @st.composite
 def scenario_docs(draw):
     hostile = draw(st.integers(0, 3)) == 0  # one document in four is hostile throughout
-    sc = {"name": draw(texts) if hostile else "case",
-          "fluid": draw(st.sampled_from(rheoline.fluid_names())), "head": "1 m"}
-    keys = [k for k, spec in SCENARIO_FIELDS.items()
-            if spec.kind not in ("parts", "text", "notes", "tolerance")]
-    key_strategy = st.one_of(st.sampled_from(keys), scenario_keys) if hostile else \
-        st.sampled_from(keys)
+    sc = {
+        "name": draw(texts) if hostile else "case",
+        "fluid": draw(st.sampled_from(rheoline.fluid_names())),
+        "head": "1 m",
+    }
+    keys = [
+        k
+        for k, spec in SCENARIO_FIELDS.items()
+        if spec.kind not in ("parts", "text", "notes", "tolerance")
+    ]
+    key_strategy = (
+        st.one_of(st.sampled_from(keys), scenario_keys) if hostile else st.sampled_from(keys)
+    )
     for key in draw(st.lists(key_strategy, max_size=3, unique=True)):
         if key in ("part", "name"):
             continue
@@ -162,14 +237,44 @@ def _toml_or_json(doc, fmt):
         return json.dumps(doc, allow_nan=True).encode("utf-8")
     try:
         return tomli_w.dumps(doc).encode("utf-8")
-    except (TypeError, ValueError):  # tomli-w refuses some values (e.g. mixed arrays in old versions)
+    except (
+        TypeError,
+        ValueError,
+    ):  # tomli-w refuses some values (e.g. mixed arrays in old versions)
         return json.dumps(doc, allow_nan=True).encode("utf-8")
 
 
-TOKENS = [b"=", b"[", b"]", b"[[scenario]]", b"[[scenario.part]]", b"{", b"}", b",", b'"',
-          b"'", b"\n", b"#", b"nan", b"inf", b"-", b"1e999", b"\x00", b"\xff\xfe", b"\\u0000",
-          b'head = "300 mmHg"', b'gauge = 1.3', b'hematocrit = 45', b"format_version = 2",
-          b'type = "measured"', b"count = 100000", b'"""', b"\r\n", b"\t", b"\xe2\x80\xae"]
+TOKENS = [
+    b"=",
+    b"[",
+    b"]",
+    b"[[scenario]]",
+    b"[[scenario.part]]",
+    b"{",
+    b"}",
+    b",",
+    b'"',
+    b"'",
+    b"\n",
+    b"#",
+    b"nan",
+    b"inf",
+    b"-",
+    b"1e999",
+    b"\x00",
+    b"\xff\xfe",
+    b"\\u0000",
+    b'head = "300 mmHg"',
+    b"gauge = 1.3",
+    b"hematocrit = 45",
+    b"format_version = 2",
+    b'type = "measured"',
+    b"count = 100000",
+    b'"""',
+    b"\r\n",
+    b"\t",
+    b"\xe2\x80\xae",
+]
 
 
 @st.composite
@@ -182,9 +287,9 @@ def mutated_files(draw):
         if op == "insert":
             data[pos:pos] = draw(st.one_of(st.sampled_from(TOKENS), st.binary(max_size=8)))
         elif op == "delete":
-            del data[pos:pos + draw(st.integers(1, 20))]
+            del data[pos : pos + draw(st.integers(1, 20))]
         elif op == "replace":
-            data[pos:pos + draw(st.integers(1, 8))] = draw(st.sampled_from(TOKENS))
+            data[pos : pos + draw(st.integers(1, 8))] = draw(st.sampled_from(TOKENS))
         elif op == "duplicate":
             lines = bytes(data).split(b"\n")
             i = draw(st.integers(0, len(lines) - 1))
@@ -246,8 +351,7 @@ def _exercise(work: Path, suffix: str, payload: bytes):
         if status == 0:
             records = json.loads(out)
             assert all(isinstance(r, dict) and "flow_ml_min" in r for r in records)
-            assert all(r["flow_ml_min"] is None or math.isfinite(r["flow_ml_min"])
-                       for r in records)
+            assert all(r["flow_ml_min"] is None or math.isfinite(r["flow_ml_min"]) for r in records)
     else:
         bump("fuzz:rejected")
         assert out == "" and err.startswith("rheoline: error: ") and err.count("\n") == 1, err
@@ -258,8 +362,7 @@ def _exercise(work: Path, suffix: str, payload: bytes):
     case.unlink()
 
 
-_fuzz_settings = settings(suppress_health_check=[HealthCheck.too_slow,
-                                                 HealthCheck.data_too_large])
+_fuzz_settings = settings(suppress_health_check=[HealthCheck.too_slow, HealthCheck.data_too_large])
 
 
 @pytest.fixture(scope="module")
@@ -283,11 +386,40 @@ def test_mutated_files_never_crash_the_loader_or_check(work, mutated):
 
 
 # --------------------------------------------------------------------------- the argument line
-_ARG_TOKENS = st.sampled_from([
-    "run", "check", "fluids", "parts", "fields", "examples", "--json", "--force", "--out",
-    "pack", "--kind", "catheter", "needle", "valve", "--help", "--version", "-h", "--bogus",
-    "minimal", "no-such-example", str(example_path("minimal")), str(MALFORMED / "empty_name.toml"),
-    "missing.toml", ".", "", "-", "--", "\u00e9\u00e8", "--out=pack2", "--kind=needle"])
+_ARG_TOKENS = st.sampled_from(
+    [
+        "run",
+        "check",
+        "fluids",
+        "parts",
+        "fields",
+        "examples",
+        "--json",
+        "--force",
+        "--out",
+        "pack",
+        "--kind",
+        "catheter",
+        "needle",
+        "valve",
+        "--help",
+        "--version",
+        "-h",
+        "--bogus",
+        "minimal",
+        "no-such-example",
+        str(example_path("minimal")),
+        str(MALFORMED / "empty_name.toml"),
+        "missing.toml",
+        ".",
+        "",
+        "-",
+        "--",
+        "\u00e9\u00e8",
+        "--out=pack2",
+        "--kind=needle",
+    ]
+)
 
 
 @_fuzz_settings

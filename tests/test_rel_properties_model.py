@@ -54,27 +54,25 @@ def _log_uniform(low, high):
     return st.floats(math.log10(low), math.log10(high)).map(lambda x: 10.0**x)
 
 
-bores = _log_uniform(1e-4, 1e-2)                  # 0.1 mm to 10 mm
-lengths = _log_uniform(1e-3, 10.0)                # 1 mm to 10 m
-heads = st.floats(0.01, 3.0)                      # m
-source_pressures = st.floats(0.0, 2000 * MMHG)    # Pa
-viscosities = _log_uniform(5e-4, 0.5)             # Pa s
-densities = st.floats(800.0, 1300.0)              # kg/m^3
+bores = _log_uniform(1e-4, 1e-2)  # 0.1 mm to 10 mm
+lengths = _log_uniform(1e-3, 10.0)  # 1 mm to 10 m
+heads = st.floats(0.01, 3.0)  # m
+source_pressures = st.floats(0.0, 2000 * MMHG)  # Pa
+viscosities = _log_uniform(5e-4, 0.5)  # Pa s
+densities = st.floats(800.0, 1300.0)  # kg/m^3
 water_temperatures = st.floats(0.0, 45.0)
-fluid_temperatures = st.floats(0.0, 42.0)         # inside every simple fluid's range
-blood_temperatures = st.floats(0.0, 42.0)         # the blood models' validated span
+fluid_temperatures = st.floats(0.0, 42.0)  # inside every simple fluid's range
+blood_temperatures = st.floats(0.0, 42.0)  # the blood models' validated span
 hematocrits = st.floats(0.0, 0.8)
 simple_fluids = st.sampled_from(
-    ["water", "saline-0.9", "dextrose-5", "lactated-ringers", "plasma", "albumin-5",
-     "albumin-20"])
+    ["water", "saline-0.9", "dextrose-5", "lactated-ringers", "plasma", "albumin-5", "albumin-20"]
+)
 
 
 def _blood_models():
     from rheoline.model.blood import BLOOD_RHEOLOGY_MODELS
 
     return st.sampled_from(sorted(BLOOD_RHEOLOGY_MODELS))
-
-
 
 
 def _catalogue_gauges():
@@ -92,8 +90,11 @@ def lines(draw, max_parts=4):
     n = draw(st.integers(1, max_parts))
     parts = []
     for i in range(n):
-        kind = draw(st.sampled_from(["tube", "catheter", "needle", "fitting", "measured"])
-                    if i else st.sampled_from(["tube", "catheter", "needle"]))
+        kind = draw(
+            st.sampled_from(["tube", "catheter", "needle", "fitting", "measured"])
+            if i
+            else st.sampled_from(["tube", "catheter", "needle"])
+        )
         if kind == "fitting":
             parts.append(Fitting(k=draw(st.floats(0.05, 20.0))))
         elif kind == "measured":
@@ -103,8 +104,9 @@ def lines(draw, max_parts=4):
         elif kind == "catheter":
             parts.append(Catheter(gauge=draw(catheter_gauges)))
         elif kind == "needle":
-            parts.append(Needle(gauge=draw(needle_gauges),
-                                wall=draw(st.sampled_from(["regular", "thin"]))))
+            parts.append(
+                Needle(gauge=draw(needle_gauges), wall=draw(st.sampled_from(["regular", "thin"])))
+            )
         else:
             parts.append(Tube(inner_diameter=draw(bores), length=draw(lengths)))
     return Line(parts)
@@ -133,8 +135,13 @@ def _lumen_rows(result):
 
 
 # --------------------------------------------------------------------------- scaling laws
-@given(dp=st.floats(1.0, 1e6), r=_log_uniform(5e-5, 5e-3), length=lengths, mu=viscosities,
-       k=st.floats(1.1, 4.0))
+@given(
+    dp=st.floats(1.0, 1e6),
+    r=_log_uniform(5e-5, 5e-3),
+    length=lengths,
+    mu=viscosities,
+    k=st.floats(1.1, 4.0),
+)
 def test_poiseuille_scales_with_r4_inverse_length_and_viscosity(dp, r, length, mu, k):
     # Hagen-Poiseuille, Q = pi r^4 dp / (8 mu L) (Sutera & Skalak 1993)
     _count("poiseuille_scaling")
@@ -153,7 +160,7 @@ def test_line_in_creeping_flow_follows_r4(d, fluid_name, t):
     _count("line_r4_creeping")
     fl = rheoline.fluid(fluid_name, temperature_c=t)
     mu, rho = fl.viscosity(), fl.density
-    q = 0.05 * math.pi * d * mu / (4.0 * rho)                  # Re = 4 rho Q / (pi d mu)
+    q = 0.05 * math.pi * d * mu / (4.0 * rho)  # Re = 4 rho Q / (pi d mu)
     thin = Line([Tube(inner_diameter=d, length=1.0)]).solve(fl, flow=q)
     wide = Line([Tube(inner_diameter=2 * d, length=1.0)]).solve(fl, flow=q)
     assert thin.required_pressure / wide.required_pressure == pytest.approx(16.0, rel=1e-2)
@@ -192,7 +199,8 @@ def test_flow_rises_with_bore_and_falls_with_length(d1, d2, length, head, fluid_
     r = Line([Tube(inner_diameter=np.array([small, big]), length=length)]).solve(fl, head=head)
     assert r.flow[0] < r.flow[1]
     s = Line([Tube(inner_diameter=small, length=np.array([length, 1.5 * length]))]).solve(
-        fl, head=head)
+        fl, head=head
+    )
     assert s.flow[0] > s.flow[1]
 
 
@@ -207,8 +215,14 @@ def test_flow_falls_with_viscosity(line, mu1, mu2, rho, head):
     assert thick.flow <= thin.flow * (1 + 1e-9)
 
 
-@given(d=bores, length=lengths, head=heads, t1=water_temperatures, t2=water_temperatures,
-       fluid_name=st.sampled_from(["water", "saline-0.9"]))
+@given(
+    d=bores,
+    length=lengths,
+    head=heads,
+    t1=water_temperatures,
+    t2=water_temperatures,
+    fluid_name=st.sampled_from(["water", "saline-0.9"]),
+)
 def test_gravity_flow_rises_with_temperature(d, length, head, t1, t2, fluid_name):
     # Warmer water is thinner (IAPWS 2008); under a gravity head the density cancels from
     # the kinetic losses, so flow can only rise with temperature.
@@ -222,17 +236,22 @@ def test_gravity_flow_rises_with_temperature(d, length, head, t1, t2, fluid_name
     assert warm.flow >= cold.flow * (1 - 1e-9)
 
 
-@given(d=_log_uniform(3e-4, 5e-3), length=_log_uniform(0.01, 3.0), h1=hematocrits,
-       h2=hematocrits, t=blood_temperatures, ps=st.floats(10 * MMHG, 600 * MMHG),
-       model=_blood_models())
+@given(
+    d=_log_uniform(3e-4, 5e-3),
+    length=_log_uniform(0.01, 3.0),
+    h1=hematocrits,
+    h2=hematocrits,
+    t=blood_temperatures,
+    ps=st.floats(10 * MMHG, 600 * MMHG),
+    model=_blood_models(),
+)
 def test_blood_flow_falls_with_hematocrit(d, length, h1, h2, t, ps, model):
     # Thicker blood (more red cells) is more viscous and denser: under a source pressure
     # both effects lower the flow.
     _count("flow_vs_hematocrit")
     assume(abs(h1 - h2) > 0.01)
     lo, hi = sorted((h1, h2))
-    fl = rheoline.fluid("whole-blood", temperature_c=t, hematocrit=np.array([lo, hi]),
-                        model=model)
+    fl = rheoline.fluid("whole-blood", temperature_c=t, hematocrit=np.array([lo, hi]), model=model)
     r = Line([Tube(inner_diameter=d, length=length)]).solve(fl, source_pressure=ps)
     _assume_not_transitional(r)
     assert r.flow[1] <= r.flow[0] * (1 + 1e-6)
@@ -266,8 +285,13 @@ def test_water_viscosity_falls_with_temperature(t1, t2):
 
 
 # --------------------------------------------------------------------------- invariants
-@given(line=lines(), fluid_name=simple_fluids, head=heads, ps=source_pressures,
-       pb=st.floats(0.0, 20 * MMHG))
+@given(
+    line=lines(),
+    fluid_name=simple_fluids,
+    head=heads,
+    ps=source_pressures,
+    pb=st.floats(0.0, 20 * MMHG),
+)
 def test_part_drops_add_up_to_the_drive(line, fluid_name, head, ps, pb):
     _count("drops_sum_to_drive")
     fl = rheoline.fluid(fluid_name, temperature_c=22.0)
@@ -281,15 +305,21 @@ def test_part_drops_add_up_to_the_drive(line, fluid_name, head, ps, pb):
     assert frame_total == pytest.approx(drive, rel=1e-6)
 
 
-@given(line=lines(), fluid_name=simple_fluids, q=_log_uniform(1e-9, 1e-4), head=heads,
-       pb=st.floats(0.0, 20 * MMHG))
+@given(
+    line=lines(),
+    fluid_name=simple_fluids,
+    q=_log_uniform(1e-9, 1e-4),
+    head=heads,
+    pb=st.floats(0.0, 20 * MMHG),
+)
 def test_pressure_solve_budget_adds_up(line, fluid_name, q, head, pb):
     _count("pressure_solve_budget")
     fl = rheoline.fluid(fluid_name, temperature_c=22.0)
     r = line.solve(fl, flow=q, head=head, back_pressure=pb)
     total = r.part_pressure_drops.sum(axis=0) + r.exit_pressure_drop
-    assert total == pytest.approx(r.required_pressure + fl.density * GRAVITY * head - pb,
-                                  rel=1e-9, abs=1e-9)
+    assert total == pytest.approx(
+        r.required_pressure + fl.density * GRAVITY * head - pb, rel=1e-9, abs=1e-9
+    )
 
 
 @st.composite
@@ -311,8 +341,9 @@ def networks(draw):
     inflows = {}
     if inflow_node != n - 1 and draw(st.booleans()):
         inflows[inflow_node] = draw(_log_uniform(1e-10, 1e-5))
-    return VesselNetwork(up, down, np.array(res), pressures={0: inlet_pressure, n - 1: 0.0},
-                         inflows=inflows)
+    return VesselNetwork(
+        up, down, np.array(res), pressures={0: inlet_pressure, n - 1: 0.0}, inflows=inflows
+    )
 
 
 @given(net=networks())
@@ -345,13 +376,21 @@ def test_flow_solve_and_pressure_solve_invert_each_other(line, fluid_name, head,
     forward = line.solve(fl, head=head, source_pressure=ps)
     assume(forward.flow > 0)
     back = line.solve(fl, flow=forward.flow, head=head)
-    assert back.required_pressure == pytest.approx(ps, rel=1e-3, abs=1e-3 * fl.density * GRAVITY * head)
+    assert back.required_pressure == pytest.approx(
+        ps, rel=1e-3, abs=1e-3 * fl.density * GRAVITY * head
+    )
     again = line.solve(fl, head=head, source_pressure=max(back.required_pressure, 0.0))
     assert again.flow == pytest.approx(forward.flow, rel=1e-3)
 
 
-@given(d=_log_uniform(3e-4, 5e-3), length=_log_uniform(0.01, 3.0), h=hematocrits,
-       t=blood_temperatures, ps=st.floats(10 * MMHG, 2000 * MMHG), model=_blood_models())
+@given(
+    d=_log_uniform(3e-4, 5e-3),
+    length=_log_uniform(0.01, 3.0),
+    h=hematocrits,
+    t=blood_temperatures,
+    ps=st.floats(10 * MMHG, 2000 * MMHG),
+    model=_blood_models(),
+)
 def test_blood_round_trip(d, length, h, t, ps, model):
     # flow-solve then pressure-solve for every blood rheology model, within 0.1 %
     _count("round_trip_blood")
@@ -372,8 +411,12 @@ def test_glycerol_fraction_round_trip(w, t):
 
 
 # --------------------------------------------------------------------------- vectorized == scalar
-@given(line=lines(max_parts=3), fluid_name=simple_fluids,
-       hs=st.lists(heads, min_size=2, max_size=4), ps=source_pressures)
+@given(
+    line=lines(max_parts=3),
+    fluid_name=simple_fluids,
+    hs=st.lists(heads, min_size=2, max_size=4),
+    ps=source_pressures,
+)
 def test_vectorized_solve_equals_scalar_solves(line, fluid_name, hs, ps):
     _count("vectorized_equals_scalar")
     fl = rheoline.fluid(fluid_name, temperature_c=22.0)
@@ -385,16 +428,22 @@ def test_vectorized_solve_equals_scalar_solves(line, fluid_name, hs, ps):
         assert vec.regime[i] == one.regime
 
 
-@given(ts=st.lists(blood_temperatures, min_size=2, max_size=4), h=hematocrits,
-       model=_blood_models(), d=_log_uniform(3e-4, 5e-3))
+@given(
+    ts=st.lists(blood_temperatures, min_size=2, max_size=4),
+    h=hematocrits,
+    model=_blood_models(),
+    d=_log_uniform(3e-4, 5e-3),
+)
 def test_vectorized_blood_equals_scalar(ts, h, model, d):
     _count("vectorized_blood_equals_scalar")
     line = Line([Tube(inner_diameter=d, length=0.5)])
     fl = rheoline.fluid("whole-blood", temperature_c=np.array(ts), hematocrit=h, model=model)
     vec = line.solve(fl, source_pressure=300 * MMHG)
     for i, t in enumerate(ts):
-        one = line.solve(rheoline.fluid("whole-blood", temperature_c=t, hematocrit=h,
-                                        model=model), source_pressure=300 * MMHG)
+        one = line.solve(
+            rheoline.fluid("whole-blood", temperature_c=t, hematocrit=h, model=model),
+            source_pressure=300 * MMHG,
+        )
         assert vec.flow[i] == pytest.approx(one.flow, rel=1e-6)
     mu = rheoline.blood_viscosity(h, temperature_c=np.array(ts))
     for i, t in enumerate(ts):
@@ -412,31 +461,63 @@ def test_vectorized_fluid_properties_equal_scalar(ts, fluid_name):
 
 
 # --------------------------------------------------------------------------- no NaN, no inf
-@given(line=lines(), fluid_name=simple_fluids, head=st.floats(0.0, 3.0), ps=source_pressures,
-       t=fluid_temperatures)
-@example(line=Line([Tube(inner_diameter=1e-3, length=1.0)]), fluid_name="water", head=0.0,
-         ps=1e-300, t=20.0)  # a vanishing but valid drive (bug B1 in the reliability notes)
+@given(
+    line=lines(),
+    fluid_name=simple_fluids,
+    head=st.floats(0.0, 3.0),
+    ps=source_pressures,
+    t=fluid_temperatures,
+)
+@example(
+    line=Line([Tube(inner_diameter=1e-3, length=1.0)]),
+    fluid_name="water",
+    head=0.0,
+    ps=1e-300,
+    t=20.0,
+)  # a vanishing but valid drive (bug B1 in the reliability notes)
 def test_no_nan_or_inf_for_valid_newtonian_input(line, fluid_name, head, ps, t):
     _count("finite_newtonian")
     fl = rheoline.fluid(fluid_name, temperature_c=t)
     r = line.solve(fl, head=head, source_pressure=ps)
     rows = _lumen_rows(r)
-    assert _finite(r.flow, r.required_pressure, r.net_drive, r.max_reynolds,
-                   r.max_wall_shear_stress, r.hemolysis_index, r.part_pressure_drops,
-                   r.part_reynolds[rows], r.part_wall_shear_stress[rows],
-                   r.part_wall_shear_rate[rows], r.dominant_share)
+    assert _finite(
+        r.flow,
+        r.required_pressure,
+        r.net_drive,
+        r.max_reynolds,
+        r.max_wall_shear_stress,
+        r.hemolysis_index,
+        r.part_pressure_drops,
+        r.part_reynolds[rows],
+        r.part_wall_shear_stress[rows],
+        r.part_wall_shear_rate[rows],
+        r.dominant_share,
+    )
     assert r.flow >= 0
 
 
-@given(d=bores, length=lengths, head=st.floats(0.0, 3.0), ps=source_pressures, h=hematocrits,
-       t=blood_temperatures, model=_blood_models(),
-       name=st.sampled_from(["whole-blood", "packed-red-cells"]))
+@given(
+    d=bores,
+    length=lengths,
+    head=st.floats(0.0, 3.0),
+    ps=source_pressures,
+    h=hematocrits,
+    t=blood_temperatures,
+    model=_blood_models(),
+    name=st.sampled_from(["whole-blood", "packed-red-cells"]),
+)
 def test_no_nan_or_inf_for_valid_blood_input(d, length, head, ps, h, t, model, name):
     _count("finite_blood")
     fl = rheoline.fluid(name, temperature_c=t, hematocrit=h, model=model)
     r = Line([Tube(inner_diameter=d, length=length)]).solve(fl, head=head, source_pressure=ps)
-    assert _finite(r.flow, r.required_pressure, r.max_reynolds, r.max_wall_shear_stress,
-                   r.part_pressure_drops, r.part_wall_shear_rate)
+    assert _finite(
+        r.flow,
+        r.required_pressure,
+        r.max_reynolds,
+        r.max_wall_shear_stress,
+        r.part_pressure_drops,
+        r.part_wall_shear_rate,
+    )
     assert r.flow >= 0
 
 
@@ -456,13 +537,19 @@ def test_no_nan_in_vessel_viscosity_laws(d, h):
 
 
 # --------------------------------------------------------------------------- invalid input
-bad_positive = st.one_of(st.floats(max_value=0.0, allow_nan=False),
-                         st.just(float("nan")), st.just(float("inf")), st.just(-float("inf")))
+bad_positive = st.one_of(
+    st.floats(max_value=0.0, allow_nan=False),
+    st.just(float("nan")),
+    st.just(float("inf")),
+    st.just(-float("inf")),
+)
 bad_finite = st.one_of(st.just(float("nan")), st.just(float("inf")), st.just(-float("inf")))
 
 
-_GOOD_DIMENSIONS = {Tube: {"inner_diameter": 1e-3, "length": 1.0},
-                    Vessel: {"radius": 1e-3, "length": 0.1}}
+_GOOD_DIMENSIONS = {
+    Tube: {"inner_diameter": 1e-3, "length": 1.0},
+    Vessel: {"radius": 1e-3, "length": 0.1},
+}
 
 
 @pytest.mark.parametrize("cls", [Tube, Vessel], ids=["tube", "vessel"])
@@ -539,8 +626,13 @@ def test_bad_poiseuille_input_names_the_field(bad, field):
 
 
 # --------------------------------------------------------------------------- vessels, delivery
-@given(d=_log_uniform(1e-3, 1e-2), q1=_log_uniform(1e-8, 1e-4), q2=_log_uniform(1e-8, 1e-4),
-       ratio=st.floats(0.2, 0.95), mu=_log_uniform(2e-3, 6e-3))
+@given(
+    d=_log_uniform(1e-3, 1e-2),
+    q1=_log_uniform(1e-8, 1e-4),
+    q2=_log_uniform(1e-8, 1e-4),
+    ratio=st.floats(0.2, 0.95),
+    mu=_log_uniform(2e-3, 6e-3),
+)
 def test_stenosis_drop_rises_with_flow_and_narrowing(d, q1, q2, ratio, mu):
     # Young & Tsai 1973: viscous term ~ U, expansion term ~ U^2 (A0/A1 - 1)^2
     _count("stenosis_monotonic")
@@ -554,8 +646,11 @@ def test_stenosis_drop_rises_with_flow_and_narrowing(d, q1, q2, ratio, mu):
     assert narrower > dp[0]
 
 
-@given(r=_log_uniform(1e-3, 5e-3), dp=st.floats(100.0, 2e4),
-       reductions=st.lists(st.floats(0.0, 95.0), min_size=2, max_size=6))
+@given(
+    r=_log_uniform(1e-3, 5e-3),
+    dp=st.floats(100.0, 2e4),
+    reductions=st.lists(st.floats(0.0, 95.0), min_size=2, max_size=6),
+)
 def test_flow_lost_to_a_stenosis_rises_with_its_severity(r, dp, reductions):
     _count("stenosis_flow_lost")
     from rheoline.model.stenosis import stenosis_flow_fraction_lost
@@ -574,14 +669,19 @@ def test_vascular_resistance_scales_and_converts(dp, q, k):
     r = rheoline.vascular_resistance(dp + 5.0, 5.0, q)
     assert r.wood_units == pytest.approx(dp / q, rel=1e-12)
     assert rheoline.vascular_resistance(dp + 5.0, 5.0, k * q).wood_units == pytest.approx(
-        r.wood_units / k, rel=1e-12)
+        r.wood_units / k, rel=1e-12
+    )
     assert r.dyn_s_per_cm5 == pytest.approx(79.993 * r.wood_units, rel=1e-4)
     # NIST SP 811 gives 1 mmHg = 1.333224e2 Pa: agreement to its 6 digits
     assert r.pa_s_per_m3 == pytest.approx(r.wood_units * MMHG / (1e-3 / 60.0), rel=1e-5)
 
 
-@given(h1=st.floats(100.0, 220.0), h2=st.floats(100.0, 220.0), w=st.floats(30.0, 200.0),
-       method=st.sampled_from(["mosteller", "dubois"]))
+@given(
+    h1=st.floats(100.0, 220.0),
+    h2=st.floats(100.0, 220.0),
+    w=st.floats(30.0, 200.0),
+    method=st.sampled_from(["mosteller", "dubois"]),
+)
 def test_body_surface_area_rises_with_height(h1, h2, w, method):
     _count("body_surface_area")
     assume(abs(h1 - h2) > 0.1)
@@ -599,13 +699,20 @@ def test_network_equivalent_resistance_of_series_and_parallel(r):
     assert series.equivalent_resistance(0, n) == pytest.approx(sum(r), rel=1e-6)
     parallel = VesselNetwork(["a"] * n, ["b"] * n, np.array(r))
     assert parallel.equivalent_resistance("a", "b") == pytest.approx(
-        1.0 / sum(1.0 / x for x in r), rel=1e-6)
+        1.0 / sum(1.0 / x for x in r), rel=1e-6
+    )
 
 
-@given(d=_log_uniform(5e-4, 3e-3), h_full=st.floats(0.5, 2.0), fall=st.floats(0.0, 0.4),
-       volume=st.floats(1e-5, 1e-3), fluid_name=st.sampled_from(["water", "saline-0.9"]))
-def test_falling_head_time_lies_between_the_full_and_empty_times(d, h_full, fall, volume,
-                                                                 fluid_name):
+@given(
+    d=_log_uniform(5e-4, 3e-3),
+    h_full=st.floats(0.5, 2.0),
+    fall=st.floats(0.0, 0.4),
+    volume=st.floats(1e-5, 1e-3),
+    fluid_name=st.sampled_from(["water", "saline-0.9"]),
+)
+def test_falling_head_time_lies_between_the_full_and_empty_times(
+    d, h_full, fall, volume, fluid_name
+):
     _count("delivery_bounds")
     from rheoline.model.delivery import falling_head_delivery_time
 
@@ -625,8 +732,7 @@ def test_tolerance_band_brackets_the_nominal(tol, seed, gauge):
 
     fl = rheoline.fluid("saline-0.9", temperature_c=22.0)
     line = Line([Tube(inner_diameter=3e-3, length=1.8), Catheter(gauge=gauge)])
-    band = flow_tolerance(line, fl, head=1.0, diameter_tolerance={1: tol}, n_samples=400,
-                          seed=seed)
+    band = flow_tolerance(line, fl, head=1.0, diameter_tolerance={1: tol}, n_samples=400, seed=seed)
     assert _finite(band.samples)
     p5, p50, p95 = (band.percentiles[p] for p in (5.0, 50.0, 95.0))
     assert p5 <= band.nominal * (1 + 1e-9) and band.nominal * (1 - 1e-9) <= p95
@@ -643,7 +749,7 @@ def test_falling_head_time_matches_the_closed_form_for_a_linear_line(ratio, volu
 
     water = newtonian_fluid("water", 1e-3, 1000.0)
     line = Line([Tube(inner_diameter=3e-4, length=1.0)])
-    c = line.solve(water, head=1.0).flow      # m^3/s per metre of head
+    c = line.solve(water, head=1.0).flow  # m^3/s per metre of head
     t = falling_head_delivery_time(line, water, volume, 1.0, ratio).time
     exact = volume * math.log(1.0 / ratio) / (c * (1.0 - ratio))
     assert t == pytest.approx(exact, rel=1e-2)
@@ -661,25 +767,30 @@ def test_decaying_bag_time_matches_the_closed_form_for_a_linear_line():
     c = line.solve(water, source_pressure=p0).flow / p0
     taus = np.geomspace(10.0, 1e4, 6)[:, None]
     fractions = np.linspace(0.01, 0.99, 25)[None, :]
-    t = pressure_bag_delivery_time(line, water, fractions * c * p0 * taus, p0,
-                                   time_constant=taus).time
+    t = pressure_bag_delivery_time(
+        line, water, fractions * c * p0 * taus, p0, time_constant=taus
+    ).time
     np.testing.assert_allclose(t, -taus * np.log(1.0 - fractions), rtol=1e-2)
-    beyond = pressure_bag_delivery_time(line, water, 1.02 * c * p0 * 100.0, p0,
-                                        time_constant=100.0)
+    beyond = pressure_bag_delivery_time(line, water, 1.02 * c * p0 * 100.0, p0, time_constant=100.0)
     assert beyond.time == math.inf
 
 
-@given(a=_log_uniform(1e6, 1e12), b=_log_uniform(1e9, 1e16),
-       flows=st.lists(_log_uniform(1e-8, 1e-4), min_size=2, max_size=8, unique=True),
-       k_mu=st.floats(0.2, 5.0), k_rho=st.floats(0.5, 2.0))
+@given(
+    a=_log_uniform(1e6, 1e12),
+    b=_log_uniform(1e9, 1e16),
+    flows=st.lists(_log_uniform(1e-8, 1e-4), min_size=2, max_size=8, unique=True),
+    k_mu=st.floats(0.2, 5.0),
+    k_rho=st.floats(0.5, 2.0),
+)
 def test_measured_part_recovers_its_coefficients_and_rescales(a, b, flows, k_mu, k_rho):
     # exact bench data dp = a Q + b Q^2; the laminar term scales with viscosity and the
     # quadratic term with density (dimensional analysis, common practice, no source)
     _count("measured_part_fit")
     q = np.array(sorted(flows))
     assume(q[-1] / q[0] > 1.5)
-    part = MeasuredPart(flows=q, pressure_drops=a * q + b * q * q, test_viscosity=1e-3,
-                        test_density=1000.0)
+    part = MeasuredPart(
+        flows=q, pressure_drops=a * q + b * q * q, test_viscosity=1e-3, test_density=1000.0
+    )
     fitted = part.a * q + part.b * q * q
     np.testing.assert_allclose(fitted, a * q + b * q * q, rtol=1e-6)
     a2, b2 = part.scaled_coefficients(k_mu * 1e-3, k_rho * 1000.0)
@@ -700,25 +811,47 @@ API_MISTAKES = [
     ("string-part", lambda: Line(["tube"]), r"part\[0\]"),
     ("several-catheter-gauges", lambda: Catheter(gauge=np.array([18, 20])), r"gauge"),
     ("several-needle-gauges", lambda: Needle(gauge=[18, 20]), r"gauge"),
-    ("shapes-that-do-not-broadcast",
-     lambda: Line([Tube(inner_diameter=np.full(3, 1e-3), length=1.0)]).solve(
-         rheoline.fluid("water"), head=np.ones(4)), r"broadcast|shape"),
-    ("flow-and-source-pressure", lambda: Line([Tube(inner_diameter=1e-3, length=1.0)]).solve(
-        rheoline.fluid("water"), flow=1e-6, source_pressure=1.0), r"flow.*source_pressure"),
+    (
+        "shapes-that-do-not-broadcast",
+        lambda: Line([Tube(inner_diameter=np.full(3, 1e-3), length=1.0)]).solve(
+            rheoline.fluid("water"), head=np.ones(4)
+        ),
+        r"broadcast|shape",
+    ),
+    (
+        "flow-and-source-pressure",
+        lambda: Line([Tube(inner_diameter=1e-3, length=1.0)]).solve(
+            rheoline.fluid("water"), flow=1e-6, source_pressure=1.0
+        ),
+        r"flow.*source_pressure",
+    ),
     ("unknown-blood-model", lambda: rheoline.fluid("whole-blood", model="bingham"), r"model"),
-    ("unknown-entrance", lambda: Line([Tube(inner_diameter=1e-3, length=1.0)],
-                                      entrance="rounded-ish"), r"entrance|rounded-ish"),
-    ("format-in-a-unit-of-another-kind", lambda: rheoline.format_quantity(1.0, "pressure", "m"),
-     r"pressure|unit"),
-    ("format-in-an-unknown-unit", lambda: rheoline.format_quantity(1.0, "pressure", "furlong"),
-     r"unit|furlong"),
-    ("list-as-a-network-node", lambda: VesselNetwork([["a"]], ["b"], [1e9], pressures={"b": 0.0}),
-     r"node label"),
+    (
+        "unknown-entrance",
+        lambda: Line([Tube(inner_diameter=1e-3, length=1.0)], entrance="rounded-ish"),
+        r"entrance|rounded-ish",
+    ),
+    (
+        "format-in-a-unit-of-another-kind",
+        lambda: rheoline.format_quantity(1.0, "pressure", "m"),
+        r"pressure|unit",
+    ),
+    (
+        "format-in-an-unknown-unit",
+        lambda: rheoline.format_quantity(1.0, "pressure", "furlong"),
+        r"unit|furlong",
+    ),
+    (
+        "list-as-a-network-node",
+        lambda: VesselNetwork([["a"]], ["b"], [1e9], pressures={"b": 0.0}),
+        r"node label",
+    ),
 ]
 
 
-@pytest.mark.parametrize("call, match", [m[1:] for m in API_MISTAKES],
-                         ids=[m[0] for m in API_MISTAKES])
+@pytest.mark.parametrize(
+    "call, match", [m[1:] for m in API_MISTAKES], ids=[m[0] for m in API_MISTAKES]
+)
 def test_api_mistakes_are_library_errors_naming_the_argument(call, match):
     bump("prop:api_mistakes_checked")
     with pytest.raises(RheolineError, match=match):
@@ -734,7 +867,7 @@ def test_flow_lost_to_a_stenosis_is_finite_at_zero_drive(r, reduction, small):
     vessel = Vessel(radius=r, length=0.05, viscosity_law="newtonian", viscosity=3.5e-3)
     at_zero, near_zero = np.asarray(stenosis_flow_fraction_lost(vessel, [0.0, small], reduction))
     assert np.isfinite(at_zero)
-    assert at_zero <= near_zero + 1e-12   # the loss only grows with the drive (U^2 term)
+    assert at_zero <= near_zero + 1e-12  # the loss only grows with the drive (U^2 term)
     assert at_zero == pytest.approx(near_zero, abs=1e-6)
 
 
@@ -743,14 +876,25 @@ def _rheologies():
 
     return st.one_of(
         st.builds(PowerLaw, _log_uniform(1e-4, 1.0), st.floats(0.2, 2.0)),  # thinning/thickening
-        st.builds(lambda m0, ratio, lam, n, a: CarreauYasuda(m0, m0 * ratio, lam, n, a),
-                  _log_uniform(1e-3, 1.0), st.floats(0.001, 1.0), _log_uniform(1e-3, 100.0),
-                  st.floats(0.1, 1.0), st.floats(0.3, 4.0)),
-        st.builds(Casson, _log_uniform(1e-4, 1.0), _log_uniform(1e-3, 0.1)))
+        st.builds(
+            lambda m0, ratio, lam, n, a: CarreauYasuda(m0, m0 * ratio, lam, n, a),
+            _log_uniform(1e-3, 1.0),
+            st.floats(0.001, 1.0),
+            _log_uniform(1e-3, 100.0),
+            st.floats(0.1, 1.0),
+            st.floats(0.3, 4.0),
+        ),
+        st.builds(Casson, _log_uniform(1e-4, 1.0), _log_uniform(1e-3, 0.1)),
+    )
 
 
-@given(rheology=_rheologies(), d=bores, length=lengths, ps=st.floats(1.0, 2000 * MMHG),
-       head=st.floats(0.0, 3.0))
+@given(
+    rheology=_rheologies(),
+    d=bores,
+    length=lengths,
+    ps=st.floats(1.0, 2000 * MMHG),
+    head=st.floats(0.0, 3.0),
+)
 def test_any_rheology_parameters_solve_to_the_line_residual(rheology, d, length, ps, head):
     # the engine must converge for a user's own fitted model, not only the library's
     _count("random_rheology_converges")

@@ -38,9 +38,9 @@ _record = module_recorder("grid", "grid:")
 MMHG = 133.322387415  # NIST SP 811
 REL_RESIDUAL = 1e-6
 
-DIAMETERS = np.geomspace(1e-4, 1e-2, 7)          # m
-LENGTHS = np.geomspace(1e-3, 10.0, 7)            # m
-HEADS = np.array([0.0, 0.5, 1.5, 3.0])           # m
+DIAMETERS = np.geomspace(1e-4, 1e-2, 7)  # m
+LENGTHS = np.geomspace(1e-3, 10.0, 7)  # m
+HEADS = np.array([0.0, 0.5, 1.5, 3.0])  # m
 SOURCE_PRESSURES = np.array([0.0, 50.0, 300.0, 2000.0]) * MMHG
 TEMPERATURES = np.array([0.0, 15.0, 37.0, 45.0])  # degC
 HEMATOCRITS = np.array([0.0, 0.3, 0.55, 0.8])
@@ -48,8 +48,8 @@ HEMATOCRITS = np.array([0.0, 0.3, 0.55, 0.8])
 #: Temperature span [degC] each library fluid's property models are validated over, as the
 #: fluid modules document it; a temperature outside it must warn.
 VALIDATED_TEMPERATURE_C = {
-    "water": (0.0, 100.0),          # IAPWS 2008 / Kell 1975 at 1 atm
-    "saline-0.9": (0.0, 100.0),     # Laliberte 2007
+    "water": (0.0, 100.0),  # IAPWS 2008 / Kell 1975 at 1 atm
+    "saline-0.9": (0.0, 100.0),  # Laliberte 2007
     "lactated-ringers": (0.0, 100.0),
     "dextrose-5": (0.0, 100.0),
     "plasma": (0.0, 42.0),
@@ -59,7 +59,7 @@ VALIDATED_TEMPERATURE_C = {
     "albumin-25": (0.0, 100.0),
     "whole-blood": (0.0, 42.0),
     "packed-red-cells": (0.0, 42.0),
-    "glycerol-water": (0.0, 40.0),   # Volk & Kaehler 2018 density, as viscosity.py uses it
+    "glycerol-water": (0.0, 40.0),  # Volk & Kaehler 2018 density, as viscosity.py uses it
 }
 
 BLOOD = ("whole-blood", "packed-red-cells")
@@ -69,10 +69,19 @@ BLOOD = ("whole-blood", "packed-red-cells")
 ANALOG_PARAMETERS = {
     "newtonian": {"mu": 3.5e-3},
     "power-law": {"consistency": 0.0127, "flow_index": 0.78},
-    "carreau": {"mu_zero": 0.056, "mu_inf": 0.00345, "relaxation_time": 3.313,
-                "flow_index": 0.3568},
-    "carreau-yasuda": {"mu_zero": 0.056, "mu_inf": 0.00345, "relaxation_time": 1.902,
-                       "flow_index": 0.22, "a": 1.25},
+    "carreau": {
+        "mu_zero": 0.056,
+        "mu_inf": 0.00345,
+        "relaxation_time": 3.313,
+        "flow_index": 0.3568,
+    },
+    "carreau-yasuda": {
+        "mu_zero": 0.056,
+        "mu_inf": 0.00345,
+        "relaxation_time": 1.902,
+        "flow_index": 0.22,
+        "a": 1.25,
+    },
     "casson": {"yield_stress": 0.005, "casson_viscosity": 3.5e-3},
 }
 
@@ -104,8 +113,11 @@ def _failures(line, fl, head, ps, result, pries_correction=False):
     q = np.asarray(result.flow, dtype=float)
     with warnings.catch_warnings():
         warnings.simplefilter("ignore", RangeWarning)
-        residual = np.asarray(line.pressure_residual(fl, q, head=head, source_pressure=ps,
-                                                     pries_correction=pries_correction))
+        residual = np.asarray(
+            line.pressure_residual(
+                fl, q, head=head, source_pressure=ps, pries_correction=pries_correction
+            )
+        )
     moving = drive > 0
     rel = np.where(moving, np.abs(residual) / np.where(moving, drive, 1.0), 0.0)
     # a yield-stress fluid stays put while its losses at vanishing flow (the yield pressure,
@@ -127,8 +139,10 @@ def _solve_and_count(line, fl, head, ps, axes, label, before_check=None, pries_c
     bump("grid:points_solved", q.size)
     bump("grid:failures", int(np.count_nonzero(bad)))
     bump("grid:cases", 1)
-    assert not bad.any(), (f"{label}: {np.count_nonzero(bad)} of {bad.size} grid points "
-                           f"failed: {_describe(bad, axes, rel, q)}")
+    assert not bad.any(), (
+        f"{label}: {np.count_nonzero(bad)} of {bad.size} grid points "
+        f"failed: {_describe(bad, axes, rel, q)}"
+    )
     return result, q
 
 
@@ -145,8 +159,11 @@ def _check_regime_flags(result, part_index=0):
     re_ = np.nan_to_num(result.part_reynolds[part_index])
     moving = np.asarray(result.flow) > 0
     turbulent = int(np.count_nonzero(moving & (re_ >= TURBULENT_LIMIT_REYNOLDS)))
-    transitional = int(np.count_nonzero(moving & (re_ >= LAMINAR_LIMIT_REYNOLDS)
-                                        & (re_ < TURBULENT_LIMIT_REYNOLDS)))
+    transitional = int(
+        np.count_nonzero(
+            moving & (re_ >= LAMINAR_LIMIT_REYNOLDS) & (re_ < TURBULENT_LIMIT_REYNOLDS)
+        )
+    )
     text = " | ".join(result.flags)
     for word, expected in (("turbulent flow", turbulent), ("transitional flow", transitional)):
         m = re.search(word + r"[^|]*? in (\d+) of (\d+) scenarios", text)
@@ -158,12 +175,12 @@ def _check_regime_flags(result, part_index=0):
     return turbulent + transitional
 
 
-CASES = ([(name, None) for name in rheoline.fluid_names() if name not in BLOOD]
-         + [(name, model) for name in BLOOD for model in sorted(BLOOD_RHEOLOGY_MODELS)])
+CASES = [(name, None) for name in rheoline.fluid_names() if name not in BLOOD] + [
+    (name, model) for name in BLOOD for model in sorted(BLOOD_RHEOLOGY_MODELS)
+]
 
 
-@pytest.mark.parametrize(("name", "model"), CASES,
-                         ids=[f"{n}-{m}" if m else n for n, m in CASES])
+@pytest.mark.parametrize(("name", "model"), CASES, ids=[f"{n}-{m}" if m else n for n, m in CASES])
 def test_library_fluid_grid_converges_everywhere(name, model):
     blood = name in BLOOD
     extra = [TEMPERATURES, HEMATOCRITS] if blood else [TEMPERATURES]
@@ -174,11 +191,19 @@ def test_library_fluid_grid_converges_everywhere(name, model):
     low, high = VALIDATED_TEMPERATURE_C.get(name, (-np.inf, np.inf))
     if TEMPERATURES.min() < low or TEMPERATURES.max() > high:
         assert any("outside the validated range" in str(w.message) for w in range_warnings), (
-            f"{name}: temperatures outside {low}..{high} degC gave no RangeWarning")
+            f"{name}: temperatures outside {low}..{high} degC gave no RangeWarning"
+        )
     line = Line([Tube(inner_diameter=d, length=length)])
     # regime flags are checked first, so a convergence failure does not hide them
-    _solve_and_count(line, fl, head, ps, axes, f"{name} ({model})",
-                     lambda r: bump("grid:flagged_regime_points", _check_regime_flags(r)))
+    _solve_and_count(
+        line,
+        fl,
+        head,
+        ps,
+        axes,
+        f"{name} ({model})",
+        lambda r: bump("grid:flagged_regime_points", _check_regime_flags(r)),
+    )
 
 
 @pytest.mark.parametrize("model", sorted(BLOOD_RHEOLOGY_MODELS))
@@ -191,8 +216,9 @@ def test_blood_with_the_pries_correction_converges_on_the_grid(model):
     line = Line([Tube(inner_diameter=d, length=length)])
     with warnings.catch_warnings():
         warnings.simplefilter("ignore", RangeWarning)  # 10 mm is above Pries' 1978 um
-        _solve_and_count(line, fl, head, ps, axes, f"whole-blood ({model}) with Pries",
-                         pries_correction=True)
+        _solve_and_count(
+            line, fl, head, ps, axes, f"whole-blood ({model}) with Pries", pries_correction=True
+        )
 
 
 @pytest.mark.parametrize("model", sorted(RHEOLOGY_MODELS))
@@ -213,8 +239,14 @@ def test_composite_line_grid_and_round_trip(name):
     axes = _axes(extra)
     d, length, head, ps, temperature = axes
     fl, _ = _build_fluid(name, "carreau", temperature, 0.45)
-    line = Line([Tube(inner_diameter=3e-3, length=1.8), Fitting(k=1.5),
-                 Tube(inner_diameter=d, length=np.minimum(length, 1.5)), Catheter(gauge=18)])
+    line = Line(
+        [
+            Tube(inner_diameter=3e-3, length=1.8),
+            Fitting(k=1.5),
+            Tube(inner_diameter=d, length=np.minimum(length, 1.5)),
+            Catheter(gauge=18),
+        ]
+    )
     _, q = _solve_and_count(line, fl, head, ps, axes, f"{name} composite line")
     moving = q > 0
     back = line.solve(fl, flow=q, head=head)
@@ -272,9 +304,11 @@ def test_range_flags_in_a_swept_table_mark_only_the_points_outside():
     from rheoline.scenario.compare import run_scenarios
     from rheoline.scenario.files import loads_scenarios
 
-    text = ('format_version = 1\n[[scenario]]\nname = "warm and hot"\nfluid = "whole-blood"\n'
-            'temperature = ["20 degC", "37 degC", "55 degC"]\nsource_pressure = "300 mmHg"\n'
-            '[[scenario.part]]\ntype = "catheter"\ngauge = 18\n')
+    text = (
+        'format_version = 1\n[[scenario]]\nname = "warm and hot"\nfluid = "whole-blood"\n'
+        'temperature = ["20 degC", "37 degC", "55 degC"]\nsource_pressure = "300 mmHg"\n'
+        '[[scenario.part]]\ntype = "catheter"\ngauge = 18\n'
+    )
     table = run_scenarios(loads_scenarios(text)).table
     flagged = table["flags"].astype(str).str.contains("outside").tolist()
     bump("grid:table_points_flag_checked", len(flagged))
@@ -288,19 +322,20 @@ def test_a_delivery_that_never_finishes_is_flagged():
     from rheoline.scenario.compare import run_scenarios
     from rheoline.scenario.files import loads_scenarios
 
-    text = ('format_version = 1\n[[scenario]]\nname = "down to the outlet"\n'
-            'fluid = "saline-0.9"\nhead = "1 m"\nhead_when_empty = "0 m"\nvolume = "500 mL"\n'
-            '[[scenario.part]]\ntype = "catheter"\ngauge = 18\n')
+    text = (
+        'format_version = 1\n[[scenario]]\nname = "down to the outlet"\n'
+        'fluid = "saline-0.9"\nhead = "1 m"\nhead_when_empty = "0 m"\nvolume = "500 mL"\n'
+        '[[scenario.part]]\ntype = "catheter"\ngauge = 18\n'
+    )
     table = run_scenarios(loads_scenarios(text)).table
     assert table["time to deliver [min]"].iloc[0] == float("inf")
     assert re.search(r"deliver|never|not finish|stops", str(table["flags"].iloc[0]))
 
 
-PUMP_FLOWS = np.geomspace(1e-12, 20e-3 / 60, 9)   # m^3/s: the scenario files' whole range
+PUMP_FLOWS = np.geomspace(1e-12, 20e-3 / 60, 9)  # m^3/s: the scenario files' whole range
 
 
-@pytest.mark.parametrize(("name", "model"), CASES,
-                         ids=[f"{n}-{m}" if m else n for n, m in CASES])
+@pytest.mark.parametrize(("name", "model"), CASES, ids=[f"{n}-{m}" if m else n for n, m in CASES])
 def test_pump_grid_pressure_is_finite_and_rises_with_flow(name, model):
     # the inverse problem over the same grid: a prescribed flow (pump) gives a finite source
     # pressure everywhere, rising strictly with the flow
@@ -308,8 +343,11 @@ def test_pump_grid_pressure_is_finite_and_rises_with_flow(name, model):
     extra = [TEMPERATURES[:3], HEMATOCRITS] if blood else [TEMPERATURES[:3]]
     n = 3 + len(extra)
     shape = lambda i: [-1 if j == i else 1 for j in range(n)]  # noqa: E731
-    d, length, flow = (DIAMETERS.reshape(shape(0)), LENGTHS.reshape(shape(1)),
-                       PUMP_FLOWS.reshape(shape(2)))
+    d, length, flow = (
+        DIAMETERS.reshape(shape(0)),
+        LENGTHS.reshape(shape(1)),
+        PUMP_FLOWS.reshape(shape(2)),
+    )
     temperature = extra[0].reshape(shape(3))
     hematocrit = extra[1].reshape(shape(4)) if blood else None
     with warnings.catch_warnings():
@@ -331,10 +369,12 @@ def test_a_table_row_outside_its_fluid_range_is_flagged(name):
     from rheoline.scenario.compare import run_scenarios
     from rheoline.scenario.files import loads_scenarios
 
-    extra = 'mass_fraction = 0.4\n' if name == "glycerol-water" else ""
-    text = (f'format_version = 1\n[[scenario]]\nname = "hot"\nfluid = "{name}"\n{extra}'
-            'temperature = "60 degC"\nhead = "1 m"\n'
-            '[[scenario.part]]\ntype = "tube"\ninner_diameter = "3 mm"\nlength = "1.8 m"\n')
+    extra = "mass_fraction = 0.4\n" if name == "glycerol-water" else ""
+    text = (
+        f'format_version = 1\n[[scenario]]\nname = "hot"\nfluid = "{name}"\n{extra}'
+        'temperature = "60 degC"\nhead = "1 m"\n'
+        '[[scenario.part]]\ntype = "tube"\ninner_diameter = "3 mm"\nlength = "1.8 m"\n'
+    )
     table = run_scenarios(loads_scenarios(text)).table
     flagged = "outside" in str(table["flags"].iloc[0])
     low, high = VALIDATED_TEMPERATURE_C.get(name, (None, None))

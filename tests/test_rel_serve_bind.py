@@ -52,8 +52,9 @@ def test_served_files_are_pictures_only():
     else:
         configuration = pytest.importorskip("voila.configuration")
         patterns = configuration.VoilaConfiguration().file_allowlist
-    extensions = {e for p in patterns for group in re.findall(r"\.\(([^)]*)\)", p)
-                  for e in group.split("|")}
+    extensions = {
+        e for p in patterns for group in re.findall(r"\.\(([^)]*)\)", p) for e in group.split("|")
+    }
     assert extensions and extensions <= {"png", "jpg", "jpeg", "gif", "svg"}
 
 
@@ -66,8 +67,12 @@ def test_no_repository_file_binds_all_interfaces():
     suspects = []
     for path in REPO.rglob("*"):
         hidden = any(part.startswith(".") for part in path.relative_to(REPO).parts)
-        if (hidden or not path.is_file() or path.suffix not in
-                (".py", ".json", ".toml", ".cfg", ".yml", ".yaml", ".ipynb", ".md", ".sh", "")):
+        if (
+            hidden
+            or not path.is_file()
+            or path.suffix
+            not in (".py", ".json", ".toml", ".cfg", ".yml", ".yaml", ".ipynb", ".md", ".sh", "")
+        ):
             continue
         if path.name == Path(__file__).name:
             continue
@@ -75,7 +80,9 @@ def test_no_repository_file_binds_all_interfaces():
             text = path.read_text(encoding="utf-8")
         except (UnicodeDecodeError, OSError):
             continue
-        if re.search(r"(ip|host|bind)\W{0,4}[=: ]\W{0,2}(0\.0\.0\.0|\*|::)\b", text, re.I) \
-                or "0.0.0.0" in text:
+        if (
+            re.search(r"(ip|host|bind)\W{0,4}[=: ]\W{0,2}(0\.0\.0\.0|\*|::)\b", text, re.I)
+            or "0.0.0.0" in text
+        ):
             suspects.append(str(path.relative_to(REPO)))
     assert suspects == []

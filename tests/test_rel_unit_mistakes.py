@@ -43,43 +43,109 @@ def to_toml(doc):
 
 #: (id, scenario, field named, regex of the fix the message must suggest)
 MISTAKES = [
-    ("pressure-in-mL", scenario(source_pressure="300 mL"), "source_pressure",
-     r"not a unit of pressure.*(mmHg|kPa)"),
-    ("back-pressure-in-mL", scenario(back_pressure="8 mL"), "back_pressure",
-     r"not a unit of pressure"),
-    ("pressure-as-a-length", scenario(source_pressure="1 m"), "source_pressure",
-     r"for a bag height use head"),
-    ("head-in-mmHg", scenario(head="300 mmHg"), "head",
-     r"height of fluid.*for a pressure bag use source_pressure"),
-    ("head-in-cmH2O", scenario(head="100 cmH2O"), "head", r"for a pressure bag use source_pressure"),
-    ("head-bare-centimetres", scenario(head=100), "head",
-     r"bare number is read in m, write the unit"),
+    (
+        "pressure-in-mL",
+        scenario(source_pressure="300 mL"),
+        "source_pressure",
+        r"not a unit of pressure.*(mmHg|kPa)",
+    ),
+    (
+        "back-pressure-in-mL",
+        scenario(back_pressure="8 mL"),
+        "back_pressure",
+        r"not a unit of pressure",
+    ),
+    (
+        "pressure-as-a-length",
+        scenario(source_pressure="1 m"),
+        "source_pressure",
+        r"for a bag height use head",
+    ),
+    (
+        "head-in-mmHg",
+        scenario(head="300 mmHg"),
+        "head",
+        r"height of fluid.*for a pressure bag use source_pressure",
+    ),
+    (
+        "head-in-cmH2O",
+        scenario(head="100 cmH2O"),
+        "head",
+        r"for a pressure bag use source_pressure",
+    ),
+    (
+        "head-bare-centimetres",
+        scenario(head=100),
+        "head",
+        r"bare number is read in m, write the unit",
+    ),
     ("flow-as-a-pressure", scenario(flow="300 mmHg"), "flow", r"not a unit of flow.*mL/min"),
-    ("hematocrit-percent-number", scenario("whole-blood", hematocrit=45), "hematocrit",
-     r"percent.*0\.45"),
-    ("hematocrit-percent-text", scenario("whole-blood", hematocrit="45"), "hematocrit",
-     r"percent.*0\.45"),
-    ("hematocrit-with-a-unit", scenario("whole-blood", hematocrit="0.45 mm"), "hematocrit",
-     r"fraction such as 0\.45"),
-    ("gauge-as-a-diameter", scenario(part={"type": "catheter", "gauge": 1.3}), "part[1].gauge",
-     r"use inner_diameter"),
-    ("gauge-as-a-diameter-with-unit", scenario(part={"type": "catheter", "gauge": "1.3 mm"}),
-     "part[1].gauge", r"inner_diameter"),
-    ("needle-gauge-as-a-diameter", scenario(part={"type": "needle", "gauge": 0.8}),
-     "part[1].gauge", r"inner_diameter"),
-    ("bore-given-as-a-gauge", scenario(part={"type": "catheter", "inner_diameter": 18,
-                                             "length": "45 mm"}),
-     "part[1].inner_diameter", r"gauge"),
-    ("bore-with-a-gauge-unit", scenario(part={"type": "tube", "inner_diameter": "18G",
-                                              "length": "1 m"}),
-     "part[1].inner_diameter", r"for a catalogue size use gauge"),
-    ("temperature-in-kelvin-bare", scenario(temperature=310), "temperature",
-     r"bare number is read in degC, write the unit"),
-    ("temperature-in-fahrenheit-bare", scenario(temperature=98.6), "temperature",
-     r"bare number is read in degC"),
-    ("catheter-length-in-mm-bare", scenario(part={"type": "catheter", "gauge": 18,
-                                                  "length": 45}),
-     "part[1].length", r"bare number is read in m, write the unit"),
+    (
+        "hematocrit-percent-number",
+        scenario("whole-blood", hematocrit=45),
+        "hematocrit",
+        r"percent.*0\.45",
+    ),
+    (
+        "hematocrit-percent-text",
+        scenario("whole-blood", hematocrit="45"),
+        "hematocrit",
+        r"percent.*0\.45",
+    ),
+    (
+        "hematocrit-with-a-unit",
+        scenario("whole-blood", hematocrit="0.45 mm"),
+        "hematocrit",
+        r"fraction such as 0\.45",
+    ),
+    (
+        "gauge-as-a-diameter",
+        scenario(part={"type": "catheter", "gauge": 1.3}),
+        "part[1].gauge",
+        r"use inner_diameter",
+    ),
+    (
+        "gauge-as-a-diameter-with-unit",
+        scenario(part={"type": "catheter", "gauge": "1.3 mm"}),
+        "part[1].gauge",
+        r"inner_diameter",
+    ),
+    (
+        "needle-gauge-as-a-diameter",
+        scenario(part={"type": "needle", "gauge": 0.8}),
+        "part[1].gauge",
+        r"inner_diameter",
+    ),
+    (
+        "bore-given-as-a-gauge",
+        scenario(part={"type": "catheter", "inner_diameter": 18, "length": "45 mm"}),
+        "part[1].inner_diameter",
+        r"gauge",
+    ),
+    (
+        "bore-with-a-gauge-unit",
+        scenario(part={"type": "tube", "inner_diameter": "18G", "length": "1 m"}),
+        "part[1].inner_diameter",
+        r"for a catalogue size use gauge",
+    ),
+    (
+        "temperature-in-kelvin-bare",
+        scenario(temperature=310),
+        "temperature",
+        r"bare number is read in degC, write the unit",
+    ),
+    (
+        "temperature-in-fahrenheit-bare",
+        scenario(temperature=98.6),
+        "temperature",
+        r"bare number is read in degC",
+    ),
+    (
+        "catheter-length-in-mm-bare",
+        scenario(part={"type": "catheter", "gauge": 18, "length": 45}),
+        "part[1].length",
+        r"bare number is read in m, write the unit",
+    ),
     ("volume-as-a-flow", scenario(volume="100 mL/h"), "volume", r"a volume \(mL, L\)"),
 ]
 
@@ -93,11 +159,13 @@ def _check(capsys, path):
     return status, out, err
 
 
-@pytest.mark.parametrize(("doc", "field", "fix"), [m[1:] for m in MISTAKES],
-                         ids=[m[0] for m in MISTAKES])
+@pytest.mark.parametrize(
+    ("doc", "field", "fix"), [m[1:] for m in MISTAKES], ids=[m[0] for m in MISTAKES]
+)
 @pytest.mark.parametrize("fmt", ["toml", "json"])
-def test_unit_mistake_names_the_field_and_the_fix(doc, field, fix, fmt, capsys, tmp_path,
-                                                  monkeypatch):
+def test_unit_mistake_names_the_field_and_the_fix(
+    doc, field, fix, fmt, capsys, tmp_path, monkeypatch
+):
     monkeypatch.chdir(tmp_path)
     path = tmp_path / f"mistake.{fmt}"
     path.write_text(to_toml(doc) if fmt == "toml" else json.dumps(doc), encoding="utf-8")
@@ -139,24 +207,57 @@ def test_model_layer_catalogue_gauge_given_as_a_diameter():
 def test_catheter_given_by_its_measured_bore_checks_and_runs(capsys, tmp_path):
     # the fix the gauge messages suggest ("use inner_diameter") must itself work end to end
     path = tmp_path / "bore.toml"
-    path.write_text(to_toml(scenario(part={"type": "catheter", "inner_diameter": "1.1 mm",
-                                           "length": "45 mm"})), encoding="utf-8")
+    path.write_text(
+        to_toml(scenario(part={"type": "catheter", "inner_diameter": "1.1 mm", "length": "45 mm"})),
+        encoding="utf-8",
+    )
     status, out, err = _check(capsys, path)
     assert (status, err) == (0, ""), err
     assert "ok:" in out
 
 
-_UNIT_TOKENS = (list("0123456789.eE+-/ *^()%") + ["mmHg", "cmH2O", "mL", "min", "h", "degC", "K",
-                "Pa", "kPa", "psi", "bar", "cP", "s", "m", "L", "inch", "Fr", "**", "1e999",
-                "nan", "inf", "__class__", "Quantity", "exp", "1/0", "°", "µ"])
+_UNIT_TOKENS = list("0123456789.eE+-/ *^()%") + [
+    "mmHg",
+    "cmH2O",
+    "mL",
+    "min",
+    "h",
+    "degC",
+    "K",
+    "Pa",
+    "kPa",
+    "psi",
+    "bar",
+    "cP",
+    "s",
+    "m",
+    "L",
+    "inch",
+    "Fr",
+    "**",
+    "1e999",
+    "nan",
+    "inf",
+    "__class__",
+    "Quantity",
+    "exp",
+    "1/0",
+    "°",
+    "µ",
+]
 
 
-@given(text=st.one_of(st.lists(st.sampled_from(_UNIT_TOKENS), max_size=8).map("".join),
-                      st.floats(allow_nan=True, allow_infinity=True)),
-       kind=st.sampled_from(["pressure", "length", "flow", "temperature", "viscosity",
-                             "dimensionless", "volume"]),
-       default=st.sampled_from([None, "mmHg", "m", "degC", "mL/min"]))
-@example(text="1e999", kind="dimensionless", default=None)       # bug U1 in the notes
+@given(
+    text=st.one_of(
+        st.lists(st.sampled_from(_UNIT_TOKENS), max_size=8).map("".join),
+        st.floats(allow_nan=True, allow_infinity=True),
+    ),
+    kind=st.sampled_from(
+        ["pressure", "length", "flow", "temperature", "viscosity", "dimensionless", "volume"]
+    ),
+    default=st.sampled_from([None, "mmHg", "m", "degC", "mL/min"]),
+)
+@example(text="1e999", kind="dimensionless", default=None)  # bug U1 in the notes
 @example(text=float("nan"), kind="dimensionless", default=None)
 def test_parse_quantity_gives_a_finite_number_or_a_unit_error(text, kind, default):
     # the edge of the package: anything typed in must become a finite SI float or a
@@ -172,17 +273,23 @@ def test_parse_quantity_gives_a_finite_number_or_a_unit_error(text, kind, defaul
 
 #: Each documented limit, written as a person would copy it from the message or the docs.
 BOUNDARIES = [
-    ("flow", "20 L/min", {"head": None}), ("flow", "20000 mL/min", {"head": None}),
-    ("head", "10 m", {}), ("head", "0 m", {"source_pressure": "100 mmHg"}),
-    ("source_pressure", "30 bar", {}), ("back_pressure", "1000 mmHg", {}),
-    ("back_pressure", "-200 mmHg", {}), ("temperature", "60 degC", {}),
-    ("temperature", "0 degC", {}), ("volume", "50 L", {}),
+    ("flow", "20 L/min", {"head": None}),
+    ("flow", "20000 mL/min", {"head": None}),
+    ("head", "10 m", {}),
+    ("head", "0 m", {"source_pressure": "100 mmHg"}),
+    ("source_pressure", "30 bar", {}),
+    ("back_pressure", "1000 mmHg", {}),
+    ("back_pressure", "-200 mmHg", {}),
+    ("temperature", "60 degC", {}),
+    ("temperature", "0 degC", {}),
+    ("volume", "50 L", {}),
     ("pressure_limit", "60 bar", {"head": None, "flow": "100 mL/min"}),
 ]
 
 
-@pytest.mark.parametrize(("field", "text", "others"), BOUNDARIES,
-                         ids=[f"{f}={t}" for f, t, _ in BOUNDARIES])
+@pytest.mark.parametrize(
+    ("field", "text", "others"), BOUNDARIES, ids=[f"{f}={t}" for f, t, _ in BOUNDARIES]
+)
 def test_a_documented_limit_itself_is_accepted(field, text, others):
     fields = {field: text, **{k: v for k, v in others.items() if v is not None}}
     doc = scenario(**fields)
@@ -193,8 +300,10 @@ def test_a_documented_limit_itself_is_accepted(field, text, others):
     loads_scenarios(to_toml(doc))
 
 
-@pytest.mark.parametrize(("field", "text"), [("inner_diameter", "60 mm"), ("length", "30 m"),
-                                             ("inner_diameter", "0.01 mm")])
+@pytest.mark.parametrize(
+    ("field", "text"),
+    [("inner_diameter", "60 mm"), ("length", "30 m"), ("inner_diameter", "0.01 mm")],
+)
 def test_a_documented_tube_limit_itself_is_accepted(field, text):
     part = {"type": "tube", "inner_diameter": "3 mm", "length": "1 m", field: text}
     loads_scenarios(to_toml(scenario(part=part)))
@@ -214,8 +323,10 @@ def test_a_viscosity_rising_with_temperature_is_questioned():
         warnings.simplefilter("always")
         try:
             user_fluid_from_temperatures("swapped", [20.0, 40.0], [0.025, 0.060], 870.0)
-            questioned = any(issubclass(w.category, RheolineWarning)
-                             and re.search(pattern, str(w.message)) for w in caught)
+            questioned = any(
+                issubclass(w.category, RheolineWarning) and re.search(pattern, str(w.message))
+                for w in caught
+            )
         except RheolineError as exc:
             questioned = bool(re.search(pattern, str(exc)))
     assert questioned

@@ -37,14 +37,38 @@ _record = module_recorder("untrusted", "untrusted:")
 ROOT = Path(rheoline.__file__).resolve().parent
 MALFORMED = Path(__file__).with_name("malformed")
 
-SCANNED = sorted([*ROOT.joinpath("scenario").glob("*.py"), ROOT / "cli.py", ROOT / "units.py",
-                  *ROOT.joinpath("widgets").glob("files_view.py")])
+SCANNED = sorted(
+    [
+        *ROOT.joinpath("scenario").glob("*.py"),
+        ROOT / "cli.py",
+        ROOT / "units.py",
+        *ROOT.joinpath("widgets").glob("files_view.py"),
+    ]
+)
 
 FORBIDDEN_CALLS = {"eval", "exec", "compile", "__import__", "breakpoint"}
-FORBIDDEN_MODULES = {"pickle", "cPickle", "dill", "marshal", "shelve", "importlib", "subprocess",
-                     "runpy", "code", "codeop", "ctypes", "yaml"}
-FORBIDDEN_ATTRIBUTES = {("os", "system"), ("os", "popen"), ("os", "execv"), ("os", "execl"),
-                        ("os", "spawnv"), ("os", "startfile")}
+FORBIDDEN_MODULES = {
+    "pickle",
+    "cPickle",
+    "dill",
+    "marshal",
+    "shelve",
+    "importlib",
+    "subprocess",
+    "runpy",
+    "code",
+    "codeop",
+    "ctypes",
+    "yaml",
+}
+FORBIDDEN_ATTRIBUTES = {
+    ("os", "system"),
+    ("os", "popen"),
+    ("os", "execv"),
+    ("os", "execl"),
+    ("os", "spawnv"),
+    ("os", "startfile"),
+}
 # pandas evaluates expression strings in DataFrame.eval/query and pd.eval
 FORBIDDEN_METHODS = {"eval", "query", "import_module", "loads_pickle", "read_pickle"}
 
@@ -54,8 +78,9 @@ def _offences(path: Path):
     found = []
     for node in ast.walk(tree):
         if isinstance(node, ast.Import):
-            found += [f"import {a.name}" for a in node.names
-                      if a.name.split(".")[0] in FORBIDDEN_MODULES]
+            found += [
+                f"import {a.name}" for a in node.names if a.name.split(".")[0] in FORBIDDEN_MODULES
+            ]
         elif isinstance(node, ast.ImportFrom):
             if node.module and node.module.split(".")[0] in FORBIDDEN_MODULES:
                 found.append(f"from {node.module} import ...")
@@ -79,8 +104,10 @@ def test_no_code_path_from_file_content(path):
 def test_the_scan_finds_what_it_looks_for(tmp_path):
     # the scanner itself must be able to fail
     bad = tmp_path / "bad.py"
-    bad.write_text("import pickle\nfrom importlib import import_module\n"
-                   "x = eval(s)\nframe.query(text)\nos.system(cmd)\nexec(code)\n")
+    bad.write_text(
+        "import pickle\nfrom importlib import import_module\n"
+        "x = eval(s)\nframe.query(text)\nos.system(cmd)\nexec(code)\n"
+    )
     assert len(_offences(bad)) == 6
 
 
@@ -107,9 +134,14 @@ length = "1.8 m"
         opened.append(args[:1])
         raise AssertionError(f"opened {args[:1]!r}")
 
-    for target, name in ((builtins, "open"), (io, "open"), (os, "open"),
-                         (pathlib.Path, "open"), (pathlib.Path, "read_text"),
-                         (pathlib.Path, "read_bytes")):
+    for target, name in (
+        (builtins, "open"),
+        (io, "open"),
+        (os, "open"),
+        (pathlib.Path, "open"),
+        (pathlib.Path, "read_text"),
+        (pathlib.Path, "read_bytes"),
+    ):
         monkeypatch.setattr(target, name, refuse)
     sset = loads_scenarios(text)
     check_scenarios(sset)
@@ -119,8 +151,10 @@ length = "1.8 m"
 
 # --------------------------------------------------------------------------- limits
 def _one_scenario(extra="", part='type = "catheter"\ngauge = 18'):
-    return ("format_version = 1\n[[scenario]]\nname = \"s\"\nfluid = \"saline-0.9\"\n"
-            f"{extra}\n[[scenario.part]]\n{part}\n")
+    return (
+        'format_version = 1\n[[scenario]]\nname = "s"\nfluid = "saline-0.9"\n'
+        f"{extra}\n[[scenario.part]]\n{part}\n"
+    )
 
 
 def test_size_limit_is_checked_before_reading(tmp_path, capsys, monkeypatch):
@@ -143,10 +177,14 @@ def test_size_limit_is_checked_before_reading(tmp_path, capsys, monkeypatch):
     assert "above the limit" in capsys.readouterr().err
 
 
-@pytest.mark.parametrize("text", [
-    "format_version = 1\nx = " + "[" * 50_000 + "]" * 50_000 + "\n",
-    "format_version = 1\nx = " + "{a = " * 3000 + "1" + "}" * 3000 + "\n",
-], ids=["deep-toml-array", "deep-toml-table"])
+@pytest.mark.parametrize(
+    "text",
+    [
+        "format_version = 1\nx = " + "[" * 50_000 + "]" * 50_000 + "\n",
+        "format_version = 1\nx = " + "{a = " * 3000 + "1" + "}" * 3000 + "\n",
+    ],
+    ids=["deep-toml-array", "deep-toml-table"],
+)
 def test_deep_nesting_is_refused(text):
     with pytest.raises(ScenarioError, match="nested|limit|not valid TOML"):
         loads_scenarios(text)
@@ -154,8 +192,9 @@ def test_deep_nesting_is_refused(text):
 
 def test_deep_json_is_refused():
     with pytest.raises(ScenarioError, match="nested|limit"):
-        loads_scenarios('{"format_version": 1, "x": ' + "[" * 100_000 + "]" * 100_000 + "}",
-                        fmt="json")
+        loads_scenarios(
+            '{"format_version": 1, "x": ' + "[" * 100_000 + "]" * 100_000 + "}", fmt="json"
+        )
 
 
 def test_huge_integer_is_refused():
@@ -163,11 +202,15 @@ def test_huge_integer_is_refused():
         loads_scenarios(_one_scenario("head = " + "9" * 5000))
 
 
-@pytest.mark.parametrize("extra", [
-    'head = {start = "0 m", stop = "10 m", step = "1e-300 m"}',
-    'head = {start = "0 m", stop = "10 m", count = 1000000000000}',
-    'temperature = {start = "0 degC", stop = "60 degC", step = "1e-12 degC"}',
-], ids=["tiny-step", "huge-count", "tiny-temperature-step"])
+@pytest.mark.parametrize(
+    "extra",
+    [
+        'head = {start = "0 m", stop = "10 m", step = "1e-300 m"}',
+        'head = {start = "0 m", stop = "10 m", count = 1000000000000}',
+        'temperature = {start = "0 degC", stop = "60 degC", step = "1e-12 degC"}',
+    ],
+    ids=["tiny-step", "huge-count", "tiny-temperature-step"],
+)
 @pytest.mark.timeout(60)
 def test_an_axis_too_long_is_refused_before_it_is_built(extra):
     with pytest.raises(ScenarioError, match=str(files.MAX_AXIS_VALUES)):
@@ -177,9 +220,11 @@ def test_an_axis_too_long_is_refused_before_it_is_built(extra):
 @pytest.mark.timeout(60)
 def test_a_cross_product_too_large_is_refused():
     n = files.MAX_AXIS_VALUES
-    extra = (f'head = {{start = "0 m", stop = "3 m", count = {n}}}\n'
-             f'source_pressure = {{start = "0 mmHg", stop = "300 mmHg", count = {n}}}\n'
-             f'temperature = {{start = "1 degC", stop = "40 degC", count = {n}}}')
+    extra = (
+        f'head = {{start = "0 m", stop = "3 m", count = {n}}}\n'
+        f'source_pressure = {{start = "0 mmHg", stop = "300 mmHg", count = {n}}}\n'
+        f'temperature = {{start = "1 degC", stop = "40 degC", count = {n}}}'
+    )
     with pytest.raises(ScenarioError, match=f"limit of {files.MAX_SWEEP_POINTS}"):
         loads_scenarios(_one_scenario(extra))
 
@@ -189,10 +234,12 @@ def test_a_file_of_many_scenarios_over_the_total_is_refused():
     count = files.MAX_TOTAL_POINTS // per + 1
     blocks = []
     for i in range(count):
-        blocks.append(f'[[scenario]]\nname = "s{i}"\nfluid = "water"\n'
-                      f'head = {{start = "0 m", stop = "3 m", count = {per // 10}}}\n'
-                      '[[scenario.part]]\ntype = "needle"\n'
-                      'gauge = {start = 14, stop = 23, step = 1}\n')
+        blocks.append(
+            f'[[scenario]]\nname = "s{i}"\nfluid = "water"\n'
+            f'head = {{start = "0 m", stop = "3 m", count = {per // 10}}}\n'
+            '[[scenario.part]]\ntype = "needle"\n'
+            "gauge = {start = 14, stop = 23, step = 1}\n"
+        )
     with pytest.raises(ScenarioError, match=f"more than {files.MAX_TOTAL_POINTS}"):
         loads_scenarios("format_version = 1\n" + "".join(blocks))
 
@@ -203,12 +250,16 @@ def _corpus():
 
 
 @pytest.mark.parametrize("path", _corpus(), ids=lambda p: p.name)
-def test_malformed_file_gives_exit_2_no_traceback_and_writes_nothing(path, capsys, tmp_path,
-                                                                     monkeypatch):
+def test_malformed_file_gives_exit_2_no_traceback_and_writes_nothing(
+    path, capsys, tmp_path, monkeypatch
+):
     monkeypatch.chdir(tmp_path)
     bump("untrusted:malformed_files_tried")
-    for argv in (["check", str(path)], ["run", str(path), "--out", "pack"],
-                 ["run", str(path), "--json"]):
+    for argv in (
+        ["check", str(path)],
+        ["run", str(path), "--out", "pack"],
+        ["run", str(path), "--json"],
+    ):
         status = cli.main(argv)
         out, err = capsys.readouterr()
         bump("untrusted:malformed_commands_run")
@@ -229,25 +280,33 @@ def test_example_files_pass_check(capsys, tmp_path, monkeypatch):
     assert list(tmp_path.iterdir()) == []
 
 
-@pytest.mark.parametrize("text", [
-    '{"format_version": 1, "scenario": [{"name": "a", "fluid": "saline-0.9", "head": "1 m",'
-    ' "head": "10 m", "part": [{"type": "catheter", "gauge": 18}]}]}',
-    '{"format_version": 1, "format_version": 1, "scenario": [{"name": "a", "fluid": "water",'
-    ' "head": "1 m", "part": [{"type": "catheter", "gauge": 18, "gauge": 14}]}]}',
-], ids=["scenario-key", "part-key"])
+@pytest.mark.parametrize(
+    "text",
+    [
+        '{"format_version": 1, "scenario": [{"name": "a", "fluid": "saline-0.9", "head": "1 m",'
+        ' "head": "10 m", "part": [{"type": "catheter", "gauge": 18}]}]}',
+        '{"format_version": 1, "format_version": 1, "scenario": [{"name": "a", "fluid": "water",'
+        ' "head": "1 m", "part": [{"type": "catheter", "gauge": 18, "gauge": 14}]}]}',
+    ],
+    ids=["scenario-key", "part-key"],
+)
 def test_a_json_key_given_twice_is_refused(text):
     # TOML refuses a repeated key; JSON parsers keep the last one silently, so a reviewer
     # reading the first value would see another number than the one solved
-    with pytest.raises(ScenarioError, match=r"(twice|more than once|duplicate|repeated).*"
-                                            r"(head|gauge|format_version)|"
-                                            r"(head|gauge|format_version).*(twice|more than once|"
-                                            r"duplicate|repeated)"):
+    with pytest.raises(
+        ScenarioError,
+        match=r"(twice|more than once|duplicate|repeated).*"
+        r"(head|gauge|format_version)|"
+        r"(head|gauge|format_version).*(twice|more than once|"
+        r"duplicate|repeated)",
+    ):
         loads_scenarios(text, fmt="json")
 
 
 @pytest.mark.timeout(60)
-@pytest.mark.skipif(not hasattr(os, "mkfifo") or not Path("/dev/zero").exists(),
-                    reason="needs a POSIX system")
+@pytest.mark.skipif(
+    not hasattr(os, "mkfifo") or not Path("/dev/zero").exists(), reason="needs a POSIX system"
+)
 def test_special_files_are_refused_without_reading_forever(tmp_path, capsys):
     # an endless device and a pipe nobody writes to must not hang the loader
     fifo = tmp_path / "pipe.toml"

@@ -20,10 +20,14 @@ import ipywidgets as widgets  # noqa: E402
 
 _record = module_recorder("views", "views:")
 
-PAYLOAD = '<img src=x onerror=alert(1)><script>alert(2)</script>'
+PAYLOAD = "<img src=x onerror=alert(1)><script>alert(2)</script>"
 
-HOSTILE = hostile_scenario_file(title=PAYLOAD, name=PAYLOAD[:60], tube_label=PAYLOAD[:60],
-                                catheter_label="<b onmouseover=alert(3)>x</b>")
+HOSTILE = hostile_scenario_file(
+    title=PAYLOAD,
+    name=PAYLOAD[:60],
+    tube_label=PAYLOAD[:60],
+    catheter_label="<b onmouseover=alert(3)>x</b>",
+)
 
 
 def _html_values(widget):
@@ -51,8 +55,9 @@ def app(tmp_path_factory):
 def test_loaded_hostile_text_is_escaped_in_every_view(app):
     values = _html_values(app)
     bump("views:html_widgets_checked", len(values))
-    raw = [v for v in values for bad in ("<img src=x", "<script>alert", "<b onmouseover")
-           if bad in v]
+    raw = [
+        v for v in values for bad in ("<img src=x", "<script>alert", "<b onmouseover") if bad in v
+    ]
     assert raw == []
 
 
@@ -64,8 +69,10 @@ def test_the_hostile_labels_did_reach_the_views(app):
 
 def test_a_malformed_file_becomes_a_flag_in_the_status_line(app, tmp_path):
     bad = tmp_path / "bad.toml"
-    bad.write_text('format_version = 1\n[[scenario]]\nname = "<i>x</i>"\nfluid = "water"\n'
-                   'head = "300 mmHg"\n[[scenario.part]]\ntype = "catheter"\ngauge = 18\n')
+    bad.write_text(
+        'format_version = 1\n[[scenario]]\nname = "<i>x</i>"\nfluid = "water"\n'
+        'head = "300 mmHg"\n[[scenario.part]]\ntype = "catheter"\ngauge = 18\n'
+    )
     files = app.views["files"]
     files.controls["scenario_path"].value = str(bad)
     files._run(files.load)
@@ -79,7 +86,7 @@ def test_the_files_view_never_overwrites_unless_asked(app, tmp_path):
     target = tmp_path / "mine.toml"
     target.write_text("# my own notes\n")
     files.controls["scenario_path"].value = str(target)
-    assert files._run(files.save) is False          # refused, shown as a flag
+    assert files._run(files.save) is False  # refused, shown as a flag
     assert target.read_text() == "# my own notes\n"
     folder = tmp_path / "pack"
     folder.mkdir()
@@ -145,16 +152,26 @@ def test_unwritable_targets_become_flags_not_tracebacks(app, tmp_path):
 def _upload(files, name, content):
     import datetime
 
-    files.upload.value = ({"name": name, "type": "", "size": len(content),
-                           "content": memoryview(content),
-                           "last_modified": datetime.datetime.now(datetime.UTC)},)
+    files.upload.value = (
+        {
+            "name": name,
+            "type": "",
+            "size": len(content),
+            "content": memoryview(content),
+            "last_modified": datetime.datetime.now(datetime.UTC),
+        },
+    )
 
 
-@pytest.mark.parametrize("name, content", [
-    ("latin-1.toml", "format_version = 1\ntitle = \"caf\u00e9\"\n".encode("latin-1")),
-    ("binary.toml", b"\xff\xfe\x00\x01 not text"),
-    ("huge.json", b"[" * 1_100_000),
-], ids=["latin-1", "binary", "oversized"])
+@pytest.mark.parametrize(
+    "name, content",
+    [
+        ("latin-1.toml", 'format_version = 1\ntitle = "caf\u00e9"\n'.encode("latin-1")),
+        ("binary.toml", b"\xff\xfe\x00\x01 not text"),
+        ("huge.json", b"[" * 1_100_000),
+    ],
+    ids=["latin-1", "binary", "oversized"],
+)
 def test_an_uploaded_bad_file_becomes_a_flag(app, name, content):
     # the app's upload button gets whatever bytes a colleague sent
     files = app.views["files"]

@@ -46,7 +46,9 @@ def test_carreau_yasuda_with_a_2_is_carreau():
     # Bird et al. 1987: a = 2 reduces Carreau-Yasuda to Carreau
     kw = {"mu_zero": 0.05, "mu_inf": 0.004, "relaxation_time": 0.7, "flow_index": 0.4}
     g = np.logspace(-3, 4, 15)
-    assert np.allclose(CarreauYasuda(**kw, a=2.0).viscosity(g), Carreau(**kw).viscosity(g), rtol=1e-14)
+    assert np.allclose(
+        CarreauYasuda(**kw, a=2.0).viscosity(g), Carreau(**kw).viscosity(g), rtol=1e-14
+    )
 
 
 def test_casson_by_hand():
@@ -84,7 +86,9 @@ def test_array_parameters_broadcast():
     g = np.array([[1.0], [10.0], [100.0]])
     out = m.viscosity(g)
     assert out.shape == (3, 2)
-    assert out[0, 1] == Carreau(mu_zero=0.06, mu_inf=0.004, relaxation_time=1.0, flow_index=0.5).viscosity(1.0)
+    assert out[0, 1] == Carreau(
+        mu_zero=0.06, mu_inf=0.004, relaxation_time=1.0, flow_index=0.5
+    ).viscosity(1.0)
 
 
 def test_parameters_and_describe():
@@ -96,7 +100,9 @@ def test_parameters_and_describe():
 
 
 def test_registry_names_match_classes():
-    assert {name: cls.name for name, cls in RHEOLOGY_MODELS.items()} == {n: n for n in RHEOLOGY_MODELS}
+    assert {name: cls.name for name, cls in RHEOLOGY_MODELS.items()} == {
+        n: n for n in RHEOLOGY_MODELS
+    }
 
 
 def test_bad_parameters_raise_naming_field():

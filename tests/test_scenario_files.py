@@ -35,8 +35,12 @@ MMHG_PA = 133.3224
 
 def one(**fields):
     """A valid one-scenario document (plain data) with ``fields`` overriding the defaults."""
-    scenario = {"name": "case", "fluid": "water", "head": "1 m",
-                "part": [{"type": "catheter", "gauge": 18}]}
+    scenario = {
+        "name": "case",
+        "fluid": "water",
+        "head": "1 m",
+        "part": [{"type": "catheter", "gauge": 18}],
+    }
     scenario.update(fields)
     scenario = {k: v for k, v in scenario.items() if v is not None}
     return {"format_version": 1, "scenario": [scenario]}
@@ -87,8 +91,14 @@ def test_demo_covers_the_review_brief():
 
 # --------------------------------------------------------------------------- units
 def test_quantities_parse_to_si():
-    s = parse_scenarios(one(source_pressure="300 mmHg", back_pressure="10 cmH2O",
-                            temperature="37 degC", head="80 cm")).scenarios[0]
+    s = parse_scenarios(
+        one(
+            source_pressure="300 mmHg",
+            back_pressure="10 cmH2O",
+            temperature="37 degC",
+            head="80 cm",
+        )
+    ).scenarios[0]
     assert s.values["source_pressure"] == pytest.approx(300 * MMHG_PA, rel=1e-6)
     assert s.values["back_pressure"] == pytest.approx(980.665, rel=1e-9)
     assert s.values["temperature"] == pytest.approx(37.0)
@@ -96,13 +106,19 @@ def test_quantities_parse_to_si():
 
 
 def test_bare_numbers_take_the_documented_default_unit():
-    s = parse_scenarios(one(head=1.2, source_pressure=300, temperature=4,
-                            part=[{"type": "tube", "inner_diameter": 3, "length": 1.8}])).scenarios[0]
-    assert s.values["head"] == pytest.approx(1.2)                      # m
+    s = parse_scenarios(
+        one(
+            head=1.2,
+            source_pressure=300,
+            temperature=4,
+            part=[{"type": "tube", "inner_diameter": 3, "length": 1.8}],
+        )
+    ).scenarios[0]
+    assert s.values["head"] == pytest.approx(1.2)  # m
     assert s.values["source_pressure"] == pytest.approx(300 * MMHG_PA, rel=1e-6)  # mmHg
-    assert s.values["temperature"] == pytest.approx(4.0)               # degC
+    assert s.values["temperature"] == pytest.approx(4.0)  # degC
     assert s.parts[0].values["inner_diameter"] == pytest.approx(3e-3)  # mm
-    assert s.parts[0].values["length"] == pytest.approx(1.8)           # m
+    assert s.parts[0].values["length"] == pytest.approx(1.8)  # m
 
 
 def test_flow_mode_and_units():
@@ -116,13 +132,16 @@ def test_hematocrit_as_percent_string_is_a_fraction():
     assert s.values["hematocrit"] == pytest.approx(0.45)
 
 
-@pytest.mark.parametrize("field, value, match", [
-    ("source_pressure", "300 mL", "'mL' is not a unit of pressure"),
-    ("head", "100 mmHg", "head is a height of fluid"),
-    ("hematocrit", 45, "if that is a percent, write 0.45"),
-    ("temperature", "-5 degC", "outside the allowed range"),
-    ("back_pressure", float("nan"), "not a finite number"),
-])
+@pytest.mark.parametrize(
+    "field, value, match",
+    [
+        ("source_pressure", "300 mL", "'mL' is not a unit of pressure"),
+        ("head", "100 mmHg", "head is a height of fluid"),
+        ("hematocrit", 45, "if that is a percent, write 0.45"),
+        ("temperature", "-5 degC", "outside the allowed range"),
+        ("back_pressure", float("nan"), "not a finite number"),
+    ],
+)
 def test_unit_and_range_mistakes_name_the_field(field, value, match):
     with pytest.raises(ScenarioError, match=match) as info:
         parse_scenarios(one(**{field: value}), source="mine.toml")
@@ -150,14 +169,17 @@ def test_invisible_format_characters_in_names_are_refused(char, where):
     # bidirectional overrides and isolates can make a name read as another one
     # (Boucher & Anderson 2021, "Trojan Source: Invisible Vulnerabilities")
     text = f"18G{char} cart"
-    doc = one(part=[{"type": "catheter", "gauge": 18, "label": text}]) if where == "label" \
+    doc = (
+        one(part=[{"type": "catheter", "gauge": 18, "label": text}])
+        if where == "label"
         else one(**{where: text})
+    )
     with pytest.raises(ScenarioError, match=rf"invisible character U\+{ord(char):04X}.*remove"):
         parse_scenarios(doc)
 
 
 def test_joiners_that_emoji_and_scripts_need_are_kept():
-    name = "team \U0001F468\u200d\U0001F469 \u0645\u06cc\u200c\u062e\u0648\u0627\u0647\u0645"
+    name = "team \U0001f468\u200d\U0001f469 \u0645\u06cc\u200c\u062e\u0648\u0627\u0647\u0645"
     assert parse_scenarios(one(name=name)).scenarios[0].name == name
 
 
@@ -168,23 +190,34 @@ def test_gauge_given_as_a_diameter_points_to_inner_diameter():
 
 # --------------------------------------------------------------------------- sweeps
 def test_lists_expand_to_the_cross_product_in_file_order():
-    s = parse_scenarios(one(head=["50 cm", "1 m"], fluid=["water", "saline-0.9"],
-                            part=[{"type": "catheter", "gauge": [14, 18, 20]}])).scenarios[0]
+    s = parse_scenarios(
+        one(
+            head=["50 cm", "1 m"],
+            fluid=["water", "saline-0.9"],
+            part=[{"type": "catheter", "gauge": [14, 18, 20]}],
+        )
+    ).scenarios[0]
     assert s.n_points == 12
     points = sweep_points(s)
     assert len(points) == 12
     assert [p for p, _ in s.axes] == ["fluid", "head", "part[1].gauge"]
-    assert points[0] == {"fluid": ("water", "water"), "head": (0.5, "50 cm"),
-                         "part[1].gauge": (14, "14G")}
+    assert points[0] == {
+        "fluid": ("water", "water"),
+        "head": (0.5, "50 cm"),
+        "part[1].gauge": (14, "14G"),
+    }
     assert points[-1]["fluid"][0] == "saline-0.9" and points[-1]["part[1].gauge"][0] == 20
     assert len({tuple(v[0] for v in p.values()) for p in points}) == 12
 
 
 def test_range_tables_with_step_and_count():
-    s = parse_scenarios(one(head={"start": "50 cm", "stop": "150 cm", "step": "25 cm"},
-                            temperature={"start": "4 degC", "stop": "37 degC", "count": 3},
-                            part=[{"type": "catheter",
-                                   "gauge": {"start": 14, "stop": 24, "step": 2}}])).scenarios[0]
+    s = parse_scenarios(
+        one(
+            head={"start": "50 cm", "stop": "150 cm", "step": "25 cm"},
+            temperature={"start": "4 degC", "stop": "37 degC", "count": 3},
+            part=[{"type": "catheter", "gauge": {"start": 14, "stop": 24, "step": 2}}],
+        )
+    ).scenarios[0]
     head = s.values["head"]
     assert head.values == pytest.approx((0.5, 0.75, 1.0, 1.25, 1.5))
     assert head.shown == ("50 cm", "75 cm", "100 cm", "125 cm", "150 cm")
@@ -194,8 +227,9 @@ def test_range_tables_with_step_and_count():
 
 
 def test_temperature_step_is_a_difference():
-    s = parse_scenarios(one(temperature={"start": "20 degC", "stop": "30 degC",
-                                         "step": "5 K"})).scenarios[0]
+    s = parse_scenarios(
+        one(temperature={"start": "20 degC", "stop": "30 degC", "step": "5 K"})
+    ).scenarios[0]
     assert s.values["temperature"].values == pytest.approx((20.0, 25.0, 30.0))
 
 
@@ -205,12 +239,23 @@ def test_nothing_swept_is_one_point():
 
 
 def test_measured_part_lists_are_data_not_sweeps():
-    s = parse_scenarios(one(head=None, flow="100 mL/min", part=[{
-        "type": "measured", "flows": ["50 mL/min", "100 mL/min"],
-        "pressure_drops": ["10 mmHg", "30 mmHg"]}])).scenarios[0]
+    s = parse_scenarios(
+        one(
+            head=None,
+            flow="100 mL/min",
+            part=[
+                {
+                    "type": "measured",
+                    "flows": ["50 mL/min", "100 mL/min"],
+                    "pressure_drops": ["10 mmHg", "30 mmHg"],
+                }
+            ],
+        )
+    ).scenarios[0]
     assert s.n_points == 1
-    assert s.parts[0].values["pressure_drops"] == pytest.approx((10 * MMHG_PA, 30 * MMHG_PA),
-                                                                rel=1e-6)
+    assert s.parts[0].values["pressure_drops"] == pytest.approx(
+        (10 * MMHG_PA, 30 * MMHG_PA), rel=1e-6
+    )
 
 
 # --------------------------------------------------------------------------- limits
@@ -249,11 +294,13 @@ def test_total_points_limit(monkeypatch):
 def test_part_points_limit_counts_every_scenario(monkeypatch):
     # sweep points x parts over the whole file bounds the work a file can ask for
     monkeypatch.setattr(files, "MAX_PART_POINTS", 10)
-    parts = [{"type": "tube", "inner_diameter": "3 mm", "length": "1.8 m"},
-             {"type": "catheter", "gauge": 18}]
-    doc = one(head=["1 m", "2 m", "3 m"], part=parts)   # 3 points x 2 parts = 6
-    parse_scenarios(doc)                                 # one scenario fits
-    doc["scenario"].append(dict(doc["scenario"][0], name="second"))   # 12 > 10
+    parts = [
+        {"type": "tube", "inner_diameter": "3 mm", "length": "1.8 m"},
+        {"type": "catheter", "gauge": 18},
+    ]
+    doc = one(head=["1 m", "2 m", "3 m"], part=parts)  # 3 points x 2 parts = 6
+    parse_scenarios(doc)  # one scenario fits
+    doc["scenario"].append(dict(doc["scenario"][0], name="second"))  # 12 > 10
     with pytest.raises(ScenarioError, match="more than 10 part solves"):
         parse_scenarios(doc)
 
@@ -261,7 +308,7 @@ def test_part_points_limit_counts_every_scenario(monkeypatch):
 def test_file_tolerance_solves_limit(monkeypatch):
     monkeypatch.setattr(files, "MAX_FILE_TOLERANCE_SOLVES", 150)
     doc = one(tolerance={"temperature": "1 degC", "samples": 100})
-    parse_scenarios(doc)                            # 100 solves fit
+    parse_scenarios(doc)  # 100 solves fit
     doc["scenario"].append(dict(doc["scenario"][0], name="second"))
     with pytest.raises(ScenarioError, match="more than 150 tolerance solves"):
         parse_scenarios(doc)
@@ -281,8 +328,11 @@ def test_json_reads_like_toml():
 def test_a_json_key_given_twice_names_the_key_and_its_object(tmp_path):
     # RFC 8259 section 4: names within an object SHOULD be unique; TOML requires it
     text = json.dumps(one(head="1 m")).replace('"head": "1 m"', '"head": "1 m", "head": "10 m"')
-    with pytest.raises(ScenarioError, match=r"dup\.json: key 'head' is given more than once "
-                                            r"in one JSON object \(in the object named 'case'\)"):
+    with pytest.raises(
+        ScenarioError,
+        match=r"dup\.json: key 'head' is given more than once "
+        r"in one JSON object \(in the object named 'case'\)",
+    ):
         loads_scenarios(text, source="dup.json", fmt="json")
     path = tmp_path / "dup.json"
     path.write_text(json.dumps(one()).replace('"gauge": 18', '"gauge": 18, "gauge": 14'))
@@ -302,12 +352,15 @@ def test_save_never_overwrites_without_force(tmp_path):
     assert [p.name for p in tmp_path.iterdir()] == ["s.toml"]
 
 
-def test_save_where_nothing_can_be_written_is_a_scenario_error_naming_the_path(tmp_path,
-                                                                              monkeypatch):
+def test_save_where_nothing_can_be_written_is_a_scenario_error_naming_the_path(
+    tmp_path, monkeypatch
+):
     sset = parse_scenarios(one())
     (tmp_path / "a folder").mkdir()
-    cases = [(tmp_path / "a folder", "is a folder; give a file name"),
-             (tmp_path / "none" / "s.toml", "the folder .*none' does not exist")]
+    cases = [
+        (tmp_path / "a folder", "is a folder; give a file name"),
+        (tmp_path / "none" / "s.toml", "the folder .*none' does not exist"),
+    ]
     for target, match in cases:
         with pytest.raises(files.OutputError, match=match) as info:
             save_scenarios(sset, target, force=True)
@@ -318,15 +371,19 @@ def test_save_where_nothing_can_be_written_is_a_scenario_error_naming_the_path(t
         raise OSError(28, "No space left on device")
 
     monkeypatch.setattr(files.os, "replace", disk_full)
-    with pytest.raises(files.OutputError, match="s.toml: cannot write the scenario file: No "
-                                                "space left on device") as info:
+    with pytest.raises(
+        files.OutputError, match="s.toml: cannot write the scenario file: No space left on device"
+    ) as info:
         save_scenarios(sset, tmp_path / "s.toml")
     assert info.value.errno == 28 and info.value.reason == "No space left on device"
     assert sorted(p.name for p in tmp_path.iterdir()) == ["a folder"]  # no temporary file
 
 
-@pytest.mark.parametrize("path", sorted(p for p in MALFORMED.iterdir() if p.name != "expected.json"),
-                         ids=lambda p: p.name)
+@pytest.mark.parametrize(
+    "path",
+    sorted(p for p in MALFORMED.iterdir() if p.name != "expected.json"),
+    ids=lambda p: p.name,
+)
 def test_malformed_corpus_fails_in_the_loader_or_the_model_check(path):
     """Each file fails with a ScenarioError that names what its entry in expected.json says."""
     expected = json.loads((MALFORMED / "expected.json").read_text())[path.name]
@@ -348,24 +405,66 @@ def test_corpus_is_large_enough():
 
 
 # --------------------------------------------------------------------------- fuzz
-_leaf = st.one_of(st.none(), st.booleans(), st.integers(), st.floats(allow_nan=True),
-                  st.text(max_size=12),
-                  st.sampled_from(["300 mmHg", "1.8 m", "22 degC", "150 mL/h", "18G", "-1 m",
-                                   "nan", "3 mL", "catheter", "tube", "water"]))
-_keys = st.sampled_from(["name", "fluid", "head", "flow", "part", "type", "gauge", "length",
-                         "inner_diameter", "tolerance", "start", "stop", "step", "count",
-                         "scenario", "format_version", "temperature", "xyz"])
-_tree = st.recursive(_leaf, lambda kids: st.one_of(st.lists(kids, max_size=4),
-                                                   st.dictionaries(_keys, kids, max_size=5)),
-                     max_leaves=25)
+_leaf = st.one_of(
+    st.none(),
+    st.booleans(),
+    st.integers(),
+    st.floats(allow_nan=True),
+    st.text(max_size=12),
+    st.sampled_from(
+        [
+            "300 mmHg",
+            "1.8 m",
+            "22 degC",
+            "150 mL/h",
+            "18G",
+            "-1 m",
+            "nan",
+            "3 mL",
+            "catheter",
+            "tube",
+            "water",
+        ]
+    ),
+)
+_keys = st.sampled_from(
+    [
+        "name",
+        "fluid",
+        "head",
+        "flow",
+        "part",
+        "type",
+        "gauge",
+        "length",
+        "inner_diameter",
+        "tolerance",
+        "start",
+        "stop",
+        "step",
+        "count",
+        "scenario",
+        "format_version",
+        "temperature",
+        "xyz",
+    ]
+)
+_tree = st.recursive(
+    _leaf,
+    lambda kids: st.one_of(st.lists(kids, max_size=4), st.dictionaries(_keys, kids, max_size=5)),
+    max_leaves=25,
+)
 
 
 @given(_tree)
 def test_fuzzed_documents_give_a_scenario_error_or_a_valid_set(data):
     doc = {"format_version": 1, "scenario": [data]} if not isinstance(data, dict) else data
     for candidate in (data, doc):
-        candidate = {k: v for k, v in candidate.items() if v is not None} \
-            if isinstance(candidate, dict) else candidate
+        candidate = (
+            {k: v for k, v in candidate.items() if v is not None}
+            if isinstance(candidate, dict)
+            else candidate
+        )
         try:
             sset = parse_scenarios(candidate)
         except ScenarioError as exc:
@@ -374,17 +473,30 @@ def test_fuzzed_documents_give_a_scenario_error_or_a_valid_set(data):
             assert all(s.n_points >= 1 and math.isfinite(s.n_points) for s in sset.scenarios)
 
 
-@pytest.mark.parametrize("text", ["1 m/0", "1 (m", "1 m**(1/0)", "1 9**9**9", "1 m^999999999",
-                                  "1 10**1000 m", "1 __class__", "1 m; import os"])
+@pytest.mark.parametrize(
+    "text",
+    [
+        "1 m/0",
+        "1 (m",
+        "1 m**(1/0)",
+        "1 9**9**9",
+        "1 m^999999999",
+        "1 10**1000 m",
+        "1 __class__",
+        "1 m; import os",
+    ],
+)
 def test_hostile_unit_text_is_refused_before_pint(text):
     with pytest.raises(ScenarioError, match="field 'head'"):
         parse_scenarios(one(head=text))
 
 
 _EXAMPLE_TEXT = example_path("rapid-transfusion-cart").read_text(encoding="utf-8")
-_EDIT = st.tuples(st.integers(0, len(_EXAMPLE_TEXT)), st.integers(0, 8),
-                  st.text(alphabet=st.sampled_from(list('=[]{}"\',.-+#\n 0123456789eEnaifm%G')),
-                          max_size=6))
+_EDIT = st.tuples(
+    st.integers(0, len(_EXAMPLE_TEXT)),
+    st.integers(0, 8),
+    st.text(alphabet=st.sampled_from(list("=[]{}\"',.-+#\n 0123456789eEnaifm%G")), max_size=6),
+)
 
 
 @given(st.lists(_EDIT, min_size=1, max_size=4))
@@ -395,7 +507,7 @@ def test_mutated_example_text_gives_a_scenario_error_or_a_valid_set(edits):
     text = _EXAMPLE_TEXT
     for at, cut, insert in edits:
         at = min(at, len(text))
-        text = text[:at] + insert + text[at + cut:]
+        text = text[:at] + insert + text[at + cut :]
     try:
         sset = loads_scenarios(text, source="mutated.toml")
         check_scenarios(sset)

@@ -61,7 +61,8 @@ def test_zero_stenosis_limit_is_the_plain_segment():
 def test_diameter_and_area_statements_agree():
     # geometry: 50 % diameter reduction leaves (0.5)^2 = 25 % of the area, a 75 % area reduction
     assert throat_diameter(4e-3, 50.0, "diameter") == pytest.approx(
-        throat_diameter(4e-3, 75.0, "area"), rel=1e-12)
+        throat_diameter(4e-3, 75.0, "area"), rel=1e-12
+    )
     v = artery()
     a = stenosis_flow_fraction_lost(v, 1000.0, 75.0, kind="area")
     d = stenosis_flow_fraction_lost(v, 1000.0, 50.0, kind="diameter")

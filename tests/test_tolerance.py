@@ -40,8 +40,9 @@ def test_viscosity_and_fluid_tolerances():
     # laminar: Q ~ 1/mu, so the extremes are 1/1.1 and 1/0.9 of nominal
     assert band.samples.min() / band.nominal == pytest.approx(1 / 1.1, rel=0.01)
     blood = rheoline.fluid("whole-blood", hematocrit=0.45, temperature_c=37.0)
-    band = flow_tolerance(line, blood, head=1.0, hematocrit_tolerance=0.05,
-                          temperature_tolerance=1.0, n_samples=2000)
+    band = flow_tolerance(
+        line, blood, head=1.0, hematocrit_tolerance=0.05, temperature_tolerance=1.0, n_samples=2000
+    )
     assert band.dominant_input == "hematocrit"
     assert band.dominant_part is None
 
@@ -67,11 +68,13 @@ def test_bad_tolerance_input():
     with pytest.raises(InputRangeError, match="is relative \\(0.05 = 5 %\\)"):
         flow_tolerance(line, WATER, head=1.0, diameter_tolerance=5.0)
     with pytest.raises(InputRangeError, match="hematocrit_tolerance needs a blood fluid"):
-        flow_tolerance(line, rheoline.fluid("water", temperature_c=22.0), head=1.0,
-                       hematocrit_tolerance=0.02)
+        flow_tolerance(
+            line, rheoline.fluid("water", temperature_c=22.0), head=1.0, hematocrit_tolerance=0.02
+        )
     with pytest.raises(InputRangeError, match="needs fluid_builder for the user fluid"):
-        flow_tolerance(line, newtonian_fluid("bench oil", 0.05, 870.0), head=1.0,
-                       temperature_tolerance=1.0)
+        flow_tolerance(
+            line, newtonian_fluid("bench oil", 0.05, 870.0), head=1.0, temperature_tolerance=1.0
+        )
     with pytest.raises(InputRangeError, match="distribution 'flat' is not known"):
         flow_tolerance(line, WATER, head=1.0, diameter_tolerance=0.01, distribution="flat")
 
@@ -81,16 +84,26 @@ def test_array_scenarios_equal_one_call_per_scenario():
     # a vectorized band over heads and bores equals the bands computed one scenario at a time
     bores = np.array([0.8e-3, 1.0e-3, 1.2e-3])
     heads = np.array([[0.5], [1.0]])
-    line = Line([Tube(inner_diameter=3e-3, length=1.8),
-                 Tube(inner_diameter=bores, length=0.03, name="tip")])
-    kwargs = dict(diameter_tolerance={1: 0.05}, length_tolerance=0.02, viscosity_tolerance=0.05,
-                  n_samples=500, seed=3)
+    line = Line(
+        [Tube(inner_diameter=3e-3, length=1.8), Tube(inner_diameter=bores, length=0.03, name="tip")]
+    )
+    kwargs = dict(
+        diameter_tolerance={1: 0.05},
+        length_tolerance=0.02,
+        viscosity_tolerance=0.05,
+        n_samples=500,
+        seed=3,
+    )
     band = flow_tolerance(line, WATER, head=heads, **kwargs)
     assert band.samples.shape == (500, 2, 3)
     assert band.percentiles[50.0].shape == (2, 3) and band.dominant_input.shape == (2, 3)
     for i, j in [(0, 0), (1, 2)]:
-        one_line = Line([Tube(inner_diameter=3e-3, length=1.8),
-                         Tube(inner_diameter=bores[j], length=0.03, name="tip")])
+        one_line = Line(
+            [
+                Tube(inner_diameter=3e-3, length=1.8),
+                Tube(inner_diameter=bores[j], length=0.03, name="tip"),
+            ]
+        )
         one = flow_tolerance(one_line, WATER, head=float(heads[i, 0]), **kwargs)
         np.testing.assert_allclose(band.samples[:, i, j], one.samples, rtol=1e-10)
         assert band.nominal[i, j] == pytest.approx(one.nominal, rel=1e-12)
@@ -101,12 +114,15 @@ def test_array_scenarios_equal_one_call_per_scenario():
         assert band.dominant_part[i, j] == one.dominant_part
 
 
-@pytest.mark.parametrize("name, options", [
-    ("glycerol-water", {"mass_fraction": 0.5}),
-    ("whole-blood", {"hematocrit": 0.4, "model": "casson"}),
-    ("packed-red-cells", {"model": "power-law"}),
-    ("albumin-20", {"concentration": 250.0}),
-])
+@pytest.mark.parametrize(
+    "name, options",
+    [
+        ("glycerol-water", {"mass_fraction": 0.5}),
+        ("whole-blood", {"hematocrit": 0.4, "model": "casson"}),
+        ("packed-red-cells", {"model": "power-law"}),
+        ("albumin-20", {"concentration": 250.0}),
+    ],
+)
 def test_default_builder_keeps_the_library_options(name, options):
     # the default builder must rebuild the fluid with its own options (mass fraction, blood
     # model, albumin concentration), i.e. give the same band as an explicit builder
@@ -115,8 +131,9 @@ def test_default_builder_keeps_the_library_options(name, options):
     fixed = {k: v for k, v in options.items() if k != "hematocrit"}
     kwargs = dict(head=1.0, temperature_tolerance=2.0, n_samples=300, seed=5)
     band = flow_tolerance(line, nominal, **kwargs)
-    explicit = flow_tolerance(line, nominal, **kwargs,
-                              fluid_builder=lambda **kw: rheoline.fluid(name, **fixed, **kw))
+    explicit = flow_tolerance(
+        line, nominal, **kwargs, fluid_builder=lambda **kw: rheoline.fluid(name, **fixed, **kw)
+    )
     np.testing.assert_allclose(band.samples, explicit.samples, rtol=1e-6)
     assert band.percentiles[5.0] < band.nominal < band.percentiles[95.0]
 
@@ -124,11 +141,19 @@ def test_default_builder_keeps_the_library_options(name, options):
 def test_default_builder_refuses_a_fluid_it_cannot_reproduce():
     line = Line([Catheter(gauge=20)])
     thick = scale_viscosity(rheoline.fluid("water", temperature_c=22.0), 2.0)
-    with pytest.raises(InputRangeError, match=r"'water' rebuilt .* does not reproduce the fluid "
-                                              r"given .*fluid_builder"):
+    with pytest.raises(
+        InputRangeError,
+        match=r"'water' rebuilt .* does not reproduce the fluid "
+        r"given .*fluid_builder",
+    ):
         flow_tolerance(line, thick, head=1.0, temperature_tolerance=1.0)
     # with its own builder it runs
-    band = flow_tolerance(line, thick, head=1.0, temperature_tolerance=1.0, n_samples=100,
-                          fluid_builder=lambda **kw: scale_viscosity(rheoline.fluid("water", **kw),
-                                                                     2.0))
+    band = flow_tolerance(
+        line,
+        thick,
+        head=1.0,
+        temperature_tolerance=1.0,
+        n_samples=100,
+        fluid_builder=lambda **kw: scale_viscosity(rheoline.fluid("water", **kw), 2.0),
+    )
     assert band.dominant_input == "temperature"

@@ -36,10 +36,17 @@ def test_parse_against_nist_sp811(text, kind, si):
 
 @pytest.mark.parametrize(
     ("text", "kind", "si"),
-    [("300 mm Hg", "pressure", 300 * 133.322387415), ("10 cm H2O", "pressure", 980.665),
-     ("10 cmH20", "pressure", 980.665), ("1.1 mPas", "viscosity", 1.1e-3),
-     ("1.1 mPa·s", "viscosity", 1.1e-3), ("1 g/cm3", "density", 1000.0), ("150 ml/hr", "flow", 150e-6 / 3600),
-     ("37 °C", "temperature", 37.0), ("-5 degC", "temperature", -5.0)],
+    [
+        ("300 mm Hg", "pressure", 300 * 133.322387415),
+        ("10 cm H2O", "pressure", 980.665),
+        ("10 cmH20", "pressure", 980.665),
+        ("1.1 mPas", "viscosity", 1.1e-3),
+        ("1.1 mPa·s", "viscosity", 1.1e-3),
+        ("1 g/cm3", "density", 1000.0),
+        ("150 ml/hr", "flow", 150e-6 / 3600),
+        ("37 °C", "temperature", 37.0),
+        ("-5 degC", "temperature", -5.0),
+    ],
 )
 def test_practitioner_spellings(text, kind, si):
     # the same NIST SP 811 factors, reached through the spellings found on forms and labels
@@ -60,24 +67,34 @@ def test_format_round_trips():
 
 
 def test_bare_number_with_default_unit():
-    assert parse_quantity(300, "pressure", default_unit="mmHg") == pytest.approx(300 * 133.322387415)
-    assert parse_quantity("300", "pressure", default_unit="mmHg") == pytest.approx(300 * 133.322387415)
+    assert parse_quantity(300, "pressure", default_unit="mmHg") == pytest.approx(
+        300 * 133.322387415
+    )
+    assert parse_quantity("300", "pressure", default_unit="mmHg") == pytest.approx(
+        300 * 133.322387415
+    )
 
 
 def test_wrong_kind_names_field_and_units():
-    with pytest.raises(UnitError, match=r"drive\.pressure: 'mL' is not a unit of pressure \(Pa, kPa, mmHg"):
+    with pytest.raises(
+        UnitError, match=r"drive\.pressure: 'mL' is not a unit of pressure \(Pa, kPa, mmHg"
+    ):
         parse_quantity("300 mL", "pressure", field="drive.pressure")
 
 
 def test_missing_unit_names_field():
-    with pytest.raises(UnitError, match=r"drive\.pressure: '300' has no unit; write it with one of Pa"):
+    with pytest.raises(
+        UnitError, match=r"drive\.pressure: '300' has no unit; write it with one of Pa"
+    ):
         parse_quantity("300", "pressure", field="drive.pressure")
     with pytest.raises(UnitError, match=r"flow: a bare number 5 needs a unit.*'5 mL/h'"):
         parse_quantity(5, "flow", field="flow")
 
 
 def test_unknown_unit_and_garbage():
-    with pytest.raises(UnitError, match=r"viscosity: unknown unit 'cPz'; use one of Pa s, mPa s, cP, P"):
+    with pytest.raises(
+        UnitError, match=r"viscosity: unknown unit 'cPz'; use one of Pa s, mPa s, cP, P"
+    ):
         parse_quantity("1 cPz", "viscosity", field="viscosity")
     with pytest.raises(UnitError, match=r"cannot read 'abc' as a number with a unit"):
         parse_quantity("abc", "pressure")

@@ -49,15 +49,15 @@ def newtonian_vessel(radius=1e-3, length=0.1, viscosity=3.5e-3):
         (500.0, 0.60, 4.72110),
     ],
 )
-def test_pries_1992_relative_viscosity_from_published_equations(diameter_um, hematocrit,
-                                                                expected):
+def test_pries_1992_relative_viscosity_from_published_equations(diameter_um, hematocrit, expected):
     vessel = Vessel(radius=diameter_um * 0.5e-6, length=1e-3, hematocrit=hematocrit)
     # hand arithmetic above carries 6 digits
     assert vessel.relative_viscosity == pytest.approx(expected, rel=2e-5)
     # the apparent viscosity is the relative one times plasma viscosity at 37 degC
     assert vessel.apparent_viscosity == pytest.approx(
         pries_1992_relative_viscosity(diameter_um * 1e-6, hematocrit) * plasma_viscosity(37.0),
-        rel=1e-12)
+        rel=1e-12,
+    )
 
 
 def test_pries_1992_plasma_only_is_plasma():
@@ -87,16 +87,20 @@ def test_pries_1994_higher_in_microvessels_and_joins_in_vitro_when_large():
     # Pries et al. 1994: resistance in microvascular networks in vivo is well above the
     # in-vitro prediction in small vessels; the laws join at large diameters (from memory).
     small = np.array([8e-6, 15e-6, 30e-6])
-    assert np.all(pries_1994_relative_viscosity(small, 0.45)
-                  > 1.3 * pries_1992_relative_viscosity(small, 0.45))
+    assert np.all(
+        pries_1994_relative_viscosity(small, 0.45)
+        > 1.3 * pries_1992_relative_viscosity(small, 0.45)
+    )
     assert pries_1994_relative_viscosity(1.5e-3, 0.45) == pytest.approx(
-        pries_1992_relative_viscosity(1.5e-3, 0.45), rel=0.005)
+        pries_1992_relative_viscosity(1.5e-3, 0.45), rel=0.005
+    )
 
 
 def test_vessel_uses_pries_1994_when_asked():
     v = Vessel(radius=10e-6, length=1e-3, viscosity_law="pries-1994")
-    assert v.relative_viscosity == pytest.approx(pries_1994_relative_viscosity(20e-6, 0.45),
-                                                 rel=1e-12)
+    assert v.relative_viscosity == pytest.approx(
+        pries_1994_relative_viscosity(20e-6, 0.45), rel=1e-12
+    )
 
 
 # --- Poiseuille scaling ---------------------------------------------------------------------
@@ -139,8 +143,9 @@ def test_pries_radius_doubling_in_capillaries_falls_more_than_sixteen_fold():
     # Pries 1992: below the viscosity minimum (about 6-7 um) apparent viscosity rises
     # steeply as the tube narrows, so doubling D from 4 to 8 um cuts R by more than 16.
     # (By hand: mu_rel(4 um) = 2.307, mu_rel(8 um) = 1.267, so about 16 * 1.82 = 29.)
-    ratio = Vessel(radius=2e-6, length=1e-4).resistance / Vessel(radius=4e-6,
-                                                                 length=1e-4).resistance
+    ratio = (
+        Vessel(radius=2e-6, length=1e-4).resistance / Vessel(radius=4e-6, length=1e-4).resistance
+    )
     assert ratio > 16.0
     assert ratio == pytest.approx(16.0 * 2.307 / 1.267, rel=2e-3)
 
@@ -148,8 +153,9 @@ def test_pries_radius_doubling_in_capillaries_falls_more_than_sixteen_fold():
 def test_pries_radius_doubling_in_arterioles_falls_less_than_sixteen_fold():
     # Fahraeus & Lindqvist 1931, Pries 1992: from about 10 um to 1 mm apparent viscosity
     # grows with diameter, so the fall on doubling is less than Poiseuille's 16.
-    ratio = Vessel(radius=25e-6, length=1e-3).resistance / Vessel(radius=50e-6,
-                                                                  length=1e-3).resistance
+    ratio = (
+        Vessel(radius=25e-6, length=1e-3).resistance / Vessel(radius=50e-6, length=1e-3).resistance
+    )
     assert 10.0 < ratio < 16.0
 
 
@@ -164,12 +170,12 @@ def test_resistance_vs_radius_curve():
 
 def test_resistance_vs_hematocrit_hemodilution_lowers_resistance():
     # Pries 1992: relative viscosity rises with hematocrit at every diameter
-    curve = resistance_vs_hematocrit(Vessel(radius=50e-6, length=1e-3),
-                                     [0.0, 0.2, 0.3, 0.45, 0.6])
+    curve = resistance_vs_hematocrit(Vessel(radius=50e-6, length=1e-3), [0.0, 0.2, 0.3, 0.45, 0.6])
     assert np.all(np.diff(curve.resistance) > 0)
     assert curve.relative_resistance[3] == pytest.approx(1.0)
     assert curve.resistance[0] == pytest.approx(
-        8 * plasma_viscosity(37.0) * 1e-3 / (np.pi * (50e-6) ** 4), rel=1e-12)
+        8 * plasma_viscosity(37.0) * 1e-3 / (np.pi * (50e-6) ** 4), rel=1e-12
+    )
 
 
 def test_resistance_vs_temperature_follows_plasma_viscosity():
@@ -177,20 +183,21 @@ def test_resistance_vs_temperature_follows_plasma_viscosity():
     # resistance ratio equals the plasma viscosity ratio.
     curve = resistance_vs_temperature(Vessel(radius=50e-6, length=1e-3), [25.0, 37.0])
     assert curve.relative_resistance[0] == pytest.approx(
-        plasma_viscosity(25.0) / plasma_viscosity(37.0), rel=1e-12)
+        plasma_viscosity(25.0) / plasma_viscosity(37.0), rel=1e-12
+    )
     # hypothermia raises resistance (plasma thickens on cooling)
     assert curve.relative_resistance[0] > 1.0
 
 
 def test_resistance_elasticity_length_is_one():
     assert resistance_elasticity(Vessel(radius=50e-6, length=1e-3), "length") == pytest.approx(
-        1.0, rel=1e-9)
+        1.0, rel=1e-9
+    )
 
 
 def test_sensitivity_table_has_units_in_columns():
     frame = resistance_vs_radius(newtonian_vessel(), [1e-3, 2e-3]).to_frame()
-    assert list(frame.columns) == ["radius [m]", "resistance [Pa s/m^3]",
-                                   "relative resistance [-]"]
+    assert list(frame.columns) == ["radius [m]", "resistance [Pa s/m^3]", "relative resistance [-]"]
 
 
 def test_fahraeus_lindqvist_curve_minimum_and_rise():
@@ -300,8 +307,7 @@ def test_pries_resistance_rises_with_hematocrit(radius, hematocrit, step):
     # Pries 1992 and 1994: relative viscosity grows with discharge hematocrit at every diameter
     for law in ("pries-1992", "pries-1994"):
         low = Vessel(radius=radius, length=1e-3, hematocrit=hematocrit, viscosity_law=law)
-        high = Vessel(radius=radius, length=1e-3, hematocrit=hematocrit + step,
-                      viscosity_law=law)
+        high = Vessel(radius=radius, length=1e-3, hematocrit=hematocrit + step, viscosity_law=law)
         assert high.resistance > low.resistance
 
 
@@ -345,9 +351,17 @@ def test_catheter_wider_than_vein_raises():
 
 def test_public_names_of_vessels_and_hemodynamics_resolve():
     # every name this area adds to rheoline's lazy map loads from its module
-    names = [name for name, module in rheoline._LAZY.items()
-             if module in ("rheoline.model.vessels", "rheoline.model.stenosis",
-                           "rheoline.model.network", "rheoline.model.hemodynamics")]
+    names = [
+        name
+        for name, module in rheoline._LAZY.items()
+        if module
+        in (
+            "rheoline.model.vessels",
+            "rheoline.model.stenosis",
+            "rheoline.model.network",
+            "rheoline.model.hemodynamics",
+        )
+    ]
     assert len(names) >= 20
     for name in names:
         assert callable(getattr(rheoline, name)), name

@@ -37,13 +37,20 @@ def test_water_viscosity_matches_coolprop():
 
 @pytest.mark.parametrize(
     ("temperature_k", "density", "expected_upa_s"),
-    [(298.15, 998.0, 889.735100), (298.15, 1200.0, 1437.649467), (373.15, 1000.0, 307.883622),
-     (433.15, 1.0, 14.538324), (873.15, 600.0, 77.430195)],
+    [
+        (298.15, 998.0, 889.735100),
+        (298.15, 1200.0, 1437.649467),
+        (373.15, 1000.0, 307.883622),
+        (433.15, 1.0, 14.538324),
+        (873.15, 600.0, 77.430195),
+    ],
 )
 def test_iapws_2008_check_values(temperature_k, density, expected_upa_s):
     # source: IAPWS R12-08, Table 4 (check values without critical enhancement)
     # the table gives six decimals: agree to the last one
-    assert v.iapws_2008_viscosity(temperature_k, density) * 1e6 == pytest.approx(expected_upa_s, abs=1e-6)
+    assert v.iapws_2008_viscosity(temperature_k, density) * 1e6 == pytest.approx(
+        expected_upa_s, abs=1e-6
+    )
 
 
 def test_water_trade_values():
@@ -108,8 +115,12 @@ def test_laliberte_nacl_matches_thermo(temperature_c, mass_fraction):
     t_k = temperature_c + 273.15
     mu_ref = electrochem.Laliberte_viscosity(t_k, [mass_fraction], [NACL])
     rho_ref = electrochem.Laliberte_density(t_k, [mass_fraction], [NACL])
-    assert v.laliberte_2007_viscosity({"NaCl": mass_fraction}, temperature_c) == pytest.approx(mu_ref, rel=0.01)
-    assert v.laliberte_cooper_2004_density({"NaCl": mass_fraction}, temperature_c) == pytest.approx(rho_ref, rel=0.001)
+    assert v.laliberte_2007_viscosity({"NaCl": mass_fraction}, temperature_c) == pytest.approx(
+        mu_ref, rel=0.01
+    )
+    assert v.laliberte_cooper_2004_density({"NaCl": mass_fraction}, temperature_c) == pytest.approx(
+        rho_ref, rel=0.001
+    )
 
 
 @pytest.mark.parametrize("temperature_c", [20.0, 37.0])
@@ -139,11 +150,13 @@ def test_lactated_ringers_salts_match_thermo_mixture():
     # source: thermo.electrochem.Laliberte_viscosity mixture rule for NaCl + KCl + CaCl2
     electrochem = pytest.importorskip("thermo.electrochem")
     ws = v.solution_mass_fractions(v.LACTATED_RINGERS_G_PER_L)
-    ref = electrochem.Laliberte_viscosity(310.15, [float(ws["NaCl"]), float(ws["KCl"]), float(ws["CaCl2"])],
-                                          [NACL, KCL, CACL2])
+    ref = electrochem.Laliberte_viscosity(
+        310.15, [float(ws["NaCl"]), float(ws["KCl"]), float(ws["CaCl2"])], [NACL, KCL, CACL2]
+    )
     assert v.lactated_ringers_viscosity(37.0) == pytest.approx(ref, rel=0.01)
-    rho_ref = electrochem.Laliberte_density(310.15, [float(ws["NaCl"]), float(ws["KCl"]), float(ws["CaCl2"])],
-                                            [NACL, KCL, CACL2])
+    rho_ref = electrochem.Laliberte_density(
+        310.15, [float(ws["NaCl"]), float(ws["KCl"]), float(ws["CaCl2"])], [NACL, KCL, CACL2]
+    )
     assert v.lactated_ringers_density(37.0) == pytest.approx(rho_ref, rel=1e-3)
 
 
@@ -169,7 +182,9 @@ def test_albumin_orders_and_density():
 
 
 def test_laliberte_unknown_solute_names_choices():
-    with pytest.raises(InputRangeError, match=r"solute 'NaBr'.*choose from \['CaCl2', 'KCl', 'NaCl'\]"):
+    with pytest.raises(
+        InputRangeError, match=r"solute 'NaBr'.*choose from \['CaCl2', 'KCl', 'NaCl'\]"
+    ):
         v.laliberte_2007_viscosity({"NaBr": 0.01}, 20.0)
 
 
@@ -181,7 +196,9 @@ def test_laliberte_mass_fractions_must_leave_water():
 
 
 def test_albumin_concentration_range():
-    with pytest.raises(InputRangeError, match=r"concentration must lie between 0 and 300 kg/m\^3.*50 for a 5 %"):
+    with pytest.raises(
+        InputRangeError, match=r"concentration must lie between 0 and 300 kg/m\^3.*50 for a 5 %"
+    ):
         v.albumin_viscosity(500.0, 20.0)
 
 
@@ -221,10 +238,14 @@ def test_glycerol_pure_and_water_ends():
     # source: Segur & Oberstar 1951 - pure glycerol 1410 mPa s at 20 degC (from memory), within 5 %
     assert v.glycerol_water_viscosity(1.0, 20.0) == pytest.approx(1.410, rel=0.05)
     # Cheng 2008 at C_m = 0 reduces to water (IAPWS 2008 here)
-    assert v.glycerol_water_viscosity(0.0, 25.0) == pytest.approx(v.water_viscosity(25.0), rel=1e-12)
+    assert v.glycerol_water_viscosity(0.0, 25.0) == pytest.approx(
+        v.water_viscosity(25.0), rel=1e-12
+    )
 
 
-@pytest.mark.parametrize(("mass_fraction", "density"), [(0.4, 1099.3), (0.5, 1126.3), (0.8, 1208.5), (1.0, 1261.3)])
+@pytest.mark.parametrize(
+    ("mass_fraction", "density"), [(0.4, 1099.3), (0.5, 1126.3), (0.8, 1208.5), (1.0, 1261.3)]
+)
 def test_glycerol_water_density_20c(mass_fraction, density):
     # source: Segur & Oberstar 1951 density table at 20 degC (values from memory), within 0.3 %
     assert v.glycerol_water_density(mass_fraction, 20.0) == pytest.approx(density, rel=3e-3)
@@ -270,18 +291,26 @@ def test_glycerol_vectorized_equals_scalar():
 
 
 def test_glycerol_inverse_out_of_reach_names_limits():
-    with pytest.raises(InputRangeError, match=r"cannot be reached.*between 0\.001002 \(water\) and 1\.4\d* Pa s"):
+    with pytest.raises(
+        InputRangeError, match=r"cannot be reached.*between 0\.001002 \(water\) and 1\.4\d* Pa s"
+    ):
         v.glycerol_fraction_for_viscosity(0.5e-3, 20.0)
     with pytest.raises(InputRangeError, match=r"cannot be reached"):
         v.glycerol_fraction_for_viscosity(5.0, 20.0)
 
 
 def test_glycerol_fraction_as_percent_suggests_fraction():
-    with pytest.raises(InputRangeError, match=r"mass_fraction must be a fraction.*got 40; if that is wt %, pass 0\.4"):
+    with pytest.raises(
+        InputRangeError,
+        match=r"mass_fraction must be a fraction.*got 40; if that is wt %, pass 0\.4",
+    ):
         v.glycerol_water_viscosity(40.0, 20.0)
 
 
 def test_laliberte_warns_above_fitted_concentration():
     # Laliberte 2009 compilation: NaCl coefficients fitted up to a mass fraction of about 0.26
-    with pytest.warns(RangeWarning, match=r"mass fraction of NaCl 0\.3\.\.0\.3 is outside the validated range 0\.\.0\.2645"):
+    with pytest.warns(
+        RangeWarning,
+        match=r"mass fraction of NaCl 0\.3\.\.0\.3 is outside the validated range 0\.\.0\.2645",
+    ):
         v.laliberte_2007_viscosity({"NaCl": 0.3}, 20.0)

@@ -23,26 +23,36 @@ WIDGETS_DIR = Path(rheoline.__file__).parent / "widgets"
 # simulation of color vision deficiency", IEEE TVCG 15(6), 2009: severity-1.0 matrices on
 # linear RGB.  # from memory
 MACHADO_2009 = {
-    "protanopia": [[0.152286, 1.052583, -0.204868], [0.114503, 0.786281, 0.099216],
-                   [-0.003882, -0.048116, 1.051998]],
-    "deuteranopia": [[0.367322, 0.860646, -0.227968], [0.280085, 0.672501, 0.047413],
-                     [-0.011820, 0.042940, 0.968881]],
-    "tritanopia": [[1.255528, -0.076749, -0.178779], [-0.078411, 0.930809, 0.147602],
-                   [0.004733, 0.691367, 0.303900]],
+    "protanopia": [
+        [0.152286, 1.052583, -0.204868],
+        [0.114503, 0.786281, 0.099216],
+        [-0.003882, -0.048116, 1.051998],
+    ],
+    "deuteranopia": [
+        [0.367322, 0.860646, -0.227968],
+        [0.280085, 0.672501, 0.047413],
+        [-0.011820, 0.042940, 0.968881],
+    ],
+    "tritanopia": [
+        [1.255528, -0.076749, -0.178779],
+        [-0.078411, 0.930809, 0.147602],
+        [0.004733, 0.691367, 0.303900],
+    ],
     "normal vision": np.eye(3),
 }
 
 
 def _linear_rgb(hex_colour):
-    c = np.array([int(hex_colour[i:i + 2], 16) for i in (1, 3, 5)]) / 255.0
+    c = np.array([int(hex_colour[i : i + 2], 16) for i in (1, 3, 5)]) / 255.0
     # IEC 61966-2-1 (sRGB) transfer function
     return np.where(c <= 0.04045, c / 12.92, ((c + 0.055) / 1.055) ** 2.4)
 
 
 def _cie_lab(linear):
     # sRGB (D65) to XYZ, IEC 61966-2-1; XYZ to CIELAB, CIE 15:2004
-    xyz = np.array([[0.4124, 0.3576, 0.1805], [0.2126, 0.7152, 0.0722],
-                    [0.0193, 0.1192, 0.9505]]) @ np.clip(linear, 0, 1)
+    xyz = np.array(
+        [[0.4124, 0.3576, 0.1805], [0.2126, 0.7152, 0.0722], [0.0193, 0.1192, 0.9505]]
+    ) @ np.clip(linear, 0, 1)
     t = xyz / np.array([0.95047, 1.0, 1.08883])
     f = np.where(t > (6 / 29) ** 3, np.cbrt(t), t / (3 * (6 / 29) ** 2) + 4 / 29)
     return np.array([116 * f[1] - 16, 500 * (f[0] - f[1]), 200 * (f[1] - f[2])])
@@ -99,6 +109,7 @@ def test_banner_link_jumps_to_the_page_text_under_voila(monkeypatch):
 @pytest.fixture()
 def blood_view():
     from rheoline.widgets.blood_view import BloodVesselView
+
     return BloodVesselView()
 
 
@@ -111,6 +122,7 @@ def test_blood_view_builds_with_banner_first_and_figures_filled(blood_view):
 
 def test_blood_view_hematocrit_change_redraws_with_the_layers_values(blood_view):
     from rheoline.widgets.blood_view import FAHRAEUS_DIAMETERS, VISCOSITY_AXES
+
     blood_view.set_control("hematocrit", 0.30)
     assert np.isfinite(blood_view.last_update_seconds)
     fahraeus = blood_view.figures["fahraeus"].data[0]
@@ -134,6 +146,7 @@ def test_blood_view_vessel_radius_moves_the_resistance_point(blood_view):
 
 def test_blood_view_resistance_calculator_uses_the_hemodynamics_layer(blood_view):
     from rheoline.model import hemodynamics
+
     c = blood_view.controls
     c["upstream_mmhg"].value, c["downstream_mmhg"].value = 25.0, 10.0
     blood_view.set_control("bed", "pulmonary")
@@ -146,15 +159,21 @@ def test_blood_view_resistance_calculator_uses_the_hemodynamics_layer(blood_view
 def test_a_bad_input_is_shown_as_a_flag_and_keeps_the_last_figure(blood_view):
     before = blood_view.figures["fahraeus"].data[0].y
     blood_view.controls["cardiac_output_l_min"].value = 0.0
-    assert "[X]" in blood_view.messages.value and "cardiac_output_l_min" in \
-        blood_view.messages.value
+    assert (
+        "[X]" in blood_view.messages.value and "cardiac_output_l_min" in blood_view.messages.value
+    )
     assert np.array_equal(blood_view.figures["fahraeus"].data[0].y, before)
 
 
 # --- no physics in the widget layer --------------------------------------------------------
-FORBIDDEN_IN_WIDGETS = {"scipy", "rheoline.model.lumen", "rheoline.model.losses",
-                        "rheoline.model.rheology", "rheoline.model.blood",
-                        "rheoline.model.viscosity"}
+FORBIDDEN_IN_WIDGETS = {
+    "scipy",
+    "rheoline.model.lumen",
+    "rheoline.model.losses",
+    "rheoline.model.rheology",
+    "rheoline.model.blood",
+    "rheoline.model.viscosity",
+}
 
 
 @pytest.mark.parametrize("module", sorted(p.name for p in WIDGETS_DIR.glob("*.py")))
@@ -166,14 +185,21 @@ def test_widget_modules_call_the_layers_and_import_no_physics(module):
             imported |= {alias.name for alias in node.names}
         elif isinstance(node, ast.ImportFrom) and node.module:
             imported.add(node.module)
-    bad = {name for name in imported
-           if any(name == f or name.startswith(f + ".") for f in FORBIDDEN_IN_WIDGETS)}
+    bad = {
+        name
+        for name in imported
+        if any(name == f or name.startswith(f + ".") for f in FORBIDDEN_IN_WIDGETS)
+    }
     assert not bad, f"{module} imports physics modules directly: {sorted(bad)}"
     # no numpy maths beyond grids and array plumbing
     maths = {"exp", "log", "log10", "sqrt", "power", "sinh", "cosh", "tanh"}
-    calls = {node.attr for node in ast.walk(tree)
-             if isinstance(node, ast.Attribute) and isinstance(node.value, ast.Name)
-             and node.value.id == "np"}
+    calls = {
+        node.attr
+        for node in ast.walk(tree)
+        if isinstance(node, ast.Attribute)
+        and isinstance(node.value, ast.Name)
+        and node.value.id == "np"
+    }
     assert not calls & maths, f"{module} does maths itself: {sorted(calls & maths)}"
 
 
@@ -187,13 +213,15 @@ def test_the_model_layer_never_imports_widget_libraries():
 
 # --- the line view -------------------------------------------------------------------------
 def _api_line(gauge=18):
-    return rheoline.Line([rheoline.Tube(inner_diameter=3.0e-3, length=1.8),
-                          rheoline.Catheter(gauge=gauge)])
+    return rheoline.Line(
+        [rheoline.Tube(inner_diameter=3.0e-3, length=1.8), rheoline.Catheter(gauge=gauge)]
+    )
 
 
 @pytest.fixture()
 def line_view():
     from rheoline.widgets.line_view import LineView
+
     return LineView()
 
 
@@ -227,8 +255,9 @@ def test_line_view_pump_mode_shows_the_required_pressure_and_the_limit(line_view
     line_view.set_control("mode", "set flow (pump)")
     cells = rheoline.fluid("packed-red-cells", temperature_c=22.0, hematocrit=0.45)
     expected = _api_line().solve(cells, flow=100.0 * ML_PER_MIN, pressure_limit=50.0 * MMHG)
-    assert line_view.result.required_pressure == pytest.approx(expected.required_pressure,
-                                                               rel=1e-12)
+    assert line_view.result.required_pressure == pytest.approx(
+        expected.required_pressure, rel=1e-12
+    )
     assert expected.exceeds_pressure_limit
     assert "[X] limit exceeded" in line_view.results.value
     assert line_view.figures["drive"].data[2].y == (50.0, 50.0)
@@ -238,13 +267,20 @@ def test_line_view_pump_mode_shows_the_required_pressure_and_the_limit(line_view
 
 def test_line_view_every_number_shown_carries_a_unit(line_view):
     import re
+
     text = re.sub(r"<[^>]+>", " ", line_view.results.value)
-    text = re.sub(r"\d+G\b|Re \d+-\d+|\(Re up to \d+\)|Giersiepen 1990|Churchill 1977|"
-                  r"Shah 1978|\d+\. ", " ", text)
+    text = re.sub(
+        r"\d+G\b|Re \d+-\d+|\(Re up to \d+\)|Giersiepen 1990|Churchill 1977|"
+        r"Shah 1978|\d+\. ",
+        " ",
+        text,
+    )
     for match in re.finditer(r"(-?\d[\d.e+-]*)\s*(\S+)", text):
         number, after = match.groups()
-        assert after.strip("(),;") in {"mL/min", "mL/h", "mmHg", "kPa", "Pa", "%"} or \
-            "Reynolds" in text[max(0, match.start() - 30):match.start()], (number, after)
+        assert (
+            after.strip("(),;") in {"mL/min", "mL/h", "mmHg", "kPa", "Pa", "%"}
+            or "Reynolds" in text[max(0, match.start() - 30) : match.start()]
+        ), (number, after)
 
 
 def test_line_view_added_and_removed_parts_reach_the_line(line_view):
@@ -265,6 +301,7 @@ def test_line_view_bad_part_shows_an_error_flag_not_a_traceback(line_view):
 @pytest.fixture()
 def compare_view():
     from rheoline.widgets.compare_view import ComparisonView
+
     return ComparisonView(points=50)
 
 
@@ -306,8 +343,7 @@ def test_comparison_adds_and_removes_candidates_solving_only_the_new_one(compare
         return original(candidate, *args, **kwargs)
 
     compare_view._solve = counting
-    compare_view.add_candidate({"name": "14G alone", "parts": [{"type": "catheter",
-                                                                 "gauge": 14}]})
+    compare_view.add_candidate({"name": "14G alone", "parts": [{"type": "catheter", "gauge": 14}]})
     assert set(solved) == {"14G alone"}
     assert len(compare_view.figures["curves"].data) == 8
     assert compare_view.figures["curves"].layout.xaxis.title.text.startswith("inner diameter")
@@ -327,6 +363,7 @@ def test_comparison_temperature_sweep_uses_the_fluid_library(compare_view):
 @pytest.fixture()
 def app():
     from rheoline.widgets.app import build_app
+
     return build_app()
 
 
@@ -339,6 +376,7 @@ def test_app_builds_every_view_with_a_banner(app):
 def test_saved_scenario_file_reruns_to_the_views_numbers(app, tmp_path):
     from rheoline.scenario.compare import run_scenarios
     from rheoline.scenario.files import load_scenarios
+
     files = app.views["files"]
     path = files.save(tmp_path / "views.toml")
     table = run_scenarios(load_scenarios(path)).table.set_index("case")
@@ -352,6 +390,7 @@ def test_saved_scenario_file_reruns_to_the_views_numbers(app, tmp_path):
 
 def test_loading_an_example_file_fills_both_views(app):
     from rheoline.scenario.files import example_path
+
     app.views["files"].load(example_path("rapid-transfusion-cart"))
     line = app.views["line"]
     assert line.controls["back_pressure_mmhg"].value == pytest.approx(8.0)
@@ -363,6 +402,7 @@ def test_loading_an_example_file_fills_both_views(app):
 
 def test_review_pack_is_written_by_the_scenario_layer(app, tmp_path):
     from rheoline.scenario.export import PACK_FILES
+
     folder = app.views["files"].write_pack(tmp_path / "pack")
     assert {p.name for p in folder.iterdir()} >= set(PACK_FILES)
     with pytest.raises(rheoline.ScenarioError, match="exist"):
@@ -382,13 +422,18 @@ def test_bore_only_band_equals_solving_every_sample(compare_view):
     # The shortcut rests on flow rising strictly with the bore; solve all 2000 samples here
     # through the public API and compare the order statistics.
     from rheoline.widgets.compare_view import BAND_SAMPLES
+
     compare_view.set_control("bore_tolerance_percent", 5.0)
     x, p5, p95 = compare_view.band(compare_view.candidates[1])  # set + 18G
     scale, _ = compare_view._samples()
     assert scale.shape == (BAND_SAMPLES, 1)
     heads = x[[0, len(x) // 2, -1]] / 100.0
-    line = rheoline.Line([rheoline.Tube(inner_diameter=3.0e-3, length=1.8),
-                          rheoline.Catheter(gauge=18, inner_diameter=1.0e-3 * scale)])
+    line = rheoline.Line(
+        [
+            rheoline.Tube(inner_diameter=3.0e-3, length=1.8),
+            rheoline.Catheter(gauge=18, inner_diameter=1.0e-3 * scale),
+        ]
+    )
     flows = line.solve(rheoline.fluid("saline-0.9", temperature_c=22.0), head=heads).flow
     low, high = np.percentile(flows, [5.0, 95.0], axis=0, method="inverted_cdf")
     assert np.allclose(low, p5[[0, len(x) // 2, -1]], rtol=1e-9)
@@ -398,6 +443,7 @@ def test_bore_only_band_equals_solving_every_sample(compare_view):
 def test_the_responsiveness_case_is_seven_candidates_with_bands():
     from rheoline.widgets.base import time_control_change
     from rheoline.widgets.compare_view import responsiveness_case
+
     view = responsiveness_case(points=20)
     assert len(view.candidates) == 7 and len(view.figures["curves"].data) == 14
     seconds = time_control_change(view, "temperature_c", 23.0)
@@ -408,9 +454,16 @@ def test_the_responsiveness_case_is_seven_candidates_with_bands():
 def test_line_view_flags_a_hemolysis_concern_for_blood_at_high_wall_stress():
     from rheoline.scenario.compare import HEMOLYSIS_CONCERN_STRESS
     from rheoline.widgets.line_view import LineView
-    view = LineView(parts=[{"type": "needle", "gauge": 25}], fluid="packed-red-cells",
-                    temperature_c=37.0, hematocrit=0.65, mode="set flow (pump)",
-                    flow_ml_min=20.0, pressure_limit_mmhg=0.0)
+
+    view = LineView(
+        parts=[{"type": "needle", "gauge": 25}],
+        fluid="packed-red-cells",
+        temperature_c=37.0,
+        hematocrit=0.65,
+        mode="set flow (pump)",
+        flow_ml_min=20.0,
+        pressure_limit_mmhg=0.0,
+    )
     assert view.result.max_wall_shear_stress > HEMOLYSIS_CONCERN_STRESS
     assert "hemolysis concern" in view.results.value and "[!]" in view.results.value
 
@@ -419,6 +472,7 @@ def test_app_makes_a_tabs_figurewidgets_only_when_the_tab_opens(app):
     # each FigureWidget makes the browser start plotly's widget code under a short deadline
     # (anywidget allows 2 s), so only the open tab's charts are widgets
     import plotly.graph_objects as go
+
     assert all(isinstance(f, go.FigureWidget) for f in app.views["line"].figures.values())
     blood = app.views["blood"]
     assert not any(isinstance(f, go.FigureWidget) for f in blood.figures.values())
@@ -426,6 +480,7 @@ def test_app_makes_a_tabs_figurewidgets_only_when_the_tab_opens(app):
     app.tabs.selected_index = list(app.views).index("blood")
     assert all(isinstance(f, go.FigureWidget) for f in blood.figures.values())
     from rheoline.widgets.blood_view import FAHRAEUS_DIAMETERS
+
     expected = rheoline.pries_1992_relative_viscosity(FAHRAEUS_DIAMETERS, 0.35)
     assert np.allclose(blood.figure_box("fahraeus").children[0].data[0].y, expected)
 
@@ -450,13 +505,33 @@ def test_no_view_shadows_an_ipywidgets_method():
     from rheoline.widgets.files_view import FilesView
     from rheoline.widgets.line_view import LineView
     from rheoline.widgets.parts_editor import PartRow, PartsEditor
+
     inherited = set(dir(widgets.VBox)) | set(dir(widgets.HBox))
-    allowed = {"__init__", "__doc__", "__module__", "__qualname__", "__firstlineno__",
-               "__static_attributes__", "_trait_default_generators", "__annotations__",
-               # set on every HasTraits subclass by traitlets' metaclass
-               "_all_trait_default_generators", "_descriptors", "_instance_inits",
-               "_static_immutable_initial_values", "_traits"}
-    for cls in (App, View, LineView, ComparisonView, BloodVesselView, FilesView, PartsEditor,
-                PartRow):
+    allowed = {
+        "__init__",
+        "__doc__",
+        "__module__",
+        "__qualname__",
+        "__firstlineno__",
+        "__static_attributes__",
+        "_trait_default_generators",
+        "__annotations__",
+        # set on every HasTraits subclass by traitlets' metaclass
+        "_all_trait_default_generators",
+        "_descriptors",
+        "_instance_inits",
+        "_static_immutable_initial_values",
+        "_traits",
+    }
+    for cls in (
+        App,
+        View,
+        LineView,
+        ComparisonView,
+        BloodVesselView,
+        FilesView,
+        PartsEditor,
+        PartRow,
+    ):
         clash = (set(vars(cls)) & inherited) - allowed
         assert not clash, f"{cls.__name__} shadows {sorted(clash)}"

@@ -76,10 +76,19 @@ REFERENCE_TEMPERATURE_C = 37.0
 #: Cho & Kensey 1991 blood parameters (Biorheology 28, 241-262, Table 1, from memory):
 #: Carreau and Carreau-Yasuda fits; viscosities in Pa s, relaxation times in s.
 CHO_KENSEY_1991 = {
-    "carreau": {"mu_zero": 0.056, "mu_inf": 0.00345, "relaxation_time": 3.313,
-                "flow_index": 0.3568},
-    "carreau-yasuda": {"mu_zero": 0.056, "mu_inf": 0.00345, "relaxation_time": 1.902,
-                       "flow_index": 0.22, "a": 1.25},
+    "carreau": {
+        "mu_zero": 0.056,
+        "mu_inf": 0.00345,
+        "relaxation_time": 3.313,
+        "flow_index": 0.3568,
+    },
+    "carreau-yasuda": {
+        "mu_zero": 0.056,
+        "mu_inf": 0.00345,
+        "relaxation_time": 1.902,
+        "flow_index": 0.22,
+        "a": 1.25,
+    },
 }
 
 #: Shear-rate window [1/s] of the power-law fit to the Carreau curve: from the
@@ -238,7 +247,8 @@ def _reference_plasma():
 #: viscosity at H = 0 and Cho & Kensey's mu_inf = 3.45 mPa s at H = 0.45, 37 degC
 #: (about 1.78; Quemada's fits of human blood give values near 1.8, from memory).
 QUEMADA_K_INFINITE_SHEAR = float(
-    2.0 * (1.0 - np.sqrt(_reference_plasma() / CHO_KENSEY_1991["carreau"]["mu_inf"]))
+    2.0
+    * (1.0 - np.sqrt(_reference_plasma() / CHO_KENSEY_1991["carreau"]["mu_inf"]))
     / REFERENCE_HEMATOCRIT
 )
 
@@ -491,7 +501,9 @@ def blood_properties(hematocrit, temperature_c=37.0, model="carreau"):
     (1059, 1.244)
     """
     rheology = blood_rheology(hematocrit, temperature_c, model)
-    h, t = np.broadcast_arrays(np.asarray(hematocrit, dtype=float), np.asarray(temperature_c, dtype=float))
+    h, t = np.broadcast_arrays(
+        np.asarray(hematocrit, dtype=float), np.asarray(temperature_c, dtype=float)
+    )
     return rheology, scalar_or_array(_blood_density(h, t)), scalar_or_array(_plasma(t))
 
 

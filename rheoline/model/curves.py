@@ -67,20 +67,37 @@ class CurveSet:
         import pandas as pd
 
         unit = CURVE_VARIABLES[self.over]
-        frames = [pd.DataFrame({"line": label, f"{self.over} [{unit}]": self.values,
-                                "flow [m^3/s]": self.flows[label],
-                                "regime": self.regimes[label]})
-                  for label in self.flows]
+        frames = [
+            pd.DataFrame(
+                {
+                    "line": label,
+                    f"{self.over} [{unit}]": self.values,
+                    "flow [m^3/s]": self.flows[label],
+                    "regime": self.regimes[label],
+                }
+            )
+            for label in self.flows
+        ]
         return pd.concat(frames, ignore_index=True)
 
 
 def _with_diameter(line, part, values):
-    index = part if isinstance(part, int) else (
-        line.part_names.index(part) if part in line.part_names else None)
-    if index is None or not 0 <= index < len(line.parts) or not isinstance(line.parts[index], Lumen):
-        lumens = [n for n, p in zip(line.part_names, line.parts, strict=True) if isinstance(p, Lumen)]
+    index = (
+        part
+        if isinstance(part, int)
+        else (line.part_names.index(part) if part in line.part_names else None)
+    )
+    if (
+        index is None
+        or not 0 <= index < len(line.parts)
+        or not isinstance(line.parts[index], Lumen)
+    ):
+        lumens = [
+            n for n, p in zip(line.part_names, line.parts, strict=True) if isinstance(p, Lumen)
+        ]
         raise InputRangeError(
-            f"part {part!r} is not a lumen of the line; choose one of {lumens} (name or index)")
+            f"part {part!r} is not a lumen of the line; choose one of {lumens} (name or index)"
+        )
     old = line.parts[index]
     new = Tube(inner_diameter=values, length=old.length, roughness=old.roughness, name=old.name)
     parts = list(line.parts)
@@ -88,8 +105,17 @@ def _with_diameter(line, part, values):
     return Line(parts, entrance=line.entrance, name=line.name)
 
 
-def flow_curves(lines, fluid, over, values, part=-1, head=0.0, source_pressure=0.0,
-                back_pressure=0.0, fluid_builder=None):
+def flow_curves(
+    lines,
+    fluid,
+    over,
+    values,
+    part=-1,
+    head=0.0,
+    source_pressure=0.0,
+    back_pressure=0.0,
+    fluid_builder=None,
+):
     """Flow of each candidate line as one input sweeps ``values``.
 
     Parameters
@@ -116,7 +142,8 @@ def flow_curves(lines, fluid, over, values, part=-1, head=0.0, source_pressure=0
     """
     if over not in CURVE_VARIABLES:
         raise InputRangeError(
-            f"over {over!r} is not a curve variable; choose one of {', '.join(CURVE_VARIABLES)}")
+            f"over {over!r} is not a curve variable; choose one of {', '.join(CURVE_VARIABLES)}"
+        )
     x = check_finite(over, values).ravel()
     labelled = dict(lines) if isinstance(lines, dict) else {ln.name: ln for ln in lines}
     drive = {"head": head, "source_pressure": source_pressure, "back_pressure": back_pressure}
@@ -125,7 +152,9 @@ def flow_curves(lines, fluid, over, values, part=-1, head=0.0, source_pressure=0
         drive[over] = x
     elif over in ("temperature_c", "hematocrit"):
         if over == "hematocrit" and fluid.hematocrit is None:
-            raise InputRangeError(f"a hematocrit curve needs a blood fluid; {fluid.name!r} has none")
+            raise InputRangeError(
+                f"a hematocrit curve needs a blood fluid; {fluid.name!r} has none"
+            )
         kwargs = {"temperature_c": np.asarray(fluid.temperature_c) * np.ones_like(x)}
         if fluid.hematocrit is not None:
             kwargs["hematocrit"] = np.asarray(fluid.hematocrit) * np.ones_like(x)
@@ -146,4 +175,3 @@ def flow_curves(lines, fluid, over, values, part=-1, head=0.0, source_pressure=0
         flows[label] = np.broadcast_to(np.asarray(result.flow, dtype=float), x.shape).copy()
         regimes[label] = np.broadcast_to(np.asarray(result.regime), x.shape).copy()
     return CurveSet(over=over, values=x, flows=flows, regimes=regimes)
-

@@ -95,8 +95,10 @@ def _stopped_flag(stopped):
     """The words for deliveries that never finish (time inf), as a list of 0 or 1 flag."""
     if not np.any(stopped):
         return []
-    return [f"the flow stops before the volume is delivered{_count(stopped)} (the drive falls "
-            "to the back pressure, or to a yield-stress fluid's yield pressure): time is inf"]
+    return [
+        f"the flow stops before the volume is delivered{_count(stopped)} (the drive falls "
+        "to the back pressure, or to a yield-stress fluid's yield pressure): time is inf"
+    ]
 
 
 def _count(mask):
@@ -134,10 +136,18 @@ def _volume_quadrature(line, fluid, volume, head_of, pressure_of, back_pressure,
     :math:`\phi = s` as :math:`E_1 \to E_0`.  Composite 12-point Gauss-Legendre rules of
     1, 2, 4, ... panels in :math:`s` are compared until they agree (or 16 panels).
     """
-    layout = line._layout(fluid, np.broadcast_shapes(
-        np.shape(volume), np.shape(head_of(0.0)), np.shape(head_of(1.0)),
-        np.shape(pressure_of(0.0)), np.shape(pressure_of(1.0)), np.shape(back_pressure)),
-        pries_correction)
+    layout = line._layout(
+        fluid,
+        np.broadcast_shapes(
+            np.shape(volume),
+            np.shape(head_of(0.0)),
+            np.shape(head_of(1.0)),
+            np.shape(pressure_of(0.0)),
+            np.shape(pressure_of(1.0)),
+            np.shape(back_pressure),
+        ),
+        pries_correction,
+    )
     shape = layout.shape
     yield_drop = line._yield_drop(layout, fluid)
     e0 = Line._drive(fluid, head_of(1.0), pressure_of(1.0), back_pressure) - yield_drop
@@ -154,12 +164,18 @@ def _volume_quadrature(line, fluid, volume, head_of, pressure_of, back_pressure,
         s = np.asarray(nodes, dtype=float).reshape((-1, *axes))
         # the fraction still to deliver, 1 - phi = e^{sL} expm1((1-s)L) / expm1(L), written
         # so that a drive ending at 1e-30 of its start keeps its digits
-        left = np.where(flat, 1.0 - s, np.exp(s * safe_l) * np.expm1((1.0 - s) * safe_l)
-                        / np.expm1(safe_l))
+        left = np.where(
+            flat, 1.0 - s, np.exp(s * safe_l) * np.expm1((1.0 - s) * safe_l) / np.expm1(safe_l)
+        )
         left = np.clip(left, 0.0, 1.0)
         jac = np.where(flat, 1.0, grow * np.exp(s * safe_l))
-        res = line.solve(fluid, head=head_of(left), source_pressure=pressure_of(left),
-                         back_pressure=back_pressure, pries_correction=pries_correction)
+        res = line.solve(
+            fluid,
+            head=head_of(left),
+            source_pressure=pressure_of(left),
+            back_pressure=back_pressure,
+            pries_correction=pries_correction,
+        )
         return np.broadcast_to(np.asarray(res.flow, dtype=float), (s.shape[0], *shape)), jac
 
     def rule(flows, jac, weights):
@@ -172,8 +188,8 @@ def _volume_quadrature(line, fluid, volume, head_of, pressure_of, back_pressure,
     jac = np.broadcast_to(jac, flows.shape)
     ends, n0 = flows[:2], levels[0][0].size
     stopped = (ends[0] <= 0) | (ends[1] <= 0) | ~positive
-    coarse, stop_c = rule(flows[2:2 + n0], jac[2:2 + n0], levels[0][1])
-    time, stop_f = rule(flows[2 + n0:], jac[2 + n0:], levels[1][1])
+    coarse, stop_c = rule(flows[2 : 2 + n0], jac[2 : 2 + n0], levels[0][1])
+    time, stop_f = rule(flows[2 + n0 :], jac[2 + n0 :], levels[1][1])
     stopped = stopped | stop_c | stop_f
     scale = np.where(stopped | (time <= 0), 1.0, np.abs(time))
     error = np.where(stopped, 0.0, np.abs(time - coarse) / scale)
@@ -192,21 +208,36 @@ def _volume_quadrature(line, fluid, volume, head_of, pressure_of, back_pressure,
     flags = _stopped_flag(stopped)
     doubtful = error > _FLAG_RTOL
     if np.any(doubtful):
-        ratio = np.where(doubtful, np.where(positive, e1, 0.0) / np.where(positive, e0, 1.0),
-                         np.inf)
+        ratio = np.where(
+            doubtful, np.where(positive, e1, 0.0) / np.where(positive, e0, 1.0), np.inf
+        )
         above = " above the yield pressure" if np.any(yield_drop > 0) else ""
         flags.append(
             f"delivery time accuracy not assured{_count(doubtful)} (estimated relative error up "
             f"to {float(np.max(error)):.1e}; the final drive{above} is as little as "
             f"{float(np.min(ratio)):.1e} of the initial one): treat the time as approximate"
         )
-    return DeliveryResult(time=_out(time), initial_flow=_out(ends[0]), final_flow=_out(ends[1]),
-                          mean_flow=_out(mean), method="quadrature",
-                          relative_error=_out(error), flags=tuple(flags))
+    return DeliveryResult(
+        time=_out(time),
+        initial_flow=_out(ends[0]),
+        final_flow=_out(ends[1]),
+        mean_flow=_out(mean),
+        method="quadrature",
+        relative_error=_out(error),
+        flags=tuple(flags),
+    )
 
 
-def falling_head_delivery_time(line, fluid, volume, head_full, head_empty, source_pressure=0.0,
-                               back_pressure=0.0, pries_correction=False):
+def falling_head_delivery_time(
+    line,
+    fluid,
+    volume,
+    head_full,
+    head_empty,
+    source_pressure=0.0,
+    back_pressure=0.0,
+    pries_correction=False,
+):
     r"""Time to deliver ``volume`` from a gravity bag whose head falls as it empties.
 
     .. math:: T = \int_0^{V} \frac{dV}{Q(h(V))},\qquad
@@ -248,20 +279,41 @@ def falling_head_delivery_time(line, fluid, volume, head_full, head_empty, sourc
     >>> round(r.time / 60.0, 1)      # minutes for one litre
     10.8
     """
-    _check_line(line, fluid, volume=volume, head_full=head_full,
-                head_empty=head_empty, source_pressure=source_pressure,
-                back_pressure=back_pressure)
+    _check_line(
+        line,
+        fluid,
+        volume=volume,
+        head_full=head_full,
+        head_empty=head_empty,
+        source_pressure=source_pressure,
+        back_pressure=back_pressure,
+    )
     v = check_positive("volume", volume, "m^3")
     h_full = check_finite("head_full", head_full)
     h_empty = check_finite("head_empty", head_empty)
-    return _volume_quadrature(line, fluid, v, lambda left: h_empty + (h_full - h_empty) * left,
-                              lambda left: source_pressure + 0.0 * left, back_pressure,
-                              pries_correction)
+    return _volume_quadrature(
+        line,
+        fluid,
+        v,
+        lambda left: h_empty + (h_full - h_empty) * left,
+        lambda left: source_pressure + 0.0 * left,
+        back_pressure,
+        pries_correction,
+    )
 
 
-def pressure_bag_delivery_time(line, fluid, volume, pressure_full, pressure_empty=None,
-                               time_constant=None, head_full=0.0, head_empty=None,
-                               back_pressure=0.0, pries_correction=False):
+def pressure_bag_delivery_time(
+    line,
+    fluid,
+    volume,
+    pressure_full,
+    pressure_empty=None,
+    time_constant=None,
+    head_full=0.0,
+    head_empty=None,
+    back_pressure=0.0,
+    pries_correction=False,
+):
     r"""Time to deliver ``volume`` from a pressure bag whose pressure decays.
 
     Two decay laws (give exactly one of ``pressure_empty`` or ``time_constant``):
@@ -305,10 +357,17 @@ def pressure_bag_delivery_time(line, fluid, volume, pressure_full, pressure_empt
     >>> round(r.time / 60.0, 2)
     1.17
     """
-    _check_line(line, fluid, volume=volume, pressure_full=pressure_full,
-                pressure_empty=pressure_empty, time_constant=time_constant,
-                head_full=head_full, head_empty=head_empty,
-                back_pressure=back_pressure)
+    _check_line(
+        line,
+        fluid,
+        volume=volume,
+        pressure_full=pressure_full,
+        pressure_empty=pressure_empty,
+        time_constant=time_constant,
+        head_full=head_full,
+        head_empty=head_empty,
+        back_pressure=back_pressure,
+    )
     v = check_positive("volume", volume, "m^3")
     p_full = check_finite("pressure_full", pressure_full)
     h_full = check_finite("head_full", head_full)
@@ -321,28 +380,42 @@ def pressure_bag_delivery_time(line, fluid, volume, pressure_full, pressure_empt
         )
     if pressure_empty is not None:
         p_empty = check_finite("pressure_empty", pressure_empty)
-        return _volume_quadrature(line, fluid, v, lambda left: h_empty + (h_full - h_empty) * left,
-                                  lambda left: p_empty + (p_full - p_empty) * left,
-                                  back_pressure, pries_correction)
+        return _volume_quadrature(
+            line,
+            fluid,
+            v,
+            lambda left: h_empty + (h_full - h_empty) * left,
+            lambda left: p_empty + (p_full - p_empty) * left,
+            back_pressure,
+            pries_correction,
+        )
     tau = check_positive("time_constant", time_constant, "s")
     check_nonnegative("pressure_full", p_full, "Pa")
-    return _time_decay(line, fluid, v, p_full, tau, h_full, h_empty, back_pressure,
-                       pries_correction)
+    return _time_decay(
+        line, fluid, v, p_full, tau, h_full, h_empty, back_pressure, pries_correction
+    )
 
 
 def _time_decay(line, fluid, volume, p_full, tau, h_full, h_empty, back_pressure, pries):
     """Integrate dt/dphi = V / Q(t, phi) over the delivered fraction phi from 0 to 1."""
     from scipy.integrate import solve_ivp
 
-    shape = np.broadcast_shapes(np.shape(volume), np.shape(p_full), np.shape(tau),
-                                np.shape(h_full), np.shape(h_empty))
-    vol, p0, tau_f, hf, he = (np.broadcast_to(np.asarray(a, dtype=float), shape).ravel()
-                              for a in (volume, p_full, tau, h_full, h_empty))
+    shape = np.broadcast_shapes(
+        np.shape(volume), np.shape(p_full), np.shape(tau), np.shape(h_full), np.shape(h_empty)
+    )
+    vol, p0, tau_f, hf, he = (
+        np.broadcast_to(np.asarray(a, dtype=float), shape).ravel()
+        for a in (volume, p_full, tau, h_full, h_empty)
+    )
 
     def flow(t, frac):
-        res = line.solve(fluid, head=hf - (hf - he) * frac,
-                         source_pressure=p0 * np.exp(-t / tau_f),
-                         back_pressure=back_pressure, pries_correction=pries)
+        res = line.solve(
+            fluid,
+            head=hf - (hf - he) * frac,
+            source_pressure=p0 * np.exp(-t / tau_f),
+            back_pressure=back_pressure,
+            pries_correction=pries,
+        )
         return np.broadcast_to(np.asarray(res.flow, dtype=float), vol.shape)
 
     q0 = flow(np.zeros_like(vol), 0.0)
@@ -351,18 +424,33 @@ def _time_decay(line, fluid, volume, p_full, tau, h_full, h_empty, back_pressure
     def rate(frac, t):
         return vol / np.maximum(flow(t, frac), floor)
 
-    sol = solve_ivp(rate, (0.0, 1.0), np.zeros_like(vol), method="RK45", rtol=1e-8,
-                    atol=1e-9 * float(np.min(vol / np.maximum(q0, 1e-300))))
+    sol = solve_ivp(
+        rate,
+        (0.0, 1.0),
+        np.zeros_like(vol),
+        method="RK45",
+        rtol=1e-8,
+        atol=1e-9 * float(np.min(vol / np.maximum(q0, 1e-300))),
+    )
     t_end = sol.y[:, -1]
     q_end = flow(t_end, 1.0)
     halted = (q_end <= 10.0 * floor) | (q0 <= 0)
     stopped = halted | (not sol.success)
     time = np.where(stopped, np.inf, t_end)
     mean = np.where(np.isfinite(time), vol / np.where(np.isfinite(time), time, 1.0), 0.0)
-    return DeliveryResult(time=_out(time.reshape(shape)), initial_flow=_out(q0.reshape(shape)),
-                          final_flow=_out(np.where(stopped, 0.0, q_end).reshape(shape)),
-                          mean_flow=_out(mean.reshape(shape)), method="solve_ivp",
-                          relative_error=_out(np.where(stopped, 0.0, 1e-8).reshape(shape)),
-                          flags=tuple(_stopped_flag(halted.reshape(shape)) + (
-                              [] if sol.success else
-                              [f"solve_ivp did not finish ({sol.message}): time set to inf"])))
+    return DeliveryResult(
+        time=_out(time.reshape(shape)),
+        initial_flow=_out(q0.reshape(shape)),
+        final_flow=_out(np.where(stopped, 0.0, q_end).reshape(shape)),
+        mean_flow=_out(mean.reshape(shape)),
+        method="solve_ivp",
+        relative_error=_out(np.where(stopped, 0.0, 1e-8).reshape(shape)),
+        flags=tuple(
+            _stopped_flag(halted.reshape(shape))
+            + (
+                []
+                if sol.success
+                else [f"solve_ivp did not finish ({sol.message}): time set to inf"]
+            )
+        ),
+    )

@@ -110,7 +110,9 @@ def _warn_couette_regime(reynolds):
             f"film Reynolds number up to {float(np.max(re)):.3g} exceeds about "
             f"{COUETTE_TRANSITION_REYNOLDS:g}: the film may not be laminar and the one-point "
             "reduction overestimates viscosity; lower the speed or the gap",
-            RegimeWarning, stacklevel=3)
+            RegimeWarning,
+            stacklevel=3,
+        )
 
 
 def couette_viscosity(torque, inner_radius, outer_radius, length, angular_speed):
@@ -306,8 +308,16 @@ def _fit_one(name, g, tau, n_pl, k_pl, extra_starts=()):
     best = None
     with np.errstate(all="ignore"):
         for p0 in [*extra_starts, *_starts(name, g, tau, n_pl, k_pl)]:
-            res = least_squares(residuals, p0, method="trf", x_scale="jac",
-                                xtol=1e-9, ftol=1e-11, gtol=1e-11, max_nfev=100 * (p0.size + 1))
+            res = least_squares(
+                residuals,
+                p0,
+                method="trf",
+                x_scale="jac",
+                xtol=1e-9,
+                ftol=1e-11,
+                gtol=1e-11,
+                max_nfev=100 * (p0.size + 1),
+            )
             if best is None or res.cost < best.cost:
                 best = res
         r = residuals(best.x)
@@ -332,9 +342,16 @@ def _fit_one(name, g, tau, n_pl, k_pl, extra_starts=()):
         model = cls(**params)
     except ValueError as exc:  # pragma: no cover - the mapping keeps parameters valid
         model, message = None, f"{message}; {exc}"
-    return ModelFit(name=name, model=model, parameters=params, standard_errors=errors,
-                    residuals=r, rss=rss, aicc=float(_aicc(rss, g.size, best.x.size)),
-                    message=message)
+    return ModelFit(
+        name=name,
+        model=model,
+        parameters=params,
+        standard_errors=errors,
+        residuals=r,
+        rss=rss,
+        aicc=float(_aicc(rss, g.size, best.x.size)),
+        message=message,
+    )
 
 
 def _fmt(v):
@@ -403,8 +420,9 @@ class RheologyFit:
             f"{self.confidence:.0%} interval {lo:.4g}..{hi:.4g})",
         ]
         for name, f in sorted(self.fits.items(), key=lambda kv: kv[1].aicc):
-            ps = ", ".join(f"{k}={_fmt(v)}+/-{_fmt(f.standard_errors[k])}"
-                           for k, v in f.parameters.items())
+            ps = ", ".join(
+                f"{k}={_fmt(v)}+/-{_fmt(f.standard_errors[k])}" for k, v in f.parameters.items()
+            )
             mark = "*" if name == self.best else " "
             lines.append(f" {mark} {name:15s} {self.criterion}={_fmt(f.aicc):>9s}  {ps}")
         return "\n".join(lines)
@@ -427,8 +445,14 @@ def _choose_models(models):
     return chosen
 
 
-def fit_rheology(shear_rate, shear_stress=None, viscosity=None, models=None,
-                 confidence: float = 0.95, flow_index_tolerance: float = 0.0) -> RheologyFit:
+def fit_rheology(
+    shear_rate,
+    shear_stress=None,
+    viscosity=None,
+    models=None,
+    confidence: float = 0.95,
+    flow_index_tolerance: float = 0.0,
+) -> RheologyFit:
     r"""Fit rheology models to measured data and pick the best.
 
     Every model (default: all of ``RHEOLOGY_MODELS``) is fitted by nonlinear
@@ -490,7 +514,9 @@ def fit_rheology(shear_rate, shear_stress=None, viscosity=None, models=None,
     from scipy import stats
 
     if (shear_stress is None) == (viscosity is None):
-        raise InputRangeError("fit_rheology needs exactly one of shear_stress= [Pa] or viscosity= [Pa s]")
+        raise InputRangeError(
+            "fit_rheology needs exactly one of shear_stress= [Pa] or viscosity= [Pa s]"
+        )
     g = np.ravel(check_positive("shear_rate", shear_rate, "1/s"))
     if shear_stress is not None:
         tau = np.ravel(check_positive("shear_stress", shear_stress, "Pa"))
@@ -511,7 +537,9 @@ def fit_rheology(shear_rate, shear_stress=None, viscosity=None, models=None,
     if not 0.5 <= confidence <= 0.9999:
         raise InputRangeError(f"confidence must lie between 0.5 and 0.9999, got {confidence!r}")
     if not np.isfinite(flow_index_tolerance) or flow_index_tolerance < 0:
-        raise InputRangeError(f"flow_index_tolerance must be 0 or more, got {flow_index_tolerance!r}")
+        raise InputRangeError(
+            f"flow_index_tolerance must be 0 or more, got {flow_index_tolerance!r}"
+        )
     names = _choose_models(models)
 
     x, y = np.log(g), np.log(tau)
@@ -527,15 +555,31 @@ def fit_rheology(shear_rate, shear_stress=None, viscosity=None, models=None,
         extra = ()
         if name == "carreau-yasuda" and "carreau" in fits:
             c = fits["carreau"].parameters
-            extra = (np.log([c["mu_inf"], max(c["mu_zero"] - c["mu_inf"], 1e-300),
-                             c["relaxation_time"], c["flow_index"], 2.0]),)
+            extra = (
+                np.log(
+                    [
+                        c["mu_inf"],
+                        max(c["mu_zero"] - c["mu_inf"], 1e-300),
+                        c["relaxation_time"],
+                        c["flow_index"],
+                        2.0,
+                    ]
+                ),
+            )
         fits[name] = _fit_one(name, g, tau, n_pl, np.exp(ln_k), extra)
     fits = {name: fits[name] for name in names}
     order = sorted(fits.values(), key=lambda f: (f.aicc, f.n_parameters))
-    return RheologyFit(best=order[0].name, criterion="AICc", fits=fits, is_newtonian=is_newtonian,
-                       flow_index=float(n_pl),
-                       flow_index_interval=(float(n_pl - half), float(n_pl + half)),
-                       confidence=float(confidence), shear_rate=g, shear_stress=tau)
+    return RheologyFit(
+        best=order[0].name,
+        criterion="AICc",
+        fits=fits,
+        is_newtonian=is_newtonian,
+        flow_index=float(n_pl),
+        flow_index_interval=(float(n_pl - half), float(n_pl + half)),
+        confidence=float(confidence),
+        shear_rate=g,
+        shear_stress=tau,
+    )
 
 
 # ------------------------------------------------------------ temperature fits
@@ -582,13 +626,20 @@ class TemperatureFit:
     def viscosity(self, temperature_c):
         """Viscosity [Pa s] at ``temperature_c`` [degC] from the fitted law."""
         t = np.asarray(temperature_c, dtype=float)
-        warn_outside("temperature_c", t, *self.temperature_range_c,
-                     f"this {self.model} fit (the measured temperatures)", "degC")
+        warn_outside(
+            "temperature_c",
+            t,
+            *self.temperature_range_c,
+            f"this {self.model} fit (the measured temperatures)",
+            "degC",
+        )
         func = TEMPERATURE_MODELS[self.model][0]
         return scalar_or_array(func(t, *self.parameters.values()))
 
 
-def fit_viscosity_temperature(temperatures_c, viscosities, model: str = "andrade") -> TemperatureFit:
+def fit_viscosity_temperature(
+    temperatures_c, viscosities, model: str = "andrade"
+) -> TemperatureFit:
     """Fit the Andrade or Vogel-Fulcher-Tammann law to viscosities at several temperatures.
 
     Andrade is linear in ln(mu) and 1/T and is solved by linear least squares
@@ -625,14 +676,18 @@ def fit_viscosity_temperature(temperatures_c, viscosities, model: str = "andrade
     if model not in TEMPERATURE_MODELS:
         near = difflib.get_close_matches(str(model), TEMPERATURE_MODELS, n=1)
         hint = f"; did you mean {near[0]!r}?" if near else ""
-        raise InputRangeError(f"model {model!r} is not a temperature law{hint} (choose from {list(TEMPERATURE_MODELS)})")
+        raise InputRangeError(
+            f"model {model!r} is not a temperature law{hint} (choose from {list(TEMPERATURE_MODELS)})"
+        )
     func, names, minimum = TEMPERATURE_MODELS[model]
     t = np.ravel(np.asarray(temperatures_c, dtype=float))
     if not np.all(np.isfinite(t)) or np.any(t <= -_KELVIN):
         raise InputRangeError("temperatures_c must be finite and above -273.15 degC")
     mu = np.ravel(check_positive("viscosities", viscosities, "Pa s"))
     if mu.shape != t.shape:
-        raise InputRangeError(f"give one viscosity per temperature: {t.size} temperatures, {mu.size} viscosities")
+        raise InputRangeError(
+            f"give one viscosity per temperature: {t.size} temperatures, {mu.size} viscosities"
+        )
     if np.unique(t).size < minimum:
         raise InputRangeError(
             f"the {model} law needs viscosities at {minimum} or more distinct temperatures, got {np.unique(t).size}"
@@ -644,13 +699,19 @@ def fit_viscosity_temperature(temperatures_c, viscosities, model: str = "andrade
         warnings.warn(
             "viscosities rise with temperature in the data given, unlike a liquid; check that "
             "temperatures_c and viscosities are listed in the same order",
-            RheolineWarning, stacklevel=3)
+            RheolineWarning,
+            stacklevel=3,
+        )
     if model == "andrade":
         design = np.column_stack([np.ones_like(t), 1.0 / (t + _KELVIN)])
         p = np.linalg.lstsq(design, y, rcond=None)[0]
         r = y - design @ p
         dof = t.size - 2
-        cov = np.sum(r**2) / dof * np.linalg.inv(design.T @ design) if dof > 0 else np.full((2, 2), np.nan)
+        cov = (
+            np.sum(r**2) / dof * np.linalg.inv(design.T @ design)
+            if dof > 0
+            else np.full((2, 2), np.nan)
+        )
         errors = np.sqrt(np.abs(np.diag(cov)))
         params = p
     else:
@@ -664,7 +725,9 @@ def fit_viscosity_temperature(temperatures_c, viscosities, model: str = "andrade
         and_b = np.polyfit(1.0 / (t + _KELVIN), y, 1)[0]
         q0 = np.array([0.0, max(and_b, 10.0) / 2.0, np.log(100.0)])
         q0[0] = float(np.mean(y - q0[1] / (t - (t_min - 100.0))))
-        res = least_squares(resid, q0, method="trf", xtol=1e-14, ftol=1e-14, gtol=1e-14, max_nfev=10000)
+        res = least_squares(
+            resid, q0, method="trf", xtol=1e-14, ftol=1e-14, gtol=1e-14, max_nfev=10000
+        )
         q = res.x
         params = np.array([q[0], q[1], t_min - np.exp(q[2])])
         r = resid(q)
@@ -674,6 +737,10 @@ def fit_viscosity_temperature(temperatures_c, viscosities, model: str = "andrade
             cov_q = np.sum(r**2) / dof * np.linalg.inv(res.jac.T @ res.jac)
             gmat = np.diag([1.0, 1.0, -np.exp(q[2])])
             errors = np.sqrt(np.abs(np.diag(gmat @ cov_q @ gmat.T)))
-    return TemperatureFit(model=model, parameters=dict(zip(names, map(float, params), strict=True)),
-                          standard_errors=dict(zip(names, map(float, errors), strict=True)),
-                          residuals=r, temperature_range_c=(float(np.min(t)), float(np.max(t))))
+    return TemperatureFit(
+        model=model,
+        parameters=dict(zip(names, map(float, params), strict=True)),
+        standard_errors=dict(zip(names, map(float, errors), strict=True)),
+        residuals=r,
+        temperature_range_c=(float(np.min(t)), float(np.max(t))),
+    )

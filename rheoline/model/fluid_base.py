@@ -103,7 +103,14 @@ def _span(value) -> str:
     return f"{np.min(arr):.4g}..{np.max(arr):.4g}"
 
 
-def newtonian_fluid(name: str, viscosity, density, temperature_c=20.0, source: str = "user") -> Fluid:
+def newtonian_fluid(
+    name: str, viscosity, density, temperature_c=20.0, source: str = "user"
+) -> Fluid:
     """A user's Newtonian fluid from a viscosity [Pa s] and density [kg/m^3]."""
-    return Fluid(name=name, temperature_c=temperature_c, density=density,
-                 rheology=Newtonian(viscosity), source=source)
+    return Fluid(
+        name=name,
+        temperature_c=temperature_c,
+        density=density,
+        rheology=Newtonian(viscosity),
+        source=source,
+    )

@@ -81,70 +81,113 @@ def _t(temperature_c):
 
 
 def _newtonian(name, t, mu, rho, source, notes=()):
-    return Fluid(name=name, temperature_c=_t(t), density=rho, rheology=Newtonian(mu),
-                 source=source, notes=tuple(notes))
+    return Fluid(
+        name=name,
+        temperature_c=_t(t),
+        density=rho,
+        rheology=Newtonian(mu),
+        source=source,
+        notes=tuple(notes),
+    )
 
 
 def _water(temperature_c):
-    return _newtonian("water", temperature_c, viscosity.water_viscosity(temperature_c),
-                      viscosity.water_density(temperature_c),
-                      "viscosity IAPWS 2008 (Huber et al. 2009); density Kell 1975")
+    return _newtonian(
+        "water",
+        temperature_c,
+        viscosity.water_viscosity(temperature_c),
+        viscosity.water_density(temperature_c),
+        "viscosity IAPWS 2008 (Huber et al. 2009); density Kell 1975",
+    )
 
 
 def _saline(temperature_c):
-    return _newtonian("saline-0.9", temperature_c, viscosity.saline_viscosity(temperature_c),
-                      viscosity.saline_density(temperature_c),
-                      "9 g/L NaCl; Laliberte 2007 viscosity, Laliberte & Cooper 2004 density")
+    return _newtonian(
+        "saline-0.9",
+        temperature_c,
+        viscosity.saline_viscosity(temperature_c),
+        viscosity.saline_density(temperature_c),
+        "9 g/L NaCl; Laliberte 2007 viscosity, Laliberte & Cooper 2004 density",
+    )
 
 
 def _ringers(temperature_c):
-    return _newtonian("lactated-ringers", temperature_c,
-                      viscosity.lactated_ringers_viscosity(temperature_c),
-                      viscosity.lactated_ringers_density(temperature_c),
-                      "Laliberte 2007 / Laliberte & Cooper 2004 mixture of NaCl, KCl, CaCl2",
-                      ("recipe from memory; sodium lactate counted as NaCl of equal sodium",))
+    return _newtonian(
+        "lactated-ringers",
+        temperature_c,
+        viscosity.lactated_ringers_viscosity(temperature_c),
+        viscosity.lactated_ringers_density(temperature_c),
+        "Laliberte 2007 / Laliberte & Cooper 2004 mixture of NaCl, KCl, CaCl2",
+        ("recipe from memory; sodium lactate counted as NaCl of equal sodium",),
+    )
 
 
 def _dextrose(temperature_c):
-    return _newtonian("dextrose-5", temperature_c, viscosity.dextrose_5_viscosity(temperature_c),
-                      viscosity.dextrose_5_density(temperature_c),
-                      "water (IAPWS 2008) x relative viscosity 1.13; density 1017 kg/m^3 at 20 degC",
-                      ("relative viscosity and density from memory",))
+    return _newtonian(
+        "dextrose-5",
+        temperature_c,
+        viscosity.dextrose_5_viscosity(temperature_c),
+        viscosity.dextrose_5_density(temperature_c),
+        "water (IAPWS 2008) x relative viscosity 1.13; density 1017 kg/m^3 at 20 degC",
+        ("relative viscosity and density from memory",),
+    )
 
 
 def _albumin(default_concentration, label):
     def build(temperature_c, concentration=default_concentration):
-        return _newtonian(label, temperature_c,
-                          viscosity.albumin_viscosity(concentration, temperature_c),
-                          viscosity.albumin_density(concentration, temperature_c),
-                          "saline (Laliberte 2007) x Mooney relative viscosity of albumin",
-                          ("albumin intrinsic viscosity and crowding coefficient from memory; "
-                           "an estimate within perhaps 15 %",))
+        return _newtonian(
+            label,
+            temperature_c,
+            viscosity.albumin_viscosity(concentration, temperature_c),
+            viscosity.albumin_density(concentration, temperature_c),
+            "saline (Laliberte 2007) x Mooney relative viscosity of albumin",
+            (
+                "albumin intrinsic viscosity and crowding coefficient from memory; "
+                "an estimate within perhaps 15 %",
+            ),
+        )
+
     return build
 
 
 def _plasma(temperature_c):
     t = np.asarray(temperature_c, dtype=float)
     mu = blood.plasma_viscosity(t)
-    return Fluid(name="plasma", temperature_c=_t(t), density=blood.plasma_density(t),
-                 rheology=Newtonian(mu), hematocrit=None, plasma_viscosity=mu,
-                 source="1.8 x water viscosity (IAPWS 2008); 1025 kg/m^3 at 37 degC",
-                 notes=("plasma-to-water ratio and density are typical values",))
+    return Fluid(
+        name="plasma",
+        temperature_c=_t(t),
+        density=blood.plasma_density(t),
+        rheology=Newtonian(mu),
+        hematocrit=None,
+        plasma_viscosity=mu,
+        source="1.8 x water viscosity (IAPWS 2008); 1025 kg/m^3 at 37 degC",
+        notes=("plasma-to-water ratio and density are typical values",),
+    )
 
 
 def _blood(label, default_hematocrit, typical_note):
     def build(temperature_c, hematocrit=default_hematocrit, model="carreau"):
         rheology, density, mu_p = blood.blood_properties(hematocrit, temperature_c, model)
-        h_b, t_b = np.broadcast_arrays(np.asarray(hematocrit, dtype=float),
-                                       np.asarray(temperature_c, dtype=float))
-        notes = [f"rheology model {model!r}; scaling with hematocrit and temperature is "
-                 "anchored at Cho & Kensey 1991 (H 0.45, 37 degC)"]
+        h_b, t_b = np.broadcast_arrays(
+            np.asarray(hematocrit, dtype=float), np.asarray(temperature_c, dtype=float)
+        )
+        notes = [
+            f"rheology model {model!r}; scaling with hematocrit and temperature is "
+            "anchored at Cho & Kensey 1991 (H 0.45, 37 degC)"
+        ]
         if hematocrit is default_hematocrit:
             notes.append(typical_note)
-        return Fluid(name=label, temperature_c=_t(t_b), density=density, rheology=rheology,
-                     hematocrit=float(h_b) if h_b.ndim == 0 else h_b, plasma_viscosity=mu_p,
-                     source="plasma 1.8 x water; Quemada 1978 high shear; Cho & Kensey 1991",
-                     notes=tuple(notes))
+        return Fluid(
+            name=label,
+            temperature_c=_t(t_b),
+            density=density,
+            rheology=rheology,
+            hematocrit=float(h_b) if h_b.ndim == 0 else h_b,
+            plasma_viscosity=mu_p,
+            source="plasma 1.8 x water; Quemada 1978 high shear; Cho & Kensey 1991",
+            notes=tuple(notes),
+        )
+
     return build
 
 
@@ -161,50 +204,88 @@ def _glycerol(temperature_c, mass_fraction=None, target_viscosity=None):
     rho = viscosity.glycerol_water_density(w, temperature_c)
     label = "glycerol-water"
     notes = (f"glycerol mass fraction {np.round(w, 4).tolist()}",)
-    return _newtonian(label, temperature_c, mu, rho,
-                      "Cheng 2008 viscosity; Volk & Kaehler 2018 density", notes)
+    return _newtonian(
+        label, temperature_c, mu, rho, "Cheng 2008 viscosity; Volk & Kaehler 2018 density", notes
+    )
 
 
 _MODEL_OPTION = ("carreau", "blood rheology model: " + ", ".join(blood.BLOOD_RHEOLOGY_MODELS))
 
 #: The library: name -> entry.  Every list of fluids (names, errors, docs) reads this dict.
 FLUID_LIBRARY: dict[str, FluidEntry] = {
-    "water": FluidEntry(_water, "pure water", 20.0, {},
-                        "IAPWS 2008 viscosity, Kell 1975 density"),
-    "saline-0.9": FluidEntry(_saline, "0.9 % sodium chloride (9 g/L)", 20.0, {},
-                             "Laliberte 2007; Laliberte & Cooper 2004"),
-    "dextrose-5": FluidEntry(_dextrose, "5 % dextrose in water", 20.0, {},
-                             "relative viscosity to water, from memory"),
-    "lactated-ringers": FluidEntry(_ringers, "lactated Ringer's (Hartmann's) solution", 20.0, {},
-                                   "Laliberte 2007 mixture rule"),
-    "plasma": FluidEntry(_plasma, "blood plasma (Newtonian)", 37.0, {},
-                         "1.8 x water, common practice"),
-    "albumin-5": FluidEntry(_albumin(50.0, "albumin-5"), "5 % human albumin in saline", 20.0,
-                            {"concentration": (50.0, "albumin [kg/m^3]")},
-                            "Mooney form, parameters from memory"),
-    "albumin-20": FluidEntry(_albumin(200.0, "albumin-20"), "20 % human albumin", 20.0,
-                             {"concentration": (200.0, "albumin [kg/m^3]; 250 for a 25 % solution")},
-                             "Mooney form, parameters from memory"),
-    "albumin-25": FluidEntry(_albumin(250.0, "albumin-25"), "25 % human albumin", 20.0,
-                             {"concentration": (250.0, "albumin [kg/m^3]")},
-                             "Mooney form, parameters from memory"),
-    "whole-blood": FluidEntry(_blood("whole-blood", 0.45, "hematocrit 0.45 is a typical value"),
-                              "whole blood (shear-thinning)", 37.0,
-                              {"hematocrit": (0.45, "red-cell volume fraction [-] (typical 0.45)"),
-                               "model": _MODEL_OPTION},
-                              "Quemada 1978, Cho & Kensey 1991, Merrill 1965"),
-    "packed-red-cells": FluidEntry(_blood("packed-red-cells", 0.65,
-                                          "hematocrit 0.65 is a typical value for a packed "
-                                          "red-cell unit (units range about 0.55-0.80)"),
-                                   "packed red cells (cold from storage by default)",
-                                   4.0,
-                                   {"hematocrit": (0.65, "red-cell volume fraction [-] (typical 0.65)"),
-                                    "model": _MODEL_OPTION},
-                                   "as whole blood; suspending medium taken as plasma"),
-    "glycerol-water": FluidEntry(_glycerol, "glycerol-water bench analog", 20.0,
-                                 {"mass_fraction": (None, "glycerol mass fraction [-]"),
-                                  "target_viscosity": (None, "or: the viscosity to mix for [Pa s]")},
-                                 "Cheng 2008; Volk & Kaehler 2018"),
+    "water": FluidEntry(_water, "pure water", 20.0, {}, "IAPWS 2008 viscosity, Kell 1975 density"),
+    "saline-0.9": FluidEntry(
+        _saline,
+        "0.9 % sodium chloride (9 g/L)",
+        20.0,
+        {},
+        "Laliberte 2007; Laliberte & Cooper 2004",
+    ),
+    "dextrose-5": FluidEntry(
+        _dextrose, "5 % dextrose in water", 20.0, {}, "relative viscosity to water, from memory"
+    ),
+    "lactated-ringers": FluidEntry(
+        _ringers, "lactated Ringer's (Hartmann's) solution", 20.0, {}, "Laliberte 2007 mixture rule"
+    ),
+    "plasma": FluidEntry(
+        _plasma, "blood plasma (Newtonian)", 37.0, {}, "1.8 x water, common practice"
+    ),
+    "albumin-5": FluidEntry(
+        _albumin(50.0, "albumin-5"),
+        "5 % human albumin in saline",
+        20.0,
+        {"concentration": (50.0, "albumin [kg/m^3]")},
+        "Mooney form, parameters from memory",
+    ),
+    "albumin-20": FluidEntry(
+        _albumin(200.0, "albumin-20"),
+        "20 % human albumin",
+        20.0,
+        {"concentration": (200.0, "albumin [kg/m^3]; 250 for a 25 % solution")},
+        "Mooney form, parameters from memory",
+    ),
+    "albumin-25": FluidEntry(
+        _albumin(250.0, "albumin-25"),
+        "25 % human albumin",
+        20.0,
+        {"concentration": (250.0, "albumin [kg/m^3]")},
+        "Mooney form, parameters from memory",
+    ),
+    "whole-blood": FluidEntry(
+        _blood("whole-blood", 0.45, "hematocrit 0.45 is a typical value"),
+        "whole blood (shear-thinning)",
+        37.0,
+        {
+            "hematocrit": (0.45, "red-cell volume fraction [-] (typical 0.45)"),
+            "model": _MODEL_OPTION,
+        },
+        "Quemada 1978, Cho & Kensey 1991, Merrill 1965",
+    ),
+    "packed-red-cells": FluidEntry(
+        _blood(
+            "packed-red-cells",
+            0.65,
+            "hematocrit 0.65 is a typical value for a packed "
+            "red-cell unit (units range about 0.55-0.80)",
+        ),
+        "packed red cells (cold from storage by default)",
+        4.0,
+        {
+            "hematocrit": (0.65, "red-cell volume fraction [-] (typical 0.65)"),
+            "model": _MODEL_OPTION,
+        },
+        "as whole blood; suspending medium taken as plasma",
+    ),
+    "glycerol-water": FluidEntry(
+        _glycerol,
+        "glycerol-water bench analog",
+        20.0,
+        {
+            "mass_fraction": (None, "glycerol mass fraction [-]"),
+            "target_viscosity": (None, "or: the viscosity to mix for [Pa s]"),
+        },
+        "Cheng 2008; Volk & Kaehler 2018",
+    ),
 }
 
 _LIBRARY_NAMES = frozenset(FLUID_LIBRARY)
@@ -214,8 +295,10 @@ def _library_table() -> str:
     lines = []
     for name, e in FLUID_LIBRARY.items():
         opts = ", ".join(f"{k}={v[0]!r}" for k, v in e.options.items())
-        lines.append(f"* ``{name}``: {e.description} (default {e.default_temperature_c:g} degC"
-                     f"{'; options ' + opts if opts else ''}). Source: {e.source}.")
+        lines.append(
+            f"* ``{name}``: {e.description} (default {e.default_temperature_c:g} degC"
+            f"{'; options ' + opts if opts else ''}). Source: {e.source}."
+        )
     return "\n    ".join(lines)
 
 
@@ -324,17 +407,28 @@ def fluid_catalogue() -> list[dict]:
     'pure water'
     """
     return [
-        {"name": name, "description": e.description,
-         "default_temperature_c": e.default_temperature_c,
-         "options": {k: v[1] for k, v in e.options.items()},
-         "source": e.source, "user": e.user}
+        {
+            "name": name,
+            "description": e.description,
+            "default_temperature_c": e.default_temperature_c,
+            "options": {k: v[1] for k, v in e.options.items()},
+            "source": e.source,
+            "user": e.user,
+        }
         for name, e in FLUID_LIBRARY.items()
     ]
 
 
-def register_fluid(name: str, builder: Callable, *, description: str = "user fluid",
-                   default_temperature_c: float = 20.0, options: dict | None = None,
-                   source: str = "user", overwrite: bool = False) -> None:
+def register_fluid(
+    name: str,
+    builder: Callable,
+    *,
+    description: str = "user fluid",
+    default_temperature_c: float = 20.0,
+    options: dict | None = None,
+    source: str = "user",
+    overwrite: bool = False,
+) -> None:
     """Add a user's fluid to the library so that ``fluid(name, ...)`` builds it.
 
     Parameters
@@ -356,13 +450,18 @@ def register_fluid(name: str, builder: Callable, *, description: str = "user flu
     """
     key = _normalize(name)
     if key in _LIBRARY_NAMES:
-        raise InputRangeError(f"{key!r} is a built-in fluid and cannot be replaced; choose another name")
+        raise InputRangeError(
+            f"{key!r} is a built-in fluid and cannot be replaced; choose another name"
+        )
     if key in FLUID_LIBRARY and not overwrite:
-        raise InputRangeError(f"fluid {key!r} is already registered; pass overwrite=True to replace it")
+        raise InputRangeError(
+            f"fluid {key!r} is already registered; pass overwrite=True to replace it"
+        )
     if not callable(builder):
         raise InputRangeError(f"builder for {key!r} must be callable(temperature_c, **options)")
-    FLUID_LIBRARY[key] = FluidEntry(builder, description, float(default_temperature_c),
-                                    dict(options or {}), source, user=True)
+    FLUID_LIBRARY[key] = FluidEntry(
+        builder, description, float(default_temperature_c), dict(options or {}), source, user=True
+    )
 
 
 def unregister_fluid(name: str) -> None:
@@ -373,9 +472,17 @@ def unregister_fluid(name: str) -> None:
     del FLUID_LIBRARY[key]
 
 
-def user_fluid_from_temperatures(name: str, temperatures_c, viscosities, density,
-                                 model: str = "andrade", *, temperature_c=None,
-                                 register: bool = False, overwrite: bool = False) -> Fluid:
+def user_fluid_from_temperatures(
+    name: str,
+    temperatures_c,
+    viscosities,
+    density,
+    model: str = "andrade",
+    *,
+    temperature_c=None,
+    register: bool = False,
+    overwrite: bool = False,
+) -> Fluid:
     """A user's Newtonian fluid from viscosities measured at two or more temperatures.
 
     The viscosities are fitted with :func:`rheoline.model.fitting.fit_viscosity_temperature`
@@ -432,12 +539,23 @@ def user_fluid_from_temperatures(name: str, temperatures_c, viscosities, density
 
     def build(temperature_c):
         t = np.asarray(viscosity.check_temperature_c(temperature_c))
-        return _newtonian(label, t, fit.viscosity(t), np.polyval(coeffs, t), source,
-                          (f"fitted to {temps.size} measured viscosities",))
+        return _newtonian(
+            label,
+            t,
+            fit.viscosity(t),
+            np.polyval(coeffs, t),
+            source,
+            (f"fitted to {temps.size} measured viscosities",),
+        )
 
     if register:
-        register_fluid(label, build, description=f"user fluid ({fit.model} fit)",
-                       default_temperature_c=float(np.mean(fit.temperature_range_c)),
-                       source=source, overwrite=overwrite)
+        register_fluid(
+            label,
+            build,
+            description=f"user fluid ({fit.model} fit)",
+            default_temperature_c=float(np.mean(fit.temperature_range_c)),
+            source=source,
+            overwrite=overwrite,
+        )
     t_eval = float(np.mean(fit.temperature_range_c)) if temperature_c is None else temperature_c
     return build(t_eval)

@@ -195,14 +195,22 @@ def vascular_resistance(upstream_mmhg, downstream_mmhg, flow_l_min, factor="exac
 
 
 def _from_cardiac_output(up_name, upstream, down_name, downstream, cardiac_output_l_min, factor):
-    warn_outside("cardiac_output_l_min", cardiac_output_l_min, 0.5, 40.0,
-                 "an adult cardiac output", "L/min", stacklevel=4)
+    warn_outside(
+        "cardiac_output_l_min",
+        cardiac_output_l_min,
+        0.5,
+        40.0,
+        "an adult cardiac output",
+        "L/min",
+        stacklevel=4,
+    )
     drop = _pressure_drop(up_name, upstream, down_name, downstream)
     return _resistance(drop, cardiac_output_l_min, factor, "cardiac_output_l_min")
 
 
-def systemic_vascular_resistance(mean_arterial_mmhg, central_venous_mmhg, cardiac_output_l_min,
-                                 factor="exact"):
+def systemic_vascular_resistance(
+    mean_arterial_mmhg, central_venous_mmhg, cardiac_output_l_min, factor="exact"
+):
     r"""Systemic vascular resistance, SVR = (MAP - CVP) / CO.
 
     Parameters
@@ -225,13 +233,19 @@ def systemic_vascular_resistance(mean_arterial_mmhg, central_venous_mmhg, cardia
     >>> systemic_vascular_resistance(90.0, 6.0, 6.0, factor="rounded").dyn_s_per_cm5
     1120.0
     """
-    return _from_cardiac_output("mean_arterial_mmhg", mean_arterial_mmhg,
-                                "central_venous_mmhg", central_venous_mmhg,
-                                cardiac_output_l_min, factor)
+    return _from_cardiac_output(
+        "mean_arterial_mmhg",
+        mean_arterial_mmhg,
+        "central_venous_mmhg",
+        central_venous_mmhg,
+        cardiac_output_l_min,
+        factor,
+    )
 
 
-def pulmonary_vascular_resistance(mean_pulmonary_arterial_mmhg, wedge_mmhg, cardiac_output_l_min,
-                                  factor="exact"):
+def pulmonary_vascular_resistance(
+    mean_pulmonary_arterial_mmhg, wedge_mmhg, cardiac_output_l_min, factor="exact"
+):
     r"""Pulmonary vascular resistance, PVR = (mPAP - PAWP) / CO.
 
     Parameters
@@ -254,8 +268,14 @@ def pulmonary_vascular_resistance(mean_pulmonary_arterial_mmhg, wedge_mmhg, card
     >>> pulmonary_vascular_resistance(15.0, 9.0, 5.0).wood_units
     1.2
     """
-    return _from_cardiac_output("mean_pulmonary_arterial_mmhg", mean_pulmonary_arterial_mmhg,
-                                "wedge_mmhg", wedge_mmhg, cardiac_output_l_min, factor)
+    return _from_cardiac_output(
+        "mean_pulmonary_arterial_mmhg",
+        mean_pulmonary_arterial_mmhg,
+        "wedge_mmhg",
+        wedge_mmhg,
+        cardiac_output_l_min,
+        factor,
+    )
 
 
 def cardiac_index(cardiac_output_l_min, body_surface_area_m2):
@@ -273,8 +293,9 @@ def cardiac_index(cardiac_output_l_min, body_surface_area_m2):
 
 def _indexed(result: VascularResistance, body_surface_area_m2) -> VascularResistance:
     bsa = check_positive("body_surface_area_m2", body_surface_area_m2, "m^2")
-    warn_outside("body_surface_area_m2", bsa, 0.2, 3.5, "a human body surface area", "m^2",
-                 stacklevel=4)
+    warn_outside(
+        "body_surface_area_m2", bsa, 0.2, 3.5, "a human body surface area", "m^2", stacklevel=4
+    )
     return VascularResistance(
         wood_units=scalar_or_array(np.asarray(result.wood_units) * bsa),
         dyn_s_per_cm5=scalar_or_array(np.asarray(result.dyn_s_per_cm5) * bsa),
@@ -284,9 +305,13 @@ def _indexed(result: VascularResistance, body_surface_area_m2) -> VascularResist
     )
 
 
-def systemic_vascular_resistance_index(mean_arterial_mmhg, central_venous_mmhg,
-                                       cardiac_output_l_min, body_surface_area_m2,
-                                       factor="exact"):
+def systemic_vascular_resistance_index(
+    mean_arterial_mmhg,
+    central_venous_mmhg,
+    cardiac_output_l_min,
+    body_surface_area_m2,
+    factor="exact",
+):
     r"""Systemic vascular resistance index, SVRI = (MAP - CVP) / CI = SVR * BSA.
 
     Units carry m^2: WU m^2 and dyn s cm^-5 m^2 (``indexed=True``).
@@ -296,14 +321,19 @@ def systemic_vascular_resistance_index(mean_arterial_mmhg, central_venous_mmhg,
     >>> systemic_vascular_resistance_index(90.0, 6.0, 6.0, 2.0).wood_units
     28.0
     """
-    svr = systemic_vascular_resistance(mean_arterial_mmhg, central_venous_mmhg,
-                                       cardiac_output_l_min, factor)
+    svr = systemic_vascular_resistance(
+        mean_arterial_mmhg, central_venous_mmhg, cardiac_output_l_min, factor
+    )
     return _indexed(svr, body_surface_area_m2)
 
 
-def pulmonary_vascular_resistance_index(mean_pulmonary_arterial_mmhg, wedge_mmhg,
-                                        cardiac_output_l_min, body_surface_area_m2,
-                                        factor="exact"):
+def pulmonary_vascular_resistance_index(
+    mean_pulmonary_arterial_mmhg,
+    wedge_mmhg,
+    cardiac_output_l_min,
+    body_surface_area_m2,
+    factor="exact",
+):
     r"""Pulmonary vascular resistance index, PVRI = (mPAP - PAWP) / CI = PVR * BSA.
 
     Examples
@@ -311,8 +341,9 @@ def pulmonary_vascular_resistance_index(mean_pulmonary_arterial_mmhg, wedge_mmhg
     >>> pulmonary_vascular_resistance_index(15.0, 9.0, 5.0, 2.0).wood_units
     2.4
     """
-    pvr = pulmonary_vascular_resistance(mean_pulmonary_arterial_mmhg, wedge_mmhg,
-                                        cardiac_output_l_min, factor)
+    pvr = pulmonary_vascular_resistance(
+        mean_pulmonary_arterial_mmhg, wedge_mmhg, cardiac_output_l_min, factor
+    )
     return _indexed(pvr, body_surface_area_m2)
 
 
@@ -416,9 +447,7 @@ def body_surface_area(height_cm, weight_kg, method="mosteller"):
     if np.any(h < 30.0) or np.any(h > 250.0):
         v = float(np.min(h)) if np.any(h < 30.0) else float(np.max(h))
         hint = f"; if that is metres, pass {v * 100:g}" if v < 3.0 else ""
-        raise InputRangeError(
-            f"height_cm must lie between 30 and 250 cm, got {v:g} cm{hint}"
-        )
+        raise InputRangeError(f"height_cm must lie between 30 and 250 cm, got {v:g} cm{hint}")
     return fn(h, weight_kg)
 
 
@@ -453,6 +482,4 @@ def typical_adult_range(kind: str, unit: str = "dyn_s_per_cm5", factor: str = "e
     if unit == "wood_units":
         fac = _factor(factor)
         return (low / fac, high / fac)
-    raise InputRangeError(
-        f"unit must be 'dyn_s_per_cm5' or 'wood_units', got {unit!r}"
-    )
+    raise InputRangeError(f"unit must be 'dyn_s_per_cm5' or 'wood_units', got {unit!r}")

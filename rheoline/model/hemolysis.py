@@ -82,8 +82,19 @@ def giersiepen_1990_hemolysis_index(shear_stress, exposure_time, warn=True):
     tau = check_nonnegative("shear_stress", shear_stress, "Pa")
     t = check_nonnegative("exposure_time", exposure_time, "s")
     if warn:
-        warn_outside("shear_stress", tau, 0.0, GIERSIEPEN_1990_MAX_STRESS,
-                     "the Giersiepen 1990 hemolysis law", "Pa")
-        warn_outside("exposure_time", t, *GIERSIEPEN_1990_TIME_RANGE,
-                     "the Giersiepen 1990 hemolysis law", "s")
+        warn_outside(
+            "shear_stress",
+            tau,
+            0.0,
+            GIERSIEPEN_1990_MAX_STRESS,
+            "the Giersiepen 1990 hemolysis law",
+            "Pa",
+        )
+        warn_outside(
+            "exposure_time",
+            t,
+            *GIERSIEPEN_1990_TIME_RANGE,
+            "the Giersiepen 1990 hemolysis law",
+            "s",
+        )
     return scalar_or_array(_index(tau, t))

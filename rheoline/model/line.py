@@ -112,7 +112,7 @@ GRAVITY = 9.80665
 # Largest diameter of the data behind Pries 1992; the correction is relative to it.
 _PRIES_REFERENCE_DIAMETER = 1.9779e-3
 
-_TOL = 1e-11          # convergence on ln(Q)
+_TOL = 1e-11  # convergence on ln(Q)
 #: Drives [Pa] and flows [m^3/s] at or below these are numerically zero: flows that small
 #: would underflow double precision in the friction terms, so they give a zero result.
 _MIN_DRIVE = 1e-150
@@ -122,7 +122,7 @@ _MIN_FLOW = 1e-200
 #: ``Line._solve_flow_on_curve``); fewer scenarios, or per-scenario parts or fluids, take
 #: the Newton path.
 _CURVE_MIN_SCENARIOS = 256
-_CURVE_TOL = 1e-9     # largest interpolation error in ln(Q) accepted on the characteristic
+_CURVE_TOL = 1e-9  # largest interpolation error in ln(Q) accepted on the characteristic
 _MAX_ITER = 60
 
 
@@ -137,7 +137,7 @@ def _check_fluid(fluid):
     if not (hasattr(fluid, "density") and hasattr(fluid, "rheology")):
         raise InputRangeError(
             f"fluid must be a Fluid object, got {fluid!r} ({type(fluid).__name__}); build one "
-            "with rheoline.fluid(\"water\") (see rheoline.fluid_names()) or "
+            'with rheoline.fluid("water") (see rheoline.fluid_names()) or '
             "rheoline.model.fluid_base.newtonian_fluid(name, viscosity, density)"
         )
 
@@ -173,8 +173,13 @@ def _shape_of(*values):
 
 def _fluid_shape(fluid):
     rheo = fluid.rheology
-    return _shape_of(fluid.density, fluid.temperature_c, fluid.hematocrit,
-                     fluid.plasma_viscosity, rheo.viscosity(1.0))
+    return _shape_of(
+        fluid.density,
+        fluid.temperature_c,
+        fluid.hematocrit,
+        fluid.plasma_viscosity,
+        rheo.viscosity(1.0),
+    )
 
 
 @dataclass(frozen=True)
@@ -184,22 +189,22 @@ class _Layout:
     shape: tuple
     names: tuple
     kinds: tuple
-    lumen_rows: np.ndarray      # indices of parts that are lumens (incl. equivalent-length fittings)
-    k_rows: np.ndarray          # indices of K fittings
-    measured_rows: np.ndarray   # indices of measured parts
-    diameter: np.ndarray        # (n_lumen, *shape)
+    lumen_rows: np.ndarray  # indices of parts that are lumens (incl. equivalent-length fittings)
+    k_rows: np.ndarray  # indices of K fittings
+    measured_rows: np.ndarray  # indices of measured parts
+    diameter: np.ndarray  # (n_lumen, *shape)
     length: np.ndarray
     relative_roughness: np.ndarray
-    developing: np.ndarray      # (n_lumen, 1...) bool
-    minor_k: np.ndarray         # (n_lumen, *shape) entrance/transition K at the lumen velocity
+    developing: np.ndarray  # (n_lumen, 1...) bool
+    minor_k: np.ndarray  # (n_lumen, *shape) entrance/transition K at the lumen velocity
     viscosity_factor: np.ndarray  # (n_lumen, *shape) Pries 1992 factor (1 without it)
-    k_coefficient: np.ndarray   # (n_k, *shape): dp = c Q^2 (+ k_linear Q)
-    k_linear: np.ndarray        # (n_k, *shape): Hooper 1981 laminar term of a 2-K fitting
+    k_coefficient: np.ndarray  # (n_k, *shape): dp = c Q^2 (+ k_linear Q)
+    k_linear: np.ndarray  # (n_k, *shape): Hooper 1981 laminar term of a 2-K fitting
     k_velocity_area: np.ndarray  # (n_k, *shape) area [m^2] the K refers to
-    measured_a: np.ndarray      # (n_measured, *shape)
+    measured_a: np.ndarray  # (n_measured, *shape)
     measured_b: np.ndarray
     exit_coefficient: np.ndarray  # (*shape): dp_exit = c Q^2
-    density: np.ndarray          # (*shape)
+    density: np.ndarray  # (*shape)
     pries: bool
 
 
@@ -296,8 +301,9 @@ class Line:
                 value = getattr(part, attr, None)
                 if value is not None:
                     dims.append(value)
-        shape = np.broadcast_shapes(_fluid_shape(fluid), tuple(extra_shape),
-                                    *(np.shape(v) for v in dims))
+        shape = np.broadcast_shapes(
+            _fluid_shape(fluid), tuple(extra_shape), *(np.shape(v) for v in dims)
+        )
         ones = np.ones(shape)
         rho = fluid.density * ones
         lumen_rows, k_rows, measured_rows = [], [], []
@@ -378,23 +384,33 @@ class Line:
                 )
             h = fluid.hematocrit * ones
             ref = pries_1992_relative_viscosity(_PRIES_REFERENCE_DIAMETER, h)
-            factor = pries_1992_relative_viscosity(
-                np.minimum(diameter, _PRIES_REFERENCE_DIAMETER), h) / ref
+            factor = (
+                pries_1992_relative_viscosity(np.minimum(diameter, _PRIES_REFERENCE_DIAMETER), h)
+                / ref
+            )
             factor = np.broadcast_to(factor, (n_l, *shape))
         dev = np.array(developing, dtype=bool).reshape((n_l,) + (1,) * len(shape))
         return _Layout(
-            shape=shape, names=self.part_names, kinds=tuple(p.kind for p in self.parts),
-            lumen_rows=np.array(lumen_rows, dtype=int), k_rows=np.array(k_rows, dtype=int),
+            shape=shape,
+            names=self.part_names,
+            kinds=tuple(p.kind for p in self.parts),
+            lumen_rows=np.array(lumen_rows, dtype=int),
+            k_rows=np.array(k_rows, dtype=int),
             measured_rows=np.array(measured_rows, dtype=int),
-            diameter=diameter, length=np.array(lengths).reshape((n_l, *shape)),
-            relative_roughness=np.array(rough).reshape((n_l, *shape)), developing=dev,
-            minor_k=minor, viscosity_factor=factor,
+            diameter=diameter,
+            length=np.array(lengths).reshape((n_l, *shape)),
+            relative_roughness=np.array(rough).reshape((n_l, *shape)),
+            developing=dev,
+            minor_k=minor,
+            viscosity_factor=factor,
             k_coefficient=np.array(k_coef).reshape((len(k_rows), *shape)),
             k_linear=np.array(k_lin).reshape((len(k_rows), *shape)),
             k_velocity_area=np.array(k_area).reshape((len(k_rows), *shape)),
             measured_a=np.array(m_a).reshape((len(measured_rows), *shape)),
             measured_b=np.array(m_b).reshape((len(measured_rows), *shape)),
-            exit_coefficient=exit_c, density=rho, pries=bool(pries),
+            exit_coefficient=exit_c,
+            density=rho,
+            pries=bool(pries),
         )
 
     # ------------------------------------------------------------------ physics
@@ -409,7 +425,7 @@ class Line:
             return mu, 0.0, None
         radius = layout.diameter / 2.0
         q_i, tau_i, dlog_q, dlog_tau = _lumen._rabinowitsch_state(fluid.rheology, state, radius)
-        dlog_tau_q = dlog_tau / dlog_q            # d ln(tau_w) / d ln(Q)
+        dlog_tau_q = dlog_tau / dlog_q  # d ln(tau_w) / d ln(Q)
         dlog_mu = dlog_tau_q - 1.0
         log_q_i = np.log(q_i)
         mismatch = log_q - log_q_i
@@ -424,8 +440,16 @@ class Line:
         """Every loss at flow ``q``: total [Pa], d(total)/d ln Q [Pa], and the pieces."""
         area = np.pi * layout.diameter**2 / 4.0
         dp_f, slope_f, re, u = _lumen._lumen_friction(
-            q, area, layout.diameter, layout.length, layout.relative_roughness,
-            layout.density, mu, dlog_mu, layout.developing)
+            q,
+            area,
+            layout.diameter,
+            layout.length,
+            layout.relative_roughness,
+            layout.density,
+            mu,
+            dlog_mu,
+            layout.developing,
+        )
         dp_m = layout.minor_k * 0.5 * layout.density * u * u
         dp_lumen = dp_f + dp_m
         q2 = q * q
@@ -435,10 +459,14 @@ class Line:
         lin = layout.measured_a * q
         quad = layout.measured_b * q2
         dp_exit = layout.exit_coefficient * q2
-        total = (dp_lumen.sum(axis=0) + dp_k.sum(axis=0) + (lin + quad).sum(axis=0) + dp_exit)
+        total = dp_lumen.sum(axis=0) + dp_k.sum(axis=0) + (lin + quad).sum(axis=0) + dp_exit
         lumen_slope = dp_f * slope_f + 2.0 * dp_m
-        slope = (lumen_slope.sum(axis=0) + (2.0 * k_quad + k_lin).sum(axis=0)
-                 + (lin + 2.0 * quad).sum(axis=0) + 2.0 * dp_exit)
+        slope = (
+            lumen_slope.sum(axis=0)
+            + (2.0 * k_quad + k_lin).sum(axis=0)
+            + (lin + 2.0 * quad).sum(axis=0)
+            + 2.0 * dp_exit
+        )
         return total, slope, (dp_lumen, dp_k, lin + quad, dp_exit, re, u, lumen_slope)
 
     def _guess(self, layout, fluid, drive):
@@ -474,8 +502,9 @@ class Line:
         return 2.0 * drive / (a + np.sqrt(a * a + 4.0 * b * drive))
 
     # ------------------------------------------------------------------ public
-    def pressure_residual(self, fluid, flow, head=0.0, source_pressure=0.0, back_pressure=0.0,
-                          pries_correction=False):
+    def pressure_residual(
+        self, fluid, flow, head=0.0, source_pressure=0.0, back_pressure=0.0, pries_correction=False
+    ):
         """Losses at ``flow`` minus the net drive [Pa]: one vectorized pass of the line's physics.
 
         For a non-Newtonian fluid the wall shear rate of each lumen is first solved
@@ -491,11 +520,18 @@ class Line:
         >>> bool(line.pressure_residual(water, 1e-8, source_pressure=1e4) < 0)
         True
         """
-        self._check_inputs(fluid, flow=flow, head=head, source_pressure=source_pressure,
-                           back_pressure=back_pressure)
+        self._check_inputs(
+            fluid,
+            flow=flow,
+            head=head,
+            source_pressure=source_pressure,
+            back_pressure=back_pressure,
+        )
         q = check_nonnegative("flow", flow, "m^3/s")
         drive = self._drive(fluid, head, source_pressure, back_pressure)
-        layout = self._layout(fluid, np.broadcast_shapes(q.shape, np.shape(drive)), pries_correction)
+        layout = self._layout(
+            fluid, np.broadcast_shapes(q.shape, np.shape(drive)), pries_correction
+        )
         q = np.maximum(q * np.ones(layout.shape), _MIN_FLOW)
         total, _, _, _ = self._exact_losses(layout, fluid, q)
         return _lumen.scalar_or_array(total - drive)
@@ -506,7 +542,8 @@ class Line:
         else:
             radius = layout.diameter / 2.0
             y, q_i, tau_i, dlog_q, dlog_tau = _lumen._solve_log_wall_shear_rate(
-                fluid.rheology, q * np.ones_like(radius), radius)
+                fluid.rheology, q * np.ones_like(radius), radius
+            )
             # with the target flow, so that 64/Re gives 2 L tau_w / R even where the inner
             # solve is limited by rounding (a yield-stress fluid at a vanishing flow)
             mu = layout.viscosity_factor * tau_i * np.pi * radius**3 / (4.0 * q)
@@ -520,8 +557,9 @@ class Line:
         tau_y = getattr(fluid.rheology, "yield_stress", None)
         if tau_y is None or not layout.diameter.shape[0]:
             return np.zeros(layout.shape)
-        return (2.0 * layout.length * tau_y * layout.viscosity_factor
-                / (layout.diameter / 2.0)).sum(axis=0)
+        return (
+            2.0 * layout.length * tau_y * layout.viscosity_factor / (layout.diameter / 2.0)
+        ).sum(axis=0)
 
     def yield_pressure(self, fluid, pries_correction=False):
         """Net drive [Pa] below which a yield-stress fluid does not move (0 for other fluids).
@@ -538,7 +576,8 @@ class Line:
         40.0
         """
         return _lumen.scalar_or_array(
-            self._yield_drop(self._layout(fluid, (), pries_correction), fluid))
+            self._yield_drop(self._layout(fluid, (), pries_correction), fluid)
+        )
 
     @staticmethod
     def _drive(fluid, head, source_pressure, back_pressure):
@@ -547,8 +586,17 @@ class Line:
         pb = check_finite("back_pressure", back_pressure)
         return ps + fluid.density * GRAVITY * h - pb
 
-    def solve(self, fluid, head=0.0, source_pressure=None, back_pressure=0.0, *, flow=None,
-              pressure_limit=None, pries_correction=False):
+    def solve(
+        self,
+        fluid,
+        head=0.0,
+        source_pressure=None,
+        back_pressure=0.0,
+        *,
+        flow=None,
+        pressure_limit=None,
+        pries_correction=False,
+    ):
         """Flow at a drive, or the source pressure needed for a prescribed flow.
 
         Parameters
@@ -597,18 +645,31 @@ class Line:
         slopes, its error checked at the grid midpoints (below 1e-9 in ln Q, else refined,
         else the Newton path).  ``result.iterations`` is 0 on that path.
         """
-        self._check_inputs(fluid, head=head, source_pressure=source_pressure,
-                           back_pressure=back_pressure, flow=flow, pressure_limit=pressure_limit)
+        self._check_inputs(
+            fluid,
+            head=head,
+            source_pressure=source_pressure,
+            back_pressure=back_pressure,
+            flow=flow,
+            pressure_limit=pressure_limit,
+        )
         if flow is not None:
             if source_pressure is not None:
                 raise InputRangeError(
                     "give either flow (a pump: the pressure is solved) or source_pressure "
                     "(the flow is solved), not both"
                 )
-            return self._solve_pressure(fluid, flow, head, back_pressure, pressure_limit,
-                                        pries_correction)
-        return self._solve_flow(fluid, head, 0.0 if source_pressure is None else source_pressure,
-                                back_pressure, pressure_limit, pries_correction)
+            return self._solve_pressure(
+                fluid, flow, head, back_pressure, pressure_limit, pries_correction
+            )
+        return self._solve_flow(
+            fluid,
+            head,
+            0.0 if source_pressure is None else source_pressure,
+            back_pressure,
+            pressure_limit,
+            pries_correction,
+        )
 
     def _solve_pressure(self, fluid, flow, head, back_pressure, pressure_limit, pries):
         q_in = check_nonnegative("flow", flow, "m^3/s")
@@ -620,8 +681,9 @@ class Line:
             shared = self._layout(fluid, (), pries)
             table = None
             if shared.shape == ():
-                table = self._tabulate(fluid, float(positive.min()) / 1.01,
-                                       float(positive.max()) * 1.01, pries)
+                table = self._tabulate(
+                    fluid, float(positive.min()) / 1.01, float(positive.max()) * 1.01, pries
+                )
             if table is not None:
                 layout = self._layout(fluid, shape, pries)
                 q = q_in * np.ones(shape)
@@ -629,18 +691,42 @@ class Line:
                 y = np.log(np.where(moving, q, float(positive.min())))
                 pieces, mu, total = self._parts_on_curve(table, layout, fluid, y)
                 net = np.where(moving, total, 0.0)
-                return self._result(layout, fluid, q, pieces, mu, moving, net, net + pb - gravity,
-                                    pressure_limit, head, pb, iterations=0,
-                                    converged=np.ones(shape, bool))
+                return self._result(
+                    layout,
+                    fluid,
+                    q,
+                    pieces,
+                    mu,
+                    moving,
+                    net,
+                    net + pb - gravity,
+                    pressure_limit,
+                    head,
+                    pb,
+                    iterations=0,
+                    converged=np.ones(shape, bool),
+                )
         layout = self._layout(fluid, shape, pries)
         q = q_in * np.ones(layout.shape)
         moving = q > _MIN_FLOW
-        q_safe = np.where(moving, q, 1e-100)     # any flow; the results are masked below
+        q_safe = np.where(moving, q, 1e-100)  # any flow; the results are masked below
         total, _, pieces, mu = self._exact_losses(layout, fluid, q_safe)
         required = np.where(moving, total, 0.0) + pb - gravity
-        return self._result(layout, fluid, q, pieces, mu, moving, required + gravity - pb,
-                            required, pressure_limit, head, pb, iterations=1,
-                            converged=np.ones(layout.shape, bool))
+        return self._result(
+            layout,
+            fluid,
+            q,
+            pieces,
+            mu,
+            moving,
+            required + gravity - pb,
+            required,
+            pressure_limit,
+            head,
+            pb,
+            iterations=1,
+            converged=np.ones(layout.shape, bool),
+        )
 
     def _solve_flow(self, fluid, head, source_pressure, back_pressure, pressure_limit, pries):
         drive = self._drive(fluid, head, source_pressure, back_pressure)
@@ -653,9 +739,21 @@ class Line:
                     gravity = fluid.density * GRAVITY * check_finite("head", head)
                     pb = check_finite("back_pressure", back_pressure)
                     net = np.where(moving, total, 0.0)
-                    return self._result(layout, fluid, q_out, pieces, mu, moving, net,
-                                        net + pb - gravity, pressure_limit, head, pb, 0,
-                                        np.ones(layout.shape, bool))
+                    return self._result(
+                        layout,
+                        fluid,
+                        q_out,
+                        pieces,
+                        mu,
+                        moving,
+                        net,
+                        net + pb - gravity,
+                        pressure_limit,
+                        head,
+                        pb,
+                        0,
+                        np.ones(layout.shape, bool),
+                    )
         layout = self._layout(fluid, np.shape(drive), pries)
         drive = drive * np.ones(layout.shape)
         moving = drive > _MIN_DRIVE
@@ -696,9 +794,11 @@ class Line:
             # so a step that lands on a bracket end is a cycle, not convergence)
             outside = ~((x_new > lo) & (x_new < hi)) & (np.abs(x_new - x) >= _TOL)
             both = np.isfinite(lo) & np.isfinite(hi)
-            fallback = np.where(both, 0.5 * (np.where(both, lo, 0.0) + np.where(both, hi, 0.0)),
-                                np.where(np.isfinite(hi), np.minimum(x, hi) - 2.0,
-                                         np.maximum(x, lo) + 2.0))
+            fallback = np.where(
+                both,
+                0.5 * (np.where(both, lo, 0.0) + np.where(both, hi, 0.0)),
+                np.where(np.isfinite(hi), np.minimum(x, hi) - 2.0, np.maximum(x, lo) + 2.0),
+            )
             x_new = np.where(outside, fallback, x_new)
             x_new = np.clip(x_new, x - 5.0, x + 5.0)
             step = np.where(moving & ~converged, x_new - x, 0.0)
@@ -707,15 +807,29 @@ class Line:
                 break
             if inner is not None:
                 log_q_i, dlog_q, _ = inner
-                state = np.where(converged, state,
-                                 state + np.clip((x_new - log_q_i) / dlog_q, -5.0, 5.0))
+                state = np.where(
+                    converged, state, state + np.clip((x_new - log_q_i) / dlog_q, -5.0, 5.0)
+                )
             x = np.where(moving & ~converged, x_new, x)
         q_out = np.where(moving, q, 0.0)
         gravity = fluid.density * GRAVITY * check_finite("head", head)
         pb = check_finite("back_pressure", back_pressure)
         net = np.where(moving, total, 0.0)
-        return self._result(layout, fluid, q_out, pieces, mu, moving, net, net + pb - gravity,
-                            pressure_limit, head, pb, iteration, converged | ~moving)
+        return self._result(
+            layout,
+            fluid,
+            q_out,
+            pieces,
+            mu,
+            moving,
+            net,
+            net + pb - gravity,
+            pressure_limit,
+            head,
+            pb,
+            iteration,
+            converged | ~moving,
+        )
 
     def _characteristic(self, fluid, q_grid, pries):
         """The line's exact loss curve on a grid of flows (one small vectorized pass)."""
@@ -740,7 +854,7 @@ class Line:
         d_lo, d_hi = float(np.min(drive[moving])), float(np.max(drive[moving]))
         q_lo = float(self._guess(shared, fluid, np.asarray(d_lo))) / 4.0
         q_hi = float(self._guess(shared, fluid, np.asarray(d_hi))) * 4.0
-        for _ in range(12):      # widen until the curve spans every drive
+        for _ in range(12):  # widen until the curve spans every drive
             ends = self._characteristic(fluid, np.array([q_lo, q_hi]), pries)[0]
             if ends[0] < d_lo and ends[1] > d_hi:
                 break
@@ -765,13 +879,14 @@ class Line:
             log_q = np.linspace(np.log(q_lo), np.log(q_hi), n_grid)
             total, slope, pieces, mu, dlog_mu = self._characteristic(fluid, np.exp(log_q), pries)
             log_t = np.log(total)
-            dydx = total / slope                       # d ln Q / d ln losses
+            dydx = total / slope  # d ln Q / d ln losses
             log_mid = 0.5 * (log_q[1:] + log_q[:-1])
             log_mid_total = np.log(self._characteristic(fluid, np.exp(log_mid), pries)[0])
             if np.all(np.diff(log_t) > 0):
                 err_q = np.abs(_hermite(log_t, log_q, dydx, log_mid_total) - log_mid)
-                forward = _hermite_apply(_hermite_basis(log_q, log_mid, uniform=True),
-                                         log_t, 1.0 / dydx)
+                forward = _hermite_apply(
+                    _hermite_basis(log_q, log_mid, uniform=True), log_t, 1.0 / dydx
+                )
                 err_t = np.abs(forward - log_mid_total)
                 if max(np.max(err_q), np.max(err_t)) < _CURVE_TOL:
                     return log_q, log_t, dydx, pieces, mu, dlog_mu
@@ -790,8 +905,11 @@ class Line:
         dlog_mu_grid = dlog_mu * np.ones_like(dp_lumen_grid)
         basis = _hermite_basis(log_q, y, uniform=True)
         for j in range(n_l):
-            dp_lumen[j] = np.exp(_hermite_apply(basis, np.log(dp_lumen_grid[j]),
-                                                lumen_slope_grid[j] / dp_lumen_grid[j]))
+            dp_lumen[j] = np.exp(
+                _hermite_apply(
+                    basis, np.log(dp_lumen_grid[j]), lumen_slope_grid[j] / dp_lumen_grid[j]
+                )
+            )
             if self._newtonian_path(layout, fluid):
                 mu_out[j] = mu_grid[j, 0]
             else:
@@ -803,11 +921,25 @@ class Line:
         dp_k = layout.k_coefficient * q2 + layout.k_linear * q
         dp_meas = layout.measured_a * q + layout.measured_b * q2
         dp_exit = layout.exit_coefficient * q2
-        total_out = (dp_lumen.sum(axis=0) + dp_k.sum(axis=0) + dp_meas.sum(axis=0) + dp_exit)
+        total_out = dp_lumen.sum(axis=0) + dp_k.sum(axis=0) + dp_meas.sum(axis=0) + dp_exit
         return (dp_lumen, dp_k, dp_meas, dp_exit, re, u), mu_out, total_out
 
-    def _result(self, layout, fluid, q, pieces, mu, moving, net, required, pressure_limit, head,
-                back_pressure, iterations, converged):
+    def _result(
+        self,
+        layout,
+        fluid,
+        q,
+        pieces,
+        mu,
+        moving,
+        net,
+        required,
+        pressure_limit,
+        head,
+        back_pressure,
+        iterations,
+        converged,
+    ):
         dp_lumen, dp_k, dp_meas, dp_exit, re, u = pieces[:6]
         n = len(self.parts)
         shape = layout.shape
@@ -920,11 +1052,11 @@ class LineResult:
     @cached_property
     def part_wall_shear_stress(self):
         """Wall shear stress [Pa] of each lumen, f_fd rho u^2 / 8 (fully developed friction)."""
+
         def stress(rows):
             re = np.maximum(self.part_reynolds[rows], 1e-300)
             u = self.part_mean_velocity[rows]
-            f_re, _ = _lumen._friction_re_and_slope(re, 1.0, self._layout.relative_roughness,
-                                                    False)
+            f_re, _ = _lumen._friction_re_and_slope(re, 1.0, self._layout.relative_roughness, False)
             # f rho u^2 / 8 = (f Re) mu u / (8 D)
             tau = f_re * self._viscosity * u / (8.0 * self._layout.diameter)
             return np.where(self._moving, tau, 0.0)
@@ -934,6 +1066,7 @@ class LineResult:
     @cached_property
     def part_wall_shear_rate(self):
         """Wall shear rate [1/s] of each lumen, from the wall stress through the rheology."""
+
         def rate(rows):
             tau = self.part_wall_shear_stress[rows]
             if self.fluid.is_newtonian:
@@ -946,7 +1079,8 @@ class LineResult:
     def part_entrance_length(self):
         """Hydrodynamic entrance length [m] of each lumen at its Reynolds number."""
         return self._per_lumen(
-            lambda rows: _lumen.entrance_length(self.part_reynolds[rows], self._layout.diameter))
+            lambda rows: _lumen.entrance_length(self.part_reynolds[rows], self._layout.diameter)
+        )
 
     @cached_property
     def part_shares(self):
@@ -959,7 +1093,8 @@ class LineResult:
         """Share [-] of the net drive spent on the outlet jet."""
         net = np.asarray(self.net_drive, dtype=float)
         return _lumen.scalar_or_array(
-            np.where(net > 0, self.exit_pressure_drop / np.where(net > 0, net, 1.0), 0.0))
+            np.where(net > 0, self.exit_pressure_drop / np.where(net > 0, net, 1.0), 0.0)
+        )
 
     @cached_property
     def part_regimes(self):
@@ -1003,6 +1138,7 @@ class LineResult:
     @cached_property
     def part_residence_time(self):
         """Mean residence time [s] of each lumen, L / u."""
+
         def residence(rows):
             u = self.part_mean_velocity[rows]
             return np.where(u > 0, self._layout.length / np.where(u > 0, u, 1.0), np.inf)
@@ -1012,6 +1148,7 @@ class LineResult:
     @cached_property
     def part_hemolysis_index(self):
         """Giersiepen 1990 index [%] of each lumen at its wall stress and residence time."""
+
         def index(rows):
             tau = self.part_wall_shear_stress[rows]
             t = self.part_residence_time[rows]
@@ -1045,15 +1182,20 @@ class LineResult:
         n = len(names)
 
         def rows(per_part, exit_value):
-            arr = np.concatenate([per_part.reshape(len(self.part_names), n_s),
-                                  np.broadcast_to(np.asarray(exit_value, dtype=float), shape)
-                                  .reshape(1, n_s)], axis=0)
+            arr = np.concatenate(
+                [
+                    per_part.reshape(len(self.part_names), n_s),
+                    np.broadcast_to(np.asarray(exit_value, dtype=float), shape).reshape(1, n_s),
+                ],
+                axis=0,
+            )
             return arr.T.ravel()
 
         diam = self._per_lumen(lambda _rows: self._layout.diameter)
         length = self._per_lumen(lambda _rows: self._layout.length)
-        regimes = np.concatenate([self.part_regimes.reshape(len(self.part_names), n_s),
-                                  np.full((1, n_s), "n/a")], axis=0).T.ravel()
+        regimes = np.concatenate(
+            [self.part_regimes.reshape(len(self.part_names), n_s), np.full((1, n_s), "n/a")], axis=0
+        ).T.ravel()
         table = {
             "part": np.tile(names, n_s),
             "kind": np.tile(kinds, n_s),
@@ -1092,46 +1234,64 @@ def _flags(result):
         turb = moving & (r >= _lumen.TURBULENT_LIMIT_REYNOLDS)
         trans = moving & (r >= _lumen.LAMINAR_LIMIT_REYNOLDS) & ~turb
         if np.any(turb):
-            out.append(f"{name}: turbulent flow (Re up to {r.max():.0f}){_count(turb, total)}; "
-                       "Churchill 1977 friction used")
+            out.append(
+                f"{name}: turbulent flow (Re up to {r.max():.0f}){_count(turb, total)}; "
+                "Churchill 1977 friction used"
+            )
         if np.any(trans):
-            out.append(f"{name}: transitional flow (Re 2300-4000){_count(trans, total)}; "
-                       "friction is uncertain there (Churchill 1977 interpolation)")
+            out.append(
+                f"{name}: transitional flow (Re 2300-4000){_count(trans, total)}; "
+                "friction is uncertain there (Churchill 1977 interpolation)"
+            )
         developing = np.asarray(result._layout.developing[j]).all()
         if developing:
-            short = moving & (r < _lumen.LAMINAR_LIMIT_REYNOLDS) & (
-                result.part_entrance_length[i] > result._layout.length[j])
+            short = (
+                moving
+                & (r < _lumen.LAMINAR_LIMIT_REYNOLDS)
+                & (result.part_entrance_length[i] > result._layout.length[j])
+            )
             if np.any(short):
-                out.append(f"{name}: developing laminar flow (shorter than its entrance length)"
-                           f"{_count(short, total)}; Shah 1978 apparent friction used")
+                out.append(
+                    f"{name}: developing laminar flow (shorter than its entrance length)"
+                    f"{_count(short, total)}; Shah 1978 apparent friction used"
+                )
     for name, part in zip(result.part_names, result.line.parts, strict=True):
         if part.source_note:
             out.append(f"{name}: {part.source_note}")
     if not result.fluid.is_newtonian:
-        out.append("non-Newtonian fluid: laminar drops from the Rabinowitsch-Mooney integral of "
-                   f"the {result.fluid.rheology.name} model; transitional and turbulent friction "
-                   "use the Metzner-Reed Reynolds number (approximate)")
+        out.append(
+            "non-Newtonian fluid: laminar drops from the Rabinowitsch-Mooney integral of "
+            f"the {result.fluid.rheology.name} model; transitional and turbulent friction "
+            "use the Metzner-Reed Reynolds number (approximate)"
+        )
     elif result.fluid.is_blood:
         out.append("blood treated as Newtonian (high-shear viscosity); shear thinning ignored")
     if result._layout.pries:
         out.append("Pries 1992 in-vitro diameter correction applied to the apparent viscosity")
     stopped = ~moving
     if np.any(stopped):
-        out.append(f"no forward flow: the drive does not exceed the back pressure (or a "
-                   f"yield-stress fluid's yield pressure){_count(stopped, total)}")
+        out.append(
+            f"no forward flow: the drive does not exceed the back pressure (or a "
+            f"yield-stress fluid's yield pressure){_count(stopped, total)}"
+        )
     if np.any(result.exceeds_pressure_limit):
         out.append(f"pressure limit exceeded{_count(result.exceeds_pressure_limit, total)}")
     if result.fluid.is_blood:
         tau = np.nan_to_num(result.part_wall_shear_stress)
         t = np.nan_to_num(result.part_residence_time, posinf=0.0)
         outside = (tau > GIERSIEPEN_1990_MAX_STRESS) | (
-            (tau > 0) & ((t < GIERSIEPEN_1990_TIME_RANGE[0]) | (t > GIERSIEPEN_1990_TIME_RANGE[1])))
+            (tau > 0) & ((t < GIERSIEPEN_1990_TIME_RANGE[0]) | (t > GIERSIEPEN_1990_TIME_RANGE[1]))
+        )
         if np.any(outside):
-            out.append("hemolysis index outside the Giersiepen 1990 fitted range "
-                       "(stress above 255 Pa or exposure outside 7-700 ms) in some part")
+            out.append(
+                "hemolysis index outside the Giersiepen 1990 fitted range "
+                "(stress above 255 Pa or exposure outside 7-700 ms) in some part"
+            )
     if not result.converged:
-        out.append("solver did not reach full convergence in some scenarios (result is the "
-                   "last bracketed iterate)")
+        out.append(
+            "solver did not reach full convergence in some scenarios (result is the "
+            "last bracketed iterate)"
+        )
     return out
 
 
@@ -1173,8 +1333,7 @@ def _hermite_basis(x_grid, x, uniform=False):
 
 def _hermite_apply(basis, y_grid, slope_grid):
     k, (b00, b10, b01, b11) = basis
-    return (b00 * y_grid[k] + b10 * slope_grid[k] + b01 * y_grid[k + 1]
-            + b11 * slope_grid[k + 1])
+    return b00 * y_grid[k] + b10 * slope_grid[k] + b01 * y_grid[k + 1] + b11 * slope_grid[k + 1]
 
 
 def _hermite(x_grid, y_grid, slope_grid, x):

@@ -54,9 +54,9 @@ __all__ = [
 #: Entrance loss coefficients, referred to the velocity in the lumen entered.
 #: Crane TP-410 (2009) p. A-29 ("resistance due to pipe entrance"); Idelchik (1996) ch. 3.
 ENTRANCE_K = {
-    "sharp-edged": 0.5,      # flush, square edge
+    "sharp-edged": 0.5,  # flush, square edge
     "inward-projecting": 0.78,
-    "rounded": 0.04,         # r/d >= 0.15
+    "rounded": 0.04,  # r/d >= 0.15
 }
 
 #: Exit (jet) loss coefficient referred to the outlet velocity: the kinetic energy of
@@ -83,10 +83,10 @@ CRANE_L_OVER_D = {
 #: which the tests compare against.  Stopcocks (plug valves in Crane's terms) have no
 #: counterpart in that table: give their K, or measure them.
 HOOPER_1981_2K = {
-    "gate-valve-open": (300.0, 0.10),        # gate valve, full line size
-    "elbow-90-standard": (800.0, 0.40),      # 90 deg elbow, standard, screwed
-    "tee-through-run": (200.0, 0.10),        # tee, run through, screwed
-    "tee-through-branch": (500.0, 0.70),     # tee used as an elbow, standard, screwed
+    "gate-valve-open": (300.0, 0.10),  # gate valve, full line size
+    "elbow-90-standard": (800.0, 0.40),  # 90 deg elbow, standard, screwed
+    "tee-through-run": (200.0, 0.10),  # tee, run through, screwed
+    "tee-through-branch": (500.0, 0.70),  # tee used as an elbow, standard, screwed
 }
 
 #: 1 inch [m], Hooper's reference size (exact by definition).
@@ -271,7 +271,8 @@ def hooper_1981_2k_k(reynolds, inner_diameter, kind=None, k1=None, k_infinity=No
     elif k1 is None or k_infinity is None:
         raise InputRangeError(
             "hooper_1981_2k_k needs kind (one of "
-            f"{', '.join(sorted(HOOPER_1981_2K))}) or both k1 and k_infinity")
+            f"{', '.join(sorted(HOOPER_1981_2K))}) or both k1 and k_infinity"
+        )
     re = check_positive("reynolds", reynolds)
     d = check_positive("inner_diameter", inner_diameter, "m")
     return scalar_or_array(k1 / re + k_infinity * (1.0 + _INCH / d))

@@ -69,7 +69,7 @@ TURBULENT_LIMIT_REYNOLDS = 4000.0
 _N_NODES = 16
 _gl_x, _gl_w = np.polynomial.legendre.leggauss(_N_NODES)
 _T_NODES = 0.5 * (_gl_x + 1.0)
-_S_NODES = _T_NODES**2                    # fraction of the wall shear rate
+_S_NODES = _T_NODES**2  # fraction of the wall shear rate
 _S_WEIGHTS = 0.5 * _gl_w * 2.0 * _T_NODES  # ds = 2 t dt
 
 
@@ -557,13 +557,17 @@ def regime_of(reynolds):
     ('laminar', 'transitional', 'turbulent')
     """
     re = np.asarray(reynolds, dtype=float)
-    out = np.where(re < LAMINAR_LIMIT_REYNOLDS, "laminar",
-                   np.where(re < TURBULENT_LIMIT_REYNOLDS, "transitional", "turbulent"))
+    out = np.where(
+        re < LAMINAR_LIMIT_REYNOLDS,
+        "laminar",
+        np.where(re < TURBULENT_LIMIT_REYNOLDS, "transitional", "turbulent"),
+    )
     return str(out) if out.ndim == 0 else out
 
 
-def _lumen_friction(flow, area, diameter, length, relative_roughness, density, viscosity,
-                    dlog_viscosity, developing):
+def _lumen_friction(
+    flow, area, diameter, length, relative_roughness, density, viscosity, dlog_viscosity, developing
+):
     """Frictional drop of one lumen, d ln(dp)/d ln(Q), Reynolds number and mean velocity.
 
     ``viscosity`` is the apparent viscosity at this flow and ``dlog_viscosity`` its
@@ -629,8 +633,9 @@ def lumen_pressure_drop(fluid, flow, inner_diameter, length, roughness=0.0, deve
     length = check_positive("length", length, "m")
     eps = check_nonnegative("roughness", roughness, "m")
     mu, dlog_mu, _ = _apparent_viscosity(fluid.rheology, q, d / 2.0)
-    dp, _, _, _ = _lumen_friction(q, np.pi * d * d / 4.0, d, length, eps / d, fluid.density,
-                                  mu, dlog_mu, developing)
+    dp, _, _, _ = _lumen_friction(
+        q, np.pi * d * d / 4.0, d, length, eps / d, fluid.density, mu, dlog_mu, developing
+    )
     return scalar_or_array(dp)
 
 

@@ -151,13 +151,15 @@ class NetworkSolution:
         """Segment table with units in the column names (imports pandas here)."""
         import pandas as pd
 
-        return pd.DataFrame({
-            "segment": self.segment_names,
-            "flow [m^3/s]": self.segment_flow,
-            "pressure drop [Pa]": self.pressure_drop,
-            "resistance [Pa s/m^3]": self.resistance,
-            "share of resistance [-]": self.resistance_share,
-        })
+        return pd.DataFrame(
+            {
+                "segment": self.segment_names,
+                "flow [m^3/s]": self.segment_flow,
+                "pressure drop [Pa]": self.pressure_drop,
+                "resistance [Pa s/m^3]": self.resistance,
+                "share of resistance [-]": self.resistance_share,
+            }
+        )
 
 
 @dataclass(frozen=True)
@@ -216,8 +218,11 @@ class VesselNetwork:
             )
         if res.size == 0:
             raise NetworkError("the network has no segments; add at least one")
-        names = tuple(f"s{i}" for i in range(res.size)) if self.names is None else tuple(
-            str(n) for n in self.names)
+        names = (
+            tuple(f"s{i}" for i in range(res.size))
+            if self.names is None
+            else tuple(str(n) for n in self.names)
+        )
         if len(names) != res.size:
             raise InputRangeError(f"names must have {res.size} entries, got {len(names)}")
         if len(set(names)) != len(names):
@@ -234,10 +239,19 @@ class VesselNetwork:
         set_(self, "downstream", down)
         set_(self, "resistance", res)
         set_(self, "names", names)
-        set_(self, "pressures", {k: float(check_finite(f"pressures[{k!r}]", v))
-                                 for k, v in dict(self.pressures).items()})
-        set_(self, "inflows", {k: float(check_finite(f"inflows[{k!r}]", v))
-                               for k, v in dict(self.inflows).items()})
+        set_(
+            self,
+            "pressures",
+            {
+                k: float(check_finite(f"pressures[{k!r}]", v))
+                for k, v in dict(self.pressures).items()
+            },
+        )
+        set_(
+            self,
+            "inflows",
+            {k: float(check_finite(f"inflows[{k!r}]", v)) for k, v in dict(self.inflows).items()},
+        )
         known = set(self.nodes)
         for kind, mapping in (("pressures", self.pressures), ("inflows", self.inflows)):
             unknown = [k for k in mapping if k not in known]
@@ -284,9 +298,19 @@ class VesselNetwork:
         return cls(up, down, np.array(res), pressures or {}, inflows or {}, names)
 
     @classmethod
-    def from_arrays(cls, upstream, downstream, radius, length, hematocrit=0.45,
-                    temperature_c=37.0, viscosity_law="pries-1992", pressures=None,
-                    inflows=None, names=None):
+    def from_arrays(
+        cls,
+        upstream,
+        downstream,
+        radius,
+        length,
+        hematocrit=0.45,
+        temperature_c=37.0,
+        viscosity_law="pries-1992",
+        pressures=None,
+        inflows=None,
+        names=None,
+    ):
         """Build from per-segment arrays; each segment's viscosity uses its own diameter
         and hematocrit (one vectorized :class:`~rheoline.model.vessels.Vessel`).
 
@@ -302,8 +326,13 @@ class VesselNetwork:
             See :data:`~rheoline.model.vessels.VISCOSITY_LAWS`.
         """
         n = len(upstream)
-        vessel = Vessel(radius=radius, length=length, hematocrit=hematocrit,
-                        temperature_c=temperature_c, viscosity_law=viscosity_law)
+        vessel = Vessel(
+            radius=radius,
+            length=length,
+            hematocrit=hematocrit,
+            temperature_c=temperature_c,
+            viscosity_law=viscosity_law,
+        )
         res = np.asarray(vessel.resistance, dtype=float)
         if res.ndim > 1 or res.size not in (1, n):
             raise InputRangeError(
@@ -328,8 +357,9 @@ class VesselNetwork:
         index = {n: i for i, n in enumerate(nodes)}
         m = len(self.upstream)
         rows = np.repeat(np.arange(m), 2)
-        cols = np.array([[index[a], index[b]] for a, b in
-                         zip(self.upstream, self.downstream, strict=True)]).ravel()
+        cols = np.array(
+            [[index[a], index[b]] for a, b in zip(self.upstream, self.downstream, strict=True)]
+        ).ravel()
         vals = np.tile([1.0, -1.0], m)
         return nodes, index, sp.csr_matrix((vals, (rows, cols)), shape=(m, len(nodes)))
 
@@ -418,6 +448,11 @@ class VesselNetwork:
         """
         if inlet == outlet:
             raise NetworkError(f"inlet and outlet must differ, both are {inlet!r}")
-        probe = VesselNetwork(self.upstream, self.downstream, self.resistance,
-                              pressures={inlet: 1.0, outlet: 0.0}, names=self.names)
+        probe = VesselNetwork(
+            self.upstream,
+            self.downstream,
+            self.resistance,
+            pressures={inlet: 1.0, outlet: 0.0},
+            names=self.names,
+        )
         return 1.0 / probe.solve().boundary_inflow[inlet]

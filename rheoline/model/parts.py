@@ -75,8 +75,12 @@ def _one_size(gauge, what, sweep):
 
 
 def _hooper_constants(kind):
-    return _lookup(HOOPER_1981_2K, kind, "Hooper 1981 fitting kind",
-                   "give the fitting's k (constant K), or Fitting.crane for Crane TP-410 kinds")
+    return _lookup(
+        HOOPER_1981_2K,
+        kind,
+        "Hooper 1981 fitting kind",
+        "give the fitting's k (constant K), or Fitting.crane for Crane TP-410 kinds",
+    )
 
 
 def _lookup(table, key, what, fix):
@@ -127,11 +131,15 @@ class Lumen(Part):
     kind = "lumen"
 
     def __post_init__(self):
-        object.__setattr__(self, "inner_diameter",
-                           _value(check_positive("inner_diameter", self.inner_diameter, "m")))
+        object.__setattr__(
+            self,
+            "inner_diameter",
+            _value(check_positive("inner_diameter", self.inner_diameter, "m")),
+        )
         object.__setattr__(self, "length", _value(check_positive("length", self.length, "m")))
-        object.__setattr__(self, "roughness",
-                           _value(check_nonnegative("roughness", self.roughness, "m")))
+        object.__setattr__(
+            self, "roughness", _value(check_nonnegative("roughness", self.roughness, "m"))
+        )
         if self.outer_diameter is not None:
             od = check_positive("outer_diameter", self.outer_diameter, "m")
             if np.any(od <= np.asarray(self.inner_diameter)):
@@ -172,10 +180,17 @@ def _check_bore_inside(label, inner_diameter, outer_diameter):
 
 
 def _catheter_dims(gauge, inner_diameter, length):
-    od, id_typ, len_typ, _ = _lookup(catalogue.CATHETER_GAUGES, gauge, "catheter gauge",
-                                     "pass inner_diameter and length in metres for other sizes")
-    return od, (id_typ if inner_diameter is None else inner_diameter), (
-        len_typ if length is None else length)
+    od, id_typ, len_typ, _ = _lookup(
+        catalogue.CATHETER_GAUGES,
+        gauge,
+        "catheter gauge",
+        "pass inner_diameter and length in metres for other sizes",
+    )
+    return (
+        od,
+        (id_typ if inner_diameter is None else inner_diameter),
+        (len_typ if length is None else length),
+    )
 
 
 class Catheter(Lumen):
@@ -197,17 +212,26 @@ class Catheter(Lumen):
     """
 
     def __init__(self, gauge, inner_diameter=None, length=None, name=None, roughness=0.0):
-        gauge = _one_size(gauge, "catheter gauge",
-                          "[Catheter(gauge=g) for g in (18, 20)], a Line each")
+        gauge = _one_size(
+            gauge, "catheter gauge", "[Catheter(gauge=g) for g in (18, 20)], a Line each"
+        )
         od, d, length = _catheter_dims(gauge, inner_diameter, length)
         _check_bore_inside(f"{gauge}G catheter", inner_diameter, od)
         object.__setattr__(self, "gauge", gauge)
         if inner_diameter is None or length is None:
-            object.__setattr__(self, "source_note",
-                               "typical catalogue bore/length (from memory); pass the measured "
-                               "inner_diameter and length")
-        super().__init__(inner_diameter=d, length=length, roughness=roughness,
-                         name=name or f"{gauge}G catheter", outer_diameter=od)
+            object.__setattr__(
+                self,
+                "source_note",
+                "typical catalogue bore/length (from memory); pass the measured "
+                "inner_diameter and length",
+            )
+        super().__init__(
+            inner_diameter=d,
+            length=length,
+            roughness=roughness,
+            name=name or f"{gauge}G catheter",
+            outer_diameter=od,
+        )
 
 
 class Needle(Lumen):
@@ -234,27 +258,43 @@ class Needle(Lumen):
     ('18G thin-wall needle', 0.91)
     """
 
-    def __init__(self, gauge, wall="regular", length=0.038, inner_diameter=None, name=None,
-                 roughness=0.0):
+    def __init__(
+        self, gauge, wall="regular", length=0.038, inner_diameter=None, name=None, roughness=0.0
+    ):
         if wall not in catalogue.NEEDLE_WALLS:
             raise InputRangeError(
                 f"needle wall {wall!r} is not known; choose one of "
                 f"{', '.join(catalogue.NEEDLE_WALLS)}, or pass inner_diameter"
             )
-        gauge = _one_size(gauge, "needle gauge",
-                          "[Needle(gauge=g) for g in (18, 20)], a Line each")
-        od, id_regular, id_thin = _lookup(catalogue.NEEDLE_GAUGES, gauge, "needle gauge",
-                                          "pass inner_diameter in metres for other sizes")
-        d = (id_regular if wall == "regular" else id_thin) if inner_diameter is None else inner_diameter
+        gauge = _one_size(gauge, "needle gauge", "[Needle(gauge=g) for g in (18, 20)], a Line each")
+        od, id_regular, id_thin = _lookup(
+            catalogue.NEEDLE_GAUGES,
+            gauge,
+            "needle gauge",
+            "pass inner_diameter in metres for other sizes",
+        )
+        d = (
+            (id_regular if wall == "regular" else id_thin)
+            if inner_diameter is None
+            else inner_diameter
+        )
         _check_bore_inside(f"{gauge}G needle", inner_diameter, od)
         object.__setattr__(self, "gauge", gauge)
         object.__setattr__(self, "wall", wall)
         if inner_diameter is None:
-            object.__setattr__(self, "source_note",
-                               "ISO 9626 minimum bore (from memory), a low flow estimate; pass "
-                               "the measured inner_diameter")
-        super().__init__(inner_diameter=d, length=length, roughness=roughness,
-                         name=name or f"{gauge}G {wall}-wall needle", outer_diameter=od)
+            object.__setattr__(
+                self,
+                "source_note",
+                "ISO 9626 minimum bore (from memory), a low flow estimate; pass "
+                "the measured inner_diameter",
+            )
+        super().__init__(
+            inner_diameter=d,
+            length=length,
+            roughness=roughness,
+            name=name or f"{gauge}G {wall}-wall needle",
+            outer_diameter=od,
+        )
 
 
 class Cannula(Lumen):
@@ -282,15 +322,25 @@ class Cannula(Lumen):
     (7.0, 6.0)
     """
 
-    def __init__(self, french, inner_diameter=None, wall_thickness=None, length=0.15,
-                 name=None, roughness=0.0):
+    def __init__(
+        self,
+        french,
+        inner_diameter=None,
+        wall_thickness=None,
+        length=0.15,
+        name=None,
+        roughness=0.0,
+    ):
         fr = check_positive("french", french, "Fr")
         od = fr * catalogue.FRENCH_TO_METRE
         if inner_diameter is None:
             if wall_thickness is None:
-                object.__setattr__(self, "source_note",
-                                   "typical wall thickness (from memory) sets the bore; pass "
-                                   "inner_diameter or wall_thickness")
+                object.__setattr__(
+                    self,
+                    "source_note",
+                    "typical wall thickness (from memory) sets the bore; pass "
+                    "inner_diameter or wall_thickness",
+                )
             wall = catalogue.CANNULA_TYPICAL_WALL if wall_thickness is None else wall_thickness
             wall = check_positive("wall_thickness", wall, "m")
             inner_diameter = od - 2.0 * wall
@@ -300,9 +350,13 @@ class Cannula(Lumen):
                     f"{float(np.min(fr)):g} Fr cannula; pass inner_diameter instead"
                 )
         object.__setattr__(self, "french", _value(fr))
-        super().__init__(inner_diameter=inner_diameter, length=length, roughness=roughness,
-                         name=name or (f"{_value(fr):g} Fr cannula" if np.ndim(fr) == 0 else "cannula"),
-                         outer_diameter=_value(od))
+        super().__init__(
+            inner_diameter=inner_diameter,
+            length=length,
+            roughness=roughness,
+            name=name or (f"{_value(fr):g} Fr cannula" if np.ndim(fr) == 0 else "cannula"),
+            outer_diameter=_value(od),
+        )
 
 
 def circuit_tubing(size, length, name=None):
@@ -313,8 +367,12 @@ def circuit_tubing(size, length, name=None):
     >>> round(circuit_tubing("3/8", 2.0).inner_diameter * 1e3, 3)
     9.525
     """
-    d = _lookup(catalogue.CIRCUIT_TUBING, size, "circuit tubing size",
-                "pass a Tube(inner_diameter=...) for other bores")
+    d = _lookup(
+        catalogue.CIRCUIT_TUBING,
+        size,
+        "circuit tubing size",
+        "pass a Tube(inner_diameter=...) for other bores",
+    )
     return Tube(inner_diameter=d, length=length, name=name or f"{size} in circuit tubing")
 
 
@@ -327,10 +385,17 @@ def extension_set(kind="standard-extension", length=None, name=None):
     >>> round(s.inner_diameter * 1e3, 2), s.length
     (0.5, 1.5)
     """
-    d, len_typ = _lookup(catalogue.EXTENSION_SETS, kind, "extension set kind",
-                         "pass a Tube(inner_diameter=..., length=...)")
-    return Tube(inner_diameter=d, length=len_typ if length is None else length,
-                name=name or kind.replace("-", " "))
+    d, len_typ = _lookup(
+        catalogue.EXTENSION_SETS,
+        kind,
+        "extension set kind",
+        "pass a Tube(inner_diameter=..., length=...)",
+    )
+    return Tube(
+        inner_diameter=d,
+        length=len_typ if length is None else length,
+        name=name or kind.replace("-", " "),
+    )
 
 
 def central_line_lumen(lumen="distal", french=7.0, lumens=3, length=0.20, name=None):
@@ -342,13 +407,20 @@ def central_line_lumen(lumen="distal", french=7.0, lumens=3, length=0.20, name=N
     >>> part.name, round(part.inner_diameter * 1e3, 2)
     ('7 Fr 3-lumen central line, medial lumen (18G equivalent)', 1.0)
     """
-    table = _lookup(catalogue.CENTRAL_LINE_LUMENS, (float(french), int(lumens)),
-                    "central line (french, lumens)", "pass a Tube for the lumen instead")
+    table = _lookup(
+        catalogue.CENTRAL_LINE_LUMENS,
+        (float(french), int(lumens)),
+        "central line (french, lumens)",
+        "pass a Tube for the lumen instead",
+    )
     gauge = _lookup(table, lumen, "lumen", "pick one of the listed lumens")
     d = catalogue.CATHETER_GAUGES[gauge][1]
-    return Tube(inner_diameter=d, length=length,
-                name=name or f"{french:g} Fr {lumens}-lumen central line, {lumen} lumen "
-                f"({gauge}G equivalent)")
+    return Tube(
+        inner_diameter=d,
+        length=length,
+        name=name
+        or f"{french:g} Fr {lumens}-lumen central line, {lumen} lumen ({gauge}G equivalent)",
+    )
 
 
 @dataclass(frozen=True)
@@ -401,22 +473,32 @@ class Fitting(Part):
                     "Fitting with an equivalent_length needs inner_diameter [m], the bore "
                     "of the equivalent lumen"
                 )
-            object.__setattr__(self, "equivalent_length",
-                               _value(check_positive("equivalent_length", self.equivalent_length, "m")))
+            object.__setattr__(
+                self,
+                "equivalent_length",
+                _value(check_positive("equivalent_length", self.equivalent_length, "m")),
+            )
         if self.inner_diameter is not None:
-            object.__setattr__(self, "inner_diameter",
-                               _value(check_positive("inner_diameter", self.inner_diameter, "m")))
+            object.__setattr__(
+                self,
+                "inner_diameter",
+                _value(check_positive("inner_diameter", self.inner_diameter, "m")),
+            )
         if self.laminar_k is not None:
             if self.k is None:
                 raise InputRangeError(
                     "Fitting laminar_k (Hooper K_1) goes with k (its K_infinity term), not with "
                     "an equivalent_length; pass k= as well"
                 )
-            object.__setattr__(self, "laminar_k",
-                               _value(check_nonnegative("laminar_k", self.laminar_k)))
+            object.__setattr__(
+                self, "laminar_k", _value(check_nonnegative("laminar_k", self.laminar_k))
+            )
         if self.name is None:
-            label = (f"K={np.max(self.k):.3g}" if self.k is not None
-                     else f"Leq={np.max(self.equivalent_length):.3g} m")
+            label = (
+                f"K={np.max(self.k):.3g}"
+                if self.k is not None
+                else f"Leq={np.max(self.equivalent_length):.3g} m"
+            )
             object.__setattr__(self, "name", f"fitting {label}")
 
     @property
@@ -440,8 +522,12 @@ class Fitting(Part):
         """
         k1, k_inf = _hooper_constants(kind)
         d = check_positive("inner_diameter", inner_diameter, "m")
-        return cls(k=k_inf * (1.0 + _INCH / d), inner_diameter=inner_diameter,
-                   laminar_k=k1, name=name or f"{kind} (Hooper 1981 2-K)")
+        return cls(
+            k=k_inf * (1.0 + _INCH / d),
+            inner_diameter=inner_diameter,
+            laminar_k=k1,
+            name=name or f"{kind} (Hooper 1981 2-K)",
+        )
 
 
 @dataclass(frozen=True)

@@ -181,8 +181,12 @@ class PowerLaw(RheologyModel):
     name = "power-law"
 
     def __post_init__(self):
-        object.__setattr__(self, "consistency", _param(check_positive("consistency", self.consistency)))
-        object.__setattr__(self, "flow_index", _param(check_positive("flow_index", self.flow_index)))
+        object.__setattr__(
+            self, "consistency", _param(check_positive("consistency", self.consistency))
+        )
+        object.__setattr__(
+            self, "flow_index", _param(check_positive("flow_index", self.flow_index))
+        )
 
     def viscosity(self, shear_rate=None):
         g = HIGH_SHEAR_RATE if shear_rate is None else np.asarray(shear_rate, dtype=float)
@@ -238,7 +242,9 @@ class CarreauYasuda(RheologyModel):
             return _out(self.mu_inf + 0.0 * self.mu_zero)
         g = np.abs(np.asarray(shear_rate, dtype=float))
         x = 1.0 + (self.relaxation_time * g) ** self.a
-        return _out(self.mu_inf + (self.mu_zero - self.mu_inf) * x ** ((self.flow_index - 1.0) / self.a))
+        return _out(
+            self.mu_inf + (self.mu_zero - self.mu_inf) * x ** ((self.flow_index - 1.0) / self.a)
+        )
 
     @property
     def zero_shear_viscosity(self):
@@ -286,8 +292,14 @@ class Casson(RheologyModel):
     name = "casson"
 
     def __post_init__(self):
-        object.__setattr__(self, "yield_stress", _param(check_nonnegative("yield_stress", self.yield_stress, "Pa")))
-        object.__setattr__(self, "casson_viscosity", _param(check_positive("casson_viscosity", self.casson_viscosity, "Pa s")))
+        object.__setattr__(
+            self, "yield_stress", _param(check_nonnegative("yield_stress", self.yield_stress, "Pa"))
+        )
+        object.__setattr__(
+            self,
+            "casson_viscosity",
+            _param(check_positive("casson_viscosity", self.casson_viscosity, "Pa s")),
+        )
 
     def stress(self, shear_rate):
         g = np.maximum(np.asarray(shear_rate, dtype=float), 0.0)

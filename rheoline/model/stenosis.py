@@ -113,8 +113,14 @@ def throat_diameter(diameter, reduction_percent, kind="area"):
     (0.002, 0.002)
     """
     d0 = check_positive("diameter", diameter, "m")
-    pct = check_range("reduction_percent", reduction_percent, 0.0, 99.9, "%",
-                      hint="a complete occlusion (100 %) carries no flow")
+    pct = check_range(
+        "reduction_percent",
+        reduction_percent,
+        0.0,
+        99.9,
+        "%",
+        hint="a complete occlusion (100 %) carries no flow",
+    )
     if kind == "diameter":
         return scalar_or_array(d0 * (1.0 - pct / 100.0))
     if kind == "area":
@@ -122,8 +128,9 @@ def throat_diameter(diameter, reduction_percent, kind="area"):
     raise InputRangeError(f"kind must be one of {REDUCTION_KINDS}, got {kind!r}")
 
 
-def young_tsai_1973_coefficients(diameter, throat_diameter, stenosis_length,
-                                 viscous_model="throat-poiseuille"):
+def young_tsai_1973_coefficients(
+    diameter, throat_diameter, stenosis_length, viscous_model="throat-poiseuille"
+):
     """Young & Tsai coefficients (K_v, K_t) [-] for a stenosis geometry.
 
     Parameters
@@ -171,8 +178,15 @@ def _stenosis_terms(diameter, throat, stenosis_length, viscosity, density, visco
     return linear, quadratic
 
 
-def young_tsai_1973_pressure_drop(flow, diameter, throat_diameter, stenosis_length, viscosity,
-                                  density=BLOOD_DENSITY, viscous_model="throat-poiseuille"):
+def young_tsai_1973_pressure_drop(
+    flow,
+    diameter,
+    throat_diameter,
+    stenosis_length,
+    viscosity,
+    density=BLOOD_DENSITY,
+    viscous_model="throat-poiseuille",
+):
     r"""Steady pressure drop [Pa] across a stenosis (Young & Tsai 1973).
 
     .. math:: \Delta p_s = \frac{K_v \mu}{D_0} U + \frac{K_t \rho}{2}
@@ -213,8 +227,9 @@ def young_tsai_1973_pressure_drop(flow, diameter, throat_diameter, stenosis_leng
     1593.5
     """
     q = check_finite("flow", flow)
-    linear, quadratic = _stenosis_terms(diameter, throat_diameter, stenosis_length, viscosity,
-                                        density, viscous_model)
+    linear, quadratic = _stenosis_terms(
+        diameter, throat_diameter, stenosis_length, viscosity, density, viscous_model
+    )
     return scalar_or_array(linear * q + quadratic * q * np.abs(q))
 
 
@@ -271,8 +286,11 @@ class StenosedVessel:
         if self.kind not in REDUCTION_KINDS:
             raise InputRangeError(f"kind must be one of {REDUCTION_KINDS}, got {self.kind!r}")
         _viscous_model(self.viscous_model)
-        ls = (2.0 * np.asarray(self.vessel.diameter) if self.stenosis_length is None
-              else check_positive("stenosis_length", self.stenosis_length, "m"))
+        ls = (
+            2.0 * np.asarray(self.vessel.diameter)
+            if self.stenosis_length is None
+            else check_positive("stenosis_length", self.stenosis_length, "m")
+        )
         if np.any(ls > np.asarray(self.vessel.length)):
             raise InputRangeError(
                 f"stenosis_length must not exceed the vessel length, got "
@@ -280,8 +298,13 @@ class StenosedVessel:
                 "lengthen the vessel or shorten the narrowing"
             )
         object.__setattr__(self, "stenosis_length", scalar_or_array(ls))
-        object.__setattr__(self, "downstream_resistance", scalar_or_array(
-            check_nonnegative("downstream_resistance", self.downstream_resistance, "Pa s/m^3")))
+        object.__setattr__(
+            self,
+            "downstream_resistance",
+            scalar_or_array(
+                check_nonnegative("downstream_resistance", self.downstream_resistance, "Pa s/m^3")
+            ),
+        )
         throat_diameter(self.vessel.diameter, self.reduction_percent, self.kind)
 
     @property
@@ -291,11 +314,17 @@ class StenosedVessel:
 
     def _terms(self):
         v = self.vessel
-        linear, quadratic = _stenosis_terms(v.diameter, self.throat_diameter,
-                                            self.stenosis_length, v.apparent_viscosity,
-                                            v.density, self.viscous_model)
-        rest = (np.asarray(v.resistance)
-                * (1.0 - np.asarray(self.stenosis_length) / np.asarray(v.length)))
+        linear, quadratic = _stenosis_terms(
+            v.diameter,
+            self.throat_diameter,
+            self.stenosis_length,
+            v.apparent_viscosity,
+            v.density,
+            self.viscous_model,
+        )
+        rest = np.asarray(v.resistance) * (
+            1.0 - np.asarray(self.stenosis_length) / np.asarray(v.length)
+        )
         return linear, quadratic, rest + np.asarray(self.downstream_resistance)
 
     def stenosis_pressure_drop(self, flow):
@@ -320,7 +349,9 @@ class StenosedVessel:
         linear, quadratic, rest = self._terms()
         b = linear + rest
         mag = np.abs(dp)
-        return scalar_or_array(np.sign(dp) * 2.0 * mag / (b + np.sqrt(b**2 + 4.0 * quadratic * mag)))
+        return scalar_or_array(
+            np.sign(dp) * 2.0 * mag / (b + np.sqrt(b**2 + 4.0 * quadratic * mag))
+        )
 
     def unobstructed_flow(self, pressure_drop):
         """Flow [m^3/s] at the same drive with no narrowing."""
@@ -343,9 +374,15 @@ class StenosedVessel:
         return scalar_or_array(1.0 - ratio)
 
 
-def stenosis_flow_fraction_lost(vessel: Vessel, pressure_drop, reduction_percent, kind="area",
-                                stenosis_length=None, downstream_resistance=0.0,
-                                viscous_model="throat-poiseuille"):
+def stenosis_flow_fraction_lost(
+    vessel: Vessel,
+    pressure_drop,
+    reduction_percent,
+    kind="area",
+    stenosis_length=None,
+    downstream_resistance=0.0,
+    viscous_model="throat-poiseuille",
+):
     """Fraction of flow lost [-] against percent diameter or area reduction.
 
     A thin wrapper on :class:`StenosedVessel`: pass an array of
@@ -379,6 +416,5 @@ def stenosis_flow_fraction_lost(vessel: Vessel, pressure_drop, reduction_percent
     [0.0, 0.015, 0.405]
     """
     pct = np.asarray(reduction_percent, dtype=float)
-    sten = StenosedVessel(vessel, pct, kind, stenosis_length, viscous_model,
-                          downstream_resistance)
+    sten = StenosedVessel(vessel, pct, kind, stenosis_length, viscous_model, downstream_resistance)
     return sten.flow_fraction_lost(pressure_drop)

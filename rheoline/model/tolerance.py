@@ -120,11 +120,25 @@ def _out(value):
     return float(arr) if arr.ndim == 0 else arr
 
 
-def flow_tolerance(line, fluid, *, head=0.0, source_pressure=None, back_pressure=0.0, flow=None,
-                   diameter_tolerance=0.0, length_tolerance=0.0, temperature_tolerance=0.0,
-                   hematocrit_tolerance=0.0, viscosity_tolerance=0.0, fluid_builder=None,
-                   n_samples=10_000, seed=0, distribution="uniform",
-                   percentiles=(5.0, 50.0, 95.0)):
+def flow_tolerance(
+    line,
+    fluid,
+    *,
+    head=0.0,
+    source_pressure=None,
+    back_pressure=0.0,
+    flow=None,
+    diameter_tolerance=0.0,
+    length_tolerance=0.0,
+    temperature_tolerance=0.0,
+    hematocrit_tolerance=0.0,
+    viscosity_tolerance=0.0,
+    fluid_builder=None,
+    n_samples=10_000,
+    seed=0,
+    distribution="uniform",
+    percentiles=(5.0, 50.0, 95.0),
+):
     """Propagate tolerances into the flow (or, with ``flow``, the required pressure).
 
     Parameters
@@ -174,18 +188,25 @@ def flow_tolerance(line, fluid, *, head=0.0, source_pressure=None, back_pressure
     >>> heads.samples.shape, heads.dominant_input.tolist()
     ((2000, 2), ['inner_diameter of 22G catheter', 'inner_diameter of 22G catheter'])
     """
-    shape = _check_line(line, fluid, head=head, source_pressure=source_pressure,
-                        back_pressure=back_pressure, flow=flow)
+    shape = _check_line(
+        line,
+        fluid,
+        head=head,
+        source_pressure=source_pressure,
+        back_pressure=back_pressure,
+        flow=flow,
+    )
     if distribution not in ("uniform", "normal"):
         raise InputRangeError(
-            f"distribution {distribution!r} is not known; choose 'uniform' or 'normal'")
+            f"distribution {distribution!r} is not known; choose 'uniform' or 'normal'"
+        )
     n = int(n_samples)
     if n < 10:
         raise InputRangeError(f"n_samples must be at least 10, got {n_samples!r}")
     rng = np.random.default_rng(seed)
-    axis = (n,) + (1,) * len(shape)      # a sample axis in front of the scenario axes
-    inputs = {}          # label -> sampled deviation, shape (n,)
-    owners = {}          # label -> part name or None
+    axis = (n,) + (1,) * len(shape)  # a sample axis in front of the scenario axes
+    inputs = {}  # label -> sampled deviation, shape (n,)
+    owners = {}  # label -> part name or None
     new_parts = []
     for i, part in enumerate(line.parts):
         name = line.part_names[i]
@@ -207,8 +228,9 @@ def flow_tolerance(line, fluid, *, head=0.0, source_pressure=None, back_pressure
             inputs[label], owners[label] = np.log1p(dev), name
             length = length * (1.0 + dev.reshape(axis))
         if d_tol > 0 or l_tol > 0:
-            new_parts.append(Tube(inner_diameter=d, length=length, roughness=part.roughness,
-                                  name=part.name))
+            new_parts.append(
+                Tube(inner_diameter=d, length=length, roughness=part.roughness, name=part.name)
+            )
         else:
             new_parts.append(part)
     sampled_fluid = fluid
@@ -216,18 +238,19 @@ def flow_tolerance(line, fluid, *, head=0.0, source_pressure=None, back_pressure
     h_tol = float(check_nonnegative("hematocrit_tolerance", hematocrit_tolerance))
     if h_tol > 0 and fluid.hematocrit is None:
         raise InputRangeError(
-            f"hematocrit_tolerance needs a blood fluid; {fluid.name!r} has no hematocrit")
+            f"hematocrit_tolerance needs a blood fluid; {fluid.name!r} has no hematocrit"
+        )
     if t_tol > 0 or h_tol > 0:
         builder = fluid_builder or _library_builder(fluid)
         dev = _draw(rng, t_tol, n, distribution)
-        kwargs = {"temperature_c": np.asarray(fluid.temperature_c, dtype=float)
-                  + dev.reshape(axis)}
+        kwargs = {"temperature_c": np.asarray(fluid.temperature_c, dtype=float) + dev.reshape(axis)}
         if t_tol > 0:
             inputs["temperature"], owners["temperature"] = dev, None
         if fluid.hematocrit is not None:
             dev = _draw(rng, h_tol, n, distribution)
-            kwargs["hematocrit"] = np.clip(np.asarray(fluid.hematocrit, dtype=float)
-                                           + dev.reshape(axis), 0.0, 0.95)
+            kwargs["hematocrit"] = np.clip(
+                np.asarray(fluid.hematocrit, dtype=float) + dev.reshape(axis), 0.0, 0.95
+            )
             if h_tol > 0:
                 inputs["hematocrit"], owners["hematocrit"] = dev, None
         sampled_fluid = builder(**kwargs)
@@ -239,7 +262,8 @@ def flow_tolerance(line, fluid, *, head=0.0, source_pressure=None, back_pressure
     if not inputs:
         raise InputRangeError(
             "no tolerance given: set diameter_tolerance, length_tolerance, temperature_tolerance, "
-            "hematocrit_tolerance or viscosity_tolerance")
+            "hematocrit_tolerance or viscosity_tolerance"
+        )
     drive = dict(head=head, back_pressure=back_pressure)
     if flow is None:
         drive["source_pressure"] = source_pressure
@@ -267,9 +291,17 @@ def flow_tolerance(line, fluid, *, head=0.0, source_pressure=None, back_pressure
     else:
         top_input = top.astype(str)
         top_part = np.vectorize(owners.get, otypes=[object])(top)
-    return ToleranceResult(quantity=quantity, nominal=_out(nominal), samples=np.array(out),
-                           percentiles=pct, shares=shares, dominant_input=top_input,
-                           dominant_part=top_part, relative_spread=_out(spread), seed=int(seed))
+    return ToleranceResult(
+        quantity=quantity,
+        nominal=_out(nominal),
+        samples=np.array(out),
+        percentiles=pct,
+        shares=shares,
+        dominant_input=top_input,
+        dominant_part=top_part,
+        relative_spread=_out(spread),
+        seed=int(seed),
+    )
 
 
 def _tolerance_for(tolerance, index, name, label):
@@ -294,8 +326,9 @@ def _recover_model(fluid):
 def _recover_mass_fraction(fluid):
     from rheoline.model import viscosity
 
-    return viscosity.glycerol_fraction_for_viscosity(fluid.rheology.viscosity(),
-                                                     fluid.temperature_c)
+    return viscosity.glycerol_fraction_for_viscosity(
+        fluid.rheology.viscosity(), fluid.temperature_c
+    )
 
 
 def _recover_concentration(fluid):
@@ -332,14 +365,15 @@ def _library_builder(fluid):
     except InputRangeError as exc:
         raise InputRangeError(
             f"temperature or hematocrit tolerance needs fluid_builder for the user fluid "
-            f"{fluid.name!r} (a callable taking temperature_c= and hematocrit=)") from exc
+            f"{fluid.name!r} (a callable taking temperature_c= and hematocrit=)"
+        ) from exc
     options = {}
     for option in entry.options:
         if option in _OPTION_RECOVERY:
             try:
                 options[option] = _OPTION_RECOVERY[option](fluid)
             except InputRangeError:
-                continue      # left out; the check below tells whether it mattered
+                continue  # left out; the check below tells whether it mattered
 
     def build(**kwargs):
         return fluids.fluid(name, **options, **kwargs)
@@ -349,7 +383,7 @@ def _library_builder(fluid):
         nominal["hematocrit"] = fluid.hematocrit
     rebuilt = None
     with warnings.catch_warnings():
-        warnings.simplefilter("ignore")      # the nominal fluid already warned
+        warnings.simplefilter("ignore")  # the nominal fluid already warned
         try:
             rebuilt = build(**nominal)
         except InputRangeError:

@@ -56,9 +56,7 @@ def check_positive(name: str, value, unit: str = "") -> np.ndarray:
     bad = arr <= 0
     if np.any(bad):
         u = f" {unit}" if unit else ""
-        raise InputRangeError(
-            f"{name} must be greater than 0{u}, got {_first_bad(arr, bad)!r}{u}"
-        )
+        raise InputRangeError(f"{name} must be greater than 0{u}, got {_first_bad(arr, bad)!r}{u}")
     return arr
 
 
@@ -68,9 +66,7 @@ def check_nonnegative(name: str, value, unit: str = "") -> np.ndarray:
     bad = arr < 0
     if np.any(bad):
         u = f" {unit}" if unit else ""
-        raise InputRangeError(
-            f"{name} must be 0{u} or more, got {_first_bad(arr, bad)!r}{u}"
-        )
+        raise InputRangeError(f"{name} must be 0{u} or more, got {_first_bad(arr, bad)!r}{u}")
     return arr
 
 
@@ -100,8 +96,9 @@ def check_hematocrit(value, name: str = "hematocrit", high: float = 0.95) -> np.
     return check_range(name, arr, 0.0, high, hint="hematocrit is a volume fraction")
 
 
-def warn_outside(name: str, value, low: float, high: float, model: str, unit: str = "",
-                 stacklevel: int = 3) -> bool:
+def warn_outside(
+    name: str, value, low: float, high: float, model: str, unit: str = "", stacklevel: int = 3
+) -> bool:
     """Warn (:class:`RangeWarning`) if any value lies outside [low, high].
 
     Returns True when a warning was issued, so that callers can also set a flag.

@@ -169,12 +169,14 @@ def pries_1994_relative_viscosity(diameter, hematocrit):
 
 def _law_pries_1992(diameter, hematocrit, temperature_c, viscosity):
     return _blood.plasma_viscosity(temperature_c) * _blood.pries_1992_relative_viscosity(
-        diameter, hematocrit)
+        diameter, hematocrit
+    )
 
 
 def _law_pries_1994(diameter, hematocrit, temperature_c, viscosity):
     return _blood.plasma_viscosity(temperature_c) * pries_1994_relative_viscosity(
-        diameter, hematocrit)
+        diameter, hematocrit
+    )
 
 
 def _law_newtonian(diameter, hematocrit, temperature_c, viscosity):
@@ -205,8 +207,9 @@ def _law(name):
         ) from None
 
 
-def apparent_blood_viscosity(diameter, hematocrit=0.45, temperature_c=37.0,
-                             viscosity_law="pries-1992", viscosity=None):
+def apparent_blood_viscosity(
+    diameter, hematocrit=0.45, temperature_c=37.0, viscosity_law="pries-1992", viscosity=None
+):
     """Apparent viscosity [Pa s] of blood flowing in a tube of ``diameter`` [m].
 
     Parameters
@@ -292,8 +295,11 @@ class Vessel:
         set_(self, "radius", scalar_or_array(check_positive("radius", self.radius, "m")))
         set_(self, "length", scalar_or_array(check_positive("length", self.length, "m")))
         set_(self, "hematocrit", scalar_or_array(check_hematocrit(self.hematocrit)))
-        set_(self, "temperature_c",
-             scalar_or_array(check_finite("temperature_c", self.temperature_c)))
+        set_(
+            self,
+            "temperature_c",
+            scalar_or_array(check_finite("temperature_c", self.temperature_c)),
+        )
         set_(self, "density", scalar_or_array(check_positive("density", self.density, "kg/m^3")))
         _law(self.viscosity_law)
         if self.viscosity is not None:
@@ -302,8 +308,11 @@ class Vessel:
                     f"viscosity is used only with viscosity_law='newtonian', got "
                     f"viscosity_law={self.viscosity_law!r}; drop viscosity or choose 'newtonian'"
                 )
-            set_(self, "viscosity",
-                 scalar_or_array(check_positive("viscosity", self.viscosity, "Pa s")))
+            set_(
+                self,
+                "viscosity",
+                scalar_or_array(check_positive("viscosity", self.viscosity, "Pa s")),
+            )
         fields = ("radius", "length", "hematocrit", "temperature_c", "density", "viscosity")
         shapes = {f: np.shape(getattr(self, f)) for f in fields if getattr(self, f) is not None}
         try:
@@ -350,8 +359,9 @@ class Vessel:
     def resistance(self):
         """Hagen-Poiseuille resistance [Pa s/m^3], 8 mu_app L / (pi r^4)."""
         r = np.asarray(self.radius)
-        return scalar_or_array(8.0 * np.asarray(self.apparent_viscosity)
-                               * np.asarray(self.length) / (np.pi * r**4))
+        return scalar_or_array(
+            8.0 * np.asarray(self.apparent_viscosity) * np.asarray(self.length) / (np.pi * r**4)
+        )
 
     @property
     def conductance(self):
@@ -377,8 +387,9 @@ class Vessel:
 
     def mean_velocity(self, pressure_drop):
         """Cross-section mean velocity [m/s] at a pressure drop [Pa]: Q / (pi r^2)."""
-        return scalar_or_array(np.asarray(self.flow(pressure_drop))
-                               / np.asarray(self.cross_section_area))
+        return scalar_or_array(
+            np.asarray(self.flow(pressure_drop)) / np.asarray(self.cross_section_area)
+        )
 
     def wall_shear_stress(self, pressure_drop):
         """Wall shear stress [Pa], dp r / (2 L).
@@ -401,8 +412,13 @@ class Vessel:
 
     def _reynolds(self, q):
         u = np.abs(q) / (np.pi * np.asarray(self.radius) ** 2)
-        return (np.asarray(self.density) * u * 2.0 * np.asarray(self.radius)
-                / np.asarray(self.apparent_viscosity))
+        return (
+            np.asarray(self.density)
+            * u
+            * 2.0
+            * np.asarray(self.radius)
+            / np.asarray(self.apparent_viscosity)
+        )
 
     def _check_laminar(self, q):
         re = self._reynolds(q)
@@ -414,13 +430,21 @@ class Vessel:
                 stacklevel=3,
             )
 
-    def infusion_context(self, catheter_outer_diameter,
-                         vein_pressure=TYPICAL_PERIPHERAL_VEIN_PRESSURE,
-                         ratio_limit=CATHETER_TO_VEIN_RATIO_LIMIT, warn=True):
+    def infusion_context(
+        self,
+        catheter_outer_diameter,
+        vein_pressure=TYPICAL_PERIPHERAL_VEIN_PRESSURE,
+        ratio_limit=CATHETER_TO_VEIN_RATIO_LIMIT,
+        warn=True,
+    ):
         """This vessel as the vein receiving a catheter: see :func:`infusion_site_context`."""
-        return infusion_site_context(catheter_outer_diameter, self.diameter,
-                                     vein_pressure=vein_pressure, ratio_limit=ratio_limit,
-                                     warn=warn)
+        return infusion_site_context(
+            catheter_outer_diameter,
+            self.diameter,
+            vein_pressure=vein_pressure,
+            ratio_limit=ratio_limit,
+            warn=warn,
+        )
 
 
 # --- sensitivities ---------------------------------------------------------------------------
@@ -430,9 +454,7 @@ _PARAMETERS = {"radius": "m", "length": "m", "hematocrit": "-", "temperature_c":
 
 def _check_parameter(parameter):
     if parameter not in _PARAMETERS:
-        raise InputRangeError(
-            f"parameter must be one of {sorted(_PARAMETERS)}, got {parameter!r}"
-        )
+        raise InputRangeError(f"parameter must be one of {sorted(_PARAMETERS)}, got {parameter!r}")
 
 
 @dataclass(frozen=True)
@@ -474,11 +496,13 @@ class SensitivityCurve:
         """A pandas DataFrame with units in the column names (imports pandas here)."""
         import pandas as pd
 
-        return pd.DataFrame({
-            f"{self.parameter} [{self.unit}]": self.values,
-            "resistance [Pa s/m^3]": self.resistance,
-            "relative resistance [-]": self.relative_resistance,
-        })
+        return pd.DataFrame(
+            {
+                f"{self.parameter} [{self.unit}]": self.values,
+                "resistance [Pa s/m^3]": self.resistance,
+                "relative resistance [-]": self.relative_resistance,
+            }
+        )
 
 
 def resistance_curve(vessel: Vessel, parameter: str, values) -> SensitivityCurve:
@@ -562,9 +586,7 @@ def resistance_elasticity(vessel: Vessel, parameter: str, relative_step: float =
     step = float(check_positive("relative_step", relative_step))
     x = np.asarray(getattr(vessel, parameter), dtype=float)
     if np.any(x == 0):
-        raise InputRangeError(
-            f"{parameter} must be non-zero for a logarithmic sensitivity, got 0"
-        )
+        raise InputRangeError(f"{parameter} must be non-zero for a logarithmic sensitivity, got 0")
     up = np.asarray(replace(vessel, **{parameter: x * (1.0 + step)}).resistance)
     down = np.asarray(replace(vessel, **{parameter: x * (1.0 - step)}).resistance)
     return scalar_or_array(np.log(up / down) / np.log((1.0 + step) / (1.0 - step)))
@@ -605,15 +627,18 @@ class FahraeusLindqvistCurve:
         """A pandas DataFrame with units in the column names (imports pandas here)."""
         import pandas as pd
 
-        return pd.DataFrame({
-            "diameter [um]": self.diameter * 1e6,
-            "relative viscosity [-]": self.relative_viscosity,
-            "apparent viscosity [mPa s]": self.apparent_viscosity * 1e3,
-        })
+        return pd.DataFrame(
+            {
+                "diameter [um]": self.diameter * 1e6,
+                "relative viscosity [-]": self.relative_viscosity,
+                "apparent viscosity [mPa s]": self.apparent_viscosity * 1e3,
+            }
+        )
 
 
-def fahraeus_lindqvist_curve(diameter=None, hematocrit=0.45, temperature_c=37.0,
-                             viscosity_law="pries-1992") -> FahraeusLindqvistCurve:
+def fahraeus_lindqvist_curve(
+    diameter=None, hematocrit=0.45, temperature_c=37.0, viscosity_law="pries-1992"
+) -> FahraeusLindqvistCurve:
     """The Fahraeus-Lindqvist curve: apparent viscosity against diameter.
 
     Parameters
@@ -647,18 +672,27 @@ def fahraeus_lindqvist_curve(diameter=None, hematocrit=0.45, temperature_c=37.0,
             f"viscosity_law must be 'pries-1992' or 'pries-1994' for a Fahraeus-Lindqvist "
             f"curve, got {viscosity_law!r} (a Newtonian law has no diameter effect)"
         )
-    d = (np.geomspace(4e-6, 1.5e-3, 80) if diameter is None
-         else np.atleast_1d(check_positive("diameter", diameter, "m")))
+    d = (
+        np.geomspace(4e-6, 1.5e-3, 80)
+        if diameter is None
+        else np.atleast_1d(check_positive("diameter", diameter, "m"))
+    )
     h = float(check_hematocrit(hematocrit))
     t = float(check_finite("temperature_c", temperature_c))
     mu = np.asarray(apparent_blood_viscosity(d, h, t, viscosity_law), dtype=float)
     plasma = float(_blood.plasma_viscosity(t))
-    return FahraeusLindqvistCurve(diameter=d, relative_viscosity=mu / plasma,
-                                  apparent_viscosity=mu, hematocrit=h, temperature_c=t,
-                                  viscosity_law=viscosity_law)
+    return FahraeusLindqvistCurve(
+        diameter=d,
+        relative_viscosity=mu / plasma,
+        apparent_viscosity=mu,
+        hematocrit=h,
+        temperature_c=t,
+        viscosity_law=viscosity_law,
+    )
 
 
 # --- the bridge to an infusion line ----------------------------------------------------------
+
 
 def annulus_resistance_factor(diameter_ratio):
     r"""Rise in a vein segment's resistance when a concentric catheter lies in it.
@@ -747,9 +781,13 @@ class InfusionSiteContext:
         return scalar_or_array(dp - np.asarray(self.back_pressure))
 
 
-def infusion_site_context(catheter_outer_diameter, vein_diameter,
-                          vein_pressure=TYPICAL_PERIPHERAL_VEIN_PRESSURE,
-                          ratio_limit=CATHETER_TO_VEIN_RATIO_LIMIT, warn=True):
+def infusion_site_context(
+    catheter_outer_diameter,
+    vein_diameter,
+    vein_pressure=TYPICAL_PERIPHERAL_VEIN_PRESSURE,
+    ratio_limit=CATHETER_TO_VEIN_RATIO_LIMIT,
+    warn=True,
+):
     """Context a vein gives an infusion scenario: back pressure and catheter-to-vein ratio.
 
     Parameters

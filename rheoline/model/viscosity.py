@@ -79,8 +79,14 @@ def check_temperature_c(value, name: str = "temperature_c") -> np.ndarray:
 
 # ---------------------------------------------------------------------------- water
 def _kell(t):
-    num = (999.83952 + 16.945176 * t - 7.9870401e-3 * t**2 - 46.170461e-6 * t**3
-           + 105.56302e-9 * t**4 - 280.54253e-12 * t**5)
+    num = (
+        999.83952
+        + 16.945176 * t
+        - 7.9870401e-3 * t**2
+        - 46.170461e-6 * t**3
+        + 105.56302e-9 * t**4
+        - 280.54253e-12 * t**5
+    )
     return num / (1.0 + 16.879850e-3 * t)
 
 
@@ -118,7 +124,9 @@ def kell_1975_water_density(temperature_c):
     998.2
     """
     t = check_temperature_c(temperature_c)
-    warn_outside("temperature_c", t, *WATER_RANGE_C, "water density (Kell 1975, liquid at 1 atm)", "degC")
+    warn_outside(
+        "temperature_c", t, *WATER_RANGE_C, "water density (Kell 1975, liquid at 1 atm)", "degC"
+    )
     return scalar_or_array(_kell(t))
 
 
@@ -132,11 +140,27 @@ _MU_STAR = 1.00e-6  # Pa s
 _H0 = np.array([1.67752, 2.20462, 0.6366564, -0.241605])
 _H1 = np.zeros((6, 7))
 for (_i, _j), _h in {
-    (0, 0): 5.20094e-1, (1, 0): 8.50895e-2, (2, 0): -1.08374, (3, 0): -2.89555e-1,
-    (0, 1): 2.22531e-1, (1, 1): 9.99115e-1, (2, 1): 1.88797, (3, 1): 1.26613, (5, 1): 1.20573e-1,
-    (0, 2): -2.81378e-1, (1, 2): -9.06851e-1, (2, 2): -7.72479e-1, (3, 2): -4.89837e-1,
-    (4, 2): -2.57040e-1, (0, 3): 1.61913e-1, (1, 3): 2.57399e-1, (0, 4): -3.25372e-2,
-    (3, 4): 6.98452e-2, (4, 5): 8.72102e-3, (3, 6): -4.35673e-3, (5, 6): -5.93264e-4,
+    (0, 0): 5.20094e-1,
+    (1, 0): 8.50895e-2,
+    (2, 0): -1.08374,
+    (3, 0): -2.89555e-1,
+    (0, 1): 2.22531e-1,
+    (1, 1): 9.99115e-1,
+    (2, 1): 1.88797,
+    (3, 1): 1.26613,
+    (5, 1): 1.20573e-1,
+    (0, 2): -2.81378e-1,
+    (1, 2): -9.06851e-1,
+    (2, 2): -7.72479e-1,
+    (3, 2): -4.89837e-1,
+    (4, 2): -2.57040e-1,
+    (0, 3): 1.61913e-1,
+    (1, 3): 2.57399e-1,
+    (0, 4): -3.25372e-2,
+    (3, 4): 6.98452e-2,
+    (4, 5): 8.72102e-3,
+    (3, 6): -4.35673e-3,
+    (5, 6): -5.93264e-4,
 }.items():
     _H1[_i, _j] = _h
 
@@ -239,7 +263,9 @@ def water_viscosity(temperature_c):
     array([0.001792, 0.000691])
     """
     t = check_temperature_c(temperature_c)
-    warn_outside("temperature_c", t, *WATER_RANGE_C, "water viscosity (IAPWS 2008, liquid at 1 atm)", "degC")
+    warn_outside(
+        "temperature_c", t, *WATER_RANGE_C, "water viscosity (IAPWS 2008, liquid at 1 atm)", "degC"
+    )
     return iapws_2008_viscosity(t + _KELVIN, _kell(t))
 
 
@@ -272,15 +298,27 @@ class LaliberteSolute:
 #: Solute coefficients (Laliberte 2007 viscosity; Laliberte & Cooper 2004 density;
 #: values as compiled in Laliberte 2009).
 LALIBERTE_SOLUTES = {
-    "NaCl": LaliberteSolute("sodium chloride", 58.44,
-                            (16.221789, 1.322931, 1.48486, 0.007469, 30.780201, 2.058269),
-                            (-0.003241, 0.063635, 1.013714, 0.014595, 3317.348544), 0.2645),
-    "KCl": LaliberteSolute("potassium chloride", 74.55,
-                           (6.48806, 1.317531, -0.777821, 0.092716, -1.300203, 2.081207),
-                           (-0.855929, 6.040736, 2.817874, 0.025392, 2681.617235), 0.2643),
-    "CaCl2": LaliberteSolute("calcium chloride", 110.98,
-                             (32.01437, 0.788104, -1.141205, 0.0027, 776516.746907, 5.838881),
-                             (-9.728937, 14.700535, 4.190333, 0.03974, 2708.127789), 0.5132),
+    "NaCl": LaliberteSolute(
+        "sodium chloride",
+        58.44,
+        (16.221789, 1.322931, 1.48486, 0.007469, 30.780201, 2.058269),
+        (-0.003241, 0.063635, 1.013714, 0.014595, 3317.348544),
+        0.2645,
+    ),
+    "KCl": LaliberteSolute(
+        "potassium chloride",
+        74.55,
+        (6.48806, 1.317531, -0.777821, 0.092716, -1.300203, 2.081207),
+        (-0.855929, 6.040736, 2.817874, 0.025392, 2681.617235),
+        0.2643,
+    ),
+    "CaCl2": LaliberteSolute(
+        "calcium chloride",
+        110.98,
+        (32.01437, 0.788104, -1.141205, 0.0027, 776516.746907, 5.838881),
+        (-9.728937, 14.700535, 4.190333, 0.03974, 2708.127789),
+        0.5132,
+    ),
 }
 
 #: 0.9 % w/v sodium chloride: 9 g of NaCl per litre of solution (common practice, no source).
@@ -290,8 +328,11 @@ SALINE_0_9_G_PER_L = {"NaCl": 9.0}
 #: NaCl 6.0 g, sodium lactate 3.1 g, KCl 0.3 g, CaCl2.2H2O 0.2 g (= 0.151 g CaCl2).
 #: Sodium lactate has no Laliberte coefficients; it enters as the NaCl of equal
 #: sodium content, 3.1 g / 112.06 g/mol x 58.44 g/mol = 1.617 g (an assumption).
-LACTATED_RINGERS_G_PER_L = {"NaCl": 6.0 + 3.1 / 112.06 * 58.44, "KCl": 0.3,
-                            "CaCl2": 0.2 * 110.98 / 147.01}
+LACTATED_RINGERS_G_PER_L = {
+    "NaCl": 6.0 + 3.1 / 112.06 * 58.44,
+    "KCl": 0.3,
+    "CaCl2": 0.2 * 110.98 / 147.01,
+}
 
 _SOLUTION_RANGE_C = (0.0, 100.0)
 
@@ -306,10 +347,18 @@ def _check_mass_fractions(mass_fractions):
     ws = {k: check_range(f"mass fraction of {k}", v, 0.0, 1.0) for k, v in mass_fractions.items()}
     total = sum(ws.values()) if ws else np.zeros(())
     if np.any(total >= 1.0):
-        raise InputRangeError("solute mass fractions must add up to less than 1 (water is the rest)")
+        raise InputRangeError(
+            "solute mass fractions must add up to less than 1 (water is the rest)"
+        )
     for k, w in ws.items():
-        warn_outside(f"mass fraction of {k}", w, 0.0, LALIBERTE_SOLUTES[k].max_mass_fraction,
-                     "the Laliberte coefficients (their fitted data)", stacklevel=4)
+        warn_outside(
+            f"mass fraction of {k}",
+            w,
+            0.0,
+            LALIBERTE_SOLUTES[k].max_mass_fraction,
+            "the Laliberte coefficients (their fitted data)",
+            stacklevel=4,
+        )
     return ws, 1.0 - total
 
 
@@ -349,7 +398,13 @@ def laliberte_2007_viscosity(mass_fractions, temperature_c):
     0.9012
     """
     t = check_temperature_c(temperature_c)
-    warn_outside("temperature_c", t, *_SOLUTION_RANGE_C, "the Laliberte 2007 solution viscosity model", "degC")
+    warn_outside(
+        "temperature_c",
+        t,
+        *_SOLUTION_RANGE_C,
+        "the Laliberte 2007 solution viscosity model",
+        "degC",
+    )
     ws, w_water = _check_mass_fractions(mass_fractions)
     mu_w, _ = _water_quiet(t)
     log_mu = w_water * np.log(mu_w * 1e3)
@@ -394,7 +449,9 @@ def laliberte_cooper_2004_density(mass_fractions, temperature_c):
     1003.3
     """
     t = check_temperature_c(temperature_c)
-    warn_outside("temperature_c", t, *_SOLUTION_RANGE_C, "the Laliberte & Cooper 2004 density model", "degC")
+    warn_outside(
+        "temperature_c", t, *_SOLUTION_RANGE_C, "the Laliberte & Cooper 2004 density model", "degC"
+    )
     ws, w_water = _check_mass_fractions(mass_fractions)
     _, rho_w = _water_quiet(t)
     specific_volume = w_water / rho_w
@@ -430,7 +487,10 @@ def solution_mass_fractions(grams_per_litre, temperature_c=20.0):
     0.00896
     """
     t = check_temperature_c(temperature_c)
-    conc = {k: check_range(f"concentration of {k}", v, 0.0, 500.0, "g/L") for k, v in grams_per_litre.items()}
+    conc = {
+        k: check_range(f"concentration of {k}", v, 0.0, 500.0, "g/L")
+        for k, v in grams_per_litre.items()
+    }
     _, rho = _water_quiet(t)
     for _ in range(6):
         ws = {k: c / rho for k, c in conc.items()}
@@ -651,10 +711,18 @@ def albumin_viscosity(concentration, temperature_c):
     >>> round(albumin_viscosity(50.0, 20.0) / saline_viscosity(20.0), 2)
     1.24
     """
-    c = check_range("concentration", concentration, 0.0, 300.0, "kg/m^3",
-                    hint="pass kg/m^3 (g/L): 50 for a 5 % solution")
+    c = check_range(
+        "concentration",
+        concentration,
+        0.0,
+        300.0,
+        "kg/m^3",
+        hint="pass kg/m^3 (g/L): 50 for a 5 % solution",
+    )
     mu_s = saline_viscosity(temperature_c)
-    return scalar_or_array(mu_s * np.exp(ALBUMIN_INTRINSIC_VISCOSITY * c / (1.0 - ALBUMIN_CROWDING * c)))
+    return scalar_or_array(
+        mu_s * np.exp(ALBUMIN_INTRINSIC_VISCOSITY * c / (1.0 - ALBUMIN_CROWDING * c))
+    )
 
 
 def albumin_density(concentration, temperature_c):
@@ -731,7 +799,9 @@ def glycerol_water_viscosity(mass_fraction, temperature_c):
     """
     w = _check_fraction(mass_fraction)
     t = check_temperature_c(temperature_c)
-    warn_outside("temperature_c", t, *_GLYCEROL_RANGE_C, "Cheng 2008 glycerol-water viscosity", "degC")
+    warn_outside(
+        "temperature_c", t, *_GLYCEROL_RANGE_C, "Cheng 2008 glycerol-water viscosity", "degC"
+    )
     mu_w, _ = _water_quiet(t)
     return scalar_or_array(_cheng_mix(w, t, mu_w))
 
@@ -790,7 +860,9 @@ def glycerol_water_density(mass_fraction, temperature_c):
     """
     w = _check_fraction(mass_fraction)
     t = check_temperature_c(temperature_c)
-    warn_outside("temperature_c", t, 0.0, 40.0, "Volk & Kaehler 2018 glycerol-water density", "degC")
+    warn_outside(
+        "temperature_c", t, 0.0, 40.0, "Volk & Kaehler 2018 glycerol-water density", "degC"
+    )
     _, rho_w = _water_quiet(t)
     rho_g = 1273.0 - 0.612 * t
     kappa = 1.78e-6 * t**2 - 1.82e-4 * t + 1.41e-2
@@ -831,7 +903,9 @@ def glycerol_fraction_for_viscosity(viscosity, temperature_c):
     """
     mu = check_positive("viscosity", viscosity, "Pa s")
     t = check_temperature_c(temperature_c)
-    warn_outside("temperature_c", t, *_GLYCEROL_RANGE_C, "Cheng 2008 glycerol-water viscosity", "degC")
+    warn_outside(
+        "temperature_c", t, *_GLYCEROL_RANGE_C, "Cheng 2008 glycerol-water viscosity", "degC"
+    )
     mu, t = np.broadcast_arrays(mu, t)
     mu_w, _ = _water_quiet(t)
     mu_g = _glycerol_viscosity_pure(t)

@@ -55,33 +55,69 @@ HEMOLYSIS_CONCERN_STRESS = 150.0
 
 #: The models the line engine uses, with their references (the pack's "assumptions" sheet).
 ASSUMPTIONS = (
-    ("laminar lumen flow", "Hagen-Poiseuille", "Poiseuille 1840s; any fluid mechanics text",
-     "fully developed, rigid straight lumen, Newtonian"),
-    ("developing laminar flow", "apparent friction of the entrance region",
-     "Shah, J. Fluids Eng. 100 (1978) 177-179", "short lumens such as catheters"),
-    ("transitional and turbulent flow", "Darcy-Weisbach with the Churchill friction factor",
-     "Churchill, Chem. Eng. 84 (1977) 91-92", "laminar below Re 2300, turbulent above 4000 "
-     "(common practice)"),
-    ("minor losses", "entrance, contraction, expansion, fitting and exit coefficients",
-     "Idelchik, Handbook of Hydraulic Resistance; Crane Technical Paper 410", "K values of "
-     "fittings are the user's or typical"),
-    ("non-Newtonian flow", "Rabinowitsch-Mooney wall-shear integral of the rheology model",
-     "Rabinowitsch 1929; Mooney 1931", "blood as Carreau, Casson or Quemada per fluid"),
-    ("blood viscosity", "hematocrit and temperature dependence",
-     "Quemada, Rheol. Acta 17 (1978); Cho & Kensey, Biorheology 28 (1991); Pries et al., "
-     "Am. J. Physiol. 263 (1992)", "packed red cells taken as blood at a high hematocrit"),
-    ("hemolysis indicator", "Giersiepen power law with wall stress and mean residence time",
-     "Giersiepen et al., Int. J. Artif. Organs 13 (1990) 300-306", "screening only; concern "
-     f"flag above {HEMOLYSIS_CONCERN_STRESS:g} Pa wall stress (Leverett et al. 1972, from "
-     "memory)"),
-    ("catalogue sizes", "typical nominal catheter, needle and set dimensions",
-     "ISO 9626 for needles (from memory); catheters and sets typical, from memory",
-     "a maker's dimensions differ: measure the bore for a decision"),
-    ("catheter-to-vein ratio", "outer diameter over vein diameter, flagged above 0.45",
-     "rheoline.model.vessels.infusion_site_context", "common practice, no source; no "
-     "prediction of thrombosis or vein injury"),
-    ("units", "NIST SP 811 conversions", "NIST SP 811 (2008) Appendix B",
-     "1 mmHg = 133.322 Pa, 1 cmH2O = 98.0665 Pa"),
+    (
+        "laminar lumen flow",
+        "Hagen-Poiseuille",
+        "Poiseuille 1840s; any fluid mechanics text",
+        "fully developed, rigid straight lumen, Newtonian",
+    ),
+    (
+        "developing laminar flow",
+        "apparent friction of the entrance region",
+        "Shah, J. Fluids Eng. 100 (1978) 177-179",
+        "short lumens such as catheters",
+    ),
+    (
+        "transitional and turbulent flow",
+        "Darcy-Weisbach with the Churchill friction factor",
+        "Churchill, Chem. Eng. 84 (1977) 91-92",
+        "laminar below Re 2300, turbulent above 4000 (common practice)",
+    ),
+    (
+        "minor losses",
+        "entrance, contraction, expansion, fitting and exit coefficients",
+        "Idelchik, Handbook of Hydraulic Resistance; Crane Technical Paper 410",
+        "K values of fittings are the user's or typical",
+    ),
+    (
+        "non-Newtonian flow",
+        "Rabinowitsch-Mooney wall-shear integral of the rheology model",
+        "Rabinowitsch 1929; Mooney 1931",
+        "blood as Carreau, Casson or Quemada per fluid",
+    ),
+    (
+        "blood viscosity",
+        "hematocrit and temperature dependence",
+        "Quemada, Rheol. Acta 17 (1978); Cho & Kensey, Biorheology 28 (1991); Pries et al., "
+        "Am. J. Physiol. 263 (1992)",
+        "packed red cells taken as blood at a high hematocrit",
+    ),
+    (
+        "hemolysis indicator",
+        "Giersiepen power law with wall stress and mean residence time",
+        "Giersiepen et al., Int. J. Artif. Organs 13 (1990) 300-306",
+        "screening only; concern "
+        f"flag above {HEMOLYSIS_CONCERN_STRESS:g} Pa wall stress (Leverett et al. 1972, from "
+        "memory)",
+    ),
+    (
+        "catalogue sizes",
+        "typical nominal catheter, needle and set dimensions",
+        "ISO 9626 for needles (from memory); catheters and sets typical, from memory",
+        "a maker's dimensions differ: measure the bore for a decision",
+    ),
+    (
+        "catheter-to-vein ratio",
+        "outer diameter over vein diameter, flagged above 0.45",
+        "rheoline.model.vessels.infusion_site_context",
+        "common practice, no source; no prediction of thrombosis or vein injury",
+    ),
+    (
+        "units",
+        "NIST SP 811 conversions",
+        "NIST SP 811 (2008) Appendix B",
+        "1 mmHg = 133.322 Pa, 1 cmH2O = 98.0665 Pa",
+    ),
 )
 
 #: Monte Carlo samples per case when a scenario gives tolerances but no ``samples``.
@@ -89,8 +125,16 @@ DEFAULT_TOLERANCE_SAMPLES = 2000
 
 # Part fields that select a catalogue entry, or are single values by nature: grouped on,
 # never vectorized.
-_DISCRETE = {"gauge", "wall", "french", "kind", "k", "equivalent_length", "test_viscosity",
-             "test_density"}
+_DISCRETE = {
+    "gauge",
+    "wall",
+    "french",
+    "kind",
+    "k",
+    "equivalent_length",
+    "test_viscosity",
+    "test_density",
+}
 
 
 @dataclass
@@ -137,16 +181,17 @@ class RunResult:
         out.columns = ["case", "flow [mL/min]", "source pressure [mmHg]"]
         out["max Re"] = t["max Reynolds number"].round().astype("Int64")
         out["regime"] = t["regime"]
-        out["dominant part (share)"] = [f"{p} ({s:.0f} %)" for p, s in
-                                        zip(t["dominant part"], t["dominant share [%]"],
-                                            strict=True)]
+        out["dominant part (share)"] = [
+            f"{p} ({s:.0f} %)"
+            for p, s in zip(t["dominant part"], t["dominant share [%]"], strict=True)
+        ]
         out["max wall shear [Pa]"] = t["max wall shear stress [Pa]"]
         for what, unit in (("flow", "mL/min"), ("pressure", "mmHg")):
             lo, hi = t[f"{what} p5 [{unit}]"], t[f"{what} p95 [{unit}]"]
             if lo.notna().any():
                 out[f"{what} p5-p95 [{unit}]"] = [
-                    "" if np.isnan(a) else f"{a:.4g}-{b:.4g}"
-                    for a, b in zip(lo, hi, strict=True)]
+                    "" if np.isnan(a) else f"{a:.4g}-{b:.4g}" for a, b in zip(lo, hi, strict=True)
+                ]
         if t["dominant tolerance"].astype(bool).any():
             out["spread led by"] = t["dominant tolerance"]
         if t["time to deliver [min]"].notna().any():
@@ -169,41 +214,53 @@ class RunResult:
 
         by_case = {}
         for row in self.parts.itertuples(index=False):
-            by_case.setdefault(row.case, []).append({
-                "part": row.part, "kind": row.kind,
-                "pressure_drop_pa": _num(row[self.parts.columns.get_loc("pressure drop [Pa]")]),
-                "reynolds": _num(row.reynolds), "regime": row.regime,
-                "wall_shear_stress_pa": _num(row[self.parts.columns.get_loc(
-                    "wall shear stress [Pa]")]),
-                "share": _num(row[self.parts.columns.get_loc("share [%]")] / 100.0),
-            })
+            by_case.setdefault(row.case, []).append(
+                {
+                    "part": row.part,
+                    "kind": row.kind,
+                    "pressure_drop_pa": _num(row[self.parts.columns.get_loc("pressure drop [Pa]")]),
+                    "reynolds": _num(row.reynolds),
+                    "regime": row.regime,
+                    "wall_shear_stress_pa": _num(
+                        row[self.parts.columns.get_loc("wall shear stress [Pa]")]
+                    ),
+                    "share": _num(row[self.parts.columns.get_loc("share [%]")] / 100.0),
+                }
+            )
         out = []
         t = self.table
         for r in t.to_dict("records"):
-            out.append({
-                "name": r["case"], "scenario": r["scenario"], "point": r["point"],
-                "fluid": r["fluid"],
-                "flow_ml_min": _num(r["flow [mL/min]"]), "flow_ml_h": _num(r["flow [mL/h]"]),
-                "required_pressure_mmhg": _num(r["required pressure [mmHg]"]),
-                "max_reynolds": _num(r["max Reynolds number"]), "regime": r["regime"],
-                "dominant_part": r["dominant part"],
-                "dominant_share": _num(r["dominant share [%]"] / 100.0),
-                "max_wall_shear_stress_pa": _num(r["max wall shear stress [Pa]"]),
-                "hemolysis_index_percent": _num(r["hemolysis index [%]"]),
-                "hemolysis_concern": bool(r["hemolysis concern"]),
-                "exceeds_pressure_limit": None if r["over pressure limit"] is None
-                else bool(r["over pressure limit"]),
-                "flow_p5_ml_min": _num(r["flow p5 [mL/min]"]),
-                "flow_p95_ml_min": _num(r["flow p95 [mL/min]"]),
-                "required_pressure_p5_mmhg": _num(r["pressure p5 [mmHg]"]),
-                "required_pressure_p95_mmhg": _num(r["pressure p95 [mmHg]"]),
-                "dominant_tolerance": r["dominant tolerance"] or None,
-                "time_to_deliver_min": _num(r["time to deliver [min]"]),
-                "catheter_to_vein_ratio": _num(r["catheter-to-vein ratio [-]"]),
-                "flags": [f for f in r["flags"].split("; ") if f],
-                "parts": by_case.get(r["case"], []),
-                "caution": CAUTION,
-            })
+            out.append(
+                {
+                    "name": r["case"],
+                    "scenario": r["scenario"],
+                    "point": r["point"],
+                    "fluid": r["fluid"],
+                    "flow_ml_min": _num(r["flow [mL/min]"]),
+                    "flow_ml_h": _num(r["flow [mL/h]"]),
+                    "required_pressure_mmhg": _num(r["required pressure [mmHg]"]),
+                    "max_reynolds": _num(r["max Reynolds number"]),
+                    "regime": r["regime"],
+                    "dominant_part": r["dominant part"],
+                    "dominant_share": _num(r["dominant share [%]"] / 100.0),
+                    "max_wall_shear_stress_pa": _num(r["max wall shear stress [Pa]"]),
+                    "hemolysis_index_percent": _num(r["hemolysis index [%]"]),
+                    "hemolysis_concern": bool(r["hemolysis concern"]),
+                    "exceeds_pressure_limit": None
+                    if r["over pressure limit"] is None
+                    else bool(r["over pressure limit"]),
+                    "flow_p5_ml_min": _num(r["flow p5 [mL/min]"]),
+                    "flow_p95_ml_min": _num(r["flow p95 [mL/min]"]),
+                    "required_pressure_p5_mmhg": _num(r["pressure p5 [mmHg]"]),
+                    "required_pressure_p95_mmhg": _num(r["pressure p95 [mmHg]"]),
+                    "dominant_tolerance": r["dominant tolerance"] or None,
+                    "time_to_deliver_min": _num(r["time to deliver [min]"]),
+                    "catheter_to_vein_ratio": _num(r["catheter-to-vein ratio [-]"]),
+                    "flags": [f for f in r["flags"].split("; ") if f],
+                    "parts": by_case.get(r["case"], []),
+                    "caution": CAUTION,
+                }
+            )
         return out
 
 
@@ -223,8 +280,8 @@ class _Group:
     scenario: object
     indices: list
     labels: list
-    values: dict     # scenario field -> np.ndarray (n,) or a name
-    parts: list      # per part: dict field -> np.ndarray (n,) or a discrete value
+    values: dict  # scenario field -> np.ndarray (n,) or a name
+    parts: list  # per part: dict field -> np.ndarray (n,) or a discrete value
 
 
 def _groups(sc):
@@ -234,10 +291,16 @@ def _groups(sc):
         vals = {k: (pt[k][0] if k in pt else v) for k, v in sc.values.items()}
         parts = []
         for j, p in enumerate(sc.parts, start=1):
-            parts.append({k: (pt[f"part[{j}].{k}"][0] if isinstance(v, Axis) else v)
-                          for k, v in p.values.items()})
-        key = (vals["fluid"], tuple(tuple((k, v) for k, v in sorted(pv.items()) if k in _DISCRETE)
-                                    for pv in parts))
+            parts.append(
+                {
+                    k: (pt[f"part[{j}].{k}"][0] if isinstance(v, Axis) else v)
+                    for k, v in p.values.items()
+                }
+            )
+        key = (
+            vals["fluid"],
+            tuple(tuple((k, v) for k, v in sorted(pv.items()) if k in _DISCRETE) for pv in parts),
+        )
         label = ", ".join(shown for _, shown in pt.values())
         keyed.setdefault(key, []).append((i, label, vals, parts))
     groups = []
@@ -267,11 +330,25 @@ def _groups(sc):
 def _point_group(g, col):
     """The one-point group of sweep point ``col`` of ``g`` (scalars instead of arrays)."""
     n = len(g.indices)
-    return _Group(g.scenario, g.indices[col:col + 1], g.labels[col:col + 1],
-                  {k: (v if k == "fluid" else float(v[col])) for k, v in g.values.items()},
-                  [{k: (float(v[col]) if isinstance(v, np.ndarray) and v.shape == (n,)
-                        and k not in ("flows", "pressure_drops") else v)
-                    for k, v in pv.items()} for pv in g.parts])
+    return _Group(
+        g.scenario,
+        g.indices[col : col + 1],
+        g.labels[col : col + 1],
+        {k: (v if k == "fluid" else float(v[col])) for k, v in g.values.items()},
+        [
+            {
+                k: (
+                    float(v[col])
+                    if isinstance(v, np.ndarray)
+                    and v.shape == (n,)
+                    and k not in ("flows", "pressure_drops")
+                    else v
+                )
+                for k, v in pv.items()
+            }
+            for pv in g.parts
+        ],
+    )
 
 
 #: The scenario fields a fluid is built from (besides its name).
@@ -323,10 +400,12 @@ def _build_fluid(group, source):
         if "has no option" in msg:
             fieldname = next((k for k in opts if f"option {k!r}" in msg), "fluid")
         else:
-            fieldname = _field_of(msg.split(";")[0], ["hematocrit", "mass_fraction",
-                                                      "temperature"], "fluid")
-        raise ScenarioError(str(exc), source=source, scenario=repr(sc.name),
-                            field=fieldname) from None
+            fieldname = _field_of(
+                msg.split(";")[0], ["hematocrit", "mass_fraction", "temperature"], "fluid"
+            )
+        raise ScenarioError(
+            str(exc), source=source, scenario=repr(sc.name), field=fieldname
+        ) from None
 
 
 def _build_part(spec, kw, name):
@@ -370,8 +449,9 @@ def _build_parts(group, source):
             part = _build_part(spec, pv, name)
         except RheolineError as exc:
             f = _field_of(str(exc), list(pv), next(iter(pv), "type"))
-            raise ScenarioError(str(exc), source=source, scenario=repr(sc.name),
-                                field=f"part[{j}].{f}") from None
+            raise ScenarioError(
+                str(exc), source=source, scenario=repr(sc.name), field=f"part[{j}].{f}"
+            ) from None
         built.append(part)
     return built
 
@@ -403,8 +483,11 @@ def _point_part_names(g, line):
     names = np.empty((len(line.parts), n), dtype=object)
     for j, (spec, pv) in enumerate(zip(g.scenario.parts, g.parts, strict=True)):
         names[j, :] = line.parts[j].name
-        swept = [k for k in _SIZE_FIELDS if isinstance(pv.get(k), np.ndarray)
-                 and pv[k].shape == (n,) and np.ptp(pv[k]) > 0]
+        swept = [
+            k
+            for k in _SIZE_FIELDS
+            if isinstance(pv.get(k), np.ndarray) and pv[k].shape == (n,) and np.ptp(pv[k]) > 0
+        ]
         if spec.label != spec.type or not swept:
             continue
         by_size = {}
@@ -431,16 +514,23 @@ def _site_context(group, parts, source):
 
     outlet = [p for p in parts if getattr(p, "outer_diameter", None) is not None]
     if not outlet:
-        raise ScenarioError("needs a catheter, needle or cannula (a part with an outer "
-                            "diameter) in the line", source=source,
-                            scenario=repr(group.scenario.name), field="vein_diameter")
+        raise ScenarioError(
+            "needs a catheter, needle or cannula (a part with an outer diameter) in the line",
+            source=source,
+            scenario=repr(group.scenario.name),
+            field="vein_diameter",
+        )
     try:
-        return infusion_site_context(outlet[-1].outer_diameter, group.values["vein_diameter"],
-                                     vein_pressure=group.values.get("back_pressure", 0.0),
-                                     warn=False)
+        return infusion_site_context(
+            outlet[-1].outer_diameter,
+            group.values["vein_diameter"],
+            vein_pressure=group.values.get("back_pressure", 0.0),
+            warn=False,
+        )
     except RheolineError as exc:
-        raise ScenarioError(str(exc), source=source, scenario=repr(group.scenario.name),
-                            field="vein_diameter") from None
+        raise ScenarioError(
+            str(exc), source=source, scenario=repr(group.scenario.name), field="vein_diameter"
+        ) from None
 
 
 def check_scenarios(sset: ScenarioSet) -> None:
@@ -505,25 +595,65 @@ def run_scenarios(sset: ScenarioSet, progress=None) -> RunResult:
             bar.close()
     table = pd.DataFrame(rows, columns=_COLUMNS)
     parts = pd.DataFrame([r[:-1] for r in part_rows], columns=_PART_COLUMNS)
-    return RunResult(sset, table, parts, _inputs_table(sset), _assumptions_table(sset),
-                     tuple(dict.fromkeys(notes)), part_keys=tuple(r[-1] for r in part_rows))
+    return RunResult(
+        sset,
+        table,
+        parts,
+        _inputs_table(sset),
+        _assumptions_table(sset),
+        tuple(dict.fromkeys(notes)),
+        part_keys=tuple(r[-1] for r in part_rows),
+    )
 
 
 _COLUMNS = [
-    "case", "scenario", "point", "fluid", "temperature [degC]", "drive", "gauge",
-    "smallest bore [mm]", "head [cm]", "source pressure [mmHg]", "back pressure [mmHg]",
-    "flow [mL/min]", "flow [mL/h]", "required pressure [mmHg]", "pressure limit [mmHg]",
-    "over pressure limit", "max Reynolds number", "regime", "dominant part",
-    "dominant share [%]", "max wall shear stress [Pa]", "hemolysis index [%]",
-    "hemolysis concern", "flow p5 [mL/min]", "flow p95 [mL/min]", "pressure p5 [mmHg]",
-    "pressure p95 [mmHg]", "dominant tolerance", "time to deliver [min]",
+    "case",
+    "scenario",
+    "point",
+    "fluid",
+    "temperature [degC]",
+    "drive",
+    "gauge",
+    "smallest bore [mm]",
+    "head [cm]",
+    "source pressure [mmHg]",
+    "back pressure [mmHg]",
+    "flow [mL/min]",
+    "flow [mL/h]",
+    "required pressure [mmHg]",
+    "pressure limit [mmHg]",
+    "over pressure limit",
+    "max Reynolds number",
+    "regime",
+    "dominant part",
+    "dominant share [%]",
+    "max wall shear stress [Pa]",
+    "hemolysis index [%]",
+    "hemolysis concern",
+    "flow p5 [mL/min]",
+    "flow p95 [mL/min]",
+    "pressure p5 [mmHg]",
+    "pressure p95 [mmHg]",
+    "dominant tolerance",
+    "time to deliver [min]",
     "catheter-to-vein ratio [-]",
     "flags",
 ]
 _PART_COLUMNS = [
-    "case", "part", "kind", "inner diameter [mm]", "length [m]", "reynolds", "regime",
-    "pressure drop [Pa]", "pressure drop [mmHg]", "share [%]", "mean velocity [m/s]",
-    "wall shear stress [Pa]", "wall shear rate [1/s]", "entrance length [m]",
+    "case",
+    "part",
+    "kind",
+    "inner diameter [mm]",
+    "length [m]",
+    "reynolds",
+    "regime",
+    "pressure drop [Pa]",
+    "pressure drop [mmHg]",
+    "share [%]",
+    "mean velocity [m/s]",
+    "wall shear stress [Pa]",
+    "wall shear rate [1/s]",
+    "entrance length [m]",
 ]
 
 
@@ -551,8 +681,12 @@ def _solve_group(g, source):
         if sc.mode == "flow":
             res = line.solve(fl, flow=v["flow"], back_pressure=back)
         else:
-            res = line.solve(fl, head=v.get("head", 0.0), source_pressure=v.get("source_pressure", 0.0),
-                             back_pressure=back)
+            res = line.solve(
+                fl,
+                head=v.get("head", 0.0),
+                source_pressure=v.get("source_pressure", 0.0),
+                back_pressure=back,
+            )
         before_band = len(caught)
         band = None
         if _has_tolerance(sc):
@@ -582,8 +716,10 @@ def _solve_group(g, source):
     max_re = _vec(res.max_reynolds, n)
     regime = _vec(res.regime, n)
     point_names = _point_part_names(g, line)
-    dom = [point_names[line.part_names.index(str(d)), col]
-           for col, d in enumerate(_vec(res.dominant_part, n))]
+    dom = [
+        point_names[line.part_names.index(str(d)), col]
+        for col, d in enumerate(_vec(res.dominant_part, n))
+    ]
     share = _vec(res.dominant_share, n)
     wss = _vec(res.max_wall_shear_stress, n)
     hemo = _vec(res.hemolysis_index, n)
@@ -604,10 +740,16 @@ def _solve_group(g, source):
     part_regime = _regimes(p_re).tolist()
     lumen_rows = [j for j, part in enumerate(parts) if part.kind == "lumen"]
     part_kind = [getattr(part, "kind", "part") for part in parts]
-    diam = [None if getattr(p, "inner_diameter", None) is None
-            else _vec(p.inner_diameter, n).astype(float) for p in parts]
-    lengths = [None if getattr(p, "length", None) is None
-               else _vec(p.length, n).astype(float) for p in parts]
+    diam = [
+        None
+        if getattr(p, "inner_diameter", None) is None
+        else _vec(p.inner_diameter, n).astype(float)
+        for p in parts
+    ]
+    lengths = [
+        None if getattr(p, "length", None) is None else _vec(p.length, n).astype(float)
+        for p in parts
+    ]
     nan_col = [np.nan] * n
     diam_mm = [nan_col if d is None else (d * 1e3).tolist() for d in diam]
     length_m = [nan_col if x is None else x.tolist() for x in lengths]
@@ -622,20 +764,28 @@ def _solve_group(g, source):
     p_rate_l, p_le_l = p_rate.astype(float).tolist(), p_le.astype(float).tolist()
     exit_l, exit_mmhg = exit_dp.astype(float).tolist(), (exit_dp / MMHG).tolist()
     names_l = point_names.tolist()
-    hemo_extrapolated = (np.any(p_tau > GIERSIEPEN_1990_MAX_STRESS, axis=0).tolist()
-                         if is_blood and n_p else [False] * n)
+    hemo_extrapolated = (
+        np.any(p_tau > GIERSIEPEN_1990_MAX_STRESS, axis=0).tolist()
+        if is_blood and n_p
+        else [False] * n
+    )
     temperature_l = _vec(v["temperature"], n).astype(float).tolist()
     head_cm = (_vec(v["head"], n) * 100).tolist() if "head" in v else nan_col
-    source_mmhg = (_vec(v["source_pressure"], n) / MMHG).tolist() if "source_pressure" in v \
-        else nan_col
+    source_mmhg = (
+        (_vec(v["source_pressure"], n) / MMHG).tolist() if "source_pressure" in v else nan_col
+    )
     back_mmhg = (_vec(back, n) / MMHG).tolist()
     limit_l = _vec(limit, n).astype(float).tolist() if limit is not None else None
-    drive = "pump" if sc.mode == "flow" else ("pressure" if "source_pressure" in v and
-                                              np.any(v["source_pressure"] > 0) else "gravity")
+    drive = (
+        "pump"
+        if sc.mode == "flow"
+        else (
+            "pressure" if "source_pressure" in v and np.any(v["source_pressure"] > 0) else "gravity"
+        )
+    )
     gauges = [spec for spec in g.parts if "gauge" in spec]
     gauge = int(gauges[-1]["gauge"]) if gauges else None
-    ratio_l = _vec(site.diameter_ratio, n).astype(float).tolist() if site is not None \
-        else nan_col
+    ratio_l = _vec(site.diameter_ratio, n).astype(float).tolist() if site is not None else nan_col
     large_l = _vec(site.large_ratio, n).tolist() if site is not None else [False] * n
     for col in range(n):
         case = sc.name + (f" | {g.labels[col]}" if g.labels[col] else "")
@@ -659,8 +809,10 @@ def _solve_group(g, source):
         if not flow[col] > 0:
             flags.append("no forward flow")
         if deliver is not None and np.isinf(deliver[col]):
-            flags.append("never delivers the whole volume: the flow stops first (the drive "
-                         "falls to the back pressure)")
+            flags.append(
+                "never delivers the whole volume: the flow stops first (the drive "
+                "falls to the back pressure)"
+            )
         elif deliver is not None and np.isnan(deliver[col]):
             flags.append("time to deliver not computed")
         if not converged[col]:
@@ -670,36 +822,84 @@ def _solve_group(g, source):
             flags.append(f"catheter fills {ratio:.0%} of the vein diameter")
         if range_note[col]:
             flags.append("outside a correlation's range (see notes)")
-        rows.append([
-            case, sc.name, g.labels[col], v["fluid"], temperature_l[col], drive, gauge,
-            smallest_mm[col], head_cm[col], source_mmhg[col], back_mmhg[col],
-            float(flow[col]) / ML_PER_MIN, float(flow[col]) / ML_PER_H,
-            float(req[col]) / MMHG + 0.0, lim / MMHG if lim is not None else np.nan, over,
-            float(max_re[col]), str(regime[col]), str(dom[col]), float(share[col]) * 100,
-            float(wss[col]), float(hemo[col]) if is_blood else np.nan, concern,
-            band[0][col] if band and sc.mode == "drive" else np.nan,
-            band[1][col] if band and sc.mode == "drive" else np.nan,
-            band[0][col] if band and sc.mode == "flow" else np.nan,
-            band[1][col] if band and sc.mode == "flow" else np.nan,
-            band[2][col] if band else "",
-            deliver[col] if deliver is not None else np.nan, ratio,
-            "; ".join(flags),
-        ])
+        rows.append(
+            [
+                case,
+                sc.name,
+                g.labels[col],
+                v["fluid"],
+                temperature_l[col],
+                drive,
+                gauge,
+                smallest_mm[col],
+                head_cm[col],
+                source_mmhg[col],
+                back_mmhg[col],
+                float(flow[col]) / ML_PER_MIN,
+                float(flow[col]) / ML_PER_H,
+                float(req[col]) / MMHG + 0.0,
+                lim / MMHG if lim is not None else np.nan,
+                over,
+                float(max_re[col]),
+                str(regime[col]),
+                str(dom[col]),
+                float(share[col]) * 100,
+                float(wss[col]),
+                float(hemo[col]) if is_blood else np.nan,
+                concern,
+                band[0][col] if band and sc.mode == "drive" else np.nan,
+                band[1][col] if band and sc.mode == "drive" else np.nan,
+                band[0][col] if band and sc.mode == "flow" else np.nan,
+                band[1][col] if band and sc.mode == "flow" else np.nan,
+                band[2][col] if band else "",
+                deliver[col] if deliver is not None else np.nan,
+                ratio,
+                "; ".join(flags),
+            ]
+        )
         for j in range(n_p):
-            part_rows.append([
-                case, names_l[j][col], part_kind[j], diam_mm[j][col], length_m[j][col],
-                p_re_l[j][col], part_regime[j][col], p_dp_l[j][col], p_dp_mmhg[j][col],
-                part_share[j][col], p_u_l[j][col], p_tau_l[j][col], p_rate_l[j][col],
-                p_le_l[j][col],
-                line.part_names[j],  # the part's key (not a column)
-            ])
-        part_rows.append([
-            case, "exit", "exit", np.nan, np.nan, np.nan, "", exit_l[col], exit_mmhg[col],
-            exit_share[col], np.nan, np.nan, np.nan, np.nan, "exit",
-        ])
+            part_rows.append(
+                [
+                    case,
+                    names_l[j][col],
+                    part_kind[j],
+                    diam_mm[j][col],
+                    length_m[j][col],
+                    p_re_l[j][col],
+                    part_regime[j][col],
+                    p_dp_l[j][col],
+                    p_dp_mmhg[j][col],
+                    part_share[j][col],
+                    p_u_l[j][col],
+                    p_tau_l[j][col],
+                    p_rate_l[j][col],
+                    p_le_l[j][col],
+                    line.part_names[j],  # the part's key (not a column)
+                ]
+            )
+        part_rows.append(
+            [
+                case,
+                "exit",
+                "exit",
+                np.nan,
+                np.nan,
+                np.nan,
+                "",
+                exit_l[col],
+                exit_mmhg[col],
+                exit_share[col],
+                np.nan,
+                np.nan,
+                np.nan,
+                np.nan,
+                "exit",
+            ]
+        )
     per_case_rows = [rows[c] for c in range(n)]
-    per_case_parts = [part_rows[c * (len(parts) + 1):(c + 1) * (len(parts) + 1)]
-                      for c in range(n)]
+    per_case_parts = [
+        part_rows[c * (len(parts) + 1) : (c + 1) * (len(parts) + 1)] for c in range(n)
+    ]
     return per_case_rows, per_case_parts, notes
 
 
@@ -789,17 +989,22 @@ def _tolerance_case(sc, g, col, tol):
         drive["head"] = one.values.get("head", 0.0)
         drive["source_pressure"] = one.values.get("source_pressure", 0.0)
     band = flow_tolerance(
-        case_line, case_fluid, **drive, diameter_tolerance=d_tol, length_tolerance=l_tol,
+        case_line,
+        case_fluid,
+        **drive,
+        diameter_tolerance=d_tol,
+        length_tolerance=l_tol,
         temperature_tolerance=tol.get("temperature", 0.0),
         hematocrit_tolerance=tol.get("hematocrit", 0.0) if case_fluid.is_blood else 0.0,
         viscosity_tolerance=tol.get("viscosity", 0.0),
         fluid_builder=lambda opts=opts, **kw: make_fluid(g.values["fluid"], **opts, **kw),
         n_samples=int(tol.get("samples", DEFAULT_TOLERANCE_SAMPLES)),
-        seed=int(tol.get("seed", 0)), distribution=tol.get("distribution", "uniform"),
-        percentiles=(5.0, 95.0))
+        seed=int(tol.get("seed", 0)),
+        distribution=tol.get("distribution", "uniform"),
+        percentiles=(5.0, 95.0),
+    )
     scale = MMHG if sc.mode == "flow" else ML_PER_MIN
-    return (band.percentiles[5.0] / scale, band.percentiles[95.0] / scale,
-            band.dominant_input)
+    return (band.percentiles[5.0] / scale, band.percentiles[95.0] / scale, band.dominant_input)
 
 
 def _delivery_minutes(sc, g, fl, line, res):
@@ -809,8 +1014,9 @@ def _delivery_minutes(sc, g, fl, line, res):
     n = len(g.indices)
     v = g.values
     volume = _vec(v["volume"], n)
-    if sc.mode == "flow" or not any(k in v for k in ("head_when_empty", "pressure_time_constant",
-                                                     "source_pressure_when_empty")):
+    if sc.mode == "flow" or not any(
+        k in v for k in ("head_when_empty", "pressure_time_constant", "source_pressure_when_empty")
+    ):
         return volume / _vec(res.flow, n) / 60.0  # a constant drive or a pump
     from rheoline.model import delivery
 
@@ -818,14 +1024,26 @@ def _delivery_minutes(sc, g, fl, line, res):
     back = v.get("back_pressure", 0.0)
     if "source_pressure_when_empty" in v or "pressure_time_constant" in v:
         t = delivery.pressure_bag_delivery_time(
-            line, fl, volume, v["source_pressure"],
+            line,
+            fl,
+            volume,
+            v["source_pressure"],
             pressure_empty=v.get("source_pressure_when_empty"),
-            time_constant=v.get("pressure_time_constant"), head_full=head,
-            head_empty=v.get("head_when_empty"), back_pressure=back)
+            time_constant=v.get("pressure_time_constant"),
+            head_full=head,
+            head_empty=v.get("head_when_empty"),
+            back_pressure=back,
+        )
     else:
         t = delivery.falling_head_delivery_time(
-            line, fl, volume, head, v["head_when_empty"],
-            source_pressure=v.get("source_pressure", 0.0), back_pressure=back)
+            line,
+            fl,
+            volume,
+            head,
+            v["head_when_empty"],
+            source_pressure=v.get("source_pressure", 0.0),
+            back_pressure=back,
+        )
     return _vec(t.time, n) / 60.0
 
 
@@ -865,8 +1083,14 @@ def _assumptions_table(sset):
     for name in dict.fromkeys(names):
         entry = FLUID_LIBRARY.get(name.strip().lower().replace("_", "-").replace(" ", "-"))
         if entry is not None:
-            rows.append([f"fluid: {name}", entry.description, entry.source,
-                         f"default temperature {entry.default_temperature_c:g} degC"])
+            rows.append(
+                [
+                    f"fluid: {name}",
+                    entry.description,
+                    entry.source,
+                    f"default temperature {entry.default_temperature_c:g} degC",
+                ]
+            )
     return pd.DataFrame(rows, columns=["topic", "model", "reference", "notes"])
 
 
@@ -880,8 +1104,9 @@ def fluid_table():
     for e in fluid_catalogue():
         opts = ", ".join(e["options"]) or "-"
         rows.append([e["name"], e["description"], e["default_temperature_c"], opts, e["source"]])
-    return pd.DataFrame(rows, columns=["fluid", "description", "default [degC]", "options",
-                                       "source"])
+    return pd.DataFrame(
+        rows, columns=["fluid", "description", "default [degC]", "options", "source"]
+    )
 
 
 def parts_table(kind=None):
@@ -892,19 +1117,45 @@ def parts_table(kind=None):
 
     rows = []
     for g, (od, d, length, _) in cat.CATHETER_GAUGES.items():
-        rows.append(["catheter", f"{g}G", od * 1e3, d * 1e3, length * 1e3,
-                     "typical nominal, from memory"])
+        rows.append(
+            ["catheter", f"{g}G", od * 1e3, d * 1e3, length * 1e3, "typical nominal, from memory"]
+        )
     for g, (od, d_reg, d_thin) in cat.NEEDLE_GAUGES.items():
-        rows.append(["needle", f"{g}G regular", od * 1e3, d_reg * 1e3, 38.0,
-                     "ISO 9626 minimum bore, from memory"])
-        rows.append(["needle", f"{g}G thin", od * 1e3, d_thin * 1e3, 38.0,
-                     "ISO 9626 minimum bore, from memory"])
+        rows.append(
+            [
+                "needle",
+                f"{g}G regular",
+                od * 1e3,
+                d_reg * 1e3,
+                38.0,
+                "ISO 9626 minimum bore, from memory",
+            ]
+        )
+        rows.append(
+            [
+                "needle",
+                f"{g}G thin",
+                od * 1e3,
+                d_thin * 1e3,
+                38.0,
+                "ISO 9626 minimum bore, from memory",
+            ]
+        )
     for k, (d, length) in cat.EXTENSION_SETS.items():
         rows.append(["set", k, np.nan, d * 1e3, length * 1e3, "typical, from memory"])
     for k, d in cat.CIRCUIT_TUBING.items():
         rows.append(["tubing", f"{k} inch", np.nan, d * 1e3, np.nan, "exact by definition"])
-    frame = pd.DataFrame(rows, columns=["catalogue", "size", "outer diameter [mm]",
-                                        "inner diameter [mm]", "length [mm]", "source"])
+    frame = pd.DataFrame(
+        rows,
+        columns=[
+            "catalogue",
+            "size",
+            "outer diameter [mm]",
+            "inner diameter [mm]",
+            "length [mm]",
+            "source",
+        ],
+    )
     if kind:
         kinds = sorted(set(frame["catalogue"]))
         if kind not in kinds:
@@ -912,8 +1163,9 @@ def parts_table(kind=None):
 
             near = difflib.get_close_matches(kind, kinds, n=1)
             hint = f"; did you mean '{near[0]}'?" if near else ""
-            raise ScenarioError(f"no catalogue '{kind}'{hint} Catalogues: {', '.join(kinds)}",
-                                field="--kind")
+            raise ScenarioError(
+                f"no catalogue '{kind}'{hint} Catalogues: {', '.join(kinds)}", field="--kind"
+            )
         frame = frame[frame["catalogue"] == kind].reset_index(drop=True)
     return frame
 

@@ -208,23 +208,27 @@ def check_target(out: Path, force: bool):
     out = Path(out)
     check_output_folder(out, "pack")
     if out.is_symlink():
-        raise PackExistsError("is a symbolic link; rheoline does not replace links (nor "
-                              "what they point to); choose a new folder for --out",
-                              source=str(out))
+        raise PackExistsError(
+            "is a symbolic link; rheoline does not replace links (nor "
+            "what they point to); choose a new folder for --out",
+            source=str(out),
+        )
     if not out.exists():
         return
     if not out.is_dir():
-        raise PackExistsError("exists and is not a folder; choose another --out",
-                              source=str(out))
+        raise PackExistsError("exists and is not a folder; choose another --out", source=str(out))
     reason = _not_a_pack_reason(out)
     if reason:
-        raise PackExistsError(f"exists and is not a rheoline review pack ({reason}); it is "
-                              "left as it is, even with --force (which replaces only an "
-                              "earlier pack); choose a new folder for --out",
-                              source=str(out))
+        raise PackExistsError(
+            f"exists and is not a rheoline review pack ({reason}); it is "
+            "left as it is, even with --force (which replaces only an "
+            "earlier pack); choose a new folder for --out",
+            source=str(out),
+        )
     if not force:
-        raise PackExistsError("exists already; choose another folder or pass --force to "
-                              "replace it", source=str(out))
+        raise PackExistsError(
+            "exists already; choose another folder or pass --force to replace it", source=str(out)
+        )
 
 
 def is_review_pack(folder) -> bool:
@@ -260,8 +264,11 @@ def _read_manifest(folder: Path):
         return None, "manifest.json is not one of ours"
     listed = manifest.get("files_sha256")
     copy = manifest.get("scenario_copy")
-    if (not isinstance(listed, dict) or not isinstance(copy, str)
-            or not all(isinstance(k, str) and isinstance(v, str) for k, v in listed.items())):
+    if (
+        not isinstance(listed, dict)
+        or not isinstance(copy, str)
+        or not all(isinstance(k, str) and isinstance(v, str) for k, v in listed.items())
+    ):
         return None, "manifest.json does not list the pack's files"
     return manifest, ""
 
@@ -275,8 +282,11 @@ def _not_a_pack_reason(folder: Path) -> str:
     allowed = set(PACK_FILES) | {manifest["scenario_copy"]}
     expected = set(listed) | {"manifest.json"}
     copy = manifest["scenario_copy"]
-    if (not expected <= allowed or not copy.startswith("scenario-")
-            or re.search(r"[^A-Za-z0-9._-]", copy)):
+    if (
+        not expected <= allowed
+        or not copy.startswith("scenario-")
+        or re.search(r"[^A-Za-z0-9._-]", copy)
+    ):
         return "manifest.json lists files that are not a pack's"
     names = []
     with os.scandir(folder) as entries:
@@ -311,15 +321,17 @@ def _sha256_file(path: Path) -> str:
 def _write_all(run, folder: Path):
     meta = pack_metadata(run)
     sset = run.scenario_set
-    copy_name = "scenario-" + _safe_filename(sset.source if sset.source.endswith(
-        (".toml", ".json")) else "scenarios.toml")
+    copy_name = "scenario-" + _safe_filename(
+        sset.source if sset.source.endswith((".toml", ".json")) else "scenarios.toml"
+    )
     if sset.raw:
         (folder / copy_name).write_bytes(sset.raw)  # byte for byte, as given
     else:
         from rheoline.scenario.files import dump_scenarios
 
-        (folder / copy_name).write_text(sset.text or dump_scenarios(sset), encoding="utf-8",
-                                        newline="")
+        (folder / copy_name).write_text(
+            sset.text or dump_scenarios(sset), encoding="utf-8", newline=""
+        )
     _write_csv(run.table, folder / "results.csv")
     _write_csv(run.parts, folder / "parts.csv")
     _write_xlsx(run, folder / "results.xlsx", meta)
@@ -495,8 +507,10 @@ def _visible_format_characters(text: str) -> str:
     """
     import unicodedata
 
-    return "".join(f"[U+{ord(c):04X}]" if unicodedata.category(c) == "Cf"
-                   and c not in "\u200c\u200d" else c for c in text)
+    return "".join(
+        f"[U+{ord(c):04X}]" if unicodedata.category(c) == "Cf" and c not in "\u200c\u200d" else c
+        for c in text
+    )
 
 
 def _cell_html(v):
@@ -522,8 +536,12 @@ def frame_html(frame, max_rows: int = 2000) -> str:
     more = ""
     if len(frame) > max_rows:
         more = f"<p>{len(frame) - max_rows} more rows in results.csv.</p>"
-    return (f'<div class="scroll"><table><thead><tr>{head}</tr></thead><tbody>'
-            + "".join(rows) + "</tbody></table></div>" + more)
+    return (
+        f'<div class="scroll"><table><thead><tr>{head}</tr></thead><tbody>'
+        + "".join(rows)
+        + "</tbody></table></div>"
+        + more
+    )
 
 
 def _figures(run):
@@ -537,11 +555,22 @@ def _figures(run):
         return figs
     names = [_e(n) for n in table["case"]]
     flow = table["flow [mL/min]"]
-    fig = go.Figure(go.Bar(x=flow, y=names, orientation="h", marker_color="#2f6f8f",
-                           hovertemplate="%{y}<br>%{x:.4g} mL/min<extra></extra>"))
-    fig.update_layout(title="Flow per case [mL/min]", xaxis_title="flow [mL/min]",
-                      height=max(300, 22 * len(names) + 120), margin={"l": 10, "r": 10},
-                      yaxis={"autorange": "reversed", "automargin": True})
+    fig = go.Figure(
+        go.Bar(
+            x=flow,
+            y=names,
+            orientation="h",
+            marker_color="#2f6f8f",
+            hovertemplate="%{y}<br>%{x:.4g} mL/min<extra></extra>",
+        )
+    )
+    fig.update_layout(
+        title="Flow per case [mL/min]",
+        xaxis_title="flow [mL/min]",
+        height=max(300, 22 * len(names) + 120),
+        margin={"l": 10, "r": 10},
+        yaxis={"autorange": "reversed", "automargin": True},
+    )
     figs.append(fig)
     parts = run.parts
     if len(parts):
@@ -552,13 +581,22 @@ def _figures(run):
         keys = np.asarray(keys if len(keys) == len(parts) else parts["part"], dtype=object)
         for key in dict.fromkeys(keys):
             sub = parts[keys == key]
-            fig2.add_bar(x=sub["pressure drop [mmHg]"], y=[_e(c) for c in sub["case"]],
-                         orientation="h", name=_e(key), hovertext=[_e(p) for p in sub["part"]],
-                         hovertemplate="%{hovertext}<br>%{y}<br>%{x:.4g} mmHg<extra></extra>")
-        fig2.update_layout(barmode="stack", title="Pressure budget per part [mmHg]",
-                           xaxis_title="pressure drop [mmHg]",
-                           height=max(300, 22 * len(names) + 120), margin={"l": 10, "r": 10},
-                           yaxis={"autorange": "reversed", "automargin": True})
+            fig2.add_bar(
+                x=sub["pressure drop [mmHg]"],
+                y=[_e(c) for c in sub["case"]],
+                orientation="h",
+                name=_e(key),
+                hovertext=[_e(p) for p in sub["part"]],
+                hovertemplate="%{hovertext}<br>%{y}<br>%{x:.4g} mmHg<extra></extra>",
+            )
+        fig2.update_layout(
+            barmode="stack",
+            title="Pressure budget per part [mmHg]",
+            xaxis_title="pressure drop [mmHg]",
+            height=max(300, 22 * len(names) + 120),
+            margin={"l": 10, "r": 10},
+            yaxis={"autorange": "reversed", "automargin": True},
+        )
         figs.append(fig2)
     return figs
 
@@ -570,10 +608,17 @@ def _write_html(run, path: Path, meta):
     title = sset.title or "rheoline review pack"
     charts = []
     for i, fig in enumerate(_figures(run)):
-        charts.append(pio.to_html(fig, include_plotlyjs=(i == 0), full_html=False,
-                                  config={"displaylogo": False, "responsive": True}))
-    meta_rows = "".join(f"<tr><td>{_e(k)}</td><td>{_e(v)}</td></tr>" for k, v in meta.items()
-                        if k != "caution")
+        charts.append(
+            pio.to_html(
+                fig,
+                include_plotlyjs=(i == 0),
+                full_html=False,
+                config={"displaylogo": False, "responsive": True},
+            )
+        )
+    meta_rows = "".join(
+        f"<tr><td>{_e(k)}</td><td>{_e(v)}</td></tr>" for k, v in meta.items() if k != "caution"
+    )
     cautions = "".join(f"<li>{_e(c)}</li>" for c in cautions_list(run)[1:])
     text = sset.text
     if not text:
@@ -582,8 +627,15 @@ def _write_html(run, path: Path, meta):
         text = dump_scenarios(sset)
     notes = f"<p>{_e(sset.notes)}</p>" if sset.notes else ""
     run_notes = getattr(run, "warnings", ())
-    notes_html = ("<h3>Notes from the models</h3><ul>"
-                  + "".join(f"<li>{_e(w)}</li>" for w in run_notes) + "</ul>") if run_notes else ""
+    notes_html = (
+        (
+            "<h3>Notes from the models</h3><ul>"
+            + "".join(f"<li>{_e(w)}</li>" for w in run_notes)
+            + "</ul>"
+        )
+        if run_notes
+        else ""
+    )
     body = f"""<!DOCTYPE html>
 <html lang="en"><head><meta charset="utf-8">
 <meta name="viewport" content="width=device-width, initial-scale=1">
@@ -600,7 +652,7 @@ def _write_html(run, path: Path, meta):
 {frame_html(run.table)}
 </details>
 <h2>Charts</h2>
-{''.join(charts)}
+{"".join(charts)}
 <h2>Parts of each line</h2>
 {frame_html(run.parts)}
 <h2>Scenario inputs</h2>
@@ -610,9 +662,9 @@ def _write_html(run, path: Path, meta):
 <h2>Cautions</h2>
 <ul>{cautions}</ul>
 <h2>Scenario file as given</h2>
-<p>{_e(sset.source)}, SHA-256 {_e(meta['input_sha256'])}</p>
+<p>{_e(sset.source)}, SHA-256 {_e(meta["input_sha256"])}</p>
 <pre>{_e(_visible_format_characters(text))}</pre>
-<p>rheoline {_e(meta['version'])}, {_e(meta['created_utc'])}. {_e(_caution())}</p>
+<p>rheoline {_e(meta["version"])}, {_e(meta["created_utc"])}. {_e(_caution())}</p>
 </body></html>
 """
     path.write_text(body, encoding="utf-8")

@@ -141,14 +141,18 @@ def check_output_folder(path: Path, kind: str = "file"):
     parent = path.parent if str(path.parent) else Path(".")
     if kind == "file" and not parent.is_dir():
         why = "is not a folder" if parent.exists() else "does not exist"
-        raise OutputError(f"the folder {str(parent)!r} {why}; choose an existing folder",
-                          source=str(path))
+        raise OutputError(
+            f"the folder {str(parent)!r} {why}; choose an existing folder", source=str(path)
+        )
     for folder in (parent, *parent.parents):
         if folder.exists():
             if not folder.is_dir():
-                raise OutputError(f"{str(folder)!r} is a file, not a folder; choose another "
-                                  "place", source=str(path))
+                raise OutputError(
+                    f"{str(folder)!r} is a file, not a folder; choose another place",
+                    source=str(path),
+                )
             return
+
 
 #: Largest scenario file read [bytes].
 MAX_FILE_BYTES = 1_000_000
@@ -224,7 +228,9 @@ def _spec(kind, unit=None, low=None, high=None, sweep=True, help="", element_kin
 
 _BAR = 1e5
 TOP_FIELDS = {
-    "format_version": _spec("number", sweep=False, help=f"the file format version ({FORMAT_VERSION})"),
+    "format_version": _spec(
+        "number", sweep=False, help=f"the file format version ({FORMAT_VERSION})"
+    ),
     "title": _spec("text", sweep=False, help="a title for the scenario set"),
     "notes": _spec("notes", sweep=False, help="free text shown in reports"),
     "scenario": _spec("scenarios", sweep=False, help="the [[scenario]] tables"),
@@ -234,95 +240,205 @@ SCENARIO_FIELDS = {
     "name": _spec("text", sweep=False, help="a unique name for the scenario"),
     "notes": _spec("notes", sweep=False, help="free text shown in reports"),
     "fluid": _spec("choice", help="a fluid name from `rheoline fluids`"),
-    "temperature": _spec("temperature", "degC", 0.0, 60.0,
-                         help="fluid temperature (22 degC when not given)"),
-    "hematocrit": _spec("fraction", None, 0.0, 0.8, help="red-cell volume fraction, blood fluids only"),
-    "mass_fraction": _spec("fraction", None, 0.0, 1.0,
-                           help="solute mass fraction, for mixtures such as glycerol-water"),
-    "head": _spec("length", "m", 0.0, 10.0,
-                  help="height of the fluid surface above the outlet (gravity drive)"),
-    "source_pressure": _spec("pressure", "mmHg", 0.0, 30 * _BAR,
-                             help="pressure applied at the source (bag, infuser), above the head"),
-    "back_pressure": _spec("pressure", "mmHg", -200 * MMHG, 1000 * MMHG,
-                           help="pressure at the outlet (vein, beaker)"),
-    "flow": _spec("flow", "mL/min", 1e-12, 20e-3 / 60,
-                  help="prescribed flow (pump): solve for the pressure instead"),
-    "pressure_limit": _spec("pressure", "mmHg", 1.0, 60 * _BAR,
-                            help="highest source pressure allowed (part rating, pump limit); with flow"),
+    "temperature": _spec(
+        "temperature", "degC", 0.0, 60.0, help="fluid temperature (22 degC when not given)"
+    ),
+    "hematocrit": _spec(
+        "fraction", None, 0.0, 0.8, help="red-cell volume fraction, blood fluids only"
+    ),
+    "mass_fraction": _spec(
+        "fraction", None, 0.0, 1.0, help="solute mass fraction, for mixtures such as glycerol-water"
+    ),
+    "head": _spec(
+        "length",
+        "m",
+        0.0,
+        10.0,
+        help="height of the fluid surface above the outlet (gravity drive)",
+    ),
+    "source_pressure": _spec(
+        "pressure",
+        "mmHg",
+        0.0,
+        30 * _BAR,
+        help="pressure applied at the source (bag, infuser), above the head",
+    ),
+    "back_pressure": _spec(
+        "pressure", "mmHg", -200 * MMHG, 1000 * MMHG, help="pressure at the outlet (vein, beaker)"
+    ),
+    "flow": _spec(
+        "flow",
+        "mL/min",
+        1e-12,
+        20e-3 / 60,
+        help="prescribed flow (pump): solve for the pressure instead",
+    ),
+    "pressure_limit": _spec(
+        "pressure",
+        "mmHg",
+        1.0,
+        60 * _BAR,
+        help="highest source pressure allowed (part rating, pump limit); with flow",
+    ),
     "volume": _spec("volume", "mL", 1e-9, 0.05, help="volume to deliver, for the delivery time"),
-    "head_when_empty": _spec("length", "m", 0.0, 10.0,
-                             help="head when the bag is empty (falling-head delivery time)"),
-    "source_pressure_when_empty": _spec("pressure", "mmHg", 0.0, 30 * _BAR,
-                                        help="source pressure when the volume has gone "
-                                        "(a cuff that loosens as the bag shrinks)"),
-    "pressure_time_constant": _spec("time", "s", 1e-3, 1e7,
-                                    help="time constant of a cuff pressure decaying in time"),
-    "vein_diameter": _spec("length", "mm", 5e-4, 0.03,
-                           help="inner diameter of the vein the catheter sits in (site context)"),
-    "tolerance": _spec("tolerance", sweep=False, help="tolerances: temperature, hematocrit, "
-                       "viscosity, distribution, samples, seed"),
+    "head_when_empty": _spec(
+        "length", "m", 0.0, 10.0, help="head when the bag is empty (falling-head delivery time)"
+    ),
+    "source_pressure_when_empty": _spec(
+        "pressure",
+        "mmHg",
+        0.0,
+        30 * _BAR,
+        help="source pressure when the volume has gone (a cuff that loosens as the bag shrinks)",
+    ),
+    "pressure_time_constant": _spec(
+        "time", "s", 1e-3, 1e7, help="time constant of a cuff pressure decaying in time"
+    ),
+    "vein_diameter": _spec(
+        "length",
+        "mm",
+        5e-4,
+        0.03,
+        help="inner diameter of the vein the catheter sits in (site context)",
+    ),
+    "tolerance": _spec(
+        "tolerance",
+        sweep=False,
+        help="tolerances: temperature, hematocrit, viscosity, distribution, samples, seed",
+    ),
     "part": _spec("parts", sweep=False, help="the [[scenario.part]] tables, source to outlet"),
 }
 
 SCENARIO_TOLERANCE_FIELDS = {
-    "temperature": _spec("temperature_delta", "degC", 0.0, 20.0, sweep=False,
-                         help="half-width of the temperature spread, e.g. '2 degC'"),
-    "hematocrit": _spec("fraction", None, 0.0, 0.3, sweep=False,
-                        help="half-width of the hematocrit spread, a fraction such as 0.03"),
-    "viscosity": _spec("relative", None, 0.0, 0.5, sweep=False,
-                       help="relative half-width of the viscosity spread, e.g. '5 %'"),
-    "distribution": _spec("choice", sweep=False, help="'uniform' (default: the tolerance is a "
-                          "limit) or 'normal' (the tolerance is two standard deviations)"),
-    "samples": _spec("integer", None, 100, 100_000, sweep=False,
-                     help="Monte Carlo samples (2000 when not given)"),
-    "seed": _spec("integer", None, 0, 2**32 - 1, sweep=False, help="random seed (0 when not given)"),
+    "temperature": _spec(
+        "temperature_delta",
+        "degC",
+        0.0,
+        20.0,
+        sweep=False,
+        help="half-width of the temperature spread, e.g. '2 degC'",
+    ),
+    "hematocrit": _spec(
+        "fraction",
+        None,
+        0.0,
+        0.3,
+        sweep=False,
+        help="half-width of the hematocrit spread, a fraction such as 0.03",
+    ),
+    "viscosity": _spec(
+        "relative",
+        None,
+        0.0,
+        0.5,
+        sweep=False,
+        help="relative half-width of the viscosity spread, e.g. '5 %'",
+    ),
+    "distribution": _spec(
+        "choice",
+        sweep=False,
+        help="'uniform' (default: the tolerance is a "
+        "limit) or 'normal' (the tolerance is two standard deviations)",
+    ),
+    "samples": _spec(
+        "integer", None, 100, 100_000, sweep=False, help="Monte Carlo samples (2000 when not given)"
+    ),
+    "seed": _spec(
+        "integer", None, 0, 2**32 - 1, sweep=False, help="random seed (0 when not given)"
+    ),
 }
 
 _COMMON_PART = {
     "type": _spec("text", sweep=False, help="the kind of part"),
     "label": _spec("text", sweep=False, help="a short name shown in tables"),
-    "tolerance": _spec("part_tolerance", sweep=False,
-                       help="tolerances of this part: inner_diameter, length"),
+    "tolerance": _spec(
+        "part_tolerance", sweep=False, help="tolerances of this part: inner_diameter, length"
+    ),
 }
 _ID = _spec("length", "mm", 1e-5, 0.06, help="inner diameter (bore) of the lumen")
 _LEN = _spec("length", "m", 1e-4, 30.0, help="length of the lumen")
 
 PART_FIELDS = {
-    "tube": {**_COMMON_PART, "inner_diameter": _ID, "length": _LEN,
-             "roughness": _spec("length", "mm", 0.0, 1e-3, help="absolute wall roughness")},
-    "catheter": {**_COMMON_PART,
-                 "gauge": _spec("gauge", None, 10, 34, help="nominal catalogue gauge, e.g. 18"),
-                 "inner_diameter": _ID,
-                 "length": _spec("length", "m", 1e-3, 1.5, help="catheter length")},
-    "needle": {**_COMMON_PART,
-               "gauge": _spec("gauge", None, 7, 34, help="needle gauge (ISO 9626)"),
-               "wall": _spec("choice", help="wall type (ISO 9626): " + ", ".join(catalogue.NEEDLE_WALLS)),
-               "length": _spec("length", "m", 1e-3, 0.5, help="needle length")},
-    "cannula": {**_COMMON_PART,
-                "french": _spec("number", None, 1.0, 40.0, help="outer size in French (1 Fr = 1/3 mm)"),
-                "inner_diameter": _ID,
-                "wall_thickness": _spec("length", "mm", 1e-5, 5e-3, help="cannula wall thickness"),
-                "length": _spec("length", "m", 1e-3, 2.0, help="cannula length")},
-    "set": {**_COMMON_PART,
-            "kind": _spec("choice", help="a set from the catalogue: "
-                          + ", ".join(catalogue.EXTENSION_SETS)),
-            "inner_diameter": _ID, "length": _LEN},
-    "fitting": {**_COMMON_PART,
-                "k": _spec("number", None, 0.0, 1000.0, help="loss coefficient K [-]"),
-                "equivalent_length": _spec("length", "m", 1e-5, 100.0,
-                                           help="or: equivalent length of straight lumen"),
-                "inner_diameter": _spec("length", "mm", 1e-5, 0.06,
-                                        help="bore the K or equivalent length refers to")},
-    "measured": {**_COMMON_PART,
-                 "flows": _spec("quantity_list", "mL/min", 1e-12, 20e-3 / 60, sweep=False,
-                                help="bench flows", element_kind="flow"),
-                 "pressure_drops": _spec("quantity_list", "mmHg", 0.0, 60 * _BAR, sweep=False,
-                                         help="bench pressure drops at those flows",
-                                         element_kind="pressure"),
-                 "test_viscosity": _spec("viscosity", "cP", 1e-5, 10.0, sweep=False,
-                                         help="viscosity of the bench fluid (rescales the fit)"),
-                 "test_density": _spec("density", "kg/m^3", 100.0, 5000.0, sweep=False,
-                                       help="density of the bench fluid (rescales the fit)")},
+    "tube": {
+        **_COMMON_PART,
+        "inner_diameter": _ID,
+        "length": _LEN,
+        "roughness": _spec("length", "mm", 0.0, 1e-3, help="absolute wall roughness"),
+    },
+    "catheter": {
+        **_COMMON_PART,
+        "gauge": _spec("gauge", None, 10, 34, help="nominal catalogue gauge, e.g. 18"),
+        "inner_diameter": _ID,
+        "length": _spec("length", "m", 1e-3, 1.5, help="catheter length"),
+    },
+    "needle": {
+        **_COMMON_PART,
+        "gauge": _spec("gauge", None, 7, 34, help="needle gauge (ISO 9626)"),
+        "wall": _spec("choice", help="wall type (ISO 9626): " + ", ".join(catalogue.NEEDLE_WALLS)),
+        "length": _spec("length", "m", 1e-3, 0.5, help="needle length"),
+    },
+    "cannula": {
+        **_COMMON_PART,
+        "french": _spec("number", None, 1.0, 40.0, help="outer size in French (1 Fr = 1/3 mm)"),
+        "inner_diameter": _ID,
+        "wall_thickness": _spec("length", "mm", 1e-5, 5e-3, help="cannula wall thickness"),
+        "length": _spec("length", "m", 1e-3, 2.0, help="cannula length"),
+    },
+    "set": {
+        **_COMMON_PART,
+        "kind": _spec(
+            "choice", help="a set from the catalogue: " + ", ".join(catalogue.EXTENSION_SETS)
+        ),
+        "inner_diameter": _ID,
+        "length": _LEN,
+    },
+    "fitting": {
+        **_COMMON_PART,
+        "k": _spec("number", None, 0.0, 1000.0, help="loss coefficient K [-]"),
+        "equivalent_length": _spec(
+            "length", "m", 1e-5, 100.0, help="or: equivalent length of straight lumen"
+        ),
+        "inner_diameter": _spec(
+            "length", "mm", 1e-5, 0.06, help="bore the K or equivalent length refers to"
+        ),
+    },
+    "measured": {
+        **_COMMON_PART,
+        "flows": _spec(
+            "quantity_list",
+            "mL/min",
+            1e-12,
+            20e-3 / 60,
+            sweep=False,
+            help="bench flows",
+            element_kind="flow",
+        ),
+        "pressure_drops": _spec(
+            "quantity_list",
+            "mmHg",
+            0.0,
+            60 * _BAR,
+            sweep=False,
+            help="bench pressure drops at those flows",
+            element_kind="pressure",
+        ),
+        "test_viscosity": _spec(
+            "viscosity",
+            "cP",
+            1e-5,
+            10.0,
+            sweep=False,
+            help="viscosity of the bench fluid (rescales the fit)",
+        ),
+        "test_density": _spec(
+            "density",
+            "kg/m^3",
+            100.0,
+            5000.0,
+            sweep=False,
+            help="density of the bench fluid (rescales the fit)",
+        ),
+    },
 }
 #: The part types a scenario file may name.
 PART_TYPES = tuple(PART_FIELDS)
@@ -337,12 +453,23 @@ _REQUIRED_PART = {
 }
 
 PART_TOLERANCE_FIELDS = {
-    "inner_diameter": _spec("tolerance_value", "mm", 0.0, None, sweep=False,
-                            help="half-width of the bore spread: '3 %' or '0.02 mm'"),
-    "length": _spec("tolerance_value", "m", 0.0, None, sweep=False,
-                    help="half-width of the length spread: '2 %' or '5 mm'"),
+    "inner_diameter": _spec(
+        "tolerance_value",
+        "mm",
+        0.0,
+        None,
+        sweep=False,
+        help="half-width of the bore spread: '3 %' or '0.02 mm'",
+    ),
+    "length": _spec(
+        "tolerance_value",
+        "m",
+        0.0,
+        None,
+        sweep=False,
+        help="half-width of the length spread: '2 %' or '5 mm'",
+    ),
 }
-
 
 
 # --------------------------------------------------------------------------- data classes
@@ -402,7 +529,7 @@ class Scenario:
 
     @property
     def mode(self):
-        """"flow" when a flow is prescribed (solve the pressure), else "drive"."""
+        """ "flow" when a flow is prescribed (solve the pressure), else "drive"."""
         return "flow" if "flow" in self.values else "drive"
 
 
@@ -446,17 +573,24 @@ def load_scenarios(path) -> ScenarioSet:
     try:
         size = path.stat().st_size
     except OSError as exc:
-        raise ScenarioError(f"cannot read the file ({exc.strerror or exc})", source=source) from None
+        raise ScenarioError(
+            f"cannot read the file ({exc.strerror or exc})", source=source
+        ) from None
     if not path.is_file():
         raise ScenarioError("is not a regular file", source=source)
     if size > MAX_FILE_BYTES:
-        raise ScenarioError(f"file is {size} bytes, above the limit of {MAX_FILE_BYTES} bytes; "
-                            "split it into smaller files", source=source)
+        raise ScenarioError(
+            f"file is {size} bytes, above the limit of {MAX_FILE_BYTES} bytes; "
+            "split it into smaller files",
+            source=source,
+        )
     try:
         with path.open("rb") as fh:
             data = fh.read(MAX_FILE_BYTES + 1)
     except OSError as exc:
-        raise ScenarioError(f"cannot read the file ({exc.strerror or exc})", source=source) from None
+        raise ScenarioError(
+            f"cannot read the file ({exc.strerror or exc})", source=source
+        ) from None
     fmt = "json" if path.suffix.lower() == ".json" else "toml"
     return loads_scenarios(data, source=source, fmt=fmt)
 
@@ -470,8 +604,11 @@ def _json_object(pairs, source):
         if key in out:
             name = out.get("name", dict(pairs).get("name"))
             where = f" (in the object named {_shown(name)!r})" if isinstance(name, str) else ""
-            raise ScenarioError(f"key {_shown(key)!r} is given more than once in one JSON "
-                                f"object{where}; keep one value", source=source)
+            raise ScenarioError(
+                f"key {_shown(key)!r} is given more than once in one JSON "
+                f"object{where}; keep one value",
+                source=source,
+            )
         out[key] = value
     return out
 
@@ -484,16 +621,20 @@ def loads_scenarios(text, source: str = "<string>", fmt: str = "toml") -> Scenar
     raw = text if isinstance(text, bytes) else text.encode("utf-8")
     if isinstance(text, bytes):
         if len(text) > MAX_FILE_BYTES:
-            raise ScenarioError(f"text is {len(text)} bytes, above the limit of {MAX_FILE_BYTES}",
-                                source=source)
+            raise ScenarioError(
+                f"text is {len(text)} bytes, above the limit of {MAX_FILE_BYTES}", source=source
+            )
         try:
             text = text.decode("utf-8-sig")
         except UnicodeDecodeError as exc:
-            raise ScenarioError(f"is not UTF-8 text (bad byte at position {exc.start}); save it "
-                                "as UTF-8", source=source) from None
+            raise ScenarioError(
+                f"is not UTF-8 text (bad byte at position {exc.start}); save it as UTF-8",
+                source=source,
+            ) from None
     if len(text) > MAX_FILE_BYTES:
-        raise ScenarioError(f"text is {len(text)} characters, above the limit of {MAX_FILE_BYTES}",
-                            source=source)
+        raise ScenarioError(
+            f"text is {len(text)} characters, above the limit of {MAX_FILE_BYTES}", source=source
+        )
     if fmt not in ("toml", "json"):
         raise ScenarioError(f"unknown format {fmt!r}; use 'toml' or 'json'", source=source)
     try:
@@ -506,70 +647,103 @@ def loads_scenarios(text, source: str = "<string>", fmt: str = "toml") -> Scenar
     except tomllib.TOMLDecodeError as exc:
         raise ScenarioError(f"is not valid TOML: {exc}", source=source) from None
     except json.JSONDecodeError as exc:
-        raise ScenarioError(f"is not valid JSON: {exc.msg} at line {exc.lineno} column "
-                            f"{exc.colno}", source=source) from None
+        raise ScenarioError(
+            f"is not valid JSON: {exc.msg} at line {exc.lineno} column {exc.colno}", source=source
+        ) from None
     except RecursionError:
-        raise ScenarioError(f"is nested too deeply (the limit is {MAX_DEPTH} levels)",
-                            source=source) from None
+        raise ScenarioError(
+            f"is nested too deeply (the limit is {MAX_DEPTH} levels)", source=source
+        ) from None
     except ValueError as exc:  # e.g. integers longer than Python's digit limit
         raise ScenarioError(f"cannot be parsed as {fmt.upper()}: {exc}", source=source) from None
     sset = parse_scenarios(data, source=source)
-    return ScenarioSet(sset.scenarios, sset.title, sset.notes, source, text,
-                       hashlib.sha256(raw).hexdigest(), raw)
+    return ScenarioSet(
+        sset.scenarios, sset.title, sset.notes, source, text, hashlib.sha256(raw).hexdigest(), raw
+    )
 
 
 def parse_scenarios(data, source: str = "<dict>") -> ScenarioSet:
     """Validate plain data (as read from TOML or JSON) into a :class:`ScenarioSet`."""
     _check_depth(data, source)
     if not isinstance(data, dict):
-        raise ScenarioError(f"the top level must be a table of keys, got {_type(data)}",
-                            source=source)
+        raise ScenarioError(
+            f"the top level must be a table of keys, got {_type(data)}", source=source
+        )
     _unknown_keys(data, TOP_FIELDS, source=source, scenario=None, prefix="")
     if "format_version" not in data:
-        raise ScenarioError(f"add 'format_version = {FORMAT_VERSION}' at the top of the file",
-                            source=source, field="format_version")
+        raise ScenarioError(
+            f"add 'format_version = {FORMAT_VERSION}' at the top of the file",
+            source=source,
+            field="format_version",
+        )
     version = data["format_version"]
     if isinstance(version, bool) or version != FORMAT_VERSION:
-        raise ScenarioError(f"format version {version!r} is not supported; this rheoline reads "
-                            f"format_version = {FORMAT_VERSION}", source=source,
-                            field="format_version")
+        raise ScenarioError(
+            f"format version {version!r} is not supported; this rheoline reads "
+            f"format_version = {FORMAT_VERSION}",
+            source=source,
+            field="format_version",
+        )
     title = _text(data.get("title", ""), source, None, "title", MAX_NAME_CHARS)
     notes = _text(data.get("notes", ""), source, None, "notes", 20 * MAX_NAME_CHARS, notes=True)
     raw_list = data.get("scenario")
     if raw_list is None:
-        raise ScenarioError("no scenarios; add at least one [[scenario]] table", source=source,
-                            field="scenario")
+        raise ScenarioError(
+            "no scenarios; add at least one [[scenario]] table", source=source, field="scenario"
+        )
     if not isinstance(raw_list, list) or not raw_list:
-        raise ScenarioError(f"must be a non-empty list of [[scenario]] tables, got {_type(raw_list)}",
-                            source=source, field="scenario")
+        raise ScenarioError(
+            f"must be a non-empty list of [[scenario]] tables, got {_type(raw_list)}",
+            source=source,
+            field="scenario",
+        )
     if len(raw_list) > MAX_SCENARIOS:
-        raise ScenarioError(f"{len(raw_list)} scenarios is above the limit of {MAX_SCENARIOS}; "
-                            "split the file", source=source, field="scenario")
+        raise ScenarioError(
+            f"{len(raw_list)} scenarios is above the limit of {MAX_SCENARIOS}; split the file",
+            source=source,
+            field="scenario",
+        )
     scenarios, names, total, work, tolerance_solves = [], {}, 0, 0, 0
     for i, raw in enumerate(raw_list, start=1):
         sc = _parse_scenario(raw, i, source)
         if sc.name in names:
-            raise ScenarioError(f"the name {sc.name!r} is already used by scenario #{names[sc.name]}; "
-                                "names must be unique", source=source, scenario=f"#{i}",
-                                field="name")
+            raise ScenarioError(
+                f"the name {sc.name!r} is already used by scenario #{names[sc.name]}; "
+                "names must be unique",
+                source=source,
+                scenario=f"#{i}",
+                field="name",
+            )
         names[sc.name] = i
         total += sc.n_points
         if total > MAX_TOTAL_POINTS:
-            raise ScenarioError(f"the file expands to more than {MAX_TOTAL_POINTS} sweep points; "
-                                "sweep fewer values", source=source, scenario=repr(sc.name),
-                                field="scenario")
+            raise ScenarioError(
+                f"the file expands to more than {MAX_TOTAL_POINTS} sweep points; "
+                "sweep fewer values",
+                source=source,
+                scenario=repr(sc.name),
+                field="scenario",
+            )
         work += sc.n_points * len(sc.parts)
         if work > MAX_PART_POINTS:
-            raise ScenarioError(f"the file asks for more than {MAX_PART_POINTS} part solves "
-                                "(sweep points x parts, all scenarios together); sweep fewer "
-                                "values or split the file", source=source,
-                                scenario=repr(sc.name), field="scenario")
+            raise ScenarioError(
+                f"the file asks for more than {MAX_PART_POINTS} part solves "
+                "(sweep points x parts, all scenarios together); sweep fewer "
+                "values or split the file",
+                source=source,
+                scenario=repr(sc.name),
+                field="scenario",
+            )
         tolerance_solves += _tolerance_solves(sc)
         if tolerance_solves > MAX_FILE_TOLERANCE_SOLVES:
-            raise ScenarioError(f"the file asks for more than {MAX_FILE_TOLERANCE_SOLVES} "
-                                "tolerance solves (samples x sweep points, all scenarios "
-                                "together); use fewer samples or split the file",
-                                source=source, scenario=repr(sc.name), field="tolerance.samples")
+            raise ScenarioError(
+                f"the file asks for more than {MAX_FILE_TOLERANCE_SOLVES} "
+                "tolerance solves (samples x sweep points, all scenarios "
+                "together); use fewer samples or split the file",
+                source=source,
+                scenario=repr(sc.name),
+                field="tolerance.samples",
+            )
         scenarios.append(sc)
     return ScenarioSet(tuple(scenarios), title, notes, source)
 
@@ -586,13 +760,17 @@ def _check_depth(data, source):
     while stack:
         node, depth, path = stack.pop()
         if depth > MAX_DEPTH:
-            raise ScenarioError(f"is nested {depth} levels deep, above the limit of {MAX_DEPTH}",
-                                source=source, field=path or None)
+            raise ScenarioError(
+                f"is nested {depth} levels deep, above the limit of {MAX_DEPTH}",
+                source=source,
+                field=path or None,
+            )
         if isinstance(node, dict):
             for k, v in node.items():
                 if not isinstance(k, str):
-                    raise ScenarioError(f"keys must be text, got {k!r}", source=source,
-                                        field=path or None)
+                    raise ScenarioError(
+                        f"keys must be text, got {k!r}", source=source, field=path or None
+                    )
                 if isinstance(v, (dict, list)):
                     stack.append((v, depth + 1, f"{path}.{k}" if path else k))
         elif isinstance(node, list):
@@ -602,8 +780,14 @@ def _check_depth(data, source):
 
 
 def _type(v):
-    return {dict: "a table", list: "a list", str: "text", bool: "true/false", int: "an integer",
-            float: "a number"}.get(type(v), type(v).__name__)
+    return {
+        dict: "a table",
+        list: "a list",
+        str: "text",
+        bool: "true/false",
+        int: "an integer",
+        float: "a number",
+    }.get(type(v), type(v).__name__)
 
 
 def _unknown_keys(table, allowed, source, scenario, prefix, what="key"):
@@ -611,8 +795,12 @@ def _unknown_keys(table, allowed, source, scenario, prefix, what="key"):
         if key not in allowed:
             near = difflib.get_close_matches(key, list(allowed), n=1, cutoff=0.6)
             hint = f"; did you mean '{near[0]}'?" if near else ""
-            raise ScenarioError(f"unknown {what} '{_shown(key)}'{hint} Allowed: {', '.join(allowed)}",
-                                source=source, scenario=scenario, field=f"{prefix}{_shown(key)}")
+            raise ScenarioError(
+                f"unknown {what} '{_shown(key)}'{hint} Allowed: {', '.join(allowed)}",
+                source=source,
+                scenario=scenario,
+                field=f"{prefix}{_shown(key)}",
+            )
 
 
 def _shown(text, limit=40):
@@ -623,44 +811,73 @@ def _shown(text, limit=40):
 
 def _text(value, source, scenario, path, limit, notes=False):
     if not isinstance(value, str):
-        raise ScenarioError(f"must be text in quotes, got {_type(value)}", source=source,
-                            scenario=scenario, field=path)
+        raise ScenarioError(
+            f"must be text in quotes, got {_type(value)}",
+            source=source,
+            scenario=scenario,
+            field=path,
+        )
     if len(value) > limit:
-        raise ScenarioError(f"is {len(value)} characters long, above the limit of {limit}",
-                            source=source, scenario=scenario, field=path)
+        raise ScenarioError(
+            f"is {len(value)} characters long, above the limit of {limit}",
+            source=source,
+            scenario=scenario,
+            field=path,
+        )
     bad = _CONTROL.search(value.replace("\n", "").replace("\t", "") if notes else value)
     if bad:
-        raise ScenarioError(f"contains the control character U+{ord(bad.group()):04X}; use "
-                            "printable characters only", source=source, scenario=scenario,
-                            field=path)
-    hidden = next((c for c in value if c not in _FORMAT_KEPT
-                   and unicodedata.category(c) == "Cf"), None)
+        raise ScenarioError(
+            f"contains the control character U+{ord(bad.group()):04X}; use "
+            "printable characters only",
+            source=source,
+            scenario=scenario,
+            field=path,
+        )
+    hidden = next(
+        (c for c in value if c not in _FORMAT_KEPT and unicodedata.category(c) == "Cf"), None
+    )
     if hidden is not None:
         what = unicodedata.name(hidden, "a format character")
-        raise ScenarioError(f"contains the invisible character U+{ord(hidden):04X} ({what}), "
-                            "which can make the text display as something else; remove it",
-                            source=source, scenario=scenario, field=path)
+        raise ScenarioError(
+            f"contains the invisible character U+{ord(hidden):04X} ({what}), "
+            "which can make the text display as something else; remove it",
+            source=source,
+            scenario=scenario,
+            field=path,
+        )
     return value
 
 
 def _parse_scenario(raw, index, source):
     where = f"#{index}"
     if not isinstance(raw, dict):
-        raise ScenarioError(f"each [[scenario]] must be a table, got {_type(raw)}", source=source,
-                            scenario=where, field="scenario")
+        raise ScenarioError(
+            f"each [[scenario]] must be a table, got {_type(raw)}",
+            source=source,
+            scenario=where,
+            field="scenario",
+        )
     if "name" in raw and isinstance(raw["name"], str):
         where = repr(_shown(raw["name"]))
     _unknown_keys(raw, SCENARIO_FIELDS, source, where, "")
     if "name" not in raw:
-        raise ScenarioError("is missing; give each scenario a unique name = \"...\"",
-                            source=source, scenario=where, field="name")
+        raise ScenarioError(
+            'is missing; give each scenario a unique name = "..."',
+            source=source,
+            scenario=where,
+            field="name",
+        )
     name = _text(raw["name"], source, where, "name", MAX_NAME_CHARS)
     if not name.strip():
         raise ScenarioError("must not be empty", source=source, scenario=where, field="name")
     notes = _text(raw.get("notes", ""), source, where, "notes", 20 * MAX_NAME_CHARS, notes=True)
     if "fluid" not in raw:
-        raise ScenarioError("is missing; name a fluid from `rheoline fluids`, e.g. "
-                            "fluid = \"saline-0.9\"", source=source, scenario=where, field="fluid")
+        raise ScenarioError(
+            'is missing; name a fluid from `rheoline fluids`, e.g. fluid = "saline-0.9"',
+            source=source,
+            scenario=where,
+            field="fluid",
+        )
     values = {}
     for key, spec in SCENARIO_FIELDS.items():
         if key in raw and spec.kind not in ("text", "notes", "tolerance", "parts"):
@@ -669,91 +886,162 @@ def _parse_scenario(raw, index, source):
         values["temperature"] = 22.0
     drive = [k for k in ("head", "source_pressure") if k in values]
     if "flow" in values and drive:
-        raise ScenarioError(f"give either flow (a pump: the pressure is solved) or "
-                            f"{' and '.join(drive)} (a gravity or pressure drive: the flow is "
-                            "solved), not both", source=source, scenario=where, field="flow")
+        raise ScenarioError(
+            f"give either flow (a pump: the pressure is solved) or "
+            f"{' and '.join(drive)} (a gravity or pressure drive: the flow is "
+            "solved), not both",
+            source=source,
+            scenario=where,
+            field="flow",
+        )
     if "flow" not in values and not drive:
-        raise ScenarioError("no drive: give head (gravity), source_pressure (bag, infuser) or "
-                            "flow (pump)", source=source, scenario=where, field="head")
+        raise ScenarioError(
+            "no drive: give head (gravity), source_pressure (bag, infuser) or flow (pump)",
+            source=source,
+            scenario=where,
+            field="head",
+        )
     if "pressure_limit" in values and "flow" not in values:
-        raise ScenarioError("applies to a prescribed flow only; add flow = \"...\" or remove it",
-                            source=source, scenario=where, field="pressure_limit")
+        raise ScenarioError(
+            'applies to a prescribed flow only; add flow = "..." or remove it',
+            source=source,
+            scenario=where,
+            field="pressure_limit",
+        )
     if "head_when_empty" in values and "volume" not in values:
-        raise ScenarioError("needs volume = \"...\" (the volume to deliver)", source=source,
-                            scenario=where, field="head_when_empty")
+        raise ScenarioError(
+            'needs volume = "..." (the volume to deliver)',
+            source=source,
+            scenario=where,
+            field="head_when_empty",
+        )
     decay = [k for k in ("source_pressure_when_empty", "pressure_time_constant") if k in values]
     if decay and "volume" not in values:
-        raise ScenarioError("needs volume = \"...\" (the volume to deliver)", source=source,
-                            scenario=where, field=decay[0])
+        raise ScenarioError(
+            'needs volume = "..." (the volume to deliver)',
+            source=source,
+            scenario=where,
+            field=decay[0],
+        )
     if decay and "source_pressure" not in values:
-        raise ScenarioError("needs source_pressure = \"...\" (the cuff pressure at the start)",
-                            source=source, scenario=where, field=decay[0])
+        raise ScenarioError(
+            'needs source_pressure = "..." (the cuff pressure at the start)',
+            source=source,
+            scenario=where,
+            field=decay[0],
+        )
     if len(decay) == 2:
-        raise ScenarioError("give one decay law: source_pressure_when_empty (with the volume) "
-                            "or pressure_time_constant (in time), not both", source=source,
-                            scenario=where, field=decay[1])
+        raise ScenarioError(
+            "give one decay law: source_pressure_when_empty (with the volume) "
+            "or pressure_time_constant (in time), not both",
+            source=source,
+            scenario=where,
+            field=decay[1],
+        )
     if "head_when_empty" in values and "head" not in values:
-        raise ScenarioError("needs head = \"...\" (the head when the bag is full)", source=source,
-                            scenario=where, field="head_when_empty")
+        raise ScenarioError(
+            'needs head = "..." (the head when the bag is full)',
+            source=source,
+            scenario=where,
+            field="head_when_empty",
+        )
     tolerance = {}
     if "tolerance" in raw:
-        tolerance = _tolerance_table(raw["tolerance"], SCENARIO_TOLERANCE_FIELDS, source, where,
-                                     "tolerance.")
+        tolerance = _tolerance_table(
+            raw["tolerance"], SCENARIO_TOLERANCE_FIELDS, source, where, "tolerance."
+        )
     if "part" not in raw:
-        raise ScenarioError("is missing; add at least one [[scenario.part]] table with a type "
-                            f"({', '.join(PART_TYPES)})", source=source, scenario=where,
-                            field="part")
+        raise ScenarioError(
+            "is missing; add at least one [[scenario.part]] table with a type "
+            f"({', '.join(PART_TYPES)})",
+            source=source,
+            scenario=where,
+            field="part",
+        )
     parts_raw = raw["part"]
     if not isinstance(parts_raw, list) or not parts_raw:
         got = "an empty list" if parts_raw == [] else _type(parts_raw)
-        raise ScenarioError(f"must be a non-empty list of [[scenario.part]] tables, got {got}",
-                            source=source, scenario=where, field="part")
+        raise ScenarioError(
+            f"must be a non-empty list of [[scenario.part]] tables, got {got}",
+            source=source,
+            scenario=where,
+            field="part",
+        )
     if len(parts_raw) > MAX_PARTS:
-        raise ScenarioError(f"{len(parts_raw)} parts is above the limit of {MAX_PARTS}",
-                            source=source, scenario=where, field="part")
+        raise ScenarioError(
+            f"{len(parts_raw)} parts is above the limit of {MAX_PARTS}",
+            source=source,
+            scenario=where,
+            field="part",
+        )
     parts = tuple(_parse_part(p, j, source, where) for j, p in enumerate(parts_raw, start=1))
     sc = Scenario(name, index, values, parts, tolerance, notes, raw)
     for path, axis in sc.axes:
         if len(axis) > MAX_AXIS_VALUES:  # pragma: no cover - _axis checks first
-            raise ScenarioError(f"sweeps {len(axis)} values, above {MAX_AXIS_VALUES}",
-                                source=source, scenario=where, field=path)
+            raise ScenarioError(
+                f"sweeps {len(axis)} values, above {MAX_AXIS_VALUES}",
+                source=source,
+                scenario=where,
+                field=path,
+            )
     samples = tolerance.get("samples", 2000)
     if _tolerance_solves(sc) > MAX_TOLERANCE_SOLVES:
-        raise ScenarioError(f"{samples} tolerance samples x {sc.n_points} sweep points is above "
-                            f"the limit of {MAX_TOLERANCE_SOLVES} solves; use fewer samples or "
-                            "sweep fewer values", source=source, scenario=where,
-                            field="tolerance.samples")
+        raise ScenarioError(
+            f"{samples} tolerance samples x {sc.n_points} sweep points is above "
+            f"the limit of {MAX_TOLERANCE_SOLVES} solves; use fewer samples or "
+            "sweep fewer values",
+            source=source,
+            scenario=where,
+            field="tolerance.samples",
+        )
     if sc.n_points > MAX_SWEEP_POINTS:
         sizes = " x ".join(f"{len(a)} ({p})" for p, a in sc.axes)
-        raise ScenarioError(f"the sweep expands to {sc.n_points} points ({sizes}), above the "
-                            f"limit of {MAX_SWEEP_POINTS} per scenario; sweep fewer values",
-                            source=source, scenario=where, field=sc.axes[-1][0])
+        raise ScenarioError(
+            f"the sweep expands to {sc.n_points} points ({sizes}), above the "
+            f"limit of {MAX_SWEEP_POINTS} per scenario; sweep fewer values",
+            source=source,
+            scenario=where,
+            field=sc.axes[-1][0],
+        )
     return sc
 
 
 def _parse_part(raw, j, source, where):
     prefix = f"part[{j}]."
     if not isinstance(raw, dict):
-        raise ScenarioError(f"must be a table, got {_type(raw)}", source=source, scenario=where,
-                            field=f"part[{j}]")
+        raise ScenarioError(
+            f"must be a table, got {_type(raw)}", source=source, scenario=where, field=f"part[{j}]"
+        )
     if "type" not in raw:
-        raise ScenarioError(f"is missing; choose one of {', '.join(PART_TYPES)}", source=source,
-                            scenario=where, field=prefix + "type")
+        raise ScenarioError(
+            f"is missing; choose one of {', '.join(PART_TYPES)}",
+            source=source,
+            scenario=where,
+            field=prefix + "type",
+        )
     ptype = raw["type"]
     if not isinstance(ptype, str) or ptype.strip().lower() not in PART_FIELDS:
         shown = _shown(ptype) if isinstance(ptype, str) else _type(ptype)
         near = difflib.get_close_matches(str(ptype).lower(), PART_TYPES, n=1, cutoff=0.6)
         hint = f"; did you mean '{near[0]}'?" if near else ""
-        raise ScenarioError(f"unknown part type '{shown}'{hint} Allowed: {', '.join(PART_TYPES)}",
-                            source=source, scenario=where, field=prefix + "type")
+        raise ScenarioError(
+            f"unknown part type '{shown}'{hint} Allowed: {', '.join(PART_TYPES)}",
+            source=source,
+            scenario=where,
+            field=prefix + "type",
+        )
     ptype = ptype.strip().lower()
     fields = PART_FIELDS[ptype]
     _unknown_keys(raw, fields, source, where, prefix, what=f"{ptype} field")
     for group in _REQUIRED_PART[ptype]:
         if not any(k in raw for k in group):
             need = " or ".join(group)
-            raise ScenarioError(f"is missing: a {ptype} needs {need}", source=source,
-                                scenario=where, field=prefix + group[0])
+            raise ScenarioError(
+                f"is missing: a {ptype} needs {need}",
+                source=source,
+                scenario=where,
+                field=prefix + group[0],
+            )
     label = _text(raw.get("label", ""), source, where, prefix + "label", MAX_NAME_CHARS)
     values = {}
     for key, spec in fields.items():
@@ -761,31 +1049,50 @@ def _parse_part(raw, j, source, where):
             values[key] = _value(raw[key], spec, source, where, prefix + key)
     _check_catalogue(ptype, values, source, where, prefix)
     if ptype == "catheter" and "gauge" not in values and "length" not in values:
-        raise ScenarioError("is missing: a catheter given by its bore (no gauge) needs its length",
-                            source=source, scenario=where, field=prefix + "length")
+        raise ScenarioError(
+            "is missing: a catheter given by its bore (no gauge) needs its length",
+            source=source,
+            scenario=where,
+            field=prefix + "length",
+        )
     bore = values.get("inner_diameter")
     if ptype in ("catheter", "needle") and bore is not None:
         biggest = max(bore.values) if isinstance(bore, Axis) else bore
         if biggest > _MAX_CATHETER_BORE:
             raw_bore = raw["inner_diameter"]
-            hint = (f"; if {raw_bore} is a gauge, write gauge = {raw_bore}"
-                    if isinstance(raw_bore, int) and not isinstance(raw_bore, bool) else "")
-            raise ScenarioError(f"{biggest * 1e3:g} mm is larger than any {ptype} bore "
-                                f"(up to {_MAX_CATHETER_BORE * 1e3:g} mm){hint}; for a wider "
-                                "lumen use a tube or a cannula", source=source, scenario=where,
-                                field=prefix + "inner_diameter")
+            hint = (
+                f"; if {raw_bore} is a gauge, write gauge = {raw_bore}"
+                if isinstance(raw_bore, int) and not isinstance(raw_bore, bool)
+                else ""
+            )
+            raise ScenarioError(
+                f"{biggest * 1e3:g} mm is larger than any {ptype} bore "
+                f"(up to {_MAX_CATHETER_BORE * 1e3:g} mm){hint}; for a wider "
+                "lumen use a tube or a cannula",
+                source=source,
+                scenario=where,
+                field=prefix + "inner_diameter",
+            )
     if ptype == "measured" and len(values["flows"]) != len(values["pressure_drops"]):
-        raise ScenarioError(f"has {len(values['pressure_drops'])} values but flows has "
-                            f"{len(values['flows'])}; give one pressure drop per flow",
-                            source=source, scenario=where, field=prefix + "pressure_drops")
+        raise ScenarioError(
+            f"has {len(values['pressure_drops'])} values but flows has "
+            f"{len(values['flows'])}; give one pressure drop per flow",
+            source=source,
+            scenario=where,
+            field=prefix + "pressure_drops",
+        )
     tolerance = {}
     if "tolerance" in raw:
-        tolerance = _tolerance_table(raw["tolerance"], PART_TOLERANCE_FIELDS, source, where,
-                                     prefix + "tolerance.")
+        tolerance = _tolerance_table(
+            raw["tolerance"], PART_TOLERANCE_FIELDS, source, where, prefix + "tolerance."
+        )
         if ptype in ("fitting", "measured"):
-            raise ScenarioError(f"a {ptype} takes no tolerance (only lumens: tube, set, catheter, "
-                                "needle, cannula)", source=source, scenario=where,
-                                field=prefix + "tolerance")
+            raise ScenarioError(
+                f"a {ptype} takes no tolerance (only lumens: tube, set, catheter, needle, cannula)",
+                source=source,
+                scenario=where,
+                field=prefix + "tolerance",
+            )
     if not label:
         label = _default_label(ptype, raw)
     return PartSpec(ptype, label, values, tolerance)
@@ -793,8 +1100,11 @@ def _parse_part(raw, j, source, where):
 
 def _check_catalogue(ptype, values, source, where, prefix):
     """A catalogue gauge or set must exist unless the user gives the bore."""
-    table = {"catheter": catalogue.CATHETER_GAUGES, "needle": catalogue.NEEDLE_GAUGES,
-             "set": catalogue.EXTENSION_SETS}.get(ptype)
+    table = {
+        "catheter": catalogue.CATHETER_GAUGES,
+        "needle": catalogue.NEEDLE_GAUGES,
+        "set": catalogue.EXTENSION_SETS,
+    }.get(ptype)
     key = "kind" if ptype == "set" else "gauge"
     if table is None or key not in values:
         return
@@ -807,13 +1117,22 @@ def _check_catalogue(ptype, values, source, where, prefix):
                 near = difflib.get_close_matches(str(v), list(table), n=1, cutoff=0.5)
                 hint = f"; did you mean '{near[0]}'?" if near else ""
                 allowed = ", ".join(table)
-                raise ScenarioError(f"unknown set '{_shown(v)}'{hint} Allowed: {allowed}",
-                                    source=source, scenario=where, field=prefix + key)
+                raise ScenarioError(
+                    f"unknown set '{_shown(v)}'{hint} Allowed: {allowed}",
+                    source=source,
+                    scenario=where,
+                    field=prefix + key,
+                )
             allowed = ", ".join(f"{g}G" for g in table)
-            extra = (" or give inner_diameter and length for another size"
-                     if ptype == "catheter" else "")
-            raise ScenarioError(f"gauge {v} is not in the {ptype} catalogue ({allowed}){extra}",
-                                source=source, scenario=where, field=prefix + key)
+            extra = (
+                " or give inner_diameter and length for another size" if ptype == "catheter" else ""
+            )
+            raise ScenarioError(
+                f"gauge {v} is not in the {ptype} catalogue ({allowed}){extra}",
+                source=source,
+                scenario=where,
+                field=prefix + key,
+            )
 
 
 def _default_label(ptype, raw):
@@ -825,8 +1144,12 @@ def _default_label(ptype, raw):
 
 def _tolerance_table(raw, specs, source, where, prefix):
     if not isinstance(raw, dict):
-        raise ScenarioError(f"must be a table such as {{ {next(iter(specs))} = \"3 %\" }}, got "
-                            f"{_type(raw)}", source=source, scenario=where, field=prefix.rstrip("."))
+        raise ScenarioError(
+            f'must be a table such as {{ {next(iter(specs))} = "3 %" }}, got {_type(raw)}',
+            source=source,
+            scenario=where,
+            field=prefix.rstrip("."),
+        )
     _unknown_keys(raw, specs, source, where, prefix)
     return {k: _value(v, specs[k], source, where, prefix + k) for k, v in raw.items()}
 
@@ -836,25 +1159,37 @@ def _value(value, spec, source, where, path):
     """Parse one field: a scalar, or a list / range table when the field sweeps."""
     if spec.sweep and isinstance(value, list):
         if not value:
-            raise ScenarioError("is an empty list; give at least one value", source=source,
-                                scenario=where, field=path)
+            raise ScenarioError(
+                "is an empty list; give at least one value",
+                source=source,
+                scenario=where,
+                field=path,
+            )
         if len(value) > MAX_AXIS_VALUES:
-            raise ScenarioError(f"sweeps {len(value)} values, above the limit of "
-                                f"{MAX_AXIS_VALUES} per field", source=source, scenario=where,
-                                field=path)
+            raise ScenarioError(
+                f"sweeps {len(value)} values, above the limit of {MAX_AXIS_VALUES} per field",
+                source=source,
+                scenario=where,
+                field=path,
+            )
         vals, shown = [], []
         for j, v in enumerate(value, start=1):
             if isinstance(v, (list, dict)):
-                raise ScenarioError(f"list entry {j} is {_type(v)}; a sweep lists single values",
-                                    source=source, scenario=where, field=path)
+                raise ScenarioError(
+                    f"list entry {j} is {_type(v)}; a sweep lists single values",
+                    source=source,
+                    scenario=where,
+                    field=path,
+                )
             vals.append(_scalar(v, spec, source, where, path))
             shown.append(_show_value(v, vals[-1], spec))
         return Axis(tuple(vals), tuple(shown))
     if spec.sweep and isinstance(value, dict):
         return _range(value, spec, source, where, path)
     if isinstance(value, (list, dict)) and spec.kind != "quantity_list":
-        raise ScenarioError(f"must be a single value, got {_type(value)}", source=source,
-                            scenario=where, field=path)
+        raise ScenarioError(
+            f"must be a single value, got {_type(value)}", source=source, scenario=where, field=path
+        )
     return _scalar(value, spec, source, where, path)
 
 
@@ -862,26 +1197,46 @@ def _range(table, spec, source, where, path):
     allowed = ("start", "stop", "step", "count")
     _unknown_keys(table, dict.fromkeys(allowed), source, where, path + ".", what="range key")
     if spec.kind in ("choice", "text"):
-        raise ScenarioError("cannot be a range; list the names instead, e.g. [\"a\", \"b\"]",
-                            source=source, scenario=where, field=path)
+        raise ScenarioError(
+            'cannot be a range; list the names instead, e.g. ["a", "b"]',
+            source=source,
+            scenario=where,
+            field=path,
+        )
     for k in ("start", "stop"):
         if k not in table:
-            raise ScenarioError(f"a range needs start, stop and step or count; '{k}' is missing",
-                                source=source, scenario=where, field=f"{path}.{k}")
+            raise ScenarioError(
+                f"a range needs start, stop and step or count; '{k}' is missing",
+                source=source,
+                scenario=where,
+                field=f"{path}.{k}",
+            )
     if ("step" in table) == ("count" in table):
-        raise ScenarioError("a range needs exactly one of step or count", source=source,
-                            scenario=where, field=path)
+        raise ScenarioError(
+            "a range needs exactly one of step or count", source=source, scenario=where, field=path
+        )
     start = _scalar(table["start"], spec, source, where, path + ".start")
     stop = _scalar(table["stop"], spec, source, where, path + ".stop")
     if stop < start:
-        raise ScenarioError("stop is below start; write the range from low to high",
-                            source=source, scenario=where, field=path + ".stop")
+        raise ScenarioError(
+            "stop is below start; write the range from low to high",
+            source=source,
+            scenario=where,
+            field=path + ".stop",
+        )
     if "count" in table:
         count = table["count"]
-        if isinstance(count, bool) or not isinstance(count, int) or not 1 <= count <= MAX_AXIS_VALUES:
-            raise ScenarioError(f"count must be a whole number from 1 to {MAX_AXIS_VALUES}, got "
-                                f"{_shown(count)}", source=source, scenario=where,
-                                field=path + ".count")
+        if (
+            isinstance(count, bool)
+            or not isinstance(count, int)
+            or not 1 <= count <= MAX_AXIS_VALUES
+        ):
+            raise ScenarioError(
+                f"count must be a whole number from 1 to {MAX_AXIS_VALUES}, got {_shown(count)}",
+                source=source,
+                scenario=where,
+                field=path + ".count",
+            )
         if count == 1:
             vals = [start]
         else:
@@ -890,9 +1245,13 @@ def _range(table, spec, source, where, path):
         step = _step(table["step"], spec, source, where, path + ".step")
         n = math.floor((stop - start) / step * (1 + 1e-12) + 1e-9) + 1
         if n > MAX_AXIS_VALUES:
-            raise ScenarioError(f"the range has {n} values, above the limit of {MAX_AXIS_VALUES} "
-                                "per field; use a larger step", source=source, scenario=where,
-                                field=path + ".step")
+            raise ScenarioError(
+                f"the range has {n} values, above the limit of {MAX_AXIS_VALUES} "
+                "per field; use a larger step",
+                source=source,
+                scenario=where,
+                field=path + ".step",
+            )
         vals = [start + j * step for j in range(n)]
     if spec.kind == "gauge":
         vals = [int(round(v)) for v in vals]
@@ -909,8 +1268,12 @@ def _step(value, spec, source, where, path):
         spec = _spec("integer")
     step = _scalar(value, spec, source, where, path, check_range=False)
     if not step > 0:
-        raise ScenarioError(f"step must be greater than 0, got {_shown(value)}", source=source,
-                            scenario=where, field=path)
+        raise ScenarioError(
+            f"step must be greater than 0, got {_shown(value)}",
+            source=source,
+            scenario=where,
+            field=path,
+        )
     return step
 
 
@@ -941,9 +1304,16 @@ def _show_si(si, spec, unit):
     return f"{si:.4g}"
 
 
-KIND_OF = {"length": "length", "pressure": "pressure", "flow": "flow", "volume": "volume",
-           "temperature": "temperature", "time": "time", "viscosity": "viscosity",
-           "density": "density"}
+KIND_OF = {
+    "length": "length",
+    "pressure": "pressure",
+    "flow": "flow",
+    "volume": "volume",
+    "temperature": "temperature",
+    "time": "time",
+    "viscosity": "viscosity",
+    "density": "density",
+}
 
 _FIELD_HINTS = {
     "head": "head is a height of fluid (m, cm); for a pressure bag use source_pressure",
@@ -985,8 +1355,10 @@ def _scalar(value, spec, source, where, path, check_range=True):
         return value
     if kind == "quantity_list":
         if not isinstance(value, list) or not value:
-            fail(f"must be a list of values such as [\"100 {spec.unit}\", \"200 {spec.unit}\"], "
-                 f"got {_type(value)}")
+            fail(
+                f'must be a list of values such as ["100 {spec.unit}", "200 {spec.unit}"], '
+                f"got {_type(value)}"
+            )
         if len(value) > MAX_MEASURED_POINTS:
             fail(f"has {len(value)} values, above the limit of {MAX_MEASURED_POINTS}")
         elem = _spec(spec.element_kind, spec.unit, spec.low, spec.high, sweep=False)
@@ -1026,10 +1398,14 @@ def _scalar(value, spec, source, where, path, check_range=True):
         try:
             out = parse_quantity(value, "dimensionless", field=name)
         except UnitError as exc:
-            fail(f"{_strip_field(exc, name)}; write a fraction such as 0.45 or a percent such as '45 %'")
+            fail(
+                f"{_strip_field(exc, name)}; write a fraction such as 0.45 or a percent such as '45 %'"
+            )
         if kind == "fraction" and out > 1 and not (isinstance(value, str) and "%" in value):
-            fail(f"{_shown(value)} is above 1; if that is a percent, write {out / 100:g} or "
-                 f"'{out:g} %'")
+            fail(
+                f"{_shown(value)} is above 1; if that is a percent, write {out / 100:g} or "
+                f"'{out:g} %'"
+            )
     elif kind == "temperature_delta":
         out = _temperature_delta(value, fail)
     elif kind == "tolerance_value":
@@ -1055,13 +1431,15 @@ def _check_fluid(value, fail):
     if value.strip().lower().replace("_", "-").replace(" ", "-") not in names:
         near = difflib.get_close_matches(value.lower(), names, n=1, cutoff=0.6)
         hint = f"; did you mean '{near[0]}'?" if near else ""
-        fail(f"unknown fluid '{_shown(value)}'{hint} Allowed: {', '.join(names)} "
-             "(see `rheoline fluids`)")
+        fail(
+            f"unknown fluid '{_shown(value)}'{hint} Allowed: {', '.join(names)} "
+            "(see `rheoline fluids`)"
+        )
 
 
 def _strip_field(exc, name):
     msg = str(exc)
-    return msg[len(name) + 2:] if msg.startswith(name + ": ") else msg
+    return msg[len(name) + 2 :] if msg.startswith(name + ": ") else msg
 
 
 def _gauge(value, spec, fail):
@@ -1069,17 +1447,23 @@ def _gauge(value, spec, fail):
         text = value.strip()
         m = re.fullmatch(r"(\d{1,2})\s*[gG]?", text)
         if not m:
-            fail(f"must be a gauge number such as 18 (or '18G'), got {_shown(value)!r}; "
-                 "to give the bore instead use inner_diameter = \"1.0 mm\"")
+            fail(
+                f"must be a gauge number such as 18 (or '18G'), got {_shown(value)!r}; "
+                'to give the bore instead use inner_diameter = "1.0 mm"'
+            )
         value = int(m.group(1))
     if isinstance(value, float):
         if value != int(value):
-            fail(f"{value} is not a whole gauge number; gauge is a catalogue size such as 18, not "
-                 "a diameter (use inner_diameter = \"1.0 mm\" for a measured bore)")
+            fail(
+                f"{value} is not a whole gauge number; gauge is a catalogue size such as 18, not "
+                'a diameter (use inner_diameter = "1.0 mm" for a measured bore)'
+            )
         value = int(value)
     if not spec.low <= value <= spec.high:
-        fail(f"gauge {value} is outside {spec.low:g}G to {spec.high:g}G; use inner_diameter for "
-             "a size outside the catalogue")
+        fail(
+            f"gauge {value} is outside {spec.low:g}G to {spec.high:g}G; use inner_diameter for "
+            "a size outside the catalogue"
+        )
     return value
 
 
@@ -1090,8 +1474,17 @@ def _temperature_delta(value, fail):
     if not m:
         fail(f"cannot read {_shown(value)!r}; write a temperature difference such as '2 degC'")
     number, unit = float(m.group(1)), m.group(2).lower()
-    factor = {"": 1.0, "degc": 1.0, "°c": 1.0, "c": 1.0, "k": 1.0, "kelvin": 1.0,
-              "delta_degc": 1.0, "degf": 5 / 9, "°f": 5 / 9}.get(unit)
+    factor = {
+        "": 1.0,
+        "degc": 1.0,
+        "°c": 1.0,
+        "c": 1.0,
+        "k": 1.0,
+        "kelvin": 1.0,
+        "delta_degc": 1.0,
+        "degf": 5 / 9,
+        "°f": 5 / 9,
+    }.get(unit)
     if factor is None:
         fail(f"{_shown(m.group(2))!r} is not a unit of temperature difference (degC, K, degF)")
     return number * factor
@@ -1167,8 +1560,10 @@ def sweep_points(scenario: Scenario):
     if not axes:
         return [{}]
     ranges = [range(len(a)) for _, a in axes]
-    return [{p: (a.values[i], a.shown[i]) for (p, a), i in zip(axes, idx, strict=True)}
-            for idx in itertools.product(*ranges)]
+    return [
+        {p: (a.values[i], a.shown[i]) for (p, a), i in zip(axes, idx, strict=True)}
+        for idx in itertools.product(*ranges)
+    ]
 
 
 # --------------------------------------------------------------------------- writing
@@ -1211,19 +1606,19 @@ def save_scenarios(sset: ScenarioSet, path, force: bool = False) -> Path:
     """
     path = Path(path)
     if path.is_dir():
-        raise OutputError("is a folder; give a file name, such as scenarios.toml inside it",
-                          source=str(path))
+        raise OutputError(
+            "is a folder; give a file name, such as scenarios.toml inside it", source=str(path)
+        )
     if path.exists() and not force:
-        raise ScenarioError("exists already; choose another name or pass force=True",
-                            source=str(path))
+        raise ScenarioError(
+            "exists already; choose another name or pass force=True", source=str(path)
+        )
     if path.exists() and not path.is_file():
-        raise OutputError("exists and is not a regular file; choose another name",
-                          source=str(path))
+        raise OutputError("exists and is not a regular file; choose another name", source=str(path))
     check_output_folder(path, "file")
     text = dump_scenarios(sset, fmt="json" if path.suffix.lower() == ".json" else "toml")
     try:
-        fd, tmp = tempfile.mkstemp(prefix=f".{path.name}.", suffix=".tmp",
-                                   dir=path.parent or ".")
+        fd, tmp = tempfile.mkstemp(prefix=f".{path.name}.", suffix=".tmp", dir=path.parent or ".")
     except OSError as exc:
         raise output_error(path, "cannot write the scenario file", exc) from None
     try:
@@ -1265,17 +1660,17 @@ def fields_table():
                     rng = f"{lo:.4g} to {hi:.4g} {spec.unit}"
                 else:
                     rng = f"{spec.low:g} to {spec.high:g}"
-            out.append([table, name, spec.unit or "", rng, "yes" if spec.sweep else "",
-                        spec.help])
+            out.append([table, name, spec.unit or "", rng, "yes" if spec.sweep else "", spec.help])
         return out
 
     data = rows("top level", TOP_FIELDS) + rows("[[scenario]]", SCENARIO_FIELDS)
     data += rows("[scenario.tolerance]", SCENARIO_TOLERANCE_FIELDS)
     for ptype, specs in PART_FIELDS.items():
-        data += rows(f"part type = \"{ptype}\"", specs)
+        data += rows(f'part type = "{ptype}"', specs)
     data += rows("[part].tolerance", PART_TOLERANCE_FIELDS)
-    return pd.DataFrame(data, columns=["table", "field", "bare number in", "allowed",
-                                       "sweeps", "what it is"])
+    return pd.DataFrame(
+        data, columns=["table", "field", "bare number in", "allowed", "sweeps", "what it is"]
+    )
 
 
 # --------------------------------------------------------------------------- examples
@@ -1293,6 +1688,8 @@ def example_path(name: str) -> Path:
     if name not in example_names():
         near = difflib.get_close_matches(name, example_names(), n=1)
         hint = f"; did you mean '{near[0]}'?" if near else ""
-        raise ScenarioError(f"no example named {_shown(name)!r}{hint} Examples: "
-                            f"{', '.join(example_names())}", field="example")
+        raise ScenarioError(
+            f"no example named {_shown(name)!r}{hint} Examples: {', '.join(example_names())}",
+            field="example",
+        )
     return _examples_dir() / f"{name}.toml"

@@ -34,7 +34,8 @@ class App(widgets.VBox):
                 first = False
         if "files" in tabs:
             self.views["files"] = self._build(
-                "files", lambda: _files(self.views.get("line"), self.views.get("compare")))
+                "files", lambda: _files(self.views.get("line"), self.views.get("compare"))
+            )
         self.tabs = widgets.Tab(children=list(self.views.values()))
         self.tabs.titles = tuple(view.title for view in self.views.values())
         self.tabs.add_class("rl-tabs")
@@ -66,23 +67,27 @@ class App(widgets.VBox):
             stand_in = View()
             stand_in.title = name
             stand_in.messages.value = flag_html(
-                "error", f"the {name} view could not be built: {type(exc).__name__}: {exc}")
+                "error", f"the {name} view could not be built: {type(exc).__name__}: {exc}"
+            )
             stand_in._finish([])
             return stand_in
 
 
 def _line(lazy=False):
     from rheoline.widgets.line_view import LineView
+
     return LineView(lazy=lazy)
 
 
 def _blood(lazy=False):
     from rheoline.widgets.blood_view import BloodVesselView
+
     return BloodVesselView(lazy=lazy)
 
 
 def _files(line_view, compare_view):
     from rheoline.widgets.files_view import FilesView
+
     return FilesView(line_view, compare_view)
 
 

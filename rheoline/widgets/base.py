@@ -26,8 +26,14 @@ from rheoline.errors import RheolineError, RheolineWarning
 from rheoline.widgets.banner import caution_banner
 from rheoline.widgets.style import flag_html
 
-__all__ = ["View", "labelled", "number_field", "fluid_controls", "drive_controls",
-           "time_control_change"]
+__all__ = [
+    "View",
+    "labelled",
+    "number_field",
+    "fluid_controls",
+    "drive_controls",
+    "time_control_change",
+]
 
 _STYLE = {"description_width": "initial"}
 
@@ -40,8 +46,12 @@ def labelled(widget: widgets.Widget, css_class: str) -> widgets.Widget:
 
 def number_field(value, low, high, step, description, css_class):
     """A bounded number box with its unit in the description (e.g. ``"head [cm]"``)."""
-    return labelled(widgets.BoundedFloatText(value=value, min=low, max=high, step=step,
-                                             description=description, style=_STYLE), css_class)
+    return labelled(
+        widgets.BoundedFloatText(
+            value=value, min=low, max=high, step=step, description=description, style=_STYLE
+        ),
+        css_class,
+    )
 
 
 def fluid_controls(fluid, temperature_c, hematocrit, mass_fraction=0.4) -> dict:
@@ -49,14 +59,19 @@ def fluid_controls(fluid, temperature_c, hematocrit, mass_fraction=0.4) -> dict:
     import rheoline
 
     return {
-        "fluid": labelled(widgets.Dropdown(options=list(rheoline.fluid_names()), value=fluid,
-                                           description="fluid", style=_STYLE), "rl-fluid"),
-        "temperature_c": number_field(temperature_c, 0.0, 60.0, 0.5, "temperature [degC]",
-                                      "rl-temperature"),
-        "hematocrit": number_field(hematocrit, 0.0, 0.8, 0.01, "hematocrit [-]",
-                                   "rl-hematocrit"),
-        "mass_fraction": number_field(mass_fraction, 0.0, 1.0, 0.01,
-                                      "glycerol mass fraction [-]", "rl-mass-fraction"),
+        "fluid": labelled(
+            widgets.Dropdown(
+                options=list(rheoline.fluid_names()), value=fluid, description="fluid", style=_STYLE
+            ),
+            "rl-fluid",
+        ),
+        "temperature_c": number_field(
+            temperature_c, 0.0, 60.0, 0.5, "temperature [degC]", "rl-temperature"
+        ),
+        "hematocrit": number_field(hematocrit, 0.0, 0.8, 0.01, "hematocrit [-]", "rl-hematocrit"),
+        "mass_fraction": number_field(
+            mass_fraction, 0.0, 1.0, 0.01, "glycerol mass fraction [-]", "rl-mass-fraction"
+        ),
     }
 
 
@@ -64,10 +79,12 @@ def drive_controls(head_cm, source_pressure_mmhg, back_pressure_mmhg) -> dict:
     """The gravity-and-pressure drive controls the line and comparison views share."""
     return {
         "head_cm": number_field(head_cm, 0.0, 1000.0, 5.0, "head [cm]", "rl-head"),
-        "source_pressure_mmhg": number_field(source_pressure_mmhg, 0.0, 20000.0, 10.0,
-                                             "source pressure [mmHg]", "rl-source-pressure"),
-        "back_pressure_mmhg": number_field(back_pressure_mmhg, -200.0, 1000.0, 1.0,
-                                           "back pressure [mmHg]", "rl-back-pressure"),
+        "source_pressure_mmhg": number_field(
+            source_pressure_mmhg, 0.0, 20000.0, 10.0, "source pressure [mmHg]", "rl-source-pressure"
+        ),
+        "back_pressure_mmhg": number_field(
+            back_pressure_mmhg, -200.0, 1000.0, 1.0, "back pressure [mmHg]", "rl-back-pressure"
+        ),
     }
 
 
@@ -160,8 +177,11 @@ class View(widgets.VBox):
             except RheolineError as exc:
                 ok = False
                 notes = [flag_html("error", str(exc))]
-        notes += [flag_html("caution", str(w.message)) for w in caught
-                  if issubclass(w.category, RheolineWarning)]
+        notes += [
+            flag_html("caution", str(w.message))
+            for w in caught
+            if issubclass(w.category, RheolineWarning)
+        ]
         self.messages.value = "".join(notes)
         self.last_update_seconds = time.perf_counter() - start
         return ok

@@ -57,81 +57,182 @@ class BloodVesselView(View):
 
     title = "Blood and vessels"
 
-    def __init__(self, hematocrit: float = 0.45, temperature_c: float = 37.0,
-                 shear_rate: float = 100.0, lazy: bool = False):
+    def __init__(
+        self,
+        hematocrit: float = 0.45,
+        temperature_c: float = 37.0,
+        shear_rate: float = 100.0,
+        lazy: bool = False,
+    ):
         super().__init__()
         c = self.controls
-        c["hematocrit"] = labelled(widgets.FloatSlider(
-            value=hematocrit, min=0.0, max=0.7, step=0.01, description="hematocrit [-]",
-            continuous_update=False, style=_STYLE), "rl-hematocrit")
-        c["temperature_c"] = labelled(widgets.FloatSlider(
-            value=temperature_c, min=4.0, max=40.0, step=0.5, description="temperature [degC]",
-            continuous_update=False, style=_STYLE), "rl-temperature")
-        c["shear_rate"] = labelled(widgets.FloatLogSlider(
-            value=shear_rate, base=10, min=0, max=3, step=0.05, description="shear rate [1/s]",
-            continuous_update=False, style=_STYLE), "rl-shear-rate")
-        c["axis"] = labelled(widgets.ToggleButtons(
-            options=list(VISCOSITY_AXES), value="hematocrit", description="viscosity against",
-            style=_STYLE), "rl-axis")
-        c["vessel_length_mm"] = labelled(widgets.BoundedFloatText(
-            value=1.0, min=0.001, max=1e4, description="vessel length [mm]",
-            style=_STYLE), "rl-vessel-length")
-        c["vessel_radius_um"] = labelled(widgets.BoundedFloatText(
-            value=50.0, min=2.0, max=950.0, description="vessel radius [um]",
-            style=_STYLE), "rl-vessel-radius")
+        c["hematocrit"] = labelled(
+            widgets.FloatSlider(
+                value=hematocrit,
+                min=0.0,
+                max=0.7,
+                step=0.01,
+                description="hematocrit [-]",
+                continuous_update=False,
+                style=_STYLE,
+            ),
+            "rl-hematocrit",
+        )
+        c["temperature_c"] = labelled(
+            widgets.FloatSlider(
+                value=temperature_c,
+                min=4.0,
+                max=40.0,
+                step=0.5,
+                description="temperature [degC]",
+                continuous_update=False,
+                style=_STYLE,
+            ),
+            "rl-temperature",
+        )
+        c["shear_rate"] = labelled(
+            widgets.FloatLogSlider(
+                value=shear_rate,
+                base=10,
+                min=0,
+                max=3,
+                step=0.05,
+                description="shear rate [1/s]",
+                continuous_update=False,
+                style=_STYLE,
+            ),
+            "rl-shear-rate",
+        )
+        c["axis"] = labelled(
+            widgets.ToggleButtons(
+                options=list(VISCOSITY_AXES),
+                value="hematocrit",
+                description="viscosity against",
+                style=_STYLE,
+            ),
+            "rl-axis",
+        )
+        c["vessel_length_mm"] = labelled(
+            widgets.BoundedFloatText(
+                value=1.0, min=0.001, max=1e4, description="vessel length [mm]", style=_STYLE
+            ),
+            "rl-vessel-length",
+        )
+        c["vessel_radius_um"] = labelled(
+            widgets.BoundedFloatText(
+                value=50.0, min=2.0, max=950.0, description="vessel radius [um]", style=_STYLE
+            ),
+            "rl-vessel-radius",
+        )
         # calculator
-        c["bed"] = widgets.ToggleButtons(options=["systemic", "pulmonary"], value="systemic",
-                                         description="vascular bed", style=_STYLE)
+        c["bed"] = widgets.ToggleButtons(
+            options=["systemic", "pulmonary"],
+            value="systemic",
+            description="vascular bed",
+            style=_STYLE,
+        )
         c["upstream_mmhg"] = widgets.BoundedFloatText(
-            value=90.0, min=-50, max=400, description="upstream (MAP or mPAP) [mmHg]", style=_STYLE)
+            value=90.0, min=-50, max=400, description="upstream (MAP or mPAP) [mmHg]", style=_STYLE
+        )
         c["downstream_mmhg"] = widgets.BoundedFloatText(
-            value=6.0, min=-50, max=400, description="downstream (CVP or wedge) [mmHg]",
-            style=_STYLE)
+            value=6.0,
+            min=-50,
+            max=400,
+            description="downstream (CVP or wedge) [mmHg]",
+            style=_STYLE,
+        )
         c["cardiac_output_l_min"] = widgets.BoundedFloatText(
-            value=5.0, min=0.0, max=50.0, step=0.1, description="cardiac output [L/min]",
-            style=_STYLE)
-        c["height_cm"] = widgets.BoundedFloatText(value=170.0, min=30, max=250,
-                                                  description="height [cm]", style=_STYLE)
-        c["weight_kg"] = widgets.BoundedFloatText(value=70.0, min=1, max=400,
-                                                  description="weight [kg]", style=_STYLE)
+            value=5.0,
+            min=0.0,
+            max=50.0,
+            step=0.1,
+            description="cardiac output [L/min]",
+            style=_STYLE,
+        )
+        c["height_cm"] = widgets.BoundedFloatText(
+            value=170.0, min=30, max=250, description="height [cm]", style=_STYLE
+        )
+        c["weight_kg"] = widgets.BoundedFloatText(
+            value=70.0, min=1, max=400, description="weight [kg]", style=_STYLE
+        )
         self.calculator_output = labelled(widgets.HTML(), "rl-resistance-result")
         self.point_output = labelled(widgets.HTML(), "rl-blood-point")
 
         self.figures["viscosity"] = curve_and_point_figure(
-            "Blood viscosity", "blood viscosity", "current inputs",
-            yaxis=dict(title="viscosity [mPa s]"))
+            "Blood viscosity",
+            "blood viscosity",
+            "current inputs",
+            yaxis=dict(title="viscosity [mPa s]"),
+        )
         self.figures["fahraeus"] = curve_and_point_figure(
-            "Fahraeus-Lindqvist: apparent viscosity against diameter", "Pries 1992 (in vitro)",
-            "vessel diameter", xaxis=dict(title="diameter [um]", type="log"),
-            yaxis=dict(title="relative apparent viscosity [-]"))
+            "Fahraeus-Lindqvist: apparent viscosity against diameter",
+            "Pries 1992 (in vitro)",
+            "vessel diameter",
+            xaxis=dict(title="diameter [um]", type="log"),
+            yaxis=dict(title="relative apparent viscosity [-]"),
+        )
         self.figures["resistance"] = curve_and_point_figure(
-            "Resistance of one vessel against radius", "vessel resistance", "vessel radius",
+            "Resistance of one vessel against radius",
+            "vessel resistance",
+            "vessel radius",
             xaxis=dict(title="radius [um]", type="log"),
-            yaxis=dict(title="resistance [mmHg min/mL]", type="log"))
+            yaxis=dict(title="resistance [mmHg min/mL]", type="log"),
+        )
 
         everything = {"viscosity", "fahraeus", "resistance", "point"}
-        self._watch({
-            "hematocrit": everything,
-            "temperature_c": {"viscosity", "resistance", "point"},
-            "shear_rate": {"viscosity", "point"},
-            "axis": {"viscosity"},
-            "vessel_length_mm": {"resistance", "point"},
-            "vessel_radius_um": {"fahraeus", "resistance", "point"},
-            **{k: {"calculator"} for k in ("bed", "upstream_mmhg", "downstream_mmhg",
-                                           "cardiac_output_l_min", "height_cm", "weight_kg")},
-        })
+        self._watch(
+            {
+                "hematocrit": everything,
+                "temperature_c": {"viscosity", "resistance", "point"},
+                "shear_rate": {"viscosity", "point"},
+                "axis": {"viscosity"},
+                "vessel_length_mm": {"resistance", "point"},
+                "vessel_radius_um": {"fahraeus", "resistance", "point"},
+                **{
+                    k: {"calculator"}
+                    for k in (
+                        "bed",
+                        "upstream_mmhg",
+                        "downstream_mmhg",
+                        "cardiac_output_l_min",
+                        "height_cm",
+                        "weight_kg",
+                    )
+                },
+            }
+        )
         self._run(lambda: self._refresh(everything | {"calculator"}))
         self._widgetize(lazy)
 
-        blood_box = widgets.VBox([c["hematocrit"], c["temperature_c"], c["shear_rate"], c["axis"],
-                                  self.figure_box("viscosity")])
-        vessel_box = widgets.VBox([widgets.HBox([c["vessel_radius_um"], c["vessel_length_mm"]]),
-                                   self.point_output,
-                                   self.figure_box("fahraeus"), self.figure_box("resistance")])
-        calculator = widgets.VBox([
-            widgets.HTML("<b>Vascular resistance from measurements</b>"), c["bed"],
-            c["upstream_mmhg"], c["downstream_mmhg"], c["cardiac_output_l_min"],
-            c["height_cm"], c["weight_kg"], self.calculator_output])
+        blood_box = widgets.VBox(
+            [
+                c["hematocrit"],
+                c["temperature_c"],
+                c["shear_rate"],
+                c["axis"],
+                self.figure_box("viscosity"),
+            ]
+        )
+        vessel_box = widgets.VBox(
+            [
+                widgets.HBox([c["vessel_radius_um"], c["vessel_length_mm"]]),
+                self.point_output,
+                self.figure_box("fahraeus"),
+                self.figure_box("resistance"),
+            ]
+        )
+        calculator = widgets.VBox(
+            [
+                widgets.HTML("<b>Vascular resistance from measurements</b>"),
+                c["bed"],
+                c["upstream_mmhg"],
+                c["downstream_mmhg"],
+                c["cardiac_output_l_min"],
+                c["height_cm"],
+                c["weight_kg"],
+                self.calculator_output,
+            ]
+        )
         self._finish([blood_box, vessel_box, calculator])
 
     # -- values from the layers ----------------------------------------------------
@@ -145,17 +246,21 @@ class BloodVesselView(View):
         name, grid, _, _ = VISCOSITY_AXES[self.controls["axis"].value]
         args = {"hematocrit": hematocrit, "temperature_c": temperature_c, "shear_rate": shear_rate}
         args[name] = grid
-        return grid, rheoline.blood_viscosity(args["hematocrit"], args["temperature_c"],
-                                              args["shear_rate"])
+        return grid, rheoline.blood_viscosity(
+            args["hematocrit"], args["temperature_c"], args["shear_rate"]
+        )
 
     def vessel(self, radius=None):
         """The :class:`rheoline.Vessel` at the current inputs (``radius`` [m] may be a grid)."""
         c = self.controls
         if radius is None:
             radius = c["vessel_radius_um"].value * 1e-6
-        return rheoline.Vessel(radius=radius, length=c["vessel_length_mm"].value * 1e-3,
-                               hematocrit=c["hematocrit"].value,
-                               temperature_c=c["temperature_c"].value)
+        return rheoline.Vessel(
+            radius=radius,
+            length=c["vessel_length_mm"].value * 1e-3,
+            hematocrit=c["hematocrit"].value,
+            temperature_c=c["temperature_c"].value,
+        )
 
     # -- drawing -------------------------------------------------------------------
     def _refresh(self, parts):
@@ -165,8 +270,11 @@ class BloodVesselView(View):
         if "viscosity" in parts:
             grid, mu = self.viscosity_curve()
             name, _, axis_title, log = VISCOSITY_AXES[c["axis"].value]
-            here = {"hematocrit": hematocrit, "temperature_c": temperature_c,
-                    "shear_rate": shear_rate}[name]
+            here = {
+                "hematocrit": hematocrit,
+                "temperature_c": temperature_c,
+                "shear_rate": shear_rate,
+            }[name]
             here_mu = rheoline.blood_viscosity(hematocrit, temperature_c, shear_rate)
             fig = self.figures["viscosity"]
             with fig.batch_update():
@@ -199,7 +307,8 @@ class BloodVesselView(View):
                 f"blood viscosity {format_number(mu * 1e3, 'mPa s')} at "
                 f"{significant(shear_rate)} 1/s; apparent viscosity in a "
                 f"{significant(2 * radius * 1e6)} um tube {significant(rel)} x plasma "
-                f"(Pries 1992); vessel resistance {significant(vessel.resistance)} Pa s/m^3")
+                f"(Pries 1992); vessel resistance {significant(vessel.resistance)} Pa s/m^3"
+            )
         if "calculator" in parts:
             self._calculate()
 
@@ -223,4 +332,5 @@ class BloodVesselView(View):
             f"body surface area {significant(bsa)} m^2 (Mosteller 1987); "
             f"{name}I {significant(indexed.wood_units)} WU m^2 = "
             f"{significant(indexed.dyn_s_per_cm5)} dyn s cm^-5 m^2</div>"
-            + flag_html("note", "typical adult ranges are context only, not targets"))
+            + flag_html("note", "typical adult ranges are context only, not targets")
+        )

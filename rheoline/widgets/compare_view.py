@@ -47,8 +47,15 @@ from rheoline.widgets.line_view import _is_blood, fluid_for, fluid_options
 from rheoline.widgets.parts_editor import CATHETER_GAUGES, build_part, part_label
 from rheoline.widgets.style import BAND_OPACITY, flag_text, series_style, significant
 
-__all__ = ["ComparisonView", "responsiveness_case", "SWEEPS", "BAND_SAMPLES", "BAND_POINTS", "DEFAULT_CANDIDATES",
-           "sized_part_index"]
+__all__ = [
+    "ComparisonView",
+    "responsiveness_case",
+    "SWEEPS",
+    "BAND_SAMPLES",
+    "BAND_POINTS",
+    "DEFAULT_CANDIDATES",
+    "sized_part_index",
+]
 
 #: Sweep choices: name -> (axis title, default range, SI factor of the shown unit).
 SWEEPS = {
@@ -63,12 +70,11 @@ BAND_POINTS = 9
 #: Seed of the band's random numbers (the same inputs give the same band).
 BAND_SEED = 20261201
 
-_SET = {"type": "tube", "label": "administration set", "inner_diameter_mm": 3.0,
-        "length_cm": 180.0}
+_SET = {"type": "tube", "label": "administration set", "inner_diameter_mm": 3.0, "length_cm": 180.0}
 #: Invented starting candidates: three catheters behind the same gravity set.
 DEFAULT_CANDIDATES = tuple(
-    {"name": f"set + {g}G", "parts": (_SET, {"type": "catheter", "gauge": g})}
-    for g in (16, 18, 20))
+    {"name": f"set + {g}G", "parts": (_SET, {"type": "catheter", "gauge": g})} for g in (16, 18, 20)
+)
 
 
 def sized_part_index(descriptions) -> int:
@@ -114,97 +120,179 @@ class ComparisonView(View):
 
     title = "Compare"
 
-    def __init__(self, candidates=DEFAULT_CANDIDATES, fluid: str = "saline-0.9",
-                 temperature_c: float = 22.0, hematocrit: float = 0.45,
-                 head_cm: float = 100.0, source_pressure_mmhg: float = 0.0,
-                 back_pressure_mmhg: float = 0.0, sweep: str = "head", points: int = 200,
-                 bore_tolerance_percent: float = 0.0, temperature_tolerance_c: float = 0.0,
-                 lazy: bool = False, line_source=None):
+    def __init__(
+        self,
+        candidates=DEFAULT_CANDIDATES,
+        fluid: str = "saline-0.9",
+        temperature_c: float = 22.0,
+        hematocrit: float = 0.45,
+        head_cm: float = 100.0,
+        source_pressure_mmhg: float = 0.0,
+        back_pressure_mmhg: float = 0.0,
+        sweep: str = "head",
+        points: int = 200,
+        bore_tolerance_percent: float = 0.0,
+        temperature_tolerance_c: float = 0.0,
+        lazy: bool = False,
+        line_source=None,
+    ):
         super().__init__()
-        self.candidates = [{"name": c["name"], "parts": [dict(p) for p in c["parts"]]}
-                           for c in candidates]
+        self.candidates = [
+            {"name": c["name"], "parts": [dict(p) for p in c["parts"]]} for c in candidates
+        ]
         self._cache: dict = {}
         self.points = int(points)
         c = self.controls
         c.update(fluid_controls(fluid, temperature_c, hematocrit))
         c.update(drive_controls(head_cm, source_pressure_mmhg, back_pressure_mmhg))
-        c["sweep"] = labelled(widgets.ToggleButtons(options=list(SWEEPS), value=sweep,
-                                                    description="flow against",
-                                                    style=_STYLE), "rl-sweep")
+        c["sweep"] = labelled(
+            widgets.ToggleButtons(
+                options=list(SWEEPS), value=sweep, description="flow against", style=_STYLE
+            ),
+            "rl-sweep",
+        )
         low, high = SWEEPS[sweep][1]
-        c["sweep_from"] = labelled(widgets.BoundedFloatText(
-            value=low, min=0.0, max=1e4, description="from", style=_STYLE), "rl-sweep-from")
-        c["sweep_to"] = labelled(widgets.BoundedFloatText(
-            value=high, min=0.0, max=1e4, description="to", style=_STYLE), "rl-sweep-to")
-        c["bore_tolerance_percent"] = labelled(widgets.BoundedFloatText(
-            value=bore_tolerance_percent, min=0.0, max=30.0, step=0.5,
-            description="bore tolerance +/- [%]", style=_STYLE), "rl-bore-tolerance")
-        c["temperature_tolerance_c"] = labelled(widgets.BoundedFloatText(
-            value=temperature_tolerance_c, min=0.0, max=20.0, step=0.5,
-            description="temperature tolerance +/- [degC]", style=_STYLE),
-            "rl-temperature-tolerance")
+        c["sweep_from"] = labelled(
+            widgets.BoundedFloatText(value=low, min=0.0, max=1e4, description="from", style=_STYLE),
+            "rl-sweep-from",
+        )
+        c["sweep_to"] = labelled(
+            widgets.BoundedFloatText(value=high, min=0.0, max=1e4, description="to", style=_STYLE),
+            "rl-sweep-to",
+        )
+        c["bore_tolerance_percent"] = labelled(
+            widgets.BoundedFloatText(
+                value=bore_tolerance_percent,
+                min=0.0,
+                max=30.0,
+                step=0.5,
+                description="bore tolerance +/- [%]",
+                style=_STYLE,
+            ),
+            "rl-bore-tolerance",
+        )
+        c["temperature_tolerance_c"] = labelled(
+            widgets.BoundedFloatText(
+                value=temperature_tolerance_c,
+                min=0.0,
+                max=20.0,
+                step=0.5,
+                description="temperature tolerance +/- [degC]",
+                style=_STYLE,
+            ),
+            "rl-temperature-tolerance",
+        )
         c["candidates"] = widgets.IntText(value=0, layout=widgets.Layout(display="none"))
 
         # adding and removing candidates
-        self.new_kind = widgets.Dropdown(options=["catheter", "needle"], value="catheter",
-                                         layout=widgets.Layout(width="110px"))
-        self.new_gauge = widgets.Dropdown(options=[(f"{g}G", g) for g in CATHETER_GAUGES],
-                                          value=14, layout=widgets.Layout(width="80px"))
-        self.new_behind_set = widgets.Checkbox(value=True, description="behind the 3.0 mm x 1.8 m set",
-                                               indent=False)
-        self.add_button = labelled(widgets.Button(description="add candidate", icon="plus"),
-                                   "rl-add-candidate")
+        self.new_kind = widgets.Dropdown(
+            options=["catheter", "needle"], value="catheter", layout=widgets.Layout(width="110px")
+        )
+        self.new_gauge = widgets.Dropdown(
+            options=[(f"{g}G", g) for g in CATHETER_GAUGES],
+            value=14,
+            layout=widgets.Layout(width="80px"),
+        )
+        self.new_behind_set = widgets.Checkbox(
+            value=True, description="behind the 3.0 mm x 1.8 m set", indent=False
+        )
+        self.add_button = labelled(
+            widgets.Button(description="add candidate", icon="plus"), "rl-add-candidate"
+        )
         self.add_button.on_click(lambda b: self.add_candidate(self._new_candidate()))
-        self.chooser = labelled(widgets.SelectMultiple(options=[], rows=4,
-                                                       description="candidates",
-                                                       style=_STYLE), "rl-candidates")
-        self.remove_button = labelled(widgets.Button(description="remove selected",
-                                                     icon="trash"), "rl-remove-candidate")
+        self.chooser = labelled(
+            widgets.SelectMultiple(options=[], rows=4, description="candidates", style=_STYLE),
+            "rl-candidates",
+        )
+        self.remove_button = labelled(
+            widgets.Button(description="remove selected", icon="trash"), "rl-remove-candidate"
+        )
         self.remove_button.on_click(lambda b: self.remove_candidates(self.chooser.value))
         self.table = labelled(widgets.HTML(), "rl-compare-table")
         self.line_source = line_source
-        self.add_line_button = labelled(widgets.Button(
-            description="add the line view's line", icon="plus",
-            layout=widgets.Layout(display=None if line_source else "none")), "rl-add-line")
-        self.add_line_button.on_click(lambda b: self.add_candidate(
-            {"name": "line view", "parts": self.line_source()}))
+        self.add_line_button = labelled(
+            widgets.Button(
+                description="add the line view's line",
+                icon="plus",
+                layout=widgets.Layout(display=None if line_source else "none"),
+            ),
+            "rl-add-line",
+        )
+        self.add_line_button.on_click(
+            lambda b: self.add_candidate({"name": "line view", "parts": self.line_source()})
+        )
 
         self.figures["curves"] = go.Figure(
-            data=self._traces(), layout=go.Layout(
-                title="Candidates: flow against head", yaxis_title="flow [mL/min]",
-                xaxis_title=SWEEPS[sweep][0], **{**BASE_LAYOUT, "height": 420}))
+            data=self._traces(),
+            layout=go.Layout(
+                title="Candidates: flow against head",
+                yaxis_title="flow [mL/min]",
+                xaxis_title=SWEEPS[sweep][0],
+                **{**BASE_LAYOUT, "height": 420},
+            ),
+        )
 
         everything = {"curves", "table"}
-        self._watch({
-            **{k: everything for k in ("fluid", "temperature_c", "hematocrit", "mass_fraction",
-                                       "head_cm",
-                                       "source_pressure_mmhg", "back_pressure_mmhg",
-                                       "candidates")},
-            **{k: {"curves"} for k in ("sweep_from", "sweep_to")},
-            "bore_tolerance_percent": everything,
-            "temperature_tolerance_c": everything,
-        })
+        self._watch(
+            {
+                **{
+                    k: everything
+                    for k in (
+                        "fluid",
+                        "temperature_c",
+                        "hematocrit",
+                        "mass_fraction",
+                        "head_cm",
+                        "source_pressure_mmhg",
+                        "back_pressure_mmhg",
+                        "candidates",
+                    )
+                },
+                **{k: {"curves"} for k in ("sweep_from", "sweep_to")},
+                "bore_tolerance_percent": everything,
+                "temperature_tolerance_c": everything,
+            }
+        )
         c["sweep"].observe(self._sweep_changed, names="value")
         c["fluid"].observe(lambda change: self._enable(), names="value")
         self._enable()
         self._run(lambda: self._refresh(everything))
         self._widgetize(lazy)
 
-        shared = widgets.HBox([
-            widgets.VBox([c["fluid"], c["temperature_c"], c["hematocrit"], c["mass_fraction"]]),
-            widgets.VBox([c["head_cm"], c["source_pressure_mmhg"], c["back_pressure_mmhg"]]),
-            widgets.VBox([c["bore_tolerance_percent"], c["temperature_tolerance_c"]])])
+        shared = widgets.HBox(
+            [
+                widgets.VBox([c["fluid"], c["temperature_c"], c["hematocrit"], c["mass_fraction"]]),
+                widgets.VBox([c["head_cm"], c["source_pressure_mmhg"], c["back_pressure_mmhg"]]),
+                widgets.VBox([c["bore_tolerance_percent"], c["temperature_tolerance_c"]]),
+            ]
+        )
         sweep_box = widgets.HBox([c["sweep"], c["sweep_from"], c["sweep_to"]])
-        adder = widgets.HBox([self.new_kind, self.new_gauge, self.new_behind_set,
-                              self.add_button, self.add_line_button])
+        adder = widgets.HBox(
+            [
+                self.new_kind,
+                self.new_gauge,
+                self.new_behind_set,
+                self.add_button,
+                self.add_line_button,
+            ]
+        )
         self.new_kind.observe(self._kind_changed, names="value")
-        self._finish([widgets.HBox([widgets.VBox([adder, widgets.HBox(
-            [self.chooser, self.remove_button])])]), shared, sweep_box,
-            self.figure_box("curves"), self.table])
+        self._finish(
+            [
+                widgets.HBox(
+                    [widgets.VBox([adder, widgets.HBox([self.chooser, self.remove_button])])]
+                ),
+                shared,
+                sweep_box,
+                self.figure_box("curves"),
+                self.table,
+            ]
+        )
 
     # -- candidates --------------------------------------------------------------------
     def _kind_changed(self, change):
         from rheoline.widgets.parts_editor import NEEDLE_GAUGES
+
         gauges = CATHETER_GAUGES if change.new == "catheter" else NEEDLE_GAUGES
         self.new_gauge.options = [(f"{g}G", g) for g in gauges]
         self.new_gauge.value = gauges[len(gauges) // 2]
@@ -225,8 +313,12 @@ class ComparisonView(View):
 
     def add_candidate(self, candidate: dict):
         """Add a candidate ``{"name": ..., "parts": [...]}`` (only it gets solved)."""
-        self.candidates.append({"name": self._unique(candidate["name"]),
-                                "parts": [dict(p) for p in candidate["parts"]]})
+        self.candidates.append(
+            {
+                "name": self._unique(candidate["name"]),
+                "parts": [dict(p) for p in candidate["parts"]],
+            }
+        )
         self.controls["candidates"].value += 1
 
     def remove_candidates(self, names):
@@ -238,8 +330,9 @@ class ComparisonView(View):
 
     def set_candidates(self, candidates):
         """Replace every candidate."""
-        self.candidates = [{"name": c["name"], "parts": [dict(p) for p in c["parts"]]}
-                           for c in candidates]
+        self.candidates = [
+            {"name": c["name"], "parts": [dict(p) for p in c["parts"]]} for c in candidates
+        ]
         self.controls["candidates"].value += 1
 
     # -- inputs ------------------------------------------------------------------------
@@ -260,12 +353,15 @@ class ComparisonView(View):
 
     def _shared(self):
         c = self.controls
-        return {"fluid": c["fluid"].value, "temperature_c": float(c["temperature_c"].value),
-                "hematocrit": float(c["hematocrit"].value),
-                "mass_fraction": float(c["mass_fraction"].value),
-                "head": c["head_cm"].value * 1e-2,
-                "source_pressure": c["source_pressure_mmhg"].value * MMHG,
-                "back_pressure": c["back_pressure_mmhg"].value * MMHG}
+        return {
+            "fluid": c["fluid"].value,
+            "temperature_c": float(c["temperature_c"].value),
+            "hematocrit": float(c["hematocrit"].value),
+            "mass_fraction": float(c["mass_fraction"].value),
+            "head": c["head_cm"].value * 1e-2,
+            "source_pressure": c["source_pressure_mmhg"].value * MMHG,
+            "back_pressure": c["back_pressure_mmhg"].value * MMHG,
+        }
 
     def sweep_values(self, n=None):
         """The sweep grid in the shown unit (cm, mm or degC)."""
@@ -295,18 +391,27 @@ class ComparisonView(View):
             bore = bore * bore_scale
         parts = [build_part(d) for d in descriptions]
         from rheoline import Line, Tube
+
         if bore is not sized.inner_diameter:
             # a swept or sampled bore is the same lumen (its bore, length, roughness and name)
             # without the catalogue's outer diameter, which only bounds a nominal part's bore
-            parts[index] = Tube(inner_diameter=bore, length=sized.length, name=sized.name,
-                                roughness=getattr(sized, "roughness", 0.0))
+            parts[index] = Tube(
+                inner_diameter=bore,
+                length=sized.length,
+                name=sized.name,
+                roughness=getattr(sized, "roughness", 0.0),
+            )
         t = shared["temperature_c"] if temperature is None else temperature
         if sweep == "temperature":
             t = values if temperature is None else values + (temperature - shared["temperature_c"])
         fluid = fluid_for(shared["fluid"], t, shared["hematocrit"], shared["mass_fraction"])
         head = values if sweep == "head" else shared["head"]
-        return Line(parts).solve(fluid, head=head, source_pressure=shared["source_pressure"],
-                                 back_pressure=shared["back_pressure"])
+        return Line(parts).solve(
+            fluid,
+            head=head,
+            source_pressure=shared["source_pressure"],
+            back_pressure=shared["back_pressure"],
+        )
 
     def _x(self, candidate, sweep, values):
         """The chart's x for a candidate: the sweep values, or its bores [mm] for "bore"."""
@@ -327,8 +432,10 @@ class ComparisonView(View):
         key = self._key("curve", candidate, shared, sweep, values[0], values[-1], len(values))
         if key not in self._cache:
             result = self._solve(candidate, shared, sweep, values * SWEEPS[sweep][2])
-            self._cache[key] = (self._x(candidate, sweep, values),
-                                np.asarray(result.flow, dtype=float))
+            self._cache[key] = (
+                self._x(candidate, sweep, values),
+                np.asarray(result.flow, dtype=float),
+            )
         return self._cache[key]
 
     def _samples(self):
@@ -336,8 +443,9 @@ class ComparisonView(View):
         bore_tol, temperature_tol = self._tolerances()
         u = np.random.default_rng(BAND_SEED).uniform(-1.0, 1.0, size=(2, BAND_SAMPLES, 1))
         scale = 1.0 + bore_tol * u[0] if bore_tol else None
-        temperature = (self._shared()["temperature_c"] + temperature_tol * u[1]
-                       if temperature_tol else None)
+        temperature = (
+            self._shared()["temperature_c"] + temperature_tol * u[1] if temperature_tol else None
+        )
         return scale, temperature
 
     def _percentiles(self, candidate, shared, sweep, values):
@@ -353,8 +461,14 @@ class ComparisonView(View):
         scale, temperature = self._samples()
         if temperature is None:
             scale = np.percentile(scale, [5.0, 95.0], axis=0, method="inverted_cdf")
-        result = self._solve(candidate, shared, sweep, values * SWEEPS[sweep][2],
-                             bore_scale=scale, temperature=temperature)
+        result = self._solve(
+            candidate,
+            shared,
+            sweep,
+            values * SWEEPS[sweep][2],
+            bore_scale=scale,
+            temperature=temperature,
+        )
         flows = np.asarray(result.flow, dtype=float)
         if temperature is None:
             return flows[0], flows[1]
@@ -372,8 +486,17 @@ class ComparisonView(View):
             return None
         shared, sweep = self._shared(), self.controls["sweep"].value
         values = self.sweep_values(None if temperature_tol == 0 else BAND_POINTS)
-        key = self._key("band", candidate, shared, sweep, values[0], values[-1], len(values),
-                        bore_tol, temperature_tol)
+        key = self._key(
+            "band",
+            candidate,
+            shared,
+            sweep,
+            values[0],
+            values[-1],
+            len(values),
+            bore_tol,
+            temperature_tol,
+        )
         if key not in self._cache:
             p5, p95 = self._percentiles(candidate, shared, sweep, values)
             self._cache[key] = (self._x(candidate, sweep, values), p5, p95)
@@ -386,12 +509,20 @@ class ComparisonView(View):
         if key not in self._cache:
             descriptions = candidate["parts"]
             from rheoline import Line
+
             line = Line([build_part(d) for d in descriptions])
-            fluid = fluid_for(shared["fluid"], shared["temperature_c"], shared["hematocrit"],
-                              shared["mass_fraction"])
-            self._cache[key] = line.solve(fluid, head=shared["head"],
-                                          source_pressure=shared["source_pressure"],
-                                          back_pressure=shared["back_pressure"])
+            fluid = fluid_for(
+                shared["fluid"],
+                shared["temperature_c"],
+                shared["hematocrit"],
+                shared["mass_fraction"],
+            )
+            self._cache[key] = line.solve(
+                fluid,
+                head=shared["head"],
+                source_pressure=shared["source_pressure"],
+                back_pressure=shared["back_pressure"],
+            )
         return self._cache[key]
 
     # -- drawing -----------------------------------------------------------------------
@@ -399,17 +530,30 @@ class ComparisonView(View):
         traces = []
         for i, candidate in enumerate(self.candidates):
             s = series_style(i)
-            traces.append(go.Scatter(name=f"{candidate['name']} p5-p95", mode="lines",
-                                     fill="toself", fillcolor=s["color"], opacity=BAND_OPACITY,
-                                     line=dict(width=0), hoverinfo="skip", showlegend=False,
-                                     legendgroup=candidate["name"]))
+            traces.append(
+                go.Scatter(
+                    name=f"{candidate['name']} p5-p95",
+                    mode="lines",
+                    fill="toself",
+                    fillcolor=s["color"],
+                    opacity=BAND_OPACITY,
+                    line=dict(width=0),
+                    hoverinfo="skip",
+                    showlegend=False,
+                    legendgroup=candidate["name"],
+                )
+            )
         for i, candidate in enumerate(self.candidates):
             s = series_style(i)
-            traces.append(go.Scatter(name=candidate["name"], mode="lines+markers",
-                                     line=dict(color=s["color"], dash=s["dash"], width=2.5),
-                                     marker=dict(symbol=s["marker"], size=8, color=s["color"],
-                                                 maxdisplayed=12),
-                                     legendgroup=candidate["name"]))
+            traces.append(
+                go.Scatter(
+                    name=candidate["name"],
+                    mode="lines+markers",
+                    line=dict(color=s["color"], dash=s["dash"], width=2.5),
+                    marker=dict(symbol=s["marker"], size=8, color=s["color"], maxdisplayed=12),
+                    legendgroup=candidate["name"],
+                )
+            )
         return traces
 
     def _refresh(self, parts):
@@ -431,8 +575,8 @@ class ComparisonView(View):
         n = len(self.candidates)
         with fig.batch_update():
             if len(fig.data) != 2 * n or any(
-                    t.name != c["name"] for t, c in zip(fig.data[n:], self.candidates,
-                                                        strict=False)):
+                t.name != c["name"] for t, c in zip(fig.data[n:], self.candidates, strict=False)
+            ):
                 fig.data = []
                 fig.add_traces(self._traces())
             for i, ((x, flow), band) in enumerate(zip(curves, bands, strict=True)):
@@ -451,11 +595,13 @@ class ComparisonView(View):
 
     def _draw_table(self):
         bore_tol, temperature_tol = self._tolerances()
-        head = ("<tr><th>candidate</th><th>parts</th><th>flow [mL/min]</th><th>flow [mL/h]</th>"
-                "<th>regime (max Re)</th><th>dominant part (share)</th>"
-                "<th>max wall shear stress [Pa]</th>"
-                + ("<th>flow p5-p95 [mL/min]</th>" if bore_tol or temperature_tol else "")
-                + "<th>flags</th></tr>")
+        head = (
+            "<tr><th>candidate</th><th>parts</th><th>flow [mL/min]</th><th>flow [mL/h]</th>"
+            "<th>regime (max Re)</th><th>dominant part (share)</th>"
+            "<th>max wall shear stress [Pa]</th>"
+            + ("<th>flow p5-p95 [mL/min]</th>" if bore_tol or temperature_tol else "")
+            + "<th>flags</th></tr>"
+        )
         rows = []
         for candidate in self.candidates:
             r = self.operating_point(candidate)
@@ -464,9 +610,16 @@ class ComparisonView(View):
             if str(r.regime) != "laminar":
                 flags.insert(0, flag_text("caution", f"{r.regime} flow"))
             if float(r.max_wall_shear_stress) > HEMOLYSIS_CONCERN_STRESS and _is_blood(
-                    self.controls["fluid"].value):
-                flags.insert(0, flag_text("caution", "hemolysis concern: wall shear stress above "
-                                          f"{HEMOLYSIS_CONCERN_STRESS:g} Pa"))
+                self.controls["fluid"].value
+            ):
+                flags.insert(
+                    0,
+                    flag_text(
+                        "caution",
+                        "hemolysis concern: wall shear stress above "
+                        f"{HEMOLYSIS_CONCERN_STRESS:g} Pa",
+                    ),
+                )
             band_cell = ""
             if bore_tol or temperature_tol:
                 band_cell = f"<td>{self._point_band(candidate)}</td>"
@@ -480,7 +633,8 @@ class ComparisonView(View):
                 f"<td>{html.escape(str(r.dominant_part))} "
                 f"({significant(100 * float(r.dominant_share), 2)} %)</td>"
                 f"<td>{significant(float(r.max_wall_shear_stress))}</td>{band_cell}"
-                f"<td>{html.escape('; '.join(flags) or '[ok] ok: no flags')}</td></tr>")
+                f"<td>{html.escape('; '.join(flags) or '[ok] ok: no flags')}</td></tr>"
+            )
         shared = self._shared()
         self.table.value = (
             f"<div><b>At the operating point</b>: head {significant(shared['head'] * 100)} cm, "
@@ -488,7 +642,8 @@ class ComparisonView(View):
             f"pressure {significant(shared['back_pressure'] / MMHG)} mmHg, "
             f"{html.escape(shared['fluid'])} at {significant(shared['temperature_c'])} degC</div>"
             "<table class='rl-table' style='border-collapse:collapse' border='1' "
-            f"cellpadding='4'>{head}{''.join(rows)}</table>")
+            f"cellpadding='4'>{head}{''.join(rows)}</table>"
+        )
 
     def _point_band(self, candidate):
         """p5-p95 flow [mL/min] at the operating point, cached."""
@@ -496,10 +651,12 @@ class ComparisonView(View):
         shared = self._shared()
         key = ("point-band", _freeze(candidate), _freeze(shared), bore_tol, temperature_tol)
         if key not in self._cache:
-            p5, p95 = self._percentiles(candidate, shared, "head",
-                                        np.asarray([shared["head"] / SWEEPS["head"][2]]))
-            self._cache[key] = (f"{significant(p5[0] / ML_PER_MIN)}-"
-                                f"{significant(p95[0] / ML_PER_MIN)}")
+            p5, p95 = self._percentiles(
+                candidate, shared, "head", np.asarray([shared["head"] / SWEEPS["head"][2]])
+            )
+            self._cache[key] = (
+                f"{significant(p5[0] / ML_PER_MIN)}-{significant(p95[0] / ML_PER_MIN)}"
+            )
         return self._cache[key]
 
 
@@ -510,7 +667,10 @@ def responsiveness_case(points: int = 200, bore_tolerance_percent: float = 5.0) 
     Time one control change with :meth:`View.set_control`, e.g.
     ``view.set_control("temperature_c", 23.0)`` returns the update's Python time [s].
     """
-    candidates = [{"name": f"set + {g}G", "parts": (_SET, {"type": "catheter", "gauge": g})}
-                  for g in CATHETER_GAUGES[:7]]
-    return ComparisonView(candidates=candidates, points=points,
-                          bore_tolerance_percent=bore_tolerance_percent)
+    candidates = [
+        {"name": f"set + {g}G", "parts": (_SET, {"type": "catheter", "gauge": g})}
+        for g in CATHETER_GAUGES[:7]
+    ]
+    return ComparisonView(
+        candidates=candidates, points=points, bore_tolerance_percent=bore_tolerance_percent
+    )

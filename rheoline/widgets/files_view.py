@@ -37,8 +37,13 @@ from rheoline.widgets.base import _STYLE, View, labelled
 from rheoline.widgets.compare_view import sized_part_index
 from rheoline.widgets.style import flag_html
 
-__all__ = ["FilesView", "scenario_data", "apply_scenarios", "descriptions_from_scenario",
-           "MAX_LOADED_CANDIDATES"]
+__all__ = [
+    "FilesView",
+    "scenario_data",
+    "apply_scenarios",
+    "descriptions_from_scenario",
+    "MAX_LOADED_CANDIDATES",
+]
 
 #: Most comparison candidates a loaded file fills in.
 MAX_LOADED_CANDIDATES = 7
@@ -91,9 +96,11 @@ def scenario_data(line_view=None, compare_view=None, title="Saved from the rheol
     scenarios = []
     if line_view is not None:
         c = line_view.controls
-        sc = {"name": "line view",
-              **_fluid_fields(c),
-              "back_pressure": _q(c["back_pressure_mmhg"].value, "mmHg")}
+        sc = {
+            "name": "line view",
+            **_fluid_fields(c),
+            "back_pressure": _q(c["back_pressure_mmhg"].value, "mmHg"),
+        }
         if c["mode"].value == "set flow (pump)":  # a pump drive: no head, as in the views
             sc["flow"] = _q(c["flow_ml_min"].value, "mL/min")
             if c["pressure_limit_mmhg"].value > 0:
@@ -105,16 +112,20 @@ def scenario_data(line_view=None, compare_view=None, title="Saved from the rheol
         scenarios.append(sc)
     if compare_view is not None:
         c = compare_view.controls
-        shared = {**_fluid_fields(c),
-                  "head": _q(c["head_cm"].value, "cm"),
-                  "source_pressure": _q(c["source_pressure_mmhg"].value, "mmHg"),
-                  "back_pressure": _q(c["back_pressure_mmhg"].value, "mmHg")}
+        shared = {
+            **_fluid_fields(c),
+            "head": _q(c["head_cm"].value, "cm"),
+            "source_pressure": _q(c["source_pressure_mmhg"].value, "mmHg"),
+            "back_pressure": _q(c["back_pressure_mmhg"].value, "mmHg"),
+        }
         bore_tol = c["bore_tolerance_percent"].value
         temperature_tol = c["temperature_tolerance_c"].value
         for candidate in compare_view.candidates:
             sized = sized_part_index(candidate["parts"])
-            parts = [_part_table(d, bore_tol if i == sized else 0.0)
-                     for i, d in enumerate(candidate["parts"])]
+            parts = [
+                _part_table(d, bore_tol if i == sized else 0.0)
+                for i, d in enumerate(candidate["parts"])
+            ]
             sc = {"name": f"compare: {candidate['name']}", **shared, "part": parts}
             if temperature_tol:
                 sc["tolerance"] = {"temperature": _q(temperature_tol, "degC")}
@@ -129,9 +140,14 @@ def descriptions_from_scenario(scenario, point=None):
     point = point or {}
     out = []
     for j, spec in enumerate(scenario.parts, start=1):
-        values = {k: (point[f"part[{j}].{k}"][0] if f"part[{j}].{k}" in point else
-                      (v.values[0] if isinstance(v, Axis) else v))
-                  for k, v in spec.values.items()}
+        values = {
+            k: (
+                point[f"part[{j}].{k}"][0]
+                if f"part[{j}].{k}" in point
+                else (v.values[0] if isinstance(v, Axis) else v)
+            )
+            for k, v in spec.values.items()
+        }
         label = "" if spec.label == spec.type else spec.label
         d = {"type": spec.type}
         if label:
@@ -150,18 +166,21 @@ def descriptions_from_scenario(scenario, point=None):
         if spec.type == "fitting":
             d["k"] = float(values.get("k", 0.0))
         if spec.type == "set":
-            d["part"] = model_parts.extension_set(values["kind"], length=values.get("length"),
-                                                  name=label or None)
+            d["part"] = model_parts.extension_set(
+                values["kind"], length=values.get("length"), name=label or None
+            )
             d["raw"] = {**raw, "kind": values["kind"]}
             if "length" in values:
                 d["raw"]["length"] = _q(values["length"], "m")
         if spec.type == "measured":
-            d["part"] = model_parts.MeasuredPart(flows=values["flows"],
-                                                 pressure_drops=values["pressure_drops"],
-                                                 name=label or None)
-            d["raw"] = {**raw, "flows": [_q(q * 6e7, "mL/min") for q in values["flows"]],
-                        "pressure_drops": [_q(p / MMHG, "mmHg")
-                                           for p in values["pressure_drops"]]}
+            d["part"] = model_parts.MeasuredPart(
+                flows=values["flows"], pressure_drops=values["pressure_drops"], name=label or None
+            )
+            d["raw"] = {
+                **raw,
+                "flows": [_q(q * 6e7, "mL/min") for q in values["flows"]],
+                "pressure_drops": [_q(p / MMHG, "mmHg") for p in values["pressure_drops"]],
+            }
         out.append(d)
     return out
 
@@ -208,8 +227,10 @@ def apply_scenarios(sset, line_view=None, compare_view=None):
         finally:
             line_view._paused = False
         line_view._run(lambda: line_view._refresh({"solve"}))
-        notes.append(f"line view: scenario '{first.name}'"
-                     + (" (first point of its sweep)" if first.axes else ""))
+        notes.append(
+            f"line view: scenario '{first.name}'"
+            + (" (first point of its sweep)" if first.axes else "")
+        )
     if compare_view is not None:
         candidates = []
         ours = [sc for sc in sset.scenarios if sc.name.startswith("compare: ")]
@@ -224,11 +245,11 @@ def apply_scenarios(sset, line_view=None, compare_view=None):
                 seen.add(key)
                 name = sc.name.removeprefix("compare: ")
                 name += f" {' '.join(str(k) for k in key)}" if part_axes else ""
-                candidates.append({"name": name,
-                                   "parts": descriptions_from_scenario(sc, point)})
+                candidates.append({"name": name, "parts": descriptions_from_scenario(sc, point)})
         if len(candidates) > MAX_LOADED_CANDIDATES:
-            notes.append(f"comparison: the first {MAX_LOADED_CANDIDATES} of "
-                         f"{len(candidates)} candidates")
+            notes.append(
+                f"comparison: the first {MAX_LOADED_CANDIDATES} of {len(candidates)} candidates"
+            )
             candidates = candidates[:MAX_LOADED_CANDIDATES]
         drive = next((sc for sc in sset.scenarios if sc.mode != "flow"), None)
         compare_view._paused = True
@@ -251,40 +272,64 @@ class FilesView(View):
         super().__init__()
         self.line_view, self.compare_view = line_view, compare_view
         c = self.controls
-        c["scenario_path"] = labelled(widgets.Text(value="rheoline-scenarios.toml",
-                                                   description="scenario file", style=_STYLE,
-                                                   layout=widgets.Layout(width="520px")),
-                                      "rl-scenario-path")
-        c["pack_path"] = labelled(widgets.Text(value="rheoline-pack",
-                                               description="review pack folder", style=_STYLE,
-                                               layout=widgets.Layout(width="520px")),
-                                  "rl-pack-path")
-        c["overwrite"] = widgets.Checkbox(value=False, description="replace an existing file "
-                                          "or an earlier review pack", indent=False)
-        self.load_button = labelled(widgets.Button(description="load scenario file",
-                                                   icon="folder-open"), "rl-load")
-        self.save_button = labelled(widgets.Button(description="save as scenario file",
-                                                   icon="save"), "rl-save")
-        self.pack_button = labelled(widgets.Button(description="write review pack",
-                                                   icon="file-export"), "rl-pack")
-        self.upload = widgets.FileUpload(accept=".toml,.json", multiple=False,
-                                         description="upload a scenario file")
+        c["scenario_path"] = labelled(
+            widgets.Text(
+                value="rheoline-scenarios.toml",
+                description="scenario file",
+                style=_STYLE,
+                layout=widgets.Layout(width="520px"),
+            ),
+            "rl-scenario-path",
+        )
+        c["pack_path"] = labelled(
+            widgets.Text(
+                value="rheoline-pack",
+                description="review pack folder",
+                style=_STYLE,
+                layout=widgets.Layout(width="520px"),
+            ),
+            "rl-pack-path",
+        )
+        c["overwrite"] = widgets.Checkbox(
+            value=False,
+            description="replace an existing file or an earlier review pack",
+            indent=False,
+        )
+        self.load_button = labelled(
+            widgets.Button(description="load scenario file", icon="folder-open"), "rl-load"
+        )
+        self.save_button = labelled(
+            widgets.Button(description="save as scenario file", icon="save"), "rl-save"
+        )
+        self.pack_button = labelled(
+            widgets.Button(description="write review pack", icon="file-export"), "rl-pack"
+        )
+        self.upload = widgets.FileUpload(
+            accept=".toml,.json", multiple=False, description="upload a scenario file"
+        )
         self.status = labelled(widgets.HTML(), "rl-files-status")
         self.load_button.on_click(lambda b: self._run(self.load))
         self.save_button.on_click(lambda b: self._run(self.save))
         self.pack_button.on_click(lambda b: self._run(self.write_pack))
         self.upload.observe(lambda change: self._run(self._uploaded), names="value")
-        self._finish([
-            widgets.HTML("<b>Scenario files</b> (TOML or JSON, as <code>rheoline run</code> "
-                         "reads them) and <b>review packs</b> (CSV, XLSX, HTML) of what the "
-                         "line and comparison views show."),
-            c["scenario_path"], widgets.HBox([self.load_button, self.save_button, self.upload]),
-            c["pack_path"], widgets.HBox([self.pack_button, c["overwrite"]]), self.status])
+        self._finish(
+            [
+                widgets.HTML(
+                    "<b>Scenario files</b> (TOML or JSON, as <code>rheoline run</code> "
+                    "reads them) and <b>review packs</b> (CSV, XLSX, HTML) of what the "
+                    "line and comparison views show."
+                ),
+                c["scenario_path"],
+                widgets.HBox([self.load_button, self.save_button, self.upload]),
+                c["pack_path"],
+                widgets.HBox([self.pack_button, c["overwrite"]]),
+                self.status,
+            ]
+        )
 
     def current_set(self):
         """What is on screen as a validated scenario set."""
-        return parse_scenarios(scenario_data(self.line_view, self.compare_view),
-                               source="<views>")
+        return parse_scenarios(scenario_data(self.line_view, self.compare_view), source="<views>")
 
     def _say(self, level, text):
         self.status.value = flag_html(level, text)
@@ -304,16 +349,20 @@ class FilesView(View):
         name = item["name"]
         raw = bytes(item["content"])
         if len(raw) > MAX_FILE_BYTES:
-            raise ScenarioError(f"{len(raw)} bytes is more than the {MAX_FILE_BYTES} bytes a "
-                                "scenario file may hold; split it into smaller files",
-                                source=name)
+            raise ScenarioError(
+                f"{len(raw)} bytes is more than the {MAX_FILE_BYTES} bytes a "
+                "scenario file may hold; split it into smaller files",
+                source=name,
+            )
         try:
             text = raw.decode("utf-8")
         except UnicodeDecodeError:
-            raise ScenarioError("is not UTF-8 text; save the scenario file as UTF-8 TOML or "
-                                "JSON and upload it again", source=name) from None
-        sset = loads_scenarios(text, source=name, fmt="json" if name.endswith(".json")
-                               else "toml")
+            raise ScenarioError(
+                "is not UTF-8 text; save the scenario file as UTF-8 TOML or "
+                "JSON and upload it again",
+                source=name,
+            ) from None
+        sset = loads_scenarios(text, source=name, fmt="json" if name.endswith(".json") else "toml")
         account = apply_scenarios(sset, self.line_view, self.compare_view)
         self._say("ok", f"loaded {name}: {account}")
 

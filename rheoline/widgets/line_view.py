@@ -82,8 +82,11 @@ def _fluid_cached(name, temperature_c, hematocrit, mass_fraction):
 
 
 def _frozen(descriptions):
-    return tuple(tuple(sorted((k, v) for k, v in d.items() if k != "part"))
-                 + ((("part", id(d["part"])),) if "part" in d else ()) for d in descriptions)
+    return tuple(
+        tuple(sorted((k, v) for k, v in d.items() if k != "part"))
+        + ((("part", id(d["part"])),) if "part" in d else ())
+        for d in descriptions
+    )
 
 
 def line_for(descriptions) -> rheoline.Line:
@@ -118,41 +121,85 @@ class LineView(View):
 
     title = "Line"
 
-    def __init__(self, parts=DEFAULT_PARTS, fluid: str = "saline-0.9",
-                 temperature_c: float = 22.0, hematocrit: float = 0.45,
-                 head_cm: float = 100.0, source_pressure_mmhg: float = 0.0,
-                 back_pressure_mmhg: float = 0.0, flow_ml_min: float = 100.0,
-                 pressure_limit_mmhg: float = 300.0, mode: str = "gravity and pressure",
-                 lazy: bool = False):
+    def __init__(
+        self,
+        parts=DEFAULT_PARTS,
+        fluid: str = "saline-0.9",
+        temperature_c: float = 22.0,
+        hematocrit: float = 0.45,
+        head_cm: float = 100.0,
+        source_pressure_mmhg: float = 0.0,
+        back_pressure_mmhg: float = 0.0,
+        flow_ml_min: float = 100.0,
+        pressure_limit_mmhg: float = 300.0,
+        mode: str = "gravity and pressure",
+        lazy: bool = False,
+    ):
         super().__init__()
         c = self.controls
         self.editor = PartsEditor(parts)
         c["parts"] = self.editor.version
         c.update(fluid_controls(fluid, temperature_c, hematocrit))
-        c["mode"] = labelled(widgets.ToggleButtons(options=list(DRIVE_MODES), value=mode,
-                                                   description="drive", style=_STYLE), "rl-mode")
+        c["mode"] = labelled(
+            widgets.ToggleButtons(
+                options=list(DRIVE_MODES), value=mode, description="drive", style=_STYLE
+            ),
+            "rl-mode",
+        )
         c.update(drive_controls(head_cm, source_pressure_mmhg, back_pressure_mmhg))
-        c["flow_ml_min"] = labelled(widgets.BoundedFloatText(
-            value=flow_ml_min, min=0.001, max=20000.0, step=5.0,
-            description="set flow [mL/min]", style=_STYLE), "rl-set-flow")
-        c["pressure_limit_mmhg"] = labelled(widgets.BoundedFloatText(
-            value=pressure_limit_mmhg, min=0.0, max=45000.0, step=10.0,
-            description="pressure limit [mmHg] (0 = none)", style=_STYLE), "rl-pressure-limit")
+        c["flow_ml_min"] = labelled(
+            widgets.BoundedFloatText(
+                value=flow_ml_min,
+                min=0.001,
+                max=20000.0,
+                step=5.0,
+                description="set flow [mL/min]",
+                style=_STYLE,
+            ),
+            "rl-set-flow",
+        )
+        c["pressure_limit_mmhg"] = labelled(
+            widgets.BoundedFloatText(
+                value=pressure_limit_mmhg,
+                min=0.0,
+                max=45000.0,
+                step=10.0,
+                description="pressure limit [mmHg] (0 = none)",
+                style=_STYLE,
+            ),
+            "rl-pressure-limit",
+        )
         self.results = labelled(widgets.HTML(), "rl-results")
         self.result = None
 
         self.figures["budget"] = go.Figure(
-            data=[go.Bar(name="pressure drop", orientation="h",
-                         marker=dict(color=PALETTE[0], line=dict(color="#1a1a1a", width=1)),
-                         textposition="auto")],
-            layout=go.Layout(title="Pressure budget: where the drive goes",
-                             xaxis_title="pressure drop [mmHg]",
-                             yaxis=dict(autorange="reversed"),
-                             **{**BASE_LAYOUT, "showlegend": False}))
+            data=[
+                go.Bar(
+                    name="pressure drop",
+                    orientation="h",
+                    marker=dict(color=PALETTE[0], line=dict(color="#1a1a1a", width=1)),
+                    textposition="auto",
+                )
+            ],
+            layout=go.Layout(
+                title="Pressure budget: where the drive goes",
+                xaxis_title="pressure drop [mmHg]",
+                yaxis=dict(autorange="reversed"),
+                **{**BASE_LAYOUT, "showlegend": False},
+            ),
+        )
         self.figures["drive"] = curve_and_point_figure(
-            "Flow against drive", "this line", "current drive",
-            extra_traces=[go.Scatter(name="pressure limit", mode="lines",
-                                     line=dict(color=PALETTE[3], width=2, dash="dash"))])
+            "Flow against drive",
+            "this line",
+            "current drive",
+            extra_traces=[
+                go.Scatter(
+                    name="pressure limit",
+                    mode="lines",
+                    line=dict(color=PALETTE[3], width=2, dash="dash"),
+                )
+            ],
+        )
 
         self._line_key = None
         self._line = None
@@ -160,13 +207,27 @@ class LineView(View):
         self._run(lambda: self._refresh({"solve"}))
         self._widgetize(lazy)
 
-        drive_box = widgets.VBox([c["mode"], c["head_cm"], c["source_pressure_mmhg"],
-                                  c["flow_ml_min"], c["pressure_limit_mmhg"],
-                                  c["back_pressure_mmhg"]])
-        fluid_box = widgets.VBox([c["fluid"], c["temperature_c"], c["hematocrit"],
-                                  c["mass_fraction"]])
-        self._finish([self.editor, widgets.HBox([fluid_box, drive_box]), self.results,
-                      widgets.HBox([self.figure_box("budget"), self.figure_box("drive")])])
+        drive_box = widgets.VBox(
+            [
+                c["mode"],
+                c["head_cm"],
+                c["source_pressure_mmhg"],
+                c["flow_ml_min"],
+                c["pressure_limit_mmhg"],
+                c["back_pressure_mmhg"],
+            ]
+        )
+        fluid_box = widgets.VBox(
+            [c["fluid"], c["temperature_c"], c["hematocrit"], c["mass_fraction"]]
+        )
+        self._finish(
+            [
+                self.editor,
+                widgets.HBox([fluid_box, drive_box]),
+                self.results,
+                widgets.HBox([self.figure_box("budget"), self.figure_box("drive")]),
+            ]
+        )
 
     # -- inputs to the line engine ---------------------------------------------------
     def line(self) -> rheoline.Line:
@@ -181,8 +242,12 @@ class LineView(View):
     def fluid(self):
         """The fluid at the current temperature and hematocrit."""
         c = self.controls
-        return fluid_for(c["fluid"].value, c["temperature_c"].value, c["hematocrit"].value,
-                         c["mass_fraction"].value)
+        return fluid_for(
+            c["fluid"].value,
+            c["temperature_c"].value,
+            c["hematocrit"].value,
+            c["mass_fraction"].value,
+        )
 
     def drive(self) -> dict:
         """Keyword arguments of :meth:`rheoline.Line.solve` for the current drive (SI)."""
@@ -191,10 +256,16 @@ class LineView(View):
         if c["mode"].value == "set flow (pump)":
             # the pump's outlet pressure is the whole drive (no bag head), as in scenario files
             limit = c["pressure_limit_mmhg"].value
-            return {"back_pressure": back, "flow": c["flow_ml_min"].value * ML_PER_MIN,
-                    "pressure_limit": limit * MMHG if limit > 0 else None}
-        return {"head": c["head_cm"].value * 1e-2, "back_pressure": back,
-                "source_pressure": c["source_pressure_mmhg"].value * MMHG}
+            return {
+                "back_pressure": back,
+                "flow": c["flow_ml_min"].value * ML_PER_MIN,
+                "pressure_limit": limit * MMHG if limit > 0 else None,
+            }
+        return {
+            "head": c["head_cm"].value * 1e-2,
+            "back_pressure": back,
+            "source_pressure": c["source_pressure_mmhg"].value * MMHG,
+        }
 
     def solve(self):
         """The line engine's result for the current inputs."""
@@ -239,11 +310,14 @@ class LineView(View):
             f"<div>flow <b><span class='rl-flow' data-flow-ml-min='{flow / ML_PER_MIN!r}'>"
             f"{significant(flow / ML_PER_MIN)} mL/min</span></b> "
             f"(<span class='rl-flow-h'>{significant(flow / ML_PER_H)} mL/h</span>)</div>",
-            (f"<div>required pump pressure <b><span class='rl-required-pressure'>"
-             f"{format_number(required / MMHG, 'mmHg')}</span></b> "
-             f"({format_number(required / 1e3, 'kPa')})</div>" if pump else
-             f"<div>net drive <b>{format_number(float(result.net_drive) / MMHG, 'mmHg')}</b> "
-             f"(gravity head plus source pressure, less back pressure)</div>"),
+            (
+                f"<div>required pump pressure <b><span class='rl-required-pressure'>"
+                f"{format_number(required / MMHG, 'mmHg')}</span></b> "
+                f"({format_number(required / 1e3, 'kPa')})</div>"
+                if pump
+                else f"<div>net drive <b>{format_number(float(result.net_drive) / MMHG, 'mmHg')}</b> "
+                f"(gravity head plus source pressure, less back pressure)</div>"
+            ),
             f"<div>regime <b><span class='rl-regime'>{html.escape(regime)}</span></b> "
             f"(largest Reynolds number {significant(float(result.max_reynolds))})</div>",
             f"<div>largest wall shear stress <b>"
@@ -258,11 +332,18 @@ class LineView(View):
             flags.append(flag_html("caution", f"{regime} flow: losses rise faster than the flow"))
         if pump and bool(np.any(result.exceeds_pressure_limit)):
             flags.append(flag_html("exceeded", "the required pressure is above the pressure limit"))
-        if _is_blood(self.controls["fluid"].value) and \
-                float(result.max_wall_shear_stress) > HEMOLYSIS_CONCERN_STRESS:
-            flags.append(flag_html("caution", "hemolysis concern: wall shear stress above "
-                                   f"{HEMOLYSIS_CONCERN_STRESS:g} Pa (screening threshold of the "
-                                   "scenario layer)"))
+        if (
+            _is_blood(self.controls["fluid"].value)
+            and float(result.max_wall_shear_stress) > HEMOLYSIS_CONCERN_STRESS
+        ):
+            flags.append(
+                flag_html(
+                    "caution",
+                    "hemolysis concern: wall shear stress above "
+                    f"{HEMOLYSIS_CONCERN_STRESS:g} Pa (screening threshold of the "
+                    "scenario layer)",
+                )
+            )
         flags += [flag_html("caution", text) for text in result.flags]
         if not flags:
             flags.append(flag_html("ok", "no validity flags for these inputs"))
@@ -270,14 +351,21 @@ class LineView(View):
 
     def _draw_budget(self, result):
         labels = [f"{i}. {p.name}" for i, p in enumerate(self.line().parts, start=1)] + ["exit"]
-        drops = np.append(np.asarray(result.part_pressure_drops, dtype=float),
-                          float(result.exit_pressure_drop)) / MMHG
+        drops = (
+            np.append(
+                np.asarray(result.part_pressure_drops, dtype=float),
+                float(result.exit_pressure_drop),
+            )
+            / MMHG
+        )
         total = drops.sum()
         shares = drops / total if total > 0 else np.zeros_like(drops)
         dominant = int(np.argmax(drops))
-        text = [f"{significant(d)} mmHg, {significant(100 * s, 2)} %"
-                + (" (dominant)" if i == dominant else "")
-                for i, (d, s) in enumerate(zip(drops, shares, strict=True))]
+        text = [
+            f"{significant(d)} mmHg, {significant(100 * s, 2)} %"
+            + (" (dominant)" if i == dominant else "")
+            for i, (d, s) in enumerate(zip(drops, shares, strict=True))
+        ]
         fig = self.figures["budget"]
         with fig.batch_update():
             bar = fig.data[0]

@@ -76,21 +76,30 @@ def build_part(description: dict, inner_diameter=None, length=None):
     name = description.get("label") or None
     bore = _given(description, "inner_diameter_mm")
     given_length = _given(description, "length_cm")
-    bore_m = inner_diameter if inner_diameter is not None else (
-        None if bore is None else bore * 1e-3)
-    length_m = length if length is not None else (
-        None if given_length is None else given_length * 1e-2)
+    bore_m = (
+        inner_diameter if inner_diameter is not None else (None if bore is None else bore * 1e-3)
+    )
+    length_m = (
+        length if length is not None else (None if given_length is None else given_length * 1e-2)
+    )
     if kind == "catheter":
-        return rheoline.Catheter(gauge=int(description["gauge"]), inner_diameter=bore_m,
-                                 length=length_m, name=name)
+        return rheoline.Catheter(
+            gauge=int(description["gauge"]), inner_diameter=bore_m, length=length_m, name=name
+        )
     if kind == "needle":
         kwargs = {} if length_m is None else {"length": length_m}
-        return rheoline.Needle(gauge=int(description["gauge"]), inner_diameter=bore_m,
-                               wall=description.get("wall", "regular"), name=name, **kwargs)
+        return rheoline.Needle(
+            gauge=int(description["gauge"]),
+            inner_diameter=bore_m,
+            wall=description.get("wall", "regular"),
+            name=name,
+            **kwargs,
+        )
     if kind == "cannula":
         kwargs = {} if length_m is None else {"length": length_m}
-        return rheoline.Cannula(french=float(description["french"]), inner_diameter=bore_m,
-                                name=name, **kwargs)
+        return rheoline.Cannula(
+            french=float(description["french"]), inner_diameter=bore_m, name=name, **kwargs
+        )
     if kind == "tube":
         return rheoline.Tube(inner_diameter=bore_m, length=length_m, name=name)
     if kind == "fitting":
@@ -98,7 +107,8 @@ def build_part(description: dict, inner_diameter=None, length=None):
     if "part" in description:  # a set or a measured part from a scenario file
         return description["part"]
     raise rheoline.RheolineError(
-        f"part type {kind!r} is not one the editor knows; choose one of {PART_KINDS}")
+        f"part type {kind!r} is not one the editor knows; choose one of {PART_KINDS}"
+    )
 
 
 class PartRow(widgets.HBox):
@@ -110,25 +120,44 @@ class PartRow(widgets.HBox):
         self._fixed = description if "part" in description else None
         self._label = description.get("label", "")
         options = PART_KINDS if self._fixed is None else (description["type"],)
-        self.kind = widgets.Dropdown(options=options, value=description["type"],
-                                     layout=widgets.Layout(width=_W["type"]))
+        self.kind = widgets.Dropdown(
+            options=options, value=description["type"], layout=widgets.Layout(width=_W["type"])
+        )
         self.kind.add_class("rl-part-type")
         self.size = widgets.Dropdown(layout=widgets.Layout(width=_W["size"]))
         self.size.add_class("rl-part-size")
-        self.bore = widgets.BoundedFloatText(value=description.get("inner_diameter_mm") or 0.0,
-                                             min=0.0, max=60.0, step=0.01, description="bore [mm]",
-                                             layout=widgets.Layout(width=_W["num"]))
+        self.bore = widgets.BoundedFloatText(
+            value=description.get("inner_diameter_mm") or 0.0,
+            min=0.0,
+            max=60.0,
+            step=0.01,
+            description="bore [mm]",
+            layout=widgets.Layout(width=_W["num"]),
+        )
         self.bore.add_class("rl-part-bore")
-        self.length = widgets.BoundedFloatText(value=description.get("length_cm") or 0.0,
-                                               min=0.0, max=3000.0, step=0.1,
-                                               description="length [cm]",
-                                               layout=widgets.Layout(width=_W["num"]))
+        self.length = widgets.BoundedFloatText(
+            value=description.get("length_cm") or 0.0,
+            min=0.0,
+            max=3000.0,
+            step=0.1,
+            description="length [cm]",
+            layout=widgets.Layout(width=_W["num"]),
+        )
         self.length.add_class("rl-part-length")
-        self.k = widgets.BoundedFloatText(value=description.get("k", 1.0), min=0.0, max=1000.0,
-                                          step=0.1, description="K [-]",
-                                          layout=widgets.Layout(width="120px"))
-        self.remove = widgets.Button(description="", icon="trash", tooltip="remove this part",
-                                     layout=widgets.Layout(width=_W["button"]))
+        self.k = widgets.BoundedFloatText(
+            value=description.get("k", 1.0),
+            min=0.0,
+            max=1000.0,
+            step=0.1,
+            description="K [-]",
+            layout=widgets.Layout(width="120px"),
+        )
+        self.remove = widgets.Button(
+            description="",
+            icon="trash",
+            tooltip="remove this part",
+            layout=widgets.Layout(width=_W["button"]),
+        )
         self.remove.add_class("rl-part-remove")
         self._on_change = on_change
         self._quiet = True
@@ -144,8 +173,11 @@ class PartRow(widgets.HBox):
             self._on_change()
 
     def _sizes(self, kind, value=None):
-        sizes = {"catheter": CATHETER_GAUGES, "needle": NEEDLE_GAUGES,
-                 "cannula": CANNULA_FRENCH}.get(kind, ())
+        sizes = {
+            "catheter": CATHETER_GAUGES,
+            "needle": NEEDLE_GAUGES,
+            "cannula": CANNULA_FRENCH,
+        }.get(kind, ())
         if sizes:
             labels = [(f"{s} Fr" if kind == "cannula" else f"{s}G", s) for s in sizes]
             if value is not None and value not in sizes:
@@ -207,8 +239,9 @@ class PartsEditor(widgets.VBox):
     def __init__(self, descriptions=DEFAULT_PARTS):
         super().__init__()
         self.add_class("rl-parts-editor")
-        self.add_button = widgets.Button(description="add part", icon="plus",
-                                         tooltip="add a part at the outlet end")
+        self.add_button = widgets.Button(
+            description="add part", icon="plus", tooltip="add a part at the outlet end"
+        )
         self.add_button.add_class("rl-add-part")
         self.add_button.on_click(lambda button: self.add({"type": "fitting", "k": 0.5}))
         self.version = widgets.IntText(value=0, layout=widgets.Layout(display="none"))
@@ -222,8 +255,9 @@ class PartsEditor(widgets.VBox):
         return PartRow(description, self._changed, self.remove)
 
     def _layout(self):
-        header = widgets.HTML("<b>Parts, source to outlet</b> "
-                              "(bore or length 0 = the catalogue's nominal value)")
+        header = widgets.HTML(
+            "<b>Parts, source to outlet</b> (bore or length 0 = the catalogue's nominal value)"
+        )
         self.children = [header, *self.rows, self.add_button]
 
     def set_descriptions(self, descriptions, notify=True):

@@ -27,8 +27,15 @@ APP_NOTEBOOK = Path(__file__).resolve().parents[2] / "notebooks" / "app.ipynb"
 
 def voila_command(port: int = 8866, ip: str = "127.0.0.1", notebook=APP_NOTEBOOK) -> list[str]:
     """The Voila command line that serves ``notebook`` on ``ip:port``."""
-    return [sys.executable, "-m", "voila", "--no-browser", f"--port={port}",
-            f"--Voila.ip={ip}", str(notebook)]
+    return [
+        sys.executable,
+        "-m",
+        "voila",
+        "--no-browser",
+        f"--port={port}",
+        f"--Voila.ip={ip}",
+        str(notebook),
+    ]
 
 
 def serve_environment(environ=None) -> dict:
@@ -41,24 +48,31 @@ def serve_environment(environ=None) -> dict:
 
 def main(argv=None) -> int:
     """Run Voila in the foreground until interrupted; returns its exit status."""
-    parser = argparse.ArgumentParser(prog="python -m rheoline.widgets.serve",
-                                     description="Serve the rheoline views as a local web page.")
+    parser = argparse.ArgumentParser(
+        prog="python -m rheoline.widgets.serve",
+        description="Serve the rheoline views as a local web page.",
+    )
     parser.add_argument("--port", type=int, default=8866, help="port (default 8866)")
-    parser.add_argument("--ip", default="127.0.0.1",
-                        help="address to bind (default 127.0.0.1, this machine only)")
-    parser.add_argument("--print-command", action="store_true",
-                        help="print the Voila command instead of running it")
+    parser.add_argument(
+        "--ip", default="127.0.0.1", help="address to bind (default 127.0.0.1, this machine only)"
+    )
+    parser.add_argument(
+        "--print-command", action="store_true", help="print the Voila command instead of running it"
+    )
     args = parser.parse_args(argv)
     command = voila_command(args.port, args.ip)
     if args.print_command:
         sys.stdout.write(shlex.join(command) + "\n")
         return 0
     if not APP_NOTEBOOK.exists():
-        sys.stderr.write(f"the app notebook {APP_NOTEBOOK} is missing; run from a clone of the "
-                         "repository (pip install -e '.[widgets]')\n")
+        sys.stderr.write(
+            f"the app notebook {APP_NOTEBOOK} is missing; run from a clone of the "
+            "repository (pip install -e '.[widgets]')\n"
+        )
         return 2
-    sys.stderr.write(f"serving the rheoline app on http://{args.ip}:{args.port}/ "
-                     "(Ctrl-C stops it)\n")
+    sys.stderr.write(
+        f"serving the rheoline app on http://{args.ip}:{args.port}/ (Ctrl-C stops it)\n"
+    )
     try:
         return subprocess.call(command, cwd=APP_NOTEBOOK.parent, env=serve_environment())
     except KeyboardInterrupt:

@@ -79,8 +79,10 @@ def flag_text(level: str, message: str) -> str:
 def flag_html(level: str, message: str) -> str:
     """A flag as an HTML line (the message is escaped)."""
     symbol, word, colour = FLAG_LEVELS[level]
-    return (f"<div class='rl-flag rl-flag-{level}' style='color:{colour}'>"
-            f"<b>{html.escape(symbol)} {html.escape(word)}</b>: {html.escape(str(message))}</div>")
+    return (
+        f"<div class='rl-flag rl-flag-{level}' style='color:{colour}'>"
+        f"<b>{html.escape(symbol)} {html.escape(word)}</b>: {html.escape(str(message))}</div>"
+    )
 
 
 def significant(value: float, digits: int = 3) -> str:
@@ -104,8 +106,10 @@ def format_number(value: float, unit: str, digits: int = 3) -> str:
 
 def format_flow(flow_si: float, digits: int = 3) -> str:
     """A flow [m^3/s] in mL/min and mL/h."""
-    return (f"{significant(flow_si / ML_PER_MIN, digits)} mL/min "
-            f"({significant(flow_si / ML_PER_H, digits)} mL/h)")
+    return (
+        f"{significant(flow_si / ML_PER_MIN, digits)} mL/min "
+        f"({significant(flow_si / ML_PER_H, digits)} mL/h)"
+    )
 
 
 def format_pressure(pressure_si: float, unit: str = "mmHg", digits: int = 3) -> str:

@@ -40,8 +40,10 @@ def plain(value):
 
 
 def frame_data(frame):
-    return {"columns": [str(c) for c in frame.columns],
-            "rows": [[plain(v) for v in row] for row in frame.itertuples(index=False)]}
+    return {
+        "columns": [str(c) for c in frame.columns],
+        "rows": [[plain(v) for v in row] for row in frame.itertuples(index=False)],
+    }
 
 
 def example_tables():
@@ -73,7 +75,8 @@ def malformed_messages():
 def main():
     (HERE / "examples.json").write_text(json.dumps(example_tables(), indent=1) + "\n")
     (HERE / "malformed_messages.json").write_text(
-        json.dumps(malformed_messages(), indent=1, ensure_ascii=False) + "\n")
+        json.dumps(malformed_messages(), indent=1, ensure_ascii=False) + "\n"
+    )
 
 
 if __name__ == "__main__":
