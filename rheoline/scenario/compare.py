@@ -31,7 +31,8 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from rheoline.errors import RheolineError, ScenarioError
-from rheoline.scenario.files import Axis, ScenarioSet, sweep_points
+from rheoline.scenario.description import Axis, ScenarioSet, ToleranceSpec, sweep_points
+from rheoline.scenario.writing import scenario_data
 from rheoline.units import ML_PER_H, ML_PER_MIN, MMHG
 
 __all__ = [
@@ -120,8 +121,6 @@ ASSUMPTIONS = (
     ),
 )
 
-#: Monte Carlo samples per case when a scenario gives tolerances but no ``samples``.
-DEFAULT_TOLERANCE_SAMPLES = 2000
 
 # Part fields that select a catalogue entry, or are single values by nature: grouped on,
 # never vectorized.
@@ -438,7 +437,7 @@ def _build_parts(group, source):
     sc = group.scenario
     built, used = [], {}
     for j, (spec, pv) in enumerate(zip(sc.parts, group.parts, strict=True), start=1):
-        name = None if spec.label == spec.type else spec.label  # None: the engine names it
+        name = None if spec.name == spec.type else spec.name  # None: the engine names it
         if name is not None:
             used[name] = used.get(name, 0) + 1
             if used[name] > 1:
@@ -488,7 +487,7 @@ def _point_part_names(g, line):
             for k in _SIZE_FIELDS
             if isinstance(pv.get(k), np.ndarray) and pv[k].shape == (n,) and np.ptp(pv[k]) > 0
         ]
-        if spec.label != spec.type or not swept:
+        if spec.name != spec.type or not swept:
             continue
         by_size = {}
         for col in range(n):
@@ -937,7 +936,7 @@ def _regimes(reynolds):
 
 
 def _has_tolerance(sc):
-    return bool(sc.tolerance) or any(p.tolerance for p in sc.parts)
+    return sc.has_tolerance
 
 
 def _tolerance_band(sc, g, fl, line, res):
@@ -952,7 +951,7 @@ def _tolerance_band(sc, g, fl, line, res):
     from rheoline.errors import RangeWarning
 
     n = len(g.indices)
-    tol = sc.tolerance
+    tol = sc.tolerance or ToleranceSpec()
     lo, hi, top = np.full(n, np.nan), np.full(n, np.nan), [""] * n
     outside = np.zeros(n, dtype=bool)
     for col in range(n):
@@ -979,9 +978,8 @@ def _tolerance_case(sc, g, col, tol):
     for i, (spec, part) in enumerate(zip(sc.parts, case_line.parts, strict=True)):
         for key, target in (("inner_diameter", d_tol), ("length", l_tol)):
             if key in spec.tolerance:
-                how, width = spec.tolerance[key]
                 nominal = float(np.asarray(getattr(part, key)).ravel()[0])
-                target[i] = width if how == "relative" else width / nominal
+                target[i] = spec.tolerance[key].fraction_of(nominal)
     drive = {"back_pressure": one.values.get("back_pressure", 0.0)}
     if sc.mode == "flow":
         drive["flow"] = one.values["flow"]
@@ -998,7 +996,7 @@ def _tolerance_case(sc, g, col, tol):
         hematocrit_tolerance=tol.get("hematocrit", 0.0) if case_fluid.is_blood else 0.0,
         viscosity_tolerance=tol.get("viscosity", 0.0),
         fluid_builder=lambda opts=opts, **kw: make_fluid(g.values["fluid"], **opts, **kw),
-        n_samples=int(tol.get("samples", DEFAULT_TOLERANCE_SAMPLES)),
+        n_samples=sc.n_samples,
         seed=int(tol.get("seed", 0)),
         distribution=tol.get("distribution", "uniform"),
         percentiles=(5.0, 95.0),
@@ -1061,10 +1059,11 @@ def _inputs_table(sset):
 
     rows = []
     for sc in sset.scenarios:
-        for k, v in sc.raw.items():
+        data = scenario_data(sc)
+        for k, v in data.items():
             if k != "part":
                 rows.append([sc.name, k, _text_of(v)])
-        for j, p in enumerate(sc.raw.get("part", []), start=1):
+        for j, p in enumerate(data["part"], start=1):
             for k, v in p.items():
                 rows.append([sc.name, f"part[{j}].{k}", _text_of(v)])
     return pd.DataFrame(rows, columns=["scenario", "field", "value as written"])

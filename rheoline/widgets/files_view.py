@@ -148,7 +148,7 @@ def descriptions_from_scenario(scenario, point=None):
             )
             for k, v in spec.values.items()
         }
-        label = "" if spec.label == spec.type else spec.label
+        label = "" if spec.name == spec.type else spec.name
         d = {"type": spec.type}
         if label:
             d["label"] = label
