@@ -137,3 +137,38 @@ def test_a_measured_bore_beyond_the_catalogue_outer_diameter_names_the_size():
         Catheter(gauge=16, inner_diameter=np.array([1.2e-3, 1.71e-3]))
     with pytest.raises(InputRangeError, match=r"of a 18G needle reaches its typical outer"):
         Needle(gauge=18, inner_diameter=2e-3)
+
+
+def test_internal_volume_of_lumens_is_the_bore_cylinder():
+    # geometry of a cylinder, pi D^2 L / 4: a 1 mm x 1.5 m microbore holds 1.178 mL
+    tube = Tube(inner_diameter=1.0e-3, length=1.5)
+    assert tube.internal_volume == pytest.approx(np.pi * 1.0e-6 * 1.5 / 4.0, rel=1e-15)
+    assert tube.volume_note is None
+    cath = Catheter(gauge=18)
+    assert cath.internal_volume == pytest.approx(np.pi * cath.inner_diameter**2 * cath.length / 4.0)
+    swept = Tube(inner_diameter=np.array([0.5e-3, 1.0e-3]), length=2.0)
+    assert swept.internal_volume == pytest.approx(np.pi * np.array([0.25e-6, 1e-6]) * 2.0 / 4.0)
+    assert swept.internal_volume[1] == pytest.approx(4.0 * swept.internal_volume[0])
+
+
+def test_internal_volume_of_fittings_and_measured_parts_is_given_or_noted():
+    plain = Fitting(k=0.9)
+    assert plain.internal_volume == 0.0
+    assert "internal volume not given" in plain.volume_note
+    given = Fitting(k=0.9, internal_volume=0.1e-6)
+    assert (given.internal_volume, given.volume_note) == (0.1e-6, None)
+    crane = Fitting.crane("stopcock-branch", inner_diameter=2e-3, internal_volume=0.2e-6)
+    assert crane.internal_volume == 0.2e-6
+    hooper = Fitting.hooper("elbow-90-standard", inner_diameter=2e-3)
+    assert hooper.internal_volume == 0.0 and hooper.volume_note
+    q = np.array([1.0, 2.0]) * 1e-6
+    filt = MeasuredPart(flows=q, pressure_drops=1e9 * q, internal_volume=2.5e-6)
+    assert (filt.internal_volume, filt.volume_note) == (2.5e-6, None)
+    assert MeasuredPart(flows=q, pressure_drops=1e9 * q).volume_note
+
+
+def test_internal_volume_rejects_negative_and_nan():
+    with pytest.raises(InputRangeError, match=r"internal_volume must be 0 m\^3 or more"):
+        Fitting(k=0.5, internal_volume=-1e-7)
+    with pytest.raises(InputRangeError, match="internal_volume must be finite"):
+        MeasuredPart(flows=[1e-6], pressure_drops=[1e3], internal_volume=float("nan"))

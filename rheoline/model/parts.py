@@ -74,6 +74,21 @@ def _one_size(gauge, what, sweep):
     return gauge
 
 
+def _set_internal_volume(part):
+    """A user-given internal volume [m^3] (>= 0), or 0 with a ``volume_note`` when not given."""
+    if part.internal_volume is None:
+        object.__setattr__(part, "internal_volume", 0.0)
+        object.__setattr__(
+            part,
+            "volume_note",
+            "internal volume not given, counted as 0; pass internal_volume [m^3] for dead-volume "
+            "and transport estimates",
+        )
+    else:
+        volume = check_nonnegative("internal_volume", part.internal_volume, "m^3")
+        object.__setattr__(part, "internal_volume", _value(volume))
+
+
 def _hooper_constants(kind):
     return _lookup(
         HOOPER_1981_2K,
@@ -98,11 +113,14 @@ class Part:
     """Base of all parts.  ``kind`` is "lumen", "fitting" or "measured".
 
     ``source_note`` is None, or says where a catalogue dimension came from (the line's
-    flags repeat it).
+    flags repeat it).  ``internal_volume`` [m^3] is the liquid the part holds: a lumen's
+    bore, pi D^2 L / 4; a fitting's or measured part's user-given volume, 0 when not given,
+    in which case ``volume_note`` says so (None otherwise).
     """
 
     kind = "part"
     source_note = None
+    volume_note = None
 
 
 @dataclass(frozen=True)
@@ -153,6 +171,17 @@ class Lumen(Part):
 
     def _default_name(self):
         return f"tube {_mm(self.inner_diameter)} x {_size_text(self.length, 1.0, 'm')}"
+
+    @property
+    def internal_volume(self):
+        """Volume [m^3] of the bore, pi D^2 L / 4 (a hub or connector volume is not included).
+
+        Examples
+        --------
+        >>> round(Tube(inner_diameter=1.0e-3, length=1.5).internal_volume * 1e6, 4)   # mL
+        1.1781
+        """
+        return _value(np.pi * np.asarray(self.inner_diameter) ** 2 * self.length / 4.0)
 
 
 @dataclass(frozen=True)
@@ -441,6 +470,9 @@ class Fitting(Part):
     laminar_k : float or array_like, optional
         Hooper 1981 :math:`K_1` [-]: the coefficient becomes :math:`K = K_1/Re + k`, Re in
         the bore the K refers to (default None: a constant K).  See :meth:`hooper`.
+    internal_volume : float or array_like, optional
+        Liquid volume [m^3] the fitting holds (dead volume); default None: counted as 0,
+        with a ``volume_note``.
 
     Examples
     --------
@@ -457,9 +489,11 @@ class Fitting(Part):
     inner_diameter: float | np.ndarray | None = None
     name: str | None = None
     laminar_k: float | np.ndarray | None = None
+    internal_volume: float | np.ndarray | None = None
     kind = "fitting"
 
     def __post_init__(self):
+        _set_internal_volume(self)
         if (self.k is None) == (self.equivalent_length is None):
             raise InputRangeError(
                 "Fitting needs exactly one of k (loss coefficient) or equivalent_length [m]; "
@@ -507,13 +541,18 @@ class Fitting(Part):
         return self.equivalent_length
 
     @classmethod
-    def crane(cls, kind, inner_diameter, friction_factor=None, name=None):
+    def crane(cls, kind, inner_diameter, friction_factor=None, name=None, internal_volume=None):
         """A fitting from Crane TP-410's L/D for ``kind`` (see ``losses.CRANE_L_OVER_D``)."""
         k = crane_fitting_k(kind, inner_diameter, friction_factor)
-        return cls(k=k, inner_diameter=inner_diameter, name=name or f"{kind} (Crane TP-410)")
+        return cls(
+            k=k,
+            inner_diameter=inner_diameter,
+            name=name or f"{kind} (Crane TP-410)",
+            internal_volume=internal_volume,
+        )
 
     @classmethod
-    def hooper(cls, kind, inner_diameter, name=None):
+    def hooper(cls, kind, inner_diameter, name=None, internal_volume=None):
         """A fitting by Hooper's 1981 two-K method, K = K_1/Re + K_inf (1 + 1 inch/D).
 
         ``kind`` is a key of :data:`rheoline.model.losses.HOOPER_1981_2K`; see
@@ -527,6 +566,7 @@ class Fitting(Part):
             inner_diameter=inner_diameter,
             laminar_k=k1,
             name=name or f"{kind} (Hooper 1981 2-K)",
+            internal_volume=internal_volume,
         )
 
 
@@ -549,6 +589,9 @@ class MeasuredPart(Part):
     test_density : float, optional
         Density [kg/m^3] of the bench fluid.
     name : str, optional
+    internal_volume : float, optional
+        Liquid volume [m^3] the part holds; default None: counted as 0, with a
+        ``volume_note``.
 
     Examples
     --------
@@ -562,11 +605,13 @@ class MeasuredPart(Part):
     test_viscosity: float | None = None
     test_density: float | None = None
     name: str | None = None
+    internal_volume: float | np.ndarray | None = None
     kind = "measured"
 
     def __post_init__(self):
         from scipy.optimize import nnls
 
+        _set_internal_volume(self)
         q = check_positive("flows", self.flows, "m^3/s").ravel()
         dp = check_nonnegative("pressure_drops", self.pressure_drops, "Pa").ravel()
         if q.size != dp.size or q.size < 1:
