@@ -169,33 +169,56 @@ def parse_quantity(text, kind: str, default_unit: str | None = None, field: str 
     """
     si_unit, dimensionality, examples = _checked_kind(kind)
     if isinstance(text, bool):
-        raise UnitError(f"{field}: expected a {kind} such as '{_example(kind)}', got {text!r}")
+        raise UnitError(
+            f"{field}: expected a {kind} such as '{_example(kind)}', got {text!r}",
+            field=field,
+            value=text,
+            kind=kind,
+        )
     if isinstance(text, (int, float)):
         if kind == "dimensionless":
             return _finite(text, text, field)
         if default_unit is None:
             raise UnitError(
-                f"{field}: a bare number {text!r} needs a unit ({examples}), e.g. '{text} {_example_unit(kind)}'"
+                f"{field}: a bare number {text!r} needs a unit ({examples}), e.g. '{text} {_example_unit(kind)}'",
+                field=field,
+                value=text,
+                kind=kind,
             )
         number, unit = _finite(text, text, field), default_unit
     elif isinstance(text, str):
         m = _NUMBER_UNIT.match(text)
         if not m:
-            raise UnitError(f"{field}: cannot read {text!r} as a number with a unit ({examples})")
+            raise UnitError(
+                f"{field}: cannot read {text!r} as a number with a unit ({examples})",
+                field=field,
+                value=text,
+                kind=kind,
+            )
         number = float(m.group(1))
         unit = m.group(2)
         if not unit:
             if kind == "dimensionless":
                 return _finite(number, text, field)
             if default_unit is None:
-                raise UnitError(f"{field}: {text!r} has no unit; write it with one of {examples}")
+                raise UnitError(
+                    f"{field}: {text!r} has no unit; write it with one of {examples}",
+                    field=field,
+                    value=text,
+                    kind=kind,
+                )
             unit = default_unit
     else:
         raise UnitError(
-            f"{field}: expected a {kind} such as '{_example(kind)}', got {type(text).__name__}"
+            f"{field}: expected a {kind} such as '{_example(kind)}', got {type(text).__name__}",
+            field=field,
+            value=text,
+            kind=kind,
         )
     if not math.isfinite(number):
-        raise UnitError(f"{field}: {text!r} is not a finite number")
+        raise UnitError(
+            f"{field}: {text!r} is not a finite number", field=field, value=text, kind=kind
+        )
     return _finite(from_unit(number, unit, kind, field=field), text, field)
 
 
@@ -206,13 +229,19 @@ def _finite(number, text, field):
     except OverflowError:
         value = math.inf
     if not math.isfinite(value):
-        raise UnitError(f"{field}: {text!r} is not a finite number (or is too large)")
+        raise UnitError(
+            f"{field}: {text!r} is not a finite number (or is too large)", field=field, value=text
+        )
     return value
 
 
 def _checked_kind(kind):
     if kind not in KINDS:
-        raise UnitError(f"unknown quantity kind {kind!r}; choose one of {sorted(KINDS)}")
+        raise UnitError(
+            f"unknown quantity kind {kind!r}; choose one of {sorted(KINDS)}",
+            field="kind",
+            value=kind,
+        )
     return KINDS[kind]
 
 
@@ -223,23 +252,24 @@ def _units_of(unit, kind: str, field: str):
     ureg = registry()
     si_unit, _, examples = _checked_kind(kind)
     unknown = f"{field}: unknown unit {unit!r}; use one of {examples} (a {kind})"
+    data = {"field": field, "value": unit, "kind": kind, "unit": unit}
     if not isinstance(unit, str):
-        raise UnitError(unknown)
+        raise UnitError(unknown, **data)
     normalized = _normalize_unit(unit)
     if len(normalized) > 40 or not _SAFE_UNIT.match(normalized):
-        raise UnitError(unknown)
+        raise UnitError(unknown, **data)
     try:
         parsed = ureg.Unit(normalized)
     except Exception as exc:  # noqa: BLE001 - pint's parser raises many kinds; all mean "unknown"
-        raise UnitError(unknown) from exc
+        raise UnitError(unknown, **data) from exc
     if kind == "dimensionless":
         if not parsed.dimensionless:
-            raise UnitError(f"{field}: expected a plain number or %, got unit {unit!r}")
+            raise UnitError(f"{field}: expected a plain number or %, got unit {unit!r}", **data)
         return parsed
     try:
         ureg.Quantity(1.0, si_unit).to(parsed)
     except pint.errors.DimensionalityError as exc:
-        raise UnitError(f"{field}: {unit!r} is not a unit of {kind} ({examples})") from exc
+        raise UnitError(f"{field}: {unit!r} is not a unit of {kind} ({examples})", **data) from exc
     return parsed
 
 

@@ -25,6 +25,7 @@ import difflib
 import numpy as np
 
 from rheoline.errors import InputRangeError
+from rheoline.model.provenance import REGISTRY
 from rheoline.model.rheology import Carreau, CarreauYasuda, Casson, Newtonian, PowerLaw
 from rheoline.model.validation import (
     check_hematocrit,
@@ -63,10 +64,10 @@ PLASMA_RELATIVE_VISCOSITY = 1.8
 #: Temperatures [degC] the blood models are used for: refrigerated storage
 #: (about 4 degC) to hyperthermia.  The constant plasma-to-water ratio is an
 #: assumption over this span; outside it the models warn.
-BLOOD_TEMPERATURE_RANGE_C = (0.0, 42.0)
+BLOOD_TEMPERATURE_RANGE_C = REGISTRY["blood-scaling"].ranges["temperature_c"]
 
 #: Hematocrit above which the shear-thinning scaling is an extrapolation [-].
-BLOOD_HEMATOCRIT_LIMIT = 0.8
+BLOOD_HEMATOCRIT_LIMIT = REGISTRY["blood-scaling"].ranges["hematocrit"][1]
 
 #: Reference state of the Cho & Kensey 1991 blood parameters: hematocrit 0.45 at
 #: 37 degC (the state these parameters are customarily taken to describe).
@@ -102,15 +103,15 @@ PLASMA_DENSITY_37C = 1025.0
 RED_CELL_DENSITY_37C = 1100.0
 
 
-def _temperature(temperature_c, model):
+def _temperature(temperature_c, model, key="blood-scaling"):
     t = check_temperature_c(temperature_c)
-    warn_outside("temperature_c", t, *BLOOD_TEMPERATURE_RANGE_C, model, "degC", stacklevel=4)
+    warn_outside(key, "temperature_c", t, label=model, unit="degC", stacklevel=4)
     return t
 
 
-def _hematocrit(hematocrit, model):
+def _hematocrit(hematocrit, model, key="blood-scaling"):
     h = check_hematocrit(hematocrit)
-    warn_outside("hematocrit", h, 0.0, BLOOD_HEMATOCRIT_LIMIT, model, stacklevel=4)
+    warn_outside(key, "hematocrit", h, label=model, stacklevel=4)
     return h
 
 
@@ -148,7 +149,7 @@ def plasma_viscosity(temperature_c=37.0):
     >>> round(plasma_viscosity(37.0) * 1e3, 3)
     1.244
     """
-    t = _temperature(temperature_c, "the plasma viscosity model")
+    t = _temperature(temperature_c, "the plasma viscosity model", "plasma-viscosity-ratio")
     return scalar_or_array(_plasma(t))
 
 
@@ -166,7 +167,7 @@ def plasma_density(temperature_c=37.0):
     >>> round(plasma_density(37.0), 1)
     1025.0
     """
-    t = _temperature(temperature_c, "the plasma density model")
+    t = _temperature(temperature_c, "the plasma density model", "plasma-viscosity-ratio")
     return scalar_or_array(PLASMA_DENSITY_37C * _density_scale(t))
 
 
@@ -191,7 +192,7 @@ def blood_density(hematocrit, temperature_c=37.0):
     1059.0
     """
     h = check_hematocrit(hematocrit)
-    t = _temperature(temperature_c, "the blood density model")
+    t = _temperature(temperature_c, "the blood density model", "blood-density-mixture")
     return scalar_or_array(_blood_density(h, t))
 
 
@@ -294,8 +295,8 @@ def whole_blood_high_shear_viscosity(hematocrit, temperature_c=37.0):
     >>> round(whole_blood_high_shear_viscosity(0.45, 37.0) * 1e3, 2)
     3.45
     """
-    h = _hematocrit(hematocrit, "the whole-blood viscosity model")
-    t = _temperature(temperature_c, "the whole-blood viscosity model")
+    h = _hematocrit(hematocrit, "the whole-blood viscosity model", "quemada-1978")
+    t = _temperature(temperature_c, "the whole-blood viscosity model", "quemada-1978")
     return scalar_or_array(_high_shear(h, t))
 
 
@@ -598,7 +599,14 @@ def pries_1992_relative_viscosity(diameter, hematocrit):
     d_m = check_positive("diameter", diameter, "m")
     h = check_hematocrit(hematocrit)
     d = d_m * 1e6  # micrometres
-    warn_outside("diameter", d, 3.3, 1978.0, "Pries 1992 in-vitro viscosity law", "um")
+    warn_outside(
+        "pries-1992",
+        "diameter",
+        d_m,
+        label="Pries 1992 in-vitro viscosity law",
+        unit="um",
+        scale=1e6,
+    )
     mu45 = 220.0 * np.exp(-1.3 * d) + 3.2 - 2.44 * np.exp(-0.06 * d**0.645)
     s = 1.0 / (1.0 + 1e-11 * d**12)
     c = (0.8 + np.exp(-0.075 * d)) * (-1.0 + s) + s

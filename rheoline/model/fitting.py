@@ -32,6 +32,7 @@ __all__ = [
     "fit_rheology",
     "TemperatureFit",
     "TEMPERATURE_MODELS",
+    "TEMPERATURE_MODEL_KEYS",
     "fit_viscosity_temperature",
 ]
 
@@ -107,10 +108,14 @@ def _warn_couette_regime(reynolds):
     re = np.asarray(reynolds, dtype=float)
     if np.any(re > COUETTE_TRANSITION_REYNOLDS):
         warnings.warn(
-            f"film Reynolds number up to {float(np.max(re)):.3g} exceeds about "
-            f"{COUETTE_TRANSITION_REYNOLDS:g}: the film may not be laminar and the one-point "
-            "reduction overestimates viscosity; lower the speed or the gap",
-            RegimeWarning,
+            RegimeWarning(
+                f"film Reynolds number up to {float(np.max(re)):.3g} exceeds about "
+                f"{COUETTE_TRANSITION_REYNOLDS:g}: the film may not be laminar and the one-point "
+                "reduction overestimates viscosity; lower the speed or the gap",
+                quantity="reynolds",
+                value=float(np.max(re)),
+                limit=COUETTE_TRANSITION_REYNOLDS,
+            ),
             stacklevel=3,
         )
 
@@ -598,6 +603,9 @@ TEMPERATURE_MODELS = {
     "vft": (_vft, ("a", "b", "t0_c"), 3),
 }
 
+#: Provenance key (:mod:`rheoline.model.provenance`) of each temperature law.
+TEMPERATURE_MODEL_KEYS = {"andrade": "andrade-1930", "vft": "vft"}
+
 
 @dataclass(frozen=True, eq=False)
 class TemperatureFit:
@@ -627,11 +635,13 @@ class TemperatureFit:
         """Viscosity [Pa s] at ``temperature_c`` [degC] from the fitted law."""
         t = np.asarray(temperature_c, dtype=float)
         warn_outside(
+            TEMPERATURE_MODEL_KEYS[self.model],
             "temperature_c",
             t,
-            *self.temperature_range_c,
-            f"this {self.model} fit (the measured temperatures)",
-            "degC",
+            low=self.temperature_range_c[0],
+            high=self.temperature_range_c[1],
+            label=f"this {self.model} fit (the measured temperatures)",
+            unit="degC",
         )
         func = TEMPERATURE_MODELS[self.model][0]
         return scalar_or_array(func(t, *self.parameters.values()))

@@ -196,12 +196,11 @@ def vascular_resistance(upstream_mmhg, downstream_mmhg, flow_l_min, factor="exac
 
 def _from_cardiac_output(up_name, upstream, down_name, downstream, cardiac_output_l_min, factor):
     warn_outside(
+        "vascular-resistance",
         "cardiac_output_l_min",
         cardiac_output_l_min,
-        0.5,
-        40.0,
-        "an adult cardiac output",
-        "L/min",
+        label="an adult cardiac output",
+        unit="L/min",
         stacklevel=4,
     )
     drop = _pressure_drop(up_name, upstream, down_name, downstream)
@@ -294,7 +293,12 @@ def cardiac_index(cardiac_output_l_min, body_surface_area_m2):
 def _indexed(result: VascularResistance, body_surface_area_m2) -> VascularResistance:
     bsa = check_positive("body_surface_area_m2", body_surface_area_m2, "m^2")
     warn_outside(
-        "body_surface_area_m2", bsa, 0.2, 3.5, "a human body surface area", "m^2", stacklevel=4
+        "vascular-resistance",
+        "body_surface_area_m2",
+        bsa,
+        label="a human body surface area",
+        unit="m^2",
+        stacklevel=4,
     )
     return VascularResistance(
         wood_units=scalar_or_array(np.asarray(result.wood_units) * bsa),

@@ -158,7 +158,14 @@ def pries_1994_relative_viscosity(diameter, hematocrit):
             f"diameter must be more than 1.1 um for the Pries 1994 in-vivo law, got "
             f"{float(np.min(d)):g} um; check the unit (metres expected)"
         )
-    warn_outside("diameter", d, 3.3, 1978.0, "Pries 1994 in-vivo viscosity law", "um")
+    warn_outside(
+        "pries-1994",
+        "diameter",
+        d_m,
+        label="Pries 1994 in-vivo viscosity law",
+        unit="um",
+        scale=1e6,
+    )
     mu45 = 6.0 * np.exp(-0.085 * d) + 3.2 - 2.44 * np.exp(-0.06 * d**0.645)
     s = 1.0 / (1.0 + 1e-11 * d**12)
     c = (0.8 + np.exp(-0.075 * d)) * (-1.0 + s) + s
@@ -424,9 +431,14 @@ class Vessel:
         re = self._reynolds(q)
         if np.any(re > LAMINAR_REYNOLDS_LIMIT):
             warnings.warn(
-                f"Reynolds number {float(np.max(re)):.0f} exceeds {LAMINAR_REYNOLDS_LIMIT:.0f}: "
-                "the Poiseuille vessel model assumes laminar flow; the flow is overestimated",
-                RegimeWarning,
+                RegimeWarning(
+                    f"Reynolds number {float(np.max(re)):.0f} exceeds {LAMINAR_REYNOLDS_LIMIT:.0f}: "
+                    "the Poiseuille vessel model assumes laminar flow; the flow is overestimated",
+                    model="hagen-poiseuille",
+                    quantity="reynolds",
+                    value=float(np.max(re)),
+                    limit=LAMINAR_REYNOLDS_LIMIT,
+                ),
                 stacklevel=3,
             )
 
@@ -839,10 +851,15 @@ def infusion_site_context(
     large = ratio > limit
     if warn and np.any(large):
         warnings.warn(
-            f"catheter outer diameter is {float(np.max(ratio)):.0%} of the vein diameter, "
-            f"above {limit:.0%}: a large catheter for this vein (commonly advised against); "
-            "the numbers do not predict thrombosis or vein injury",
-            RangeWarning,
+            RangeWarning(
+                f"catheter outer diameter is {float(np.max(ratio)):.0%} of the vein diameter, "
+                f"above {limit:.0%}: a large catheter for this vein (commonly advised against); "
+                "the numbers do not predict thrombosis or vein injury",
+                model="catheter-vein-ratio",
+                quantity="diameter_ratio",
+                low=0.0,
+                high=limit,
+            ),
             stacklevel=2,
         )
     notes = (

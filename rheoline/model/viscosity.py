@@ -24,6 +24,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from rheoline.errors import InputRangeError
+from rheoline.model.provenance import REGISTRY
 from rheoline.model.validation import (
     check_finite,
     check_positive,
@@ -59,8 +60,8 @@ __all__ = [
 ]
 
 #: Water's validated range at atmospheric pressure [degC]: liquid from the melting to
-#: the normal boiling point.
-WATER_RANGE_C = (0.0, 100.0)
+#: the normal boiling point (the registry's range of "iapws-2008").
+WATER_RANGE_C = REGISTRY["iapws-2008"].ranges["temperature_c"]
 
 _KELVIN = 273.15
 
@@ -125,7 +126,11 @@ def kell_1975_water_density(temperature_c):
     """
     t = check_temperature_c(temperature_c)
     warn_outside(
-        "temperature_c", t, *WATER_RANGE_C, "water density (Kell 1975, liquid at 1 atm)", "degC"
+        "kell-1975",
+        "temperature_c",
+        t,
+        label="water density (Kell 1975, liquid at 1 atm)",
+        unit="degC",
     )
     return scalar_or_array(_kell(t))
 
@@ -264,7 +269,11 @@ def water_viscosity(temperature_c):
     """
     t = check_temperature_c(temperature_c)
     warn_outside(
-        "temperature_c", t, *WATER_RANGE_C, "water viscosity (IAPWS 2008, liquid at 1 atm)", "degC"
+        "iapws-2008",
+        "temperature_c",
+        t,
+        label="water viscosity (IAPWS 2008, liquid at 1 atm)",
+        unit="degC",
     )
     return iapws_2008_viscosity(t + _KELVIN, _kell(t))
 
@@ -334,8 +343,6 @@ LACTATED_RINGERS_G_PER_L = {
     "CaCl2": 0.2 * 110.98 / 147.01,
 }
 
-_SOLUTION_RANGE_C = (0.0, 100.0)
-
 
 def _check_mass_fractions(mass_fractions):
     unknown = sorted(set(mass_fractions) - set(LALIBERTE_SOLUTES))
@@ -352,11 +359,12 @@ def _check_mass_fractions(mass_fractions):
         )
     for k, w in ws.items():
         warn_outside(
+            "laliberte-2007",
             f"mass fraction of {k}",
             w,
-            0.0,
-            LALIBERTE_SOLUTES[k].max_mass_fraction,
-            "the Laliberte coefficients (their fitted data)",
+            low=0.0,
+            high=LALIBERTE_SOLUTES[k].max_mass_fraction,
+            label="the Laliberte coefficients (their fitted data)",
             stacklevel=4,
         )
     return ws, 1.0 - total
@@ -399,11 +407,11 @@ def laliberte_2007_viscosity(mass_fractions, temperature_c):
     """
     t = check_temperature_c(temperature_c)
     warn_outside(
+        "laliberte-2007",
         "temperature_c",
         t,
-        *_SOLUTION_RANGE_C,
-        "the Laliberte 2007 solution viscosity model",
-        "degC",
+        label="the Laliberte 2007 solution viscosity model",
+        unit="degC",
     )
     ws, w_water = _check_mass_fractions(mass_fractions)
     mu_w, _ = _water_quiet(t)
@@ -450,7 +458,11 @@ def laliberte_cooper_2004_density(mass_fractions, temperature_c):
     """
     t = check_temperature_c(temperature_c)
     warn_outside(
-        "temperature_c", t, *_SOLUTION_RANGE_C, "the Laliberte & Cooper 2004 density model", "degC"
+        "laliberte-cooper-2004",
+        "temperature_c",
+        t,
+        label="the Laliberte & Cooper 2004 density model",
+        unit="degC",
     )
     ws, w_water = _check_mass_fractions(mass_fractions)
     _, rho_w = _water_quiet(t)
@@ -644,7 +656,9 @@ def dextrose_5_viscosity(temperature_c):
     1.13
     """
     t = check_temperature_c(temperature_c)
-    warn_outside("temperature_c", t, *_SOLUTION_RANGE_C, "the 5 % dextrose model", "degC")
+    warn_outside(
+        "dextrose-5-relative", "temperature_c", t, label="the 5 % dextrose model", unit="degC"
+    )
     mu_w, _ = _water_quiet(t)
     return scalar_or_array(DEXTROSE_5_RELATIVE_VISCOSITY * mu_w)
 
@@ -668,7 +682,9 @@ def dextrose_5_density(temperature_c):
     1017.0
     """
     t = check_temperature_c(temperature_c)
-    warn_outside("temperature_c", t, *_SOLUTION_RANGE_C, "the 5 % dextrose model", "degC")
+    warn_outside(
+        "dextrose-5-relative", "temperature_c", t, label="the 5 % dextrose model", unit="degC"
+    )
     _, rho_w = _water_quiet(t)
     _, rho_20 = _water_quiet(np.asarray(20.0))
     return scalar_or_array(DEXTROSE_5_DENSITY_20C * rho_w / rho_20)
@@ -739,7 +755,6 @@ def albumin_density(concentration, temperature_c):
 
 
 # ------------------------------------------------------------- glycerol-water
-_GLYCEROL_RANGE_C = (0.0, 100.0)
 
 
 def _glycerol_viscosity_pure(t):
@@ -800,7 +815,7 @@ def glycerol_water_viscosity(mass_fraction, temperature_c):
     w = _check_fraction(mass_fraction)
     t = check_temperature_c(temperature_c)
     warn_outside(
-        "temperature_c", t, *_GLYCEROL_RANGE_C, "Cheng 2008 glycerol-water viscosity", "degC"
+        "cheng-2008", "temperature_c", t, label="Cheng 2008 glycerol-water viscosity", unit="degC"
     )
     mu_w, _ = _water_quiet(t)
     return scalar_or_array(_cheng_mix(w, t, mu_w))
@@ -861,7 +876,11 @@ def glycerol_water_density(mass_fraction, temperature_c):
     w = _check_fraction(mass_fraction)
     t = check_temperature_c(temperature_c)
     warn_outside(
-        "temperature_c", t, 0.0, 40.0, "Volk & Kaehler 2018 glycerol-water density", "degC"
+        "volk-kaehler-2018",
+        "temperature_c",
+        t,
+        label="Volk & Kaehler 2018 glycerol-water density",
+        unit="degC",
     )
     _, rho_w = _water_quiet(t)
     rho_g = 1273.0 - 0.612 * t
@@ -904,7 +923,7 @@ def glycerol_fraction_for_viscosity(viscosity, temperature_c):
     mu = check_positive("viscosity", viscosity, "Pa s")
     t = check_temperature_c(temperature_c)
     warn_outside(
-        "temperature_c", t, *_GLYCEROL_RANGE_C, "Cheng 2008 glycerol-water viscosity", "degC"
+        "cheng-2008", "temperature_c", t, label="Cheng 2008 glycerol-water viscosity", unit="degC"
     )
     mu, t = np.broadcast_arrays(mu, t)
     mu_w, _ = _water_quiet(t)

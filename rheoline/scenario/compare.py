@@ -31,6 +31,7 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from rheoline.errors import RheolineError, ScenarioError
+from rheoline.model.hemolysis import HEMOLYSIS_CONCERN_STRESS  # re-exported (model constant)
 from rheoline.scenario.description import Axis, ScenarioSet, ToleranceSpec, sweep_points
 from rheoline.scenario.writing import scenario_data
 from rheoline.units import ML_PER_H, ML_PER_MIN, MMHG
@@ -48,11 +49,6 @@ __all__ = [
     "ASSUMPTIONS",
 ]
 
-#: Wall shear stress [Pa] above which a blood case is flagged as a hemolysis concern.
-#: From memory: Leverett et al., Biophys. J. 12 (1972) 257-273, report red-cell damage
-#: above about 150 Pa for exposures of minutes; shorter exposures tolerate more, so this is
-#: a conservative screening threshold.
-HEMOLYSIS_CONCERN_STRESS = 150.0
 
 #: The models the line engine uses, with their references (the pack's "assumptions" sheet).
 ASSUMPTIONS = (

@@ -45,8 +45,8 @@ import shutil
 import tempfile
 from pathlib import Path
 
-from rheoline.errors import ScenarioError
-from rheoline.scenario.files import OutputError, check_output_folder, output_error
+from rheoline.errors import OutputError, PackExistsError  # re-exported from here
+from rheoline.scenario.files import check_output_folder, output_error
 
 __all__ = [
     "PackExistsError",
@@ -63,14 +63,6 @@ PACK_FILES = ("results.csv", "parts.csv", "results.xlsx", "report.html", "manife
 
 _FORMULA_START = ("=", "+", "-", "@", "\t", "\r", "\n")
 _CONTROL = re.compile(r"[\x00-\x08\x0b\x0c\x0e-\x1f\x7f]")
-
-
-class PackExistsError(ScenarioError):
-    """The output folder exists and may not be replaced.
-
-    Raised when ``force`` was not given, when the target is a file, and (even with
-    ``force``) when the folder is not an unchanged rheoline review pack.
-    """
 
 
 def neutralize_cell(value):

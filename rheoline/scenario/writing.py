@@ -26,7 +26,7 @@ import tempfile
 from collections.abc import Mapping
 from pathlib import Path
 
-from rheoline.errors import ScenarioError
+from rheoline.errors import OutputError, ScenarioError  # OutputError re-exported
 from rheoline.scenario.description import Axis, ScenarioSet, Value
 from rheoline.scenario.schema import (
     FORMAT_VERSION,
@@ -46,21 +46,6 @@ __all__ = [
     "dump_scenarios",
     "save_scenarios",
 ]
-
-
-class OutputError(ScenarioError, OSError):
-    """A scenario file or a review pack cannot be written where asked (a folder in the
-    way, a missing or read-only folder, a full disk).
-
-    A :class:`~rheoline.errors.ScenarioError` naming the path, so views and the command
-    line show it as a message, and an :class:`OSError`, so ``except OSError`` still
-    catches it (as :class:`io.UnsupportedOperation` is both).  ``reason`` is the why alone
-    (the system's words, such as "No space left on device"), for a caller's own message.
-    """
-
-    def __init__(self, message: str, *, source=None, reason=None):
-        super().__init__(message, source=source)
-        self.reason = reason or message
 
 
 def output_error(path, what: str, exc: OSError) -> OutputError:
