@@ -23,6 +23,10 @@ Tables (SI metres)
 :data:`CENTRAL_LINE_LUMENS`
     Gauge-equivalent lumens of multi-lumen central venous catheters (typical, from
     memory); one lumen is modelled at a time.
+:data:`MULTI_LUMEN_CATHETERS`
+    Multi-lumen catheters whose lumen cross-sections are known in shape: double-D
+    (two D-shaped lumens back to back) dialysis and apheresis catheters, and a coaxial
+    catheter whose outer lumen is an annulus (typical sizes, from memory).
 :data:`CANNULA_TYPICAL_WALL`
     Typical wall thickness of cannulas and sheaths given by French size (from memory).
 """
@@ -36,6 +40,7 @@ __all__ = [
     "CIRCUIT_TUBING",
     "EXTENSION_SETS",
     "CENTRAL_LINE_LUMENS",
+    "MULTI_LUMEN_CATHETERS",
     "CANNULA_TYPICAL_WALL",
     "FRENCH_TO_METRE",
 ]
@@ -102,6 +107,38 @@ CENTRAL_LINE_LUMENS = {
     (7.0, 3): {"distal": 16, "medial": 18, "proximal": 18},
     (7.0, 2): {"distal": 16, "proximal": 18},
     (8.5, 4): {"distal": 14, "medial": 18, "proximal": 18, "fourth": 18},
+}
+
+#: kind -> {"french", "length" [m], "lumens": {lumen: (shape key, {dimension: [m]})}}; the
+#: shape keys are those of :data:`rheoline.model.shapes.LUMEN_SHAPES`.  Typical cross-sections,
+#: from memory: a double-D catheter's two lumens are D-shaped, each about the outer diameter
+#: less two walls of some 0.35-0.45 mm across its flat side (the septum is neglected: a
+#: slightly large bore); a coaxial catheter's outer lumen is the annulus around its inner tube.
+MULTI_LUMEN_CATHETERS = {
+    "11.5 Fr double-D": {
+        "french": 11.5,
+        "length": 0.16,
+        "lumens": {
+            "arterial": ("d-shaped", {"diameter": 3.0 * _MM}),
+            "venous": ("d-shaped", {"diameter": 3.0 * _MM}),
+        },
+    },
+    "13.5 Fr double-D": {
+        "french": 13.5,
+        "length": 0.20,
+        "lumens": {
+            "arterial": ("d-shaped", {"diameter": 3.7 * _MM}),
+            "venous": ("d-shaped", {"diameter": 3.7 * _MM}),
+        },
+    },
+    "7 Fr coaxial double-lumen": {
+        "french": 7.0,
+        "length": 0.20,
+        "lumens": {
+            "inner": ("circle", {"diameter": 0.9 * _MM}),
+            "outer": ("annulus", {"outer_diameter": 1.9 * _MM, "inner_diameter": 1.2 * _MM}),
+        },
+    },
 }
 
 #: Typical wall thickness [m] of cannulas/sheaths by French size when the user gives no

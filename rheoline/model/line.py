@@ -206,6 +206,32 @@ class _Layout:
     exit_coefficient: np.ndarray  # (*shape): dp_exit = c Q^2
     density: np.ndarray  # (*shape)
     pries: bool
+    # non-circular lumens (rheoline.model.shapes); exactly pi D^2/4, 16 and 1 for circles
+    area: np.ndarray = None  # (n_lumen, *shape) flow area [m^2]
+    laminar_f_re: np.ndarray = 16.0  # (n_lumen, *shape) Fanning f Re of laminar flow
+    flow_scale: np.ndarray = 1.0  # (n_lumen, *shape) pi D_h^2 / (4 A): Q -> Q of a circle of D_h
+    shaped: tuple = ()  # names of the non-circular lumens
+
+
+def _lumen_geometry(part, ones, areas, f_res, scales, shaped):
+    """Append a lumen's flow area, laminar f Re and circle flow scale; its area's diameter.
+
+    A circle (any part without a ``shape``) gets exactly pi D^2 / 4, 16 and 1, so that the
+    answers of circular lines do not move by a rounding.
+    """
+    d = part.inner_diameter * ones
+    shape = getattr(part, "shape", None)
+    if shape is None:
+        areas.append(np.pi * d**2 / 4.0)
+        f_res.append(16.0 * ones)
+        scales.append(ones)
+        return d
+    area = shape.area * ones
+    areas.append(area)
+    f_res.append(shape.laminar_f_re * ones)
+    scales.append(np.pi * d**2 / (4.0 * area))
+    shaped.append(part.name)
+    return np.sqrt(4.0 * area / np.pi)
 
 
 class Line:
@@ -309,6 +335,7 @@ class Line:
         lumen_rows, k_rows, measured_rows = [], [], []
         diameters, lengths, rough, developing = [], [], [], []
         real_lumen_diameter = {}
+        areas, f_res, scales, equivalent, shaped = [], [], [], [], []
         for i, part in enumerate(self.parts):
             if isinstance(part, Lumen):
                 lumen_rows.append(i)
@@ -316,13 +343,16 @@ class Line:
                 lengths.append(part.length * ones)
                 rough.append(part.roughness / part.inner_diameter * ones)
                 developing.append(True)
-                real_lumen_diameter[i] = part.inner_diameter * ones
+                # transitions, the exit and K fittings see the area: its circle's diameter
+                equivalent.append(_lumen_geometry(part, ones, areas, f_res, scales, shaped))
+                real_lumen_diameter[i] = equivalent[-1]
             elif isinstance(part, Fitting) and part.equivalent_length is not None:
                 lumen_rows.append(i)
                 diameters.append(part.inner_diameter * ones)
                 lengths.append(part.equivalent_length * ones)
                 rough.append(0.0 * ones)
                 developing.append(False)
+                equivalent.append(_lumen_geometry(part, ones, areas, f_res, scales, shaped))
             elif isinstance(part, Fitting):
                 k_rows.append(i)
             elif isinstance(part, MeasuredPart):
@@ -356,7 +386,7 @@ class Line:
                         f"fitting {part.name!r} has no inner_diameter and the line has no lumen "
                         "to refer its K to; pass Fitting(k=..., inner_diameter=...)"
                     )
-                d = diameter[lumen_rows.index(ref)]
+                d = equivalent[lumen_rows.index(ref)]
             area = np.pi * (d * ones) ** 2 / 4.0
             k_area.append(area)
             k_coef.append(part.k * rho / (2.0 * area * area))
@@ -370,7 +400,7 @@ class Line:
             m_b.append(b * ones)
         exit_rows = [j for j, i in enumerate(lumen_rows) if i in real_lumen_diameter]
         if exit_rows:
-            d_out = diameter[exit_rows[-1]]
+            d_out = equivalent[exit_rows[-1]]
             a_out = np.pi * d_out**2 / 4.0
             exit_c = EXIT_K * rho / (2.0 * a_out * a_out)
         else:
@@ -411,6 +441,10 @@ class Line:
             exit_coefficient=exit_c,
             density=rho,
             pries=bool(pries),
+            area=np.array(areas).reshape((n_l, *shape)),
+            laminar_f_re=np.array(f_res).reshape((n_l, *shape)) if shaped else 16.0,
+            flow_scale=np.array(scales).reshape((n_l, *shape)) if shaped else 1.0,
+            shaped=tuple(shaped),
         )
 
     # ------------------------------------------------------------------ physics
@@ -428,17 +462,23 @@ class Line:
         dlog_tau_q = dlog_tau / dlog_q  # d ln(tau_w) / d ln(Q)
         dlog_mu = dlog_tau_q - 1.0
         log_q_i = np.log(q_i)
-        mismatch = log_q - log_q_i
+        mismatch = log_q + np.log(layout.flow_scale) - log_q_i
         # wall stress carried from the inner state to ln(Q) by one Taylor step, then
         # mu_app = tau_w / (4 Q / (pi R^3))
         tau = tau_i * np.exp(dlog_tau_q * mismatch)
-        mu = layout.viscosity_factor * tau * np.pi * radius**3 / (4.0 * np.exp(log_q))
+        mu = (
+            layout.viscosity_factor
+            * tau
+            * np.pi
+            * radius**3
+            / (4.0 * np.exp(log_q) * layout.flow_scale)
+        )
         return mu, dlog_mu, (log_q_i, dlog_q, mismatch)
 
     @staticmethod
     def _losses(layout, q, mu, dlog_mu):
         """Every loss at flow ``q``: total [Pa], d(total)/d ln Q [Pa], and the pieces."""
-        area = np.pi * layout.diameter**2 / 4.0
+        area = layout.area
         dp_f, slope_f, re, u = _lumen._lumen_friction(
             q,
             area,
@@ -449,6 +489,7 @@ class Line:
             mu,
             dlog_mu,
             layout.developing,
+            layout.laminar_f_re,
         )
         dp_m = layout.minor_k * 0.5 * layout.density * u * u
         dp_lumen = dp_f + dp_m
@@ -483,7 +524,7 @@ class Line:
             # guess overflows or underflows keeps the previous, finite guess
             with np.errstate(over="ignore", divide="ignore", invalid="ignore"):
                 for _ in range(3):
-                    rate = 4.0 * q / (np.pi * radius**3)
+                    rate = 4.0 * q * layout.flow_scale / (np.pi * radius**3)
                     mu = fluid.rheology.viscosity(rate) * layout.viscosity_factor
                     refined = self._quadratic_guess(layout, mu, drive)
                     q = np.where(np.isfinite(refined) & (refined > 0.0), refined, q)
@@ -492,9 +533,11 @@ class Line:
     @staticmethod
     def _quadratic_guess(layout, mu, drive):
         d, length = layout.diameter, layout.length
-        a = (128.0 * mu * length / (np.pi * d**4)).sum(axis=0) + layout.measured_a.sum(axis=0)
-        a = a + layout.k_linear.sum(axis=0)
-        area = np.pi * d**2 / 4.0
+        # 2 C mu L / (A D_h^2) with C the laminar f Re: 128 mu L / (pi D^4) for a circle
+        shape_factor = layout.laminar_f_re / 16.0 * layout.flow_scale
+        a = (128.0 * mu * length / (np.pi * d**4) * shape_factor).sum(axis=0)
+        a = a + layout.measured_a.sum(axis=0) + layout.k_linear.sum(axis=0)
+        area = layout.area
         hagenbach = np.where(layout.developing, 1.25, 0.0)
         b = ((layout.minor_k + hagenbach) * layout.density / (2.0 * area * area)).sum(axis=0)
         b = b + layout.k_coefficient.sum(axis=0) + layout.measured_b.sum(axis=0)
@@ -542,11 +585,11 @@ class Line:
         else:
             radius = layout.diameter / 2.0
             y, q_i, tau_i, dlog_q, dlog_tau = _lumen._solve_log_wall_shear_rate(
-                fluid.rheology, q * np.ones_like(radius), radius
+                fluid.rheology, q * layout.flow_scale * np.ones_like(radius), radius
             )
             # with the target flow, so that 64/Re gives 2 L tau_w / R even where the inner
             # solve is limited by rounding (a yield-stress fluid at a vanishing flow)
-            mu = layout.viscosity_factor * tau_i * np.pi * radius**3 / (4.0 * q)
+            mu = layout.viscosity_factor * tau_i * np.pi * radius**3 / (4.0 * q * layout.flow_scale)
             dlog_mu = dlog_tau / dlog_q - 1.0
         self._last_dlog_mu = dlog_mu
         return self._losses(layout, q, mu, dlog_mu) + (mu,)
@@ -765,7 +808,7 @@ class Line:
         state = None
         if not self._newtonian_path(layout, fluid):
             radius = layout.diameter / 2.0
-            state = np.log(4.0 / (np.pi * radius**3)) + x
+            state = np.log(4.0 * layout.flow_scale / (np.pi * radius**3)) + x
             # a yield-stress fluid needs the yield pressure 2 L tau_y / R in every lumen to move
             if getattr(fluid.rheology, "yield_stress", None) is not None:
                 yield_drop = self._yield_drop(layout, fluid)
@@ -773,7 +816,7 @@ class Line:
                 drive_pos = np.where(moving, drive, 1.0)
                 log_drive = np.log(drive_pos)
                 x = np.where(moving, x, 0.0)
-                state = np.log(4.0 / (np.pi * radius**3)) + x
+                state = np.log(4.0 * layout.flow_scale / (np.pi * radius**3)) + x
         converged = np.zeros(layout.shape, bool)
         for iteration in range(1, _MAX_ITER + 1):  # noqa: B007 (read after the loop)
             mu, dlog_mu, inner = self._apparent_viscosity(layout, fluid, x, state)
@@ -808,7 +851,10 @@ class Line:
             if inner is not None:
                 log_q_i, dlog_q, _ = inner
                 state = np.where(
-                    converged, state, state + np.clip((x_new - log_q_i) / dlog_q, -5.0, 5.0)
+                    converged,
+                    state,
+                    state
+                    + np.clip((x_new + np.log(layout.flow_scale) - log_q_i) / dlog_q, -5.0, 5.0),
                 )
             x = np.where(moving & ~converged, x_new, x)
         q_out = np.where(moving, q, 0.0)
@@ -914,7 +960,7 @@ class Line:
                 mu_out[j] = mu_grid[j, 0]
             else:
                 mu_out[j] = np.exp(_hermite_apply(basis, np.log(mu_grid[j]), dlog_mu_grid[j]))
-        area = np.pi * layout.diameter**2 / 4.0
+        area = layout.area
         u = q / area
         re = layout.density * u * layout.diameter / mu_out
         q2 = q * q
@@ -1056,7 +1102,9 @@ class LineResult:
         def stress(rows):
             re = np.maximum(self.part_reynolds[rows], 1e-300)
             u = self.part_mean_velocity[rows]
-            f_re, _ = _lumen._friction_re_and_slope(re, 1.0, self._layout.relative_roughness, False)
+            f_re, _ = _lumen._friction_re_and_slope(
+                re, 1.0, self._layout.relative_roughness, False, self._layout.laminar_f_re
+            )
             # f rho u^2 / 8 = (f Re) mu u / (8 D)
             tau = f_re * self._viscosity * u / (8.0 * self._layout.diameter)
             return np.where(self._moving, tau, 0.0)
@@ -1258,6 +1306,7 @@ def _flags(result):
     for name, part in zip(result.part_names, result.line.parts, strict=True):
         if part.source_note:
             out.append(f"{name}: {part.source_note}")
+    out.extend(_shape_flags(result))
     if not result.fluid.is_newtonian:
         out.append(
             "non-Newtonian fluid: laminar drops from the Rabinowitsch-Mooney integral of "
@@ -1292,6 +1341,27 @@ def _flags(result):
             "solver did not reach full convergence in some scenarios (result is the "
             "last bracketed iterate)"
         )
+    return out
+
+
+def _shape_flags(result):
+    """Notes on the non-circular lumens of a result (see :mod:`rheoline.model.shapes`)."""
+    out = []
+    for name, part in zip(result.part_names, result.line.parts, strict=True):
+        shape = getattr(part, "shape", None)
+        if shape is None:
+            continue
+        out.append(
+            f"{name}: non-circular lumen ({shape.description}): laminar friction of its shape "
+            "(Shah & London 1978) on its hydraulic diameter; turbulent friction and developing "
+            "flow use the circle's correlations at that diameter (approximate)"
+        )
+        if not result.fluid.is_newtonian:
+            out.append(
+                f"{name}: non-Newtonian flow in a non-circular lumen uses the apparent "
+                "viscosity of a circle of its hydraulic diameter at the same mean velocity "
+                "(approximate)"
+            )
     return out
 
 

@@ -154,7 +154,16 @@ def reynolds_number(mean_velocity, diameter, density, viscosity):
 
 
 def _lumen_friction(
-    flow, area, diameter, length, relative_roughness, density, viscosity, dlog_viscosity, developing
+    flow,
+    area,
+    diameter,
+    length,
+    relative_roughness,
+    density,
+    viscosity,
+    dlog_viscosity,
+    developing,
+    laminar_f_re=16.0,
 ):
     """Frictional drop of one lumen, d ln(dp)/d ln(Q), Reynolds number and mean velocity.
 
@@ -164,7 +173,7 @@ def _lumen_friction(
     u = flow / area
     re = density * u * diameter / viscosity
     lod = length / diameter
-    f_re, dlog_f = _friction_re_and_slope(re, lod, relative_roughness, developing)
+    f_re, dlog_f = _friction_re_and_slope(re, lod, relative_roughness, developing, laminar_f_re)
     # f (L/D) rho u^2 / 2 written with f*Re, so that a vanishing flow stays finite
     dp = f_re * lod * 0.5 * viscosity * u / diameter
     slope = 2.0 + dlog_f * (1.0 - dlog_viscosity)

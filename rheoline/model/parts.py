@@ -1,20 +1,22 @@
-"""Parts of an infusion or access line: lumens, fittings and measured parts.
+"""Parts of an infusion or access line: lumens, fittings, check valves and measured parts.
 
-Every part is a small frozen dataclass with a ``name``; lumens (tubes, catheters,
-needles, cannulas) also have ``inner_diameter``, ``length`` and ``roughness`` [m]
-and an ``outer_diameter`` where known.  Dimensions may be numpy arrays (one value
-per scenario); :class:`rheoline.model.line.Line` broadcasts them.
+Every part is a small frozen dataclass with a ``name``; lumens (tubes and the catalogue
+devices of :mod:`rheoline.model.devices`: catheters, needles, cannulas) also have
+``inner_diameter`` (the bore, or the hydraulic diameter of a non-circular ``shape``),
+``length`` and ``roughness`` [m] and an ``outer_diameter`` where known.  Dimensions may be
+numpy arrays (one value per scenario); :class:`rheoline.model.line.Line` broadcasts them.
 
-Catalogue values (:mod:`rheoline.model.catalogue`) are typical nominal dimensions;
-pass the measured inner diameter and length of the actual part where known.
+The catalogue devices still import from here (``from rheoline.model.parts import
+Catheter``), where they lived before ``devices.py`` was split off.
 
 Examples
 --------
->>> cath = Catheter(gauge=18)
->>> cath.name, round(cath.inner_diameter * 1e3, 2), round(cath.length * 1e3)
-('18G catheter', 1.0, 45)
->>> Needle(gauge=22).inner_diameter
-0.00039
+>>> Tube(inner_diameter=3.0e-3, length=1.8).name
+'tube 3 mm x 1.8 m'
+>>> from rheoline.model.shapes import Semicircle
+>>> d = Tube(shape=Semicircle(3.0e-3), length=0.2)
+>>> d.name, round(d.inner_diameter * 1e3, 3), d.laminar_f_re
+('D-shaped 3 mm x 0.2 m', 1.833, 15.767)
 """
 
 from __future__ import annotations
@@ -24,23 +26,37 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from rheoline.errors import InputRangeError
-from rheoline.model import catalogue
 from rheoline.model.losses import _INCH, HOOPER_1981_2K, crane_fitting_k
+from rheoline.model.shapes import LumenShape
 from rheoline.model.validation import check_nonnegative, check_positive
 
 __all__ = [
     "Part",
     "Lumen",
     "Tube",
+    "Fitting",
+    "CheckValve",
+    "MeasuredPart",
+]
+
+#: Names that moved to :mod:`rheoline.model.devices`; still importable from here.
+_DEVICE_NAMES = (
     "Catheter",
     "Needle",
     "Cannula",
-    "Fitting",
-    "MeasuredPart",
     "circuit_tubing",
     "extension_set",
     "central_line_lumen",
-]
+    "multi_lumen_catheter_lumen",
+)
+
+
+def __getattr__(name):
+    if name in _DEVICE_NAMES:
+        from rheoline.model import devices
+
+        return getattr(devices, name)
+    raise AttributeError(f"module 'rheoline.model.parts' has no attribute {name!r}")
 
 
 def _value(arr):
@@ -57,21 +73,6 @@ def _size_text(value, scale, unit):
 
 def _mm(value):
     return _size_text(value, 1e3, "mm")
-
-
-def _one_size(gauge, what, sweep):
-    """A catalogue key must be one size: reject arrays and lists with how to sweep sizes."""
-    if np.ndim(gauge) != 0 or isinstance(gauge, (list, tuple, set, dict)):
-        raise InputRangeError(
-            f"{what} must be one catalogue size (e.g. 18), got {gauge!r}. For several sizes "
-            f"build one part per size ({sweep}), or sweep the bore of one part with "
-            "inner_diameter=np.array([...]) [m] (and length)"
-        )
-    if isinstance(gauge, (np.ndarray, np.generic)):
-        gauge = gauge.item()
-    if isinstance(gauge, float) and gauge.is_integer():
-        gauge = int(gauge)
-    return gauge
 
 
 def _set_internal_volume(part):
@@ -114,23 +115,31 @@ class Part:
 
     ``source_note`` is None, or says where a catalogue dimension came from (the line's
     flags repeat it).  ``internal_volume`` [m^3] is the liquid the part holds: a lumen's
-    bore, pi D^2 L / 4; a fitting's or measured part's user-given volume, 0 when not given,
-    in which case ``volume_note`` says so (None otherwise).
+    bore, pi D^2 L / 4 (its flow area times its length if non-circular); a fitting's or
+    measured part's user-given volume, 0 when not given, in which case ``volume_note`` says
+    so (None otherwise).
     """
 
     kind = "part"
     source_note = None
     volume_note = None
+    #: True for a part that lets flow through in one direction only (a check valve).
+    one_way = False
 
 
 @dataclass(frozen=True)
 class Lumen(Part):
-    """A straight circular lumen (the common base of tubes, catheters, needles, cannulas).
+    """A straight lumen (the common base of tubes, catheters, needles, cannulas).
+
+    Circular unless a ``shape`` is given (:mod:`rheoline.model.shapes`: D-shaped, annulus,
+    crescent, rectangle), whose hydraulic diameter is then the ``inner_diameter`` (for the
+    Reynolds number, the regime and the entrance length), whose area carries the flow, and
+    whose laminar f Re (Shah & London 1978) sets the laminar friction.
 
     Parameters
     ----------
     inner_diameter : float or array_like
-        [m], > 0.
+        [m], > 0; omit it when a ``shape`` is given.
     length : float or array_like
         [m], > 0.
     roughness : float or array_like
@@ -139,21 +148,27 @@ class Lumen(Part):
         Label used in tables.
     outer_diameter : float, optional
         [m], where known.
+    shape : LumenShape, optional
+        The cross-section of a non-circular lumen; None for a circle of ``inner_diameter``.
     """
 
-    inner_diameter: float | np.ndarray
-    length: float | np.ndarray
+    inner_diameter: float | np.ndarray | None = None
+    length: float | np.ndarray | None = None
     roughness: float | np.ndarray = 0.0
     name: str | None = None
     outer_diameter: float | np.ndarray | None = None
+    shape: LumenShape | None = None
     kind = "lumen"
 
     def __post_init__(self):
+        self._set_shape()
         object.__setattr__(
             self,
             "inner_diameter",
             _value(check_positive("inner_diameter", self.inner_diameter, "m")),
         )
+        if self.length is None:
+            raise InputRangeError(f"{type(self).__name__} needs length [m], e.g. length=0.2")
         object.__setattr__(self, "length", _value(check_positive("length", self.length, "m")))
         object.__setattr__(
             self, "roughness", _value(check_nonnegative("roughness", self.roughness, "m"))
@@ -169,19 +184,78 @@ class Lumen(Part):
         if self.name is None:
             object.__setattr__(self, "name", self._default_name())
 
+    def _set_shape(self):
+        if self.shape is None:
+            if self.inner_diameter is None:
+                raise InputRangeError(
+                    f"{type(self).__name__} needs inner_diameter [m] (a circular bore) or "
+                    "shape= (a cross-section from rheoline.model.shapes)"
+                )
+            return
+        if not isinstance(self.shape, LumenShape):
+            raise InputRangeError(
+                f"shape must be a cross-section of rheoline.model.shapes (Semicircle, Annulus, "
+                f"Crescent, Rectangle, Circle), got {self.shape!r}"
+            )
+        if self.inner_diameter is not None:
+            raise InputRangeError(
+                "give a non-circular lumen its shape only: its inner_diameter is the shape's "
+                f"hydraulic diameter ({_mm(self.shape.hydraulic_diameter)}); got inner_diameter "
+                f"{_mm(self.inner_diameter)} as well"
+            )
+        object.__setattr__(self, "inner_diameter", self.shape.hydraulic_diameter)
+
+    @property
+    def flow_area(self):
+        """Cross-section carrying the flow [m^2]: pi D^2 / 4, or the shape's area."""
+        if self.shape is None:
+            return _value(np.pi * np.asarray(self.inner_diameter) ** 2 / 4.0)
+        return self.shape.area
+
+    @property
+    def laminar_f_re(self):
+        """Fanning f Re of fully developed laminar flow [-]: 16, or the shape's."""
+        return 16.0 if self.shape is None else self.shape.laminar_f_re
+
+    def resized(self, inner_diameter=None, length=None):
+        """A Tube of this lumen's kind of cross-section at another bore and/or length.
+
+        A shaped lumen keeps its shape, scaled so that its hydraulic diameter is
+        ``inner_diameter`` (used by tolerance bands and bore sweeps).
+
+        Examples
+        --------
+        >>> from rheoline.model.shapes import Rectangle
+        >>> t = Tube(shape=Rectangle(2e-3, 1e-3), length=0.1).resized(inner_diameter=2e-3)
+        >>> round(t.shape.width * 1e3, 3), round(t.shape.height * 1e3, 3)
+        (3.0, 1.5)
+        """
+        d = self.inner_diameter if inner_diameter is None else inner_diameter
+        length = self.length if length is None else length
+        if self.shape is None:
+            return Tube(inner_diameter=d, length=length, roughness=self.roughness, name=self.name)
+        factor = np.asarray(d, dtype=float) / np.asarray(self.inner_diameter, dtype=float)
+        return Tube(
+            shape=self.shape.scaled(factor), length=length, roughness=self.roughness, name=self.name
+        )
+
     def _default_name(self):
-        return f"tube {_mm(self.inner_diameter)} x {_size_text(self.length, 1.0, 'm')}"
+        what = f"tube {_mm(self.inner_diameter)}" if self.shape is None else self.shape.description
+        return f"{what} x {_size_text(self.length, 1.0, 'm')}"
 
     @property
     def internal_volume(self):
-        """Volume [m^3] of the bore, pi D^2 L / 4 (a hub or connector volume is not included).
+        """Volume [m^3] of the bore, pi D^2 L / 4, or the shape's area times L (a hub or
+        connector volume is not included).
 
         Examples
         --------
         >>> round(Tube(inner_diameter=1.0e-3, length=1.5).internal_volume * 1e6, 4)   # mL
         1.1781
         """
-        return _value(np.pi * np.asarray(self.inner_diameter) ** 2 * self.length / 4.0)
+        if self.shape is None:
+            return _value(np.pi * np.asarray(self.inner_diameter) ** 2 * self.length / 4.0)
+        return _value(np.asarray(self.shape.area) * self.length)
 
 
 @dataclass(frozen=True)
@@ -193,263 +267,6 @@ class Tube(Lumen):
     >>> Tube(inner_diameter=3.0e-3, length=1.8).name
     'tube 3 mm x 1.8 m'
     """
-
-
-def _check_bore_inside(label, inner_diameter, outer_diameter):
-    """A measured bore must lie inside the catalogue outer diameter of the size."""
-    if inner_diameter is None:
-        return
-    d = check_positive("inner_diameter", inner_diameter, "m")
-    if np.any(d >= outer_diameter):
-        raise InputRangeError(
-            f"inner_diameter {_mm(d)} of a {label} reaches its typical outer diameter "
-            f"{_mm(outer_diameter)} (catalogue, from memory); pass a smaller measured bore, or "
-            "a Tube(inner_diameter=..., length=...) for a part of another size"
-        )
-
-
-def _catheter_dims(gauge, inner_diameter, length):
-    od, id_typ, len_typ, _ = _lookup(
-        catalogue.CATHETER_GAUGES,
-        gauge,
-        "catheter gauge",
-        "pass inner_diameter and length in metres for other sizes",
-    )
-    return (
-        od,
-        (id_typ if inner_diameter is None else inner_diameter),
-        (len_typ if length is None else length),
-    )
-
-
-class Catheter(Lumen):
-    """A peripheral or central catheter by gauge (typical nominal dimensions, from memory).
-
-    Parameters
-    ----------
-    gauge : int
-        14, 16, 18, 20, 22, 24 or 26.
-    inner_diameter, length : float or array_like, optional
-        Measured values [m]; default the catalogue's typical values.
-    name : str, optional
-
-    Examples
-    --------
-    >>> c = Catheter(gauge=20, length=0.025)
-    >>> round(c.outer_diameter * 1e3, 1), c.length
-    (1.1, 0.025)
-    """
-
-    def __init__(self, gauge, inner_diameter=None, length=None, name=None, roughness=0.0):
-        gauge = _one_size(
-            gauge, "catheter gauge", "[Catheter(gauge=g) for g in (18, 20)], a Line each"
-        )
-        od, d, length = _catheter_dims(gauge, inner_diameter, length)
-        _check_bore_inside(f"{gauge}G catheter", inner_diameter, od)
-        object.__setattr__(self, "gauge", gauge)
-        if inner_diameter is None or length is None:
-            object.__setattr__(
-                self,
-                "source_note",
-                "typical catalogue bore/length (from memory); pass the measured "
-                "inner_diameter and length",
-            )
-        super().__init__(
-            inner_diameter=d,
-            length=length,
-            roughness=roughness,
-            name=name or f"{gauge}G catheter",
-            outer_diameter=od,
-        )
-
-
-class Needle(Lumen):
-    """A hypodermic needle by gauge and wall type (ISO 9626 nominal sizes, from memory).
-
-    The inner diameter defaults to ISO 9626's *minimum* for the wall type, so the flow
-    is a low estimate; pass the measured bore where known.
-
-    Parameters
-    ----------
-    gauge : int
-        14 to 30.
-    wall : {"regular", "thin"}
-    length : float or array_like
-        [m]; default 0.038 (1.5 inch, a common length; common practice, no source).
-    inner_diameter : float, optional
-        Measured bore [m].
-    name : str, optional
-
-    Examples
-    --------
-    >>> n = Needle(gauge=18, wall="thin")
-    >>> n.name, round(n.inner_diameter * 1e3, 2)
-    ('18G thin-wall needle', 0.91)
-    """
-
-    def __init__(
-        self, gauge, wall="regular", length=0.038, inner_diameter=None, name=None, roughness=0.0
-    ):
-        if wall not in catalogue.NEEDLE_WALLS:
-            raise InputRangeError(
-                f"needle wall {wall!r} is not known; choose one of "
-                f"{', '.join(catalogue.NEEDLE_WALLS)}, or pass inner_diameter"
-            )
-        gauge = _one_size(gauge, "needle gauge", "[Needle(gauge=g) for g in (18, 20)], a Line each")
-        od, id_regular, id_thin = _lookup(
-            catalogue.NEEDLE_GAUGES,
-            gauge,
-            "needle gauge",
-            "pass inner_diameter in metres for other sizes",
-        )
-        d = (
-            (id_regular if wall == "regular" else id_thin)
-            if inner_diameter is None
-            else inner_diameter
-        )
-        _check_bore_inside(f"{gauge}G needle", inner_diameter, od)
-        object.__setattr__(self, "gauge", gauge)
-        object.__setattr__(self, "wall", wall)
-        if inner_diameter is None:
-            object.__setattr__(
-                self,
-                "source_note",
-                "ISO 9626 minimum bore (from memory), a low flow estimate; pass "
-                "the measured inner_diameter",
-            )
-        super().__init__(
-            inner_diameter=d,
-            length=length,
-            roughness=roughness,
-            name=name or f"{gauge}G {wall}-wall needle",
-            outer_diameter=od,
-        )
-
-
-class Cannula(Lumen):
-    """A cannula or sheath by French size (outer diameter = French / 3 mm).
-
-    The inner diameter is the user's, or the outer diameter less twice ``wall_thickness``
-    (default :data:`~rheoline.model.catalogue.CANNULA_TYPICAL_WALL`, typical, from memory).
-
-    Parameters
-    ----------
-    french : float
-        Size [Fr], > 0.
-    inner_diameter : float, optional
-        [m].
-    wall_thickness : float, optional
-        [m].
-    length : float or array_like
-        [m]; default 0.15 (typical, from memory).
-    name : str, optional
-
-    Examples
-    --------
-    >>> c = Cannula(french=21, wall_thickness=0.5e-3, length=0.2)
-    >>> round(c.outer_diameter * 1e3, 2), round(c.inner_diameter * 1e3, 2)
-    (7.0, 6.0)
-    """
-
-    def __init__(
-        self,
-        french,
-        inner_diameter=None,
-        wall_thickness=None,
-        length=0.15,
-        name=None,
-        roughness=0.0,
-    ):
-        fr = check_positive("french", french, "Fr")
-        od = fr * catalogue.FRENCH_TO_METRE
-        if inner_diameter is None:
-            if wall_thickness is None:
-                object.__setattr__(
-                    self,
-                    "source_note",
-                    "typical wall thickness (from memory) sets the bore; pass "
-                    "inner_diameter or wall_thickness",
-                )
-            wall = catalogue.CANNULA_TYPICAL_WALL if wall_thickness is None else wall_thickness
-            wall = check_positive("wall_thickness", wall, "m")
-            inner_diameter = od - 2.0 * wall
-            if np.any(inner_diameter <= 0):
-                raise InputRangeError(
-                    f"wall_thickness {float(np.max(wall)) * 1e3:g} mm leaves no bore in a "
-                    f"{float(np.min(fr)):g} Fr cannula; pass inner_diameter instead"
-                )
-        object.__setattr__(self, "french", _value(fr))
-        super().__init__(
-            inner_diameter=inner_diameter,
-            length=length,
-            roughness=roughness,
-            name=name or (f"{_value(fr):g} Fr cannula" if np.ndim(fr) == 0 else "cannula"),
-            outer_diameter=_value(od),
-        )
-
-
-def circuit_tubing(size, length, name=None):
-    """Extracorporeal circuit tubing by nominal inch size ("1/4", "3/8", "1/2").
-
-    Examples
-    --------
-    >>> round(circuit_tubing("3/8", 2.0).inner_diameter * 1e3, 3)
-    9.525
-    """
-    d = _lookup(
-        catalogue.CIRCUIT_TUBING,
-        size,
-        "circuit tubing size",
-        "pass a Tube(inner_diameter=...) for other bores",
-    )
-    return Tube(inner_diameter=d, length=length, name=name or f"{size} in circuit tubing")
-
-
-def extension_set(kind="standard-extension", length=None, name=None):
-    """An administration or extension set by kind (typical bores, from memory).
-
-    Examples
-    --------
-    >>> s = extension_set("microbore-extension")
-    >>> round(s.inner_diameter * 1e3, 2), s.length
-    (0.5, 1.5)
-    """
-    d, len_typ = _lookup(
-        catalogue.EXTENSION_SETS,
-        kind,
-        "extension set kind",
-        "pass a Tube(inner_diameter=..., length=...)",
-    )
-    return Tube(
-        inner_diameter=d,
-        length=len_typ if length is None else length,
-        name=name or kind.replace("-", " "),
-    )
-
-
-def central_line_lumen(lumen="distal", french=7.0, lumens=3, length=0.20, name=None):
-    """One lumen of a multi-lumen central venous catheter (gauge-equivalent bore).
-
-    Examples
-    --------
-    >>> part = central_line_lumen("medial")
-    >>> part.name, round(part.inner_diameter * 1e3, 2)
-    ('7 Fr 3-lumen central line, medial lumen (18G equivalent)', 1.0)
-    """
-    table = _lookup(
-        catalogue.CENTRAL_LINE_LUMENS,
-        (float(french), int(lumens)),
-        "central line (french, lumens)",
-        "pass a Tube for the lumen instead",
-    )
-    gauge = _lookup(table, lumen, "lumen", "pick one of the listed lumens")
-    d = catalogue.CATHETER_GAUGES[gauge][1]
-    return Tube(
-        inner_diameter=d,
-        length=length,
-        name=name
-        or f"{french:g} Fr {lumens}-lumen central line, {lumen} lumen ({gauge}G equivalent)",
-    )
 
 
 @dataclass(frozen=True)
@@ -568,6 +385,44 @@ class Fitting(Part):
             name=name or f"{kind} (Hooper 1981 2-K)",
             internal_volume=internal_volume,
         )
+
+
+@dataclass(frozen=True)
+class CheckValve(Fitting):
+    """A one-way (check, anti-reflux) valve: a K fitting that closes to reverse flow.
+
+    In a :class:`~rheoline.model.line.Line` (forward flow only) it is its K fitting; in a
+    network (:mod:`rheoline.model.branched`) the branch that holds it carries no reverse
+    flow.  It is taken to open at zero pressure difference (an opening pressure of a few
+    cmH2O, where a valve has one, is not modelled) and to seal completely when closed.
+
+    Parameters
+    ----------
+    k : float or array_like
+        Loss coefficient [-] of the open valve (measured, or e.g. a Crane TP-410 value).
+    inner_diameter : float, optional
+        Bore [m] the coefficient refers to (else the nearest lumen's, as for a Fitting).
+    name : str, optional
+
+    Examples
+    --------
+    >>> valve = CheckValve(k=4.0)
+    >>> valve.name, valve.one_way, valve.kind
+    ('check valve K=4', True, 'fitting')
+    """
+
+    one_way = True
+
+    def __post_init__(self):
+        if self.k is None or self.equivalent_length is not None:
+            raise InputRangeError(
+                "CheckValve needs k, the loss coefficient of the open valve (measured, or a "
+                f"Crane TP-410 value); got k={self.k!r}, equivalent_length="
+                f"{self.equivalent_length!r}"
+            )
+        if self.name is None:
+            object.__setattr__(self, "name", f"check valve K={np.max(self.k):.3g}")
+        super().__post_init__()
 
 
 @dataclass(frozen=True)
