@@ -107,6 +107,17 @@ _LAZY = {
     "young_tsai_1973_pressure_drop": "rheoline.model.stenosis",
     "stenosis_flow_fraction_lost": "rheoline.model.stenosis",
     "VesselNetwork": "rheoline.model.network",
+    # branched lines and non-circular lumens
+    "PartNetwork": "rheoline.model.branched",
+    "Branch": "rheoline.model.branched",
+    "PressureNode": "rheoline.model.branched",
+    "Pump": "rheoline.model.branched",
+    "CheckValve": "rheoline.model.parts",
+    "multi_lumen_catheter_lumen": "rheoline.model.devices",
+    "Semicircle": "rheoline.model.shapes",
+    "Annulus": "rheoline.model.shapes",
+    "Crescent": "rheoline.model.shapes",
+    "Rectangle": "rheoline.model.shapes",
     # units (edge helpers; pint loads on first call)
     "parse_quantity": "rheoline.units",
     "format_quantity": "rheoline.units",

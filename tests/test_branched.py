@@ -1,0 +1,208 @@
+"""Branched lines (model/branched.py): Kirchhoff networks of parts with nonlinear laws."""
+
+import numpy as np
+import pytest
+
+import rheoline
+from rheoline.errors import InputRangeError, NetworkError
+from rheoline.model.branched import Branch, PartNetwork, PressureNode, Pump
+from rheoline.model.fluid_base import newtonian_fluid
+from rheoline.model.line import GRAVITY, Line
+from rheoline.model.network import VesselNetwork
+from rheoline.model.parts import Catheter, CheckValve, MeasuredPart, Tube
+from rheoline.model.rheology import Casson
+
+WATER = newtonian_fluid("water", viscosity=1.0e-3, density=998.0)
+ML_MIN = 1e-6 / 60
+
+
+def _linear(resistance, name):
+    """A measured part whose law is exactly dp = R Q (the fit of exact linear pairs)."""
+    q = np.array([1e-7, 2e-7, 4e-7])
+    return MeasuredPart(flows=q, pressure_drops=resistance * q, name=name)
+
+
+def _linear_network(resistances, pressures):
+    """A Wheatstone-like network with a loop: a->b, a->c, b->c, b->d, c->d."""
+    ends = [("a", "b"), ("a", "c"), ("b", "c"), ("b", "d"), ("c", "d")]
+    branches = [
+        Branch(f"s{k}", s, e, [_linear(r, f"R{k}")])
+        for k, ((s, e), r) in enumerate(zip(ends, resistances, strict=True))
+    ]
+    nodes = [PressureNode(n, pressure=p, outlet=(p == 0.0)) for n, p in pressures.items()]
+    return PartNetwork(branches, nodes), ends
+
+
+def test_linear_network_matches_the_exact_solution_and_the_vessel_network():
+    # Kirchhoff's laws for linear resistances (Kirchhoff 1847): the nodal system solved
+    # exactly by numpy, and by the project's own VesselNetwork (scipy.sparse).
+    r = np.array([1.0e9, 2.0e9, 0.5e9, 3.0e9, 1.5e9])
+    net, ends = _linear_network(r, {"a": 4000.0, "d": 0.0})
+    result = net.solve(WATER)
+    # exact: unknown p_b, p_c from the two node equations
+    g = 1 / r
+    m = np.array([[g[0] + g[2] + g[3], -g[2]], [-g[2], g[1] + g[2] + g[4]]])
+    rhs = np.array([g[0] * 4000.0, g[1] * 4000.0])
+    p_b, p_c = np.linalg.solve(m, rhs)
+    p = {"a": 4000.0, "b": p_b, "c": p_c, "d": 0.0}
+    exact = np.array([(p[s] - p[e]) / rk for (s, e), rk in zip(ends, r, strict=True)])
+    np.testing.assert_allclose(result.branch_flow, exact, rtol=1e-9)
+    vessels = VesselNetwork(
+        [s for s, _ in ends], [e for _, e in ends], r, pressures={"a": 4000.0, "d": 0.0}
+    ).solve()
+    np.testing.assert_allclose(result.branch_flow, vessels.segment_flow, rtol=1e-9)
+    for node in "abcd":
+        assert result.pressure(node) == pytest.approx(vessels.pressure(node), rel=1e-9)
+    assert result.converged and result.iterations <= 3
+
+
+def test_one_branch_is_the_series_line():
+    line = Line([Tube(inner_diameter=3e-3, length=1.8), Catheter(gauge=18)])
+    heads = np.array([0.3, 0.8, 1.5])
+    net = PartNetwork(
+        [Branch("set", "bag", "vein", line)],
+        [PressureNode("bag", head=heads), PressureNode("vein", pressure=1000.0, outlet=True)],
+    )
+    result = net.solve(WATER)
+    expected = line.solve(WATER, head=heads, back_pressure=1000.0).flow
+    np.testing.assert_allclose(result.branch_flow[0], expected, rtol=1e-9)
+
+
+def test_two_identical_lumens_in_parallel_carry_twice_one():
+    # the same drop across each: any law, any regime (here turbulent-ish 3 mm tube at 50 kPa)
+    tube = Tube(inner_diameter=1.0e-3, length=0.5)
+    one = PartNetwork(
+        [Branch("one", "in", "out", [tube])],
+        [PressureNode("in", pressure=5e4), PressureNode("out", outlet=True)],
+    ).solve(WATER)
+    two = PartNetwork(
+        [Branch("one", "in", "out", [tube]), Branch("two", "in", "out", [tube])],
+        [PressureNode("in", pressure=5e4), PressureNode("out", outlet=True)],
+    ).solve(WATER)
+    assert two.branch_flow.sum() == pytest.approx(2 * one.branch_flow[0], rel=1e-10)
+    assert -two.pressure_node_inflow[1] == pytest.approx(2 * one.branch_flow[0], rel=1e-10)
+
+
+def _y_site(check_valve=False, pump_flow=60 * ML_MIN, head=0.8):
+    gravity = [Tube(inner_diameter=3e-3, length=1.5)]
+    if check_valve:
+        gravity.append(CheckValve(k=2.0))
+    return PartNetwork(
+        [
+            Branch("gravity set", "bag", "y-site", gravity),
+            Branch("pump line", "pump", "y-site", [Tube(inner_diameter=1e-3, length=1.0)]),
+            Branch("catheter", "y-site", "vein", [Catheter(gauge=22)]),
+        ],
+        [
+            PressureNode("bag", head=head, label="gravity bag"),
+            PressureNode("vein", pressure=800.0, outlet=True, label="vein"),
+        ],
+        [Pump("pump", flow=pump_flow, label="syringe pump")],
+    )
+
+
+def test_pump_pushes_back_into_the_bag_exactly_when_the_junction_exceeds_the_bag_head():
+    flows = np.linspace(0.0, 120.0, 241) * ML_MIN
+    result = _y_site(pump_flow=flows).solve(WATER)
+    bag = 998.0 * GRAVITY * 0.8
+    junction = result.node_pressure[result.node_names.index("y-site")]
+    # keep clear of the tie (within 1e-9 of the head), where the sign is rounding
+    clear = np.abs(junction - bag) > 1e-9 * bag
+    assert np.array_equal(result.reversed[0][clear], (junction > bag)[clear])
+    assert np.any(result.reversed[0]) and not np.all(result.reversed[0])
+    assert np.array_equal(result.conditions["backflow_into_source"], result.reversed[0])
+    assert any(
+        "syringe pump pushes up to" in f and "gravity bag at the y-site" in f for f in result.flags
+    )
+    # with a check valve: never reversed, the gravity branch simply stops
+    valved = _y_site(check_valve=True, pump_flow=flows).solve(WATER)
+    assert not np.any(valved.reversed)
+    assert np.all(valved.branch_flow[0] >= 0.0)
+    shut = valved.closed[0]
+    assert np.any(shut)
+    np.testing.assert_allclose(valved.branch_flow[1][shut], valved.branch_flow[2][shut], rtol=1e-12)
+    assert any("check valve in branch gravity set closed" in f for f in valved.flags)
+
+
+def test_mass_balance_at_every_node_and_vectorized_equals_scalar():
+    flows = np.array([5.0, 40.0, 90.0]) * ML_MIN
+    heads = np.array([0.5, 0.9, 1.2])
+    net = _y_site(pump_flow=flows, head=heads)
+    result = net.solve(WATER)
+    assert result.max_imbalance < 1e-12
+    q = result.branch_flow
+    # y-site: gravity + pump = catheter; the pump node passes its set flow
+    np.testing.assert_allclose(q[0] + q[1], q[2], rtol=1e-12, atol=1e-20)
+    np.testing.assert_allclose(q[1], flows, rtol=1e-12)
+    for k in range(3):
+        one = _y_site(pump_flow=flows[k], head=heads[k]).solve(WATER)
+        np.testing.assert_allclose(one.branch_flow, q[:, k], rtol=1e-10)
+        np.testing.assert_allclose(one.node_pressure, result.node_pressure[:, k], rtol=1e-10)
+
+
+def test_blood_through_two_catheters_in_parallel():
+    blood = rheoline.fluid("whole-blood")
+    net = PartNetwork(
+        [
+            Branch("set", "bag", "hub", [Tube(inner_diameter=4e-3, length=2.0)]),
+            Branch(
+                "left", "hub", "vein", [Tube(inner_diameter=3e-3, length=0.3), Catheter(gauge=16)]
+            ),
+            Branch(
+                "right", "hub", "vein", [Tube(inner_diameter=3e-3, length=0.3), Catheter(gauge=18)]
+            ),
+        ],
+        [
+            PressureNode("bag", pressure=40000.0, head=1.0),
+            PressureNode("vein", pressure=1000.0, outlet=True),
+        ],
+    )
+    result = net.solve(blood)
+    assert result.converged and result.max_imbalance < 1e-12
+    left, right = result.branch_flow[1], result.branch_flow[2]
+    assert left > right > 0
+    # each branch obeys its own line at the solved junction pressure
+    hub = result.pressure("hub")
+    line = net.branches[1].line
+    assert line.solve(blood, source_pressure=hub, back_pressure=1000.0).flow == pytest.approx(
+        left, rel=1e-8
+    )
+
+
+def test_topology_errors_name_what_is_wrong():
+    tube = Tube(inner_diameter=1e-3, length=1.0)
+    out = PressureNode("out", outlet=True)
+    with pytest.raises(NetworkError, match="branch 'a' is named twice"):
+        PartNetwork([Branch("a", "x", "out", tube), Branch("a", "x", "out", tube)], [out])
+    with pytest.raises(NetworkError, match="node 'out' is named twice"):
+        PartNetwork([Branch("a", "x", "out", tube)], [out, PressureNode("out")])
+    with pytest.raises(
+        NetworkError, match=r"'b' \(nodes 'p', 'q'\) are joined to no bag.*a disconnected branch"
+    ):
+        PartNetwork([Branch("a", "x", "out", tube), Branch("b", "p", "q", tube)], [out])
+    with pytest.raises(
+        NetworkError, match="joined to no bag, reservoir or outlet: a loop with no source"
+    ) as err:
+        PartNetwork(
+            [
+                Branch("a", "x", "out", tube),
+                Branch("b", "p", "q", tube),
+                Branch("c", "q", "p", tube),
+            ],
+            [out],
+        )
+    assert err.value.field == "branch[b]"
+    with pytest.raises(NetworkError, match="runs from node 'x' to itself"):
+        PartNetwork([Branch("a", "x", "x", tube)], [out])
+    with pytest.raises(NetworkError, match="no pressure node"):
+        PartNetwork([Branch("a", "x", "out", tube)], [])
+    with pytest.raises(NetworkError, match="node 'nowhere' .* is on no branch"):
+        PartNetwork([Branch("a", "x", "out", tube)], [out], [Pump("nowhere", flow=1e-6)])
+    with pytest.raises(NetworkError, match="node 'out' is named twice"):
+        PartNetwork([Branch("a", "x", "out", tube)], [out], [Pump("out", flow=1e-6)])
+    paste = newtonian_fluid("p", 1e-3, 1000.0)
+    paste = type(paste)("paste", temperature_c=20.0, density=1000.0, rheology=Casson(0.01, 3e-3))
+    with pytest.raises(InputRangeError, match="has a yield stress"):
+        PartNetwork([Branch("a", "x", "out", tube)], [out, PressureNode("x", pressure=1e3)]).solve(
+            paste
+        )
