@@ -15,9 +15,11 @@ Run ``python benchmarks/run.py [--n N] [--json]`` from the repository root after
    per-scenario parts (which take the engine's Newton path instead of the shared
    characteristic);
 4. ``monte_carlo_10k_ms``: a 10,000-sample tolerance band (:func:`rheoline.flow_tolerance`);
-5. ``widget_update_ms``: one control change in the line view and the comparison view
+5. ``network``: a 4-branch network for N scenarios (``benchmarks/network.py``): Newton steps,
+   residual passes and the ratio against a per-scenario :func:`scipy.optimize.root` loop;
+6. ``widget_update_ms``: one control change in the line view and the comparison view
    (7 candidates x 200 points, 2,000-sample tolerance band), median of 20;
-6. ``import_model_ms``: importing the model layer in a fresh interpreter.
+7. ``import_model_ms``: importing the model layer in a fresh interpreter.
 
 Times are medians of repeats (wall clock, ``time.perf_counter``, garbage collector off).
 The machine, its load average and numpy's BLAS are printed beside the figures; the ratios
@@ -44,7 +46,8 @@ import numpy as np
 
 sys.path.insert(0, str(Path(__file__).resolve().parent))
 
-import scalar_reference as scalar  # noqa: E402  (the script's own folder)
+import network as network_case  # noqa: E402  (the script's own folder)
+import scalar_reference as scalar  # noqa: E402
 
 import rheoline  # noqa: E402
 from rheoline.model.line import Line  # noqa: E402
@@ -458,6 +461,10 @@ def figures(report):
         if isinstance(value, float):
             flat[f"widget_update_ms[{name}]"] = value
     flat["import_model_ms"] = report["import_model_ms"]
+    net = report.get("network")
+    if net:  # the 4-branch network case (benchmarks/network.py)
+        for key in ("speedup_vs_scipy_loop", "residual_passes", "max_relative_difference"):
+            flat[f"network.{key}"] = float(net[key])
     return flat
 
 
@@ -482,13 +489,14 @@ def run(n=100_000, repeats=7, widget_repeats=20, import_repeats=7, subset_scale=
         "monte_carlo_dominant_input": band.dominant_input,
         "widget_update_ms": widget_ms(widget_repeats),
         "import_model_ms": import_ms(import_repeats),
+        "network": network_case.run(n, min(3, repeats), subset_scale),
     }
     report["load_average_after"] = load_average()
     report["figures"] = figures(report)
     report["targets"] = [
         {"figure": k, "value": v, "target": t, "holds": bool(ok)} for k, v, t, ok in targets(report)
     ]
-    report["all_agree"] = all(row["agree"] for row in rows)
+    report["all_agree"] = all(row["agree"] for row in rows) and report["network"]["agree"]
     return report
 
 
@@ -545,6 +553,16 @@ def table(report):
         "(scalar: plain-Python residual of the same physics, brentq per scenario for "
         "flows, one evaluation per scenario for pressures; strided subset timed)"
     )
+    net = report.get("network")
+    if net:
+        out.append(
+            f"4-branch network (benchmarks/network.py), {net['n']:,} scenarios: "
+            f"{net['vector_solve_ms']:.1f} ms, {net['iterations']} Newton steps, "
+            f"{net['residual_passes']} residual passes; scipy root per scenario "
+            f"{net['scipy_us_per_scenario']:.0f} us; ratio {net['speedup_vs_scipy_loop']:.0f}x; "
+            f"max rel diff {net['max_relative_difference']:.1e}; "
+            f"{net['reversed_scenarios']:,} with backflow into the bag"
+        )
     out.append("")
     w = report["widget_update_ms"]
     extra = {

@@ -45,6 +45,9 @@ EXPECTED_FIGURES = [
     "widget_update_ms[comparison_view head]",
     "widget_update_ms[comparison_view temperature, bore+temperature band]",
     "import_model_ms",
+    "network.speedup_vs_scipy_loop",
+    "network.residual_passes",
+    "network.max_relative_difference",
 ]
 
 

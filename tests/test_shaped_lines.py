@@ -143,3 +143,18 @@ def test_devices_still_import_from_parts():
     assert rheoline.central_line_lumen is devices.central_line_lumen
     with pytest.raises(AttributeError, match="has no attribute 'Nothing'"):
         parts.Nothing  # noqa: B018
+
+
+def test_tolerance_bands_and_bore_sweeps_keep_a_lumens_shape():
+    from rheoline.model.curves import flow_curves
+    from rheoline.model.tolerance import flow_tolerance
+
+    part = Tube(shape=Semicircle(3e-3), length=0.2)
+    line = Line([part])
+    band = flow_tolerance(line, WATER, head=1.0, diameter_tolerance=0.02, n_samples=200, seed=1)
+    assert band.samples.size == 200
+    curves = flow_curves(
+        [line], WATER, over="inner_diameter", values=[part.inner_diameter], head=1.0
+    )
+    (flows,) = curves.flows.values()
+    assert flows[0] == pytest.approx(line.solve(WATER, head=1.0).flow, rel=1e-9)

@@ -25,7 +25,7 @@ import numpy as np
 
 from rheoline.errors import InputRangeError
 from rheoline.model.line import Line
-from rheoline.model.parts import Lumen, Tube
+from rheoline.model.parts import Lumen
 from rheoline.model.validation import check_finite
 
 __all__ = ["CURVE_VARIABLES", "CurveSet", "flow_curves"]
@@ -99,7 +99,7 @@ def _with_diameter(line, part, values):
             f"part {part!r} is not a lumen of the line; choose one of {lumens} (name or index)"
         )
     old = line.parts[index]
-    new = Tube(inner_diameter=values, length=old.length, roughness=old.roughness, name=old.name)
+    new = old.resized(inner_diameter=values)  # a non-circular lumen keeps its shape
     parts = list(line.parts)
     parts[index] = new
     return Line(parts, entrance=line.entrance, name=line.name)

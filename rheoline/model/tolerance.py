@@ -28,7 +28,7 @@ import numpy as np
 
 from rheoline.errors import InputRangeError
 from rheoline.model.line import Line, _check_line
-from rheoline.model.parts import Lumen, Tube
+from rheoline.model.parts import Lumen
 from rheoline.model.validation import check_nonnegative
 
 __all__ = ["ToleranceResult", "flow_tolerance", "scale_viscosity"]
@@ -228,9 +228,8 @@ def flow_tolerance(
             inputs[label], owners[label] = np.log1p(dev), name
             length = length * (1.0 + dev.reshape(axis))
         if d_tol > 0 or l_tol > 0:
-            new_parts.append(
-                Tube(inner_diameter=d, length=length, roughness=part.roughness, name=part.name)
-            )
+            # a non-circular lumen keeps its shape, scaled to the sampled hydraulic diameter
+            new_parts.append(part.resized(inner_diameter=d, length=length))
         else:
             new_parts.append(part)
     sampled_fluid = fluid
