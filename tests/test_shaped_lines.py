@@ -158,3 +158,9 @@ def test_tolerance_bands_and_bore_sweeps_keep_a_lumens_shape():
     )
     (flows,) = curves.flows.values()
     assert flows[0] == pytest.approx(line.solve(WATER, head=1.0).flow, rel=1e-9)
+
+
+def test_parts_still_offers_its_catalogue_module():
+    from rheoline.model import catalogue, parts
+
+    assert parts.catalogue is catalogue

@@ -26,6 +26,7 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from rheoline.errors import InputRangeError
+from rheoline.model import catalogue  # noqa: F401  (read as parts.catalogue by the scenario layer)
 from rheoline.model.losses import _INCH, HOOPER_1981_2K, crane_fitting_k
 from rheoline.model.shapes import LumenShape
 from rheoline.model.validation import check_nonnegative, check_positive
