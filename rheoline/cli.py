@@ -199,9 +199,11 @@ def _cmd_run(args, out, sset=None):
         reach /= ML_PER_MIN
     run = _solve(sset)
     if args.sort:
+        import dataclasses
+
         from rheoline.scenario.compare import rank
 
-        run.table = rank(run.table, by=args.sort)
+        run = dataclasses.replace(run, table=rank(run.table, by=args.sort))  # a run is frozen
     if args.json:
         out.write(json.dumps(run.records(), indent=2, allow_nan=False) + "\n")
         print(_caution(), file=sys.stderr)
