@@ -488,17 +488,103 @@ def test_a_bag_emptying_to_the_outlet_level_is_flagged_as_never_delivering():
 
 
 def test_notes_about_several_parts_become_one_line():
-    from rheoline.scenario.compare import _condense
+    from types import SimpleNamespace
+
+    from rheoline.scenario.steps import condensed_notes
 
     notes = [
-        "14G catheter: typical bore (from memory)",
-        "18G catheter: typical bore (from memory)",
-        "set: turbulent flow (Re up to 5000) in 1 of 2 scenarios; Churchill 1977 used",
-        "non-Newtonian fluid: Rabinowitsch-Mooney",
-        "no forward flow",
+        ("line", "14G catheter: typical bore (from memory)"),
+        ("line", "18G catheter: typical bore (from memory)"),
+        ("line", "set: turbulent flow (Re up to 5000) in 1 of 2 scenarios; Churchill 1977 used"),
+        ("line", "non-Newtonian fluid: Rabinowitsch-Mooney"),
+        ("line", "no forward flow"),
     ]
-    assert _condense(notes) == [
-        "14G catheter, 18G catheter: typical bore (from memory)",
-        "non-Newtonian fluid: Rabinowitsch-Mooney",
-        "no forward flow",
+    runs = [SimpleNamespace(notes=notes[:2]), SimpleNamespace(notes=notes[2:])]
+    assert condensed_notes(runs) == [
+        ("line", "14G catheter, 18G catheter: typical bore (from memory)"),
+        ("line", "non-Newtonian fluid: Rabinowitsch-Mooney"),
+        ("line", "no forward flow"),
     ]
+
+
+# --------------------------------------------------------------------------- the run's result
+def test_the_run_result_is_frozen_data_with_structured_notes():
+    import dataclasses
+
+    from rheoline.scenario.compare import Note
+
+    r = run(
+        sc(name="cold blood", fluid="whole-blood", temperature=["0 degC", "37 degC"], head="1 m")
+    )
+    with pytest.raises(dataclasses.FrozenInstanceError):
+        r.table = None
+    assert r.notes and all(isinstance(n, Note) and n.scenario == "cold blood" for n in r.notes)
+    assert r.warnings == tuple(dict.fromkeys(f"cold blood: {n.text}" for n in r.notes))
+    # each case's flags are data; the table joins them
+    assert set(r.flags) == set(r.table["case"])
+    for case, text in zip(r.table["case"], r.table["flags"], strict=True):
+        assert "; ".join(r.flags[case]) == text
+
+
+def test_a_label_holding_the_flag_separator_stays_one_flag():
+    # "a; b" labels a part that runs turbulent: its flag names it whole
+    rec = run(
+        sc(
+            head="2 m",
+            parts=[{"type": "tube", "label": "a; b", "inner_diameter": "5 mm", "length": "0.5 m"}],
+        )
+    ).records()
+    assert rec[0]["flags"] == ["turbulent: a; b"]
+
+
+def test_cases_that_share_a_label_keep_unique_keys_and_their_own_parts():
+    # scenario "a | 1 m" and scenario "a" swept over one head of 1 m label their cases alike
+    r = run(
+        sc(name="a | 1 m", head="1 m", parts=[{"type": "catheter", "gauge": 14}]),
+        sc(name="a", head=["1 m"], parts=[{"type": "catheter", "gauge": 22}]),
+        sc(name="b", head="1 m", parts=[{"type": "catheter", "gauge": [18, "18G"]}]),
+    )
+    cases = r.table["case"].tolist()
+    assert cases == ["a | 1 m", "a | 1 m #2", "b | 18G", "b | 18G #2"]
+    by_case = {rec["name"]: [p["part"] for p in rec["parts"]] for rec in r.records()}
+    assert by_case["a | 1 m"] == ["14G catheter", "exit"]
+    assert by_case["a | 1 m #2"] == ["22G catheter", "exit"]
+    assert r.parts.groupby("case").size().tolist() == [2, 2, 2, 2]
+
+
+# --------------------------------------------------------------------------- within limits
+def test_a_pump_case_over_its_pressure_limit_does_not_reach_a_flow():
+    demo = run_scenarios(load_scenarios(example_path("rapid-transfusion-cart"))).table
+    pump = demo[demo["scenario"] == "pump 150 mL/min, 300 mmHg limit"]
+    over = pump[pump["over pressure limit"].astype(bool)]
+    assert len(over) and (over["required pressure [mmHg]"] > 300).all()  # the demo's point
+    best = smallest_reaching(demo, 100.0, scenario="pump 150 mL/min, 300 mmHg limit")
+    assert len(best) == 1 and not best["over pressure limit"].item()
+    assert best["required pressure [mmHg]"].item() <= 300
+    # the smallest bore within the limit: every smaller pump case is over it
+    smaller = pump[pump["smallest bore [mm]"] < best["smallest bore [mm]"].item()]
+    assert len(smaller) and smaller["over pressure limit"].all()
+    # a limit nothing meets: no case reaches any flow
+    t = run(
+        sc(
+            flow="150 mL/min",
+            pressure_limit="10 mmHg",
+            parts=[{"type": "catheter", "gauge": [20, 22]}],
+        )
+    ).table
+    assert t["over pressure limit"].all() and smallest_reaching(t, 1.0).empty
+
+
+def test_rank_puts_cases_outside_their_limits_last_and_keeps_every_row():
+    t = run(
+        sc(
+            flow=["50 mL/min", "300 mL/min"],
+            pressure_limit="300 mmHg",
+            parts=[{"type": "catheter", "gauge": 18}],
+        )
+    ).table
+    assert t["over pressure limit"].tolist() == [False, True]
+    ranked = rank(t)
+    assert ranked["case"].tolist() == [t["case"].iloc[0], t["case"].iloc[1]]
+    assert rank(t, within=False)["case"].iloc[0] == t["case"].iloc[1]  # plain sort
+    assert len(filter_cases(t)) == 1 and len(filter_cases(t, within=False)) == 2

@@ -13,7 +13,7 @@ import pytest
 
 import rheoline
 from rheoline.scenario import export
-from rheoline.scenario.compare import _COLUMNS, _PART_COLUMNS, RunResult
+from rheoline.scenario.compare import _COLUMNS, _PART_COLUMNS, Note, RunResult
 from rheoline.scenario.export import (
     PACK_FILES,
     PackExistsError,
@@ -102,7 +102,14 @@ def fake_run(names):
     assumptions = pd.DataFrame(
         {"topic": ["t"], "model": [HOSTILE[0]], "reference": ["r"], "notes": ["n"]}
     )
-    return RunResult(sset, table, parts, inputs, assumptions, warnings=(HOSTILE[1],))
+    return RunResult(
+        sset,
+        table,
+        parts,
+        inputs,
+        notes=(Note("", None, "warning", HOSTILE[1]),),
+        assumptions=assumptions,
+    )
 
 
 # --------------------------------------------------------------------------- neutralization

@@ -1,0 +1,339 @@
+"""Build the model objects of a scenario: sweep groups, the fluid, the parts, the line.
+
+A scenario's sweep points are gathered into :class:`Group` s: points that share their fluid
+name and the discrete choices of their parts (gauges, walls, set kinds, fitting
+coefficients) are solved together in one vectorized call of the line engine, every other
+field an array over the group's points.  :func:`build` turns a group into a :class:`Built`:
+the :class:`~rheoline.model.fluid_base.Fluid`, the model parts, the
+:class:`~rheoline.model.line.Line` and the infusion-site context.
+
+A model error while building becomes a :class:`~rheoline.errors.ScenarioError` naming the
+file, the scenario and the field of the file that caused it (read from the error's
+``field``).  :func:`check_scenarios` builds everything and solves nothing.
+
+Examples
+--------
+>>> from rheoline.scenario.reading import example_path, load_scenarios
+>>> sset = load_scenarios(example_path("bench-sweep"))
+>>> gs = groups(sset.scenarios[0])
+>>> len(gs), len(gs[0].indices), gs[0].values["head"]
+(6, 5, array([0.5 , 0.75, 1.  , 1.25, 1.5 ]))
+>>> built = build(gs[0], sset.source)
+>>> list(built.line.part_names)
+['extension set', 'three-way stopcock', '14G catheter']
+"""
+
+from __future__ import annotations
+
+import warnings
+from dataclasses import dataclass
+
+import numpy as np
+
+from rheoline.errors import RheolineError, ScenarioError
+from rheoline.scenario.description import Axis, ScenarioSet, sweep_points
+
+__all__ = [
+    "Group",
+    "Built",
+    "groups",
+    "point_group",
+    "build",
+    "build_fluid",
+    "build_parts",
+    "point_part_names",
+    "site_context",
+    "check_scenarios",
+]
+
+# Part fields that select a catalogue entry, or are single values by nature: grouped on,
+# never vectorized.
+_DISCRETE = {
+    "gauge",
+    "wall",
+    "french",
+    "kind",
+    "k",
+    "equivalent_length",
+    "test_viscosity",
+    "test_density",
+}
+#: Part fields whose sweep changes the name the engine gives a part ("tube 3 mm x 1.8 m").
+_SIZE_FIELDS = ("inner_diameter", "length")
+#: Part fields that are lists of bench points (fixed over a sweep).
+_BENCH_FIELDS = ("flows", "pressure_drops")
+#: The file's key of each argument of :func:`rheoline.model.fluids.fluid`.
+_FLUID_ARGUMENTS = {
+    "hematocrit": "hematocrit",
+    "mass_fraction": "mass_fraction",
+    "temperature": "temperature",
+    "temperature_c": "temperature",
+}
+
+
+@dataclass
+class Group:
+    """Sweep points of one scenario solved in one vectorized call.
+
+    ``indices`` are the points' positions in the scenario's sweep, ``labels`` how each is
+    shown; ``values`` maps a scenario field to an array over the points (the fluid's name
+    stays a name); ``parts`` holds, per part, its fields as arrays or discrete values.
+    """
+
+    scenario: object
+    indices: list
+    labels: list
+    values: dict
+    parts: list
+
+    @property
+    def size(self):
+        """Number of sweep points in the group."""
+        return len(self.indices)
+
+
+@dataclass(frozen=True)
+class Built:
+    """The model objects of a group: its fluid, parts and line, and the site context (the
+    catheter-to-vein result of :func:`rheoline.model.vessels.infusion_site_context`, or
+    None without a vein diameter)."""
+
+    fluid: object
+    parts: list
+    line: object
+    site: object = None
+
+
+# --------------------------------------------------------------------------- groups
+def _point_values(sc, pt):
+    vals = {k: (pt[k][0] if k in pt else v) for k, v in sc.values.items()}
+    parts = [
+        {k: (pt[f"part[{j}].{k}"][0] if isinstance(v, Axis) else v) for k, v in p.values.items()}
+        for j, p in enumerate(sc.parts, start=1)
+    ]
+    return vals, parts
+
+
+def _stacked_part(members, j):
+    pv = {}
+    for k in members[0][3][j]:
+        col = [m[3][j][k] for m in members]
+        if k in _DISCRETE:
+            pv[k] = col[0]
+        elif isinstance(col[0], tuple):  # measured pairs, fixed
+            pv[k] = np.asarray(col[0], dtype=float)
+        else:
+            pv[k] = np.asarray(col, dtype=float)
+    return pv
+
+
+def groups(sc):
+    """The sweep points of scenario ``sc`` gathered into :class:`Group` s (in first-point
+    order)."""
+    keyed = {}
+    for i, pt in enumerate(sweep_points(sc)):
+        vals, parts = _point_values(sc, pt)
+        key = (
+            vals["fluid"],
+            tuple(tuple((k, v) for k, v in sorted(pv.items()) if k in _DISCRETE) for pv in parts),
+        )
+        label = ", ".join(shown for _, shown in pt.values())
+        keyed.setdefault(key, []).append((i, label, vals, parts))
+    out = []
+    for members in keyed.values():
+        vals = {}
+        for k in members[0][2]:
+            col = [m[2][k] for m in members]
+            vals[k] = col[0] if k == "fluid" else np.asarray(col, dtype=float)
+        parts = [_stacked_part(members, j) for j in range(len(sc.parts))]
+        out.append(Group(sc, [m[0] for m in members], [m[1] for m in members], vals, parts))
+    return out
+
+
+def point_group(g, col):
+    """The one-point group of sweep point ``col`` of ``g`` (scalars instead of arrays)."""
+    n = g.size
+
+    def one(k, v):
+        if isinstance(v, np.ndarray) and v.shape == (n,) and k not in _BENCH_FIELDS:
+            return float(v[col])
+        return v
+
+    return Group(
+        g.scenario,
+        g.indices[col : col + 1],
+        g.labels[col : col + 1],
+        {k: (v if k == "fluid" else float(v[col])) for k, v in g.values.items()},
+        [{k: one(k, v) for k, v in pv.items()} for pv in g.parts],
+    )
+
+
+# --------------------------------------------------------------------------- model objects
+def build(g, source) -> Built:
+    """The fluid, parts, line and site context of group ``g``."""
+    from rheoline.model.line import Line
+
+    fl = build_fluid(g, source)
+    parts = build_parts(g, source)
+    return Built(fl, parts, Line(parts), site_context(g, parts, source))
+
+
+def _model_field(exc, known, default, text=None):
+    """The file key of the model argument a model error names (``exc.field``)."""
+    field = getattr(exc, "field", None)
+    if field in known:
+        return known[field]
+    # a model error that names no field: search its text (kept until every model error
+    # carries its field)
+    low = (str(exc) if text is None else text).lower()
+    return next((v for k, v in known.items() if k.replace("_", " ") in low or k in low), default)
+
+
+def build_fluid(group, source):
+    """The group's fluid (arrays of temperature and options over its points)."""
+    from rheoline.model.fluids import fluid
+
+    sc = group.scenario
+    opts = {k: group.values[k] for k in ("hematocrit", "mass_fraction") if k in group.values}
+    try:
+        return fluid(group.values["fluid"], temperature_c=group.values["temperature"], **opts)
+    except RheolineError as exc:
+        msg = str(exc)
+        if getattr(exc, "field", None) is None and "has no option" in msg:
+            field = next((k for k in opts if f"option {k!r}" in msg), "fluid")
+        else:
+            field = _model_field(exc, _FLUID_ARGUMENTS, "fluid", msg.split(";")[0])
+        raise ScenarioError(msg, source=source, scenario=repr(sc.name), field=field) from None
+
+
+def build_part(spec, kw, name):
+    """One model part of the file's part ``spec`` with the field values ``kw``."""
+    from rheoline.model import parts as mp
+
+    kw = dict(kw)
+    if spec.type == "set":
+        kind = kw.pop("kind")
+        if "inner_diameter" in kw:
+            length = kw.get("length", mp.catalogue.EXTENSION_SETS[kind][1])
+            return mp.Tube(inner_diameter=kw["inner_diameter"], length=length, name=name)
+        return mp.extension_set(kind, length=kw.get("length"), name=name)
+    if spec.type == "catheter" and "gauge" not in kw:  # a measured bore only
+        return mp.Tube(name=name or "catheter", **kw)
+    kinds = {
+        "tube": mp.Tube,
+        "catheter": mp.Catheter,
+        "needle": mp.Needle,
+        "cannula": mp.Cannula,
+        "fitting": mp.Fitting,
+        "measured": mp.MeasuredPart,
+    }
+    return kinds[spec.type](name=name, **kw)
+
+
+def build_parts(group, source):
+    """The group's model parts, source to outlet, named by their labels (a repeated label
+    gets " (2)"), or by the engine where they have none."""
+    sc = group.scenario
+    built, used = [], {}
+    for j, (spec, pv) in enumerate(zip(sc.parts, group.parts, strict=True), start=1):
+        name = None if spec.name == spec.type else spec.name  # None: the engine names it
+        if name is not None:
+            used[name] = used.get(name, 0) + 1
+            if used[name] > 1:
+                name = f"{name} ({used[name]})"
+        try:
+            if name is None:
+                name = _unswept_name(spec, pv)
+            part = build_part(spec, pv, name)
+        except RheolineError as exc:
+            field = _model_field(exc, {k: k for k in pv}, next(iter(pv), "type"))
+            raise ScenarioError(
+                str(exc), source=source, scenario=repr(sc.name), field=f"part[{j}].{field}"
+            ) from None
+        built.append(part)
+    return built
+
+
+def _unswept_name(spec, pv):
+    """The engine's name of a part whose sizes are one value repeated over a group.
+
+    A group passes every size as an array of its points; the engine would name it by the
+    range ("tube 3-3 mm x 1 m").  None (the engine names it) when a size varies.
+    """
+    sizes = {k: pv[k] for k in _SIZE_FIELDS if isinstance(pv.get(k), np.ndarray)}
+    if not sizes or any(v.ndim != 1 or v.size == 0 or np.ptp(v) > 0 for v in sizes.values()):
+        return None
+    return build_part(spec, {**pv, **{k: float(v[0]) for k, v in sizes.items()}}, None).name
+
+
+def point_part_names(g, line):
+    """Per part, the name of each sweep point's own part: shape (parts, points).
+
+    The engine names a part built from a whole sweep by its range or largest size; a row
+    of the table names the part as built for that point alone (once per distinct size).
+    Parts with a label, or whose size is not swept within the group, keep the line's name.
+    A name repeated within one line is marked as the engine marks it: "name #2".
+    """
+    n = g.size
+    names = np.empty((len(line.parts), n), dtype=object)
+    for j, (spec, pv) in enumerate(zip(g.scenario.parts, g.parts, strict=True)):
+        names[j, :] = line.parts[j].name
+        swept = [
+            k
+            for k in _SIZE_FIELDS
+            if isinstance(pv.get(k), np.ndarray) and pv[k].shape == (n,) and np.ptp(pv[k]) > 0
+        ]
+        if spec.name != spec.type or not swept:
+            continue
+        by_size = {}
+        for col in range(n):
+            by_size.setdefault(tuple(float(pv[k][col]) for k in swept), []).append(col)
+        with warnings.catch_warnings():
+            warnings.simplefilter("ignore")  # noted already for the whole group
+            for cols in by_size.values():
+                names[j, cols] = build_part(spec, point_group(g, cols[0]).parts[j], None).name
+    for col in range(n):
+        seen = {}
+        for j in range(len(line.parts)):
+            seen[names[j, col]] = seen.get(names[j, col], 0) + 1
+            if seen[names[j, col]] > 1:
+                names[j, col] = f"{names[j, col]} #{seen[names[j, col]]}"
+    return names
+
+
+def site_context(group, parts, source):
+    """Catheter-to-vein context (rheoline.model.vessels) when the scenario gives a vein."""
+    if "vein_diameter" not in group.values:
+        return None
+    from rheoline.model.vessels import infusion_site_context
+
+    at = {"source": source, "scenario": repr(group.scenario.name), "field": "vein_diameter"}
+    outlet = [p for p in parts if getattr(p, "outer_diameter", None) is not None]
+    if not outlet:
+        raise ScenarioError(
+            "needs a catheter, needle or cannula (a part with an outer diameter) in the line",
+            **at,
+        )
+    try:
+        return infusion_site_context(
+            outlet[-1].outer_diameter,
+            group.values["vein_diameter"],
+            vein_pressure=group.values.get("back_pressure", 0.0),
+            warn=False,
+        )
+    except RheolineError as exc:
+        raise ScenarioError(str(exc), **at) from None
+
+
+def check_scenarios(sset: ScenarioSet) -> None:
+    """Check what only the model knows (fluid names and options, part geometry).
+
+    Builds every fluid and part of every sweep group (cheap; nothing is solved) and turns
+    a model error into a :class:`ScenarioError` naming the file, scenario and field.
+    """
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")
+        for sc in sset.scenarios:
+            for g in groups(sc):
+                build_fluid(g, sset.source)
+                site_context(g, build_parts(g, sset.source), sset.source)

@@ -1,0 +1,493 @@
+"""The scenario run: named steps from the scenario description to the comparison tables.
+
+:func:`run_scenarios` solves every scenario and sweep point of a
+:class:`~rheoline.scenario.description.ScenarioSet` and returns a :class:`RunResult`.
+Sweep points that share their fluid and catalogue sizes are solved together, one
+vectorized call of the line engine per :class:`~rheoline.scenario.build.Group`, in these
+steps, each adding named columns of the table (:data:`TABLE_COLUMNS`, one row per case)
+read from the step's result:
+
+``fluid``, ``line`` (build, :mod:`rheoline.scenario.build`)
+    ``case``, ``scenario``, ``point``, ``fluid``, ``temperature [degC]``, ``drive``,
+    ``gauge``, ``smallest bore [mm]``, ``head [cm]``, ``source pressure [mmHg]``,
+    ``back pressure [mmHg]``.
+``solve`` (:meth:`rheoline.model.line.Line.solve`)
+    ``flow [mL/min]``, ``flow [mL/h]``, ``required pressure [mmHg]`` (the source pressure
+    above the gravity head), ``pressure limit [mmHg]``, ``over pressure limit``, ``max
+    Reynolds number``, ``regime`` (the worst part), ``dominant part`` and ``dominant share
+    [%]`` of the pressure budget, ``max wall shear stress [Pa]``, ``hemolysis index [%]``
+    (Giersiepen 1990, blood fluids only), ``hemolysis concern``; and the parts table.
+``tolerance`` (:func:`rheoline.model.tolerance.flow_tolerance`, where tolerances are given)
+    ``flow p5 [mL/min]`` / ``flow p95 [mL/min]`` (a pump: ``pressure p5/p95 [mmHg]``) and
+    the ``dominant tolerance``.
+``delivery`` (:mod:`rheoline.model.delivery`, where a volume is given)
+    ``time to deliver [min]``.
+``site`` (:func:`rheoline.model.vessels.infusion_site_context`, where a vein is given)
+    ``catheter-to-vein ratio [-]``.
+
+Each step also sets boolean conditions per case (turbulent and transitional parts, over
+the pressure limit, hemolysis concern, no forward flow, ...); the ``flags`` column is
+rendered from them in one place (:data:`FLAG_WORDS`).  ``case`` is unique within a run
+(a repeated label gets " #2").
+
+Examples
+--------
+>>> from rheoline.scenario.reading import example_path, load_scenarios
+>>> run = run_scenarios(load_scenarios(example_path("minimal")))
+>>> list(run.table["case"])
+['18G on a gravity set']
+>>> bool(run.table["flow [mL/min]"].iloc[0] > 0), run.parts["part"].tolist()
+(True, ['administration set', '18G catheter', 'exit'])
+"""
+
+from __future__ import annotations
+
+import datetime as _dt
+import warnings
+from dataclasses import dataclass, field
+
+import numpy as np
+
+from rheoline.errors import RangeWarning, RegimeWarning, RheolineWarning
+from rheoline.scenario.build import (
+    build_fluid,
+    build_parts,
+    groups,
+    point_part_names,
+    site_context,
+)
+from rheoline.scenario.description import ScenarioSet
+from rheoline.scenario.steps import (
+    HEMOLYSIS_CONCERN_STRESS,
+    condensed_notes,
+    delivery_minutes,
+    fluid_range_mask,
+    part_regimes,
+    part_rows,
+    tolerance_band,
+)
+from rheoline.scenario.tables import assumptions_table, inputs_table
+from rheoline.units import ML_PER_H, ML_PER_MIN, MMHG
+
+__all__ = [
+    "HEMOLYSIS_CONCERN_STRESS",
+    "TABLE_COLUMNS",
+    "PART_COLUMNS",
+    "FLAG_WORDS",
+    "Note",
+    "RunResult",
+    "run_scenarios",
+]
+
+TABLE_COLUMNS = [
+    "case",
+    "scenario",
+    "point",
+    "fluid",
+    "temperature [degC]",
+    "drive",
+    "gauge",
+    "smallest bore [mm]",
+    "head [cm]",
+    "source pressure [mmHg]",
+    "back pressure [mmHg]",
+    "flow [mL/min]",
+    "flow [mL/h]",
+    "required pressure [mmHg]",
+    "pressure limit [mmHg]",
+    "over pressure limit",
+    "max Reynolds number",
+    "regime",
+    "dominant part",
+    "dominant share [%]",
+    "max wall shear stress [Pa]",
+    "hemolysis index [%]",
+    "hemolysis concern",
+    "flow p5 [mL/min]",
+    "flow p95 [mL/min]",
+    "pressure p5 [mmHg]",
+    "pressure p95 [mmHg]",
+    "dominant tolerance",
+    "time to deliver [min]",
+    "catheter-to-vein ratio [-]",
+    "flags",
+]
+PART_COLUMNS = [
+    "case",
+    "part",
+    "kind",
+    "inner diameter [mm]",
+    "length [m]",
+    "reynolds",
+    "regime",
+    "pressure drop [Pa]",
+    "pressure drop [mmHg]",
+    "share [%]",
+    "mean velocity [m/s]",
+    "wall shear stress [Pa]",
+    "wall shear rate [1/s]",
+    "entrance length [m]",
+]
+
+#: The words of each condition in a row's ``flags``, in the order they are shown; a
+#: callable renders words from the case's data (the parts concerned, the ratio).
+FLAG_WORDS = {
+    "turbulent": lambda d: f"turbulent: {', '.join(d['turbulent'])}",
+    "transitional": lambda d: f"transitional: {', '.join(d['transitional'])}",
+    "over_pressure_limit": "over pressure limit",
+    "hemolysis_concern": "hemolysis concern",
+    "hemolysis_extrapolated": "hemolysis index extrapolated",
+    "no_forward_flow": "no forward flow",
+    "never_delivers": "never delivers the whole volume: the flow stops first (the drive "
+    "falls to the back pressure)",
+    "delivery_not_computed": "time to deliver not computed",
+    "not_converged": "solver not converged",
+    "large_catheter": lambda d: f"catheter fills {d['ratio']:.0%} of the vein diameter",
+    "outside_range": "outside a correlation's range (see notes)",
+}
+
+
+@dataclass(frozen=True)
+class Note:
+    """A note of a run: which scenario (and case, where one), what it is about (a
+    condition or model key, or the warning's kind), and its words (rendered from data)."""
+
+    scenario: str
+    case: str | None
+    key: str
+    text: str
+
+    def __str__(self):
+        return f"{self.scenario}: {self.text}" if self.scenario else self.text
+
+
+@dataclass(frozen=True)
+class RunResult:
+    """A solved scenario set.
+
+    Attributes
+    ----------
+    scenario_set : ScenarioSet
+        The description that was run.
+    table : pandas.DataFrame
+        One row per case (:data:`TABLE_COLUMNS`; units in the column names); ``case`` is
+        unique.
+    parts : pandas.DataFrame
+        One row per case and part, and the outlet (:data:`PART_COLUMNS`): pressure drops,
+        Reynolds numbers and wall shear stresses.
+    inputs : pandas.DataFrame
+        The description echoed, one row per field: ``scenario``, ``field`` (a dotted path)
+        and ``value as written``.
+    models_used : tuple of str
+        Provenance keys of the models the run's results used, in first-use order.
+    notes : tuple of Note
+        What the run noticed: models outside their ranges, validity notes of the lines.
+    flags : Mapping[str, tuple of str]
+        Per case, its flags (the words of the table's ``flags`` column, which joins them
+        with "; ").
+    part_keys : tuple of str
+        Per row of ``parts``, the part's name in its line (the same for every point of a
+        sweep), where ``parts["part"]`` names each point's own size; the pack's charts
+        group on it.
+    assumptions : pandas.DataFrame or None
+        The models the line engine uses and their references, and the fluids' sources.
+    created : datetime.datetime
+        When the run was made (UTC).
+    """
+
+    scenario_set: ScenarioSet
+    table: object
+    parts: object
+    inputs: object
+    models_used: tuple = ()
+    notes: tuple = ()
+    flags: object = field(default_factory=dict)
+    part_keys: tuple = ()
+    assumptions: object = None
+    created: _dt.datetime = field(default_factory=lambda: _dt.datetime.now(_dt.UTC))
+
+    @property
+    def warnings(self):
+        """The notes as text, each with its scenario's name (``"gravity: ..."``)."""
+        return tuple(dict.fromkeys(str(n) for n in self.notes))
+
+    def summary(self):
+        """The columns printed by ``rheoline run``.
+
+        ``source pressure [mmHg]`` is the given bag or infuser pressure for a drive, and the
+        pressure the pump must supply (above the gravity head) for a prescribed flow.
+        """
+        from rheoline.scenario.tables import summary
+
+        return summary(self.table)
+
+    def records(self):
+        """The table as JSON-ready dicts, one per case, with the parts of each line (see
+        :func:`rheoline.scenario.tables.records`)."""
+        from rheoline.scenario.tables import records
+
+        return records(self.table, self.parts, self.flags)
+
+
+# --------------------------------------------------------------------------- the run
+def run_scenarios(sset: ScenarioSet, progress=None) -> RunResult:
+    """Solve every scenario and sweep point of ``sset``.
+
+    Parameters
+    ----------
+    sset : ScenarioSet
+        From :func:`~rheoline.scenario.reading.load_scenarios` or ``parse_scenarios``.
+    progress : callable, optional
+        ``progress(total)`` returning an object with ``update(n)`` and ``close()`` (a tqdm
+        bar); called with the number of cases.
+
+    Returns
+    -------
+    RunResult
+    """
+    import pandas as pd
+
+    cases, notes = [], []
+    bar = progress(sset.n_points) if progress else None
+    try:
+        for sc in sset.scenarios:
+            runs = []
+            for g in groups(sc):
+                runs.append(_GroupRun(g, sset.source).run())
+                if bar is not None:
+                    bar.update(g.size)
+            cases += sorted((c for r in runs for c in r.cases()), key=lambda c: c[0])
+            notes += [Note(sc.name, None, key, text) for key, text in condensed_notes(runs)]
+    finally:
+        if bar is not None:
+            bar.close()
+    keys = _unique([row[0] for _, row, _, _ in cases])
+    table = [[key, *row[1:]] for key, (_, row, _, _) in zip(keys, cases, strict=True)]
+    part_table = [[key, *p[1:]] for key, (_, _, ps, _) in zip(keys, cases, strict=True) for p in ps]
+    return RunResult(
+        sset,
+        pd.DataFrame(table, columns=TABLE_COLUMNS),
+        pd.DataFrame([r[:-1] for r in part_table], columns=PART_COLUMNS),
+        inputs_table(sset),
+        notes=tuple(dict.fromkeys(notes)),
+        flags={key: f for key, (_, _, _, f) in zip(keys, cases, strict=True)},
+        part_keys=tuple(r[-1] for r in part_table),
+        assumptions=assumptions_table(sset),
+    )
+
+
+def _unique(names):
+    """``names`` with every repeat marked " #2", " #3" (a case key is unique in a run)."""
+    taken, used, out = set(names), set(), []
+    for name in names:
+        key, k = name, 2
+        while key in used:
+            key = f"{name} #{k}"
+            k += 1
+            if key in taken:
+                key = name  # a name of another case: try the next number
+        used.add(key)
+        out.append(key)
+    return out
+
+
+def _vec(x, n):
+    return np.broadcast_to(np.asarray(x), (n,))
+
+
+def _warning_key(message):
+    """What a warning is about: its model's provenance key where it names one."""
+    model = getattr(message, "model", None)
+    if model:
+        return model
+    if isinstance(message, RangeWarning):
+        return "outside_range"
+    return "regime" if isinstance(message, RegimeWarning) else "warning"
+
+
+class _GroupRun:
+    """The named steps of one group's run; each fills named columns from its result.
+
+    ``columns`` maps a table column to a list over the group's points, ``conditions`` a
+    flag key (:data:`FLAG_WORDS`) to a boolean array over them; ``notes`` collects
+    ``(key, text)`` in the order the steps noticed them.
+    """
+
+    def __init__(self, g, source):
+        self.g, self.source, self.n = g, source, g.size
+        self.mode = g.scenario.mode
+        self.columns, self.conditions, self.notes = {}, {}, []
+        self.outside_range = np.zeros(self.n, dtype=bool)
+        self.fluid = self.parts = self.line = self.res = None
+
+    def run(self):
+        self._step(self.build_fluid, marks=lambda: fluid_range_mask(self.g, self.source))
+        self._step(self.build_line)
+        self._step(self.solve)
+        self._step(self.tolerance, marks=None)  # each case marks its own band
+        self._step(self.delivery)
+        self._step(self.site)
+        self.notes += [("line", text) for text in self.res.flags]
+        self.conditions["outside_range"] = self.outside_range
+        return self
+
+    def _step(self, step, marks=lambda: True):
+        """Run ``step``; its warnings become notes, and a range warning marks the cases
+        ``marks()`` names (all of them by default)."""
+        with warnings.catch_warnings(record=True) as caught:
+            warnings.simplefilter("always")
+            step()
+        said = [w.message for w in caught if isinstance(w.message, RheolineWarning)]
+        self.notes += [(_warning_key(m), str(m)) for m in said]
+        if marks is not None and any(isinstance(m, RangeWarning) for m in said):
+            self.outside_range |= marks()
+
+    # ----------------------------------------------------------------------- build
+    def build_fluid(self):
+        self.fluid = build_fluid(self.g, self.source)
+        c, v, n = self.columns, self.g.values, self.n
+        c["fluid"] = [v["fluid"]] * n
+        c["temperature [degC]"] = _vec(v["temperature"], n).astype(float).tolist()
+
+    def build_line(self):
+        from rheoline.model.line import Line
+
+        g, v, n = self.g, self.g.values, self.n
+        self.parts = build_parts(g, self.source)
+        self.line = Line(self.parts)
+        c = self.columns
+        c["case"] = [g.scenario.name + (f" | {label}" if label else "") for label in g.labels]
+        c["scenario"], c["point"] = [g.scenario.name] * n, list(g.labels)
+        pump = self.mode == "flow"
+        pressed = "source_pressure" in v and np.any(v["source_pressure"] > 0)
+        c["drive"] = ["pump" if pump else ("pressure" if pressed else "gravity")] * n
+        gauges = [pv["gauge"] for pv in g.parts if "gauge" in pv]
+        c["gauge"] = [int(gauges[-1]) if gauges else None] * n
+        bores = [
+            _vec(p.inner_diameter, n).astype(float) for p in self.parts if _has(p, "inner_diameter")
+        ]
+        c["smallest bore [mm]"] = (np.min(bores, axis=0) * 1e3).tolist() if bores else _nan(n)
+        c["head [cm]"] = (_vec(v["head"], n) * 100).tolist() if "head" in v else _nan(n)
+        c["source pressure [mmHg]"] = (
+            (_vec(v["source_pressure"], n) / MMHG).tolist() if "source_pressure" in v else _nan(n)
+        )
+        c["back pressure [mmHg]"] = (_vec(v.get("back_pressure", 0.0), n) / MMHG).tolist()
+
+    # ----------------------------------------------------------------------- solve
+    def solve(self):
+        v, n = self.g.values, self.n
+        back = v.get("back_pressure", 0.0)
+        if self.mode == "flow":
+            drive = {"flow": v["flow"], "pressure_limit": v.get("pressure_limit")}
+        else:
+            drive = {"head": v.get("head", 0.0), "source_pressure": v.get("source_pressure", 0.0)}
+        res = self.res = self.line.solve(self.fluid, back_pressure=back, **drive)
+        flow = _vec(res.flow, n)
+        # a drive's pressure is the given one (the engine's value agrees to rounding)
+        req = _vec(
+            res.required_pressure if self.mode == "flow" else v.get("source_pressure", 0.0), n
+        )
+        c = self.columns
+        c["flow [mL/min]"] = (flow / ML_PER_MIN).tolist()
+        c["flow [mL/h]"] = (flow / ML_PER_H).tolist()
+        c["required pressure [mmHg]"] = (req / MMHG + 0.0).tolist()
+        limited = "pressure_limit" in v
+        c["pressure limit [mmHg]"] = (
+            (_vec(v["pressure_limit"], n).astype(float) / MMHG).tolist() if limited else _nan(n)
+        )
+        over = _vec(res.exceeds_pressure_limit, n)
+        c["over pressure limit"] = [bool(o) for o in over] if limited else [None] * n
+        c["max Reynolds number"] = _vec(res.max_reynolds, n).astype(float).tolist()
+        c["regime"] = [str(r) for r in _vec(res.regime, n)]
+        self.point_names = point_part_names(self.g, self.line)
+        dominant = _vec(res.dominant_part, n)
+        c["dominant part"] = [
+            self.point_names[self.line.part_names.index(str(d)), col]
+            for col, d in enumerate(dominant)
+        ]
+        c["dominant share [%]"] = (_vec(res.dominant_share, n).astype(float) * 100).tolist()
+        wss = _vec(res.max_wall_shear_stress, n).astype(float)
+        c["max wall shear stress [Pa]"] = wss.tolist()
+        blood = bool(self.fluid.is_blood)
+        hemo = _vec(res.hemolysis_index, n).astype(float)
+        c["hemolysis index [%]"] = hemo.tolist() if blood else _nan(n)
+        concern = blood & (wss > HEMOLYSIS_CONCERN_STRESS)
+        c["hemolysis concern"] = concern.tolist()
+        self._solve_conditions(res, flow, over & limited, concern)
+
+    def _solve_conditions(self, res, flow, over, concern):
+        from rheoline.model.hemolysis import GIERSIEPEN_1990_MAX_STRESS
+
+        n, k = self.n, len(self.parts)
+        regimes = part_regimes(res, k, n)
+        lumens = np.array([p.kind == "lumen" for p in self.parts])[:, None]
+        self.part_conditions = {r: (regimes == r) & lumens for r in ("turbulent", "transitional")}
+        tau = np.broadcast_to(np.asarray(res.part_wall_shear_stress), (k, n))
+        cond = self.conditions
+        cond["turbulent"] = self.part_conditions["turbulent"].any(axis=0)
+        cond["transitional"] = self.part_conditions["transitional"].any(axis=0)
+        cond["over_pressure_limit"] = np.asarray(over, dtype=bool)
+        cond["hemolysis_concern"] = np.asarray(concern, dtype=bool)
+        extrapolated = np.any(tau > GIERSIEPEN_1990_MAX_STRESS, axis=0) if k else np.zeros(n, bool)
+        cond["hemolysis_extrapolated"] = bool(self.fluid.is_blood) & extrapolated
+        cond["no_forward_flow"] = ~(flow > 0)
+        cond["not_converged"] = ~_vec(getattr(res, "converged", True), n).astype(bool)
+
+    # ----------------------------------------------------------------------- the rest
+    def tolerance(self):
+        c, n, sc = self.columns, self.n, self.g.scenario
+        band = None
+        if sc.has_tolerance:
+            lo, hi, top, outside = tolerance_band(self.g, self.fluid, self.line)
+            self.outside_range |= outside
+            band = (lo, hi)
+        for what in ("flow", "pressure"):
+            unit = "mL/min" if what == "flow" else "mmHg"
+            mine = band is not None and (what == "flow") == (self.mode == "drive")
+            c[f"{what} p5 [{unit}]"] = band[0].tolist() if mine else _nan(n)
+            c[f"{what} p95 [{unit}]"] = band[1].tolist() if mine else _nan(n)
+        c["dominant tolerance"] = list(top) if band is not None else [""] * n
+
+    def delivery(self):
+        minutes = delivery_minutes(self.g, self.fluid, self.line, self.res)
+        n = self.n
+        self.columns["time to deliver [min]"] = _nan(n) if minutes is None else minutes.tolist()
+        known = minutes is not None
+        self.conditions["never_delivers"] = np.isinf(minutes) if known else np.zeros(n, bool)
+        self.conditions["delivery_not_computed"] = np.isnan(minutes) if known else np.zeros(n, bool)
+
+    def site(self):
+        site, n = site_context(self.g, self.parts, self.source), self.n
+        ratio = _nan(n) if site is None else _vec(site.diameter_ratio, n).astype(float).tolist()
+        self.columns["catheter-to-vein ratio [-]"] = ratio
+        large = np.zeros(n, bool) if site is None else _vec(site.large_ratio, n).astype(bool)
+        self.conditions["large_catheter"] = large
+
+    # ----------------------------------------------------------------------- rows
+    def flags(self, col):
+        """The flags of point ``col`` (a tuple of words), rendered from the conditions."""
+        data = {
+            r: [self.point_names[j, col] for j in np.flatnonzero(self.part_conditions[r][:, col])]
+            for r in ("turbulent", "transitional")
+        }
+        data["ratio"] = self.columns["catheter-to-vein ratio [-]"][col]
+        return tuple(
+            words(data) if callable(words) else words
+            for key, words in FLAG_WORDS.items()
+            if self.conditions[key][col]
+        )
+
+    def cases(self):
+        """``(index in the sweep, table row, part rows, flags)`` per point of the group."""
+        flags = [self.flags(col) for col in range(self.n)]
+        self.columns["flags"] = ["; ".join(f) for f in flags]
+        rows = [list(r) for r in zip(*(self.columns[k] for k in TABLE_COLUMNS), strict=True)]
+        return list(zip(self.g.indices, rows, part_rows(self), flags, strict=True))
+
+
+def _has(part, attribute):
+    return getattr(part, attribute, None) is not None
+
+
+def _nan(n):
+    return [np.nan] * n
