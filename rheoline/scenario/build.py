@@ -178,32 +178,25 @@ def build(g, source) -> Built:
     return Built(fl, parts, Line(parts), site_context(g, parts, source))
 
 
-def _model_field(exc, known, default, text=None):
+def _model_field(exc, known, default):
     """The file key of the model argument a model error names (``exc.field``)."""
-    field = getattr(exc, "field", None)
-    if field in known:
-        return known[field]
-    # a model error that names no field: search its text (kept until every model error
-    # carries its field)
-    low = (str(exc) if text is None else text).lower()
-    return next((v for k, v in known.items() if k.replace("_", " ") in low or k in low), default)
+    return known.get(getattr(exc, "field", None), default)
 
 
 def build_fluid(group, source):
     """The group's fluid (arrays of temperature and options over its points)."""
-    from rheoline.model.fluids import fluid
+    from rheoline.model.fluids import FLUID_LIBRARY, fluid
 
     sc = group.scenario
+    name = group.values["fluid"]
     opts = {k: group.values[k] for k in ("hematocrit", "mass_fraction") if k in group.values}
     try:
-        return fluid(group.values["fluid"], temperature_c=group.values["temperature"], **opts)
+        return fluid(name, temperature_c=group.values["temperature"], **opts)
     except RheolineError as exc:
-        msg = str(exc)
-        if getattr(exc, "field", None) is None and "has no option" in msg:
-            field = next((k for k in opts if f"option {k!r}" in msg), "fluid")
-        else:
-            field = _model_field(exc, _FLUID_ARGUMENTS, "fluid", msg.split(";")[0])
-        raise ScenarioError(msg, source=source, scenario=repr(sc.name), field=field) from None
+        entry = FLUID_LIBRARY.get(name.strip().lower().replace("_", "-").replace(" ", "-"))
+        unknown = [k for k in opts if entry is not None and k not in entry.options]
+        field = _model_field(exc, _FLUID_ARGUMENTS, unknown[0] if unknown else "fluid")
+        raise ScenarioError(str(exc), source=source, scenario=repr(sc.name), field=field) from None
 
 
 def build_part(spec, kw, name):

@@ -321,7 +321,7 @@ class _GroupRun:
         self.fluid = self.parts = self.line = self.res = None
 
     def run(self):
-        self._step(self.build_fluid, marks=lambda: fluid_range_mask(self.g, self.source))
+        self._step(self.build_fluid, marks=self._fluid_outside)
         self._step(self.build_line)
         self._step(self.solve)
         self._step(self.tolerance, marks=None)  # each case marks its own band
@@ -331,16 +331,27 @@ class _GroupRun:
         self.conditions["outside_range"] = self.outside_range
         return self
 
-    def _step(self, step, marks=lambda: True):
-        """Run ``step``; its warnings become notes, and a range warning marks the cases
-        ``marks()`` names (all of them by default)."""
+    def _step(self, step, marks=lambda ranged: True):
+        """Run ``step``; its warnings become notes, and its range warnings mark the cases
+        ``marks(warnings)`` names (all of them by default)."""
         with warnings.catch_warnings(record=True) as caught:
             warnings.simplefilter("always")
             step()
         said = [w.message for w in caught if isinstance(w.message, RheolineWarning)]
         self.notes += [(_warning_key(m), str(m)) for m in said]
-        if marks is not None and any(isinstance(m, RangeWarning) for m in said):
-            self.outside_range |= marks()
+        ranged = [m for m in said if isinstance(m, RangeWarning)]
+        if marks is not None and ranged:
+            self.outside_range |= marks(ranged)
+
+    def _fluid_outside(self, ranged):
+        """The points whose fluid left a model's range: each warning's ``outside`` mask over
+        the group's points (the fluid is built from arrays over them), or, where a warning
+        carries none, the fluid rebuilt point by point."""
+        n = self.n
+        masks = [getattr(m, "outside", None) for m in ranged]
+        if all(np.shape(mask) == (n,) for mask in masks):
+            return np.any(masks, axis=0)
+        return fluid_range_mask(self.g, self.source)
 
     # ----------------------------------------------------------------------- build
     def build_fluid(self):
