@@ -470,9 +470,9 @@ def test_a_swept_tube_is_named_by_each_points_own_size():
         f"turbulent: {rheoline.Tube(inner_diameter=5e-3, length=x).name}" for x in (0.5, 3.0)
     ]
     # one line, one trace per part in the pack's pressure-budget chart
-    from rheoline.scenario.export import _figures
+    from rheoline.scenario.pack_report import pack_figures
 
-    assert [t.name for t in _figures(r)[1].data][1:] == [plain, "18G catheter", "exit"]
+    assert [t.name for t in pack_figures(r)[1].data][1:] == [plain, "18G catheter", "exit"]
 
 
 def test_a_bag_emptying_to_the_outlet_level_is_flagged_as_never_delivering():

@@ -12,7 +12,7 @@ import pandas as pd
 import pytest
 
 import rheoline
-from rheoline.scenario import export
+from rheoline.scenario import export, pack_report, pack_tables
 from rheoline.scenario.compare import _COLUMNS, _PART_COLUMNS, Note, RunResult
 from rheoline.scenario.export import (
     PACK_FILES,
@@ -242,18 +242,18 @@ def test_a_failure_midway_leaves_the_earlier_pack_intact(tmp_path, monkeypatch):
     folder = write_pack(fake_run(["first"]), tmp_path / "pack")
     before = _snapshot(folder)
     written = []
-    real_csv = export._write_csv
+    real_csv = pack_tables.write_csv
 
-    def csv_then_count(frame, path):
-        real_csv(frame, path)
+    def csv_then_count(frame, path, title_row):
+        real_csv(frame, path, title_row)
         written.append(path)
 
     def disk_full(*args, **kwargs):
         assert written, "the failure must come after some files were written"
         raise OSError(28, "No space left on device")
 
-    monkeypatch.setattr(export, "_write_csv", csv_then_count)
-    monkeypatch.setattr(export, "_write_html", disk_full)
+    monkeypatch.setattr(pack_tables, "write_csv", csv_then_count)
+    monkeypatch.setattr(pack_report, "write_html", disk_full)
     with pytest.raises(OSError, match="No space left"):
         write_pack(fake_run(["second"]), folder, force=True)
     assert _snapshot(folder) == before
@@ -261,7 +261,9 @@ def test_a_failure_midway_leaves_the_earlier_pack_intact(tmp_path, monkeypatch):
 
 
 def test_a_failure_in_a_new_pack_leaves_nothing(tmp_path, monkeypatch):
-    monkeypatch.setattr(export, "_write_xlsx", lambda *a: (_ for _ in ()).throw(OSError("boom")))
+    monkeypatch.setattr(
+        pack_tables, "write_xlsx", lambda *a: (_ for _ in ()).throw(OSError("boom"))
+    )
     with pytest.raises(OSError, match="boom"):
         write_pack(fake_run(["x"]), tmp_path / "pack")
     assert list(tmp_path.iterdir()) == []
@@ -354,13 +356,13 @@ def test_force_never_replaces_an_empty_or_linked_folder(tmp_path):
 
 def test_a_folder_changed_while_the_pack_is_written_is_kept(tmp_path, monkeypatch):
     folder = write_pack(fake_run(["first"]), tmp_path / "pack")
-    real_html = export._write_html
+    real_html = pack_report.write_html
 
-    def html_then_user_saves_a_file(run, path, meta):
-        real_html(run, path, meta)
+    def html_then_user_saves_a_file(path, page):
+        real_html(path, page)
         (folder / "added meanwhile.txt").write_text("mine")
 
-    monkeypatch.setattr(export, "_write_html", html_then_user_saves_a_file)
+    monkeypatch.setattr(pack_report, "write_html", html_then_user_saves_a_file)
     with pytest.raises(PackExistsError, match="added meanwhile"):
         write_pack(fake_run(["second"]), folder, force=True)
     assert (folder / "added meanwhile.txt").read_text() == "mine"
@@ -399,8 +401,8 @@ def test_a_pack_that_cannot_be_written_is_a_scenario_error_and_an_os_error(tmp_p
     assert isinstance(info.value, ScenarioError) and isinstance(info.value, OSError)
     assert blocker.read_text() == "mine"
     monkeypatch.setattr(
-        export,
-        "_write_xlsx",
+        pack_tables,
+        "write_xlsx",
         lambda *a: (_ for _ in ()).throw(PermissionError(13, "Permission denied")),
     )
     with pytest.raises(

@@ -26,7 +26,7 @@ from hypothesis import strategies as st
 from rel_record import bump, hostile_scenario_file, module_recorder
 
 from rheoline import cli
-from rheoline.scenario import export
+from rheoline.scenario import export, pack_report
 from rheoline.scenario.compare import run_scenarios
 from rheoline.scenario.export import frame_html, neutralize_cell, write_pack
 from rheoline.scenario.files import load_scenarios
@@ -174,7 +174,7 @@ def test_an_interrupt_midway_keeps_the_old_pack(tmp_path, monkeypatch):
     def interrupted(*args, **kwargs):
         raise KeyboardInterrupt
 
-    monkeypatch.setattr(export, "_write_html", interrupted)
+    monkeypatch.setattr(pack_report, "write_html", interrupted)
     with pytest.raises(KeyboardInterrupt):
         write_pack(_small_run(tmp_path, "second"), folder, force=True)
     assert _snapshot(folder) == before
