@@ -24,6 +24,10 @@ import re
 
 from rheoline.errors import UnitError
 
+# The conversion factors are defined once, in the model layer (NIST SP 811, 2008, Appendix B),
+# and re-exported here for the edge.
+from rheoline.model.conversions import CMH2O, ML_PER_H, ML_PER_MIN, MMHG, PSI
+
 __all__ = [
     "registry",
     "KINDS",
@@ -37,18 +41,6 @@ __all__ = [
     "ML_PER_MIN",
     "ML_PER_H",
 ]
-
-# Exact or defining conversion factors, NIST SP 811 (2008), Appendix B.
-#: 1 mmHg [Pa] (conventional, 13.5951 g/cm^3 mercury, standard gravity)
-MMHG = 133.322387415
-#: 1 cmH2O [Pa] (conventional, 1 g/cm^3 water, standard gravity)
-CMH2O = 98.0665
-#: 1 psi [Pa]
-PSI = 6894.757293168
-#: 1 mL/min [m^3/s]
-ML_PER_MIN = 1e-6 / 60.0
-#: 1 mL/h [m^3/s]
-ML_PER_H = 1e-6 / 3600.0
 
 #: kind -> (SI unit as pint understands it, pint dimensionality, examples of accepted units)
 KINDS = {

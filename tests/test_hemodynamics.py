@@ -26,13 +26,25 @@ from rheoline.model.hemodynamics import (
 
 
 def test_wood_unit_factor_derived_from_nist_sp811():
-    # NIST SP 811 (Taylor & Thompson 2008): 1 mmHg = 133.322 Pa.
-    # 1 WU = 1 mmHg min/L = 133.322 Pa * 60 s / 0.001 m^3 = 7 999 320 Pa s/m^3.
-    assert WOOD_UNIT_TO_PA_S_PER_M3 == pytest.approx(7_999_320.0, rel=1e-12)
+    # NIST SP 811 (Thompson & Taylor 2008) Appendix B.8: 1 mmHg = 1.333 224 E+02 Pa (seven
+    # digits, so rel 1e-6 at most). 1 WU = 1 mmHg min/L = 133.3224 Pa * 60 s / 0.001 m^3
+    # = 7 999 344 Pa s/m^3.
+    assert WOOD_UNIT_TO_PA_S_PER_M3 == pytest.approx(7_999_344.0, rel=1e-6)
     # 1 Pa s/m^3 = 1 N s m^-5 = 1e5 dyn s / (1e2 cm)^5 = 1e-5 dyn s cm^-5,
-    # so 1 WU = 79.9932 dyn s cm^-5, which rounds to the 79.99 quoted clinically.
-    assert WOOD_UNIT_TO_DYN_S_PER_CM5 == pytest.approx(79.9932, rel=1e-12)
+    # so 1 WU = 79.99344 dyn s cm^-5, which rounds to the 79.99 quoted clinically.
+    assert WOOD_UNIT_TO_DYN_S_PER_CM5 == pytest.approx(79.99344, rel=1e-6)
     assert round(WOOD_UNIT_TO_DYN_S_PER_CM5, 2) == 79.99
+
+
+def test_one_mmhg_factor_serves_the_model_and_the_edge():
+    # the package defines 1 mmHg once (rheoline.model.conversions); the clinical formulas
+    # and the unit parser at the edge use that one number
+    from rheoline.model.conversions import MMHG
+    from rheoline.model.hemodynamics import MMHG_TO_PA
+    from rheoline.units import parse_quantity
+
+    assert MMHG_TO_PA is MMHG
+    assert parse_quantity("1 mmHg", "pressure") == pytest.approx(MMHG, rel=1e-15)
 
 
 # --- worked examples computed by hand -----------------------------------------------------
@@ -40,11 +52,12 @@ def test_wood_unit_factor_derived_from_nist_sp811():
 
 def test_vascular_resistance_worked_example_exact_and_rounded():
     # Hand arithmetic: (100 - 20) mmHg / 4 L/min = 20 WU;
-    # exact: 20 * 79.9932 = 1599.864 dyn s cm^-5; rounded: 20 * 80 = 1600.
+    # exact: 20 * 79.99344 = 1599.869 dyn s cm^-5 (NIST SP 811's seven digits, so rel 1e-6);
+    # rounded: 20 * 80 = 1600.
     exact = vascular_resistance(100.0, 20.0, 4.0)
     assert exact.wood_units == pytest.approx(20.0, rel=1e-15)
-    assert exact.dyn_s_per_cm5 == pytest.approx(1599.864, rel=1e-12)
-    assert exact.pa_s_per_m3 == pytest.approx(20 * 7_999_320.0, rel=1e-12)
+    assert exact.dyn_s_per_cm5 == pytest.approx(1599.869, rel=1e-6)
+    assert exact.pa_s_per_m3 == pytest.approx(20 * 7_999_344.0, rel=1e-6)
     rounded = vascular_resistance(100.0, 20.0, 4.0, factor="rounded")
     assert rounded.dyn_s_per_cm5 == pytest.approx(1600.0, rel=1e-15)
     # the SI value does not depend on the display factor
@@ -58,29 +71,29 @@ def test_public_name_reaches_the_same_function():
 
 def test_svr_worked_example():
     # Hand arithmetic: MAP 93, CVP 3, CO 6 L/min -> (93 - 3) / 6 = 15 WU;
-    # 15 * 79.9932 = 1199.898 dyn s cm^-5; rounded 15 * 80 = 1200.
+    # 15 * 79.99344 = 1199.902 dyn s cm^-5; rounded 15 * 80 = 1200.
     svr = systemic_vascular_resistance(93.0, 3.0, 6.0)
     assert svr.wood_units == pytest.approx(15.0, rel=1e-15)
-    assert svr.dyn_s_per_cm5 == pytest.approx(1199.898, rel=1e-12)
+    assert svr.dyn_s_per_cm5 == pytest.approx(1199.902, rel=1e-6)
     assert systemic_vascular_resistance(93.0, 3.0, 6.0, "rounded").dyn_s_per_cm5 == 1200.0
 
 
 def test_pvr_worked_example():
     # Hand arithmetic: mPAP 20, wedge 12, CO 4 -> (20 - 12) / 4 = 2 WU;
-    # 2 * 79.9932 = 159.9864 dyn s cm^-5.
+    # 2 * 79.99344 = 159.9869 dyn s cm^-5.
     pvr = pulmonary_vascular_resistance(20.0, 12.0, 4.0)
     assert pvr.wood_units == pytest.approx(2.0, rel=1e-15)
-    assert pvr.dyn_s_per_cm5 == pytest.approx(159.9864, rel=1e-12)
+    assert pvr.dyn_s_per_cm5 == pytest.approx(159.9869, rel=1e-6)
 
 
 def test_indexed_worked_examples():
     # Hand arithmetic: CI = 6 / 1.5 = 4 L/min/m^2; SVRI = (93 - 3) / 4 = 22.5 WU m^2
-    # = SVR * BSA = 15 * 1.5; in dyn: 22.5 * 79.9932 = 1799.847 dyn s cm^-5 m^2.
+    # = SVR * BSA = 15 * 1.5; in dyn: 22.5 * 79.99344 = 1799.852 dyn s cm^-5 m^2.
     assert cardiac_index(6.0, 1.5) == pytest.approx(4.0)
     svri = systemic_vascular_resistance_index(93.0, 3.0, 6.0, 1.5)
     assert svri.indexed
     assert svri.wood_units == pytest.approx(22.5, rel=1e-15)
-    assert svri.dyn_s_per_cm5 == pytest.approx(1799.847, rel=1e-12)
+    assert svri.dyn_s_per_cm5 == pytest.approx(1799.852, rel=1e-6)
     # PVRI = (20 - 12) / (4 / 2) = 4 WU m^2
     assert pulmonary_vascular_resistance_index(20.0, 12.0, 4.0, 2.0).wood_units == pytest.approx(
         4.0

@@ -122,3 +122,13 @@ def test_formatting_in_a_wrong_or_unknown_unit_is_a_unit_error():
     assert format_quantity(133.322387415 * 300, "pressure", "mmHg") == "300 mmHg"
     assert to_unit(37.0, "degF", "temperature") == pytest.approx(98.6)
     assert format_quantity(0.45, "dimensionless", "%") == "45 %"
+
+
+def test_conventional_mmhg_is_mercury_density_times_standard_gravity():
+    # the conventional millimetre of mercury: 13 595.1 kg/m^3 times 9.806 65 m/s^2 times 1 mm
+    # (from memory: the defining density of mercury at 0 degC); NIST SP 811 (2008) Appendix
+    # B.8 gives the same to seven digits (1.333 224 E+02 Pa), and pint's definition agrees
+    import pint
+
+    assert MMHG == pytest.approx(13595.1 * 9.80665 * 1e-3, rel=1e-15)
+    assert MMHG == pytest.approx(pint.UnitRegistry().Quantity(1, "mmHg").to("Pa").magnitude)

@@ -262,9 +262,10 @@ def test_infusion_site_small_catheter_no_flag():
     assert not c.large_ratio
     assert c.diameter_ratio == pytest.approx(0.275)
     assert c.area_fraction == pytest.approx(0.275**2)
-    # default back pressure 10 mmHg = 1333.22 Pa (NIST SP 811 factor); common practice value
-    assert c.back_pressure == pytest.approx(1333.22)
-    assert c.drive_after_back_pressure(40000.0) == pytest.approx(40000.0 - 1333.22)
+    # default back pressure 10 mmHg = 1333.224 Pa (NIST SP 811 Appendix B.8, seven digits);
+    # common practice value
+    assert c.back_pressure == pytest.approx(1333.224, rel=1e-6)
+    assert c.drive_after_back_pressure(40000.0) == pytest.approx(40000.0 - 1333.224, rel=1e-6)
 
 
 def test_infusion_site_large_catheter_warns_and_flags():

@@ -348,12 +348,13 @@ def pressure_bag_delivery_time(
 
     Examples
     --------
+    >>> from rheoline.model.conversions import MMHG
     >>> from rheoline.model.fluid_base import newtonian_fluid
     >>> from rheoline.model.line import Line
     >>> from rheoline.model.parts import Catheter
     >>> water = newtonian_fluid("water", 0.955e-3, 997.8)
     >>> line = Line([Catheter(gauge=16)])
-    >>> r = pressure_bag_delivery_time(line, water, 0.5e-3, 300 * 133.322, 200 * 133.322)
+    >>> r = pressure_bag_delivery_time(line, water, 0.5e-3, 300 * MMHG, 200 * MMHG)
     >>> round(r.time / 60.0, 2)
     1.17
     """

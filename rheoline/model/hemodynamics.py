@@ -14,18 +14,19 @@ L/min, cm, kg), and the argument names say so (``upstream_mmhg``,
 
 Unit factor
 -----------
-One Wood unit is 1 mmHg min/L.  With 1 mmHg = 133.322 Pa (NIST SP 811),
-1 min = 60 s and 1 L = 1e-3 m^3::
+One Wood unit is 1 mmHg min/L.  With 1 mmHg = 133.322 387 415 Pa (the conventional
+millimetre of mercury, :data:`rheoline.model.conversions.MMHG`; NIST SP 811 lists
+1.333 224 E+02 Pa), 1 min = 60 s and 1 L = 1e-3 m^3::
 
-    1 WU = 133.322 * 60 / 1e-3 Pa s/m^3 = 7.99932e6 Pa s/m^3
+    1 WU = 133.322387415 * 60 / 1e-3 Pa s/m^3 = 7.999343e6 Pa s/m^3
 
 and since 1 Pa s/m^3 = 1 N s m^-5 = 1e5 dyn s / 1e10 cm^5 = 1e-5 dyn s cm^-5,
-1 WU = 79.9932 dyn s cm^-5 (commonly rounded to 80).
+1 WU = 79.99343 dyn s cm^-5 (commonly rounded to 80).
 
 References
 ----------
 Taylor, B.N., Thompson, A., "Guide for the Use of the International System of
-Units (SI)", NIST Special Publication 811, 2008 (1 mmHg = 133.322 Pa).
+Units (SI)", NIST Special Publication 811, 2008, Appendix B.8 (1 mmHg = 1.333 224 E+02 Pa).
 DuBois, D., DuBois, E.F., "A formula to estimate the approximate surface area if
 height and weight be known", Arch. Intern. Med. 17 (1916) 863-871.
 Mosteller, R.D., "Simplified calculation of body-surface area", N. Engl. J. Med.
@@ -39,6 +40,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from rheoline.errors import InputRangeError
+from rheoline.model.conversions import MMHG
 from rheoline.model.validation import (
     check_finite,
     check_positive,
@@ -66,11 +68,11 @@ __all__ = [
     "typical_adult_range",
 ]
 
-#: 1 mmHg in pascals (NIST SP 811).
-MMHG_TO_PA = 133.322
-#: One Wood unit (1 mmHg min/L) in Pa s/m^3: 133.322 * 60 / 1e-3.
+#: 1 mmHg in pascals: the package's one factor, :data:`rheoline.model.conversions.MMHG`.
+MMHG_TO_PA = MMHG
+#: One Wood unit (1 mmHg min/L) in Pa s/m^3: 133.322387415 * 60 / 1e-3.
 WOOD_UNIT_TO_PA_S_PER_M3 = MMHG_TO_PA * 60.0 / 1e-3
-#: One Wood unit in dyn s cm^-5, derived (1 Pa s/m^3 = 1e-5 dyn s cm^-5): 79.9932.
+#: One Wood unit in dyn s cm^-5, derived (1 Pa s/m^3 = 1e-5 dyn s cm^-5): 79.99343.
 WOOD_UNIT_TO_DYN_S_PER_CM5 = WOOD_UNIT_TO_PA_S_PER_M3 * 1e-5
 
 #: The factor from Wood units to dyn s cm^-5: derived from NIST SP 811, or the
@@ -94,7 +96,8 @@ def _factor(factor: str) -> float:
     except (KeyError, TypeError):
         raise InputRangeError(
             f"factor must be one of {sorted(WOOD_UNIT_FACTORS)}, got {factor!r}; "
-            "use 'exact' (79.9932 dyn s cm^-5 per Wood unit, from 1 mmHg = 133.322 Pa) "
+            f"use 'exact' ({WOOD_UNIT_TO_DYN_S_PER_CM5:.6g} dyn s cm^-5 per Wood unit, "
+            f"from 1 mmHg = {MMHG_TO_PA:.9g} Pa) "
             "or 'rounded' (80)"
         ) from None
 
@@ -165,7 +168,7 @@ def vascular_resistance(upstream_mmhg, downstream_mmhg, flow_l_min, factor="exac
     flow_l_min : float or array_like
         Flow through the bed [L/min], > 0.
     factor : {"exact", "rounded"}
-        Wood unit to dyn s cm^-5: 79.9932 derived from 1 mmHg = 133.322 Pa
+        Wood unit to dyn s cm^-5: 79.99343 derived from 1 mmHg = 133.322387415 Pa
         (default) or the rounded 80.
 
     Returns

@@ -47,6 +47,7 @@ import numpy as np
 
 from rheoline.errors import InputRangeError, RangeWarning, RegimeWarning
 from rheoline.model import blood as _blood
+from rheoline.model.conversions import MMHG
 from rheoline.model.validation import (
     check_finite,
     check_hematocrit,
@@ -93,7 +94,7 @@ CATHETER_TO_VEIN_RATIO_LIMIT = 0.45
 #: A typical peripheral vein pressure [Pa] (10 mmHg) for an arm vein at heart
 #: level, as the default back pressure an infusion line works against.
 #: common practice, no source.
-TYPICAL_PERIPHERAL_VEIN_PRESSURE = 10.0 * 133.322
+TYPICAL_PERIPHERAL_VEIN_PRESSURE = 10.0 * MMHG
 
 
 def pries_1994_relative_viscosity(diameter, hematocrit):
