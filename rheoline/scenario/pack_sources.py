@@ -1,8 +1,34 @@
-"""What a review pack says about its basis: the cautions and the run's notes."""
+"""What a review pack says about its basis: the models the run used, and the cautions.
+
+The assumptions-and-references sheet (CSV/XLSX sheet ``assumptions``, the HTML report's
+"Models used" section) is generated from the run's ``models_used`` (the provenance keys of
+every model result of the run, in first-use order) and the provenance registry
+(:data:`rheoline.model.provenance.REGISTRY`): one row per entry the run actually used, with
+its title, its role here, the full reference, the DOI where one exists, the validity range
+and whether its values were recalled rather than read.  Nothing is listed that the run did
+not compute: a saline-only run names no blood model, no Pries correction and no hemolysis
+law.
+
+The cautions are the short caution, the hazards every estimate shares, the ones that
+concern red cells only when the run had a fluid with red cells, and this run's notes.
+"""
 
 from __future__ import annotations
 
-__all__ = ["cautions_list", "run_notes"]
+from collections.abc import Iterable, Mapping
+
+__all__ = ["ASSUMPTION_COLUMNS", "assumptions_table", "cautions_list", "run_notes"]
+
+#: The columns of the assumptions sheet.
+ASSUMPTION_COLUMNS = (
+    "model",
+    "title",
+    "role",
+    "reference",
+    "DOI",
+    "validity",
+    "recalled values",
+)
 
 #: Hazards that no flow estimate accounts for; every pack lists them.
 _HAZARDS = (
@@ -18,6 +44,62 @@ _HAZARDS = (
     "Catalogue dimensions are typical nominal values, not a particular maker's; some are "
     "recalled from memory.",
 )
+
+
+def _registry(registry):
+    if registry is not None:
+        return registry
+    from rheoline.model.provenance import REGISTRY
+
+    return REGISTRY
+
+
+def assumptions_table(models_used: Iterable[str], registry: Mapping | None = None):
+    """The assumptions and references of a run: one row per model it used.
+
+    Parameters
+    ----------
+    models_used : iterable of str
+        Provenance keys, in first-use order (a key given twice is listed once).
+    registry : mapping of str to ModelEntry, optional
+        The provenance registry (default :data:`rheoline.model.provenance.REGISTRY`).
+
+    Returns
+    -------
+    pandas.DataFrame
+        Columns :data:`ASSUMPTION_COLUMNS`; ``DOI`` is empty where the work has none and
+        ``recalled values`` says "from memory" where the entry's values were recalled
+        rather than read from the source.
+
+    Raises
+    ------
+    KeyError
+        When a key is not in the registry (a defect: every model a result records is
+        registered), naming the key.
+    """
+    import pandas as pd
+
+    entries = _registry(registry)
+    rows = []
+    for key in dict.fromkeys(models_used):
+        try:
+            entry = entries[key]
+        except KeyError:
+            raise KeyError(
+                f"the run used model {key!r}, which the provenance registry does not hold"
+            ) from None
+        rows.append(
+            [
+                entry.key,
+                entry.title,
+                entry.role,
+                entry.reference,
+                entry.doi or "",
+                entry.validity,
+                "from memory: verify before relying on it" if entry.recalled else "",
+            ]
+        )
+    return pd.DataFrame(rows, columns=list(ASSUMPTION_COLUMNS))
 
 
 def run_notes(run) -> list[str]:
