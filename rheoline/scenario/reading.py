@@ -59,7 +59,7 @@ from pathlib import Path
 
 from rheoline.errors import ScenarioError
 from rheoline.model import catalogue
-from rheoline.scenario import schema
+from rheoline.scenario import schema, text_guard
 from rheoline.scenario.description import (
     Axis,
     DeliverySpec,
@@ -181,6 +181,7 @@ def _decoded(text, source):
 
 def _parsed(text, source, fmt):
     """The plain data of TOML or JSON ``text``; a ScenarioError for anything malformed."""
+    text_guard.check_text(text, fmt, source)  # depth and key-count bombs, before any parser
     try:
         if fmt == "json":
             return json.loads(text, object_pairs_hook=lambda pairs: _json_object(pairs, source))
