@@ -23,6 +23,7 @@ import io
 import json
 import math
 import os
+import re
 from pathlib import Path
 
 import pytest
@@ -441,3 +442,171 @@ def test_any_argument_line_exits_0_or_2_without_a_traceback(work, argv):
     if status == 2:  # one line on stderr, or (no command at all) the help on stdout
         assert written == [], (argv, written)
         assert err.count("\n") == 1 or (err == "" and "usage" in out.lower()), (argv, out, err)
+
+
+# --------------------------------------------------------------------------- raw-text bombs
+# Files within the documented size limit built to make the readers expand or recurse: dotted
+# keys and table headers of thousands of parts (the TOML reader's work grows with the square of
+# the parts), deep lists and inline tables, long strings and keys, and too many keys or
+# entries, in TOML and JSON.  Each goes through the loader and ``rheoline check`` in a child
+# process whose address space is capped at its size after start-up plus BOMB_MEMORY: a file is
+# refused (a ScenarioError) or loaded, never a MemoryError.  No timing is asserted.
+BOMB_MEMORY = 300 * 2**20
+_LIMIT = MAX_FILE_BYTES = 1_000_000  # the documented limit (files.MAX_FILE_BYTES, checked below)
+
+
+def _fill(unit: str, head: str = "", tail: str = "", budget: int = _LIMIT - 64) -> str:
+    """``head`` + as many ``unit`` as fit in ``budget`` bytes + ``tail``."""
+    return head + unit * ((budget - len(head) - len(tail)) // len(unit)) + tail
+
+
+def _bombs():
+    """(name, suffix, text, refused by the raw-text guard before parsing)."""
+    half = (_LIMIT - 64) // 2
+    many = 100_005  # just above text_guard.MAX_TEXT_ITEMS
+    return [
+        ("dotted-key-40kB", ".toml", "a." * 20_000 + "b = 1\n", True),
+        ("dotted-key-1MB", ".toml", _fill("a.", tail="b = 1\n"), True),
+        ("dotted-key-after-header", ".toml", _fill("a.", "[s.t]\n", "b = 1\n"), True),
+        ("table-header-1MB", ".toml", _fill("a.", "[", "b]\n"), True),
+        ("array-of-tables-header", ".toml", _fill("a.", "[[", "b]]\n"), True),
+        ("quoted-dotted-key", ".toml", _fill('"a".', tail="b = 1\n"), True),
+        ("deep-array", ".toml", "x = " + "[" * half + "]" * half + "\n", True),
+        ("deep-inline-table", ".toml", _fill("{a = ", "x = ", "1}\n", budget=half), True),
+        ("many-keys", ".toml", "k=1\n" * many, True),
+        ("many-headers", ".toml", "[t]\n" * many, True),
+        ("many-list-entries", ".toml", "x = [" + "1," * many + "]\n", True),
+        ("many-inline-keys", ".toml", "x = {" + "a=1," * many + "b=1}\n", True),
+        ("long-string", ".toml", _fill("a", 'title = "', '"\n'), False),
+        ("long-escapes", ".toml", _fill("\\u0041", 'title = "', '"\n'), False),
+        ("long-multiline", ".toml", _fill("a\\\n", 'notes = """', '"""\n'), False),
+        ("long-literal", ".toml", _fill("[", "notes = '", "'\n"), False),
+        ("long-key", ".toml", _fill("a", tail=" = 1\n"), False),
+        ("headers-under-the-limit", ".toml", "".join(f"[t{i}]\n" for i in range(99_000)), False),
+        ("json-deep-array", ".json", "[" * half + "]" * half, True),
+        ("json-deep-object", ".json", _fill('{"a":', tail="1}"), True),
+        ("json-many-keys", ".json", "{" + '"k":1,' * many + '"k":1}', True),
+        ("json-many-entries", ".json", "[" + "1," * many + "1]", True),
+        ("json-long-string", ".json", _fill("a", '{"title": "', '"}'), False),
+        ("json-long-escapes", ".json", _fill("\\u0041", '{"title": "', '"}'), False),
+    ]
+
+
+_BOMB_CHILD = r"""
+import contextlib, io, json, resource, sys, tomllib
+from rheoline import cli
+from rheoline.errors import ScenarioError
+from rheoline.scenario.files import example_path, load_scenarios
+
+load_scenarios(example_path("minimal"))  # lazy imports done before the cap
+cli.main(["check", str(example_path("minimal"))])
+
+def vm_size():
+    with open("/proc/self/status") as fh:
+        return next(int(l.split()[1]) * 1024 for l in fh if l.startswith("VmSize:"))
+
+budget = int(sys.argv[1])
+start_rss = resource.getrusage(resource.RUSAGE_SELF).ru_maxrss * 1024
+cap = vm_size() + budget
+resource.setrlimit(resource.RLIMIT_AS, (cap, cap))
+parsed = []
+real_toml, real_json = tomllib.loads, json.loads
+tomllib.loads = lambda *a, **k: (parsed.append("toml"), real_toml(*a, **k))[1]
+json.loads = lambda *a, **k: (parsed.append("json"), real_json(*a, **k))[1]
+for path in sys.argv[2:]:
+    parsed.clear()
+    try:
+        load_scenarios(path)
+        outcome, message = "loaded", ""
+    except ScenarioError as exc:
+        outcome, message = "refused", str(exc)
+    except MemoryError:
+        outcome, message = "out of memory", ""
+    parser_ran = bool(parsed)
+    err = io.StringIO()
+    with contextlib.redirect_stdout(io.StringIO()), contextlib.redirect_stderr(err):
+        try:
+            status = cli.main(["check", path])
+        except MemoryError:
+            status = "out of memory"
+    grown = resource.getrusage(resource.RUSAGE_SELF).ru_maxrss * 1024 - start_rss
+    print(json.dumps(dict(path=path, outcome=outcome, message=message[:300],
+                          parser_ran=parser_ran, status=status, err=err.getvalue()[:300],
+                          grown=grown)), flush=True)
+"""
+
+
+@pytest.mark.timeout(600)
+@pytest.mark.skipif(not Path("/proc/self/status").exists(), reason="needs Linux /proc")
+def test_raw_text_bombs_are_refused_or_loaded_in_bounded_memory(tmp_path):
+    import subprocess
+    import sys
+
+    from rheoline.scenario.files import MAX_FILE_BYTES as documented
+
+    assert documented == MAX_FILE_BYTES
+    bombs = _bombs()
+    paths = []
+    for name, suffix, text, _ in bombs:
+        path = tmp_path / f"{name}{suffix}"
+        path.write_text(text, encoding="utf-8")
+        assert path.stat().st_size <= MAX_FILE_BYTES, name
+        paths.append(str(path))
+    env = {**os.environ, "OPENBLAS_NUM_THREADS": "1", "OMP_NUM_THREADS": "1"}
+    done = subprocess.run(
+        [sys.executable, "-c", _BOMB_CHILD, str(BOMB_MEMORY), *paths],
+        capture_output=True,
+        text=True,
+        env=env,
+        timeout=560,
+    )
+    results = [json.loads(line) for line in done.stdout.splitlines() if line.startswith("{")]
+    assert len(results) == len(bombs), done.stderr[-3000:]
+    for (name, suffix, _, guarded), r in zip(bombs, results, strict=True):
+        bump("fuzz:bombs_tried")
+        assert r["outcome"] in ("refused", "loaded"), (name, r)
+        assert r["status"] in (0, 2), (name, r)
+        assert r["grown"] < BOMB_MEMORY, (name, r["grown"])
+        if guarded:  # refused from the raw text: file, line and limit named, no parser run
+            assert r["outcome"] == "refused" and not r["parser_ran"], (name, r)
+            assert re.match(rf"{re.escape(name + suffix)}: line \d+: .*limit", r["message"])
+            assert r["status"] == 2 and "line " in r["err"] and r["err"].count("\n") == 1
+            bump("fuzz:bombs_refused_before_parsing")
+
+
+_BOMB_UNITS = {
+    "dotted-key": ("toml", lambda n: "a." * n + "b = 1"),
+    "header": ("toml", lambda n: "[" + "a." * n + "b]"),
+    "array-of-tables": ("toml", lambda n: "[[" + "a." * n + "b]]"),
+    "deep-array": ("toml", lambda n: "x = " + "[" * n + "]" * n),
+    "deep-inline": ("toml", lambda n: "x = " + "{a = " * n + "1" + "}" * n),
+    "inline-dotted": ("toml", lambda n: "x = {" + "a." * n + "b = 1}"),
+}
+
+
+@_fuzz_settings
+@given(
+    kind=st.sampled_from(sorted(_BOMB_UNITS)),
+    parts=st.integers(files_max_depth := 8, 50_000),
+    seed=st.sampled_from(SEEDS[: len(example_names())]),
+    where=st.floats(0, 1),
+)
+def test_a_bomb_anywhere_in_a_good_file_is_refused_before_parsing(kind, parts, seed, where):
+    # the guard reads the whole text: a bomb after the first lines of a real file is caught
+    # at its own line, and neither parser runs
+    import tomllib
+
+    from rheoline.scenario.files import MAX_DEPTH, loads_scenarios
+
+    assert files_max_depth == MAX_DEPTH
+    lines = seed.read_text(encoding="utf-8").splitlines()
+    # a statement boundary before a table header (or the end), so the bomb stands on its own
+    starts = [i for i, line in enumerate(lines) if line.startswith("[")] + [len(lines)]
+    at = starts[min(int(where * len(starts)), len(starts) - 1)]
+    fmt, unit = _BOMB_UNITS[kind]
+    text = "\n".join([*lines[:at], unit(parts + 2), *lines[at:]]) + "\n"
+    bump("fuzz:bombs_tried")
+    with pytest.MonkeyPatch.context() as patch:
+        patch.setattr(tomllib, "loads", lambda *a, **k: pytest.fail("the TOML reader ran"))
+        with pytest.raises(ScenarioError, match=rf"^{seed.stem}\.toml: line {at + 1}: .*limit"):
+            loads_scenarios(text, source=f"{seed.stem}.toml", fmt=fmt)
