@@ -32,17 +32,33 @@ def test_plasma_viscosity_normal_range():
     )
 
 
-def test_carreau_reproduces_cho_kensey_at_reference_state():
-    # source: Cho & Kensey 1991, Biorheology 28:241 (from memory): Carreau mu0 0.056 Pa s,
-    # mu_inf 0.00345 Pa s, lambda 3.313 s, n 0.3568; Carreau-Yasuda lambda 1.902 s, n 0.22, a 1.25
+def test_carreau_shapes_are_cho_kensey_and_limits_are_pries_and_the_fit():
+    # source: Cho & Kensey 1991, Biorheology 28:241 (from memory): Carreau lambda 3.313 s,
+    # n 0.3568; Carreau-Yasuda lambda 1.902 s, n 0.22, a 1.25.  High-shear limit: plasma x
+    # Pries 1992 at its largest tube (3.2 at H 0.45, Pries 1992 eq. 7 evaluated by hand);
+    # zero-shear limit: mu_inf (1 + c H) with c fitted to Wells & Merrill 1962 (see
+    # tests/test_validation.py, which refits c from the packaged data)
     c = blood.blood_rheology(0.45, 37.0, "carreau")
     assert isinstance(c, Carreau)
-    assert c.mu_zero == pytest.approx(0.056, rel=1e-9)
-    assert c.mu_inf == pytest.approx(0.00345, rel=1e-9)
     assert (c.relaxation_time, c.flow_index) == (3.313, 0.3568)
+    assert c.mu_inf == pytest.approx(blood.plasma_viscosity(37.0) * 3.2, rel=1e-3)
+    assert c.mu_zero == pytest.approx(c.mu_inf * (1 + 0.45 * 42.58), rel=1e-12)
     cy = blood.blood_rheology(0.45, 37.0, "carreau-yasuda")
     assert isinstance(cy, CarreauYasuda)
     assert (cy.relaxation_time, cy.flow_index, cy.a) == (1.902, 0.22, 1.25)
+    assert cy.mu_zero == pytest.approx(cy.mu_inf * (1 + 0.45 * 50.50), rel=1e-12)
+
+
+def test_red_cells_in_additive_solution_do_not_aggregate():
+    # the suspending medium sets the scale; only plasma makes red cells aggregate, so a
+    # stored red-cell unit (additive solution) has no low-shear rise and no yield stress
+    rbc = blood.blood_rheology(0.65, 4.0, "carreau", medium="additive-solution")
+    assert rbc.mu_zero == pytest.approx(rbc.mu_inf, rel=1e-12)
+    ratio = blood.medium_viscosity(4.0, "additive-solution") / blood.plasma_viscosity(4.0)
+    assert ratio == pytest.approx(1.15 / 1.8, rel=1e-12)
+    assert blood.blood_rheology(0.65, 4.0, "casson", medium="additive-solution").yield_stress == 0
+    with pytest.raises(InputRangeError, match="not a suspending medium"):
+        blood.blood_rheology(0.65, 4.0, medium="saline")
 
 
 def test_carreau_tends_to_its_limits():

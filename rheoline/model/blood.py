@@ -1,21 +1,25 @@
-"""Blood: plasma viscosity, whole-blood viscosity and the Fahraeus-Lindqvist effect.
+"""Blood and red-cell products: suspending media, bulk viscosity and shear-thinning.
 
-Everything here is expressed through two factors: the plasma viscosity at the
-temperature, and a function of hematocrit.  Temperatures are in degC,
-hematocrit is a volume fraction (0.45, not 45), results are SI.
+Everything here is expressed through two factors: the viscosity of the suspending
+medium at the temperature, and a function of hematocrit (and shear rate).
+Temperatures are in degC, hematocrit is a volume fraction (0.45, not 45), results
+are SI.
 
 * :func:`plasma_viscosity`: water viscosity (IAPWS 2008) times a constant
-  plasma-to-water ratio of 1.8.
-* :func:`whole_blood_high_shear_viscosity`: plasma viscosity times the Quemada
-  1978 relative viscosity at infinite shear.
+  plasma-to-water ratio of 1.8; :func:`medium_viscosity` adds the additive
+  solution stored red-cell units are suspended in (:data:`SUSPENDING_MEDIA`).
+* :func:`whole_blood_high_shear_viscosity`: the medium viscosity times the
+  Pries 1992 relative viscosity of a large bore
+  (:func:`~rheoline.model.pries.large_bore_relative_viscosity`): the same bulk
+  blood a :class:`~rheoline.model.vessels.Vessel` carries.
 * :func:`blood_rheology`: shear-thinning models (Carreau and Carreau-Yasuda with
-  the Cho & Kensey 1991 parameters scaled with hematocrit and temperature,
-  Casson with a hematocrit-dependent yield stress, power law, Newtonian).
+  Cho & Kensey 1991 shape parameters and a zero-shear amplitude fitted to Wells &
+  Merrill 1962; Casson with a hematocrit-dependent yield stress; power law; Newtonian).
 * :func:`blood_viscosity`: the one-call viscosity at a shear rate (or high shear).
-* :func:`pries_1992_relative_viscosity`: apparent viscosity in tubes vs diameter.
 
-The scaling rules are engineering assumptions anchored at published values;
-each constant below says where its number comes from.
+How the defaults were chosen, and their measured accuracy, is in the validation
+report (``rheoline validate``; :mod:`rheoline.validation`).  Each constant below
+says where its number comes from.
 """
 
 from __future__ import annotations
@@ -25,6 +29,25 @@ import difflib
 import numpy as np
 
 from rheoline.errors import InputRangeError
+from rheoline.model.blood_media import (
+    ADDITIVE_SOLUTION_RELATIVE_VISCOSITY,
+    BLOOD_TEMPERATURE_RANGE_C,
+    PLASMA_RELATIVE_VISCOSITY,
+    SUSPENDING_MEDIA,
+    _blood_density,
+    _medium,
+    _medium_mu,
+    _temperature,
+    blood_density,
+    medium_viscosity,
+    plasma_density,
+    plasma_viscosity,
+)
+from rheoline.model.pries import (
+    PRIES_1992_REFERENCE_DIAMETER,
+    large_bore_relative_viscosity,
+    pries_1992_relative_viscosity,
+)
 from rheoline.model.provenance import REGISTRY
 from rheoline.model.rheology import Carreau, CarreauYasuda, Casson, Newtonian, PowerLaw
 from rheoline.model.validation import (
@@ -33,21 +56,23 @@ from rheoline.model.validation import (
     scalar_or_array,
     warn_outside,
 )
-from rheoline.model.viscosity import _water_quiet, check_temperature_c
 
 __all__ = [
     "PLASMA_RELATIVE_VISCOSITY",
+    "ADDITIVE_SOLUTION_RELATIVE_VISCOSITY",
+    "SUSPENDING_MEDIA",
     "BLOOD_TEMPERATURE_RANGE_C",
     "CHO_KENSEY_1991",
+    "ZERO_SHEAR_AMPLITUDE",
+    "PRIES_1992_REFERENCE_DIAMETER",
     "plasma_viscosity",
+    "medium_viscosity",
     "plasma_density",
     "blood_density",
     "quemada_1978_relative_viscosity",
     "whole_blood_high_shear_viscosity",
     "blood_zero_shear_viscosity",
     "merrill_1965_yield_stress",
-    "QUEMADA_K_INFINITE_SHEAR",
-    "ZERO_SHEAR_HEMATOCRIT_EXPONENT",
     "blood_rheology",
     "blood_properties",
     "BLOOD_RHEOLOGY_MODELS",
@@ -55,149 +80,38 @@ __all__ = [
     "pries_1992_relative_viscosity",
 ]
 
-#: Plasma viscosity relative to water at the same temperature [-].  1.8 gives
-#: 1.24 mPa s at 37 degC, inside the usual normal range 1.10-1.35 mPa s
-#: (common practice, no source); plasma is taken to follow water's temperature
-#: dependence (common practice, no source).
-PLASMA_RELATIVE_VISCOSITY = 1.8
-
-#: Temperatures [degC] the blood models are used for: refrigerated storage
-#: (about 4 degC) to hyperthermia.  The constant plasma-to-water ratio is an
-#: assumption over this span; outside it the models warn.
-BLOOD_TEMPERATURE_RANGE_C = REGISTRY["blood-scaling"].ranges["temperature_c"]
-
 #: Hematocrit above which the shear-thinning scaling is an extrapolation [-].
 BLOOD_HEMATOCRIT_LIMIT = REGISTRY["blood-scaling"].ranges["hematocrit"][1]
 
-#: Reference state of the Cho & Kensey 1991 blood parameters: hematocrit 0.45 at
-#: 37 degC (the state these parameters are customarily taken to describe).
-REFERENCE_HEMATOCRIT = 0.45
-REFERENCE_TEMPERATURE_C = 37.0
-
 #: Cho & Kensey 1991 blood parameters (Biorheology 28, 241-262, Table 1, from memory):
-#: Carreau and Carreau-Yasuda fits; viscosities in Pa s, relaxation times in s.
+#: the shape of their Carreau and Carreau-Yasuda fits (relaxation time [s], flow
+#: index, Yasuda a).  Their viscosity limits (0.056 and 0.00345 Pa s at hematocrit
+#: 0.45) are replaced here by the Pries 1992 high-shear value and the amplitude
+#: :data:`ZERO_SHEAR_AMPLITUDE` fitted to measurements.
 CHO_KENSEY_1991 = {
-    "carreau": {
-        "mu_zero": 0.056,
-        "mu_inf": 0.00345,
-        "relaxation_time": 3.313,
-        "flow_index": 0.3568,
-    },
-    "carreau-yasuda": {
-        "mu_zero": 0.056,
-        "mu_inf": 0.00345,
-        "relaxation_time": 1.902,
-        "flow_index": 0.22,
-        "a": 1.25,
-    },
+    "carreau": {"relaxation_time": 3.313, "flow_index": 0.3568},
+    "carreau-yasuda": {"relaxation_time": 1.902, "flow_index": 0.22, "a": 1.25},
 }
+
+#: Zero-shear amplitude c of each shear-thinning model [-]: mu_0 = mu_inf (1 + c H)
+#: for blood in plasma.  Fitted (least squares on the logarithm of viscosity) to the
+#: Wells & Merrill 1962 measurements at hematocrit 0.33-0.57, 37 degC, 12-124 1/s
+#: (the packaged data set ``wells-merrill-1962``), with the shape parameters of
+#: :data:`CHO_KENSEY_1991` and the high-shear viscosity of
+#: :func:`whole_blood_high_shear_viscosity` held fixed.  The validation tests refit
+#: them from the packaged data and check these values.
+ZERO_SHEAR_AMPLITUDE = {"carreau": 42.58, "carreau-yasuda": 50.50}
 
 #: Shear-rate window [1/s] of the power-law fit to the Carreau curve: from the
 #: shear rates of veins and arteries to those of catheters and needles.  Outside
 #: it a power law departs from blood (it has no high-shear plateau).
 POWER_LAW_SHEAR_RANGE = (10.0, 1.0e4)
 
-#: Plasma and red-cell densities at 37 degC [kg/m^3] (from memory; whole blood at
-#: hematocrit 0.45 then comes out at 1059 kg/m^3, the usual 1050-1060).
-PLASMA_DENSITY_37C = 1025.0
-RED_CELL_DENSITY_37C = 1100.0
-
-
-def _temperature(temperature_c, model, key="blood-scaling"):
-    t = check_temperature_c(temperature_c)
-    warn_outside(key, "temperature_c", t, label=model, unit="degC", stacklevel=4)
-    return t
-
 
 def _hematocrit(hematocrit, model, key="blood-scaling"):
     h = check_hematocrit(hematocrit)
     warn_outside(key, "hematocrit", h, label=model, stacklevel=4)
     return h
-
-
-def _plasma(t):
-    mu_w, _ = _water_quiet(t)
-    return PLASMA_RELATIVE_VISCOSITY * mu_w
-
-
-def plasma_viscosity(temperature_c=37.0):
-    r"""Viscosity of blood plasma, :math:`\mu_p(t) = 1.8\,\mu_{water}(t)`.
-
-    Parameters
-    ----------
-    temperature_c : float or array_like
-        Temperature [degC].
-
-    Returns
-    -------
-    float or ndarray
-        Dynamic viscosity [Pa s] (1.24 mPa s at 37 degC).
-
-    Warns
-    -----
-    RangeWarning
-        Outside 0-42 degC (:data:`BLOOD_TEMPERATURE_RANGE_C`).
-
-    Notes
-    -----
-    Plasma is Newtonian.  Its viscosity varies between people (normal range about
-    1.10-1.35 mPa s at 37 degC, common practice, no source); the ratio 1.8 to
-    water is a typical value, and the temperature dependence is that of water.
-
-    Examples
-    --------
-    >>> round(plasma_viscosity(37.0) * 1e3, 3)
-    1.244
-    """
-    t = _temperature(temperature_c, "the plasma viscosity model", "plasma-viscosity-ratio")
-    return scalar_or_array(_plasma(t))
-
-
-def _density_scale(t):
-    _, rho_w = _water_quiet(t)
-    _, rho_37 = _water_quiet(np.asarray(REFERENCE_TEMPERATURE_C))
-    return rho_w / rho_37
-
-
-def plasma_density(temperature_c=37.0):
-    """Density [kg/m^3] of plasma: 1025 kg/m^3 at 37 degC, with water's thermal expansion.
-
-    Examples
-    --------
-    >>> round(plasma_density(37.0), 1)
-    1025.0
-    """
-    t = _temperature(temperature_c, "the plasma density model", "plasma-viscosity-ratio")
-    return scalar_or_array(PLASMA_DENSITY_37C * _density_scale(t))
-
-
-def blood_density(hematocrit, temperature_c=37.0):
-    r"""Density of blood, :math:`\rho = (1 - H)\,\rho_p + H\,\rho_{rbc}`, scaled like water.
-
-    Parameters
-    ----------
-    hematocrit : float or array_like
-        Hematocrit H [-], 0 to 0.95.
-    temperature_c : float or array_like
-        Temperature [degC].
-
-    Returns
-    -------
-    float or ndarray
-        Density [kg/m^3] (plasma 1025, red cells 1100 kg/m^3 at 37 degC, from memory).
-
-    Examples
-    --------
-    >>> round(blood_density(0.45), 0)
-    1059.0
-    """
-    h = check_hematocrit(hematocrit)
-    t = _temperature(temperature_c, "the blood density model", "blood-density-mixture")
-    return scalar_or_array(_blood_density(h, t))
-
-
-def _blood_density(h, t):
-    return ((1.0 - h) * PLASMA_DENSITY_37C + h * RED_CELL_DENSITY_37C) * _density_scale(t)
 
 
 def quemada_1978_relative_viscosity(hematocrit, intrinsic_viscosity):
@@ -210,8 +124,7 @@ def quemada_1978_relative_viscosity(hematocrit, intrinsic_viscosity):
     hematocrit : float or array_like
         Volume fraction of red cells H [-].
     intrinsic_viscosity : float or array_like
-        Quemada's structural coefficient k [-] (at a given shear; the infinite-shear
-        value for blood is near 1.8), 0 < k < 2/H.
+        Quemada's structural coefficient k [-] (at a given shear), 0 < k < 2/H.
 
     Returns
     -------
@@ -240,31 +153,18 @@ def quemada_1978_relative_viscosity(hematocrit, intrinsic_viscosity):
     return scalar_or_array(packing**-2.0)
 
 
-def _reference_plasma():
-    return float(_plasma(np.asarray(REFERENCE_TEMPERATURE_C)))
+def _high_shear(h, t, medium="plasma"):
+    return _medium_mu(t, medium) * large_bore_relative_viscosity(h)
 
 
-#: Quemada's k at infinite shear [-], chosen so that the law joins the plasma
-#: viscosity at H = 0 and Cho & Kensey's mu_inf = 3.45 mPa s at H = 0.45, 37 degC
-#: (about 1.78; Quemada's fits of human blood give values near 1.8, from memory).
-QUEMADA_K_INFINITE_SHEAR = float(
-    2.0
-    * (1.0 - np.sqrt(_reference_plasma() / CHO_KENSEY_1991["carreau"]["mu_inf"]))
-    / REFERENCE_HEMATOCRIT
-)
+def whole_blood_high_shear_viscosity(hematocrit, temperature_c=37.0, medium="plasma"):
+    r"""High-shear (Newtonian-limit) viscosity of blood in a large bore.
 
+    .. math:: \mu_\infty(H, t) = \mu_m(t)\,\mu_{rel}^{Pries}(D_{ref}, H)
 
-def _high_shear(h, t):
-    return _plasma(t) * (1.0 - 0.5 * QUEMADA_K_INFINITE_SHEAR * h) ** -2.0
-
-
-def whole_blood_high_shear_viscosity(hematocrit, temperature_c=37.0):
-    r"""High-shear (Newtonian-limit) viscosity of whole blood vs hematocrit and temperature.
-
-    .. math:: \mu_\infty(H, t) = \mu_p(t)\,\left(1 - \tfrac{1}{2} k_\infty H\right)^{-2}
-
-    with :math:`\mu_p` from :func:`plasma_viscosity` and
-    :math:`k_\infty` = :data:`QUEMADA_K_INFINITE_SHEAR` (1.78).
+    with :math:`\mu_m` the suspending medium (:func:`medium_viscosity`) and
+    :math:`\mu_{rel}^{Pries}` the Pries 1992 in-vitro law at its largest tube,
+    :math:`D_{ref}` = 1978 um (3.20 at H = 0.45).
 
     Parameters
     ----------
@@ -272,53 +172,51 @@ def whole_blood_high_shear_viscosity(hematocrit, temperature_c=37.0):
         Hematocrit [-], 0 to 0.95.
     temperature_c : float or array_like
         Temperature [degC].
+    medium : {"plasma", "additive-solution"}
+        Suspending medium (:data:`SUSPENDING_MEDIA`).
 
     Returns
     -------
     float or ndarray
-        Dynamic viscosity [Pa s]: 3.45 mPa s at H = 0.45, 37 degC.
+        Dynamic viscosity [Pa s]: 3.98 mPa s at H = 0.45, 37 degC in plasma.
 
     Notes
     -----
-    The red cells' contribution (the relative viscosity) is taken as independent
-    of temperature, so blood thickens on cooling as its plasma does (an
-    assumption; cold blood is in fact somewhat more viscous still).
+    Pries' law is a fit to tube-flow measurements of many studies at high shear
+    rates, so this is the bulk viscosity a wide bore sees once aggregates are
+    broken up; it is exactly what :class:`~rheoline.model.vessels.Vessel` uses
+    in bores of 2 mm (and within 0.5 % from 1 mm).  The red cells' contribution is
+    taken as independent of temperature, so blood thickens on cooling as its
+    medium does (an assumption).
 
     References
     ----------
-    Quemada, Rheol. Acta 17 (1978) 632-642; Cho, Y.I., Kensey, K.R., "Effects of
-    the non-Newtonian viscosity of blood on flows in a diseased arterial vessel.
-    Part 1: Steady flows", Biorheology 28 (1991) 241-262.
+    Pries, Neuhaus & Gaehtgens, Am. J. Physiol. 263 (1992) H1770-H1778.
 
     Examples
     --------
     >>> round(whole_blood_high_shear_viscosity(0.45, 37.0) * 1e3, 2)
-    3.45
+    3.98
     """
-    h = _hematocrit(hematocrit, "the whole-blood viscosity model", "quemada-1978")
-    t = _temperature(temperature_c, "the whole-blood viscosity model", "quemada-1978")
-    return scalar_or_array(_high_shear(h, t))
+    h = _hematocrit(hematocrit, "the whole-blood viscosity model")
+    t = _temperature(temperature_c, "the whole-blood viscosity model")
+    _medium(medium)
+    return scalar_or_array(_high_shear(h, t, medium))
 
 
-#: Exponent of the low-shear scaling: ln(mu_0 / mu_p) per unit hematocrit, so that
-#: mu_0 = mu_p at H = 0 and Cho & Kensey's 0.056 Pa s at H = 0.45, 37 degC.
-ZERO_SHEAR_HEMATOCRIT_EXPONENT = float(
-    np.log(CHO_KENSEY_1991["carreau"]["mu_zero"] / _reference_plasma()) / REFERENCE_HEMATOCRIT
-)
+def _zero_shear(h, t, model="carreau", medium="plasma"):
+    aggregates = _medium(medium)[1]
+    amplitude = ZERO_SHEAR_AMPLITUDE[model] if aggregates else 0.0
+    return _high_shear(h, t, medium) * (1.0 + amplitude * h)
 
 
-def _zero_shear(h, t):
-    return _plasma(t) * np.exp(ZERO_SHEAR_HEMATOCRIT_EXPONENT * h)
-
-
-def blood_zero_shear_viscosity(hematocrit, temperature_c=37.0):
+def blood_zero_shear_viscosity(hematocrit, temperature_c=37.0, model="carreau", medium="plasma"):
     r"""Zero-shear viscosity of blood used by the Carreau models.
 
-    .. math:: \mu_0(H, t) = \mu_p(t)\,e^{\beta H}, \qquad
-              \beta = \ln(0.056\ \text{Pa s} / \mu_p(37\,^\circ C)) / 0.45 \approx 8.5
+    .. math:: \mu_0(H, t) = \mu_\infty(H, t)\,(1 + c\,H)
 
-    An exponential rise of low-shear viscosity with hematocrit, anchored at the
-    plasma (H = 0) and at Cho & Kensey's zero-shear value (H = 0.45, 37 degC).
+    with c from :data:`ZERO_SHEAR_AMPLITUDE` (fitted to Wells & Merrill 1962) for
+    blood in plasma, and c = 0 in a medium where red cells do not aggregate.
 
     Returns
     -------
@@ -327,12 +225,16 @@ def blood_zero_shear_viscosity(hematocrit, temperature_c=37.0):
 
     Examples
     --------
-    >>> round(blood_zero_shear_viscosity(0.45, 37.0), 4)
-    0.056
+    >>> round(blood_zero_shear_viscosity(0.45, 37.0) * 1e3, 1)
+    80.3
     """
+    if model not in ZERO_SHEAR_AMPLITUDE:
+        raise InputRangeError(
+            f"model {model!r} has no zero-shear amplitude; choose one of {list(ZERO_SHEAR_AMPLITUDE)}"
+        )
     h = _hematocrit(hematocrit, "the zero-shear blood viscosity model")
     t = _temperature(temperature_c, "the zero-shear blood viscosity model")
-    return scalar_or_array(_zero_shear(h, t))
+    return scalar_or_array(_zero_shear(h, t, model, medium))
 
 
 #: Merrill's yield-stress law: tau_y^(1/3) = A (H - H_c), with A = 0.8 (dyn/cm^2)^(1/3)
@@ -379,32 +281,34 @@ def _yield(h):
     return 0.1 * (MERRILL_YIELD_COEFFICIENT * excess) ** 3
 
 
-def _carreau_parameters(h, t, key):
+def _carreau_parameters(h, t, key, medium):
     params = dict(CHO_KENSEY_1991[key])
-    params["mu_inf"] = _high_shear(h, t)
-    params["mu_zero"] = np.maximum(_zero_shear(h, t), params["mu_inf"])
+    params["mu_inf"] = _high_shear(h, t, medium)
+    params["mu_zero"] = _zero_shear(h, t, key, medium)
     return params
 
 
-def _build_carreau(h, t):
-    return Carreau(**_carreau_parameters(h, t, "carreau"))
+def _build_carreau(h, t, medium="plasma"):
+    return Carreau(**_carreau_parameters(h, t, "carreau", medium))
 
 
-def _build_carreau_yasuda(h, t):
-    return CarreauYasuda(**_carreau_parameters(h, t, "carreau-yasuda"))
+def _build_carreau_yasuda(h, t, medium="plasma"):
+    return CarreauYasuda(**_carreau_parameters(h, t, "carreau-yasuda", medium))
 
 
-def _build_casson(h, t):
-    return Casson(yield_stress=_yield(h) + 0.0 * t, casson_viscosity=_high_shear(h, t))
+def _build_casson(h, t, medium="plasma"):
+    aggregates = _medium(medium)[1]
+    tau_y = _yield(h) if aggregates else 0.0 * h
+    return Casson(yield_stress=tau_y + 0.0 * t, casson_viscosity=_high_shear(h, t, medium))
 
 
-def _build_newtonian(h, t):
-    return Newtonian(_high_shear(h, t))
+def _build_newtonian(h, t, medium="plasma"):
+    return Newtonian(_high_shear(h, t, medium))
 
 
-def _build_power_law(h, t):
+def _build_power_law(h, t, medium="plasma"):
     # least squares of log(mu) on log(shear rate) over the window, closed form
-    carreau = _build_carreau(h, t)
+    carreau = _build_carreau(h, t, medium)
     lo, hi = POWER_LAW_SHEAR_RANGE
     grid = np.logspace(np.log10(lo), np.log10(hi), 31)
     x = np.log(grid)
@@ -426,7 +330,7 @@ BLOOD_RHEOLOGY_MODELS = {
 }
 
 
-def blood_rheology(hematocrit, temperature_c=37.0, model="carreau"):
+def blood_rheology(hematocrit, temperature_c=37.0, model="carreau", medium="plasma"):
     """A shear-thinning rheology object for blood at a hematocrit and temperature.
 
     Parameters
@@ -441,14 +345,17 @@ def blood_rheology(hematocrit, temperature_c=37.0, model="carreau"):
         * ``"carreau"``, ``"carreau-yasuda"``: Cho & Kensey 1991 shape parameters
           (relaxation time, flow index, Yasuda a); the infinite-shear viscosity from
           :func:`whole_blood_high_shear_viscosity` and the zero-shear viscosity from
-          :func:`blood_zero_shear_viscosity`, so both track hematocrit and temperature
-          and both reduce to the plasma viscosity at H = 0;
-        * ``"casson"``: yield stress from :func:`merrill_1965_yield_stress`, Casson
-          viscosity equal to the high-shear viscosity;
+          :func:`blood_zero_shear_viscosity`, so both track hematocrit, temperature
+          and medium and both reduce to the medium's viscosity at H = 0;
+        * ``"casson"``: yield stress from :func:`merrill_1965_yield_stress` (none
+          outside plasma), Casson viscosity equal to the high-shear viscosity;
         * ``"power-law"``: the power law closest (log least squares) to the Carreau
           curve over :data:`POWER_LAW_SHEAR_RANGE` (10-10^4 1/s); outside that window
           it departs from blood (too thin at higher, too thick at lower shear);
         * ``"newtonian"``: the high-shear viscosity.
+    medium : {"plasma", "additive-solution"}
+        Suspending medium (:data:`SUSPENDING_MEDIA`); red cells aggregate (and
+        blood thickens at low shear) only in plasma.
 
     Returns
     -------
@@ -458,7 +365,7 @@ def blood_rheology(hematocrit, temperature_c=37.0, model="carreau"):
     Raises
     ------
     InputRangeError
-        For an unknown model (the message lists the choices) or bad input.
+        For an unknown model or medium (the message lists the choices) or bad input.
 
     Warns
     -----
@@ -468,8 +375,8 @@ def blood_rheology(hematocrit, temperature_c=37.0, model="carreau"):
     Examples
     --------
     >>> m = blood_rheology(0.45, 37.0)
-    >>> round(m.viscosity(1e-4), 3), round(m.viscosity(1e5) * 1e3, 2)
-    (0.056, 3.45)
+    >>> round(m.mu_zero * 1e3, 1), round(m.mu_inf * 1e3, 2)
+    (80.3, 3.98)
     """
     try:
         builder = BLOOD_RHEOLOGY_MODELS[model]
@@ -480,19 +387,20 @@ def blood_rheology(hematocrit, temperature_c=37.0, model="carreau"):
             f"model {model!r} is not a blood rheology model; choose one of "
             f"{list(BLOOD_RHEOLOGY_MODELS)}{hint}"
         ) from None
+    _medium(medium)
     h = _hematocrit(hematocrit, f"the {model} blood model")
     t = _temperature(temperature_c, f"the {model} blood model")
     h, t = np.broadcast_arrays(h, t)
-    return builder(np.asarray(h, dtype=float), np.asarray(t, dtype=float))
+    return builder(np.asarray(h, dtype=float), np.asarray(t, dtype=float), medium)
 
 
-def blood_properties(hematocrit, temperature_c=37.0, model="carreau"):
-    """Rheology, density and plasma viscosity of blood in one call (one range check).
+def blood_properties(hematocrit, temperature_c=37.0, model="carreau", medium="plasma"):
+    """Rheology, density and medium viscosity of blood in one call (one range check).
 
     Returns
     -------
     tuple
-        ``(rheology, density [kg/m^3], plasma_viscosity [Pa s])``, each broadcast
+        ``(rheology, density [kg/m^3], medium viscosity [Pa s])``, each broadcast
         over ``hematocrit`` and ``temperature_c`` (floats for scalars).
 
     Examples
@@ -501,15 +409,21 @@ def blood_properties(hematocrit, temperature_c=37.0, model="carreau"):
     >>> round(density), round(mu_p * 1e3, 3)
     (1059, 1.244)
     """
-    rheology = blood_rheology(hematocrit, temperature_c, model)
+    rheology = blood_rheology(hematocrit, temperature_c, model, medium)
     h, t = np.broadcast_arrays(
         np.asarray(hematocrit, dtype=float), np.asarray(temperature_c, dtype=float)
     )
-    return rheology, scalar_or_array(_blood_density(h, t)), scalar_or_array(_plasma(t))
+    return (
+        rheology,
+        scalar_or_array(_blood_density(h, t)),
+        scalar_or_array(_medium_mu(t, medium)),
+    )
 
 
-def blood_viscosity(hematocrit, temperature_c=37.0, shear_rate=None, model="carreau"):
-    """Apparent viscosity of whole blood.
+def blood_viscosity(
+    hematocrit, temperature_c=37.0, shear_rate=None, model="carreau", medium="plasma"
+):
+    """Apparent viscosity of blood (or of red cells in an additive solution).
 
     Parameters
     ----------
@@ -522,6 +436,8 @@ def blood_viscosity(hematocrit, temperature_c=37.0, shear_rate=None, model="carr
         (:func:`whole_blood_high_shear_viscosity`, the same for every model).
     model : str
         Rheology model used at a finite shear rate (see :func:`blood_rheology`).
+    medium : {"plasma", "additive-solution"}
+        Suspending medium.
 
     Returns
     -------
@@ -536,79 +452,11 @@ def blood_viscosity(hematocrit, temperature_c=37.0, shear_rate=None, model="carr
     Examples
     --------
     >>> round(blood_viscosity(0.45) * 1e3, 2)            # high shear, 37 degC
-    3.45
-    >>> round(blood_viscosity(0.45, 37.0, shear_rate=1.0) * 1e3, 1)
-    27.1
+    3.98
+    >>> round(blood_viscosity(0.45, 37.0, shear_rate=100.0) * 1e3, 2)
+    5.81
     """
     if shear_rate is None:
-        return whole_blood_high_shear_viscosity(hematocrit, temperature_c)
+        return whole_blood_high_shear_viscosity(hematocrit, temperature_c, medium)
     g = check_positive("shear_rate", shear_rate, "1/s")
-    return scalar_or_array(blood_rheology(hematocrit, temperature_c, model).viscosity(g))
-
-
-def pries_1992_relative_viscosity(diameter, hematocrit):
-    r"""Apparent viscosity of blood in a glass tube relative to plasma (Pries 1992, in vitro).
-
-    .. math::
-
-        \mu_{rel} = 1 + (\mu_{0.45} - 1)\,
-                    \frac{(1 - H_D)^C - 1}{(1 - 0.45)^C - 1}
-
-        \mu_{0.45} = 220\,e^{-1.3 D} + 3.2 - 2.44\,e^{-0.06 D^{0.645}}
-
-        C = (0.8 + e^{-0.075 D})\left(-1 + \frac{1}{1 + 10^{-11} D^{12}}\right)
-            + \frac{1}{1 + 10^{-11} D^{12}}
-
-    with D the tube diameter in micrometres and H_D the discharge hematocrit.
-
-    Parameters
-    ----------
-    diameter : float or array_like
-        Tube (vessel) inner diameter [m], > 0.
-    hematocrit : float or array_like
-        Discharge hematocrit [-], 0 to 0.95.
-
-    Returns
-    -------
-    float or ndarray
-        Relative apparent viscosity mu_app / mu_plasma [-].
-
-    Warns
-    -----
-    RangeWarning
-        For diameters outside 3.3-1978 micrometres, the range of the data the law
-        was fitted to, or hematocrit above 0.9.
-
-    Notes
-    -----
-    The law shows the Fahraeus-Lindqvist effect: apparent viscosity falls as the
-    diameter falls from about 1 mm, reaches a minimum near 5-7 micrometres, and
-    rises steeply below that.  Above about 1 mm it approaches the large-tube value.
-
-    References
-    ----------
-    Pries, A.R., Neuhaus, D., Gaehtgens, P., "Blood viscosity in tube flow:
-    dependence on diameter and hematocrit", Am. J. Physiol. 263 (Heart Circ.
-    Physiol. 32), H1770-H1778, 1992.  doi:10.1152/ajpheart.1992.263.6.H1770
-
-    Examples
-    --------
-    >>> round(pries_1992_relative_viscosity(1e-3, 0.45), 3)
-    3.186
-    """
-    d_m = check_positive("diameter", diameter, "m")
-    h = check_hematocrit(hematocrit)
-    d = d_m * 1e6  # micrometres
-    warn_outside(
-        "pries-1992",
-        "diameter",
-        d_m,
-        label="Pries 1992 in-vitro viscosity law",
-        unit="um",
-        scale=1e6,
-    )
-    mu45 = 220.0 * np.exp(-1.3 * d) + 3.2 - 2.44 * np.exp(-0.06 * d**0.645)
-    s = 1.0 / (1.0 + 1e-11 * d**12)
-    c = (0.8 + np.exp(-0.075 * d)) * (-1.0 + s) + s
-    rel = 1.0 + (mu45 - 1.0) * ((1.0 - h) ** c - 1.0) / ((1.0 - 0.45) ** c - 1.0)
-    return scalar_or_array(rel)
+    return scalar_or_array(blood_rheology(hematocrit, temperature_c, model, medium).viscosity(g))

@@ -165,15 +165,15 @@ def _plasma(temperature_c):
     )
 
 
-def _blood(label, default_hematocrit, typical_note):
+def _blood(label, default_hematocrit, typical_note, medium="plasma"):
     def build(temperature_c, hematocrit=default_hematocrit, model="carreau"):
-        rheology, density, mu_p = blood.blood_properties(hematocrit, temperature_c, model)
+        rheology, density, mu_p = blood.blood_properties(hematocrit, temperature_c, model, medium)
         h_b, t_b = np.broadcast_arrays(
             np.asarray(hematocrit, dtype=float), np.asarray(temperature_c, dtype=float)
         )
         notes = [
-            f"rheology model {model!r}; scaling with hematocrit and temperature is "
-            "anchored at Cho & Kensey 1991 (H 0.45, 37 degC)"
+            f"rheology model {model!r} in {medium}; high shear Pries 1992, shear-thinning "
+            "fitted to Wells & Merrill 1962 (see rheoline validate)"
         ]
         if hematocrit is default_hematocrit:
             notes.append(typical_note)
@@ -184,7 +184,7 @@ def _blood(label, default_hematocrit, typical_note):
             rheology=rheology,
             hematocrit=float(h_b) if h_b.ndim == 0 else h_b,
             plasma_viscosity=mu_p,
-            source="plasma 1.8 x water; Quemada 1978 high shear; Cho & Kensey 1991",
+            source=f"{medium} x Pries 1992 large bore; Cho & Kensey 1991 shape; Wells & Merrill 1962 fit",
             notes=tuple(notes),
         )
 
@@ -259,7 +259,7 @@ FLUID_LIBRARY: dict[str, FluidEntry] = {
             "hematocrit": (0.45, "red-cell volume fraction [-] (typical 0.45)"),
             "model": _MODEL_OPTION,
         },
-        "Quemada 1978, Cho & Kensey 1991, Merrill 1965",
+        "Pries 1992, Cho & Kensey 1991, Wells & Merrill 1962, Merrill 1965",
     ),
     "packed-red-cells": FluidEntry(
         _blood(
@@ -267,6 +267,7 @@ FLUID_LIBRARY: dict[str, FluidEntry] = {
             0.65,
             "hematocrit 0.65 is a typical value for a packed "
             "red-cell unit (units range about 0.55-0.80)",
+            medium="additive-solution",
         ),
         "packed red cells (cold from storage by default)",
         4.0,
@@ -274,7 +275,7 @@ FLUID_LIBRARY: dict[str, FluidEntry] = {
             "hematocrit": (0.65, "red-cell volume fraction [-] (typical 0.65)"),
             "model": _MODEL_OPTION,
         },
-        "as whole blood; suspending medium taken as plasma",
+        "as whole blood, in an additive solution (no aggregation; medium from memory)",
     ),
     "glycerol-water": FluidEntry(
         _glycerol,

@@ -253,11 +253,12 @@ _ENTRIES = (
     ModelEntry(
         "blood-scaling",
         "Hematocrit and temperature scaling of the blood rheology models (this toolkit)",
-        "carries published blood parameters (H 0.45, 37 degC) to other hematocrits and "
-        "temperatures: high shear by Quemada 1978, low shear exponential in hematocrit, "
-        "temperature through the plasma viscosity",
-        "an engineering assumption of this toolkit, anchored at Cho & Kensey 1991 (H 0.45, "
-        "37 degC) and at the plasma viscosity (H = 0)",
+        "blood viscosity at any hematocrit, temperature and medium: high shear = medium x Pries "
+        "1992 at its largest tube, zero shear = high shear x (1 + c H) with c fitted to Wells & "
+        "Merrill 1962, Cho & Kensey 1991 shapes, temperature through the medium's viscosity",
+        "an engineering assumption of this toolkit, anchored at Pries 1992 (high shear), Wells & "
+        "Merrill 1962 (shear-thinning, 37 degC) and the medium's viscosity (H = 0); its measured "
+        "accuracy is in the validation report (rheoline validate)",
         None,
         "hematocrit 0-0.8, 0-42 degC; the red cells' relative viscosity taken as independent "
         "of temperature",
@@ -268,17 +269,15 @@ _ENTRIES = (
     ModelEntry(
         "quemada-1978",
         "Quemada 1978 relative viscosity of a concentrated suspension",
-        "high-shear viscosity of blood vs hematocrit (k fitted to join plasma and Cho & Kensey)",
+        "a concentrated suspension's relative viscosity (a function of the toolkit; the blood "
+        "models anchor at Pries 1992 instead)",
         "Quemada, D., 'Rheology of concentrated disperse systems II. A model for non-Newtonian "
         "shear viscosity in steady flows', Rheol. Acta 17 (1978) 632-642",
         "10.1007/BF01522036",
         "hematocrit 0-0.8 (k H below 2, maximum packing)",
         {"hematocrit": (0.0, 0.8), "temperature_c": (0.0, 42.0)},
         cite="Quemada",
-        used_in=(
-            _M + "blood.quemada_1978_relative_viscosity",
-            _M + "blood.whole_blood_high_shear_viscosity",
-        ),
+        used_in=(_M + "blood.quemada_1978_relative_viscosity",),
     ),
     ModelEntry(
         "cho-kensey-1991",
@@ -293,6 +292,32 @@ _ENTRIES = (
         recalled=True,
         cite="Cho & Kensey",
         used_in=(_M + "blood.blood_rheology",),
+    ),
+    ModelEntry(
+        "wells-merrill-1962",
+        "Zero-shear amplitude of the blood models fitted to Wells & Merrill 1962",
+        "how much blood in plasma thickens at low shear: mu_0 = mu_inf (1 + c H), c per model",
+        "Wells, R.E., Merrill, E.W., 'Influence of flow properties of blood upon "
+        "viscosity-hematocrit relationships', J. Clin. Invest. 41 (1962) 1591-1598; fitted to "
+        "the digitization by H. Mella (2025) packaged in rheoline/validation/data",
+        "10.1172/JCI104617",
+        "fitted at hematocrit 0.33-0.57, 12-124 1/s, 37 degC; extrapolated elsewhere",
+        {"hematocrit": (0.33, 0.57), "shear_rate": (12.0, 124.0)},
+        cite="Wells & Merrill",
+        used_in=(_M + "blood.blood_zero_shear_viscosity",),
+    ),
+    ModelEntry(
+        "additive-solution-medium",
+        "Additive solution of a stored red-cell unit as 1.15 times water",
+        "viscosity of the suspending medium of packed red cells (no red-cell aggregation)",
+        "a saline-adenine-glucose-mannitol additive solution with some residual plasma; the "
+        "ratio 1.15 to water is recalled (from memory), no measured value was found",
+        None,
+        "0-42 degC, following water's temperature dependence (an assumption)",
+        {"temperature_c": (0.0, 42.0)},
+        recalled=True,
+        cite="additive solution",
+        used_in=(_M + "blood.medium_viscosity",),
     ),
     ModelEntry(
         "merrill-1965",
@@ -369,7 +394,10 @@ _ENTRIES = (
         "glass tubes 3.3-1978 um, discharge hematocrit up to about 0.9",
         {"diameter": (3.3e-6, 1978e-6)},
         cite="Pries",
-        used_in=(_M + "blood.pries_1992_relative_viscosity",),
+        used_in=(
+            _M + "blood.pries_1992_relative_viscosity",
+            _M + "blood.whole_blood_high_shear_viscosity",
+        ),
     ),
     ModelEntry(
         "pries-1994",
