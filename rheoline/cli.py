@@ -10,9 +10,10 @@ Commands::
     rheoline fields                                    every scenario-file field, unit and range
     rheoline demo [--out DIR] [--json] [--force] ...   the built-in demo (invented cart review)
     rheoline examples [NAME]                           list the shipped example files, or print one
+    rheoline validate [--out DIR]                      compare the models with packaged measurements
 
 Exit status: 0 on success, 2 on bad input (one line on stderr, no traceback), 1 on an
-internal fault.  Every printed result carries :data:`rheoline.CAUTION`.
+internal fault, 3 when ``validate`` finds a model outside its stated accuracy.  Every printed result carries :data:`rheoline.CAUTION`.
 """
 
 from __future__ import annotations
@@ -27,6 +28,7 @@ from rheoline.errors import RheolineError
 __all__ = ["main", "build_parser"]
 
 EXIT_OK, EXIT_FAULT, EXIT_BAD_INPUT = 0, 1, 2
+EXIT_ACCURACY = 3  # validate: a model outside its stated accuracy
 
 
 class _BadUsage(Exception):
@@ -123,6 +125,21 @@ def build_parser() -> argparse.ArgumentParser:
     )
     ex.add_argument("name", nargs="?", metavar="NAME", help="an example's name")
     ex.set_defaults(func=_cmd_examples)
+
+    val = _command(
+        sub,
+        "validate",
+        help="compare the models with packaged measurements and write a report",
+        description="Predict every packaged measurement (blood, plasma, infusion fluids, "
+        "flows), print each stated accuracy target and write the report to DIR.",
+    )
+    val.add_argument(
+        "--out",
+        default="rheoline-validation",
+        metavar="DIR",
+        help="folder for the report (default: rheoline-validation)",
+    )
+    val.set_defaults(func=_cmd_validate)
     return p
 
 
@@ -267,6 +284,19 @@ def _cmd_parts(args, out):
 
     out.write(_frame_text(parts_table(kind=args.kind)) + "\n" + _caution() + "\n")
     return EXIT_OK
+
+
+def _cmd_validate(args, out):
+    from rheoline.validation import run_validation
+    from rheoline.validation.report import summary_text, write_report
+
+    result = run_validation()
+    try:
+        written = write_report(result, args.out)
+    except OSError as exc:
+        raise RheolineError(f"cannot write the report to {args.out!r}: {exc}") from exc
+    out.write(summary_text(result, written) + "\n")
+    return EXIT_OK if result.passed else EXIT_ACCURACY
 
 
 # --------------------------------------------------------------------------- helpers

@@ -43,6 +43,10 @@ def _commands():
 
 def _plain_invocation(command):
     """The command alone, or with the example file where it needs one."""
+    if command == "validate":  # writes its report: into a scratch folder, not the work tree
+        import tempfile
+
+        return [command, "--out", tempfile.mkdtemp(prefix="rheoline-validate-")]
     try:
         cli.build_parser().parse_args([command])
     except Exception:  # noqa: BLE001 - the parser refuses: it needs FILE

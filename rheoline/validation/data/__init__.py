@@ -1,0 +1,1 @@
+"""Packaged validation data (CSV files and sources.toml)."""

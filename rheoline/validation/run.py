@@ -1,0 +1,299 @@
+"""Run the validation: predict every packaged row, compute statistics, check the targets.
+
+The stated accuracy of the toolkit is :data:`TARGETS`; :func:`run_validation` reports
+each target as met, not met, or without data, and :attr:`ValidationResult.passed` is
+False when any target with data is not met (``rheoline validate`` then exits non-zero).
+"""
+
+from __future__ import annotations
+
+import functools
+import math
+from collections.abc import Callable, Iterable
+from dataclasses import dataclass
+
+from rheoline.validation.datasets import DataSet, Row, load_datasets
+from rheoline.validation.predict import Prediction, predict_row
+from rheoline.validation.stats import ErrorStats, error_stats, group_stats
+
+__all__ = [
+    "Target",
+    "TargetResult",
+    "TARGETS",
+    "ValidationResult",
+    "run_validation",
+    "model_validation",
+]
+
+
+@dataclass(frozen=True)
+class Target:
+    """A stated accuracy: the rows it covers and the largest errors allowed.
+
+    ``selects(row)`` picks the rows (their default predictions); ``ratio`` targets are
+    checked on temperature ratios (the value at a temperature over the value at 37 degC
+    of the same sample), not on absolute values.
+    """
+
+    key: str
+    description: str
+    selects: Callable[[Row], bool]
+    median_limit: float
+    max_limit: float
+    ratio: bool = False
+
+
+def _between(value: float, low: float, high: float) -> bool:
+    return not math.isnan(value) and low <= value <= high
+
+
+def _whole_blood_37(r: Row) -> bool:
+    return (
+        r.quantity == "viscosity"
+        and r.fluid == "whole-blood"
+        and _between(r.hematocrit, 0.2, 0.6)
+        and _between(r.shear_rate, 10.0, 200.0)
+        and _between(r.temperature_c, 36.5, 37.5)
+    )
+
+
+def _blood_cold(r: Row) -> bool:
+    return (
+        r.quantity == "viscosity"
+        and r.fluid in ("whole-blood", "plasma", "packed-red-cells")
+        and _between(r.temperature_c, 4.0, 36.5)
+    )
+
+
+def _rcc(r: Row) -> bool:
+    return r.fluid == "packed-red-cells" and _between(r.hematocrit, 0.55, 0.70)
+
+
+#: The toolkit's stated accuracy, checked on every run.
+TARGETS = (
+    Target(
+        "whole-blood-37c",
+        "whole-blood viscosity, hematocrit 0.2-0.6, shear 10-200 1/s, 37 degC",
+        _whole_blood_37,
+        0.15,
+        0.35,
+    ),
+    Target(
+        "blood-temperature",
+        "temperature dependence of blood and plasma viscosity, 4-37 degC (ratio to 37 degC)",
+        _blood_cold,
+        0.10,
+        0.10,
+        ratio=True,
+    ),
+    Target(
+        "red-cell-concentrate",
+        "stored red-cell concentrate viscosity, hematocrit 0.55-0.70",
+        _rcc,
+        0.30,
+        0.30,
+    ),
+    Target(
+        "plasma",
+        "plasma viscosity",
+        lambda r: r.quantity == "viscosity" and r.fluid == "plasma",
+        0.15,
+        0.15,
+    ),
+    Target(
+        "tube-flow",
+        "flow through a tube of nominal bore (a 5 % bore tolerance alone moves laminar flow by 20 %)",
+        lambda r: r.quantity == "flow" and r.geometry == "tube",
+        0.20,
+        0.25,
+    ),
+)
+
+
+@dataclass(frozen=True)
+class TargetResult:
+    """A target, the statistics of its rows, and ``status``: met, not met or no data."""
+
+    target: Target
+    stats: ErrorStats
+
+    @property
+    def status(self) -> str:
+        s = self.stats
+        if not s.validated:
+            return "no data"
+        ok = (
+            s.median_abs_error <= self.target.median_limit
+            and s.max_abs_error <= self.target.max_limit
+        )
+        return "met" if ok else "not met"
+
+
+@dataclass(frozen=True)
+class ValidationResult:
+    """Everything a validation run computed (results as data; the report renders them).
+
+    Attributes
+    ----------
+    datasets : tuple of DataSet
+    predictions : tuple of Prediction
+        Every prediction of every row (blood rows once per blood model).
+    ratios : tuple of Prediction
+        Temperature ratios (value at t over value at 37 degC of the same sample).
+    targets : tuple of TargetResult
+    by_dataset, by_model, by_family, by_part_kind : dict
+        ``{name: ErrorStats}`` of the counted predictions (default predictions, except
+        ``by_model`` which counts every blood model under its own key).
+    worst : tuple of Prediction
+        The ten counted default predictions furthest from their measurements.
+    """
+
+    datasets: tuple
+    predictions: tuple
+    ratios: tuple
+    targets: tuple
+    by_dataset: dict
+    by_model: dict
+    by_family: dict
+    by_part_kind: dict
+    worst: tuple
+
+    @property
+    def passed(self) -> bool:
+        """False when any target with data is not met."""
+        return all(t.status != "not met" for t in self.targets)
+
+    def row(self, prediction: Prediction) -> Row:
+        """The row a prediction belongs to."""
+        return _row_index(self.datasets)[(prediction.dataset, prediction.row.split("/")[0])]
+
+
+def _row_index(datasets: tuple[DataSet, ...]) -> dict:
+    return {(d.key, r.row): r for d in datasets for r in d.rows}
+
+
+def _temperature_ratios(rows: dict, defaults: list[Prediction]) -> list[Prediction]:
+    """Value at a temperature over the value at 37 degC for the same sample and shear."""
+    by_sample: dict = {}
+    for p in defaults:
+        r = rows[(p.dataset, p.row)]
+        if r.quantity != "viscosity":
+            continue
+        sample = (r.dataset, r.fluid, r.hematocrit, r.shear_rate)
+        by_sample.setdefault(repr(sample), []).append((r, p))
+    out = []
+    for members in by_sample.values():
+        refs = [(r, p) for r, p in members if _between(r.temperature_c, 36.5, 37.5)]
+        if not refs:
+            continue
+        ref_row, ref = refs[0]
+        for r, p in members:
+            if r is ref_row:
+                continue
+            ok = p.predicted_ok and ref.predicted_ok
+            out.append(
+                Prediction(
+                    dataset=p.dataset,
+                    row=f"{r.row}/{ref_row.row}",
+                    variant="default",
+                    default=True,
+                    models=p.models,
+                    measured=r.measured / ref_row.measured,
+                    predicted=p.predicted / ref.predicted if ok else math.nan,
+                    status="ok" if ok else (p.status if p.status != "ok" else ref.status),
+                )
+            )
+    return out
+
+
+def _is_recalled(rows: dict, p: Prediction) -> bool:
+    return any(rows[(p.dataset, part)].recalled for part in p.row.split("/"))
+
+
+def _target_result(t: Target, rows: dict, defaults, ratios) -> TargetResult:
+    pool = ratios if t.ratio else defaults
+    chosen = [p for p in pool if t.selects(rows[(p.dataset, p.row.split("/")[0])])]
+    return TargetResult(t, error_stats(_counted(rows, chosen)))
+
+
+def _counted(rows: dict, predictions: Iterable[Prediction]) -> list[Prediction]:
+    return [p for p in predictions if p.predicted_ok and not _is_recalled(rows, p)]
+
+
+@functools.lru_cache(maxsize=1)
+def _compute() -> ValidationResult:
+    datasets = load_datasets()
+    rows = _row_index(datasets)
+    predictions = tuple(p for d in datasets for r in d.rows for p in predict_row(r))
+    defaults = [p for p in predictions if p.default]
+    ratios = tuple(_temperature_ratios(rows, defaults))
+    counted = _counted(rows, defaults)
+    family = {d.key: d.source.family for d in datasets}
+    return ValidationResult(
+        datasets=datasets,
+        predictions=predictions,
+        ratios=ratios,
+        targets=tuple(_target_result(t, rows, defaults, ratios) for t in TARGETS),
+        by_dataset=group_stats(counted, lambda p: (p.dataset,)),
+        by_model=group_stats(_counted(rows, predictions), lambda p: p.models),
+        by_family=group_stats(counted, lambda p: (family[p.dataset],)),
+        by_part_kind=group_stats(
+            [p for p in counted if rows[(p.dataset, p.row)].quantity == "flow"],
+            lambda p: (rows[(p.dataset, p.row)].geometry,),
+        ),
+        worst=tuple(sorted(counted, key=lambda p: -abs(p.error))[:10]),
+    )
+
+
+def run_validation(out_dir=None) -> ValidationResult:
+    """Predict every packaged row, compute the statistics and check :data:`TARGETS`.
+
+    Parameters
+    ----------
+    out_dir : str or path-like, optional
+        Also write the report there (``validation-report.html``,
+        ``validation-summary.md``, the plots and ``validation-rows.csv``); see
+        :func:`rheoline.validation.report.write_report`.
+
+    Returns
+    -------
+    ValidationResult
+
+    Examples
+    --------
+    >>> result = run_validation()
+    >>> [t.status for t in result.targets if t.target.key == "whole-blood-37c"]
+    ['met']
+    """
+    result = _compute()
+    if out_dir is not None:
+        from rheoline.validation.report import write_report
+
+        write_report(result, out_dir)
+    return result
+
+
+def model_validation(keys: Iterable[str]) -> dict[str, ErrorStats]:
+    """Validation error of the models behind a run: ``{key: ErrorStats}`` for each key.
+
+    Parameters
+    ----------
+    keys : iterable of str
+        Provenance keys (for instance a result's ``models_used``).  Keys no packaged
+        data set checks get ``ErrorStats`` with ``n == 0`` (unvalidated).
+
+    Returns
+    -------
+    dict
+        In the order of ``keys``; each value has ``n``, ``median_abs_error``,
+        ``max_abs_error``, ``median_error`` and ``datasets`` (the data set keys).
+
+    Examples
+    --------
+    >>> stats = model_validation(["blood-carreau", "churchill-1977"])
+    >>> stats["blood-carreau"].datasets[0], stats["churchill-1977"].validated
+    ('wells-merrill-1962', False)
+    """
+    by_model = _compute().by_model
+    empty = ErrorStats(0, math.nan, math.nan, math.nan, ())
+    return {k: by_model.get(k, empty) for k in keys}
