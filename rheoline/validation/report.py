@@ -49,6 +49,8 @@ def _num(v: float) -> str:
 
 
 def _stats_cells(s) -> list:
+    if not s.validated:
+        return ["0", "unvalidated", "-", "-"]
     return [str(s.n), _pct(s.median_abs_error), _pct(s.max_abs_error), _pct(s.median_error)]
 
 
@@ -246,7 +248,7 @@ def report_sections(result: ValidationResult) -> list[Section]:
         _target_section(result),
         _dataset_section(result),
         _model_section(result),
-        _group_section("Per fluid family", result.by_family, "fluid family"),
+        _group_section("Per fluid family (viscosity rows)", result.by_family, "fluid family"),
         _group_section("Per part kind (measured flows)", result.by_part_kind, "part kind"),
         _worst_section(result),
         _gaps_section(result),

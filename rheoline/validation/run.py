@@ -168,6 +168,30 @@ class ValidationResult:
         return _row_index(self.datasets)[(prediction.dataset, prediction.row.split("/")[0])]
 
 
+#: Fluid families of the library; those no packaged measurement covers are reported as such.
+FLUID_FAMILIES = (
+    "whole blood",
+    "red-cell concentrate",
+    "plasma",
+    "water",
+    "crystalloids",
+    "albumin",
+    "colloids",
+)
+
+#: Part kinds of the toolkit; those no packaged flow measurement covers are reported as such.
+PART_KINDS = ("tube", "catheter", "needle", "cannula", "fitting", "administration set")
+
+_EMPTY = ErrorStats(0, math.nan, math.nan, math.nan, ())
+
+
+def _with_empty(stats: dict, names) -> dict:
+    """``stats`` with every name in ``names`` present (unvalidated ones with n == 0)."""
+    out = {name: stats.get(name, _EMPTY) for name in names}
+    out.update(stats)
+    return out
+
+
 def _row_index(datasets: tuple[DataSet, ...]) -> dict:
     return {(d.key, r.row): r for d in datasets for r in d.rows}
 
@@ -236,10 +260,19 @@ def _compute() -> ValidationResult:
         targets=tuple(_target_result(t, rows, defaults, ratios) for t in TARGETS),
         by_dataset=group_stats(counted, lambda p: (p.dataset,)),
         by_model=group_stats(_counted(rows, predictions), lambda p: p.models),
-        by_family=group_stats(counted, lambda p: (family[p.dataset],)),
-        by_part_kind=group_stats(
-            [p for p in counted if rows[(p.dataset, p.row)].quantity == "flow"],
-            lambda p: (rows[(p.dataset, p.row)].geometry,),
+        by_family=_with_empty(
+            group_stats(
+                [p for p in counted if rows[(p.dataset, p.row)].quantity != "flow"],
+                lambda p: (family[p.dataset],),
+            ),
+            dict.fromkeys((*FLUID_FAMILIES, *family.values())),
+        ),
+        by_part_kind=_with_empty(
+            group_stats(
+                [p for p in counted if rows[(p.dataset, p.row)].quantity == "flow"],
+                lambda p: (rows[(p.dataset, p.row)].geometry,),
+            ),
+            PART_KINDS,
         ),
         worst=tuple(sorted(counted, key=lambda p: -abs(p.error))[:10]),
     )
@@ -295,5 +328,4 @@ def model_validation(keys: Iterable[str]) -> dict[str, ErrorStats]:
     ('wells-merrill-1962', False)
     """
     by_model = _compute().by_model
-    empty = ErrorStats(0, math.nan, math.nan, math.nan, ())
-    return {k: by_model.get(k, empty) for k in keys}
+    return {k: by_model.get(k, _EMPTY) for k in keys}
