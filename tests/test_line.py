@@ -230,7 +230,8 @@ def test_fittings_and_measured_parts_in_a_line():
 
 
 def test_blood_line_round_trip_and_flags():
-    blood = rheoline.fluid("whole-blood", hematocrit=0.65, temperature_c=4.0)  # aggregating: shear-thinning
+    # whole blood aggregates, so it is shear-thinning (red cells in additive solution do not)
+    blood = rheoline.fluid("whole-blood", hematocrit=0.65, temperature_c=4.0)
     line = _line()
     result = line.solve(blood, head=np.array([0.5, 1.0, 1.5]))
     assert np.all(np.diff(result.flow) > 0)
