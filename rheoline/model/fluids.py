@@ -17,7 +17,7 @@ Examples
 (1.002, 998.2)
 >>> b = fluid("whole-blood", hematocrit=0.45)
 >>> round(b.viscosity() * 1e3, 2), b.temperature_c
-(3.45, 37.0)
+(3.98, 37.0)
 """
 
 from __future__ import annotations

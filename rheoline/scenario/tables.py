@@ -48,14 +48,15 @@ ASSUMPTIONS = (
         "non-Newtonian flow",
         "Rabinowitsch-Mooney wall-shear integral of the rheology model",
         "Rabinowitsch 1929; Mooney 1931",
-        "blood as Carreau, Casson or Quemada per fluid",
+        "blood as Carreau, Carreau-Yasuda, Casson or power law per fluid",
     ),
     (
         "blood viscosity",
-        "hematocrit and temperature dependence",
-        "Quemada, Rheol. Acta 17 (1978); Cho & Kensey, Biorheology 28 (1991); Pries et al., "
-        "Am. J. Physiol. 263 (1992)",
-        "packed red cells taken as blood at a high hematocrit",
+        "medium x Pries 1992 large-bore viscosity; shear-thinning fitted to Wells & Merrill 1962",
+        "Pries et al., Am. J. Physiol. 263 (1992); Cho & Kensey, Biorheology 28 (1991); Wells & "
+        "Merrill, J. Clin. Invest. 41 (1962)",
+        "packed red cells in an additive solution (medium from memory, no aggregation); "
+        "measured accuracy: rheoline validate",
     ),
     (
         "hemolysis indicator",
