@@ -141,10 +141,10 @@ def test_rows_without_a_library_model_are_listed_not_guessed(result):
 
 
 def test_model_validation_gives_statistics_per_provenance_key(result):
-    stats = model_validation(["blood-carreau", "hagen-poiseuille", "no-such-model"])
-    assert list(stats) == ["blood-carreau", "hagen-poiseuille", "no-such-model"]
-    assert stats["blood-carreau"].n == 20
-    assert stats["blood-carreau"].datasets == ("wells-merrill-1962",)
+    stats = model_validation(["carreau", "hagen-poiseuille", "no-such-model"])
+    assert list(stats) == ["carreau", "hagen-poiseuille", "no-such-model"]
+    assert stats["carreau"].n == 20
+    assert stats["carreau"].datasets == ("wells-merrill-1962",)
     assert stats["hagen-poiseuille"].datasets == ("aguaclara-dosing-tube",)
     assert not stats["no-such-model"].validated and math.isnan(stats["no-such-model"].max_abs_error)
 
@@ -153,7 +153,23 @@ def test_blood_rows_are_predicted_with_every_blood_model():
     row = load_datasets()[0].rows[0]
     variants = [p.variant for p in predict_row(row)]
     assert variants == ["default", "carreau-yasuda", "casson", "power-law", "newtonian"]
-    assert predict_row(row)[0].models == ("blood-carreau",)
+    assert predict_row(row)[0].models == (
+        "blood-scaling",
+        "pries-1992",
+        "carreau",
+        "cho-kensey-1991",
+        "wells-merrill-1962",
+    )
+
+
+def test_every_model_key_is_a_provenance_registry_key(result):
+    from rheoline.model.provenance import REGISTRY
+
+    used = {k for p in result.predictions for k in p.models}
+    assert used and used <= set(REGISTRY)
+    # a non-default blood model is judged under its own keys only (not the shared ones)
+    casson = model_validation(["casson", "merrill-1965", "blood-scaling"])
+    assert casson["casson"].median_abs_error != casson["blood-scaling"].median_abs_error
 
 
 # ------------------------------------------------------------------ the report and command

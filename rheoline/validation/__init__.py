@@ -12,7 +12,7 @@ Every report carries :data:`rheoline.CAUTION`.
 """
 
 from rheoline.validation.datasets import DataSet, Row, Source, load_datasets
-from rheoline.validation.predict import MODEL_KEYS, Prediction, predict_row
+from rheoline.validation.predict import Prediction, predict_row
 from rheoline.validation.run import (
     TARGETS,
     Target,
@@ -28,7 +28,6 @@ __all__ = [
     "Row",
     "Source",
     "load_datasets",
-    "MODEL_KEYS",
     "Prediction",
     "predict_row",
     "TARGETS",

@@ -6,9 +6,9 @@ row's temperature, hematocrit and shear rate; a flow from a line of the row's ge
 under the row's drive.  Blood rows are predicted once per blood rheology model, so the
 report can compare the models; the library's default model is marked ``default``.
 
-Each prediction names the models behind it by stable keys (:data:`MODEL_KEYS`), the
-keys the provenance registry uses, so a review pack can look up the validation error
-of the models a run used (:func:`rheoline.validation.model_validation`).
+Each prediction names the models behind it by their keys in the provenance registry
+(:data:`rheoline.model.provenance.REGISTRY`), so a review pack can look up the
+validation error of the models a run used (:func:`rheoline.validation.model_validation`).
 """
 
 from __future__ import annotations
@@ -21,25 +21,19 @@ import numpy as np
 
 from rheoline.validation.datasets import Row
 
-__all__ = ["Prediction", "MODEL_KEYS", "predict_row", "BLOOD_MODEL_VARIANTS"]
+__all__ = ["Prediction", "VARIANT_KEYS", "predict_row", "BLOOD_MODEL_VARIANTS"]
 
-#: Model keys used in the statistics, with what each computes.  Blood models carry the
-#: whole composite law of :mod:`rheoline.model.blood` (medium x Pries 1992 bulk x
-#: shear-thinning); lines carry the laminar lumen laws they use.
-MODEL_KEYS = {
-    "iapws-2008": "water viscosity (IAPWS 2008)",
-    "laliberte-2007": "electrolyte infusion viscosity (Laliberte 2007)",
-    "dextrose-5-ratio": "5 % dextrose as water x 1.13 (from memory)",
-    "albumin-mooney": "albumin in saline, Mooney form (parameters from memory)",
-    "plasma-water-ratio": "plasma as water x 1.8",
-    "additive-solution-medium": "additive solution of a red-cell unit as water x 1.15 (from memory)",
-    "blood-carreau": "blood: Pries 1992 bulk x Carreau (Cho & Kensey shape, Wells & Merrill fit)",
-    "blood-carreau-yasuda": "blood: Pries 1992 bulk x Carreau-Yasuda (Cho & Kensey, Wells & Merrill)",
-    "blood-casson": "blood: Casson, Merrill yield stress (from memory), Pries 1992 bulk",
-    "blood-power-law": "blood: power law fitted to the Carreau curve over 10-1e4 1/s",
-    "blood-newtonian": "blood: Newtonian at the Pries 1992 bulk viscosity",
-    "hagen-poiseuille": "laminar lumen friction (Hagen-Poiseuille)",
-    "shah-1978": "developing laminar flow in a lumen (Shah 1978)",
+#: Keys (of :data:`rheoline.model.provenance.REGISTRY`) that belong to one blood model
+#: only: a non-default blood prediction counts under these alone, so the keys shared by
+#: every blood model (scaling, Pries 1992, the fit) are judged by the default model.
+VARIANT_KEYS = frozenset({"carreau", "carreau-yasuda", "casson", "merrill-1965", "power-law"})
+
+_BLOOD_MODEL_KEYS = {
+    "carreau": ("carreau", "cho-kensey-1991", "wells-merrill-1962"),
+    "carreau-yasuda": ("carreau-yasuda", "cho-kensey-1991", "wells-merrill-1962"),
+    "casson": ("casson", "merrill-1965"),
+    "power-law": ("power-law", "cho-kensey-1991", "wells-merrill-1962"),
+    "newtonian": (),
 }
 
 #: Blood rheology models predicted for every blood row; the first is the library default.
@@ -49,11 +43,11 @@ _FLUID_KEYS = {
     "water": ("iapws-2008",),
     "saline-0.9": ("laliberte-2007",),
     "lactated-ringers": ("laliberte-2007",),
-    "dextrose-5": ("dextrose-5-ratio",),
+    "dextrose-5": ("dextrose-5-relative",),
     "albumin-5": ("albumin-mooney",),
     "albumin-20": ("albumin-mooney",),
     "albumin-25": ("albumin-mooney",),
-    "plasma": ("plasma-water-ratio",),
+    "plasma": ("plasma-viscosity-ratio",),
 }
 
 #: Part kinds the flow rows may name, and the line laws a laminar lumen of that kind uses.
@@ -75,7 +69,7 @@ class Prediction:
     default : bool
         True for the library's default prediction of the row.
     models : tuple of str
-        Keys of :data:`MODEL_KEYS` behind the prediction.
+        Provenance keys of the models behind the prediction.
     measured, predicted : float
         In the row's unit; ``predicted`` is NaN when the row could not be predicted.
     status : str
@@ -158,7 +152,7 @@ def _needs(row: Row) -> str | None:
 def _keys(row: Row, model: str | None) -> tuple:
     keys = ()
     if row.fluid in _BLOOD:
-        keys = (f"blood-{model}",)
+        keys = ("blood-scaling", "pries-1992", *_BLOOD_MODEL_KEYS[model])
         if row.fluid == "packed-red-cells":
             keys += ("additive-solution-medium",)
     else:

@@ -15,7 +15,6 @@ from html import escape
 from pathlib import Path
 
 from rheoline.validation.plots import scatter_svg
-from rheoline.validation.predict import MODEL_KEYS
 from rheoline.validation.run import ValidationResult
 
 __all__ = ["Section", "report_sections", "render_markdown", "render_html", "write_report"]
@@ -129,32 +128,32 @@ def _dataset_section(result: ValidationResult) -> Section:
 
 
 def _model_section(result: ValidationResult) -> Section:
+    from rheoline.model.provenance import REGISTRY
+
+    def title(key):
+        return REGISTRY[key].title if key in REGISTRY else ""
+
+    stat_head = ["rows", "median abs. error", "max abs. error", "median error"]
     rows = [
-        [key, MODEL_KEYS.get(key, ""), *_stats_cells(s), ", ".join(s.datasets)]
+        [key, title(key), *_stats_cells(s), ", ".join(s.datasets)]
         for key, s in result.by_model.items()
     ]
-    missing = [k for k in MODEL_KEYS if k not in result.by_model]
+    blood = [[name, *_stats_cells(s)] for name, s in result.by_blood_model.items()]
+    missing = [k for k in REGISTRY if k not in result.by_model]
     return Section(
         "Per model",
         [
-            "Every blood row is predicted with each blood model, so the models can be "
-            "compared on the same rows; the library default is 'blood-carreau'.",
-            "Models with no packaged measurement (unvalidated here; several are checked "
-            "against reference implementations in the test suite): " + ", ".join(missing) + ".",
+            "Keys are those of the provenance registry.  A prediction counts under every model "
+            "behind it; the blood models other than the default count under their own keys "
+            "only.  Every blood row is also predicted with each blood model (second table).",
+            "Registry models no packaged measurement checks (unvalidated here; several are "
+            "checked against reference implementations in the test suite): "
+            + ", ".join(missing)
+            + ".",
         ],
         [
-            (
-                [
-                    "model key",
-                    "what",
-                    "rows",
-                    "median abs. error",
-                    "max abs. error",
-                    "median error",
-                    "data sets",
-                ],
-                rows,
-            )
+            (["model key", "title", *stat_head, "data sets"], rows),
+            (["blood model (every blood row)", *stat_head], blood),
         ],
     )
 

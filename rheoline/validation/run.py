@@ -13,7 +13,12 @@ from collections.abc import Callable, Iterable
 from dataclasses import dataclass
 
 from rheoline.validation.datasets import DataSet, Row, load_datasets
-from rheoline.validation.predict import Prediction, predict_row
+from rheoline.validation.predict import (
+    BLOOD_MODEL_VARIANTS,
+    VARIANT_KEYS,
+    Prediction,
+    predict_row,
+)
 from rheoline.validation.stats import ErrorStats, error_stats, group_stats
 
 __all__ = [
@@ -141,9 +146,10 @@ class ValidationResult:
     ratios : tuple of Prediction
         Temperature ratios (value at t over value at 37 degC of the same sample).
     targets : tuple of TargetResult
-    by_dataset, by_model, by_family, by_part_kind : dict
-        ``{name: ErrorStats}`` of the counted predictions (default predictions, except
-        ``by_model`` which counts every blood model under its own key).
+    by_dataset, by_model, by_family, by_part_kind, by_blood_model : dict
+        ``{name: ErrorStats}`` of the counted predictions: default predictions, except
+        ``by_model`` (provenance key -> statistics; a non-default blood model counts under
+        its own keys) and ``by_blood_model`` (each blood model on every blood row).
     worst : tuple of Prediction
         The ten counted default predictions furthest from their measurements.
     """
@@ -156,6 +162,7 @@ class ValidationResult:
     by_model: dict
     by_family: dict
     by_part_kind: dict
+    by_blood_model: dict
     worst: tuple
 
     @property
@@ -190,6 +197,14 @@ def _with_empty(stats: dict, names) -> dict:
     out = {name: stats.get(name, _EMPTY) for name in names}
     out.update(stats)
     return out
+
+
+_BLOODS = ("whole-blood", "packed-red-cells")
+
+
+def _model_keys(p: Prediction) -> tuple:
+    """Keys a prediction counts under: all for a default, a blood model's own for the others."""
+    return p.models if p.default else tuple(k for k in p.models if k in VARIANT_KEYS)
 
 
 def _row_index(datasets: tuple[DataSet, ...]) -> dict:
@@ -259,7 +274,11 @@ def _compute() -> ValidationResult:
         ratios=ratios,
         targets=tuple(_target_result(t, rows, defaults, ratios) for t in TARGETS),
         by_dataset=group_stats(counted, lambda p: (p.dataset,)),
-        by_model=group_stats(_counted(rows, predictions), lambda p: p.models),
+        by_model=group_stats(_counted(rows, predictions), _model_keys),
+        by_blood_model=group_stats(
+            [p for p in _counted(rows, predictions) if rows[(p.dataset, p.row)].fluid in _BLOODS],
+            lambda p: (p.variant if not p.default else f"{BLOOD_MODEL_VARIANTS[0]} (default)",),
+        ),
         by_family=_with_empty(
             group_stats(
                 [p for p in counted if rows[(p.dataset, p.row)].quantity != "flow"],
@@ -323,8 +342,8 @@ def model_validation(keys: Iterable[str]) -> dict[str, ErrorStats]:
 
     Examples
     --------
-    >>> stats = model_validation(["blood-carreau", "churchill-1977"])
-    >>> stats["blood-carreau"].datasets[0], stats["churchill-1977"].validated
+    >>> stats = model_validation(["carreau", "churchill-1977"])
+    >>> stats["carreau"].datasets[0], stats["churchill-1977"].validated
     ('wells-merrill-1962', False)
     """
     by_model = _compute().by_model
