@@ -13,7 +13,8 @@ Commands::
     rheoline validate [--out DIR]                      compare the models with packaged measurements
 
 Exit status: 0 on success, 2 on bad input (one line on stderr, no traceback), 1 on an
-internal fault, 3 when ``validate`` finds a model outside its stated accuracy.  Every printed result carries :data:`rheoline.CAUTION`.
+internal fault, 3 when ``validate`` finds a model outside its stated accuracy.  Every
+printed result carries :data:`rheoline.CAUTION`.
 """
 
 from __future__ import annotations
