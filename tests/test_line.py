@@ -287,14 +287,14 @@ def test_model_import_does_not_load_pandas():
 def test_shared_characteristic_path_equals_newton_path(fluid, monkeypatch):
     # many drives through one line: the tabulated-characteristic path must match the
     # per-scenario Newton path (same physics) within its checked interpolation error
-    import rheoline.model.line as line_module
+    import rheoline.model.line_solvers as solvers_module
 
     heads = np.random.default_rng(3).uniform(0.3, 1.5, 600)
     line = _line()
     fast = line.solve(fluid, head=heads)
     fast_back = line.solve(fluid, flow=fast.flow)
     assert fast.iterations == 0  # the curve path was taken
-    monkeypatch.setattr(line_module, "_CURVE_MIN_SCENARIOS", 10**9)
+    monkeypatch.setattr(solvers_module, "CURVE_MIN_SCENARIOS", 10**9)
     slow = line.solve(fluid, head=heads)
     slow_back = line.solve(fluid, flow=fast.flow)
     assert slow.iterations > 0

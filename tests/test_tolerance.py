@@ -71,7 +71,7 @@ def test_bad_tolerance_input():
         flow_tolerance(
             line, rheoline.fluid("water", temperature_c=22.0), head=1.0, hematocrit_tolerance=0.02
         )
-    with pytest.raises(InputRangeError, match="needs fluid_builder for the user fluid"):
+    with pytest.raises(InputRangeError, match="needs fluid_builder for the fluid 'bench oil'"):
         flow_tolerance(
             line, newtonian_fluid("bench oil", 0.05, 870.0), head=1.0, temperature_tolerance=1.0
         )
@@ -139,14 +139,20 @@ def test_default_builder_keeps_the_library_options(name, options):
 
 
 def test_default_builder_refuses_a_fluid_it_cannot_reproduce():
+    import dataclasses
+
     line = Line([Catheter(gauge=20)])
     thick = scale_viscosity(rheoline.fluid("water", temperature_c=22.0), 2.0)
-    with pytest.raises(
-        InputRangeError,
-        match=r"'water' rebuilt .* does not reproduce the fluid "
-        r"given .*fluid_builder",
-    ):
+    assert thick.recipe is None  # scaled: the library recipe no longer describes it
+    with pytest.raises(InputRangeError, match=r"'water' .*has no recipe") as info:
         flow_tolerance(line, thick, head=1.0, temperature_tolerance=1.0)
+    assert info.value.field == "fluid_builder"
+    # changed after it was built, keeping a recipe that no longer describes it
+    heavy = dataclasses.replace(rheoline.fluid("water", temperature_c=22.0), density=1500.0)
+    with pytest.raises(
+        InputRangeError, match=r"'water' rebuilt from its recipe .* does not reproduce"
+    ):
+        flow_tolerance(line, heavy, head=1.0, temperature_tolerance=1.0)
     # with its own builder it runs
     band = flow_tolerance(
         line,

@@ -26,6 +26,7 @@ import numpy as np
 from rheoline.errors import InputRangeError
 from rheoline.model.line import Line
 from rheoline.model.parts import Lumen
+from rheoline.model.provenance import merge_models
 from rheoline.model.validation import check_finite
 
 __all__ = ["CURVE_VARIABLES", "CurveSet", "flow_curves"]
@@ -54,12 +55,15 @@ class CurveSet:
         {line label: ndarray of flows [m^3/s]}.
     regimes : dict
         {line label: ndarray of the worst-part regime}.
+    models_used : tuple of str
+        Provenance keys of the models every curve rests on, in first-use order.
     """
 
     over: str
     values: np.ndarray
     flows: dict
     regimes: dict
+    models_used: tuple = ()
 
     @cached_property
     def table(self):
@@ -133,8 +137,8 @@ def flow_curves(
     head, source_pressure, back_pressure : float
         The fixed drive.
     fluid_builder : callable, optional
-        ``fluid_builder(temperature_c=..., hematocrit=...)``; default the library fluid of the
-        same name.
+        ``fluid_builder(temperature_c=..., hematocrit=...)``; default :meth:`Fluid.at`, the
+        fluid built again from its recipe (its library name and options).
 
     Returns
     -------
@@ -159,13 +163,8 @@ def flow_curves(
         if fluid.hematocrit is not None:
             kwargs["hematocrit"] = np.asarray(fluid.hematocrit) * np.ones_like(x)
         kwargs[over] = x
-        if fluid_builder is None:
-            from rheoline.model import fluids
-
-            the_fluid = fluids.fluid(fluid.name, **kwargs)
-        else:
-            the_fluid = fluid_builder(**kwargs)
-    flows, regimes = {}, {}
+        the_fluid = (fluid.at if fluid_builder is None else fluid_builder)(**kwargs)
+    flows, regimes, models = {}, {}, ()
     for label, line in labelled.items():
         solved_line = line
         if over == "inner_diameter":
@@ -174,4 +173,5 @@ def flow_curves(
         result = solved_line.solve(the_fluid, **drive)
         flows[label] = np.broadcast_to(np.asarray(result.flow, dtype=float), x.shape).copy()
         regimes[label] = np.broadcast_to(np.asarray(result.regime), x.shape).copy()
-    return CurveSet(over=over, values=x, flows=flows, regimes=regimes)
+        models = merge_models(models, result.models_used)
+    return CurveSet(over=over, values=x, flows=flows, regimes=regimes, models_used=models)

@@ -30,7 +30,11 @@ from dataclasses import dataclass
 import numpy as np
 
 from rheoline.errors import InputRangeError
+from rheoline.model.conditions import count_words
 from rheoline.model.line import Line, _check_line
+from rheoline.model.line_solvers import MIN_DRIVE as _MIN_DRIVE
+from rheoline.model.line_solvers import yield_drop as _yield_drop
+from rheoline.model.provenance import merge_models
 from rheoline.model.validation import check_finite, check_nonnegative, check_positive
 
 __all__ = [
@@ -49,8 +53,6 @@ _PANELS = (1, 2, 4, 8, 16)
 _REFINE_RTOL = 1e-6
 #: Estimated relative error above which a result is flagged (accuracy not assured).
 _FLAG_RTOL = 1e-3
-#: Net drives [Pa] at or below this are "no drive" (as in :mod:`rheoline.model.line`).
-_MIN_DRIVE = 1e-150
 
 
 @dataclass(frozen=True)
@@ -75,6 +77,11 @@ class DeliveryResult:
         Validity notes in words; says where the accuracy is not assured (an estimated
         error above 0.1 %, usually a drive ending a tiny fraction of its start or just
         above a yield-stress fluid's yield pressure).
+    models_used : tuple of str
+        Provenance keys of the models of every line solve of the delivery (the fluid's and
+        the line's), in first-use order.
+    outside_range : bool or ndarray of bool
+        Per scenario: a solve of the delivery used a correlation outside its range.
     """
 
     time: float | np.ndarray
@@ -84,6 +91,8 @@ class DeliveryResult:
     method: str
     relative_error: float | np.ndarray = 0.0
     flags: tuple = ()
+    models_used: tuple = ()
+    outside_range: bool | np.ndarray = False
 
 
 def _out(arr):
@@ -96,14 +105,31 @@ def _stopped_flag(stopped):
     if not np.any(stopped):
         return []
     return [
-        f"the flow stops before the volume is delivered{_count(stopped)} (the drive falls "
+        f"the flow stops before the volume is delivered{count_words(stopped)} (the drive falls "
         "to the back pressure, or to a yield-stress fluid's yield pressure): time is inf"
     ]
 
 
-def _count(mask):
-    mask = np.asarray(mask)
-    return "" if mask.size == 1 else f" in {int(np.count_nonzero(mask))} of {mask.size} scenarios"
+class _Solves:
+    """What the line solves of one delivery rested on: their models and range conditions."""
+
+    def __init__(self, shape):
+        self.models = ()
+        self.outside = np.zeros(shape, dtype=bool)
+
+    def add(self, result, shape):
+        self.models = merge_models(self.models, result.models_used)
+        outside = np.asarray(result.conditions["outside_range"])
+        full = np.broadcast_to(outside, np.broadcast_shapes(outside.shape, shape))
+        lead = tuple(range(full.ndim - len(shape)))
+        self.outside = self.outside | full.any(axis=lead)
+
+    @staticmethod
+    def as_output(mask):
+        return bool(mask) if mask.ndim == 0 else mask
+
+    def fields(self):
+        return {"models_used": self.models, "outside_range": self.as_output(self.outside)}
 
 
 def _composite_nodes(panels):
@@ -149,7 +175,7 @@ def _volume_quadrature(line, fluid, volume, head_of, pressure_of, back_pressure,
         pries_correction,
     )
     shape = layout.shape
-    yield_drop = line._yield_drop(layout, fluid)
+    yield_drop = _yield_drop(layout, fluid)
     e0 = Line._drive(fluid, head_of(1.0), pressure_of(1.0), back_pressure) - yield_drop
     e1 = Line._drive(fluid, head_of(0.0), pressure_of(0.0), back_pressure) - yield_drop
     e0, e1 = e0 * np.ones(shape), e1 * np.ones(shape)
@@ -159,6 +185,7 @@ def _volume_quadrature(line, fluid, volume, head_of, pressure_of, back_pressure,
     safe_l = np.where(flat, 1.0, log_ratio)
     grow = np.where(flat, 1.0, safe_l / np.expm1(safe_l))
     axes = (1,) * len(shape)
+    solves = _Solves(shape)
 
     def solve_at(nodes):
         s = np.asarray(nodes, dtype=float).reshape((-1, *axes))
@@ -176,6 +203,7 @@ def _volume_quadrature(line, fluid, volume, head_of, pressure_of, back_pressure,
             back_pressure=back_pressure,
             pries_correction=pries_correction,
         )
+        solves.add(res, shape)
         return np.broadcast_to(np.asarray(res.flow, dtype=float), (s.shape[0], *shape)), jac
 
     def rule(flows, jac, weights):
@@ -213,7 +241,7 @@ def _volume_quadrature(line, fluid, volume, head_of, pressure_of, back_pressure,
         )
         above = " above the yield pressure" if np.any(yield_drop > 0) else ""
         flags.append(
-            f"delivery time accuracy not assured{_count(doubtful)} (estimated relative error up "
+            f"delivery time accuracy not assured{count_words(doubtful)} (estimated relative error up "
             f"to {float(np.max(error)):.1e}; the final drive{above} is as little as "
             f"{float(np.min(ratio)):.1e} of the initial one): treat the time as approximate"
         )
@@ -225,6 +253,7 @@ def _volume_quadrature(line, fluid, volume, head_of, pressure_of, back_pressure,
         method="quadrature",
         relative_error=_out(error),
         flags=tuple(flags),
+        **solves.fields(),
     )
 
 
@@ -409,6 +438,8 @@ def _time_decay(line, fluid, volume, p_full, tau, h_full, h_empty, back_pressure
         for a in (volume, p_full, tau, h_full, h_empty)
     )
 
+    solves = _Solves(vol.shape)
+
     def flow(t, frac):
         res = line.solve(
             fluid,
@@ -417,6 +448,7 @@ def _time_decay(line, fluid, volume, p_full, tau, h_full, h_empty, back_pressure
             back_pressure=back_pressure,
             pries_correction=pries,
         )
+        solves.add(res, vol.shape)
         return np.broadcast_to(np.asarray(res.flow, dtype=float), vol.shape)
 
     q0 = flow(np.zeros_like(vol), 0.0)
@@ -454,4 +486,6 @@ def _time_decay(line, fluid, volume, p_full, tau, h_full, h_empty, back_pressure
                 else [f"solve_ivp did not finish ({sol.message}): time set to inf"]
             )
         ),
+        models_used=solves.models,
+        outside_range=_Solves.as_output(solves.outside.reshape(shape)),
     )

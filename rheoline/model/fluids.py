@@ -10,6 +10,11 @@ it, so no list goes stale.  A user's own fluid joins the same dict through
 Temperatures and hematocrits may be numpy arrays: the returned fluid's density
 and rheology parameters then broadcast (one entry per scenario).
 
+Every fluid :func:`fluid` returns records its recipe (``Fluid.recipe``, so that
+``Fluid.at(temperature_c=..., hematocrit=...)`` rebuilds it), the provenance keys of
+its property models (``Fluid.models_used``) and, per scenario, whether one of them was
+used outside its validated range (``Fluid.outside_range``).
+
 Examples
 --------
 >>> w = fluid("water", temperature_c=20.0)
@@ -18,6 +23,8 @@ Examples
 >>> b = fluid("whole-blood", hematocrit=0.45)
 >>> round(b.viscosity() * 1e3, 2), b.temperature_c
 (3.98, 37.0)
+>>> w.models_used
+('iapws-2008', 'kell-1975')
 """
 
 from __future__ import annotations
@@ -25,14 +32,25 @@ from __future__ import annotations
 import difflib
 import warnings
 from collections.abc import Callable
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
 
 import numpy as np
 
-from rheoline.errors import InputRangeError
+from rheoline.errors import InputRangeError, RangeWarning
 from rheoline.model import blood, viscosity
-from rheoline.model.fluid_base import Fluid
-from rheoline.model.rheology import Newtonian
+from rheoline.model.fitting import TEMPERATURE_MODEL_KEYS
+from rheoline.model.fluid_base import Fluid, FluidRecipe
+from rheoline.model.fluid_builders import (
+    albumin_builder,
+    blood_builder,
+    build_dextrose,
+    build_glycerol,
+    build_plasma,
+    build_ringers,
+    build_saline,
+    build_water,
+    newtonian_liquid,
+)
 from rheoline.model.validation import check_positive
 
 __all__ = [
@@ -75,184 +93,60 @@ class FluidEntry:
     user: bool = False
 
 
-def _t(temperature_c):
-    t = viscosity.check_temperature_c(temperature_c)
-    return float(t) if t.ndim == 0 else t
-
-
-def _newtonian(name, t, mu, rho, source, notes=()):
-    return Fluid(
-        name=name,
-        temperature_c=_t(t),
-        density=rho,
-        rheology=Newtonian(mu),
-        source=source,
-        notes=tuple(notes),
-    )
-
-
-def _water(temperature_c):
-    return _newtonian(
-        "water",
-        temperature_c,
-        viscosity.water_viscosity(temperature_c),
-        viscosity.water_density(temperature_c),
-        "viscosity IAPWS 2008 (Huber et al. 2009); density Kell 1975",
-    )
-
-
-def _saline(temperature_c):
-    return _newtonian(
-        "saline-0.9",
-        temperature_c,
-        viscosity.saline_viscosity(temperature_c),
-        viscosity.saline_density(temperature_c),
-        "9 g/L NaCl; Laliberte 2007 viscosity, Laliberte & Cooper 2004 density",
-    )
-
-
-def _ringers(temperature_c):
-    return _newtonian(
-        "lactated-ringers",
-        temperature_c,
-        viscosity.lactated_ringers_viscosity(temperature_c),
-        viscosity.lactated_ringers_density(temperature_c),
-        "Laliberte 2007 / Laliberte & Cooper 2004 mixture of NaCl, KCl, CaCl2",
-        ("recipe from memory; sodium lactate counted as NaCl of equal sodium",),
-    )
-
-
-def _dextrose(temperature_c):
-    return _newtonian(
-        "dextrose-5",
-        temperature_c,
-        viscosity.dextrose_5_viscosity(temperature_c),
-        viscosity.dextrose_5_density(temperature_c),
-        "water (IAPWS 2008) x relative viscosity 1.13; density 1017 kg/m^3 at 20 degC",
-        ("relative viscosity and density from memory",),
-    )
-
-
-def _albumin(default_concentration, label):
-    def build(temperature_c, concentration=default_concentration):
-        return _newtonian(
-            label,
-            temperature_c,
-            viscosity.albumin_viscosity(concentration, temperature_c),
-            viscosity.albumin_density(concentration, temperature_c),
-            "saline (Laliberte 2007) x Mooney relative viscosity of albumin",
-            (
-                "albumin intrinsic viscosity and crowding coefficient from memory; "
-                "an estimate within perhaps 15 %",
-            ),
-        )
-
-    return build
-
-
-def _plasma(temperature_c):
-    t = np.asarray(temperature_c, dtype=float)
-    mu = blood.plasma_viscosity(t)
-    return Fluid(
-        name="plasma",
-        temperature_c=_t(t),
-        density=blood.plasma_density(t),
-        rheology=Newtonian(mu),
-        hematocrit=None,
-        plasma_viscosity=mu,
-        source="1.8 x water viscosity (IAPWS 2008); 1025 kg/m^3 at 37 degC",
-        notes=("plasma-to-water ratio and density are typical values",),
-    )
-
-
-def _blood(label, default_hematocrit, typical_note, medium="plasma"):
-    def build(temperature_c, hematocrit=default_hematocrit, model="carreau"):
-        rheology, density, mu_p = blood.blood_properties(hematocrit, temperature_c, model, medium)
-        h_b, t_b = np.broadcast_arrays(
-            np.asarray(hematocrit, dtype=float), np.asarray(temperature_c, dtype=float)
-        )
-        notes = [
-            f"rheology model {model!r} in {medium}; high shear Pries 1992, shear-thinning "
-            "fitted to Wells & Merrill 1962 (see rheoline validate)"
-        ]
-        if hematocrit is default_hematocrit:
-            notes.append(typical_note)
-        return Fluid(
-            name=label,
-            temperature_c=_t(t_b),
-            density=density,
-            rheology=rheology,
-            hematocrit=float(h_b) if h_b.ndim == 0 else h_b,
-            plasma_viscosity=mu_p,
-            source=f"{medium} x Pries 1992 large bore; Cho & Kensey 1991 shape; Wells & Merrill 1962 fit",
-            notes=tuple(notes),
-        )
-
-    return build
-
-
-def _glycerol(temperature_c, mass_fraction=None, target_viscosity=None):
-    if (mass_fraction is None) == (target_viscosity is None):
-        raise InputRangeError(
-            "glycerol-water needs exactly one of mass_fraction= (glycerol mass fraction, "
-            "e.g. 0.4) or target_viscosity= (Pa s, e.g. 3.5e-3)"
-        )
-    if mass_fraction is None:
-        mass_fraction = viscosity.glycerol_fraction_for_viscosity(target_viscosity, temperature_c)
-    w = np.asarray(mass_fraction, dtype=float)
-    mu = viscosity.glycerol_water_viscosity(w, temperature_c)
-    rho = viscosity.glycerol_water_density(w, temperature_c)
-    label = "glycerol-water"
-    notes = (f"glycerol mass fraction {np.round(w, 4).tolist()}",)
-    return _newtonian(
-        label, temperature_c, mu, rho, "Cheng 2008 viscosity; Volk & Kaehler 2018 density", notes
-    )
-
-
 _MODEL_OPTION = ("carreau", "blood rheology model: " + ", ".join(blood.BLOOD_RHEOLOGY_MODELS))
 
 #: The library: name -> entry.  Every list of fluids (names, errors, docs) reads this dict.
 FLUID_LIBRARY: dict[str, FluidEntry] = {
-    "water": FluidEntry(_water, "pure water", 20.0, {}, "IAPWS 2008 viscosity, Kell 1975 density"),
+    "water": FluidEntry(
+        build_water, "pure water", 20.0, {}, "IAPWS 2008 viscosity, Kell 1975 density"
+    ),
     "saline-0.9": FluidEntry(
-        _saline,
+        build_saline,
         "0.9 % sodium chloride (9 g/L)",
         20.0,
         {},
         "Laliberte 2007; Laliberte & Cooper 2004",
     ),
     "dextrose-5": FluidEntry(
-        _dextrose, "5 % dextrose in water", 20.0, {}, "relative viscosity to water, from memory"
+        build_dextrose,
+        "5 % dextrose in water",
+        20.0,
+        {},
+        "relative viscosity to water, from memory",
     ),
     "lactated-ringers": FluidEntry(
-        _ringers, "lactated Ringer's (Hartmann's) solution", 20.0, {}, "Laliberte 2007 mixture rule"
+        build_ringers,
+        "lactated Ringer's (Hartmann's) solution",
+        20.0,
+        {},
+        "Laliberte 2007 mixture rule",
     ),
     "plasma": FluidEntry(
-        _plasma, "blood plasma (Newtonian)", 37.0, {}, "1.8 x water, common practice"
+        build_plasma, "blood plasma (Newtonian)", 37.0, {}, "1.8 x water, common practice"
     ),
     "albumin-5": FluidEntry(
-        _albumin(50.0, "albumin-5"),
+        albumin_builder(50.0, "albumin-5"),
         "5 % human albumin in saline",
         20.0,
         {"concentration": (50.0, "albumin [kg/m^3]")},
         "Mooney form, parameters from memory",
     ),
     "albumin-20": FluidEntry(
-        _albumin(200.0, "albumin-20"),
+        albumin_builder(200.0, "albumin-20"),
         "20 % human albumin",
         20.0,
         {"concentration": (200.0, "albumin [kg/m^3]; 250 for a 25 % solution")},
         "Mooney form, parameters from memory",
     ),
     "albumin-25": FluidEntry(
-        _albumin(250.0, "albumin-25"),
+        albumin_builder(250.0, "albumin-25"),
         "25 % human albumin",
         20.0,
         {"concentration": (250.0, "albumin [kg/m^3]")},
         "Mooney form, parameters from memory",
     ),
     "whole-blood": FluidEntry(
-        _blood("whole-blood", 0.45, "hematocrit 0.45 is a typical value"),
+        blood_builder("whole-blood", 0.45, "hematocrit 0.45 is a typical value"),
         "whole blood (shear-thinning)",
         37.0,
         {
@@ -262,7 +156,7 @@ FLUID_LIBRARY: dict[str, FluidEntry] = {
         "Pries 1992, Cho & Kensey 1991, Wells & Merrill 1962, Merrill 1965",
     ),
     "packed-red-cells": FluidEntry(
-        _blood(
+        blood_builder(
             "packed-red-cells",
             0.65,
             "hematocrit 0.65 is a typical value for a packed "
@@ -278,7 +172,7 @@ FLUID_LIBRARY: dict[str, FluidEntry] = {
         "as whole blood, in an additive solution (no aggregation; medium from memory)",
     ),
     "glycerol-water": FluidEntry(
-        _glycerol,
+        build_glycerol,
         "glycerol-water bench analog",
         20.0,
         {
@@ -315,7 +209,9 @@ def _entry(name) -> tuple[str, FluidEntry]:
     hint = f"; did you mean {' or '.join(repr(n) for n in near)}?" if near else ""
     raise InputRangeError(
         f"fluid {name!r} is not in the library{hint} Known fluids: {', '.join(FLUID_LIBRARY)}. "
-        "Register your own with register_fluid() or user_fluid_from_temperatures()."
+        "Register your own with register_fluid() or user_fluid_from_temperatures().",
+        field="name",
+        value=name,
     )
 
 
@@ -368,20 +264,54 @@ def fluid(name: str, temperature_c=None, **options) -> Fluid:
         near = difflib.get_close_matches(unknown[0], list(entry.options), n=1)
         hint = f"; did you mean {near[0]!r}?" if near else ""
         raise InputRangeError(
-            f"fluid {key!r} has no option {unknown[0]!r}{hint} (options: {allowed})"
+            f"fluid {key!r} has no option {unknown[0]!r}{hint} (options: {allowed})",
+            field=unknown[0],
+            value=options[unknown[0]],
         )
     t = entry.default_temperature_c if temperature_c is None else temperature_c
-    # the property functions each check their range; pass each distinct warning on once
+    return _build(key, entry.builder, t, options, stacklevel=3)
+
+
+def _shape(made):
+    values = (made.density, made.temperature_c, made.hematocrit, made.plasma_viscosity)
+    shapes = [np.shape(v) for v in values if v is not None]
+    return np.broadcast_shapes(*shapes, np.shape(made.rheology.viscosity(1.0)))
+
+
+def _outside(made, caught):
+    """Per scenario: did a property model warn that it was outside its range?"""
+    shape = _shape(made)
+    mask = np.zeros(shape, dtype=bool)
+    for w in caught:
+        if not isinstance(w.message, RangeWarning):
+            continue
+        hit = np.asarray(getattr(w.message, "outside", True), dtype=bool)
+        try:
+            mask = mask | np.broadcast_to(hit, shape)
+        except ValueError:  # a mask of another shape: count it for every scenario
+            mask = mask | bool(np.any(hit))
+    return bool(mask) if mask.ndim == 0 else mask
+
+
+def _build(name, builder, temperature_c, options, stacklevel=2):
+    """``builder(temperature_c, **options)`` with its recipe, range mask and warnings.
+
+    The property functions each check their range; each distinct warning is passed on
+    once, and the values they found outside their range become ``outside_range``.
+    """
     with warnings.catch_warnings(record=True) as caught:
         warnings.simplefilter("always")
-        result = entry.builder(t, **options)
+        made = builder(temperature_c, **options)
     seen = set()
     for w in caught:
         key = (w.category, str(w.message))
         if key not in seen:
             seen.add(key)
-            warnings.warn(w.message, stacklevel=2)
-    return result
+            warnings.warn(w.message, stacklevel=stacklevel + 1)
+    recipe = made.recipe or FluidRecipe(name, temperature_c, options)
+    if made.recipe is None and name not in FLUID_LIBRARY:
+        recipe = FluidRecipe(name, temperature_c, options, builder=builder)
+    return replace(made, recipe=recipe, outside_range=_outside(made, caught))
 
 
 if fluid.__doc__:
@@ -540,14 +470,16 @@ def user_fluid_from_temperatures(
 
     def build(temperature_c):
         t = np.asarray(viscosity.check_temperature_c(temperature_c))
-        return _newtonian(
+        made = newtonian_liquid(
             label,
             t,
             fit.viscosity(t),
             np.polyval(coeffs, t),
             source,
             (f"fitted to {temps.size} measured viscosities",),
+            models=(TEMPERATURE_MODEL_KEYS[fit.model],),
         )
+        return replace(made, recipe=FluidRecipe(label, made.temperature_c, {}, builder=build))
 
     if register:
         register_fluid(
@@ -559,4 +491,4 @@ def user_fluid_from_temperatures(
             overwrite=overwrite,
         )
     t_eval = float(np.mean(fit.temperature_range_c)) if temperature_c is None else temperature_c
-    return build(t_eval)
+    return _build(label, build, t_eval, {})

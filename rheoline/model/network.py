@@ -123,6 +123,11 @@ class NetworkSolution:
     resistance_share: np.ndarray
     boundary_inflow: dict = field(default_factory=dict)
 
+    @property
+    def models_used(self) -> tuple:
+        """Provenance keys of the solve: Kirchhoff's laws on the segment resistances."""
+        return ("kirchhoff-1847",)
+
     def pressure(self, node) -> float:
         """Pressure [Pa] at ``node``."""
         try:

@@ -308,6 +308,21 @@ class StenosedVessel:
         throat_diameter(self.vessel.diameter, self.reduction_percent, self.kind)
 
     @property
+    def models_used(self) -> tuple:
+        """Provenance keys of the models applied: the vessel's, then Young & Tsai 1973.
+
+        Examples
+        --------
+        >>> v = Vessel(radius=2e-3, length=0.05, viscosity_law="newtonian", viscosity=3.5e-3)
+        >>> StenosedVessel(v, 50.0, viscous_model="seeley-young-1976").models_used
+        ('hagen-poiseuille', 'young-tsai-1973', 'seeley-young-1976')
+        """
+        own = ("young-tsai-1973",)
+        if self.viscous_model == "seeley-young-1976":
+            own += ("seeley-young-1976",)
+        return (*self.vessel.models_used, *own)
+
+    @property
     def throat_diameter(self):
         """Throat diameter D_1 [m]."""
         return throat_diameter(self.vessel.diameter, self.reduction_percent, self.kind)

@@ -29,6 +29,7 @@ import numpy as np
 from rheoline.errors import InputRangeError
 from rheoline.model.line import Line, _check_line
 from rheoline.model.parts import Lumen
+from rheoline.model.provenance import merge_models
 from rheoline.model.validation import check_nonnegative
 
 __all__ = ["ToleranceResult", "flow_tolerance", "scale_viscosity"]
@@ -45,6 +46,8 @@ _VISCOSITY_FIELDS = {
 
 def scale_viscosity(fluid, factor):
     """The fluid with every viscosity (and a Casson yield stress) multiplied by ``factor``.
+
+    The result has no recipe (``Fluid.at`` would rebuild the unscaled fluid).
 
     Examples
     --------
@@ -64,7 +67,8 @@ def scale_viscosity(fluid, factor):
     changes = {n: getattr(rheo, n) * factor for n in names if n in known}
     new_rheo = replace(rheo, **changes)
     plasma = None if fluid.plasma_viscosity is None else fluid.plasma_viscosity * factor
-    return replace(fluid, rheology=new_rheo, plasma_viscosity=plasma)
+    # no recipe: the library fluid it came from is no longer what it is
+    return replace(fluid, rheology=new_rheo, plasma_viscosity=plasma, recipe=None)
 
 
 @dataclass(frozen=True)
@@ -96,6 +100,11 @@ class ToleranceResult:
         (p95 - p5) / (2 * nominal) where those percentiles were requested, else the
         standard deviation over the nominal.
     seed : int
+    models_used : tuple of str
+        Provenance keys of the models the band rests on (the line's and fluid's, and
+        ``"saltelli-2008"`` for the variance shares).
+    outside_range : bool or ndarray of bool
+        Per scenario: the nominal solve or a sample used a correlation outside its range.
     """
 
     quantity: str
@@ -107,12 +116,8 @@ class ToleranceResult:
     dominant_part: str | None | np.ndarray
     relative_spread: float | np.ndarray
     seed: int
-
-
-def _draw(rng, tolerance, n, distribution):
-    if distribution == "uniform":
-        return rng.uniform(-1.0, 1.0, n) * tolerance
-    return rng.normal(0.0, 0.5, n) * tolerance
+    models_used: tuple = ()
+    outside_range: bool | np.ndarray = False
 
 
 def _out(value):
@@ -152,18 +157,17 @@ def flow_tolerance(
     diameter_tolerance, length_tolerance : float or dict
         Relative half-width for every lumen, or ``{part name or index: tolerance}``.
     temperature_tolerance : float
-        Half-width [degC]; needs ``fluid_builder`` unless the fluid is a library fluid.
+        Half-width [degC]; needs ``fluid_builder`` unless the fluid has a recipe
+        (``Fluid.recipe``, set by :func:`rheoline.fluid`).
     hematocrit_tolerance : float
         Half-width [-] (absolute, e.g. 0.03); same requirement.
     viscosity_tolerance : float
         Relative half-width of every viscosity of the fluid model.
     fluid_builder : callable, optional
         ``fluid_builder(temperature_c=..., hematocrit=...)`` -> Fluid for arrays of samples
-        (``hematocrit`` only for a blood fluid).  Default: the library fluid of the same
-        name rebuilt with the options the nominal fluid was made with (the blood rheology
-        ``model`` from its rheology, a glycerol ``mass_fraction`` or an albumin
-        ``concentration`` inverted from its viscosity), checked to reproduce the nominal
-        fluid; where it cannot, an error asks for ``fluid_builder``.
+        (``hematocrit`` only for a blood fluid).  Default: :meth:`Fluid.at`, which builds
+        the fluid again from its recipe (library name and options), checked to reproduce
+        the nominal fluid; where it cannot, an error asks for ``fluid_builder``.
     n_samples : int
     seed : int
         Seed of numpy's default generator (the same seed gives the same band).
@@ -187,6 +191,8 @@ def flow_tolerance(
     ...                        n_samples=2000)
     >>> heads.samples.shape, heads.dominant_input.tolist()
     ((2000, 2), ['inner_diameter of 22G catheter', 'inner_diameter of 22G catheter'])
+    >>> band.models_used[-1], band.outside_range
+    ('saltelli-2008', False)
     """
     shape = _check_line(
         line,
@@ -198,67 +204,21 @@ def flow_tolerance(
     )
     if distribution not in ("uniform", "normal"):
         raise InputRangeError(
-            f"distribution {distribution!r} is not known; choose 'uniform' or 'normal'"
+            f"distribution {distribution!r} is not known; choose 'uniform' or 'normal'",
+            field="distribution",
+            value=distribution,
         )
     n = int(n_samples)
     if n < 10:
-        raise InputRangeError(f"n_samples must be at least 10, got {n_samples!r}")
-    rng = np.random.default_rng(seed)
-    axis = (n,) + (1,) * len(shape)  # a sample axis in front of the scenario axes
-    inputs = {}  # label -> sampled deviation, shape (n,)
-    owners = {}  # label -> part name or None
-    new_parts = []
-    for i, part in enumerate(line.parts):
-        name = line.part_names[i]
-        if not isinstance(part, Lumen):
-            new_parts.append(part)
-            continue
-        d_tol = _tolerance_for(diameter_tolerance, i, name, "diameter_tolerance")
-        l_tol = _tolerance_for(length_tolerance, i, name, "length_tolerance")
-        d = np.asarray(part.inner_diameter, dtype=float)
-        length = np.asarray(part.length, dtype=float)
-        if d_tol > 0:
-            dev = _draw(rng, d_tol, n, distribution)
-            label = f"inner_diameter of {name}"
-            inputs[label], owners[label] = np.log1p(dev), name
-            d = d * (1.0 + dev.reshape(axis))
-        if l_tol > 0:
-            dev = _draw(rng, l_tol, n, distribution)
-            label = f"length of {name}"
-            inputs[label], owners[label] = np.log1p(dev), name
-            length = length * (1.0 + dev.reshape(axis))
-        if d_tol > 0 or l_tol > 0:
-            # a non-circular lumen keeps its shape, scaled to the sampled hydraulic diameter
-            new_parts.append(part.resized(inner_diameter=d, length=length))
-        else:
-            new_parts.append(part)
-    sampled_fluid = fluid
-    t_tol = float(check_nonnegative("temperature_tolerance", temperature_tolerance, "degC"))
-    h_tol = float(check_nonnegative("hematocrit_tolerance", hematocrit_tolerance))
-    if h_tol > 0 and fluid.hematocrit is None:
         raise InputRangeError(
-            f"hematocrit_tolerance needs a blood fluid; {fluid.name!r} has no hematocrit"
+            f"n_samples must be at least 10, got {n_samples!r}", field="n_samples", value=n_samples
         )
-    if t_tol > 0 or h_tol > 0:
-        builder = fluid_builder or _library_builder(fluid)
-        dev = _draw(rng, t_tol, n, distribution)
-        kwargs = {"temperature_c": np.asarray(fluid.temperature_c, dtype=float) + dev.reshape(axis)}
-        if t_tol > 0:
-            inputs["temperature"], owners["temperature"] = dev, None
-        if fluid.hematocrit is not None:
-            dev = _draw(rng, h_tol, n, distribution)
-            kwargs["hematocrit"] = np.clip(
-                np.asarray(fluid.hematocrit, dtype=float) + dev.reshape(axis), 0.0, 0.95
-            )
-            if h_tol > 0:
-                inputs["hematocrit"], owners["hematocrit"] = dev, None
-        sampled_fluid = builder(**kwargs)
-    v_tol = float(check_nonnegative("viscosity_tolerance", viscosity_tolerance))
-    if v_tol > 0:
-        dev = _draw(rng, v_tol, n, distribution)
-        inputs["viscosity"], owners["viscosity"] = np.log1p(dev), None
-        sampled_fluid = scale_viscosity(sampled_fluid, 1.0 + dev.reshape(axis))
-    if not inputs:
+    draw = _Draws(np.random.default_rng(seed), n, (n,) + (1,) * len(shape), distribution)
+    new_parts = _sample_parts(line, draw, diameter_tolerance, length_tolerance)
+    sampled_fluid = _sample_fluid(
+        fluid, draw, temperature_tolerance, hematocrit_tolerance, viscosity_tolerance, fluid_builder
+    )
+    if not draw.inputs:
         raise InputRangeError(
             "no tolerance given: set diameter_tolerance, length_tolerance, temperature_tolerance, "
             "hematocrit_tolerance or viscosity_tolerance"
@@ -270,13 +230,112 @@ def flow_tolerance(
     else:
         drive["flow"] = flow
         quantity = "required_pressure"
-    nominal = np.asarray(getattr(line.solve(fluid, **drive), quantity), dtype=float)
-    nominal = np.broadcast_to(nominal, shape)
+    nominal_result = line.solve(fluid, **drive)
+    nominal = np.broadcast_to(np.asarray(getattr(nominal_result, quantity), dtype=float), shape)
     sampled_line = Line(new_parts, entrance=line.entrance, name=line.name)
-    out = np.asarray(getattr(sampled_line.solve(sampled_fluid, **drive), quantity), dtype=float)
-    out = np.broadcast_to(out, (n, *shape))
+    sampled = sampled_line.solve(sampled_fluid, **drive)
+    out = np.broadcast_to(np.asarray(getattr(sampled, quantity), dtype=float), (n, *shape))
+    outside = np.broadcast_to(sampled.conditions["outside_range"], (n, *shape)).any(axis=0)
+    outside = outside | np.broadcast_to(nominal_result.conditions["outside_range"], shape)
+    return _summarize(
+        quantity,
+        nominal,
+        out,
+        draw,
+        percentiles,
+        shape,
+        seed,
+        merge_models(nominal_result.models_used, sampled.models_used, ("saltelli-2008",)),
+        outside,
+    )
+
+
+class _Draws:
+    """The seeded generator and the sampled inputs: label -> deviation, label -> owner."""
+
+    def __init__(self, rng, n, axis, distribution):
+        self.rng, self.n, self.axis, self.distribution = rng, n, axis, distribution
+        self.inputs = {}  # label -> sampled deviation, shape (n,)
+        self.owners = {}  # label -> part name or None
+
+    def __call__(self, tolerance):
+        if self.distribution == "uniform":
+            return self.rng.uniform(-1.0, 1.0, self.n) * tolerance
+        return self.rng.normal(0.0, 0.5, self.n) * tolerance
+
+    def record(self, label, value, owner):
+        self.inputs[label], self.owners[label] = value, owner
+
+
+def _sample_parts(line, draw, diameter_tolerance, length_tolerance):
+    """The line's parts with sampled bores and lengths (a sample axis in front)."""
+    new_parts = []
+    for i, part in enumerate(line.parts):
+        name = line.part_names[i]
+        if not isinstance(part, Lumen):
+            new_parts.append(part)
+            continue
+        d_tol = _tolerance_for(diameter_tolerance, i, name, "diameter_tolerance")
+        l_tol = _tolerance_for(length_tolerance, i, name, "length_tolerance")
+        d = np.asarray(part.inner_diameter, dtype=float)
+        length = np.asarray(part.length, dtype=float)
+        if d_tol > 0:
+            dev = draw(d_tol)
+            draw.record(f"inner_diameter of {name}", np.log1p(dev), name)
+            d = d * (1.0 + dev.reshape(draw.axis))
+        if l_tol > 0:
+            dev = draw(l_tol)
+            draw.record(f"length of {name}", np.log1p(dev), name)
+            length = length * (1.0 + dev.reshape(draw.axis))
+        if d_tol > 0 or l_tol > 0:
+            # a non-circular lumen keeps its shape, scaled to the sampled hydraulic diameter
+            part = part.resized(inner_diameter=d, length=length)
+        new_parts.append(part)
+    return new_parts
+
+
+def _sample_fluid(
+    fluid, draw, temperature_tolerance, hematocrit_tolerance, viscosity_tolerance, fluid_builder
+):
+    """The fluid at sampled temperatures and hematocrits (rebuilt), viscosities scaled."""
+    t_tol = float(check_nonnegative("temperature_tolerance", temperature_tolerance, "degC"))
+    h_tol = float(check_nonnegative("hematocrit_tolerance", hematocrit_tolerance))
+    if h_tol > 0 and fluid.hematocrit is None:
+        raise InputRangeError(
+            f"hematocrit_tolerance needs a blood fluid; {fluid.name!r} has no hematocrit",
+            field="hematocrit_tolerance",
+            value=hematocrit_tolerance,
+        )
+    sampled = fluid
+    if t_tol > 0 or h_tol > 0:
+        builder = fluid_builder or _recipe_builder(fluid)
+        dev = draw(t_tol)
+        kwargs = {
+            "temperature_c": np.asarray(fluid.temperature_c, dtype=float) + dev.reshape(draw.axis)
+        }
+        if t_tol > 0:
+            draw.record("temperature", dev, None)
+        if fluid.hematocrit is not None:
+            dev = draw(h_tol)
+            kwargs["hematocrit"] = np.clip(
+                np.asarray(fluid.hematocrit, dtype=float) + dev.reshape(draw.axis), 0.0, 0.95
+            )
+            if h_tol > 0:
+                draw.record("hematocrit", dev, None)
+        sampled = builder(**kwargs)
+    v_tol = float(check_nonnegative("viscosity_tolerance", viscosity_tolerance))
+    if v_tol > 0:
+        dev = draw(v_tol)
+        draw.record("viscosity", np.log1p(dev), None)
+        sampled = scale_viscosity(sampled, 1.0 + dev.reshape(draw.axis))
+    return sampled
+
+
+def _summarize(quantity, nominal, out, draw, percentiles, shape, seed, models, outside):
+    """Percentiles, variance shares and the dominant input of the sampled outputs."""
+    n = out.shape[0]
     pct = {float(p): _out(np.percentile(out, p, axis=0)) for p in percentiles}
-    shares = _shares(inputs, out.reshape(n, -1), shape)
+    shares = _shares(draw.inputs, out.reshape(n, -1), shape)
     labels = list(shares)
     stacked = np.stack([np.asarray(shares[k]).reshape(-1) for k in labels])
     top = np.asarray(labels, dtype=object)[np.argmax(stacked, axis=0)].reshape(shape)
@@ -286,10 +345,10 @@ def flow_tolerance(
     else:
         spread = np.std(out, axis=0) / size
     if shape == ():
-        top_input, top_part = str(top), owners[str(top)]
+        top_input, top_part = str(top), draw.owners[str(top)]
     else:
         top_input = top.astype(str)
-        top_part = np.vectorize(owners.get, otypes=[object])(top)
+        top_part = np.vectorize(draw.owners.get, otypes=[object])(top)
     return ToleranceResult(
         quantity=quantity,
         nominal=_out(nominal),
@@ -300,6 +359,8 @@ def flow_tolerance(
         dominant_part=top_part,
         relative_spread=_out(spread),
         seed=int(seed),
+        models_used=models,
+        outside_range=bool(outside) if np.ndim(outside) == 0 else np.asarray(outside),
     )
 
 
@@ -314,37 +375,6 @@ def _tolerance_for(tolerance, index, name, label):
     return value
 
 
-def _recover_model(fluid):
-    from rheoline.model.blood import BLOOD_RHEOLOGY_MODELS
-
-    if fluid.rheology.name not in BLOOD_RHEOLOGY_MODELS:
-        raise InputRangeError(f"rheology {fluid.rheology.name!r} is not a blood model")
-    return fluid.rheology.name
-
-
-def _recover_mass_fraction(fluid):
-    from rheoline.model import viscosity
-
-    return viscosity.glycerol_fraction_for_viscosity(
-        fluid.rheology.viscosity(), fluid.temperature_c
-    )
-
-
-def _recover_concentration(fluid):
-    # invert the Mooney form mu = mu_s exp([eta] c / (1 - k c)): c = r / ([eta] + k r)
-    from rheoline.model import viscosity
-
-    r = np.log(fluid.rheology.viscosity() / viscosity.saline_viscosity(fluid.temperature_c))
-    return r / (viscosity.ALBUMIN_INTRINSIC_VISCOSITY + viscosity.ALBUMIN_CROWDING * r)
-
-
-#: Library options a Fluid does not record, and how to read each back from the fluid.
-_OPTION_RECOVERY = {
-    "model": _recover_model,
-    "mass_fraction": _recover_mass_fraction,
-    "concentration": _recover_concentration,
-}
-
 #: Shear rates [1/s] at which a rebuilt fluid must match the nominal one.
 _CHECK_SHEAR_RATES = np.array([1.0, 100.0, 1e4])
 
@@ -355,47 +385,30 @@ def _same_fluid(a, b, rtol=1e-6):
     return all(np.allclose(x, y, rtol=rtol, atol=0.0) for x, y in pairs)
 
 
-def _library_builder(fluid):
-    """A builder of the library fluid ``fluid.name`` with the nominal fluid's own options."""
-    from rheoline.model import fluids
-
-    try:
-        name, entry = fluids._entry(fluid.name)
-    except InputRangeError as exc:
+def _recipe_builder(fluid):
+    """``fluid.at``: the nominal fluid rebuilt from its recipe, checked to reproduce it."""
+    if fluid.recipe is None:
         raise InputRangeError(
-            f"temperature or hematocrit tolerance needs fluid_builder for the user fluid "
-            f"{fluid.name!r} (a callable taking temperature_c= and hematocrit=)"
-        ) from exc
-    options = {}
-    for option in entry.options:
-        if option in _OPTION_RECOVERY:
-            try:
-                options[option] = _OPTION_RECOVERY[option](fluid)
-            except InputRangeError:
-                continue  # left out; the check below tells whether it mattered
-
-    def build(**kwargs):
-        return fluids.fluid(name, **options, **kwargs)
-
+            f"temperature or hematocrit tolerance needs fluid_builder for the fluid "
+            f"{fluid.name!r} (a callable taking temperature_c= and hematocrit=): it has no "
+            "recipe to be rebuilt from (made from numbers, or changed after it was built)",
+            field="fluid_builder",
+        )
     nominal = {"temperature_c": fluid.temperature_c}
     if fluid.hematocrit is not None:
         nominal["hematocrit"] = fluid.hematocrit
-    rebuilt = None
     with warnings.catch_warnings():
         warnings.simplefilter("ignore")  # the nominal fluid already warned
-        try:
-            rebuilt = build(**nominal)
-        except InputRangeError:
-            pass
-    if rebuilt is None or not _same_fluid(rebuilt, fluid):
-        given = ", ".join(f"{k}={v!r}" for k, v in options.items())
+        rebuilt = fluid.at(**nominal)
+    if not _same_fluid(rebuilt, fluid):
         raise InputRangeError(
-            f"the library fluid {name!r} rebuilt for the temperature or hematocrit tolerance "
-            f"({given or 'default options'}) does not reproduce the fluid given (changed "
-            f"after rheoline.fluid()?); pass a fluid_builder taking temperature_c= (and "
-            f"hematocrit=), e.g. lambda **kw: rheoline.fluid({name!r}, <its options>, **kw)"
+            f"the fluid {fluid.name!r} rebuilt from its recipe ({fluid.recipe!r}) for the "
+            "temperature or hematocrit tolerance does not reproduce the fluid given (changed "
+            "after it was built?); pass a fluid_builder taking temperature_c= (and "
+            f"hematocrit=), e.g. lambda **kw: rheoline.fluid({fluid.name!r}, <its options>, **kw)",
+            field="fluid_builder",
         )
-    return build
+    return fluid.at
 
 
 def _shares(inputs, output, shape=()):

@@ -263,6 +263,23 @@ class Vessel:
 
     # --- geometry and viscosity ------------------------------------------------------------
     @property
+    def models_used(self) -> tuple:
+        """Provenance keys of the models this segment applies (first-use order).
+
+        Examples
+        --------
+        >>> Vessel(radius=1e-4, length=1e-3).models_used
+        ('hagen-poiseuille', 'pries-1992', 'plasma-viscosity-ratio', 'iapws-2008')
+        """
+        plasma = ("plasma-viscosity-ratio", "iapws-2008")
+        law = {
+            "pries-1992": ("pries-1992", *plasma),
+            "pries-1994": ("pries-1994", *plasma),
+            "newtonian": () if self.viscosity is not None else ("quemada-1978", *plasma),
+        }[self.viscosity_law]
+        return ("hagen-poiseuille", *law)
+
+    @property
     def diameter(self):
         """Inner diameter [m]."""
         return scalar_or_array(2.0 * np.asarray(self.radius))

@@ -61,7 +61,6 @@ from rheoline.scenario.steps import (
     HEMOLYSIS_CONCERN_STRESS,
     condensed_notes,
     delivery_minutes,
-    fluid_range_mask,
     part_regimes,
     part_rows,
     tolerance_band,
@@ -321,7 +320,7 @@ class _GroupRun:
         self.fluid = self.parts = self.line = self.res = None
 
     def run(self):
-        self._step(self.build_fluid, marks=self._fluid_outside)
+        self._step(self.build_fluid, marks=None)  # the solve's outside_range holds its points
         self._step(self.build_line)
         self._step(self.solve)
         self._step(self.tolerance, marks=None)  # each case marks its own band
@@ -342,16 +341,6 @@ class _GroupRun:
         ranged = [m for m in said if isinstance(m, RangeWarning)]
         if marks is not None and ranged:
             self.outside_range |= marks(ranged)
-
-    def _fluid_outside(self, ranged):
-        """The points whose fluid left a model's range: each warning's ``outside`` mask over
-        the group's points (the fluid is built from arrays over them), or, where a warning
-        carries none, the fluid rebuilt point by point."""
-        n = self.n
-        masks = [getattr(m, "outside", None) for m in ranged]
-        if all(np.shape(mask) == (n,) for mask in masks):
-            return np.any(masks, axis=0)
-        return fluid_range_mask(self.g, self.source)
 
     # ----------------------------------------------------------------------- build
     def build_fluid(self):
@@ -393,6 +382,8 @@ class _GroupRun:
         else:
             drive = {"head": v.get("head", 0.0), "source_pressure": v.get("source_pressure", 0.0)}
         res = self.res = self.line.solve(self.fluid, back_pressure=back, **drive)
+        # the points whose fluid or parts used a correlation outside its range (data)
+        self.outside_range |= _vec(res.conditions["outside_range"], n).astype(bool)
         flow = _vec(res.flow, n)
         # a drive's pressure is the given one (the engine's value agrees to rounding)
         req = _vec(

@@ -46,7 +46,8 @@ def tolerance_band(g, fl, line):
     all samples per case).  Each tolerance is a half-width (uniform spread unless the file
     says ``distribution = "normal"``); an absolute bore or length tolerance is turned into a
     relative one at the case's nominal value.  The fourth array says, per case, whether a
-    model was used outside its range while sampling (its warnings are passed on).
+    model was used outside its range while sampling (the band's ``outside_range``; its
+    warnings are passed on).
     """
     n = g.size
     lo, hi, top = np.full(n, np.nan), np.full(n, np.nan), [""] * n
@@ -54,23 +55,21 @@ def tolerance_band(g, fl, line):
     for col in range(n):
         with warnings.catch_warnings(record=True) as caught:
             warnings.simplefilter("always")
-            lo[col], hi[col], top[col] = _tolerance_case(g, col)
-        outside[col] = any(issubclass(w.category, RangeWarning) for w in caught)
+            lo[col], hi[col], top[col], outside[col] = _tolerance_case(g, col)
         for w in caught:  # on to the caller's notes
             warnings.warn_explicit(w.message, w.category, w.filename, w.lineno)
     return lo, hi, top, outside
 
 
 def _tolerance_case(g, col):
-    """p5, p95 and the dominant input of the tolerance band of sweep point ``col``."""
-    from rheoline.model.fluids import fluid as make_fluid
+    """p5, p95, the dominant input and whether a correlation left its range, of the
+    tolerance band of sweep point ``col`` (the fluid is rebuilt from its recipe)."""
     from rheoline.model.line import Line
     from rheoline.model.tolerance import flow_tolerance
 
     sc = g.scenario
     tol = sc.tolerance or ToleranceSpec()
     one = point_group(g, col)
-    opts = {k: one.values[k] for k in ("mass_fraction",) if k in one.values}
     case_fluid = build_fluid(one, "")
     case_line = Line(build_parts(one, ""))
     d_tol, l_tol = {}, {}
@@ -94,14 +93,18 @@ def _tolerance_case(g, col):
         temperature_tolerance=tol.get("temperature", 0.0),
         hematocrit_tolerance=tol.get("hematocrit", 0.0) if case_fluid.is_blood else 0.0,
         viscosity_tolerance=tol.get("viscosity", 0.0),
-        fluid_builder=lambda opts=opts, **kw: make_fluid(g.values["fluid"], **opts, **kw),
         n_samples=sc.n_samples,
         seed=int(tol.get("seed", 0)),
         distribution=tol.get("distribution", "uniform"),
         percentiles=(5.0, 95.0),
     )
     scale = MMHG if sc.mode == "flow" else ML_PER_MIN
-    return (band.percentiles[5.0] / scale, band.percentiles[95.0] / scale, band.dominant_input)
+    return (
+        band.percentiles[5.0] / scale,
+        band.percentiles[95.0] / scale,
+        band.dominant_input,
+        bool(np.any(band.outside_range)),
+    )
 
 
 # --------------------------------------------------------------------------- delivery

@@ -322,8 +322,12 @@ class LineView(View):
             f"(largest Reynolds number {significant(float(result.max_reynolds))})</div>",
             f"<div>largest wall shear stress <b>"
             f"{format_number(float(result.max_wall_shear_stress), 'Pa')}</b>; hemolysis index "
-            f"<b>{format_number(float(result.hemolysis_index), '%')}</b> (Giersiepen 1990, a "
-            f"screening indicator)</div>",
+            + (
+                f"<b>{format_number(float(result.hemolysis_index), '%')}</b> (Giersiepen 1990, a "
+                "screening indicator)</div>"
+                if np.isfinite(float(result.hemolysis_index))
+                else "<b>n/a</b> (no red cells)</div>"
+            ),
             f"<div>dominant part <b>{html.escape(str(result.dominant_part))}</b> "
             f"({significant(100 * float(result.dominant_share))} % of the pressure budget)</div>",
         ]
