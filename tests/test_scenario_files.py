@@ -474,6 +474,8 @@ def test_fuzzed_documents_give_a_scenario_error_or_a_valid_set(data):
             assert str(exc)
         else:
             assert all(s.n_points >= 1 and math.isfinite(s.n_points) for s in sset.scenarios)
+            for fmt in ("toml", "json"):  # whatever loads, writes and loads back the same
+                assert loads_scenarios(dump_scenarios(sset, fmt), fmt=fmt) == sset
 
 
 @pytest.mark.parametrize(
@@ -722,3 +724,70 @@ def test_a_scenario_without_temperature_uses_the_documented_default_and_writes_n
     sc = sset.scenarios[0]
     assert sc.fluid.temperature is None and sc.values["temperature"] == 22.0
     assert "temperature" not in dump_scenarios(sset)
+
+
+def _swept(values):
+    """A field written as one value or as a list of them."""
+    one = st.sampled_from(values)
+    return st.one_of(one, st.lists(one, min_size=1, max_size=3))
+
+
+_PARTS = st.sampled_from(
+    [
+        {"type": "catheter", "gauge": 18},
+        {"type": "catheter", "gauge": ["14G", 20]},
+        {"type": "catheter", "gauge": {"start": 16, "stop": 22, "step": 2}},
+        {"type": "tube", "inner_diameter": ["3 mm", 2.5], "length": "1.8 m", "label": "set"},
+        {
+            "type": "tube",
+            "inner_diameter": "0.1 in",
+            "length": {"start": "1 m", "stop": "2 m", "count": 3},
+        },
+        {"type": "set", "kind": "gravity-set", "tolerance": {"inner_diameter": "4 %"}},
+        {"type": "fitting", "k": [0.5, 2]},
+        {"type": "needle", "gauge": 25, "wall": "regular", "tolerance": {"length": "1 mm"}},
+    ]
+)
+
+
+@st.composite
+def _valid_documents(draw):
+    scenarios = []
+    for i in range(draw(st.integers(1, 3))):
+        sc = {"name": f"s{i}", "fluid": draw(_swept(["water", "saline-0.9", "dextrose-5"]))}
+        if draw(st.booleans()):
+            sc["temperature"] = draw(_swept(["4 degC", 37, "20.5 degC", "300 K"]))
+        if draw(st.booleans()):
+            sc["flow"] = draw(_swept(["60 mL/h", 2, "0.1 L/min"]))
+            if draw(st.booleans()):
+                sc["pressure_limit"] = draw(st.sampled_from(["300 mmHg", 40, "2 bar"]))
+        else:
+            head_range = {"start": "50 cm", "stop": "1 m", "step": "25 cm"}
+            sc["head"] = draw(st.one_of(_swept(["50 cm", 1, "0.8 m"]), st.just(head_range)))
+            if draw(st.booleans()):
+                sc["source_pressure"] = draw(_swept(["300 mmHg", 40, "5 kPa"]))
+        if draw(st.booleans()):
+            sc["back_pressure"] = draw(st.sampled_from(["8 mmHg", -5, "10 cmH2O"]))
+        if draw(st.booleans()):
+            sc["volume"] = draw(st.sampled_from(["500 mL", 250, "1 L"]))
+        if draw(st.booleans()):
+            sc["tolerance"] = {
+                "temperature": "1 degC",
+                "samples": 200,
+                "seed": draw(st.integers(0, 9)),
+            }
+        sc["part"] = draw(st.lists(_PARTS, min_size=1, max_size=2))
+        if any("tolerance" in p for p in sc["part"]):  # within the Monte Carlo budget
+            sc.setdefault("tolerance", {})["samples"] = 100
+        scenarios.append(sc)
+    return {"format_version": 1, "title": draw(st.sampled_from(["", "t"])), "scenario": scenarios}
+
+
+@given(_valid_documents())
+def test_any_valid_document_loads_dumps_and_loads_to_the_same_description(doc):
+    sset = parse_scenarios(doc)
+    for fmt in ("toml", "json"):
+        text = dump_scenarios(sset, fmt)
+        again = loads_scenarios(text, fmt=fmt)
+        assert again == sset
+        assert dump_scenarios(again, fmt) == text
