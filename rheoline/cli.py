@@ -240,8 +240,12 @@ def _cmd_run(args, out, sset=None):
 
 
 def _pack_write_error(out_dir, exc):
-    reason = getattr(exc, "reason", None) or exc.strerror or exc
-    return RheolineError(f"cannot write the pack to {out_dir}: {reason}")
+    """A one-line error for a pack that cannot be written, from the error's ``reason``
+    (an OutputError's, or the system's ``strerror``), never from its message."""
+    reason = getattr(exc, "reason", None) or exc.strerror or type(exc).__name__
+    return RheolineError(
+        f"cannot write the pack to {out_dir}: {reason}", field="--out", value=str(out_dir)
+    )
 
 
 def _cmd_demo(args, out):

@@ -418,3 +418,26 @@ def test_sort_and_reach(capsys):
     status, _, err = call(capsys, "run", example_path("bench-sweep"), "--reach", "100 mmHg")
     assert status == 2
     assert_one_line_error(err, "not a unit of flow")
+
+
+def test_reach_never_names_a_case_over_its_pressure_limit(capsys):
+    # the demo's pump scenario: 150 mL/min against a 300 mmHg limit; the 20G case needs
+    # about 847 mmHg and the 18G case about 515 mmHg, so neither reaches the target
+    from rheoline.scenario.compare import run_scenarios
+    from rheoline.scenario.files import load_scenarios
+
+    table = run_scenarios(load_scenarios(example_path("rapid-transfusion-cart"))).table
+    pump = table[table["scenario"] == "pump 150 mL/min, 300 mmHg limit"]
+    over = pump[pump["over pressure limit"].eq(True)]
+    assert set(over["gauge"]) == {18, 20}  # the table flags them (so this test can fail)
+    within = pump[pump["required pressure [mmHg]"] <= pump["pressure limit [mmHg]"]]
+    best = within.sort_values("smallest bore [mm]").iloc[0]
+    status, out, _ = call(capsys, "demo", "--reach", "100 mL/min")
+    assert status == 0
+    lines = out.splitlines()
+    at = lines.index("Smallest bore reaching 100 mL/min:")
+    answers = lines[at + 1 : lines.index("", at)]  # one line per scenario, then a blank line
+    [named] = [s for s in answers if s.startswith("  - pump 150 mL/min, 300 mmHg limit: ")]
+    assert f": {best['case']} (" in named
+    for case in over["case"]:
+        assert f": {case} (" not in named
