@@ -208,7 +208,7 @@ def _cmd_run(args, out, sset=None):
         try:
             check_target(Path(args.out), args.force)  # refuse before solving anything
         except OSError as exc:  # OutputError: a file in the way of the folder
-            raise _pack_write_error(args.out, exc) from None
+            raise _write_error("the pack", args.out, exc) from None
     reach = None
     if args.reach:
         from rheoline.units import ML_PER_MIN, parse_quantity
@@ -233,18 +233,19 @@ def _cmd_run(args, out, sset=None):
         try:
             folder = write_pack(run, args.out, force=args.force)
         except OSError as exc:
-            raise _pack_write_error(args.out, exc) from None
+            raise _write_error("the pack", args.out, exc) from None
         msg = f"review pack written to {folder}/"
         print(msg, file=sys.stderr if args.json else out)
     return EXIT_OK
 
 
-def _pack_write_error(out_dir, exc):
-    """A one-line error for a pack that cannot be written, from the error's ``reason``
-    (an OutputError's, or the system's ``strerror``), never from its message."""
+def _write_error(what, out_dir, exc):
+    """A one-line error for ``what`` (the pack, the report) that cannot be written to
+    ``--out``, from the error's ``reason`` (an OutputError's, or the system's ``strerror``),
+    never from its message."""
     reason = getattr(exc, "reason", None) or exc.strerror or type(exc).__name__
     return RheolineError(
-        f"cannot write the pack to {out_dir}: {reason}", field="--out", value=str(out_dir)
+        f"cannot write {what} to {out_dir}: {reason}", field="--out", value=str(out_dir)
     )
 
 
@@ -299,7 +300,7 @@ def _cmd_validate(args, out):
     try:
         written = write_report(result, args.out)
     except OSError as exc:
-        raise RheolineError(f"cannot write the report to {args.out!r}: {exc}") from exc
+        raise _write_error("the report", args.out, exc) from None
     out.write(summary_text(result, written) + "\n")
     return EXIT_OK if result.passed else EXIT_ACCURACY
 
