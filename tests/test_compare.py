@@ -487,24 +487,51 @@ def test_a_bag_emptying_to_the_outlet_level_is_flagged_as_never_delivering():
     assert "never delivers the whole volume" in " ".join(r.records()[0]["flags"])
 
 
-def test_notes_about_several_parts_become_one_line():
-    from types import SimpleNamespace
+def test_notes_are_rendered_from_the_results_conditions_one_line_per_condition():
+    from rheoline.model.conditions import CONDITIONS
 
-    from rheoline.scenario.steps import condensed_notes
+    r = run(
+        sc(
+            name="blood",
+            fluid="whole-blood",
+            temperature="37 degC",
+            head="1 m",
+            parts=[{"type": "catheter", "gauge": [14, 18]}],
+        )
+    )
+    by_key = {}
+    for note in r.notes:
+        by_key.setdefault(note.key, []).append(note.text)
+    # one line naming both catalogue catheters, in the parts' own words
+    (catalogue,) = by_key["catalogue_size"]
+    assert catalogue.startswith("14G catheter, 18G catheter: typical catalogue bore")
+    assert by_key["non_newtonian"] == [
+        f"{CONDITIONS['non_newtonian'].words}; {CONDITIONS['non_newtonian'].meaning}"
+    ]
+    # the rows' own flags are not repeated as notes
+    assert not {"turbulent", "transitional", "over_pressure_limit", "hemolysis_concern"} & set(
+        by_key
+    )
+    saline = run(sc(name="saline", fluid="saline-0.9", head="1 m"))
+    assert not {"non_newtonian", "blood_as_newtonian"} & {n.key for n in saline.notes}
 
-    notes = [
-        ("line", "14G catheter: typical bore (from memory)"),
-        ("line", "18G catheter: typical bore (from memory)"),
-        ("line", "set: turbulent flow (Re up to 5000) in 1 of 2 scenarios; Churchill 1977 used"),
-        ("line", "non-Newtonian fluid: Rabinowitsch-Mooney"),
-        ("line", "no forward flow"),
-    ]
-    runs = [SimpleNamespace(notes=notes[:2]), SimpleNamespace(notes=notes[2:])]
-    assert condensed_notes(runs) == [
-        ("line", "14G catheter, 18G catheter: typical bore (from memory)"),
-        ("line", "non-Newtonian fluid: Rabinowitsch-Mooney"),
-        ("line", "no forward flow"),
-    ]
+
+def test_models_used_are_those_the_results_used():
+    saline = run(sc(fluid="saline-0.9", head="1 m")).models_used
+    assert {"hagen-poiseuille", "laliberte-2007", "nist-sp811"} <= set(saline)
+    assert not {"giersiepen-1990", "pries-1992", "leverett-1972"} & set(saline)
+    assert "saltelli-2008" not in saline and "catheter-vein-ratio" not in saline
+    blood = run(
+        sc(
+            fluid="whole-blood",
+            temperature="37 degC",
+            head="1 m",
+            vein_diameter="6 mm",
+            tolerance={"temperature": "1 degC", "samples": 200},
+        )
+    ).models_used
+    assert {"giersiepen-1990", "saltelli-2008", "catheter-vein-ratio"} <= set(blood)
+    assert len(blood) == len(set(blood))
 
 
 # --------------------------------------------------------------------------- the run's result

@@ -25,10 +25,13 @@ read from the step's result:
 ``site`` (:func:`rheoline.model.vessels.infusion_site_context`, where a vein is given)
     ``catheter-to-vein ratio [-]``.
 
-Each step also sets boolean conditions per case (turbulent and transitional parts, over
-the pressure limit, hemolysis concern, no forward flow, ...); the ``flags`` column is
-rendered from them in one place (:data:`FLAG_WORDS`).  ``case`` is unique within a run
-(a repeated label gets " #2").
+Each step also reads boolean conditions per case from its result (the line's
+``conditions`` and ``part_conditions``, keys of :data:`rheoline.model.conditions.CONDITIONS`;
+the tolerance band's and the delivery's ``outside_range``); the ``flags`` column is
+rendered from them in one place (:data:`FLAG_WORDS`), and the notes name the conditions
+the flags do not (:func:`rheoline.scenario.steps.scenario_notes`).  ``models_used`` is the
+union of the results' ``models_used`` in first-use order.  ``case`` is unique within a
+run (a repeated label gets " #2").
 
 Examples
 --------
@@ -49,6 +52,7 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from rheoline.errors import RangeWarning, RegimeWarning, RheolineWarning
+from rheoline.model.provenance import merge_models
 from rheoline.scenario.build import (
     build_fluid,
     build_parts,
@@ -59,10 +63,9 @@ from rheoline.scenario.build import (
 from rheoline.scenario.description import ScenarioSet
 from rheoline.scenario.steps import (
     HEMOLYSIS_CONCERN_STRESS,
-    condensed_notes,
     delivery_minutes,
-    part_regimes,
     part_rows,
+    scenario_notes,
     tolerance_band,
 )
 from rheoline.scenario.tables import assumptions_table, inputs_table
@@ -127,6 +130,11 @@ PART_COLUMNS = [
     "wall shear rate [1/s]",
     "entrance length [m]",
 ]
+
+#: The models behind the site step's catheter-to-vein ratio (provenance keys).
+SITE_MODELS = ("catheter-vein-ratio",)
+#: The unit conversions of every table (mmHg, mL/min, cmH2O): provenance keys.
+UNIT_MODELS = ("nist-sp811",)
 
 #: The words of each condition in a row's ``flags``, in the order they are shown; a
 #: callable renders words from the case's data (the parts concerned, the ratio).
@@ -246,7 +254,7 @@ def run_scenarios(sset: ScenarioSet, progress=None) -> RunResult:
     """
     import pandas as pd
 
-    cases, notes = [], []
+    cases, notes, models = [], [], ()
     bar = progress(sset.n_points) if progress else None
     try:
         for sc in sset.scenarios:
@@ -256,7 +264,8 @@ def run_scenarios(sset: ScenarioSet, progress=None) -> RunResult:
                 if bar is not None:
                     bar.update(g.size)
             cases += sorted((c for r in runs for c in r.cases()), key=lambda c: c[0])
-            notes += [Note(sc.name, None, key, text) for key, text in condensed_notes(runs)]
+            notes += [Note(sc.name, None, key, text) for key, text in scenario_notes(runs)]
+            models = merge_models(models, *(r.models_used for r in runs))
     finally:
         if bar is not None:
             bar.close()
@@ -268,6 +277,7 @@ def run_scenarios(sset: ScenarioSet, progress=None) -> RunResult:
         pd.DataFrame(table, columns=TABLE_COLUMNS),
         pd.DataFrame([r[:-1] for r in part_table], columns=PART_COLUMNS),
         inputs_table(sset),
+        models_used=merge_models(models, UNIT_MODELS),
         notes=tuple(dict.fromkeys(notes)),
         flags={key: f for key, (_, _, _, f) in zip(keys, cases, strict=True)},
         part_keys=tuple(r[-1] for r in part_table),
@@ -316,31 +326,23 @@ class _GroupRun:
         self.g, self.source, self.n = g, source, g.size
         self.mode = g.scenario.mode
         self.columns, self.conditions, self.notes = {}, {}, []
-        self.outside_range = np.zeros(self.n, dtype=bool)
+        self.models_used = ()
         self.fluid = self.parts = self.line = self.res = None
 
     def run(self):
-        self._step(self.build_fluid, marks=None)  # the solve's outside_range holds its points
-        self._step(self.build_line)
-        self._step(self.solve)
-        self._step(self.tolerance, marks=None)  # each case marks its own band
-        self._step(self.delivery)
-        self._step(self.site)
-        self.notes += [("line", text) for text in self.res.flags]
-        self.conditions["outside_range"] = self.outside_range
+        for step in (self.build_fluid, self.build_line, self.solve):
+            self._step(step)
+        for step in (self.tolerance, self.delivery, self.site):
+            self._step(step)
         return self
 
-    def _step(self, step, marks=lambda ranged: True):
-        """Run ``step``; its warnings become notes, and its range warnings mark the cases
-        ``marks(warnings)`` names (all of them by default)."""
+    def _step(self, step):
+        """Run ``step``; the warnings it raises become notes (the model's own words)."""
         with warnings.catch_warnings(record=True) as caught:
             warnings.simplefilter("always")
             step()
         said = [w.message for w in caught if isinstance(w.message, RheolineWarning)]
         self.notes += [(_warning_key(m), str(m)) for m in said]
-        ranged = [m for m in said if isinstance(m, RangeWarning)]
-        if marks is not None and ranged:
-            self.outside_range |= marks(ranged)
 
     # ----------------------------------------------------------------------- build
     def build_fluid(self):
@@ -382,8 +384,7 @@ class _GroupRun:
         else:
             drive = {"head": v.get("head", 0.0), "source_pressure": v.get("source_pressure", 0.0)}
         res = self.res = self.line.solve(self.fluid, back_pressure=back, **drive)
-        # the points whose fluid or parts used a correlation outside its range (data)
-        self.outside_range |= _vec(res.conditions["outside_range"], n).astype(bool)
+        self.models_used = merge_models(self.models_used, res.models_used)
         flow = _vec(res.flow, n)
         # a drive's pressure is the given one (the engine's value agrees to rounding)
         req = _vec(
@@ -397,7 +398,8 @@ class _GroupRun:
         c["pressure limit [mmHg]"] = (
             (_vec(v["pressure_limit"], n).astype(float) / MMHG).tolist() if limited else _nan(n)
         )
-        over = _vec(res.exceeds_pressure_limit, n)
+        self._read_conditions(res)
+        over = self.conditions["over_pressure_limit"]
         c["over pressure limit"] = [bool(o) for o in over] if limited else [None] * n
         c["max Reynolds number"] = _vec(res.max_reynolds, n).astype(float).tolist()
         c["regime"] = [str(r) for r in _vec(res.regime, n)]
@@ -410,53 +412,52 @@ class _GroupRun:
         c["dominant share [%]"] = (_vec(res.dominant_share, n).astype(float) * 100).tolist()
         wss = _vec(res.max_wall_shear_stress, n).astype(float)
         c["max wall shear stress [Pa]"] = wss.tolist()
-        blood = bool(self.fluid.is_blood)
-        hemo = _vec(res.hemolysis_index, n).astype(float)
-        c["hemolysis index [%]"] = hemo.tolist() if blood else _nan(n)
-        concern = blood & (wss > HEMOLYSIS_CONCERN_STRESS)
-        c["hemolysis concern"] = concern.tolist()
-        self._solve_conditions(res, flow, over & limited, concern)
+        c["hemolysis index [%]"] = (
+            _vec(res.hemolysis_index, n).astype(float).tolist()
+        )  # NaN: no red cells
+        c["hemolysis concern"] = self.conditions["hemolysis_concern"].tolist()
 
-    def _solve_conditions(self, res, flow, over, concern):
+    def _read_conditions(self, res):
+        """The solve's conditions over the group's points (``res.conditions``), and the
+        turbulent and transitional lumens per point (``res.part_conditions``)."""
+        n, k = self.n, len(self.parts)
+        self.conditions.update(
+            {key: _vec(value, n).astype(bool) for key, value in res.conditions.items()}
+        )
+        # the stress limit only (the golden tables' rule until the next commit)
         from rheoline.model.hemolysis import GIERSIEPEN_1990_MAX_STRESS
 
-        n, k = self.n, len(self.parts)
-        regimes = part_regimes(res, k, n)
-        lumens = np.array([p.kind == "lumen" for p in self.parts])[:, None]
-        self.part_conditions = {r: (regimes == r) & lumens for r in ("turbulent", "transitional")}
         tau = np.broadcast_to(np.asarray(res.part_wall_shear_stress), (k, n))
-        cond = self.conditions
-        cond["turbulent"] = self.part_conditions["turbulent"].any(axis=0)
-        cond["transitional"] = self.part_conditions["transitional"].any(axis=0)
-        cond["over_pressure_limit"] = np.asarray(over, dtype=bool)
-        cond["hemolysis_concern"] = np.asarray(concern, dtype=bool)
-        extrapolated = np.any(tau > GIERSIEPEN_1990_MAX_STRESS, axis=0) if k else np.zeros(n, bool)
-        cond["hemolysis_extrapolated"] = bool(self.fluid.is_blood) & extrapolated
-        cond["no_forward_flow"] = ~(flow > 0)
-        cond["not_converged"] = ~_vec(getattr(res, "converged", True), n).astype(bool)
+        stressed = np.any(tau > GIERSIEPEN_1990_MAX_STRESS, axis=0) if k else np.zeros(n, bool)
+        self.conditions["hemolysis_extrapolated"] = bool(self.fluid.is_blood) & stressed
+        self.part_conditions = {
+            key: np.broadcast_to(res.part_conditions[key], (k, n))
+            for key in ("turbulent", "transitional")
+        }
 
     # ----------------------------------------------------------------------- the rest
     def tolerance(self):
         c, n, sc = self.columns, self.n, self.g.scenario
-        band = None
-        if sc.has_tolerance:
-            lo, hi, top, outside = tolerance_band(self.g, self.fluid, self.line)
-            self.outside_range |= outside
-            band = (lo, hi)
+        band = tolerance_band(self.g) if sc.has_tolerance else None
         for what in ("flow", "pressure"):
             unit = "mL/min" if what == "flow" else "mmHg"
             mine = band is not None and (what == "flow") == (self.mode == "drive")
-            c[f"{what} p5 [{unit}]"] = band[0].tolist() if mine else _nan(n)
-            c[f"{what} p95 [{unit}]"] = band[1].tolist() if mine else _nan(n)
-        c["dominant tolerance"] = list(top) if band is not None else [""] * n
+            c[f"{what} p5 [{unit}]"] = band.p5.tolist() if mine else _nan(n)
+            c[f"{what} p95 [{unit}]"] = band.p95.tolist() if mine else _nan(n)
+        c["dominant tolerance"] = list(band.dominant) if band is not None else [""] * n
+        if band is not None:
+            self.conditions["outside_range"] = self.conditions["outside_range"] | band.outside_range
+            self.models_used = merge_models(self.models_used, band.models_used)
 
     def delivery(self):
-        minutes = delivery_minutes(self.g, self.fluid, self.line, self.res)
-        n = self.n
-        self.columns["time to deliver [min]"] = _nan(n) if minutes is None else minutes.tolist()
-        known = minutes is not None
-        self.conditions["never_delivers"] = np.isinf(minutes) if known else np.zeros(n, bool)
-        self.conditions["delivery_not_computed"] = np.isnan(minutes) if known else np.zeros(n, bool)
+        done, n = delivery_minutes(self.g, self.fluid, self.line, self.res), self.n
+        minutes = np.full(n, np.nan) if done is None else done.minutes
+        self.columns["time to deliver [min]"] = minutes.tolist()
+        self.conditions["never_delivers"] = np.isinf(minutes)
+        self.conditions["delivery_not_computed"] = np.isnan(minutes) & (done is not None)
+        if done is not None:
+            self.conditions["outside_range"] = self.conditions["outside_range"] | done.outside_range
+            self.models_used = merge_models(self.models_used, done.models_used)
 
     def site(self):
         site, n = site_context(self.g, self.parts, self.source), self.n
@@ -464,6 +465,8 @@ class _GroupRun:
         self.columns["catheter-to-vein ratio [-]"] = ratio
         large = np.zeros(n, bool) if site is None else _vec(site.large_ratio, n).astype(bool)
         self.conditions["large_catheter"] = large
+        if site is not None:
+            self.models_used = merge_models(self.models_used, SITE_MODELS)
 
     # ----------------------------------------------------------------------- rows
     def flags(self, col):

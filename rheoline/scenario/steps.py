@@ -2,20 +2,19 @@
 
 :func:`tolerance_band` (the ``tolerance`` step: a seeded Monte Carlo per case),
 :func:`delivery_minutes` (the ``delivery`` step), :func:`part_regimes` and
-:func:`part_rows` (the parts table of the ``solve`` step), :func:`fluid_range_mask` (which
-points' fluids left a model's range) and :func:`condensed_notes` (the notes of a scenario's
-groups, one line per message).  :mod:`rheoline.scenario.run` calls them in order.
+:func:`part_rows` (the parts table of the ``solve`` step) and :func:`scenario_notes` (the
+notes of a scenario, rendered from its results' conditions).  :mod:`rheoline.scenario.run` calls them in order.
 """
 
 from __future__ import annotations
 
-import re
 import warnings
+from dataclasses import dataclass
 
 import numpy as np
 
-from rheoline.errors import RangeWarning
 from rheoline.model.hemolysis import HEMOLYSIS_CONCERN_STRESS  # a model constant, re-exported
+from rheoline.model.provenance import merge_models
 from rheoline.scenario.build import build_fluid, build_parts, point_group
 from rheoline.scenario.description import ToleranceSpec
 from rheoline.units import ML_PER_MIN, MMHG
@@ -26,8 +25,7 @@ __all__ = [
     "delivery_minutes",
     "part_regimes",
     "part_rows",
-    "fluid_range_mask",
-    "condensed_notes",
+    "scenario_notes",
 ]
 
 #: The scenario fields a fluid is built from (besides its name).
@@ -39,31 +37,46 @@ def _vec(x, n):
 
 
 # --------------------------------------------------------------------------- tolerance
-def tolerance_band(g, fl, line):
-    """p5 and p95 per case of the flow [mL/min] (drive mode) or the required pressure [mmHg]
-    (flow mode), and the input that dominates the spread, from the line engine's seeded
-    Monte Carlo (:func:`rheoline.model.tolerance.flow_tolerance`, one vectorized solve of
-    all samples per case).  Each tolerance is a half-width (uniform spread unless the file
-    says ``distribution = "normal"``); an absolute bore or length tolerance is turned into a
-    relative one at the case's nominal value.  The fourth array says, per case, whether a
-    model was used outside its range while sampling (the band's ``outside_range``; its
-    warnings are passed on).
+@dataclass(frozen=True)
+class Band:
+    """The tolerance step's answer per case of a group: p5 and p95 of the flow [mL/min]
+    (drive mode) or of the required pressure [mmHg] (flow mode), the input that dominates
+    the spread, whether a correlation left its range while sampling, and the models the
+    bands used (provenance keys)."""
+
+    p5: np.ndarray
+    p95: np.ndarray
+    dominant: list
+    outside_range: np.ndarray
+    models_used: tuple
+
+
+def tolerance_band(g):
+    """The :class:`Band` of group ``g``, from the line engine's seeded Monte Carlo
+    (:func:`rheoline.model.tolerance.flow_tolerance`, one vectorized solve of all samples
+    per case).  Each tolerance is a half-width (uniform spread unless the file says
+    ``distribution = "normal"``); an absolute bore or length tolerance is turned into a
+    relative one at the case's nominal value.  Warnings while sampling are passed on.
     """
     n = g.size
     lo, hi, top = np.full(n, np.nan), np.full(n, np.nan), [""] * n
     outside = np.zeros(n, dtype=bool)
+    models = ()
     for col in range(n):
         with warnings.catch_warnings(record=True) as caught:
             warnings.simplefilter("always")
-            lo[col], hi[col], top[col], outside[col] = _tolerance_case(g, col)
+            band, scale = _tolerance_case(g, col)
+        lo[col], hi[col] = band.percentiles[5.0] / scale, band.percentiles[95.0] / scale
+        top[col], outside[col] = band.dominant_input, bool(np.any(band.outside_range))
+        models = merge_models(models, band.models_used)
         for w in caught:  # on to the caller's notes
             warnings.warn_explicit(w.message, w.category, w.filename, w.lineno)
-    return lo, hi, top, outside
+    return Band(lo, hi, top, outside, models)
 
 
 def _tolerance_case(g, col):
-    """p5, p95, the dominant input and whether a correlation left its range, of the
-    tolerance band of sweep point ``col`` (the fluid is rebuilt from its recipe)."""
+    """The tolerance band of sweep point ``col`` (the fluid is rebuilt from its recipe) and
+    the scale of its percentiles (to mmHg or mL/min)."""
     from rheoline.model.line import Line
     from rheoline.model.tolerance import flow_tolerance
 
@@ -98,18 +111,23 @@ def _tolerance_case(g, col):
         distribution=tol.get("distribution", "uniform"),
         percentiles=(5.0, 95.0),
     )
-    scale = MMHG if sc.mode == "flow" else ML_PER_MIN
-    return (
-        band.percentiles[5.0] / scale,
-        band.percentiles[95.0] / scale,
-        band.dominant_input,
-        bool(np.any(band.outside_range)),
-    )
+    return band, (MMHG if sc.mode == "flow" else ML_PER_MIN)
 
 
 # --------------------------------------------------------------------------- delivery
+@dataclass(frozen=True)
+class Delivery:
+    """The delivery step's answer per case of a group: the time [min] to deliver the
+    volume (inf where the flow stops first), whether a correlation left its range, and the
+    models used (provenance keys; none for a constant drive or a pump: volume over flow)."""
+
+    minutes: np.ndarray
+    outside_range: np.ndarray
+    models_used: tuple = ()
+
+
 def delivery_minutes(g, fl, line, res):
-    """Time [min] to deliver the scenario's volume, per case; None without a volume."""
+    """The :class:`Delivery` of group ``g``; None without a volume."""
     if "volume" not in g.values:
         return None
     n = g.size
@@ -117,7 +135,7 @@ def delivery_minutes(g, fl, line, res):
     volume = _vec(v["volume"], n)
     decay = ("head_when_empty", "pressure_time_constant", "source_pressure_when_empty")
     if g.scenario.mode == "flow" or not any(k in v for k in decay):
-        return volume / _vec(res.flow, n) / 60.0  # a constant drive or a pump
+        return Delivery(volume / _vec(res.flow, n) / 60.0, np.zeros(n, dtype=bool))
     from rheoline.model import delivery
 
     head = v.get("head", 0.0)
@@ -144,18 +162,18 @@ def delivery_minutes(g, fl, line, res):
             source_pressure=v.get("source_pressure", 0.0),
             back_pressure=back,
         )
-    return _vec(t.time, n) / 60.0
+    outside = _vec(t.outside_range, n).astype(bool)
+    return Delivery(_vec(t.time, n) / 60.0, outside, tuple(t.models_used))
 
 
 # --------------------------------------------------------------------------- parts
 def part_regimes(res, n_parts, n):
-    """The regime of each part at each point, shape (parts, points); "" where none applies
-    (K fittings, measured parts: no Reynolds number)."""
-    from rheoline.model.lumen import regime_of
-
-    re_ = np.broadcast_to(np.asarray(res.part_reynolds, dtype=float), (n_parts, n))
-    finite = np.isfinite(re_)
-    return np.where(finite, regime_of(np.where(finite, re_, 0.0)), "").astype(object)
+    """The line's regime of each part at each point, shape (parts, points); "" where none
+    applies (K fittings, measured parts: no Reynolds number)."""
+    shape = (n_parts, n)
+    reynolds = np.broadcast_to(np.asarray(res.part_reynolds, dtype=float), shape)
+    regimes = np.broadcast_to(np.asarray(res.part_regimes), shape)
+    return np.where(np.isnan(reynolds), "", regimes).astype(object)
 
 
 def part_rows(run):
@@ -211,45 +229,51 @@ def part_rows(run):
 
 
 # --------------------------------------------------------------------------- notes
-def fluid_range_mask(g, source):
-    """Per point of ``g``: does building its fluid warn that a model is outside its range?
+#: Conditions the table's ``flags`` state case by case; the notes state the others.
+_IN_FLAGS = (
+    "turbulent",
+    "transitional",
+    "over_pressure_limit",
+    "no_forward_flow",
+    "hemolysis_concern",
+    "not_converged",
+)
 
-    The vectorized build warns once for the whole group; here the fluid is built again,
-    once per distinct (temperature, hematocrit, mass fraction), under its own
-    ``catch_warnings``.  Building a fluid solves nothing, so this is cheap.
+
+def scenario_notes(runs):
+    """The notes of a scenario's group runs as ``(key, text)``, rendered from data.
+
+    First what the models warned (a correlation outside its range, in the model's own
+    words, once each), then every condition of :data:`rheoline.model.conditions.CONDITIONS`
+    that holds somewhere in the scenario and is not in the rows' flags: a per-part one names
+    the parts (as each sweep point names them), a catalogue size gives the part's own note.
     """
-    n = g.size
-    present = [k for k in _FLUID_FIELDS if k in g.values]
-    states = {}
-    for col in range(n):
-        states.setdefault(tuple(float(g.values[k][col]) for k in present), []).append(col)
-    mask = np.zeros(n, dtype=bool)
-    for cols in states.values():
-        with warnings.catch_warnings(record=True) as caught:
-            warnings.simplefilter("always")
-            build_fluid(point_group(g, cols[0]), source)
-        mask[cols] = any(issubclass(w.category, RangeWarning) for w in caught)
-    if not mask.any():  # the group warned, but no single point does: keep it on all
-        mask[:] = True
-    return mask
+    from rheoline.model.conditions import CONDITIONS
 
-
-def condensed_notes(runs):
-    """The notes of a scenario's group runs as ``(key, text)``, one line per message:
-    regime notes are in each row's flags, and one message about several parts ("14G
-    catheter: ...", "16G catheter: ...") becomes one line naming the parts."""
-    by_message = {}
-    for run in runs:
-        for key, m in run.notes:
-            m = re.sub(r" in \d+ of \d+ scenarios", "", m)
-            if re.search(r": (turbulent|transitional) flow \(", m):
-                continue
-            part, sep, message = m.partition(": ")
-            text = message if sep else m
-            entry = by_message.setdefault(text, (key, []))
-            entry[1].append(part if sep else None)
-    out = []
-    for message, (key, parts) in by_message.items():
-        named = [p for p in dict.fromkeys(parts) if p is not None]
-        out.append((key, f"{', '.join(named)}: {message}" if named else message))
-    return out
+    out = [(key, text) for run in runs for key, text in run.notes]
+    for key, condition in CONDITIONS.items():
+        if key in _IN_FLAGS or not any(run.res.conditions[key].any() for run in runs):
+            continue
+        if not condition.per_part:
+            out.append((key, f"{condition.words}; {condition.meaning}"))
+            continue
+        by_text = {}
+        for run in runs:
+            for j, part in enumerate(run.parts):
+                where = np.broadcast_to(run.res.part_conditions[key][j], (run.n,))
+                text = getattr(part, "source_note", None) if key == "catalogue_size" else None
+                text = text or f"{condition.words}; {condition.meaning}"
+                by_text.setdefault(text, []).extend(run.point_names[j, where])
+        out += [
+            (key, f"{', '.join(dict.fromkeys(names))}: {t}")
+            for t, names in by_text.items()
+            if names
+        ]
+    if any(run.res.pries_correction for run in runs):
+        out.append(
+            (
+                "pries-1992",
+                "Pries 1992 in-vitro diameter correction applied to the apparent viscosity",
+            )
+        )
+    return list(dict.fromkeys(out))
