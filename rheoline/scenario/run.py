@@ -424,12 +424,6 @@ class _GroupRun:
         self.conditions.update(
             {key: _vec(value, n).astype(bool) for key, value in res.conditions.items()}
         )
-        # the stress limit only (the golden tables' rule until the next commit)
-        from rheoline.model.hemolysis import GIERSIEPEN_1990_MAX_STRESS
-
-        tau = np.broadcast_to(np.asarray(res.part_wall_shear_stress), (k, n))
-        stressed = np.any(tau > GIERSIEPEN_1990_MAX_STRESS, axis=0) if k else np.zeros(n, bool)
-        self.conditions["hemolysis_extrapolated"] = bool(self.fluid.is_blood) & stressed
         self.part_conditions = {
             key: np.broadcast_to(res.part_conditions[key], (k, n))
             for key in ("turbulent", "transitional")
