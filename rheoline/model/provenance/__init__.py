@@ -40,6 +40,7 @@ from rheoline.errors import InputRangeError
 from rheoline.model.provenance.entry import ModelEntry
 from rheoline.model.provenance.flow_models import FLOW_ENTRIES
 from rheoline.model.provenance.fluid_models import FLUID_ENTRIES
+from rheoline.model.provenance.transient_models import TRANSIENT_ENTRIES
 
 __all__ = ["ModelEntry", "REGISTRY", "model_entry", "entries", "merge_models"]
 
@@ -47,7 +48,7 @@ __all__ = ["ModelEntry", "REGISTRY", "model_entry", "entries", "merge_models"]
 #: Every named model and correlation by key (read-only).  Warnings, results, packs and
 #: docs read this one mapping.
 REGISTRY: Mapping[str, ModelEntry] = MappingProxyType(
-    {e.key: e for e in (*FLUID_ENTRIES, *FLOW_ENTRIES)}
+    {e.key: e for e in (*FLUID_ENTRIES, *FLOW_ENTRIES, *TRANSIENT_ENTRIES)}
 )
 
 

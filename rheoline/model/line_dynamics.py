@@ -1,0 +1,469 @@
+r"""Pressure and flow in time through a compliant line: the node network and its stiff solve.
+
+The line is cut at its part boundaries into **nodes** that store volume and **segments**
+that carry flow.  Each node holds half the compliance of each part beside it (a part's
+tubing compliance, or, where none is given, the compressibility of the liquid it holds),
+plus the syringe at the line's inlet and at each injection port.  A boundary that holds
+nothing is not a node: the parts on either side join one segment.  The state of every
+scenario is each node's stored volume :math:`V_j` and each segment's delivered volume
+:math:`W_s`:
+
+.. math::
+
+    \frac{dV_j}{dt} = \sum_{s \to j} Q_s - \sum_{s \leftarrow j} Q_s + Q_{pump,j}(t),
+    \qquad \frac{dW_s}{dt} = Q_s,
+    \qquad \Delta p_s(Q_s) = p_{up}(V_{up}) + \rho g h_{up} - p_{down}(V_{down})
+
+with :math:`\Delta p_s(Q)` the segment's losses from the line's own pressure-flow law
+(:meth:`rheoline.model.line.Line.solve` at prescribed flows: friction, developing flow,
+entrance, transition, fitting and exit losses, any rheology), tabulated on a log grid of
+flows and inverted by interpolation in (ln dp, ln Q); below the grid the law is continued
+linearly (laminar), reversed flow uses the same law (symmetric).  The system is stiff (a
+metre of tubing fills in milliseconds, a syringe in minutes), so it is integrated with
+scipy's BDF method and an analytic sparse Jacobian, every scenario in one state vector.
+The syringe's gauge pressure is the node's pressure; the other nodes are taken at the
+outlet's level (the head acts between the syringe and the line).
+
+Crossings (an outlet flow reaching 90 % of a set rate, a syringe pressure reaching an
+alarm) are found per scenario inside each step from the solver's dense output.
+
+The lumped compliance description is the one Snijder et al. (2015) review for syringe-pump
+set-ups (see :mod:`rheoline.model.transient`).
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+
+import numpy as np
+
+from rheoline.errors import RheolineError
+
+__all__ = ["FlowTable", "Network", "Pump", "integrate", "FirstCrossing", "Recorder"]
+
+#: Grid points per decade of flow in a segment's tabulated law (ln-ln interpolation
+#: error below about 1e-4 where the law bends, exact where it is linear).
+GRID_PER_DECADE = 40
+#: Sub-intervals of a solver step searched for a crossing.
+SUBSTEPS = 16
+
+
+@dataclass
+class FlowTable:
+    """A segment's losses against flow, ``ln dp`` on a grid of ``ln Q``, and its inverse.
+
+    ``log_dp`` has shape ``(n_grid, 1)`` (shared by every scenario) or ``(n_grid, N)``.
+    The inverse ``ln Q(ln dp)`` is a cubic Hermite interpolant through the grid with the
+    table's slopes (second-order differences), so the conductance dQ/d(dp) is continuous
+    (a stiff solver's Newton iteration needs that); below the grid the law is continued
+    linearly (laminar), above it as a power law with the last slope.
+    """
+
+    log_q: np.ndarray
+    log_dp: np.ndarray
+
+    def __post_init__(self):
+        self.shared = self.log_dp.shape[1] == 1
+        step = self.log_q[1] - self.log_q[0]
+        slope = np.gradient(self.log_dp, step, axis=0)  # d ln dp / d ln Q, > 0
+        self.du_dx = 1.0 / np.maximum(slope, 1e-6)
+        # laminar continuation below the grid: Q = G0 dp
+        self.g0 = np.exp(self.log_q[0] - self.log_dp[0])
+
+    def _interval(self, x):
+        n = self.log_q.size
+        if self.shared:
+            return np.clip(np.searchsorted(self.log_dp[:, 0], x) - 1, 0, n - 2)
+        cols = np.arange(x.shape[-1])
+        lo = np.zeros(x.shape, dtype=np.intp)
+        hi = np.full(x.shape, n - 1, dtype=np.intp)
+        while np.any(hi - lo > 1):
+            mid = (lo + hi) // 2
+            below = self.log_dp[mid, cols] <= x
+            lo = np.where(below, mid, lo)
+            hi = np.where(below, hi, mid)
+        return lo
+
+    def flow(self, dp):
+        """Flow [m^3/s], its slope dQ/d(dp) [m^3/(s Pa)] and where dp lies beyond the grid."""
+        dp = np.asarray(dp, dtype=float)
+        size = np.maximum(np.abs(dp), 1e-300)
+        x = np.log(size)
+        k = self._interval(x)
+        cols = 0 if self.shared else np.arange(x.shape[-1])
+        x0, x1 = self.log_dp[k, cols], self.log_dp[k + 1, cols]
+        u0, u1 = self.log_q[k], self.log_q[k + 1]
+        d0, d1 = self.du_dx[k, cols], self.du_dx[k + 1, cols]
+        h = x1 - x0
+        s = np.clip((x - x0) / h, 0.0, 1.0)
+        s2, s3 = s * s, s * s * s
+        u = (
+            (2 * s3 - 3 * s2 + 1) * u0
+            + (s3 - 2 * s2 + s) * h * d0
+            + (3 * s2 - 2 * s3) * u1
+            + (s3 - s2) * h * d1
+        )
+        du = (6 * s2 - 6 * s) * (u0 - u1) / h + (3 * s2 - 4 * s + 1) * d0 + (3 * s2 - 2 * s) * d1
+        last = self.log_dp[-1, cols]
+        beyond = x > last
+        u = np.where(beyond, self.log_q[-1] + (x - last) * self.du_dx[-1, cols], u)
+        du = np.where(beyond, self.du_dx[-1, cols], du)
+        q = np.exp(u)
+        slope = q * du / size
+        low = x < self.log_dp[0, cols]
+        g0 = self.g0[cols]
+        q = np.where(low, g0 * size, q)
+        slope = np.where(low, g0, slope)
+        return np.sign(dp) * q, slope, beyond
+
+    def drop(self, flow):
+        """Losses [Pa] at ``flow`` [m^3/s] >= 0 (for estimates), per scenario."""
+        q = np.maximum(np.asarray(flow, dtype=float), 1e-300)
+        u = np.log(q)
+        k = np.clip(np.searchsorted(self.log_q, u) - 1, 0, self.log_q.size - 2)
+        cols = 0 if self.shared else np.arange(np.shape(u)[-1])
+        d_f = self.log_dp[k + 1, cols] - self.log_dp[k, cols]
+        f = self.log_dp[k, cols] + (u - self.log_q[k]) * d_f / (self.log_q[k + 1] - self.log_q[k])
+        return np.where(u < self.log_q[0], q / self.g0[cols], np.exp(f))
+
+
+def tabulate(line, fluid, groups, exit_group, q_lo, q_hi, n_scenarios, shape):
+    """One :class:`FlowTable` per group of part indices of ``line`` (exit jet in ``exit_group``),
+    and the provenance keys of the line's solve."""
+    decades = np.log10(q_hi / q_lo)
+    n_grid = int(np.ceil(decades * GRID_PER_DECADE)) + 1
+    log_q = np.linspace(np.log(q_lo), np.log(q_hi), n_grid)
+    flows = np.exp(log_q).reshape((-1,) + (1,) * len(shape))
+    result = line.solve(fluid, flow=flows)
+    drops = np.asarray(result.part_pressure_drops)
+    exit_drop = np.asarray(result.exit_pressure_drop, dtype=float)
+    tables = []
+    for g, parts in enumerate(groups):
+        total = drops[list(parts)].sum(axis=0) if parts else np.zeros(drops.shape[1:])
+        if g == exit_group:
+            total = total + exit_drop
+        total = np.asarray(total)
+        if total.ndim > 1 and total[0].size > 1:
+            total = np.broadcast_to(total, (n_grid, *shape)).reshape(n_grid, n_scenarios)
+        else:
+            total = total.reshape(n_grid, 1)
+        log_dp = np.log(np.maximum(total, 1e-300))
+        # a strictly rising law (a flat piece would not invert): nudge repeats by 1 ulp
+        log_dp = np.maximum.accumulate(log_dp + 1e-12 * np.arange(n_grid)[:, None], axis=0)
+        tables.append(FlowTable(log_q, log_dp))
+    return tables, tuple(getattr(result, "models_used", ()))
+
+
+@dataclass
+class Pump:
+    """A pump feeding a node: its liquid-displacement rate (after slack) and break-loose valve."""
+
+    node: int
+    rate: object  # callable t -> (N,) [m^3/s]
+    valve_segment: int  # the segment its break-loose holds shut, or -1
+    break_time: np.ndarray  # (N,) [s] when the stopper breaks loose
+    name: str = "pump"
+
+
+@dataclass
+class Network:
+    """Nodes (stored volume laws) and segments (flow tables) of N scenarios, flattened."""
+
+    n: int
+    laws: list
+    labels: list
+    seg_up: np.ndarray
+    seg_down: np.ndarray  # -1: the outlet
+    tables: list
+    gravity: list  # (N,) drive [Pa] added to each segment (rho g h of a syringe upstream)
+    back_pressure: np.ndarray  # (N,)
+    pumps: list
+    seg_labels: list = field(default_factory=list)
+    closed: np.ndarray | None = None  # (n_seg,) bool: occluded segments
+    running: bool = True
+
+    def __post_init__(self):
+        self.nn = len(self.laws)
+        self.ns = len(self.tables)
+        self.nv = self.nn + self.ns
+        self.vscale = np.ones((self.nn, self.n))
+        self.wscale = np.ones(self.n)
+        self._pattern()
+        self.beyond_table = np.zeros(self.n, bool)
+
+    def set_scales(self, pressure_scale, volume_scale):
+        """State scales: node volumes by C p_ref, delivered volumes by ``volume_scale``."""
+        for j, law in enumerate(self.laws):
+            self.vscale[j] = np.maximum(law.compliance(0.0) * pressure_scale, 1e-300)
+        self.wscale = np.maximum(volume_scale, 1e-300)
+
+    def _pattern(self):
+        rows, cols = [], []
+        for s in range(self.ns):
+            up, down = int(self.seg_up[s]), int(self.seg_down[s])
+            w = self.nn + s
+            pairs = [(up, up), (w, up)]
+            if down >= 0:
+                pairs += [(up, down), (down, up), (down, down), (w, down)]
+            for r, c in pairs:
+                rows.append(r)
+                cols.append(c)
+        self._rows = np.array(rows, dtype=np.intp)
+        self._cols = np.array(cols, dtype=np.intp)
+        base = np.arange(self.n)
+        self._flat_rows = (self._rows[:, None] * self.n + base).ravel()
+        self._flat_cols = (self._cols[:, None] * self.n + base).ravel()
+
+    # ------------------------------------------------------------------ state
+    def split(self, y):
+        """Node volumes (nn, N) [m^3] and delivered volumes (ns, N) [m^3] of a flat state."""
+        y = np.asarray(y).reshape(self.nv, self.n)
+        return y[: self.nn] * self.vscale, y[self.nn :] * self.wscale
+
+    def join(self, volumes, delivered):
+        """The flat state of node volumes and delivered volumes."""
+        y = np.concatenate([volumes / self.vscale, delivered / self.wscale[None]])
+        return y.ravel()
+
+    def pressures(self, volumes):
+        """Gauge pressure (nn, N) [Pa] of every node."""
+        return np.stack([law.pressure(volumes[j]) for j, law in enumerate(self.laws)])
+
+    def volumes_at(self, pressures):
+        """Stored volume (nn, N) [m^3] of every node at ``pressures``."""
+        return np.stack([law.volume(pressures[j]) for j, law in enumerate(self.laws)])
+
+    def open_factor(self, t):
+        """(ns, N) 1 where a segment passes flow at time ``t``, 0 where it is shut."""
+        out = np.ones((self.ns, self.n))
+        for pump in self.pumps:
+            if pump.valve_segment >= 0:
+                out[pump.valve_segment] *= t >= pump.break_time
+        if self.closed is not None:
+            out[self.closed] = 0.0
+        return out
+
+    def flows(self, t, pressures):
+        """Flow (ns, N) [m^3/s] and slope dQ/d(dp) of every segment."""
+        q = np.empty((self.ns, self.n))
+        g = np.empty((self.ns, self.n))
+        for s, table in enumerate(self.tables):
+            down = self.seg_down[s]
+            p_down = self.back_pressure if down < 0 else pressures[down]
+            dp = pressures[self.seg_up[s]] + self.gravity[s] - p_down
+            q[s], g[s], beyond = table.flow(dp)
+            self.beyond_table |= beyond
+        factor = self.open_factor(t)
+        return q * factor, g * factor
+
+    def pump_rates(self, t):
+        """(nn, N) [m^3/s] liquid displaced into each node at time ``t``."""
+        out = np.zeros((self.nn, self.n))
+        if self.running:
+            for pump in self.pumps:
+                out[pump.node] += pump.rate(t)
+        return out
+
+    def outlet_flow(self, q):
+        """Flow (N,) [m^3/s] through the outlet: the sum over segments ending there."""
+        return q[self.seg_down < 0].sum(axis=0)
+
+    def outlet_flow_of(self, t, y):
+        """Outlet flow (N,) [m^3/s] of a flat state at time ``t``."""
+        volumes, _ = self.split(y)
+        q, _ = self.flows(t, self.pressures(volumes))
+        return self.outlet_flow(q)
+
+    def delivered_of(self, y):
+        """Volume (N,) [m^3] delivered through the outlet, of a flat state."""
+        _, delivered = self.split(y)
+        return delivered[self.seg_down < 0].sum(axis=0)
+
+    # ------------------------------------------------------------------ ODE
+    def rhs(self, t, y):
+        volumes, _ = self.split(y)
+        p = self.pressures(volumes)
+        q, _ = self.flows(t, p)
+        dv = self.pump_rates(t)
+        np.subtract.at(dv, self.seg_up, q)
+        inner = self.seg_down >= 0
+        np.add.at(dv, self.seg_down[inner], q[inner])
+        return np.concatenate([dv / self.vscale, q / self.wscale[None]]).ravel()
+
+    def jac(self, t, y):
+        from scipy.sparse import coo_matrix
+
+        volumes, _ = self.split(y)
+        p = self.pressures(volumes)
+        _, g = self.flows(t, p)
+        inv_c = np.stack([1.0 / law.compliance(p[j]) for j, law in enumerate(self.laws)]) * np.ones(
+            (1, self.n)
+        )
+        scale = np.concatenate([self.vscale, np.broadcast_to(self.wscale, (self.ns, self.n))])
+        data = []
+        for s in range(self.ns):
+            up, down = int(self.seg_up[s]), int(self.seg_down[s])
+            a = g[s] * inv_c[up]  # dQ/dV_up
+            data += [-a, a]
+            if down >= 0:
+                b = g[s] * inv_c[down]  # -dQ/dV_down
+                data += [b, a, -b, -b]
+        values = np.stack(data) * scale[self._cols] / scale[self._rows]
+        size = self.nv * self.n
+        return coo_matrix(
+            (values.ravel(), (self._flat_rows, self._flat_cols)), shape=(size, size)
+        ).tocsc()
+
+
+@dataclass
+class FirstCrossing:
+    """First time (per scenario) a quantity passes a threshold inside a window.
+
+    ``quantity(t, y) -> (N,)`` (trackers sharing one function evaluate it once);
+    ``direction`` +1 waits for the value to rise to ``threshold``, -1 to fall to it.  The
+    window is ``t_from <= t < t_until`` (arrays (N,)).  With ``keep_state`` the flat state
+    at the crossing is kept in ``state`` (nv, N).
+    """
+
+    quantity: object
+    threshold: np.ndarray
+    t_from: np.ndarray
+    t_until: np.ndarray
+    direction: np.ndarray | float = 1.0
+    keep_state: bool = False
+
+    def __post_init__(self):
+        self.time = np.full(np.shape(self.threshold), np.nan)
+        self.state = None
+
+    @property
+    def done(self):
+        """True where the crossing has been found."""
+        return ~np.isnan(self.time)
+
+    def _past(self, values):
+        finite = np.isfinite(self.threshold)
+        gap = values - np.where(finite, self.threshold, 0.0)
+        return np.where(finite, self.direction * gap, -np.inf)
+
+    def wants(self, t_old, t_new, value_new):
+        """True when some open scenario has passed the threshold by ``t_new``."""
+        open_ = np.isnan(self.time) & (self.t_from <= t_new) & (self.t_until > t_old)
+        return bool(np.any(open_ & (self._past(value_new) >= 0)))
+
+    def update(self, times, values, states):
+        """Record crossings from sub-step samples (K+1 times, values (K+1, N))."""
+        n = values.shape[1]
+        past = self._past(values)
+        inside = (times[:, None] >= self.t_from) & (times[:, None] < self.t_until)
+        hit = inside & (past >= 0) & np.isnan(self.time)
+        found = hit.any(axis=0)
+        if not np.any(found):
+            return
+        k = np.argmax(hit, axis=0)
+        prev = np.maximum(k - 1, 0)
+        cols = np.arange(n)
+        s0, s1 = past[prev, cols], past[k, cols]
+        t0, t1 = times[prev], times[k]
+        first_inside = (k == 0) | ~inside[prev, cols] | ~np.isfinite(s0)
+        rise = np.where(first_inside, 1.0, s1 - np.where(first_inside, 0.0, s0))
+        weight = np.where(first_inside | (rise <= 0), 1.0, -s0 / np.where(rise > 0, rise, 1.0))
+        weight = np.clip(weight, 0.0, 1.0)
+        t_cross = np.where(first_inside, np.maximum(self.t_from, t0), t0 + weight * (t1 - t0))
+        self.time = np.where(found, t_cross, self.time)
+        if self.keep_state:
+            cross = states[:, prev, cols] + weight * (states[:, k, cols] - states[:, prev, cols])
+            self.state = cross if self.state is None else np.where(found, cross, self.state)
+
+
+@dataclass
+class Recorder:
+    """Collects, at every solver step, the time, node volumes, flows, delivered volumes and
+    pump rates.  Flows and rates at a step's end are its left limits (a pump that starts at
+    a breakpoint shows in the step after it).
+    """
+
+    net: Network
+    keep: bool = True
+
+    def __post_init__(self):
+        self.t, self.volumes, self.flows, self.delivered, self.rates = [], [], [], [], []
+
+    def add(self, t, y, left=True):
+        if not self.keep:
+            return
+        net = self.net
+        t_eval = t - 1e-9 * max(1.0, abs(t)) if left else t
+        volumes, delivered = net.split(y)
+        q, _ = net.flows(t_eval, net.pressures(volumes))
+        self.t.append(float(t))
+        self.volumes.append(volumes)
+        self.flows.append(q)
+        self.delivered.append(delivered)
+        self.rates.append(
+            np.stack([p.rate(t_eval) if net.running else np.zeros(net.n) for p in net.pumps])
+        )
+
+    def arrays(self):
+        """time (n_t,), volumes (n_t, nn, N), flows and delivered (n_t, ns, N), rates (n_t,
+        n_pumps, N)."""
+        return tuple(
+            np.array(a) for a in (self.t, self.volumes, self.flows, self.delivered, self.rates)
+        )
+
+
+def _by_quantity(trackers):
+    groups = {}
+    for tracker in trackers:
+        groups.setdefault(id(tracker.quantity), []).append(tracker)
+    return list(groups.values())
+
+
+def _sample(net, dense, t_old, t_new, trackers):
+    times = np.linspace(t_old, t_new, SUBSTEPS + 1)
+    states = dense(times).reshape(net.nv, net.n, times.size).transpose(0, 2, 1)  # (nv, K+1, N)
+    for group in _by_quantity(trackers):
+        quantity = group[0].quantity
+        values = np.stack([quantity(t, states[:, i, :].ravel()) for i, t in enumerate(times)])
+        for tracker in group:
+            tracker.update(times, values, states)
+
+
+def integrate(net, y0, t0, t1, breaks=(), trackers=(), recorder=None, stop=None, rtol=1e-6):
+    """Integrate ``net`` from ``t0`` to ``t1`` [s], restarting at ``breaks``; returns (y, t).
+
+    ``stop(t, y)`` is asked after every step and ends the integration when True.
+    """
+    from scipy.integrate import BDF
+
+    points = np.unique(np.concatenate([[t0, t1], [b for b in breaks if t0 < b < t1]]))
+    y = np.asarray(y0, dtype=float)
+    if recorder is not None:
+        recorder.add(t0, y, left=False)
+    t = t0
+    for a, b in zip(points[:-1], points[1:], strict=True):
+        solver = BDF(net.rhs, a, y, b, rtol=rtol, atol=rtol * 1e-2, jac=net.jac)
+        while solver.status == "running":
+            message = solver.step()
+            if solver.status == "failed":
+                raise RheolineError(
+                    f"the time solve failed at t = {solver.t:.6g} s ({message}); try a "
+                    "shorter duration or check the compliances and rates for extreme values"
+                )
+            _step_done(net, solver, trackers, recorder)
+            if stop is not None and stop(solver.t, solver.y):
+                return solver.y, solver.t
+        y, t = solver.y, solver.t
+    return y, t
+
+
+def _step_done(net, solver, trackers, recorder):
+    t_old, t_new, y_new = solver.t_old, solver.t, solver.y
+    wanting = []
+    for group in _by_quantity(trackers):
+        value = group[0].quantity(t_new, y_new)
+        wanting += [tr for tr in group if tr.wants(t_old, t_new, value)]
+    if wanting:
+        _sample(net, solver.dense_output(), t_old, t_new, wanting)
+    if recorder is not None:
+        recorder.add(t_new, y_new)
