@@ -17,6 +17,9 @@ Run ``python benchmarks/run.py [--n N] [--json]`` from the repository root after
 4. ``monte_carlo_10k_ms``: a 10,000-sample tolerance band (:func:`rheoline.flow_tolerance`);
 5. ``network``: a 4-branch network for N scenarios (``benchmarks/network.py``): Newton steps,
    residual passes and the ratio against a per-scenario :func:`scipy.optimize.root` loop;
+   ``transient``: start-up time and time to occlusion alarm for min(N, 10,000) scenarios
+   in one time solve (``benchmarks/transient.py``), with the ratio against solving them one
+   scenario at a time;
 6. ``widget_update_ms``: one control change in the line view and the comparison view
    (7 candidates x 200 points, 2,000-sample tolerance band), median of 20;
 7. ``import_model_ms``: importing the model layer in a fresh interpreter.
@@ -48,6 +51,7 @@ sys.path.insert(0, str(Path(__file__).resolve().parent))
 
 import network as network_case  # noqa: E402  (the script's own folder)
 import scalar_reference as scalar  # noqa: E402
+import transient as transient_case  # noqa: E402  (the script's own folder)
 
 import rheoline  # noqa: E402
 from rheoline.model.line import Line  # noqa: E402
@@ -465,6 +469,10 @@ def figures(report):
     if net:  # the 4-branch network case (benchmarks/network.py)
         for key in ("speedup_vs_scipy_loop", "residual_passes", "max_relative_difference"):
             flat[f"network.{key}"] = float(net[key])
+    tr = report.get("transient")
+    if tr:  # start-up and time to alarm (benchmarks/transient.py)
+        for key in ("speedup_vs_scenario_loop", "vector_solve_ms", "max_relative_difference"):
+            flat[f"transient.{key}"] = float(tr[key])
     return flat
 
 
@@ -490,13 +498,18 @@ def run(n=100_000, repeats=7, widget_repeats=20, import_repeats=7, subset_scale=
         "widget_update_ms": widget_ms(widget_repeats),
         "import_model_ms": import_ms(import_repeats),
         "network": network_case.run(n, min(3, repeats), subset_scale),
+        "transient": transient_case.run(n, 1, subset_scale),
     }
     report["load_average_after"] = load_average()
     report["figures"] = figures(report)
     report["targets"] = [
         {"figure": k, "value": v, "target": t, "holds": bool(ok)} for k, v, t, ok in targets(report)
     ]
-    report["all_agree"] = all(row["agree"] for row in rows) and report["network"]["agree"]
+    report["all_agree"] = (
+        all(row["agree"] for row in rows)
+        and report["network"]["agree"]
+        and report["transient"]["agree"]
+    )
     return report
 
 
@@ -562,6 +575,14 @@ def table(report):
             f"{net['scipy_us_per_scenario']:.0f} us; ratio {net['speedup_vs_scipy_loop']:.0f}x; "
             f"max rel diff {net['max_relative_difference']:.1e}; "
             f"{net['reversed_scenarios']:,} with backflow into the bag"
+        )
+    tr = report.get("transient")
+    if tr:
+        out.append(
+            f"time solve (benchmarks/transient.py), {tr['n']:,} scenarios, start-up and time to "
+            f"alarm: {tr['vector_solve_ms']:.0f} ms; one scenario at a time "
+            f"{tr['loop_ms_per_scenario']:.0f} ms each; ratio {tr['speedup_vs_scenario_loop']:.0f}x; "
+            f"max rel diff {tr['max_relative_difference']:.1e}"
         )
     out.append("")
     w = report["widget_update_ms"]

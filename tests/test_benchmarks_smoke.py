@@ -48,6 +48,9 @@ EXPECTED_FIGURES = [
     "network.speedup_vs_scipy_loop",
     "network.residual_passes",
     "network.max_relative_difference",
+    "transient.speedup_vs_scenario_loop",
+    "transient.vector_solve_ms",
+    "transient.max_relative_difference",
 ]
 
 
@@ -200,3 +203,13 @@ def test_scalar_carreau_tube_flow_limits():
 def test_scalar_solve_flow_gives_no_flow_without_drive():
     sline = scalar.ScalarLine([(3.0e-3, 1.8)])
     assert scalar.solve_flow(sline, scalar.ScalarNewtonian(1e-3, 998.0), head=0.0) == (0.0, 0)
+
+
+def test_transient_case_agrees_with_its_per_scenario_solves():
+    # no timing asserted: the vectorized figures must equal the one-at-a-time ones
+    case = _load("transient")
+    report = case.run(4, repeats=1, subset_scale=0.5)
+    assert report["n"] == 4 and report["agree"] is True
+    assert report["max_relative_difference"] < 1e-3
+    low, high = report["time_to_alarm_min_range"]
+    assert 0 < low < high
