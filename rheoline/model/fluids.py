@@ -38,7 +38,6 @@ import numpy as np
 
 from rheoline.errors import InputRangeError, RangeWarning
 from rheoline.model import blood, viscosity
-from rheoline.model.fitting import TEMPERATURE_MODEL_KEYS
 from rheoline.model.fluid_base import Fluid, FluidRecipe
 from rheoline.model.fluid_builders import (
     albumin_builder,
@@ -51,6 +50,7 @@ from rheoline.model.fluid_builders import (
     build_water,
     newtonian_liquid,
 )
+from rheoline.model.temperature_fit import TEMPERATURE_MODEL_KEYS
 from rheoline.model.validation import check_positive
 
 __all__ = [
@@ -452,7 +452,7 @@ def user_fluid_from_temperatures(
     >>> round(oil.viscosity() * 1e3, 1), oil.temperature_c
     (38.2, 30.0)
     """
-    from rheoline.model.fitting import fit_viscosity_temperature
+    from rheoline.model.temperature_fit import fit_viscosity_temperature
 
     temps = viscosity.check_temperature_c(temperatures_c, "temperatures_c")
     fit = fit_viscosity_temperature(temps, viscosities, model)

@@ -19,7 +19,7 @@ FLUID_ENTRIES = (
         "liquid water at 1 atm, 0-100 degC (the formulation itself spans far wider)",
         {"temperature_c": (0.0, 100.0)},
         cite="Huber",
-        used_in=(_M + "viscosity.iapws_2008_viscosity", _M + "viscosity.water_viscosity"),
+        used_in=(_M + "water.iapws_2008_viscosity", _M + "water.water_viscosity"),
     ),
     ModelEntry(
         "kell-1975",
@@ -31,7 +31,7 @@ FLUID_ENTRIES = (
         "fitted 0-150 degC; used for liquid water at 1 atm, 0-100 degC",
         {"temperature_c": (0.0, 100.0)},
         cite="Kell",
-        used_in=(_M + "viscosity.kell_1975_water_density",),
+        used_in=(_M + "water.kell_1975_water_density",),
     ),
     ModelEntry(
         "laliberte-2007",
@@ -45,7 +45,7 @@ FLUID_ENTRIES = (
         "(NaCl 0.26, KCl 0.26, CaCl2 0.51)",
         {"temperature_c": (0.0, 100.0)},
         cite="Laliberte",
-        used_in=(_M + "viscosity.laliberte_2007_viscosity",),
+        used_in=(_M + "solutions.laliberte_2007_viscosity",),
     ),
     ModelEntry(
         "laliberte-cooper-2004",
@@ -57,7 +57,7 @@ FLUID_ENTRIES = (
         "0-100 degC; each solute up to the mass fraction of its fitted data",
         {"temperature_c": (0.0, 100.0)},
         cite="Laliberte & Cooper",
-        used_in=(_M + "viscosity.laliberte_cooper_2004_density",),
+        used_in=(_M + "solutions.laliberte_cooper_2004_density",),
     ),
     ModelEntry(
         "dextrose-5-relative",
@@ -71,7 +71,7 @@ FLUID_ENTRIES = (
         {"temperature_c": (0.0, 100.0)},
         recalled=True,
         cite="1.13",
-        used_in=(_M + "viscosity.dextrose_5_viscosity",),
+        used_in=(_M + "solutions.dextrose_5_viscosity",),
     ),
     ModelEntry(
         "albumin-mooney",
@@ -85,7 +85,7 @@ FLUID_ENTRIES = (
         {"concentration": (0.0, 300.0)},
         recalled=True,
         cite="Mooney",
-        used_in=(_M + "viscosity.albumin_viscosity",),
+        used_in=(_M + "solutions.albumin_viscosity",),
     ),
     ModelEntry(
         "cheng-2008",
@@ -98,8 +98,8 @@ FLUID_ENTRIES = (
         {"temperature_c": (0.0, 100.0), "mass_fraction": (0.0, 1.0)},
         cite="Cheng",
         used_in=(
-            _M + "viscosity.glycerol_water_viscosity",
-            _M + "viscosity.glycerol_fraction_for_viscosity",
+            _M + "glycerol.glycerol_water_viscosity",
+            _M + "glycerol.glycerol_fraction_for_viscosity",
         ),
     ),
     ModelEntry(
@@ -113,7 +113,7 @@ FLUID_ENTRIES = (
         "aqueous-glycerol fit within 0.3 % (checked in the tests)",
         {"temperature_c": (0.0, 40.0)},
         cite="Volk & Kaehler",
-        used_in=(_M + "viscosity.glycerol_water_density",),
+        used_in=(_M + "glycerol.glycerol_water_density",),
     ),
     ModelEntry(
         "andrade-1930",
@@ -124,7 +124,7 @@ FLUID_ENTRIES = (
         "within the measured temperatures (the fit warns outside them)",
         {},
         cite="Andrade",
-        used_in=(_M + "fitting.fit_viscosity_temperature",),
+        used_in=(_M + "temperature_fit.fit_viscosity_temperature",),
     ),
     ModelEntry(
         "vft",
@@ -136,7 +136,7 @@ FLUID_ENTRIES = (
         "within the measured temperatures (the fit warns outside them)",
         {},
         cite="Vogel",
-        used_in=(_M + "fitting.fit_viscosity_temperature",),
+        used_in=(_M + "temperature_fit.fit_viscosity_temperature",),
     ),
     # ------------------------------------------------------------------ blood
     ModelEntry(
