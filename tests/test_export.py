@@ -99,16 +99,13 @@ def fake_run(names):
     inputs = pd.DataFrame(
         {"scenario": names, "field": ["name"] * len(names), "value as written": names}
     )
-    assumptions = pd.DataFrame(
-        {"topic": ["t"], "model": [HOSTILE[0]], "reference": ["r"], "notes": ["n"]}
-    )
     return RunResult(
         sset,
         table,
         parts,
         inputs,
+        models_used=("iapws-2008", "kell-1975", "hagen-poiseuille", "shah-1978"),
         notes=(Note("", None, "warning", HOSTILE[1]),),
-        assumptions=assumptions,
     )
 
 
@@ -172,7 +169,14 @@ def test_csv_reads_back_with_pandas(hostile_pack):
 def test_xlsx_holds_no_formula_and_every_sheet(hostile_pack):
     _, folder = hostile_pack
     wb = openpyxl.load_workbook(folder / "results.xlsx")
-    assert wb.sheetnames[:5] == ["results", "parts", "scenario inputs", "assumptions", "cautions"]
+    assert wb.sheetnames == [
+        "results",
+        "parts",
+        "scenario inputs",
+        "assumptions",
+        "cautions",
+        "about",
+    ]
     for ws in wb.worksheets:
         assert ws["A1"].value == "caution: " + rheoline.CAUTION
         for row in ws.iter_rows():
@@ -425,3 +429,210 @@ def test_scenario_copy_and_hash_are_of_the_bytes_as_given(tmp_path):
     assert (folder / "scenario-crlf.toml").read_bytes() == data
     manifest = json.loads((folder / "manifest.json").read_text())
     assert manifest["input_sha256"] == hashlib.sha256(data).hexdigest()
+
+
+# --------------------------------------------------------------------------- models used
+# What a pack states about its basis must be exactly what the run computed (issue 11): the
+# assumptions sheet (assumptions.csv, the workbook's "assumptions" sheet) and the report's
+# "Models used" section list the run's models_used, read from the provenance registry.
+SALINE_FILE = """format_version = 1
+title = "saline only"
+[[scenario]]
+name = "saline by gravity"
+fluid = "saline-0.9"
+head = ["50 cm", "1 m"]
+[[scenario.part]]
+type = "tube"
+inner_diameter = "3 mm"
+length = "1.8 m"
+[[scenario.part]]
+type = "catheter"
+gauge = [18, 20]
+"""
+
+BLOOD_FILE = """format_version = 1
+title = "whole blood"
+[[scenario]]
+name = "blood bag"
+fluid = "whole-blood"
+hematocrit = 0.45
+temperature = "37 degC"
+head = "1 m"
+source_pressure = "300 mmHg"
+[[scenario.part]]
+type = "tube"
+inner_diameter = "3 mm"
+length = "1.8 m"
+[[scenario.part]]
+type = "catheter"
+gauge = 18
+"""
+
+
+def _blood_only_keys():
+    """Registry keys that only a fluid with red cells, or a vessel, would use."""
+    from rheoline.model.provenance import REGISTRY
+
+    blood = rheoline.fluid("whole-blood", temperature_c=37.0, hematocrit=0.45).models_used
+    saline = rheoline.fluid("saline-0.9", temperature_c=22.0).models_used
+    keys = (set(blood) | {"pries-1992", "pries-1994", "giersiepen-1990"}) - set(saline)
+    assert keys <= set(REGISTRY)
+    return keys
+
+
+def _pack_of(text, name, folder):
+    from rheoline.scenario.compare import run_scenarios
+
+    run = run_scenarios(loads_scenarios(text, source=name))
+    return run, write_pack(run, folder)
+
+
+class _Text(HTMLParser):
+    """The visible text of a page (scripts and styles left out), and of one section."""
+
+    def __init__(self, section_id):
+        super().__init__(convert_charrefs=True)
+        self.section_id, self.text, self.section = section_id, [], []
+        self._skip = self._in_section = False
+        self._cell = None
+
+    def handle_starttag(self, tag, attrs):
+        self._skip = tag in ("script", "style")
+        if tag == "h2":
+            self._in_section = dict(attrs).get("id") == self.section_id
+        if self._in_section and tag == "tr":
+            self.section.append([])
+
+    def handle_endtag(self, tag):
+        self._skip = False
+
+    def handle_data(self, data):
+        if not self._skip:
+            self.text.append(data)
+            if self._in_section and self.section:
+                self.section[-1].append(data)
+
+
+def _stated(folder):
+    """What each file of a pack says the run used: (keys per file, all of its text)."""
+    csv_table = pd.read_csv(folder / "assumptions.csv", skiprows=1, keep_default_na=False)
+    wb = openpyxl.load_workbook(folder / "results.xlsx", read_only=True)
+    rows = list(wb["assumptions"].iter_rows(min_row=2, values_only=True))
+    sheet = [dict(zip(rows[0], r, strict=True)) for r in rows[1:]]
+    xlsx_text = " ".join(
+        str(c) for ws in wb.worksheets for r in ws.iter_rows(values_only=True) for c in r if c
+    )
+    page = _Text("models-used")
+    page.feed((folder / "report.html").read_text(encoding="utf-8"))
+    html_rows = [r for r in page.section if r][1:]  # the header row first
+    keys = {
+        "csv": csv_table["model"].tolist(),
+        "xlsx": [r["model"] for r in sheet],
+        "html": [r[0] for r in html_rows],
+    }
+    texts = {
+        "csv": (folder / "assumptions.csv").read_text(encoding="utf-8"),
+        "xlsx": xlsx_text,
+        "html": " ".join(page.text),
+    }
+    return keys, texts, csv_table
+
+
+def test_a_saline_pack_names_no_blood_model_no_pries_and_no_hemolysis_law(tmp_path):
+    from rheoline.model.provenance import REGISTRY
+
+    run, folder = _pack_of(SALINE_FILE, "saline.toml", tmp_path / "pack")
+    used = list(run.models_used)
+    assert used and "hagen-poiseuille" in used
+    keys, texts, table = _stated(folder)
+    assert keys == {"csv": used, "xlsx": used, "html": used}
+    for key in _blood_only_keys():
+        entry = REGISTRY[key]
+        for where, text in texts.items():
+            assert entry.title not in text, (key, where)
+            assert entry.reference[:40] not in text, (key, where)
+    for where, text in texts.items():
+        for word in ("Pries", "Giersiepen", "Carreau", "Casson", "Quemada", "Cho & Kensey"):
+            assert word not in text, (word, where)
+    # the rows are the registry's own words
+    first = REGISTRY[used[0]]
+    assert table.iloc[0][["title", "reference", "validity"]].tolist() == [
+        first.title,
+        first.reference,
+        first.validity,
+    ]
+    manifest = json.loads((folder / "manifest.json").read_text(encoding="utf-8"))
+    assert manifest["models_used"] == used and manifest["version"] == rheoline.__version__
+
+
+def test_a_whole_blood_pack_names_the_blood_model_it_used(tmp_path):
+    from rheoline.model.provenance import REGISTRY
+
+    run, folder = _pack_of(BLOOD_FILE, "blood.toml", tmp_path / "pack")
+    used = list(run.models_used)
+    blood = rheoline.fluid("whole-blood", temperature_c=37.0, hematocrit=0.45).models_used
+    assert set(blood) <= set(used) and "giersiepen-1990" in used
+    keys, texts, table = _stated(folder)
+    assert keys == {"csv": used, "xlsx": used, "html": used}
+    for key in set(blood) - set(rheoline.fluid("saline-0.9").models_used):
+        for where, text in texts.items():
+            assert REGISTRY[key].title in text, (key, where)
+    # DOIs where the registry has one, a mark where its values were recalled
+    for row in table.itertuples(index=False):
+        entry = REGISTRY[row.model]
+        assert row.DOI == (entry.doi or "")
+        assert bool(row[table.columns.get_loc("recalled values")]) == entry.recalled
+
+
+def test_a_correction_is_named_only_where_it_was_applied(tmp_path):
+    # Churchill 1977 corrects the friction beyond laminar flow: a laminar saline file's pack
+    # does not name it; the same line driven hard enough to be turbulent does
+    from rheoline.model.provenance import REGISTRY
+
+    churchill = REGISTRY["churchill-1977"].title
+    hard = SALINE_FILE.replace('head = ["50 cm", "1 m"]', 'source_pressure = "300 mmHg"')
+    for text, name in ((SALINE_FILE, "laminar.toml"), (hard, "turbulent.toml")):
+        run, folder = _pack_of(text, name, tmp_path / name)
+        beyond_laminar = bool((run.table["regime"] != "laminar").any())
+        assert beyond_laminar is (name == "turbulent.toml")  # the files do what they say
+        keys, texts, _ = _stated(folder)
+        for where in ("csv", "xlsx", "html"):
+            assert ("churchill-1977" in keys[where]) is beyond_laminar, (name, where)
+            assert (churchill in texts[where]) is beyond_laminar, (name, where)
+
+
+def test_hemolysis_and_cold_blood_cautions_only_for_red_cells(tmp_path):
+    _, saline = _pack_of(SALINE_FILE, "saline.toml", tmp_path / "saline")
+    _, blood = _pack_of(BLOOD_FILE, "blood.toml", tmp_path / "blood")
+    for folder, expected in ((saline, False), (blood, True)):
+        wb = openpyxl.load_workbook(folder / "results.xlsx", read_only=True)
+        cautions = " ".join(
+            str(c) for r in wb["cautions"].iter_rows(values_only=True) for c in r if c
+        )
+        page = (folder / "report.html").read_text(encoding="utf-8")
+        assert ("Hemolysis: the indicator" in cautions) is expected
+        assert ("Cold blood products" in page) is expected
+        assert "Air embolism" in cautions and "Air embolism" in page
+
+
+def test_the_inputs_sheet_echoes_the_scenario_description(tmp_path):
+    from rheoline.scenario.files import dump_scenarios
+
+    run, folder = _pack_of(BLOOD_FILE, "blood.toml", tmp_path / "pack")
+    wb = openpyxl.load_workbook(folder / "results.xlsx", read_only=True)
+    rows = {
+        tuple(str(c) for c in r)
+        for r in wb["scenario inputs"].iter_rows(min_row=3, values_only=True)
+    }
+    for row in [
+        ("blood bag", "fluid", "whole-blood"),
+        ("blood bag", "hematocrit", "0.45"),
+        ("blood bag", "temperature", "37 degC"),
+        ("blood bag", "source_pressure", "300 mmHg"),
+        ("blood bag", "part[1].type", "tube"),
+        ("blood bag", "part[2].gauge", "18"),
+    ]:
+        assert row in rows, row
+    # the description the pack echoes writes back to the same scenarios
+    again = loads_scenarios(dump_scenarios(run.scenario_set), source="again.toml")
+    assert again == run.scenario_set

@@ -4,7 +4,7 @@ One parametrized test walks every output the toolkit produces for a person to re
 
 * command line: every command of the parser alone (with the example file where it needs
   one), ``run --json``, a printed example, and ``--help`` of the program and of each command;
-* the review pack: both CSV files, every sheet of the workbook, the HTML report and the
+* the review pack: every CSV file, every sheet of the workbook, the HTML report and the
   manifest;
 * the views: each tab of the app (line, comparison, blood and vessels, files), each with
   the banner as its first child.
@@ -27,6 +27,7 @@ from rel_record import bump, module_recorder
 
 import rheoline
 from rheoline import cli
+from rheoline.scenario.export import PACK_FILES
 from rheoline.scenario.files import example_path
 
 _record = module_recorder("cautions", "cautions:")
@@ -129,7 +130,7 @@ OUTPUTS = (
     + [(f"cli {c} --help", "cli", [c, "--help"]) for c in COMMANDS]
     + [
         (f"pack {n}", "pack", n)
-        for n in ("results.csv", "parts.csv", "report.html", "manifest.json", "results.xlsx")
+        for n in PACK_FILES  # every file of a pack (the scenario copy is the user's own)
     ]
     + [(f"view {t}", "view", t) for t in _tabs()]
 )

@@ -41,7 +41,6 @@ from rheoline.scenario.run import (
     RunResult,
     run_scenarios,
 )
-from rheoline.scenario.tables import ASSUMPTIONS
 
 # the column lists under their former names (the packs' tests build fake runs with them)
 _COLUMNS, _PART_COLUMNS = TABLE_COLUMNS, PART_COLUMNS
@@ -61,5 +60,4 @@ __all__ = [
     "within_limits",
     "fluid_table",
     "parts_table",
-    "ASSUMPTIONS",
 ]

@@ -5,13 +5,15 @@
 
 - ``results.csv``: the comparison table, a row per scenario or sweep point;
 - ``parts.csv``: a row per part of every line (pressure drop, Reynolds number, shear);
-- ``results.xlsx``: sheets *results*, *parts*, *scenario inputs*, *assumptions* (the models
-  used with their references), *cautions* and *about*;
+- ``assumptions.csv``: the models the run used, with their references (generated from the
+  run's ``models_used`` and the provenance registry, :mod:`rheoline.scenario.pack_sources`);
+- ``results.xlsx``: sheets *results*, *parts*, *scenario inputs* (the scenario description
+  echoed field by field), *assumptions* (as ``assumptions.csv``), *cautions* and *about*;
 - ``report.html``: one self-contained page (plotly charts embedded, no network needed) with
   the caution at the top, the results, the inputs echoed, the tool version, the date and
   the SHA-256 hash of the scenario file;
 - a byte-for-byte copy of the scenario file, and ``manifest.json`` (tool version, date, input
-  hash, caution, and the SHA-256 hash of every file).
+  hash, the provenance keys of the models used, caution, and the SHA-256 hash of every file).
 
 Every file carries the caution text :data:`rheoline.CAUTION` (the first row of each CSV file
 and sheet, the top of the HTML page, a field of the manifest).
@@ -23,7 +25,8 @@ The work is shared by idea:
 - :mod:`rheoline.scenario.pack_tables`: spreadsheet-safe cells
   (:func:`neutralize_cell`), the CSV and XLSX writers;
 - :mod:`rheoline.scenario.pack_report`: the HTML report (every text escaped);
-- :mod:`rheoline.scenario.pack_sources`: the cautions and the run's notes.
+- :mod:`rheoline.scenario.pack_sources`: the models used with their references, the
+  cautions and the run's notes.
 """
 
 from __future__ import annotations
@@ -107,15 +110,18 @@ def _write_all(run, folder: Path):
     caution = _caution()
     title_row = "caution: " + caution
     meta = pack_metadata(run)
+    assumptions = pack_sources.assumptions_table(meta["models_used"])
     copy_name, scenario_text = _write_scenario_copy(run.scenario_set, folder)
     pack_tables.write_csv(run.table, folder / "results.csv", title_row)
     pack_tables.write_csv(run.parts, folder / "parts.csv", title_row)
+    pack_tables.write_csv(assumptions, folder / "assumptions.csv", title_row)
     cautions = pack_sources.cautions_list(run, caution)
-    pack_tables.write_xlsx(folder / "results.xlsx", _sheets(run, meta, cautions), title_row)
+    sheets = _sheets(run, meta, assumptions, cautions)
+    pack_tables.write_xlsx(folder / "results.xlsx", sheets, title_row)
     page = pack_report.report_html(
         run,
         meta,
-        assumptions=run.assumptions,
+        assumptions=assumptions,
         cautions=cautions[1:],
         notes=pack_sources.run_notes(run),
         scenario_text=scenario_text,
@@ -127,17 +133,18 @@ def _write_all(run, folder: Path):
     (folder / "manifest.json").write_text(json.dumps(manifest, indent=2), encoding="utf-8")
 
 
-def _sheets(run, meta, cautions):
+def _sheets(run, meta, assumptions, cautions):
     """The workbook's sheets, in order: name -> DataFrame."""
     import pandas as pd
 
+    about = {k: ", ".join(v) if isinstance(v, list) else str(v) for k, v in meta.items()}
     return {
         "results": run.table,
         "parts": run.parts,
         "scenario inputs": run.inputs,
-        "assumptions": run.assumptions,
+        "assumptions": assumptions,
         "cautions": pd.DataFrame({"caution": cautions}),
-        "about": pd.DataFrame({"item": list(meta), "value": [str(v) for v in meta.values()]}),
+        "about": pd.DataFrame({"item": list(about), "value": list(about.values())}),
     }
 
 
@@ -162,7 +169,9 @@ def _write_scenario_copy(sset, folder: Path):
 
 
 def pack_metadata(run):
-    """Tool version, date, input hash and caution recorded in every pack."""
+    """What every pack records about itself: the toolkit and its version, the date, the
+    scenario file and its SHA-256 hash, the size of the run, the provenance keys of the
+    models it used (``models_used``, first-use order) and the caution."""
     from rheoline import __version__
 
     sset = run.scenario_set
@@ -176,6 +185,7 @@ def pack_metadata(run):
         "input_sha256": digest,
         "scenarios": len(sset.scenarios),
         "rows": int(len(run.table)),
+        "models_used": list(dict.fromkeys(run.models_used)),
         "caution": _caution(),
     }
 

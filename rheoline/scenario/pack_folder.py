@@ -37,7 +37,14 @@ __all__ = [
 ]
 
 #: The files of a pack (besides the copy of the scenario file, ``scenario-NAME``).
-PACK_FILES = ("results.csv", "parts.csv", "results.xlsx", "report.html", "manifest.json")
+PACK_FILES = (
+    "results.csv",
+    "parts.csv",
+    "assumptions.csv",
+    "results.xlsx",
+    "report.html",
+    "manifest.json",
+)
 
 #: The largest manifest read back when deciding whether a folder is a pack [bytes].
 _MAX_MANIFEST_BYTES = 1_000_000

@@ -175,6 +175,15 @@ def _list_html(heading, items):
     return f"<h3>{_e(heading)}</h3><ul>" + "".join(f"<li>{_e(i)}</li>" for i in items) + "</ul>"
 
 
+def _models_html(assumptions):
+    if assumptions.empty:
+        return "<p>The run recorded no models.</p>"
+    return (
+        "<p>Every model, correlation and data source this run applied, and only those.</p>"
+        + frame_html(assumptions)
+    )
+
+
 def report_html(run, meta, *, assumptions, cautions, notes, scenario_text, caution) -> str:
     """The report page of ``run`` as one string.
 
@@ -198,7 +207,9 @@ def report_html(run, meta, *, assumptions, cautions, notes, scenario_text, cauti
     sset = run.scenario_set
     title = sset.title or "rheoline review pack"
     meta_rows = "".join(
-        f"<tr><td>{_e(k)}</td><td>{_e(v)}</td></tr>" for k, v in meta.items() if k != "caution"
+        f"<tr><td>{_e(k)}</td><td>{_e(', '.join(v) if isinstance(v, list) else v)}</td></tr>"
+        for k, v in meta.items()
+        if k != "caution"
     )
     file_notes = f"<p>{_e(sset.notes)}</p>" if sset.notes else ""
     summary = frame_html(run.summary()) if hasattr(run, "summary") else ""
@@ -224,7 +235,7 @@ def report_html(run, meta, *, assumptions, cautions, notes, scenario_text, cauti
 <h2>Scenario inputs</h2>
 {frame_html(run.inputs)}
 <h2 id="models-used">Models used and their references</h2>
-{frame_html(assumptions)}
+{_models_html(assumptions)}
 <h2>Cautions</h2>
 <ul>{"".join(f"<li>{_e(c)}</li>" for c in cautions)}</ul>
 <h2>Scenario file as given</h2>

@@ -30,6 +30,10 @@ ASSUMPTION_COLUMNS = (
     "recalled values",
 )
 
+#: The hemolysis law, used for every fluid with red cells and for no other (contract B):
+#: its presence in ``models_used`` is how a pack knows the run had red cells.
+_RED_CELL_LAW = "giersiepen-1990"
+
 #: Hazards that no flow estimate accounts for; every pack lists them.
 _HAZARDS = (
     "Air embolism: pressure bags, infusers and emptying bags can push air into a vein; "
@@ -104,18 +108,23 @@ def assumptions_table(models_used: Iterable[str], registry: Mapping | None = Non
 
 def run_notes(run) -> list[str]:
     """The run's notes from the models as sentences, one per note, scenario named first."""
-    return [str(n) for n in getattr(run, "warnings", ())]
+    return list(run.warnings)
 
 
-def cautions_list(run, caution: str) -> list[str]:
-    """The cautions of a pack: the short caution, the hazards, and this run's notes."""
-    items = [caution, *_HAZARDS[:3]]
-    items += [
-        "Hemolysis: the indicator is a screening flag from a laboratory correlation "
-        "(Giersiepen 1990), not a prediction in a patient.",
-        "Cold blood products flow far more slowly and can cool a patient; warm only with "
-        "approved warmers and per protocol.",
-        *_HAZARDS[3:],
-    ]
+def cautions_list(run, caution: str, registry: Mapping | None = None) -> list[str]:
+    """The cautions of a pack: the short caution, the hazards, and this run's notes.
+
+    The hemolysis and cold-blood cautions appear only when the run had a fluid with red
+    cells (its ``models_used`` holds the hemolysis law, named from its registry entry).
+    """
+    items = [caution, *_HAZARDS]
+    if _RED_CELL_LAW in run.models_used:
+        law = _registry(registry)[_RED_CELL_LAW]
+        items += [
+            f"Hemolysis: the indicator is a screening flag from a laboratory correlation "
+            f"({law.title}), not a prediction in a patient.",
+            "Cold blood products flow far more slowly and can cool a patient; warm only with "
+            "approved warmers and per protocol.",
+        ]
     items += [f"This run: {note}" for note in run_notes(run)]
     return items

@@ -68,7 +68,7 @@ from rheoline.scenario.steps import (
     scenario_notes,
     tolerance_band,
 )
-from rheoline.scenario.tables import assumptions_table, inputs_table
+from rheoline.scenario.tables import inputs_table
 from rheoline.units import ML_PER_H, ML_PER_MIN, MMHG
 
 __all__ = [
@@ -196,8 +196,6 @@ class RunResult:
         Per row of ``parts``, the part's name in its line (the same for every point of a
         sweep), where ``parts["part"]`` names each point's own size; the pack's charts
         group on it.
-    assumptions : pandas.DataFrame or None
-        The models the line engine uses and their references, and the fluids' sources.
     created : datetime.datetime
         When the run was made (UTC).
     """
@@ -210,7 +208,6 @@ class RunResult:
     notes: tuple = ()
     flags: object = field(default_factory=dict)
     part_keys: tuple = ()
-    assumptions: object = None
     created: _dt.datetime = field(default_factory=lambda: _dt.datetime.now(_dt.UTC))
 
     @property
@@ -281,7 +278,6 @@ def run_scenarios(sset: ScenarioSet, progress=None) -> RunResult:
         notes=tuple(dict.fromkeys(notes)),
         flags={key: f for key, (_, _, _, f) in zip(keys, cases, strict=True)},
         part_keys=tuple(r[-1] for r in part_table),
-        assumptions=assumptions_table(sset),
     )
 
 

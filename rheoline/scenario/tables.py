@@ -1,90 +1,20 @@
-"""The run's tables for people and programs: the printed summary, JSON records, the echo of
-the inputs and the assumptions sheet.
+"""The run's tables for people and programs: the printed summary, JSON records and the echo
+of the inputs.
 
 :func:`summary` picks the columns ``rheoline run`` prints; :func:`records` turns the table
 and the parts table into JSON-ready dicts (one per case, with its parts and the caution);
-:func:`inputs_table` echoes the scenario description field by field as the writer writes it;
-:func:`assumptions_table` lists the models the line engine uses (:data:`ASSUMPTIONS`) and
-the sources of the fluids a set names.
+:func:`inputs_table` echoes the scenario description field by field as the writer writes it.
+The models a run used, with their references, are the run's ``models_used`` (provenance
+keys); the review pack lists them (:mod:`rheoline.scenario.pack_sources`).
 """
 
 from __future__ import annotations
 
 import numpy as np
 
-from rheoline.scenario.description import Axis
-from rheoline.scenario.steps import HEMOLYSIS_CONCERN_STRESS
 from rheoline.scenario.writing import scenario_data
 
-__all__ = ["ASSUMPTIONS", "summary", "records", "inputs_table", "assumptions_table"]
-
-#: The models the line engine uses, with their references (the pack's "assumptions" sheet).
-ASSUMPTIONS = (
-    (
-        "laminar lumen flow",
-        "Hagen-Poiseuille",
-        "Poiseuille 1840s; any fluid mechanics text",
-        "fully developed, rigid straight lumen, Newtonian",
-    ),
-    (
-        "developing laminar flow",
-        "apparent friction of the entrance region",
-        "Shah, J. Fluids Eng. 100 (1978) 177-179",
-        "short lumens such as catheters",
-    ),
-    (
-        "transitional and turbulent flow",
-        "Darcy-Weisbach with the Churchill friction factor",
-        "Churchill, Chem. Eng. 84 (1977) 91-92",
-        "laminar below Re 2300, turbulent above 4000 (common practice)",
-    ),
-    (
-        "minor losses",
-        "entrance, contraction, expansion, fitting and exit coefficients",
-        "Idelchik, Handbook of Hydraulic Resistance; Crane Technical Paper 410",
-        "K values of fittings are the user's or typical",
-    ),
-    (
-        "non-Newtonian flow",
-        "Rabinowitsch-Mooney wall-shear integral of the rheology model",
-        "Rabinowitsch 1929; Mooney 1931",
-        "blood as Carreau, Carreau-Yasuda, Casson or power law per fluid",
-    ),
-    (
-        "blood viscosity",
-        "medium x Pries 1992 large-bore viscosity; shear-thinning fitted to Wells & Merrill 1962",
-        "Pries et al., Am. J. Physiol. 263 (1992); Cho & Kensey, Biorheology 28 (1991); Wells & "
-        "Merrill, J. Clin. Invest. 41 (1962)",
-        "packed red cells in an additive solution (medium from memory, no aggregation); "
-        "measured accuracy: rheoline validate",
-    ),
-    (
-        "hemolysis indicator",
-        "Giersiepen power law with wall stress and mean residence time",
-        "Giersiepen et al., Int. J. Artif. Organs 13 (1990) 300-306",
-        "screening only; concern "
-        f"flag above {HEMOLYSIS_CONCERN_STRESS:g} Pa wall stress (Leverett et al. 1972, from "
-        "memory)",
-    ),
-    (
-        "catalogue sizes",
-        "typical nominal catheter, needle and set dimensions",
-        "ISO 9626 for needles (from memory); catheters and sets typical, from memory",
-        "a maker's dimensions differ: measure the bore for a decision",
-    ),
-    (
-        "catheter-to-vein ratio",
-        "outer diameter over vein diameter, flagged above 0.45",
-        "rheoline.model.vessels.infusion_site_context",
-        "common practice, no source; no prediction of thrombosis or vein injury",
-    ),
-    (
-        "units",
-        "NIST SP 811 conversions",
-        "NIST SP 811 (2008) Appendix B",
-        "1 mmHg = 133.322 Pa, 1 cmH2O = 98.0665 Pa",
-    ),
-)
+__all__ = ["summary", "records", "inputs_table"]
 
 
 def summary(t):
@@ -209,29 +139,3 @@ def inputs_table(sset):
             for k, v in p.items():
                 rows.append([sc.name, f"part[{j}].{k}", _text_of(v)])
     return pd.DataFrame(rows, columns=["scenario", "field", "value as written"])
-
-
-def assumptions_table(sset):
-    """The models the line engine uses (:data:`ASSUMPTIONS`) and the source of each
-    library fluid the set names: columns ``topic``, ``model``, ``reference``, ``notes``."""
-    import pandas as pd
-
-    from rheoline.model.fluids import FLUID_LIBRARY
-
-    rows = [list(a) for a in ASSUMPTIONS]
-    names = []
-    for sc in sset.scenarios:
-        f = sc.values["fluid"]
-        names += list(f.values) if isinstance(f, Axis) else [f]
-    for name in dict.fromkeys(names):
-        entry = FLUID_LIBRARY.get(name.strip().lower().replace("_", "-").replace(" ", "-"))
-        if entry is not None:
-            rows.append(
-                [
-                    f"fluid: {name}",
-                    entry.description,
-                    entry.source,
-                    f"default temperature {entry.default_temperature_c:g} degC",
-                ]
-            )
-    return pd.DataFrame(rows, columns=["topic", "model", "reference", "notes"])
