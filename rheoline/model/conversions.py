@@ -1,4 +1,4 @@
-"""Conversion factors of the trade's units to SI, defined once for the whole package.
+"""Conversion factors of the trade's units to SI (NIST SP 811), defined once for the package.
 
 The model layer works in SI; a few of its functions and defaults take or state the trade's
 units (clinical resistance formulas in mmHg, a typical vein pressure of 10 mmHg), and the

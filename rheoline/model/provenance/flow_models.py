@@ -3,6 +3,7 @@ uncertainty, vessels, hemodynamics and units."""
 
 from __future__ import annotations
 
+from rheoline.model.conversions import CMH2O, MMHG
 from rheoline.model.provenance.entry import MODEL as _M
 from rheoline.model.provenance.entry import ModelEntry
 
@@ -279,13 +280,15 @@ FLOW_ENTRIES = (
     ModelEntry(
         "nist-sp811",
         "NIST SP 811 unit conversions",
-        "conversions at the edges: 1 mmHg = 133.322 Pa, 1 cmH2O = 98.0665 Pa, 1 cP = 1 mPa s",
+        f"conversions at the edges: 1 mmHg = {MMHG} Pa (the conventional mmHg; SP 811 lists "
+        f"1.333 224 E+02 Pa), 1 cmH2O = {CMH2O} Pa, 1 cP = 1 mPa s "
+        "(rheoline.model.conversions)",
         "Thompson, A., Taylor, B.N., 'Guide for the Use of the International System of Units "
         "(SI)', NIST Special Publication 811, 2008, Appendix B",
         None,
         "exact or to the digits given",
         {},
         cite="NIST SP 811",
-        used_in=(_M + "hemodynamics",),
+        used_in=(_M + "hemodynamics", _M + "conversions"),
     ),
 )
