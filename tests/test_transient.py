@@ -5,6 +5,7 @@ import pytest
 
 from rheoline.errors import InputRangeError
 from rheoline.model.compliance import Compliance, SyringePump
+from rheoline.model.conditions import SEVERITIES
 from rheoline.model.fluid_base import newtonian_fluid
 from rheoline.model.line import GRAVITY, Line
 from rheoline.model.parts import Catheter, Fitting, Tube
@@ -303,8 +304,9 @@ def test_conditions_are_arrays_and_flags_render_from_them():
     assert set(r.conditions) <= set(TRANSIENT_CONDITIONS)
     assert r.conditions["no_alarm"].tolist() == [True, False]
     assert np.isinf(r.time_to_alarm[0]) and np.isnan(r.bolus_volume[0])
-    words = TRANSIENT_CONDITIONS["no_alarm"].words
-    assert any(flag.startswith(words) and "(1 of 2 scenarios)" in flag for flag in r.flags)
+    meaning = TRANSIENT_CONDITIONS["no_alarm"].meaning
+    assert f"{meaning} in 1 of 2 scenarios" in r.flags
+    assert {c.severity for c in TRANSIENT_CONDITIONS.values()} <= set(SEVERITIES)
     assert "lumped-compliance" in r.models_used
 
 

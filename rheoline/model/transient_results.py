@@ -2,7 +2,8 @@
 
 Every field states its unit; arrays have the scenario shape (``()`` gives Python floats),
 time series have a leading time axis.  What happened is recorded as boolean arrays per
-condition (:data:`TRANSIENT_CONDITIONS` gives the key, a severity and the words), and
+condition (:data:`TRANSIENT_CONDITIONS` gives the key, a severity, short words and the
+meaning, in the shared :class:`~rheoline.model.conditions.Condition`), and
 :attr:`TransientResult.flags` renders sentences from them; nothing parses a sentence.
 """
 
@@ -14,8 +15,9 @@ from types import MappingProxyType
 
 import numpy as np
 
+from rheoline.model.conditions import Condition, count_words
+
 __all__ = [
-    "TransientCondition",
     "TRANSIENT_CONDITIONS",
     "TimeSeries",
     "RateChangeResult",
@@ -25,90 +27,93 @@ __all__ = [
 ]
 
 
-@dataclass(frozen=True)
-class TransientCondition:
-    """A condition a result can record: its key, severity ("caution" or "note") and words."""
-
-    key: str
-    severity: str
-    words: str
-
-
 _CONDITIONS = (
-    TransientCondition(
+    Condition(
         "startup_not_reached",
-        "caution",
+        "limit",
+        "start-up not reached",
         "the outlet flow did not reach 90 % of the set rate within the solved time",
     ),
-    TransientCondition(
+    Condition(
         "rate_change_not_reached",
-        "caution",
+        "limit",
+        "rate change not reached",
         "a rate change had not reached 90 % at the outlet before the next change or the end",
     ),
-    TransientCondition(
+    Condition(
         "drug_not_reached",
-        "caution",
+        "limit",
+        "drug not at 90 %",
         "a drug's delivery at the outlet did not reach 90 % of its steady value in the solved time",
     ),
-    TransientCondition(
+    Condition(
         "no_alarm",
-        "caution",
+        "limit",
+        "no alarm",
         "the occlusion alarm pressure was not reached within the longest wait",
     ),
-    TransientCondition(
+    Condition(
         "alarm_at_occlusion",
         "caution",
+        "alarm at once",
         "the running pressure already reached the alarm pressure when the occlusion began",
     ),
-    TransientCondition(
+    Condition(
         "alarm_before_break_loose",
-        "note",
+        "caution",
+        "alarm before break-loose",
         "the alarm came before the syringe stopper broke loose",
     ),
-    TransientCondition(
+    Condition(
         "retrograde_flow",
         "caution",
+        "backflow",
         "flow ran backwards in some segment (a drug can travel up the carrier line)",
     ),
-    TransientCondition(
+    Condition(
         "outside_flow_table",
-        "note",
+        "caution",
+        "pressure-flow law extrapolated",
         "a pressure beyond the tabulated pressure-flow law was met (the law was extrapolated)",
     ),
-    TransientCondition(
+    Condition(
         "outside_compliance_table",
-        "note",
+        "caution",
+        "compliance table extrapolated",
         "a pressure beyond a compliance table's range was met (its end value was held)",
     ),
-    TransientCondition(
+    Condition(
         "volume_not_given",
         "caution",
+        "dead volume not given",
         "a fitting or measured part between a port and the outlet has no internal volume given "
         "(counted as 0, so the drug delay is short by its volume)",
     ),
-    TransientCondition(
+    Condition(
         "diffusivity_assumed",
-        "note",
+        "caution",
+        "diffusivity assumed",
         "a drug's diffusivity was not given; 5e-10 m^2/s (a small molecule in water, from "
         "memory) was assumed",
     ),
-    TransientCondition(
+    Condition(
         "segregated_transport",
-        "note",
+        "caution",
+        "laminar transport (upper bound)",
         "radial diffusion is too slow for Taylor-Aris dispersion in some lumen; laminar "
         "segregated flow (the widest spread) was used there, so the 90 % delay is an upper bound",
     ),
-    TransientCondition(
+    Condition(
         "no_steady_rate",
-        "note",
+        "caution",
+        "no steady drug rate",
         "a pump's rate is 0 at the end of its profile, so its steady delivery is 0",
     ),
 )
 
-#: Condition key -> :class:`TransientCondition`.
-TRANSIENT_CONDITIONS: Mapping[str, TransientCondition] = MappingProxyType(
-    {c.key: c for c in _CONDITIONS}
-)
+#: Condition key -> :class:`~rheoline.model.conditions.Condition` (the shared class and
+#: severities of :mod:`rheoline.model.conditions`), for the time-dependent results.
+TRANSIENT_CONDITIONS: Mapping[str, Condition] = MappingProxyType({c.key: c for c in _CONDITIONS})
 
 
 def _out(arr):
@@ -326,12 +331,8 @@ class TransientResult:
         """Sentences rendered from :attr:`conditions`, counts over the scenarios."""
         out = []
         for key, mask in self.conditions.items():
-            mask = np.asarray(mask)
-            if not np.any(mask):
-                continue
-            words = TRANSIENT_CONDITIONS[key].words
-            count = "" if mask.size == 1 else f" ({int(mask.sum())} of {mask.size} scenarios)"
-            out.append(f"{words}{count}")
+            if np.any(mask):
+                out.append(f"{TRANSIENT_CONDITIONS[key].meaning}{count_words(mask)}")
         return tuple(out)
 
 
