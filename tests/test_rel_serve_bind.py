@@ -2,7 +2,8 @@
 
 The widget owner's ``python -m rheoline.widgets.serve`` builds a Voila command; by default
 it must bind 127.0.0.1 (never all interfaces), open no browser, and hand out pictures only
-(its own allowlist or Voila's default one).
+(its own allowlist or Voila's default one).  Another address needs the flag that names the
+risk (tests/test_serve.py has the rest of the launcher's promises).
 Voila's own default address is "localhost" (voila.app.Voila.ip), also loopback, so the
 plain Voila command is safe as well; no file in the repository may configure 0.0.0.0.
 """
@@ -39,8 +40,11 @@ def test_default_command_binds_loopback_only():
     assert "--Voila.ip=127.0.0.1" in printed and "0.0.0.0" not in printed
 
 
-def test_another_address_only_when_asked():
-    assert "--Voila.ip=192.0.2.10" in _printed(["--ip", "192.0.2.10"])  # TEST-NET-1 address
+def test_another_address_only_when_asked_with_the_risk_named(capsys):
+    # TEST-NET-1 address: refused alone, served only with the flag that names the risk
+    assert serve.main(["--ip", "192.0.2.10", "--print-command"]) == 2
+    assert serve.RISK_FLAG in capsys.readouterr().err
+    assert "--Voila.ip=192.0.2.10" in _printed(["--ip", "192.0.2.10", serve.RISK_FLAG])
 
 
 def test_served_files_are_pictures_only():

@@ -12,7 +12,7 @@ exception the view does not turn into a flag reach the test, where ipywidgets wo
 from __future__ import annotations
 
 import pytest
-from rel_record import bump, hostile_scenario_file, module_recorder
+from rel_record import bump, hostile_scenario_file, module_recorder, upload
 
 pytest.importorskip("ipywidgets")
 
@@ -44,12 +44,20 @@ def _html_values(widget):
 def app(tmp_path_factory):
     from rheoline.widgets.app import build_app
 
-    built = build_app()
+    built = build_app(workspace=tmp_path_factory.mktemp("views"))
     assert built.failures == {}
-    path = tmp_path_factory.mktemp("views") / "hostile.toml"
+    path = built.views["files"].workspace.root / "hostile.toml"
     path.write_text(HOSTILE, encoding="utf-8")
     built.views["files"].load(path)
     return built
+
+
+@pytest.fixture()
+def work(app, tmp_path):
+    """A fresh folder inside the app's workspace (the files view reads and writes there)."""
+    folder = app.views["files"].workspace.root / tmp_path.name
+    folder.mkdir()
+    return folder
 
 
 def test_loaded_hostile_text_is_escaped_in_every_view(app):
@@ -61,14 +69,46 @@ def test_loaded_hostile_text_is_escaped_in_every_view(app):
     assert raw == []
 
 
+def _figure_strings(node):
+    """Every string in a figure's JSON (trace names, categories, hover text, titles...)."""
+    if isinstance(node, str):
+        yield node
+    elif isinstance(node, dict):
+        for value in node.values():
+            yield from _figure_strings(value)
+    elif isinstance(node, (list, tuple)):
+        for value in node:
+            yield from _figure_strings(value)
+    elif hasattr(node, "tolist") and getattr(node, "dtype", None) is not None:
+        if node.dtype.kind in "OUS":
+            yield from _figure_strings(node.tolist())
+
+
+def test_loaded_hostile_text_is_escaped_in_every_chart(app):
+    # plotly renders <a href>, <b>, <i>, <span> in titles, legends, hover and axis labels: a
+    # part label "<a href=...>" became a live link inside a chart
+    for view in app.views.values():
+        view.show_figures()
+    strings = [
+        s
+        for view in app.views.values()
+        for fig in view.figures.values()
+        for s in _figure_strings(fig.to_plotly_json())
+    ]
+    bump("views:chart_strings_checked", len(strings))
+    raw = [s for s in strings for bad in ("<img", "<script", "<b ", "<a ") if bad in s]
+    assert raw == []
+    assert any("&lt;img src=x" in s for s in strings)  # the labels are on the charts, escaped
+
+
 def test_the_hostile_labels_did_reach_the_views(app):
     # the check above means something only if the text is on screen, escaped
     text = " ".join(_html_values(app))
     assert "&lt;b onmouseover=alert(3)&gt;" in text or "&lt;img src=x" in text
 
 
-def test_a_malformed_file_becomes_a_flag_in_the_status_line(app, tmp_path):
-    bad = tmp_path / "bad.toml"
+def test_a_malformed_file_becomes_a_flag_in_the_status_line(app, work):
+    bad = work / "bad.toml"
     bad.write_text(
         'format_version = 1\n[[scenario]]\nname = "<i>x</i>"\nfluid = "water"\n'
         'head = "300 mmHg"\n[[scenario.part]]\ntype = "catheter"\ngauge = 18\n'
@@ -80,15 +120,15 @@ def test_a_malformed_file_becomes_a_flag_in_the_status_line(app, tmp_path):
     assert "head" in shown and "<i>x</i>" not in shown
 
 
-def test_the_files_view_never_overwrites_unless_asked(app, tmp_path):
+def test_the_files_view_never_overwrites_unless_asked(app, work):
     files = app.views["files"]
     assert files.controls["overwrite"].value is False
-    target = tmp_path / "mine.toml"
+    target = work / "mine.toml"
     target.write_text("# my own notes\n")
     files.controls["scenario_path"].value = str(target)
     assert files._run(files.save) is False  # refused, shown as a flag
     assert target.read_text() == "# my own notes\n"
-    folder = tmp_path / "pack"
+    folder = work / "pack"
     folder.mkdir()
     (folder / "keep.txt").write_text("earlier pack")
     files.controls["pack_path"].value = str(folder)
@@ -128,39 +168,25 @@ def test_the_largest_bore_tolerance_the_comparison_offers_is_computed():
     assert "not computed" not in compare.messages.value, compare.messages.value
 
 
-def test_unwritable_targets_become_flags_not_tracebacks(app, tmp_path):
+def test_unwritable_targets_become_flags_not_tracebacks(app, work):
     # saving onto a folder, into a folder that does not exist, or a pack where nothing can be
     # written: the files view must say so in its status line, with no exception on the page
     files = app.views["files"]
-    (tmp_path / "a folder").mkdir()
+    (work / "a folder").mkdir()
     files.controls["overwrite"].value = True
     try:
-        for target in (tmp_path / "a folder", tmp_path / "no such folder" / "s.toml"):
+        for target in (work / "a folder", work / "no such folder" / "s.toml"):
             files.controls["scenario_path"].value = str(target)
             assert files._run(files.save) is False
             assert "not computed" in files.messages.value
-        blocker = tmp_path / "a file"
+        blocker = work / "a file"
         blocker.write_text("x")
         files.controls["pack_path"].value = str(blocker / "pack")  # parent is a file
         assert files._run(files.write_pack) is False
         assert "not computed" in files.messages.value
     finally:
         files.controls["overwrite"].value = False
-    assert (tmp_path / "a folder").is_dir() and blocker.read_text() == "x"
-
-
-def _upload(files, name, content):
-    import datetime
-
-    files.upload.value = (
-        {
-            "name": name,
-            "type": "",
-            "size": len(content),
-            "content": memoryview(content),
-            "last_modified": datetime.datetime.now(datetime.UTC),
-        },
-    )
+    assert (work / "a folder").is_dir() and blocker.read_text() == "x"
 
 
 @pytest.mark.parametrize(
@@ -175,5 +201,5 @@ def _upload(files, name, content):
 def test_an_uploaded_bad_file_becomes_a_flag(app, name, content):
     # the app's upload button gets whatever bytes a colleague sent
     files = app.views["files"]
-    _upload(files, name, content)  # the upload's observer runs the load
+    upload(files, name, content)  # the upload's observer runs the load
     assert "not computed" in files.messages.value

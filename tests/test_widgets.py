@@ -361,10 +361,10 @@ def test_comparison_temperature_sweep_uses_the_fluid_library(compare_view):
 
 # --- files: scenario files and review packs ----------------------------------------------------
 @pytest.fixture()
-def app():
+def app(tmp_path):
     from rheoline.widgets.app import build_app
 
-    return build_app()
+    return build_app(workspace=tmp_path)  # the files tab reads and writes there only
 
 
 def test_app_builds_every_view_with_a_banner(app):
@@ -388,10 +388,13 @@ def test_saved_scenario_file_reruns_to_the_views_numbers(app, tmp_path):
         assert row == pytest.approx(shown, rel=1e-6)
 
 
-def test_loading_an_example_file_fills_both_views(app):
+def test_loading_an_example_file_fills_both_views(app, tmp_path):
+    import shutil
+
     from rheoline.scenario.files import example_path
 
-    app.views["files"].load(example_path("rapid-transfusion-cart"))
+    shutil.copy(example_path("rapid-transfusion-cart"), tmp_path / "cart.toml")
+    app.views["files"].load("cart.toml")
     line = app.views["line"]
     assert line.controls["back_pressure_mmhg"].value == pytest.approx(8.0)
     assert [d["type"] for d in line.editor.descriptions()] == ["set", "fitting", "catheter"]

@@ -33,8 +33,6 @@ Examples
 
 from __future__ import annotations
 
-import html
-
 import ipywidgets as widgets
 import numpy as np
 import plotly.graph_objects as go
@@ -45,7 +43,7 @@ from rheoline.widgets.base import _STYLE, View, drive_controls, fluid_controls, 
 from rheoline.widgets.figures import BASE_LAYOUT
 from rheoline.widgets.line_view import _is_blood, fluid_for, fluid_options
 from rheoline.widgets.parts_editor import CATHETER_GAUGES, build_part, part_label
-from rheoline.widgets.style import BAND_OPACITY, flag_text, series_style, significant
+from rheoline.widgets.style import BAND_OPACITY, flag_text, series_style, significant, user_text
 
 __all__ = [
     "ComparisonView",
@@ -532,7 +530,7 @@ class ComparisonView(View):
             s = series_style(i)
             traces.append(
                 go.Scatter(
-                    name=f"{candidate['name']} p5-p95",
+                    name=user_text(f"{candidate['name']} p5-p95"),
                     mode="lines",
                     fill="toself",
                     fillcolor=s["color"],
@@ -540,18 +538,18 @@ class ComparisonView(View):
                     line=dict(width=0),
                     hoverinfo="skip",
                     showlegend=False,
-                    legendgroup=candidate["name"],
+                    legendgroup=user_text(candidate["name"]),
                 )
             )
         for i, candidate in enumerate(self.candidates):
             s = series_style(i)
             traces.append(
                 go.Scatter(
-                    name=candidate["name"],
+                    name=user_text(candidate["name"]),
                     mode="lines+markers",
                     line=dict(color=s["color"], dash=s["dash"], width=2.5),
                     marker=dict(symbol=s["marker"], size=8, color=s["color"], maxdisplayed=12),
-                    legendgroup=candidate["name"],
+                    legendgroup=user_text(candidate["name"]),
                 )
             )
         return traces
@@ -575,7 +573,8 @@ class ComparisonView(View):
         n = len(self.candidates)
         with fig.batch_update():
             if len(fig.data) != 2 * n or any(
-                t.name != c["name"] for t, c in zip(fig.data[n:], self.candidates, strict=False)
+                t.name != user_text(c["name"])
+                for t, c in zip(fig.data[n:], self.candidates, strict=False)
             ):
                 fig.data = []
                 fig.add_traces(self._traces())
@@ -625,22 +624,22 @@ class ComparisonView(View):
                 band_cell = f"<td>{self._point_band(candidate)}</td>"
             parts = ", ".join(part_label(d, i) for i, d in enumerate(candidate["parts"], 1))
             rows.append(
-                f"<tr><td><b>{html.escape(candidate['name'])}</b></td>"
-                f"<td>{html.escape(parts)}</td>"
+                f"<tr><td><b>{user_text(candidate['name'])}</b></td>"
+                f"<td>{user_text(parts)}</td>"
                 f"<td class='rl-compare-flow'>{significant(flow / ML_PER_MIN)}</td>"
                 f"<td>{significant(flow / ML_PER_H)}</td>"
-                f"<td>{html.escape(str(r.regime))} ({significant(float(r.max_reynolds))})</td>"
-                f"<td>{html.escape(str(r.dominant_part))} "
+                f"<td>{user_text(str(r.regime))} ({significant(float(r.max_reynolds))})</td>"
+                f"<td>{user_text(str(r.dominant_part))} "
                 f"({significant(100 * float(r.dominant_share), 2)} %)</td>"
                 f"<td>{significant(float(r.max_wall_shear_stress))}</td>{band_cell}"
-                f"<td>{html.escape('; '.join(flags) or '[ok] ok: no flags')}</td></tr>"
+                f"<td>{user_text('; '.join(flags) or '[ok] ok: no flags')}</td></tr>"
             )
         shared = self._shared()
         self.table.value = (
             f"<div><b>At the operating point</b>: head {significant(shared['head'] * 100)} cm, "
             f"source pressure {significant(shared['source_pressure'] / MMHG)} mmHg, back "
             f"pressure {significant(shared['back_pressure'] / MMHG)} mmHg, "
-            f"{html.escape(shared['fluid'])} at {significant(shared['temperature_c'])} degC</div>"
+            f"{user_text(shared['fluid'])} at {significant(shared['temperature_c'])} degC</div>"
             "<table class='rl-table' style='border-collapse:collapse' border='1' "
             f"cellpadding='4'>{head}{''.join(rows)}</table>"
         )

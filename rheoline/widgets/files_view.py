@@ -10,6 +10,12 @@ solved by the scenario layer (:func:`rheoline.scenario.files.parse_scenarios`,
 :func:`~rheoline.scenario.export.write_pack`), so a saved file re-runs with
 ``rheoline run`` to the same numbers.
 
+Every file the view loads or writes lives in one workspace folder (a
+:class:`~rheoline.scenario.workspace.Workspace`, shown in the view): a name is taken
+inside it, and a path that leaves it (directly, through ``..`` or through a symbolic
+link) is refused before any file is opened.  The served app gets its folder from the
+launcher (:mod:`rheoline.widgets.serve`); the default is ``./rheoline-workspace``.
+
 Loading fills the line view with the file's first scenario (the first point of
 any sweep) and the comparison with one candidate per scenario and sweep point of
 the parts (up to :data:`MAX_LOADED_CANDIDATES`).
@@ -17,7 +23,6 @@ the parts (up to :data:`MAX_LOADED_CANDIDATES`).
 
 from __future__ import annotations
 
-import html
 from pathlib import Path
 
 import ipywidgets as widgets
@@ -32,10 +37,11 @@ from rheoline.scenario.files import (
     save_scenarios,
     sweep_points,
 )
+from rheoline.scenario.workspace import Workspace
 from rheoline.units import MMHG
 from rheoline.widgets.base import _STYLE, View, labelled
 from rheoline.widgets.compare_view import sized_part_index
-from rheoline.widgets.style import flag_html
+from rheoline.widgets.style import flag_html, user_text
 
 __all__ = [
     "FilesView",
@@ -264,13 +270,26 @@ def apply_scenarios(sset, line_view=None, compare_view=None):
 
 
 class FilesView(View):
-    """Load and save scenario files, write review packs, for the views it is given."""
+    """Load and save scenario files, write review packs, for the views it is given.
+
+    Parameters
+    ----------
+    line_view, compare_view : View, optional
+        The views whose state is saved and which a loaded file fills.
+    workspace : str or os.PathLike, optional
+        The folder every load, save and pack stays in (default
+        :func:`rheoline.widgets.serve.workspace_folder`: the launcher's choice, else
+        ``./rheoline-workspace``); created when the first file is written.
+    """
 
     title = "Files"
 
-    def __init__(self, line_view=None, compare_view=None):
+    def __init__(self, line_view=None, compare_view=None, workspace=None):
         super().__init__()
+        from rheoline.widgets.serve import workspace_folder
+
         self.line_view, self.compare_view = line_view, compare_view
+        self.workspace = Workspace(workspace_folder() if workspace is None else workspace)
         c = self.controls
         c["scenario_path"] = labelled(
             widgets.Text(
@@ -319,6 +338,14 @@ class FilesView(View):
                     "reads them) and <b>review packs</b> (CSV, XLSX, HTML) of what the "
                     "line and comparison views show."
                 ),
+                labelled(
+                    widgets.HTML(
+                        "workspace folder <code>"
+                        f"{user_text(self.workspace.root)}</code>: every file "
+                        "named here is read from and written to this folder only"
+                    ),
+                    "rl-workspace",
+                ),
                 c["scenario_path"],
                 widgets.HBox([self.load_button, self.save_button, self.upload]),
                 c["pack_path"],
@@ -335,11 +362,14 @@ class FilesView(View):
         self.status.value = flag_html(level, text)
 
     def load(self, path=None):
-        """Load the scenario file at ``path`` (default: the path field) into the views."""
-        path = Path(path or self.controls["scenario_path"].value).expanduser()
+        """Load the scenario file at ``path`` (default: the path field) into the views.
+
+        ``path`` is taken inside the workspace folder; one outside it is refused unread.
+        """
+        path = self.workspace.resolve(path or self.controls["scenario_path"].value)
         sset = load_scenarios(path)
         account = apply_scenarios(sset, self.line_view, self.compare_view)
-        self._say("ok", f"loaded {html.escape(str(path))}: {account}")
+        self._say("ok", f"loaded {self.workspace.relative(path)}: {account}")
         return sset
 
     def _uploaded(self):
@@ -367,10 +397,11 @@ class FilesView(View):
         self._say("ok", f"loaded {name}: {account}")
 
     def save(self, path=None):
-        """Save the views' set as a scenario file; returns its path."""
-        path = Path(path or self.controls["scenario_path"].value).expanduser()
+        """Save the views' set as a scenario file in the workspace; returns its path."""
+        path = self._target(path or self.controls["scenario_path"].value)
         written = save_scenarios(self.current_set(), path, force=self.controls["overwrite"].value)
-        self._say("ok", f"saved {len(self.current_set().scenarios)} scenarios to {written}")
+        shown = self.workspace.relative(written)
+        self._say("ok", f"saved {len(self.current_set().scenarios)} scenarios to {shown}")
         return written
 
     def write_pack(self, folder=None):
@@ -378,8 +409,15 @@ class FilesView(View):
         from rheoline.scenario.compare import run_scenarios
         from rheoline.scenario.export import write_pack
 
-        folder = Path(folder or self.controls["pack_path"].value).expanduser()
+        folder = self._target(folder or self.controls["pack_path"].value)
         run = run_scenarios(self.current_set())
         written = write_pack(run, folder, force=self.controls["overwrite"].value)
-        self._say("ok", f"wrote the review pack to {written} ({len(run.table)} cases)")
+        shown = self.workspace.relative(written)
+        self._say("ok", f"wrote the review pack to {shown} ({len(run.table)} cases)")
         return written
+
+    def _target(self, user_path) -> Path:
+        """Where to write ``user_path``: inside the workspace (made if missing), or refused."""
+        path = self.workspace.resolve(user_path, for_writing=True)
+        self.workspace.create()
+        return path

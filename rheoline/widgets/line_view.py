@@ -21,7 +21,6 @@ Examples
 from __future__ import annotations
 
 import functools
-import html
 
 import ipywidgets as widgets
 import numpy as np
@@ -33,7 +32,7 @@ from rheoline.units import ML_PER_H, ML_PER_MIN, MMHG
 from rheoline.widgets.base import _STYLE, View, drive_controls, fluid_controls, labelled
 from rheoline.widgets.figures import BASE_LAYOUT, curve_and_point_figure
 from rheoline.widgets.parts_editor import DEFAULT_PARTS, PartsEditor, build_part
-from rheoline.widgets.style import PALETTE, flag_html, format_number, significant
+from rheoline.widgets.style import PALETTE, flag_html, format_number, significant, user_text
 
 __all__ = ["LineView", "fluid_for", "line_for", "DRIVE_MODES", "DRIVE_CURVE_POINTS"]
 
@@ -318,7 +317,7 @@ class LineView(View):
                 else f"<div>net drive <b>{format_number(float(result.net_drive) / MMHG, 'mmHg')}</b> "
                 f"(gravity head plus source pressure, less back pressure)</div>"
             ),
-            f"<div>regime <b><span class='rl-regime'>{html.escape(regime)}</span></b> "
+            f"<div>regime <b><span class='rl-regime'>{user_text(regime)}</span></b> "
             f"(largest Reynolds number {significant(float(result.max_reynolds))})</div>",
             f"<div>largest wall shear stress <b>"
             f"{format_number(float(result.max_wall_shear_stress), 'Pa')}</b>; hemolysis index "
@@ -328,7 +327,7 @@ class LineView(View):
                 if np.isfinite(float(result.hemolysis_index))
                 else "<b>n/a</b> (no red cells)</div>"
             ),
-            f"<div>dominant part <b>{html.escape(str(result.dominant_part))}</b> "
+            f"<div>dominant part <b>{user_text(result.dominant_part)}</b> "
             f"({significant(100 * float(result.dominant_share))} % of the pressure budget)</div>",
         ]
         flags = []
@@ -354,7 +353,8 @@ class LineView(View):
         self.results.value = "".join(lines) + "".join(flags)
 
     def _draw_budget(self, result):
-        labels = [f"{i}. {p.name}" for i, p in enumerate(self.line().parts, start=1)] + ["exit"]
+        labels = [user_text(f"{i}. {p.name}") for i, p in enumerate(self.line().parts, 1)]
+        labels.append("exit")
         drops = (
             np.append(
                 np.asarray(result.part_pressure_drops, dtype=float),

@@ -17,12 +17,11 @@ Examples
 
 from __future__ import annotations
 
-import html
-
 import ipywidgets as widgets
 
 import rheoline
 from rheoline.model import catalogue
+from rheoline.widgets.style import user_text
 
 __all__ = ["PartsEditor", "PartRow", "build_part", "PART_KINDS", "DEFAULT_PARTS", "part_label"]
 
@@ -194,7 +193,7 @@ class PartRow(widgets.HBox):
             "fitting": (self.k,),
         }.get(kind, ())
         if self._fixed is not None:
-            name = html.escape(self._fixed["part"].name)
+            name = user_text(self._fixed["part"].name)
             visible = (widgets.HTML(f"<i>{name} (from the scenario file, not editable here)</i>"),)
         self.children = [self.kind, *visible, self.remove]
 

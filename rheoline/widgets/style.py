@@ -18,11 +18,12 @@ Examples
 '300 mmHg'
 >>> flag_text("caution", "turbulent in part 2")
 '[!] caution: turbulent in part 2'
+>>> user_text('<a href="x">18G</a> & co')
+'&lt;a href=&#34;x&#34;&gt;18G&lt;/a&gt; &amp; co'
 """
 
 from __future__ import annotations
 
-import html
 import math
 
 from rheoline.units import CMH2O, ML_PER_H, ML_PER_MIN, MMHG
@@ -34,6 +35,7 @@ __all__ = [
     "BAND_OPACITY",
     "series_style",
     "FLAG_LEVELS",
+    "user_text",
     "flag_text",
     "flag_html",
     "significant",
@@ -70,6 +72,26 @@ def series_style(index: int) -> dict:
     return {"color": PALETTE[index % n], "dash": DASHES[index % n], "marker": MARKERS[index % n]}
 
 
+def user_text(text) -> str:
+    """A user's string (a name, a label, a path, a message quoting them) made safe for an
+    HTML widget or a plotly chart.
+
+    Plotly reads a subset of HTML in chart titles, legends, hover labels and axis labels
+    (a part labelled ``<a href=...>`` became a live link inside a chart), and HTML widgets
+    read all of it.  Every user string on its way to either goes through here: ``&``,
+    ``<``, ``>`` and both quotes become entities, which HTML and plotly both show as the
+    characters (numeric entities for the quotes: plotly decodes those, not ``&quot;``).
+    """
+    return (
+        str(text)
+        .replace("&", "&amp;")
+        .replace("<", "&lt;")
+        .replace(">", "&gt;")
+        .replace('"', "&#34;")
+        .replace("'", "&#39;")
+    )
+
+
 def flag_text(level: str, message: str) -> str:
     """A flag as plain text: symbol, word, message."""
     symbol, word, _ = FLAG_LEVELS[level]
@@ -81,7 +103,7 @@ def flag_html(level: str, message: str) -> str:
     symbol, word, colour = FLAG_LEVELS[level]
     return (
         f"<div class='rl-flag rl-flag-{level}' style='color:{colour}'>"
-        f"<b>{html.escape(symbol)} {html.escape(word)}</b>: {html.escape(str(message))}</div>"
+        f"<b>{user_text(symbol)} {user_text(word)}</b>: {user_text(message)}</div>"
     )
 
 
