@@ -8,6 +8,12 @@ visible, cannot be closed, and links to the full text of CAUTIONS.md on the page
 A screenshot goes to pytest's temporary folder (and to ``$RHEOLINE_SCREENSHOT``
 when that is set, which is how docs/line-view.png was taken).
 
+The app is started the way a user starts it, with the launcher
+(``python -m rheoline.widgets.serve``), and opened with the link it prints (token
+included).  Every request the page makes is recorded: a request to any host but this
+machine is refused and fails the test.  Another test types paths that leave the
+workspace into the files view and loads a file whose part label is an HTML link.
+
 Chromium is ``/usr/bin/chromium`` (never a browser download).  Without it the test
 skips on a developer's machine; under CI (the ``CI`` variable set) it fails.
 """
@@ -15,12 +21,15 @@ skips on a developer's machine; under CI (the ``CI`` variable set) it fails.
 from __future__ import annotations
 
 import os
+import re
 import shutil
 import signal
 import socket
 import subprocess
+import sys
 import time
 import urllib.error
+import urllib.parse
 import urllib.request
 from pathlib import Path
 
@@ -44,7 +53,7 @@ CHROMIUM_ARGS = [
     "--disable-sync",
 ]
 PAGE_TIMEOUT_MS = 180_000  # the first load starts a kernel and builds every view
-UPDATE_TIMEOUT_MS = 60_000
+UPDATE_TIMEOUT_MS = 180_000  # the machine is shared: waits are generous, never asserted
 
 
 def _need_chromium():
@@ -61,31 +70,40 @@ def _free_port() -> int:
         return s.getsockname()[1]
 
 
+LOOPBACK_HOSTS = {"127.0.0.1", "[::1]", "::1", "localhost"}
+
+
 @pytest.fixture(scope="module")
 def served_app(tmp_path_factory):
-    """Start the app with the launcher's own Voila command; yield its URL; stop it."""
+    """Start the app with the launcher, as a user does; yield (link, workspace); stop it."""
     _need_chromium()
-    from rheoline.widgets.serve import APP_NOTEBOOK, serve_environment, voila_command
+    from rheoline.widgets.serve import serve_environment
 
     port = _free_port()
     runtime = tmp_path_factory.mktemp("jupyter-runtime")
+    workspace = tmp_path_factory.mktemp("browser") / "workspace"
     env = {**serve_environment(), "JUPYTER_RUNTIME_DIR": str(runtime)}
+    env.pop("JUPYTER_TOKEN", None)
     log = open(runtime / "voila.log", "w")  # noqa: SIM115 (closed below)
     process = subprocess.Popen(
-        voila_command(port=port),
-        cwd=APP_NOTEBOOK.parent,
+        [sys.executable, "-m", "rheoline.widgets.serve", "--port", str(port)]
+        + ["--workspace", str(workspace)],
+        stdout=subprocess.PIPE,
+        stderr=log,
+        text=True,
         env=env,
-        stdout=log,
-        stderr=subprocess.STDOUT,
         start_new_session=True,
     )
-    url = f"http://127.0.0.1:{port}/"
+    printed = process.stdout.readline()
+    found = re.search(r"(http://127\.0\.0\.1:(\d+)/\?token=\S+)", printed)
+    if not found or int(found.group(2)) != port:
+        process.kill()
+        pytest.fail(f"the launcher printed no link to port {port}: {printed!r}")
+    url = found.group(1)
     deadline = time.monotonic() + 90
-    while True:
-        try:  # any HTTP answer means the server is up; "/" itself would start a kernel
-            urllib.request.urlopen(url + "voila/files/readiness-probe", timeout=5).close()
-            break
-        except urllib.error.HTTPError:
+    while True:  # the icon stylesheet answers once the server is up (no kernel started)
+        try:
+            urllib.request.urlopen(url.split("?")[0] + "voila/static/rheoline-icons.css").close()
             break
         except OSError:
             pass
@@ -95,10 +113,10 @@ def served_app(tmp_path_factory):
             process.kill()
             pytest.fail(f"Voila did not start on {url}:\n{text[-3000:]}")
         time.sleep(0.5)
-    yield url
-    os.killpg(process.pid, signal.SIGTERM)
+    yield url, workspace
+    process.send_signal(signal.SIGTERM)  # the launcher is Voila: this stops the server
     try:
-        process.wait(timeout=20)
+        process.wait(timeout=30)
     except subprocess.TimeoutExpired:
         os.killpg(process.pid, signal.SIGKILL)
     log.close()
@@ -106,7 +124,10 @@ def served_app(tmp_path_factory):
 
 @pytest.fixture()
 def page(served_app, tmp_path):
+    """The app's page in Chromium; requests off this machine are refused and kept in
+    ``page.off_machine``."""
     playwright_api = pytest.importorskip("playwright.sync_api")
+    url, _ = served_app
     with playwright_api.sync_playwright() as p:
         context = p.chromium.launch_persistent_context(
             str(tmp_path / "chromium-profile"),
@@ -115,9 +136,23 @@ def page(served_app, tmp_path):
             headless=True,
             viewport={"width": 1400, "height": 1300},
         )
+        off_machine, seen = [], []
+
+        def route(route_):
+            host = urllib.parse.urlsplit(route_.request.url).netloc.rsplit(":", 1)[0]
+            seen.append(route_.request.url)
+            if host in LOOPBACK_HOSTS:
+                route_.continue_()
+            else:
+                off_machine.append(route_.request.url)
+                route_.abort()
+
+        context.route("**/*", route)
         page = context.new_page()
+        page.off_machine, page.requests = off_machine, seen
+        page.on("websocket", lambda ws: seen.append(ws.url))
         page.set_default_timeout(UPDATE_TIMEOUT_MS)
-        page.goto(served_app, timeout=PAGE_TIMEOUT_MS)
+        page.goto(url, timeout=PAGE_TIMEOUT_MS)
         page.wait_for_selector(".rl-app .rl-caution-banner", timeout=PAGE_TIMEOUT_MS)
         page.wait_for_selector(
             ".rl-view .js-plotly-plot", state="attached", timeout=PAGE_TIMEOUT_MS
@@ -166,7 +201,12 @@ _TRACE_MATCHES = """([title, index, axis, expected]) => {
 def _wait_for_trace(page, title, index, axis, expected):
     """Wait until a chart's trace shows ``expected`` (the kernel's messages arrive in turn)."""
     expected = [float(v) for v in np.ravel(expected)]
-    page.wait_for_function(_TRACE_MATCHES, arg=[title, index, axis, expected])
+    try:
+        page.wait_for_function(_TRACE_MATCHES, arg=[title, index, axis, expected])
+    except Exception as exc:  # a Playwright timeout: say what the chart shows instead
+        shown = page.evaluate(_PLOT_DATA, title)
+        shown = shown[index][axis] if shown and len(shown) > index else shown
+        pytest.fail(f"{title!r} trace {index} {axis} shows {shown}, not {expected}: {exc}")
 
 
 def _shown_flow(page) -> float:
@@ -262,3 +302,83 @@ def test_blood_view_follows_the_vessel_radius_in_a_real_browser(page):
         page, "Resistance of one vessel", 1, "y", [vessel.resistance / (MMHG * 60.0 / 1e-6)]
     )
     assert view.locator(".rl-caution-banner").is_visible()
+
+
+# --- the page as a door into the machine (issue 12) --------------------------------------
+FOREIGN_SECRET = "SECRET-from-outside-9c2e"
+LINK = '<a href="http://example.invalid/x">link</a>'
+
+
+def _files_view(page):
+    page.get_by_role("tab", name="Files").click()
+    view = page.locator(".rl-view").filter(has=page.locator(".rl-scenario-path")).first
+    view.locator(".rl-scenario-path input").wait_for()
+    return view
+
+
+def _press(page, view, button, path, words):
+    """Type ``path`` in the scenario path field, press ``button``, wait for ``words``."""
+    field = view.locator(".rl-scenario-path input")
+    field.fill(path)
+    field.press("Tab")  # the value reaches the kernel before the click does
+    view.locator(f".{button}").click()
+    page.wait_for_function(
+        "([words, path]) => [...document.querySelectorAll('.rl-messages, .rl-files-status')]"
+        ".some(e => e.textContent.includes(words) && e.textContent.includes(path))",
+        arg=[words, path[:60]],
+    )
+
+
+def test_the_files_view_refuses_paths_outside_the_workspace(page, served_app, tmp_path):
+    _, workspace = served_app
+    foreign = tmp_path / "foreign.toml"  # beside the workspace, not in it
+    foreign.write_text(
+        f'format_version = 1\n[[scenario]]\nname = "x"\nfluid = "{FOREIGN_SECRET}"\n'
+    )
+    link = workspace / f"door-{tmp_path.name}.toml"
+    link.symlink_to(foreign)
+    view = _files_view(page)
+    assert str(workspace.resolve()) in view.locator(".rl-workspace").inner_text()
+    relative = os.path.relpath(foreign, workspace)  # ../../...: through the parent folder
+    for typed in (str(foreign), relative, link.name):
+        _press(page, view, "rl-load", typed, "outside the workspace folder")
+        assert FOREIGN_SECRET not in page.content()
+    target = tmp_path / "written-by-the-page.toml"
+    _press(page, view, "rl-save", str(target), "outside the workspace folder")
+    assert not target.exists()
+    assert page.off_machine == []
+
+
+def test_a_link_in_a_part_label_stays_text_in_the_charts(page, served_app):
+    from rel_record import hostile_scenario_file
+
+    _, workspace = served_app
+    (workspace / "linked.toml").write_text(
+        hostile_scenario_file("linked", "linked", "tube", LINK), encoding="utf-8"
+    )
+    view = _files_view(page)
+    _press(page, view, "rl-load", "linked.toml", "loaded linked.toml")
+    page.get_by_role("tab", name="Line").click()
+    page.wait_for_function(  # the label is on the pressure budget's axis, as text
+        "() => [...document.querySelectorAll('.js-plotly-plot text')]"
+        ".some(t => t.textContent.includes('<a href=\"http://example.invalid/x\">'))"
+    )
+    assert page.locator('a[href*="example.invalid"]').count() == 0  # never a live link
+    assert page.off_machine == []
+
+
+def test_the_page_asks_nothing_of_another_machine(page):
+    # every tab opened, so each tab's widgets and charts load their code and styles
+    for name in ("Compare", "Blood and vessels", "Files", "Line"):
+        page.get_by_role("tab", name=name).click()
+        page.wait_for_timeout(1000)
+    page.wait_for_function("() => [...document.querySelectorAll('.js-plotly-plot')].length >= 4")
+    assert page.off_machine == []
+    hosts = {urllib.parse.urlsplit(u).netloc.rsplit(":", 1)[0] for u in page.requests}
+    assert "127.0.0.1" in hosts and hosts <= LOOPBACK_HOSTS  # the page's own requests seen
+    assert any(u.startswith("ws://127.0.0.1") for u in page.requests)  # the kernel's socket
+    icons = page.evaluate(
+        "() => getComputedStyle(document.querySelector('.rl-load i.fa')).maskImage || "
+        "getComputedStyle(document.querySelector('.rl-load i.fa')).webkitMaskImage"
+    )
+    assert icons.startswith('url("data:image/svg+xml')  # the app's own icon stylesheet
