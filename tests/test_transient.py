@@ -79,6 +79,38 @@ def test_time_to_alarm_and_bolus_follow_the_closed_forms():
     assert peak < (alarm - back) / _resistance()
 
 
+def test_occlusion_cleared_before_its_alarm_releases_what_was_pumped_meanwhile():
+    # nothing leaves the occluded syringe, so it stores all it is pumped, Q x the occlusion's
+    # length; cleared with the pump running, that store is the bolus above the set rate
+    q = 2.0 * ML_H
+    pump = SyringePump(rate=q, compliance=SYRINGE)
+    late = Occlusion(part=0, time=300.0, alarm_pressure=300 * MMHG)
+    r = simulate_infusion(
+        _linear_line(),
+        WATER,
+        pump,
+        occlusion=Occlusion(part=0, time=300.0, alarm_pressure=300 * MMHG, release_time=420.0),
+    )
+    occ = r.occlusion
+    assert r.conditions["released_before_alarm"] and not r.conditions["no_alarm"]
+    assert np.isinf(occ.time_to_alarm) and occ.release_time == 420.0
+    assert occ.bolus_volume == pytest.approx(q * 120.0, rel=1e-4)
+    assert occ.bolus_delivered == pytest.approx(occ.bolus_volume, rel=1e-3)
+    # a release after the alarm: the pumps stopped there, the same bolus, released later
+    alarmed = simulate_infusion(_linear_line(), WATER, pump, occlusion=late)
+    held = simulate_infusion(
+        _linear_line(),
+        WATER,
+        pump,
+        occlusion=Occlusion(part=0, time=300.0, alarm_pressure=300 * MMHG, release_time=1e4),
+    )
+    assert held.bolus_volume == pytest.approx(alarmed.bolus_volume, rel=1e-9)
+    assert held.occlusion.release_time == 1e4
+    assert alarmed.occlusion.release_time == pytest.approx(300.0 + alarmed.time_to_alarm)
+    with pytest.raises(InputRangeError, match="release_time 200 s must come after"):
+        Occlusion(part=0, time=300.0, alarm_pressure=1e4, release_time=200.0)
+
+
 def test_time_to_alarm_with_a_pressure_dependent_compliance():
     # a stiffening syringe: the time to alarm is the volume the compliance table stores
     # between the running and the alarm pressure, over the rate, V = int C dp (scipy quad)

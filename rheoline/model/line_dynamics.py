@@ -163,6 +163,7 @@ class Pump:
     valve_segment: int  # the segment its break-loose holds shut, or -1
     break_time: np.ndarray  # (N,) [s] when the stopper breaks loose
     name: str = "pump"
+    volume: object = None  # callable t -> (N,) [m^3] displaced since time 0
 
 
 @dataclass
@@ -180,7 +181,7 @@ class Network:
     pumps: list
     seg_labels: list = field(default_factory=list)
     closed: np.ndarray | None = None  # (n_seg,) bool: occluded segments
-    running: bool = True
+    running: np.ndarray | float = 1.0  # 1 where the pumps run, 0 where they are stopped
 
     def __post_init__(self):
         self.nn = len(self.laws)
@@ -259,9 +260,8 @@ class Network:
     def pump_rates(self, t):
         """(nn, N) [m^3/s] liquid displaced into each node at time ``t``."""
         out = np.zeros((self.nn, self.n))
-        if self.running:
-            for pump in self.pumps:
-                out[pump.node] += pump.rate(t)
+        for pump in self.pumps:
+            out[pump.node] += pump.rate(t) * self.running
         return out
 
     def outlet_flow(self, q):
@@ -401,7 +401,7 @@ class Recorder:
         self.flows.append(q)
         self.delivered.append(delivered)
         self.rates.append(
-            np.stack([p.rate(t_eval) if net.running else np.zeros(net.n) for p in net.pumps])
+            np.stack([p.rate(t_eval) * net.running * np.ones(net.n) for p in net.pumps])
         )
 
     def arrays(self):

@@ -15,10 +15,12 @@ the scenarios:
    :mod:`rheoline.model.transport`);
 2. **occlusion**, a branch from the run's state at the occlusion time: the occluded part
    passes nothing, the pumps keep running until a syringe upstream reaches the alarm
-   pressure (the time to alarm);
+   pressure (the time to alarm), or until the occlusion's release time;
 3. **release**, from each scenario's state at its alarm: every pump stopped and the
    occlusion cleared; the bolus is the volume the line then delivers (closed form: the
-   stored volume at the alarm less that at rest; the time solve gives its course).
+   stored volume at the alarm less that at rest; the time solve gives its course).  An
+   occlusion that clears before its alarm releases with the pumps running: the bolus is
+   the stored volume above the steady state at the set rates.
 
 The lumped description of compliance, slack and break-loose follows the physical causes of
 flow variability that Snijder et al. (2015) review for syringe-pump set-ups: the syringe
@@ -78,6 +80,7 @@ from rheoline.model.transient_phases import (
     port_results,
     rate_change_trackers,
     release_phase,
+    run_displacement,
     series_of,
 )
 from rheoline.model.transient_results import (
@@ -109,15 +112,30 @@ class Occlusion:
         Gauge pressure [Pa] at a syringe upstream at which its pump alarms and stops.
     max_wait : float
         Longest time [s] to wait for the alarm (default 24 h).
+    release_time : float, optional
+        When the occlusion clears [s]; default None: at the alarm.  Where the alarm comes
+        first the pumps stop there and the occlusion holds until this time; where it does
+        not, the occlusion clears with the pumps running, and the bolus is what the line
+        delivers above the set rates.
     """
 
     part: int
     time: float
     alarm_pressure: float | np.ndarray
     max_wait: float = 86400.0
+    release_time: float | None = None
 
     def __post_init__(self):
         object.__setattr__(self, "time", float(check_finite("occlusion.time", self.time)))
+        if self.release_time is not None:
+            release = float(check_finite("release_time", self.release_time))
+            if release <= self.time:
+                raise InputRangeError(
+                    f"release_time {release:g} s must come after the occlusion at {self.time:g} s",
+                    field="occlusion.release_time",
+                    value=release,
+                )
+            object.__setattr__(self, "release_time", release)
         pa = check_positive("alarm_pressure", self.alarm_pressure, "Pa")
         object.__setattr__(self, "alarm_pressure", pa)
         object.__setattr__(self, "max_wait", float(check_positive("max_wait", self.max_wait, "s")))
@@ -306,6 +324,7 @@ def _pumps(layout, pump, ports, shape, n):
                 valve_segment=seg if np.any(bl > 0) and seg >= 0 else -1,
                 break_time=t_break,
                 name=p.name if k == 0 else ports[k - 1].name,
+                volume=_flat_volume(profile, shape, n),
             )
         )
     return out
@@ -313,9 +332,22 @@ def _pumps(layout, pump, ports, shape, n):
 
 def _flat_rate(profile, shape, n):
     def rate(t):
-        return np.broadcast_to(profile.rate(t), shape).reshape(n)
+        return np.broadcast_to(profile.rate(_shaped_time(t, shape, n)), shape).reshape(n)
 
     return rate
+
+
+def _flat_volume(profile, shape, n):
+    def volume(t):
+        return np.broadcast_to(profile.volume(_shaped_time(t, shape, n)), shape).reshape(n)
+
+    return volume
+
+
+def _shaped_time(t, shape, n):
+    """A time [s], scalar or per scenario (N,), shaped to broadcast with a profile."""
+    t = np.asarray(t, dtype=float)
+    return t.reshape(shape) if t.ndim == 1 and t.size == n else t
 
 
 def _auto_duration(layout, pumps_in, line, steady_p, peak, shape, occlusion):
@@ -484,7 +516,9 @@ def simulate_infusion(
         node_compliance=np.stack([law.compliance(0.0) for law in net.laws]).reshape(
             (net.nn, *shape)
         ),
-        run=series_of(layout, run_arrays, shape, pumps_in) if series else None,
+        run=series_of(layout, run_arrays, shape, run_displacement(pumps_in, shape, n))
+        if series
+        else None,
         models_used=_models(layout, fluid, line, ports, compliance, port_models),
         conditions={k: v.reshape(shape) for k, v in conditions.items()},
     )
@@ -525,7 +559,7 @@ def _occlusion(layout, line, occlusion, ports, y_occ, breaks, shape, n, series, 
     alarm, occluded = occlusion_phase(
         layout, occlusion, ports, y_occ, breaks, shape, n, series, rtol
     )
-    release = release_phase(layout, alarm, shape, n, series, rtol)
+    release = release_phase(layout, alarm, ports, shape, n, series, rtol)
     return OcclusionResult(
         part=occlusion.part,
         part_name=line.part_names[occlusion.part],
@@ -537,6 +571,9 @@ def _occlusion(layout, line, occlusion, ports, y_occ, breaks, shape, n, series, 
         bolus_delivered=nodes.shaped(release["delivered"], shape),
         bolus_peak_flow=nodes.shaped(release["peak"], shape),
         bolus_time_90=nodes.shaped(release["time_90"], shape),
+        release_time=nodes.shaped(
+            np.where(alarm["released"], alarm["release_start"], np.nan), shape
+        ),
         occluded=occluded,
         release=release["series"],
     ), alarm["conditions"]

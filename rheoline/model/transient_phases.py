@@ -21,6 +21,7 @@ __all__ = [
     "port_results",
     "occlusion_phase",
     "release_phase",
+    "run_displacement",
 ]
 
 #: Points of the uniform time grid added to the solver's steps for drug deliveries, and of
@@ -77,8 +78,12 @@ def rate_change_trackers(net, pumps_in, ports, shape, n):
     return changes, trackers
 
 
-def series_of(layout, arrays, shape, pumps_in, start_volumes=None, pumped=True):
-    """A :class:`TimeSeries` from a recorder's arrays (time, volumes, flows, delivered)."""
+def series_of(layout, arrays, shape, displaced=None, start_volumes=None):
+    """A :class:`TimeSeries` from a recorder's arrays (time, volumes, flows, delivered).
+
+    ``displaced(t)`` gives the pumps' set and liquid displacement (n_t, N) since the
+    phase's start (None: the pumps are stopped).
+    """
     if arrays is None:
         return None
     net = layout.net
@@ -88,12 +93,8 @@ def series_of(layout, arrays, shape, pumps_in, start_volumes=None, pumped=True):
     out = net.seg_down < 0
     base = volumes[0] if start_volumes is None else start_volumes
     stored = (volumes - base[None]).sum(axis=1)
-    set_volume = np.zeros((n_t, net.n))
-    liquid = np.zeros((n_t, net.n))
-    if pumped:
-        for pump in pumps_in:
-            set_volume += _volume_at(pump.rate, t, shape, net.n)
-            liquid += _volume_at(pump.effective_rate(), t, shape, net.n)
+    zero = np.zeros((n_t, net.n))
+    set_volume, liquid = (zero, zero) if displaced is None else displaced(t)
     delivered_out = delivered[:, out, :].sum(axis=1)
 
     def shaped(a):
@@ -112,9 +113,22 @@ def series_of(layout, arrays, shape, pumps_in, start_volumes=None, pumped=True):
     )
 
 
-def _volume_at(profile, t, shape, n):
-    tt = t.reshape((-1,) + (1,) * len(shape))
-    return np.broadcast_to(profile.volume(tt), (t.size, *shape)).reshape(t.size, n)
+def run_displacement(pumps_in, shape, n):
+    """``displaced(t)`` of a run from time 0: set and liquid volumes (n_t, N)."""
+
+    def displaced(t):
+        tt = t.reshape((-1,) + (1,) * len(shape))
+        set_volume = sum(
+            np.broadcast_to(p.rate.volume(tt), (t.size, *shape)).reshape(t.size, n)
+            for p in pumps_in
+        )
+        liquid = sum(
+            np.broadcast_to(p.effective_rate().volume(tt), (t.size, *shape)).reshape(t.size, n)
+            for p in pumps_in
+        )
+        return set_volume, liquid
+
+    return displaced
 
 
 # ---------------------------------------------------------------------- drug transport
@@ -327,7 +341,7 @@ def _closed_segment(layout, part):
 
 
 def occlusion_phase(layout, occlusion, ports, y_occ, breaks, shape, n, series, rtol):
-    """From the occlusion until each scenario's alarm: its time and state, and the series."""
+    """From the occlusion to each scenario's alarm (or the release): times, states, series."""
     net = layout.net
     closed = _closed_segment(layout, occlusion.part)
     start_boundary = layout.node_boundary[net.seg_up[closed]]
@@ -341,6 +355,9 @@ def occlusion_phase(layout, occlusion, ports, y_occ, breaks, shape, n, series, r
         return np.max(np.stack([net.laws[j].pressure(volumes[j]) for j in sensors]), axis=0)
 
     t0 = occlusion.time
+    t_end = t0 + occlusion.max_wait
+    if occlusion.release_time is not None:
+        t_end = min(t_end, occlusion.release_time)
     tracker = dyn.FirstCrossing(sensed, alarm, np.full(n, t0), np.full(n, np.inf), keep_state=True)
     recorder = dyn.Recorder(net, keep=series)
     net.closed = np.arange(net.ns) == closed
@@ -350,7 +367,7 @@ def occlusion_phase(layout, occlusion, ports, y_occ, breaks, shape, n, series, r
             net,
             y_occ,
             t0,
-            t0 + occlusion.max_wait,
+            t_end,
             [b for b in breaks if b > t0],
             [tracker],
             recorder,
@@ -359,43 +376,73 @@ def occlusion_phase(layout, occlusion, ports, y_occ, breaks, shape, n, series, r
         )
     finally:
         net.closed = None
-    t_alarm = tracker.time
+    alarmed = ~np.isnan(tracker.time)
+    release = occlusion.release_time
+    early = ~alarmed & (release is not None and release <= t0 + occlusion.max_wait)
     state = tracker.state if tracker.state is not None else np.zeros((net.nv, n))
-    state = np.where(np.isnan(t_alarm)[None], np.asarray(y_end).reshape(net.nv, n), state)
+    state = np.where(alarmed[None], state, np.asarray(y_end).reshape(net.nv, n))
     occluded = None
     if series:
         arrays = recorder.arrays()
-        mask = arrays[0][:, None] > np.where(np.isnan(t_alarm), np.inf, t_alarm)[None]
-        v = np.where(mask[:, None], np.nan, arrays[1])
-        q = np.where(mask[:, None], np.nan, arrays[2])
-        w = np.where(mask[:, None], np.nan, arrays[3])
-        occluded = series_of(layout, (arrays[0], v, q, w), shape, [], pumped=False)
+        mask = arrays[0][:, None] > np.where(alarmed, tracker.time, np.inf)[None]
+        v, q, w = (np.where(mask[:, None], np.nan, arrays[i]) for i in (1, 2, 3))
+        occluded = series_of(layout, (arrays[0], v, q, w), shape, _displaced_since(net, t0))
     conditions = {
-        "no_alarm": np.isnan(t_alarm),
+        "no_alarm": ~alarmed & ~early,
+        "released_before_alarm": early,
         "alarm_at_occlusion": running >= alarm,
-        "alarm_before_break_loose": ~np.isnan(t_alarm) & (t_alarm < net.pumps[0].break_time),
+        "alarm_before_break_loose": alarmed & (tracker.time < net.pumps[0].break_time),
     }
+    start = np.where(alarmed, tracker.time, t_end)
+    if release is not None:
+        start = np.maximum(start, release)
     info = {
-        "time_to_alarm": np.where(np.isnan(t_alarm), np.inf, t_alarm - t0),
+        "time_to_alarm": np.where(alarmed, tracker.time - t0, np.inf),
         "state": state,
-        "alarmed": ~np.isnan(t_alarm),
+        "released": alarmed | early,
         "running": running,
+        "pumps_on": early * 1.0,
+        "release_start": start,
         "conditions": conditions,
     }
     return info, occluded
 
 
-def release_phase(layout, alarm, shape, n, series, rtol):
-    """The release from each alarm state, every pump stopped: the bolus and its course."""
+def _displaced_since(net, start, running=1.0):
+    """``displaced(t)`` of the pumps from ``start`` (N,) on, running where ``running`` is 1."""
+
+    def displaced(t):
+        liquid = np.stack(
+            [sum(p.volume(start + ti) - p.volume(start) for p in net.pumps) for ti in t]
+        )
+        liquid = liquid * running
+        return liquid, liquid
+
+    return displaced
+
+
+def release_phase(layout, info, ports, shape, n, series, rtol):
+    """The release from each state: the bolus above the line's settled state, its course.
+
+    Where the pumps stopped at the alarm the line settles to rest; where the occlusion
+    cleared first they keep running (at their set rates at the release) and the line
+    settles to that steady state.
+    """
     net = layout.net
-    volumes, _ = net.split(alarm["state"].ravel())
-    rest = net.volumes_at(layout.initial_pressures)
+    volumes, _ = net.split(info["state"].ravel())
+    start, on = info["release_start"], info["pumps_on"]
+    rates = [np.where(on > 0, p.rate(start), 0.0) for p in net.pumps]
+    steady = nodes.steady_pressures(layout, nodes.steady_flows(layout, ports, rates[0], rates[1:]))
+    rest = np.where(on[None] > 0, net.volumes_at(steady), net.volumes_at(layout.initial_pressures))
     bolus = (volumes - rest).sum(axis=0)
     y0 = net.join(volumes, np.zeros((net.ns, n)))
+    displaced = _displaced_since(net, start, on)
+
+    def excess(t, y):
+        return net.delivered_of(y) - displaced(np.array([t]))[1][0]
+
     target = np.maximum(bolus, 0.0)
-    tracker = dyn.FirstCrossing(
-        lambda t, y: net.delivered_of(y), 0.9 * target, np.zeros(n), np.full(n, np.inf)
-    )
+    tracker = dyn.FirstCrossing(excess, 0.9 * target, np.zeros(n), np.full(n, np.inf))
     peak = np.zeros(n)
 
     def settled(t, y):
@@ -404,27 +451,34 @@ def release_phase(layout, alarm, shape, n, series, rtol):
         left = (net.split(y)[0] - rest).sum(axis=0)
         return bool(np.all(np.abs(left) <= RELEASE_SETTLED * np.maximum(np.abs(bolus), 1e-300)))
 
-    saved = [p.break_time for p in net.pumps]
-    net.running = False
+    saved = [(p.break_time, p.rate) for p in net.pumps]
+    net.running = on
     for p in net.pumps:
         p.break_time = np.full(n, -np.inf)
+        p.rate = _shifted(p.rate, start)
     recorder = dyn.Recorder(net, keep=series)
     try:
-        y_end, _ = dyn.integrate(net, y0, 0.0, 1e9, (), [tracker], recorder, settled, rtol)
+        y_end, t_end = dyn.integrate(net, y0, 0.0, 1e9, (), [tracker], recorder, settled, rtol)
+        delivered = excess(t_end, y_end)
     finally:
-        net.running = True
-        for p, t_break in zip(net.pumps, saved, strict=True):
-            p.break_time = t_break
-    ok = alarm["alarmed"]
+        net.running = 1.0
+        for p, (t_break, rate) in zip(net.pumps, saved, strict=True):
+            p.break_time, p.rate = t_break, rate
+    ok = info["released"]
     nan = np.full(n, np.nan)
     return {
         "bolus": np.where(ok, bolus, nan),
-        "delivered": np.where(ok, net.delivered_of(y_end), nan),
+        "delivered": np.where(ok, delivered, nan),
         "peak": np.where(ok, peak, nan),
         "time_90": np.where(ok & (target > 0), tracker.time, nan),
-        "series": series_of(
-            layout, recorder.arrays(), shape, [], start_volumes=volumes, pumped=False
-        )
+        "series": series_of(layout, recorder.arrays(), shape, displaced, volumes)
         if series
         else None,
     }
+
+
+def _shifted(rate, start):
+    def shifted(t):
+        return rate(start + t)
+
+    return shifted

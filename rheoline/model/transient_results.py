@@ -53,6 +53,13 @@ _CONDITIONS = (
         "the occlusion alarm pressure was not reached within the longest wait",
     ),
     Condition(
+        "released_before_alarm",
+        "caution",
+        "cleared before the alarm",
+        "the occlusion cleared before the alarm, with the pumps running: its bolus is what the "
+        "line delivers above the set rates",
+    ),
+    Condition(
         "alarm_at_occlusion",
         "caution",
         "alarm at once",
@@ -244,7 +251,9 @@ class OcclusionResult:
         [s] from the occlusion to the alarm (inf: not within ``max_wait``).
     bolus_volume : float or ndarray
         Volume [m^3] released when the occlusion clears with every pump stopped at the
-        alarm: the stored volume at the alarm less that at rest (closed form).
+        alarm: the stored volume at the alarm less that at rest (closed form); where the
+        occlusion clears before the alarm, with the pumps running, the stored volume above
+        the steady state at the set rates.
     bolus_delivered : float or ndarray
         The same from the time solve of the release [m^3] (a check: it approaches
         ``bolus_volume`` as the line settles).
@@ -252,10 +261,13 @@ class OcclusionResult:
         Largest outlet flow of the release [m^3/s].
     bolus_time_90 : float or ndarray
         [s] after the release until 90 % of the bolus has left.
+    release_time : float or ndarray
+        When the occlusion cleared [s] (the alarm, or the given release time if later;
+        NaN where neither happened within the wait).
     occluded : TimeSeries or None
         From the occlusion on (absolute time; NaN after a scenario's alarm).
     release : TimeSeries or None
-        From the release (time since the alarm).
+        From the release (time since ``release_time``).
     """
 
     part: int
@@ -268,6 +280,7 @@ class OcclusionResult:
     bolus_delivered: float | np.ndarray
     bolus_peak_flow: float | np.ndarray
     bolus_time_90: float | np.ndarray
+    release_time: float | np.ndarray
     occluded: TimeSeries | None = field(repr=False, default=None)
     release: TimeSeries | None = field(repr=False, default=None)
 
