@@ -1,5 +1,6 @@
 """Scenario files: reading, validation, sweeps, limits and the round trip."""
 
+import dataclasses
 import json
 import math
 from pathlib import Path
@@ -791,3 +792,37 @@ def test_any_valid_document_loads_dumps_and_loads_to_the_same_description(doc):
         again = loads_scenarios(text, fmt=fmt)
         assert again == sset
         assert dump_scenarios(again, fmt) == text
+
+
+def test_one_field_read_and_replaced_by_its_path_saves_and_loads():
+    from rheoline.scenario.files import axis_of, value_of, width_of
+
+    sset = loads_scenarios(EVERY_FIELD)
+    first, pump, cuff = sset.scenarios
+    assert first.field("head") is first.drive.head
+    assert first.field("fluid") is first.fluid.name
+    assert first.field("tolerance.samples").si == 200
+    assert first.field("part[2].tolerance.length").written == "2 %"
+    assert first.field("part[3].gauge").values == (14, 16, 18, 20)
+    assert cuff.field("vein_diameter") is None and pump.field("tolerance.seed") is None
+    edited = (
+        first.with_field("head", value_of("head", 1.2))
+        .with_field("part[3].gauge", axis_of("part[3].gauge", [18, 20], "catheter"))
+        .with_field("part[2].tolerance.length", None)
+        .with_field("volume", None)
+        .with_field("head_when_empty", None)
+    )
+    assert edited.drive.head.si == 1.2 and edited.delivery is None
+    assert "length" not in edited.parts[1].tolerance
+    pump2 = pump.with_field("tolerance.samples", value_of("tolerance.samples", 500)).with_field(
+        "part[3].tolerance.inner_diameter",
+        width_of("part[3].tolerance.inner_diameter", "absolute", 1e-5),
+    )
+    assert pump2.tolerance.n_samples == 500 and pump2.n_samples == 500
+    cuff2 = cuff.with_field("vein_diameter", value_of("vein_diameter", 5e-3))
+    again = loads_scenarios(
+        dump_scenarios(dataclasses.replace(sset, scenarios=(edited, pump2, cuff2)))
+    )
+    assert again.scenarios == (edited, pump2, cuff2)
+    with pytest.raises(KeyError, match="no field 'colour'"):
+        first.field("colour")

@@ -394,6 +394,78 @@ class Scenario:
         """The sweep points (see :func:`sweep_points`)."""
         return sweep_points(self)
 
+    def field(self, path):
+        """The field at a dotted path (``"head"``, ``"fluid"``, ``"tolerance.samples"``,
+        ``"part[2].gauge"``, ``"part[2].tolerance.length"``), or None where not given."""
+        group, key, part = self._locate(path)
+        if part is not None:
+            return (part.tolerance if group == "tolerance" else part.fields).get(key)
+        holder = getattr(self, group)
+        return None if holder is None else getattr(holder, _attribute(type(holder), key), None)
+
+    def with_field(self, path, value):
+        """A copy with the field at ``path`` set to ``value`` (a :class:`Value`,
+        :class:`Axis` or :class:`ToleranceWidth`; None removes it), the way a view edits one.
+        Nothing is validated here: ``parse_scenarios(scenario_set_data(sset))`` checks an
+        edited set as the reader checks a file.
+
+        >>> sc = Scenario("x", FluidSpec(Value("water")), DriveSpec(head=Value(1.0)), ())
+        >>> sc.with_field("head", Value(0.5)).drive.head
+        Value(si=0.5, written=None)
+        >>> sc.with_field("volume", Value(1e-3)).delivery.volume.si
+        0.001
+        """
+        from dataclasses import replace
+
+        group, key, part = self._locate(path)
+        if part is not None:
+            j = int(path[5 : path.index("]")]) - 1
+            name = "tolerance" if group == "tolerance" else "fields"
+            entries = {k: v for k, v in getattr(part, name).items() if k != key}
+            if value is not None:
+                entries[key] = value
+            parts = list(self.parts)
+            parts[j] = replace(part, **{name: entries})
+            return replace(self, parts=tuple(parts))
+        cls = _GROUPS[group]
+        holder = getattr(self, group) or cls(**{f.name: None for f in fields(cls)})
+        holder = replace(holder, **{_attribute(cls, key): value})
+        empty = all(getattr(holder, f.name) is None for f in fields(holder))
+        return replace(
+            self, **{group: None if empty and group not in ("fluid", "drive") else holder}
+        )
+
+    def _locate(self, path):
+        """``(group, key, part)`` of a dotted path: the group attribute (fluid, drive,
+        delivery, site, tolerance) and key, and the :class:`PartSpec` for a part's field."""
+        from rheoline.scenario.schema import SCENARIO_FIELDS
+
+        head, _, key = path.rpartition(".")
+        if head.startswith("part["):
+            j = int(head[5 : head.index("]")])
+            part = self.parts[j - 1]
+            return ("tolerance" if head.endswith(".tolerance") else "fields"), key, part
+        if head == "tolerance":
+            return "tolerance", key, None
+        if head or key not in SCENARIO_FIELDS or not SCENARIO_FIELDS[key].group:
+            raise KeyError(f"no field {path!r} in a scenario")
+        return SCENARIO_FIELDS[key].group, key, None
+
+
+#: The dataclass of each group of scenario fields, by the schema's group name.
+_GROUPS = {
+    "fluid": FluidSpec,
+    "drive": DriveSpec,
+    "delivery": DeliverySpec,
+    "site": SiteSpec,
+    "tolerance": ToleranceSpec,
+}
+
+
+def _attribute(cls, key):
+    """The attribute of group ``cls`` that holds the file key ``key``."""
+    return {k: name for name, k in cls._KEYS.items()}.get(key, key)
+
 
 @dataclass(frozen=True)
 class ScenarioSet:

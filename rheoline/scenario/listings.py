@@ -66,27 +66,19 @@ def parts_table(kind=None):
         rows.append(
             ["catheter", f"{g}G", od * 1e3, d * 1e3, length * 1e3, "typical nominal, from memory"]
         )
+    needle_mm = _default_needle_length() * 1e3
     for g, (od, d_reg, d_thin) in cat.NEEDLE_GAUGES.items():
-        rows.append(
-            [
-                "needle",
-                f"{g}G regular",
-                od * 1e3,
-                d_reg * 1e3,
-                38.0,
-                "ISO 9626 minimum bore, from memory",
-            ]
-        )
-        rows.append(
-            [
-                "needle",
-                f"{g}G thin",
-                od * 1e3,
-                d_thin * 1e3,
-                38.0,
-                "ISO 9626 minimum bore, from memory",
-            ]
-        )
+        for wall, bore in (("regular", d_reg), ("thin", d_thin)):
+            rows.append(
+                [
+                    "needle",
+                    f"{g}G {wall}",
+                    od * 1e3,
+                    bore * 1e3,
+                    needle_mm,
+                    "ISO 9626 minimum bore, from memory",
+                ]
+            )
     for k, (d, length) in cat.EXTENSION_SETS.items():
         rows.append(["set", k, np.nan, d * 1e3, length * 1e3, "typical, from memory"])
     for k, d in cat.CIRCUIT_TUBING.items():
@@ -112,6 +104,15 @@ def parts_table(kind=None):
             )
         frame = frame[frame["catalogue"] == kind].reset_index(drop=True)
     return frame
+
+
+def _default_needle_length():
+    """The length [m] a needle has when the file gives none (the model's default)."""
+    import inspect
+
+    from rheoline.model.parts import Needle
+
+    return inspect.signature(Needle).parameters["length"].default
 
 
 # --------------------------------------------------------------------------- questions
