@@ -428,7 +428,7 @@ class _GroupRun:
     # ----------------------------------------------------------------------- the rest
     def tolerance(self):
         c, n, sc = self.columns, self.n, self.g.scenario
-        band = tolerance_band(self.g) if sc.has_tolerance else None
+        band = tolerance_band(self.g, self.fluid) if sc.has_tolerance else None
         for what in ("flow", "pressure"):
             unit = "mL/min" if what == "flow" else "mmHg"
             mine = band is not None and (what == "flow") == (self.mode == "drive")

@@ -15,7 +15,7 @@ import numpy as np
 
 from rheoline.model.hemolysis import HEMOLYSIS_CONCERN_STRESS  # a model constant, re-exported
 from rheoline.model.provenance import merge_models
-from rheoline.scenario.build import build_fluid, build_parts, point_group
+from rheoline.scenario.build import build_parts, point_group
 from rheoline.scenario.description import ToleranceSpec
 from rheoline.units import ML_PER_MIN, MMHG
 
@@ -51,8 +51,8 @@ class Band:
     models_used: tuple
 
 
-def tolerance_band(g):
-    """The :class:`Band` of group ``g``, from the line engine's seeded Monte Carlo
+def tolerance_band(g, fl):
+    """The :class:`Band` of group ``g`` (whose fluid is ``fl``), from the line engine's seeded Monte Carlo
     (:func:`rheoline.model.tolerance.flow_tolerance`, one vectorized solve of all samples
     per case).  Each tolerance is a half-width (uniform spread unless the file says
     ``distribution = "normal"``); an absolute bore or length tolerance is turned into a
@@ -65,7 +65,7 @@ def tolerance_band(g):
     for col in range(n):
         with warnings.catch_warnings(record=True) as caught:
             warnings.simplefilter("always")
-            band, scale = _tolerance_case(g, col)
+            band, scale = _tolerance_case(g, fl, col)
         lo[col], hi[col] = band.percentiles[5.0] / scale, band.percentiles[95.0] / scale
         top[col], outside[col] = band.dominant_input, bool(np.any(band.outside_range))
         models = merge_models(models, band.models_used)
@@ -74,16 +74,18 @@ def tolerance_band(g):
     return Band(lo, hi, top, outside, models)
 
 
-def _tolerance_case(g, col):
-    """The tolerance band of sweep point ``col`` (the fluid is rebuilt from its recipe) and
-    the scale of its percentiles (to mmHg or mL/min)."""
+def _tolerance_case(g, fl, col):
+    """The tolerance band of sweep point ``col`` and the scale of its percentiles (to mmHg
+    or mL/min).  The case's fluid is the group's fluid at the case's temperature and options
+    (:meth:`~rheoline.model.fluid_base.Fluid.at`: rebuilt from its recipe)."""
     from rheoline.model.line import Line
     from rheoline.model.tolerance import flow_tolerance
 
     sc = g.scenario
     tol = sc.tolerance or ToleranceSpec()
     one = point_group(g, col)
-    case_fluid = build_fluid(one, "")
+    options = {k: one.values[k] for k in ("hematocrit", "mass_fraction") if k in one.values}
+    case_fluid = fl.at(temperature_c=one.values["temperature"], **options)
     case_line = Line(build_parts(one, ""))
     d_tol, l_tol = {}, {}
     for i, (spec, part) in enumerate(zip(sc.parts, case_line.parts, strict=True)):
