@@ -1,32 +1,16 @@
-"""What a pack says about its basis: the assumptions sheet from models_used and the registry.
+"""What a pack says about its basis: the assumptions sheet from models_used and a registry.
 
-The generator is checked here against registries shaped as the provenance contract states
-(``ModelEntry``: key, title, role, reference, doi, validity, ranges, recalled); the packs
-of real runs are checked in tests/test_export.py.
+The generator is checked here against a registry of invented entries (the provenance
+registry's own ``ModelEntry``); the packs of real runs, read against the real registry, are
+checked in tests/test_export.py.
 """
 
 from __future__ import annotations
 
-from dataclasses import dataclass, field
-
 import pytest
 
+from rheoline.model.provenance import ModelEntry as Entry
 from rheoline.scenario.pack_sources import ASSUMPTION_COLUMNS, assumptions_table
-
-
-@dataclass(frozen=True)
-class Entry:
-    """The fields of the provenance registry's ModelEntry (contract B)."""
-
-    key: str
-    title: str
-    role: str
-    reference: str
-    doi: str | None
-    validity: str
-    ranges: dict = field(default_factory=dict)
-    recalled: bool = False
-
 
 # Invented entries: only their shape matters here.
 REGISTRY = {
