@@ -302,8 +302,8 @@ class PartSpec:
 
     type: str
     label: str = ""
-    fields: Mapping = field(default_factory=FrozenMap)
-    tolerance: Mapping = field(default_factory=FrozenMap)
+    fields: Mapping[str, Field] = field(default_factory=FrozenMap)
+    tolerance: Mapping[str, ToleranceWidth] = field(default_factory=FrozenMap)
 
     def __post_init__(self):
         object.__setattr__(self, "fields", _frozen(self.fields))
@@ -336,7 +336,7 @@ class Scenario:
     name: str
     fluid: FluidSpec
     drive: DriveSpec
-    parts: tuple
+    parts: tuple[PartSpec, ...]
     tolerance: ToleranceSpec | None = None
     delivery: DeliverySpec | None = None
     site: SiteSpec | None = None
@@ -476,7 +476,7 @@ class ScenarioSet:
     from and take no part in equality.
     """
 
-    scenarios: tuple
+    scenarios: tuple[Scenario, ...]
     title: str = ""
     notes: str = ""
     source: str = field(default="<string>", compare=False)

@@ -47,7 +47,9 @@ from __future__ import annotations
 
 import datetime as _dt
 import warnings
+from collections.abc import Mapping
 from dataclasses import dataclass, field
+from typing import TYPE_CHECKING
 
 import numpy as np
 
@@ -70,6 +72,9 @@ from rheoline.scenario.steps import (
 )
 from rheoline.scenario.tables import inputs_table
 from rheoline.units import ML_PER_H, ML_PER_MIN, MMHG
+
+if TYPE_CHECKING:  # pandas is imported where a table is built, not with this module
+    import pandas
 
 __all__ = [
     "HEMOLYSIS_CONCERN_STRESS",
@@ -201,13 +206,13 @@ class RunResult:
     """
 
     scenario_set: ScenarioSet
-    table: object
-    parts: object
-    inputs: object
-    models_used: tuple = ()
-    notes: tuple = ()
-    flags: object = field(default_factory=dict)
-    part_keys: tuple = ()
+    table: pandas.DataFrame
+    parts: pandas.DataFrame
+    inputs: pandas.DataFrame
+    models_used: tuple[str, ...] = ()
+    notes: tuple[Note, ...] = ()
+    flags: Mapping[str, tuple[str, ...]] = field(default_factory=dict)
+    part_keys: tuple[str, ...] = ()
     created: _dt.datetime = field(default_factory=lambda: _dt.datetime.now(_dt.UTC))
 
     @property
