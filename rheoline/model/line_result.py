@@ -119,21 +119,48 @@ class LineResult:
         return out
 
     # ------------------------------------------------------------------ per part
-    @cached_property
-    def part_wall_shear_stress(self):
-        """Wall shear stress [Pa] of each lumen, f_fd rho u^2 / 8 (fully developed friction)."""
+    def _wall_stress(self, developing):
+        """Length-averaged wall stress [Pa] of each lumen with the apparent friction
+        (``developing`` as the layout's) or the fully developed one (``False``)."""
+        layout = self._layout
 
         def stress(rows):
             re = np.maximum(self.part_reynolds[rows], 1e-300)
             u = self.part_mean_velocity[rows]
             f_re, _ = _lumen._friction_re_and_slope(
-                re, 1.0, self._layout.relative_roughness, False, self._layout.laminar_f_re
+                re,
+                layout.length / layout.diameter,
+                layout.relative_roughness,
+                developing,
+                layout.laminar_f_re,
             )
-            # f rho u^2 / 8 = (f Re) mu u / (8 D)
-            tau = f_re * self._viscosity * u / (8.0 * self._layout.diameter)
+            # f rho u^2 / 8 = (f Re) mu u / (8 D): the force balance dp_f A = tau P L
+            tau = f_re * self._viscosity * u / (8.0 * layout.diameter)
             return np.where(self._moving, tau, 0.0)
 
         return self._per_lumen(stress)
+
+    @cached_property
+    def part_wall_shear_stress(self):
+        r"""Length-averaged wall shear stress [Pa] of each lumen, from the friction the line used.
+
+        .. math:: \bar\tau_w = \frac{\Delta p_f\,D_h}{4 L} = f_{app}\frac{\rho\bar u^2}{8}
+
+        the force balance :math:`\Delta p_f A = \bar\tau_w P L` on the lumen's frictional
+        drop (without its entrance or transition K), with the apparent Darcy friction the
+        solve used: Shah 1978 in developing laminar flow, Churchill 1977 beyond.  Shah's
+        :math:`f_{app}` also holds the momentum change of the developing profile, so in
+        short lumens this is an upper estimate of the mean wall stress (conservative for
+        the hemolysis index, which is based on it); in long lumens it tends to the fully
+        developed value (:attr:`part_developed_wall_shear_stress`).
+        """
+        return self._wall_stress(self._layout.developing)
+
+    @cached_property
+    def part_developed_wall_shear_stress(self):
+        """Wall shear stress [Pa] of fully developed flow at each lumen's Reynolds number,
+        f_fd rho u^2 / 8 (the value far from any inlet)."""
+        return self._wall_stress(False)
 
     @cached_property
     def part_wall_shear_rate(self):
