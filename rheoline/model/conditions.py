@@ -16,7 +16,7 @@ Examples
 >>> CONDITIONS["turbulent"].words
 'turbulent flow'
 >>> [c.key for c in CONDITIONS.values() if c.per_part]
-['turbulent', 'transitional', 'developing', 'outside_range', 'catalogue_size', 'hemolysis_extrapolated']
+['turbulent', 'transitional', 'transition_zone', 'developing', 'outside_range', 'catalogue_size', 'hemolysis_extrapolated']
 >>> count_words(np.array([True, False, True]))
 ' in 2 of 3 scenarios'
 """
@@ -72,6 +72,15 @@ _LIST = (
         "caution",
         "transitional flow",
         "a lumen's Reynolds number is 2300-4000, where friction is uncertain",
+        per_part=True,
+    ),
+    Condition(
+        "transition_zone",
+        "caution",
+        "near the laminar-turbulent transition",
+        "a lumen's Reynolds number is 1800-4000 (rheoline.model.friction."
+        "TRANSITION_ZONE_REYNOLDS up to the turbulent limit): the friction there depends on "
+        "inlet disturbances, so a warmer or thinner fluid can flow less, not more",
         per_part=True,
     ),
     Condition(

@@ -34,12 +34,19 @@ __all__ = [
     "regime_of",
     "LAMINAR_LIMIT_REYNOLDS",
     "TURBULENT_LIMIT_REYNOLDS",
+    "TRANSITION_ZONE_REYNOLDS",
 ]
 
 #: Reynolds number below which pipe flow is called laminar.  common practice, no source
 LAMINAR_LIMIT_REYNOLDS = 2300.0
 #: Reynolds number above which pipe flow is called turbulent.  common practice, no source
 TURBULENT_LIMIT_REYNOLDS = 4000.0
+#: Reynolds number from which a lumen is flagged as in the laminar-turbulent transition zone
+#: (up to :data:`TURBULENT_LIMIT_REYNOLDS`): disturbed inlets (catheter hubs, steps) can
+#: trip puffs there, and the friction blend already rises (Churchill 1977 is 3 % above
+#: 64/Re at Re 2200).  # common practice, no source (turbulent puffs in pipe flow persist
+#: from Re about 1700-2000, Avila et al., Science 333 (2011) 192-196, from memory)
+TRANSITION_ZONE_REYNOLDS = 1800.0
 
 
 def _shah_fre(x, laminar_f_re=16.0):

@@ -38,6 +38,7 @@ import numpy as np
 
 from rheoline.model import lumen as _lumen
 from rheoline.model.conditions import CONDITIONS, count_words
+from rheoline.model.friction import TRANSITION_ZONE_REYNOLDS
 from rheoline.model.hemolysis import (
     GIERSIEPEN_1990_MAX_STRESS,
     GIERSIEPEN_1990_TIME_RANGE,
@@ -279,7 +280,7 @@ class LineResult:
         """Per-part conditions: {key: bool array (n_parts, *scenario_shape)}.
 
         Keys: the per-part entries of :data:`rheoline.model.conditions.CONDITIONS`
-        (``turbulent``, ``transitional``, ``developing``, ``outside_range``,
+        (``turbulent``, ``transitional``, ``transition_zone``, ``developing``, ``outside_range``,
         ``catalogue_size``, ``hemolysis_extrapolated``).
         """
         shape = self.part_pressure_drops.shape
@@ -289,6 +290,7 @@ class LineResult:
         out = {
             "turbulent": turbulent,
             "transitional": moving & (re >= _lumen.LAMINAR_LIMIT_REYNOLDS) & ~turbulent,
+            "transition_zone": moving & (re >= TRANSITION_ZONE_REYNOLDS) & ~turbulent,
             "developing": self._developing(moving, re),
             "outside_range": np.broadcast_to(self._layout.part_outside_range, shape),
             "catalogue_size": np.broadcast_to(
@@ -452,6 +454,13 @@ def _part_flags(result, name, i):
         out.append(
             f"{name}: transitional flow (Re 2300-4000){count_words(pc['transitional'][i])}; "
             "friction is uncertain there (Churchill 1977 interpolation)"
+        )
+    near = pc["transition_zone"][i] & ~pc["transitional"][i]
+    if np.any(near):
+        out.append(
+            f"{name}: laminar but near the transition (Re {TRANSITION_ZONE_REYNOLDS:.0f}-"
+            f"{_lumen.LAMINAR_LIMIT_REYNOLDS:.0f}){count_words(near)}; friction is uncertain "
+            "there, and a warmer or thinner fluid can flow less"
         )
     if np.any(pc["developing"][i]):
         out.append(

@@ -14,7 +14,8 @@ read from the step's result:
 ``solve`` (:meth:`rheoline.model.line.Line.solve`)
     ``flow [mL/min]``, ``flow [mL/h]``, ``required pressure [mmHg]`` (the source pressure
     above the gravity head), ``pressure limit [mmHg]``, ``over pressure limit``, ``max
-    Reynolds number``, ``regime`` (the worst part), ``dominant part`` and ``dominant share
+    Reynolds number``, ``regime`` (the worst part), ``transition zone`` (a lumen at Re
+    1800-4000, where a warmer or thinner fluid can flow less), ``dominant part`` and ``dominant share
     [%]`` of the pressure budget, ``max wall shear stress [Pa]``, ``hemolysis index [%]``
     (Giersiepen 1990, blood fluids only), ``hemolysis concern``; and the parts table.
 ``tolerance`` (:func:`rheoline.model.tolerance.flow_tolerance`, where tolerances are given)
@@ -54,6 +55,7 @@ from typing import TYPE_CHECKING
 import numpy as np
 
 from rheoline.errors import RangeWarning, RegimeWarning, RheolineWarning
+from rheoline.model.friction import LAMINAR_LIMIT_REYNOLDS, TRANSITION_ZONE_REYNOLDS
 from rheoline.model.provenance import merge_models
 from rheoline.scenario.build import (
     build_fluid,
@@ -105,6 +107,7 @@ TABLE_COLUMNS = [
     "over pressure limit",
     "max Reynolds number",
     "regime",
+    "transition zone",
     "dominant part",
     "dominant share [%]",
     "max wall shear stress [Pa]",
@@ -146,6 +149,11 @@ UNIT_MODELS = ("nist-sp811",)
 FLAG_WORDS = {
     "turbulent": lambda d: f"turbulent: {', '.join(d['turbulent'])}",
     "transitional": lambda d: f"transitional: {', '.join(d['transitional'])}",
+    "transition_zone": lambda d: (
+        f"laminar near transition (Re {TRANSITION_ZONE_REYNOLDS:.0f}-"
+        f"{LAMINAR_LIMIT_REYNOLDS:.0f}), a warmer or thinner fluid may flow less: "
+        f"{', '.join(d['transition_zone'])}"
+    ),
     "over_pressure_limit": "over pressure limit",
     "hemolysis_concern": "hemolysis concern",
     "hemolysis_extrapolated": "hemolysis index extrapolated",
@@ -404,6 +412,8 @@ class _GroupRun:
         c["over pressure limit"] = [bool(o) for o in over] if limited else [None] * n
         c["max Reynolds number"] = _vec(res.max_reynolds, n).astype(float).tolist()
         c["regime"] = [str(r) for r in _vec(res.regime, n)]
+        zone = _vec(res.conditions["transition_zone"], n).astype(bool)
+        c["transition zone"] = zone.tolist()
         self.point_names = point_part_names(self.g, self.line)
         dominant = _vec(res.dominant_part, n)
         c["dominant part"] = [
@@ -427,8 +437,12 @@ class _GroupRun:
         )
         self.part_conditions = {
             key: np.broadcast_to(res.part_conditions[key], (k, n))
-            for key in ("turbulent", "transitional")
+            for key in ("turbulent", "transitional", "transition_zone")
         }
+        # the zone's flag names the laminar lumens in it (transitional ones have their own)
+        near = self.part_conditions["transition_zone"] & ~self.part_conditions["transitional"]
+        self.part_conditions["transition_zone"] = near
+        self.conditions["transition_zone"] = near.any(axis=0)
 
     # ----------------------------------------------------------------------- the rest
     def tolerance(self):
@@ -468,7 +482,7 @@ class _GroupRun:
         """The flags of point ``col`` (a tuple of words), rendered from the conditions."""
         data = {
             r: [self.point_names[j, col] for j in np.flatnonzero(self.part_conditions[r][:, col])]
-            for r in ("turbulent", "transitional")
+            for r in ("turbulent", "transitional", "transition_zone")
         }
         data["ratio"] = self.columns["catheter-to-vein ratio [-]"][col]
         return tuple(

@@ -49,7 +49,8 @@ def records(table, parts, flags=None):
     """The table as a list of JSON-ready dicts (one per case), with the parts of each line.
 
     Keys: ``name``, ``scenario``, ``point``, ``fluid``, ``flow_ml_min``, ``flow_ml_h``,
-    ``required_pressure_mmhg``, ``max_reynolds``, ``regime``, ``dominant_part``,
+    ``required_pressure_mmhg``, ``max_reynolds``, ``regime``, ``transition_zone``,
+    ``dominant_part``,
     ``dominant_share``, ``max_wall_shear_stress_pa``, ``hemolysis_index_percent``,
     ``hemolysis_concern``, ``exceeds_pressure_limit``, ``flow_p5_ml_min``,
     ``flow_p95_ml_min``, ``time_to_deliver_min``, ``flags`` and ``parts`` (a list of
@@ -85,6 +86,7 @@ def records(table, parts, flags=None):
                 "required_pressure_mmhg": _num(r["required pressure [mmHg]"]),
                 "max_reynolds": _num(r["max Reynolds number"]),
                 "regime": r["regime"],
+                "transition_zone": bool(r["transition zone"]),
                 "dominant_part": r["dominant part"],
                 "dominant_share": _num(r["dominant share [%]"] / 100.0),
                 "max_wall_shear_stress_pa": _num(r["max wall shear stress [Pa]"]),
