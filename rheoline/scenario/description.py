@@ -330,7 +330,8 @@ class Scenario:
     """One scenario: a fluid, a drive, a line of parts, and what else the file asks.
 
     ``parts`` run from source to outlet.  ``tolerance``, ``delivery`` and ``site`` are None
-    when the file gives none of their fields.
+    when the file gives none of their fields.  ``model_band`` False leaves the run's model
+    band out (:mod:`rheoline.scenario.model_band`).
     """
 
     name: str
@@ -341,6 +342,7 @@ class Scenario:
     delivery: DeliverySpec | None = None
     site: SiteSpec | None = None
     notes: str = ""
+    model_band: bool = True
 
     def __post_init__(self):
         object.__setattr__(self, "parts", tuple(self.parts))

@@ -350,9 +350,18 @@ def _parse_scenario(raw, index, source):
         DeliverySpec.from_keys(values) if "volume" in values else None,
         SiteSpec.from_keys(values) if "vein_diameter" in values else None,
         notes,
+        _flag(raw, "model_band", at),
     )
     _check_scenario_budget(sc, at)
     return sc
+
+
+def _flag(raw, key, at):
+    """A true/false field (true when not given)."""
+    value = raw.get(key, True)
+    if not isinstance(value, bool):
+        at.fail(f"must be true or false (no quotes), got {type_name(value)}", key)
+    return value
 
 
 def _scenario_header(raw, index, source):

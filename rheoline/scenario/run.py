@@ -21,6 +21,11 @@ read from the step's result:
 ``tolerance`` (:func:`rheoline.model.tolerance.flow_tolerance`, where tolerances are given)
     ``flow p5 [mL/min]`` / ``flow p95 [mL/min]`` (a pump: ``pressure p5/p95 [mmHg]``) and
     the ``dominant tolerance``.
+``model_band`` (:func:`rheoline.scenario.model_band.band_columns`, unless the file says
+``model_band = false``)
+    ``flow model low [mL/min]`` / ``flow model high [mL/min]`` (a pump: ``pressure model
+    low/high [mmHg]``): the answer across the defensible model choices, and the ``model band
+    driver``, the choice that moves it most.
 ``delivery`` (:mod:`rheoline.model.delivery`, where a volume is given)
     ``time to deliver [min]``.
 ``site`` (:func:`rheoline.model.vessels.infusion_site_context`, where a vein is given)
@@ -65,6 +70,7 @@ from rheoline.scenario.build import (
     site_context,
 )
 from rheoline.scenario.description import ScenarioSet
+from rheoline.scenario.model_band import band_columns
 from rheoline.scenario.steps import (
     HEMOLYSIS_CONCERN_STRESS,
     delivery_minutes,
@@ -118,6 +124,11 @@ TABLE_COLUMNS = [
     "pressure p5 [mmHg]",
     "pressure p95 [mmHg]",
     "dominant tolerance",
+    "flow model low [mL/min]",
+    "flow model high [mL/min]",
+    "pressure model low [mmHg]",
+    "pressure model high [mmHg]",
+    "model band driver",
     "time to deliver [min]",
     "catheter-to-vein ratio [-]",
     "flags",
@@ -341,7 +352,7 @@ class _GroupRun:
     def run(self):
         for step in (self.build_fluid, self.build_line, self.solve):
             self._step(step)
-        for step in (self.tolerance, self.delivery, self.site):
+        for step in (self.tolerance, self.model_band, self.delivery, self.site):
             self._step(step)
         return self
 
@@ -457,6 +468,11 @@ class _GroupRun:
         if band is not None:
             self.conditions["outside_range"] = self.conditions["outside_range"] | band.outside_range
             self.models_used = merge_models(self.models_used, band.models_used)
+
+    def model_band(self):
+        columns, models = band_columns(self.g, self.fluid, self.line, self.res)
+        self.columns.update(columns)
+        self.models_used = merge_models(self.models_used, models)
 
     def delivery(self):
         done, n = delivery_minutes(self.g, self.fluid, self.line, self.res), self.n

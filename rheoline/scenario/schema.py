@@ -247,6 +247,12 @@ SCENARIO_FIELDS = {
         help="inner diameter of the vein the catheter sits in (site context)",
         group="site",
     ),
+    "model_band": _spec(
+        "flag",
+        sweep=False,
+        help="true (default): add the model band, the answer across defensible model "
+        "choices; false: leave it out",
+    ),
     "tolerance": _spec(
         "tolerance",
         sweep=False,

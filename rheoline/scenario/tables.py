@@ -39,6 +39,14 @@ def summary(t):
             ]
     if t["dominant tolerance"].astype(bool).any():
         out["spread led by"] = t["dominant tolerance"]
+    for what, unit in (("flow", "mL/min"), ("pressure", "mmHg")):
+        lo, hi = t[f"{what} model low [{unit}]"], t[f"{what} model high [{unit}]"]
+        if lo.notna().any():
+            out[f"{what} model band [{unit}]"] = [
+                "" if np.isnan(a) else f"{a:.4g}-{b:.4g}" for a, b in zip(lo, hi, strict=True)
+            ]
+    if t["model band driver"].astype(bool).any():
+        out["model band led by"] = t["model band driver"]
     if t["time to deliver [min]"].notna().any():
         out["deliver [min]"] = t["time to deliver [min]"]
     out["flags"] = t["flags"]
@@ -53,7 +61,10 @@ def records(table, parts, flags=None):
     ``dominant_part``,
     ``dominant_share``, ``max_wall_shear_stress_pa``, ``hemolysis_index_percent``,
     ``hemolysis_concern``, ``exceeds_pressure_limit``, ``flow_p5_ml_min``,
-    ``flow_p95_ml_min``, ``time_to_deliver_min``, ``flags`` and ``parts`` (a list of
+    ``flow_p95_ml_min``, the model band (``flow_model_low_ml_min``,
+    ``flow_model_high_ml_min``, ``required_pressure_model_low_mmhg``,
+    ``required_pressure_model_high_mmhg``, ``model_band_driver``),
+    ``time_to_deliver_min``, ``flags`` and ``parts`` (a list of
     ``part``, ``kind``, ``pressure_drop_pa``, ``reynolds``, ``regime``,
     ``wall_shear_stress_pa``, ``share``), and ``caution``.  ``flags`` maps a case to its
     flags (:attr:`rheoline.scenario.run.RunResult.flags`).
@@ -100,6 +111,11 @@ def records(table, parts, flags=None):
                 "required_pressure_p5_mmhg": _num(r["pressure p5 [mmHg]"]),
                 "required_pressure_p95_mmhg": _num(r["pressure p95 [mmHg]"]),
                 "dominant_tolerance": r["dominant tolerance"] or None,
+                "flow_model_low_ml_min": _num(r["flow model low [mL/min]"]),
+                "flow_model_high_ml_min": _num(r["flow model high [mL/min]"]),
+                "required_pressure_model_low_mmhg": _num(r["pressure model low [mmHg]"]),
+                "required_pressure_model_high_mmhg": _num(r["pressure model high [mmHg]"]),
+                "model_band_driver": r["model band driver"] or None,
                 "time_to_deliver_min": _num(r["time to deliver [min]"]),
                 "catheter_to_vein_ratio": _num(r["catheter-to-vein ratio [-]"]),
                 "flags": list((flags or {}).get(r["case"], ())),

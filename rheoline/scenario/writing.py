@@ -95,6 +95,8 @@ def scenario_data(sc) -> dict:
     for group in sc.groups():
         for key, field in group.items():
             out[key] = _plain(field, SCENARIO_FIELDS[key])
+    if not sc.model_band:
+        out["model_band"] = False
     if sc.tolerance is not None:
         out["tolerance"] = {
             key: _plain(field, SCENARIO_TOLERANCE_FIELDS[key])
