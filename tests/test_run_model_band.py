@@ -11,6 +11,7 @@ import pytest
 
 import rheoline
 from rheoline.errors import ScenarioError
+from rheoline.model.provenance import REGISTRY
 from rheoline.scenario.files import dump_scenarios
 from rheoline.scenario.model_band import (
     BAND_COLUMNS,
@@ -62,8 +63,9 @@ def test_drive_band_brackets_the_flow_and_names_its_driver():
     assert np.all(low <= flow) and np.all(flow <= high) and np.all(low < flow)
     assert set(t["model band driver"]) <= set(DRIVER_WORDS.values())
     assert t["pressure model low [mmHg]"].isna().all()
-    # the band's models are the run's models too (the pack lists them)
+    # the band's models are the run's models too (the pack lists them from the registry)
     assert {"hooper-1981", "hooper-1988"} <= set(run.models_used)
+    assert set(run.models_used) <= set(REGISTRY)
 
 
 def test_band_equals_the_model_layer_band_of_the_same_line():
@@ -161,6 +163,7 @@ def test_blood_band_uses_the_models_that_meet_the_accuracy_target():
     assert not {"casson", "power-law"} & (set(run.models_used) - meets)
     saline = _run()
     assert not others & set(saline.models_used)
+    assert set(run.models_used) <= set(REGISTRY)
 
 
 def test_no_forward_flow_has_a_flat_band():

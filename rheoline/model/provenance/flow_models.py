@@ -109,7 +109,24 @@ FLOW_ENTRIES = (
         "term",
         {},
         cite="Hooper",
-        used_in=(_M + "losses.hooper_1981_2k_k",),
+        used_in=(_M + "losses.hooper_1981_2k_k", _M + "laminar_losses.hooper_1981_inlet_k"),
+    ),
+    ModelEntry(
+        "hooper-1988",
+        "Hooper 1988 loss coefficients of sudden contractions and expansions",
+        "laminar (and turbulent) step losses between lumens, the model band's alternative to "
+        "the constant handbook K",
+        "Hooper, W.B., 'Calculate head loss caused by change in pipe size', Chem. Eng. 95 (16) "
+        "(1988) 89-92",
+        None,
+        "contraction: laminar form up to an upstream Re of 2500; expansion: laminar form below "
+        "4000; fitted to industrial pipe sizes (infusion bores extrapolate)",
+        {},
+        cite="Hooper",
+        used_in=(
+            _M + "laminar_losses.hooper_1988_contraction_k",
+            _M + "laminar_losses.hooper_1988_expansion_k",
+        ),
     ),
     ModelEntry(
         "iso-9626",
