@@ -103,7 +103,9 @@ def test_rate_profile_vectorized_rates_and_slack():
 
 def test_syringe_pump_effective_rate_and_defaults():
     pump = SyringePump(rate=2 * ML_H, slack_volume=0.2e-6)
-    assert pump.effective_rate().time_at_volume(1e-12) == pytest.approx((0.2e-6 + 1e-12) / (2 * ML_H))
+    assert pump.effective_rate().time_at_volume(1e-12) == pytest.approx(
+        (0.2e-6 + 1e-12) / (2 * ML_H)
+    )
     assert pump.compliance is None and pump.head == 0.0
 
 

@@ -106,9 +106,7 @@ def _hooper_line(d_set, d_cath, l_set, l_cath):
 def test_step_losses_alternative_equals_an_independent_solve():
     # laminar set and catheter (Re below 2500 upstream): the band's Hooper alternative is
     # the flow of the line with the same losses written as 2-K fittings
-    line = Line(
-        [Tube(inner_diameter=3e-3, length=1.8), Catheter(gauge=18, inner_diameter=1.1e-3)]
-    )
+    line = Line([Tube(inner_diameter=3e-3, length=1.8), Catheter(gauge=18, inner_diameter=1.1e-3)])
     heads = np.array([0.3, 0.8, 1.5])
     band = model_band(line, WATER, head=heads)
     other = _hooper_line(3e-3, 1.1e-3, 1.8, line.parts[1].length)
@@ -129,9 +127,7 @@ def test_step_losses_in_the_readme_line_move_the_flow_by_about_12_percent():
 
 
 def test_pump_pressure_band_equals_an_independent_solve():
-    line = Line(
-        [Tube(inner_diameter=3e-3, length=1.8), Catheter(gauge=18, inner_diameter=1.1e-3)]
-    )
+    line = Line([Tube(inner_diameter=3e-3, length=1.8), Catheter(gauge=18, inner_diameter=1.1e-3)])
     q = np.array([0.5e-6, 1.5e-6])
     band = model_band(line, WATER, flow=q)
     assert band.quantity == "required_pressure"

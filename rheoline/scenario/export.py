@@ -7,8 +7,12 @@
 - ``parts.csv``: a row per part of every line (pressure drop, Reynolds number, shear);
 - ``assumptions.csv``: the models the run used, with their references (generated from the
   run's ``models_used`` and the provenance registry, :mod:`rheoline.scenario.pack_sources`);
+- ``model-evidence.csv``: how close the fluids, part kinds and models behind the run came
+  to packaged measurements (:mod:`rheoline.scenario.pack_evidence`; also a workbook sheet
+  and a section of the report);
 - ``results.xlsx``: sheets *results*, *parts*, *scenario inputs* (the scenario description
-  echoed field by field), *assumptions* (as ``assumptions.csv``), *cautions* and *about*;
+  echoed field by field), *assumptions* (as ``assumptions.csv``), *cautions* and *about*,
+  then *model evidence*;
 - ``report.html``: one self-contained page (plotly charts embedded, no network needed) with
   the caution at the top, the results, the inputs echoed, the tool version, the date and
   the SHA-256 hash of the scenario file;
@@ -39,7 +43,7 @@ import re
 from pathlib import Path
 
 from rheoline.errors import OutputError, PackExistsError  # re-exported from here
-from rheoline.scenario import pack_report, pack_sources, pack_tables
+from rheoline.scenario import pack_evidence, pack_report, pack_sources, pack_tables
 from rheoline.scenario.files import output_error
 from rheoline.scenario.pack_folder import (
     PACK_FILES,
@@ -115,8 +119,10 @@ def _write_all(run, folder: Path):
     pack_tables.write_csv(run.table, folder / "results.csv", title_row)
     pack_tables.write_csv(run.parts, folder / "parts.csv", title_row)
     pack_tables.write_csv(assumptions, folder / "assumptions.csv", title_row)
+    evidence = pack_evidence.evidence_table(run)
+    pack_tables.write_csv(evidence, folder / "model-evidence.csv", title_row)
     cautions = pack_sources.cautions_list(run, caution)
-    sheets = _sheets(run, meta, assumptions, cautions)
+    sheets = _sheets(run, meta, assumptions, cautions) | {"model evidence": evidence}
     pack_tables.write_xlsx(folder / "results.xlsx", sheets, title_row)
     page = pack_report.report_html(
         run,
@@ -126,6 +132,7 @@ def _write_all(run, folder: Path):
         notes=pack_sources.run_notes(run),
         scenario_text=scenario_text,
         caution=caution,
+        evidence=evidence,
     )
     pack_report.write_html(folder / "report.html", page)
     files = {p.name: hashlib.sha256(p.read_bytes()).hexdigest() for p in sorted(folder.iterdir())}

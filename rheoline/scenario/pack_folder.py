@@ -41,6 +41,7 @@ PACK_FILES = (
     "results.csv",
     "parts.csv",
     "assumptions.csv",
+    "model-evidence.csv",
     "results.xlsx",
     "report.html",
     "manifest.json",

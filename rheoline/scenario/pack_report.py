@@ -184,7 +184,9 @@ def _models_html(assumptions):
     )
 
 
-def report_html(run, meta, *, assumptions, cautions, notes, scenario_text, caution) -> str:
+def report_html(
+    run, meta, *, assumptions, cautions, notes, scenario_text, caution, evidence=None
+) -> str:
     """The report page of ``run`` as one string.
 
     Parameters
@@ -203,6 +205,8 @@ def report_html(run, meta, *, assumptions, cautions, notes, scenario_text, cauti
         The scenario file as given, echoed at the end.
     caution : str
         The short caution.
+    evidence : pandas.DataFrame, optional
+        The model evidence (:func:`rheoline.scenario.pack_evidence.evidence_table`).
     """
     sset = run.scenario_set
     title = sset.title or "rheoline review pack"
@@ -236,6 +240,7 @@ def report_html(run, meta, *, assumptions, cautions, notes, scenario_text, cauti
 {frame_html(run.inputs)}
 <h2 id="models-used">Models used and their references</h2>
 {_models_html(assumptions)}
+{_evidence_section(evidence)}
 <h2>Cautions</h2>
 <ul>{"".join(f"<li>{_e(c)}</li>" for c in cautions)}</ul>
 <h2>Scenario file as given</h2>
@@ -244,6 +249,14 @@ def report_html(run, meta, *, assumptions, cautions, notes, scenario_text, cauti
 <p>rheoline {_e(meta["version"])}, {_e(meta["created_utc"])}. {_e(caution)}</p>
 </body></html>
 """
+
+
+def _evidence_section(evidence):
+    if evidence is None:
+        return ""
+    from rheoline.scenario.pack_evidence import evidence_html
+
+    return f'<h2 id="model-evidence">Model evidence</h2>\n{evidence_html(evidence, _e)}'
 
 
 def write_html(path: Path, page: str):

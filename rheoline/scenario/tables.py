@@ -31,22 +31,19 @@ def summary(t):
         f"{p} ({s:.0f} %)" for p, s in zip(t["dominant part"], t["dominant share [%]"], strict=True)
     ]
     out["max wall shear [Pa]"] = t["max wall shear stress [Pa]"]
-    for what, unit in (("flow", "mL/min"), ("pressure", "mmHg")):
-        lo, hi = t[f"{what} p5 [{unit}]"], t[f"{what} p95 [{unit}]"]
-        if lo.notna().any():
-            out[f"{what} p5-p95 [{unit}]"] = [
-                "" if np.isnan(a) else f"{a:.4g}-{b:.4g}" for a, b in zip(lo, hi, strict=True)
-            ]
-    if t["dominant tolerance"].astype(bool).any():
-        out["spread led by"] = t["dominant tolerance"]
-    for what, unit in (("flow", "mL/min"), ("pressure", "mmHg")):
-        lo, hi = t[f"{what} model low [{unit}]"], t[f"{what} model high [{unit}]"]
-        if lo.notna().any():
-            out[f"{what} model band [{unit}]"] = [
-                "" if np.isnan(a) else f"{a:.4g}-{b:.4g}" for a, b in zip(lo, hi, strict=True)
-            ]
-    if t["model band driver"].astype(bool).any():
-        out["model band led by"] = t["model band driver"]
+    # the tolerance band, then the model band: each as "low-high" and what leads it
+    for low, high, label, leader, led_by in (
+        ("p5", "p95", "p5-p95", "dominant tolerance", "spread led by"),
+        ("model low", "model high", "model band", "model band driver", "model band led by"),
+    ):
+        for what, unit in (("flow", "mL/min"), ("pressure", "mmHg")):
+            lo, hi = t[f"{what} {low} [{unit}]"], t[f"{what} {high} [{unit}]"]
+            if lo.notna().any():
+                out[f"{what} {label} [{unit}]"] = [
+                    "" if np.isnan(a) else f"{a:.4g}-{b:.4g}" for a, b in zip(lo, hi, strict=True)
+                ]
+        if t[leader].astype(bool).any():
+            out[led_by] = t[leader]
     if t["time to deliver [min]"].notna().any():
         out["deliver [min]"] = t["time to deliver [min]"]
     out["flags"] = t["flags"]

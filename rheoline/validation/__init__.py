@@ -4,7 +4,8 @@
   computes error statistics per data set, per model, per fluid family and per part
   kind, checks the stated accuracy (:data:`TARGETS`) and can write the report;
 * :func:`model_validation` gives the validation error of given model keys (for a
-  review pack's "model evidence": pass a run's ``models_used``);
+  review pack's "model evidence": pass a run's ``models_used``); :func:`fluid_validation`
+  and :func:`part_kind_validation` that of library fluids and of part kinds;
 * :func:`load_datasets` reads the data (one CSV per published source, described in
   ``data/sources.toml``).
 
@@ -18,7 +19,9 @@ from rheoline.validation.run import (
     Target,
     TargetResult,
     ValidationResult,
+    fluid_validation,
     model_validation,
+    part_kind_validation,
     run_validation,
 )
 from rheoline.validation.stats import ErrorStats
@@ -35,6 +38,8 @@ __all__ = [
     "TargetResult",
     "ValidationResult",
     "model_validation",
+    "fluid_validation",
+    "part_kind_validation",
     "run_validation",
     "ErrorStats",
 ]

@@ -28,6 +28,8 @@ __all__ = [
     "ValidationResult",
     "run_validation",
     "model_validation",
+    "fluid_validation",
+    "part_kind_validation",
 ]
 
 
@@ -323,6 +325,45 @@ def run_validation(out_dir=None) -> ValidationResult:
 
         write_report(result, out_dir)
     return result
+
+
+def fluid_validation(names: Iterable[str]) -> dict[str, ErrorStats]:
+    """Validation error of library fluids' viscosity: ``{name: ErrorStats}`` for each name.
+
+    The default predictions of the measured (not recalled) viscosity rows of that fluid,
+    at any temperature and shear rate; a fluid no packaged row measures gets ``n == 0``.
+
+    Examples
+    --------
+    >>> stats = fluid_validation(["plasma", "saline-0.9"])
+    >>> stats["plasma"].datasets, stats["saline-0.9"].validated
+    (('rosenson-1996',), False)
+    """
+    return _grouped(names, lambda r: r.fluid if r.quantity != "flow" else None)
+
+
+def part_kind_validation(kinds: Iterable[str]) -> dict[str, ErrorStats]:
+    """Validation error of measured flows through a part kind: ``{kind: ErrorStats}``.
+
+    ``kind`` as the data name it (``"tube"``, ``"catheter"``, ``"needle"``, ``"cannula"``,
+    ``"fitting"``, ``"administration set"``); a kind no packaged flow covers gets ``n == 0``.
+
+    Examples
+    --------
+    >>> stats = part_kind_validation(["tube", "needle"])
+    >>> stats["tube"].n > 0, stats["needle"].validated
+    (True, False)
+    """
+    return _grouped(kinds, lambda r: r.geometry if r.quantity == "flow" else None)
+
+
+def _grouped(names: Iterable[str], group_of) -> dict[str, ErrorStats]:
+    """Statistics of the counted default predictions whose row's ``group_of`` is a name."""
+    result = _compute()
+    rows = _row_index(result.datasets)
+    counted = _counted(rows, [p for p in result.predictions if p.default])
+    stats = group_stats(counted, lambda p: (group_of(rows[(p.dataset, p.row)]),))
+    return {name: stats.get(name, _EMPTY) for name in names}
 
 
 def model_validation(keys: Iterable[str]) -> dict[str, ErrorStats]:
