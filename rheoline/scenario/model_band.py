@@ -37,6 +37,7 @@ from rheoline.units import ML_PER_MIN, MMHG
 __all__ = [
     "BAND_COLUMNS",
     "DRIVER_WORDS",
+    "alternative_fluids",
     "band_columns",
     "qualified_blood_models",
 ]
@@ -101,8 +102,10 @@ def qualified_blood_models() -> tuple:
     return tuple(out)
 
 
-def _alternative_fluids(fluid):
-    """The same blood under each other qualified rheology model ({} for other fluids)."""
+def alternative_fluids(fluid):
+    """``{model: fluid}``: the same blood under each other qualified rheology model
+    (:func:`qualified_blood_models`), ``{}`` for a fluid without red cells; what the band
+    passes as ``alternative_fluids`` (a view can pass the same)."""
     if not fluid.is_blood or fluid.recipe is None:
         return {}
     own = fluid.recipe.options.get("model", "carreau")
@@ -146,7 +149,7 @@ def band_columns(group, fluid, line, result):
     else:
         drive.update(head=v.get("head", 0.0), source_pressure=v.get("source_pressure", 0.0))
     band = model_band(
-        line, fluid, **drive, alternative_fluids=_alternative_fluids(fluid), nominal=result
+        line, fluid, **drive, alternative_fluids=alternative_fluids(fluid), nominal=result
     )
     scale = MMHG if pump else ML_PER_MIN
     low = np.broadcast_to(np.asarray(band.low, dtype=float) / scale, (n,)).tolist()
