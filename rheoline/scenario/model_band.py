@@ -18,7 +18,7 @@ Examples
 >>> from rheoline.scenario.reading import example_path, load_scenarios
 >>> from rheoline.scenario.run import run_scenarios
 >>> t = run_scenarios(load_scenarios(example_path("minimal"))).table
->>> [round(t[c].iloc[0], 1) for c in ("flow model low [mL/min]", "flow [mL/min]",
+>>> [round(float(t[c].iloc[0]), 1) for c in ("flow model low [mL/min]", "flow [mL/min]",
 ...  "flow model high [mL/min]")]
 [86.8, 98.3, 98.3]
 >>> t["model band driver"].iloc[0]
