@@ -11,8 +11,8 @@
   to packaged measurements (:mod:`rheoline.scenario.pack_evidence`; also a workbook sheet
   and a section of the report);
 - ``results.xlsx``: sheets *results*, *parts*, *scenario inputs* (the scenario description
-  echoed field by field), *assumptions* (as ``assumptions.csv``), *cautions* and *about*,
-  then *model evidence*;
+  echoed field by field), *assumptions* (as ``assumptions.csv``), *model evidence* (as
+  ``model-evidence.csv``), *cautions* and *about*;
 - ``report.html``: one self-contained page (plotly charts embedded, no network needed) with
   the caution at the top, the results, the inputs echoed, the tool version, the date and
   the SHA-256 hash of the scenario file;
@@ -122,7 +122,11 @@ def _write_all(run, folder: Path):
     evidence = pack_evidence.evidence_table(run)
     pack_tables.write_csv(evidence, folder / "model-evidence.csv", title_row)
     cautions = pack_sources.cautions_list(run, caution)
-    sheets = _sheets(run, meta, assumptions, cautions) | {"model evidence": evidence}
+    sheets = {}
+    for name, frame in _sheets(run, meta, assumptions, cautions).items():
+        sheets[name] = frame
+        if name == "assumptions":  # the evidence for those models next to them
+            sheets["model evidence"] = evidence
     pack_tables.write_xlsx(folder / "results.xlsx", sheets, title_row)
     page = pack_report.report_html(
         run,
