@@ -284,7 +284,9 @@ def test_line_view_every_number_shown_carries_a_unit(line_view):
 
 
 def test_line_view_added_and_removed_parts_reach_the_line(line_view):
-    line_view.editor.add({"type": "fitting", "k": 2.0})
+    from rheoline.widgets.parts_editor import part_spec
+
+    line_view.editor.add(part_spec("fitting", k=2.0))
     assert [p.name for p in line_view.line().parts][-1].lower().startswith("fitting")
     assert len(line_view.figures["budget"].data[0].y) == 4  # 3 parts and the exit
     line_view.editor.remove(line_view.editor.rows[-1])
@@ -326,25 +328,21 @@ def test_comparison_band_brackets_the_curve_and_is_seeded(compare_view):
     nominal = np.interp(band.x[:n], curve.x, curve.y)
     assert np.all(lower[1:] < nominal[1:]) and np.all(nominal[1:] < upper[1:])
     first = np.array(band.y)
-    compare_view._cache.clear()
-    compare_view._run(lambda: compare_view._refresh({"curves"}))
+    compare_view.solver.clear()  # solve the band again from nothing: the same numbers
+    compare_view.set_control("sweep_to", 150.0)
+    compare_view.set_control("sweep_to", 200.0)
     assert np.array_equal(compare_view.figures["curves"].data[1].y, first)
     assert "p5-p95" in compare_view.figures["curves"].layout.title.text
     assert "flow p5-p95 [mL/min]" in compare_view.table.value
 
 
 def test_comparison_adds_and_removes_candidates_solving_only_the_new_one(compare_view):
+    from rheoline.widgets.parts_editor import part_spec
+
     compare_view.controls["sweep"].value = "bore"
-    solved = []
-    original = compare_view._solve
-
-    def counting(candidate, *args, **kwargs):
-        solved.append(candidate["name"])
-        return original(candidate, *args, **kwargs)
-
-    compare_view._solve = counting
-    compare_view.add_candidate({"name": "14G alone", "parts": [{"type": "catheter", "gauge": 14}]})
-    assert set(solved) == {"14G alone"}
+    before = len(compare_view.solver.solved)
+    compare_view.add_candidate("14G alone", [part_spec("catheter", gauge=14)])
+    assert set(compare_view.solver.solved[before:]) == {"14G alone"}
     assert len(compare_view.figures["curves"].data) == 8
     assert compare_view.figures["curves"].layout.xaxis.title.text.startswith("inner diameter")
     compare_view.remove_candidates(["set + 16G", "set + 20G"])
@@ -384,7 +382,7 @@ def test_saved_scenario_file_reruns_to_the_views_numbers(app, tmp_path):
     assert table.loc["line view", "flow [mL/min]"] == pytest.approx(line_flow, rel=1e-6)
     for candidate in app.views["compare"].candidates:
         shown = app.views["compare"].operating_point(candidate).flow / ML_PER_MIN
-        row = table.loc[f"compare: {candidate['name']}", "flow [mL/min]"]
+        row = table.loc[candidate.name, "flow [mL/min]"]
         assert row == pytest.approx(shown, rel=1e-6)
 
 
@@ -397,9 +395,12 @@ def test_loading_an_example_file_fills_both_views(app, tmp_path):
     app.views["files"].load("cart.toml")
     line = app.views["line"]
     assert line.controls["back_pressure_mmhg"].value == pytest.approx(8.0)
-    assert [d["type"] for d in line.editor.descriptions()] == ["set", "fitting", "catheter"]
+    assert [p.type for p in line.editor.parts()] == ["set", "fitting", "catheter"]
     assert len(app.views["compare"].candidates) == 7
-    assert "[ok]" in app.views["files"].status.value
+    # the comparison draws 7 of 9 candidates and no pump: the status names the others
+    status = app.views["files"].status.value
+    assert "[i] note" in status and "[ok]" not in status
+    assert "&#x27;18G bore tolerance, warm red cells, bag&#x27;" in status
     assert line.messages.value == "" or "[X]" not in line.messages.value
 
 
@@ -427,8 +428,9 @@ def test_bore_only_band_equals_solving_every_sample(compare_view):
     from rheoline.widgets.compare_view import BAND_SAMPLES
 
     compare_view.set_control("bore_tolerance_percent", 5.0)
-    x, p5, p95 = compare_view.band(compare_view.candidates[1])  # set + 18G
-    scale, _ = compare_view._samples()
+    candidate = compare_view.candidates[1]  # set + 18G
+    x, p5, p95 = compare_view.band(candidate)
+    scale, _ = compare_view.solver.samples(candidate.description)
     assert scale.shape == (BAND_SAMPLES, 1)
     heads = x[[0, len(x) // 2, -1]] / 100.0
     line = rheoline.Line(
@@ -457,9 +459,10 @@ def test_the_responsiveness_case_is_seven_candidates_with_bands():
 def test_line_view_flags_a_hemolysis_concern_for_blood_at_high_wall_stress():
     from rheoline.scenario.compare import HEMOLYSIS_CONCERN_STRESS
     from rheoline.widgets.line_view import LineView
+    from rheoline.widgets.parts_editor import part_spec
 
     view = LineView(
-        parts=[{"type": "needle", "gauge": 25}],
+        parts=[part_spec("needle", gauge=25)],
         fluid="packed-red-cells",
         temperature_c=37.0,
         hematocrit=0.65,
@@ -491,9 +494,12 @@ def test_app_makes_a_tabs_figurewidgets_only_when_the_tab_opens(app):
 def test_the_line_views_line_joins_the_comparison(app):
     line, compare = app.views["line"], app.views["compare"]
     line.editor.rows[1].size.value = 16
-    compare.add_line_button.click()
+    # the line view's scenario is in the comparison, edited as the line view edits it
+    shared = next(c for c in compare.candidates if c.name == "line view")
+    assert shared.parts[1].fields["gauge"].si == 16
+    compare.add_line_button.click()  # a copy of it, to edit further in the line view
     added = compare.candidates[-1]
-    assert added["name"] == "line view" and added["parts"][1]["gauge"] == 16
+    assert added.name == "line view (2)" and added.parts[1].fields["gauge"].si == 16
     assert compare.operating_point(added).flow == pytest.approx(line.result.flow, rel=1e-12)
 
 

@@ -27,6 +27,7 @@ from rheoline.widgets.banner import caution_banner
 from rheoline.widgets.style import flag_html
 
 __all__ = [
+    "CONTROL_FIELDS",
     "View",
     "labelled",
     "number_field",
@@ -36,6 +37,18 @@ __all__ = [
 ]
 
 _STYLE = {"description_width": "initial"}
+
+#: The scenario field each fluid and drive control (:func:`fluid_controls`,
+#: :func:`drive_controls`) shows.
+CONTROL_FIELDS = {
+    "fluid": "fluid",
+    "temperature_c": "temperature",
+    "hematocrit": "hematocrit",
+    "mass_fraction": "mass_fraction",
+    "head_cm": "head",
+    "source_pressure_mmhg": "source_pressure",
+    "back_pressure_mmhg": "back_pressure",
+}
 
 
 def labelled(widget: widgets.Widget, css_class: str) -> widgets.Widget:
@@ -54,6 +67,15 @@ def number_field(value, low, high, step, description, css_class):
     )
 
 
+def _ranged_field(path, value, step, description, css_class):
+    """A number box bounded by what a scenario file accepts for ``path``, in the control's
+    unit (:func:`rheoline.widgets.edits.control_range`)."""
+    from rheoline.widgets.edits import control_range
+
+    low, high = control_range(path)
+    return number_field(value, low, high, step, description, css_class)
+
+
 def fluid_controls(fluid, temperature_c, hematocrit, mass_fraction=0.4) -> dict:
     """The fluid controls the line and comparison views share."""
     import rheoline
@@ -65,12 +87,14 @@ def fluid_controls(fluid, temperature_c, hematocrit, mass_fraction=0.4) -> dict:
             ),
             "rl-fluid",
         ),
-        "temperature_c": number_field(
-            temperature_c, 0.0, 60.0, 0.5, "temperature [degC]", "rl-temperature"
+        "temperature_c": _ranged_field(
+            "temperature", temperature_c, 0.5, "temperature [degC]", "rl-temperature"
         ),
-        "hematocrit": number_field(hematocrit, 0.0, 0.8, 0.01, "hematocrit [-]", "rl-hematocrit"),
-        "mass_fraction": number_field(
-            mass_fraction, 0.0, 1.0, 0.01, "glycerol mass fraction [-]", "rl-mass-fraction"
+        "hematocrit": _ranged_field(
+            "hematocrit", hematocrit, 0.01, "hematocrit [-]", "rl-hematocrit"
+        ),
+        "mass_fraction": _ranged_field(
+            "mass_fraction", mass_fraction, 0.01, "glycerol mass fraction [-]", "rl-mass-fraction"
         ),
     }
 
@@ -78,12 +102,16 @@ def fluid_controls(fluid, temperature_c, hematocrit, mass_fraction=0.4) -> dict:
 def drive_controls(head_cm, source_pressure_mmhg, back_pressure_mmhg) -> dict:
     """The gravity-and-pressure drive controls the line and comparison views share."""
     return {
-        "head_cm": number_field(head_cm, 0.0, 1000.0, 5.0, "head [cm]", "rl-head"),
-        "source_pressure_mmhg": number_field(
-            source_pressure_mmhg, 0.0, 20000.0, 10.0, "source pressure [mmHg]", "rl-source-pressure"
+        "head_cm": _ranged_field("head", head_cm, 5.0, "head [cm]", "rl-head"),
+        "source_pressure_mmhg": _ranged_field(
+            "source_pressure",
+            source_pressure_mmhg,
+            10.0,
+            "source pressure [mmHg]",
+            "rl-source-pressure",
         ),
-        "back_pressure_mmhg": number_field(
-            back_pressure_mmhg, -200.0, 1000.0, 1.0, "back pressure [mmHg]", "rl-back-pressure"
+        "back_pressure_mmhg": _ranged_field(
+            "back_pressure", back_pressure_mmhg, 1.0, "back pressure [mmHg]", "rl-back-pressure"
         ),
     }
 
@@ -104,12 +132,15 @@ class View(widgets.VBox):
         self.controls: dict[str, widgets.Widget] = {}
         self.figures: dict = {}
         self.last_update_seconds = float("nan")
+        self.last_update_ok = True  # False while the last update ended in an error flag
         self._paused = False  # True while a view sets several controls at once
         self._shown = False  # figures are FigureWidgets in their boxes
         self._figure_boxes: dict = {}
         self.banner = caution_banner()
         self.messages = widgets.HTML(value="")
         self.messages.add_class("rl-messages")
+        self.status = widgets.HTML(value="")
+        self.status.add_class("rl-status")
         self.add_class("rl-view")
 
     def figure_box(self, name: str) -> widgets.Box:
@@ -144,7 +175,22 @@ class View(widgets.VBox):
             box.children = [self.figures[name]]
 
     def _finish(self, body: list):
-        self.children = [self.banner, *body, self.messages]
+        self.children = [self.banner, self.status, *body, self.messages]
+
+    @classmethod
+    def stand_in(cls, title: str, text: str) -> View:
+        """A view that only says ``text`` (an error flag): what the app shows in place of
+        a view that could not be built."""
+        view = cls()
+        view.title = title
+        view.say("error", text)
+        view.children = [view.banner, view.status]
+        return view
+
+    def say(self, level: str, text: str):
+        """Replace the status line: a flag of ``level`` (``"ok"``, ``"note"``, ...) and
+        ``text`` (escaped).  The status says what the view shows of its scenarios."""
+        self.status.value = flag_html(level, text)
 
     # -- wiring ------------------------------------------------------------------
     def _watch(self, dependencies: dict):
@@ -162,6 +208,33 @@ class View(widgets.VBox):
 
             self.controls[name].observe(observer, names="value")
 
+    def _on_edit(self, names, handler):
+        """Wire each named control to ``handler(name)``, guarded and timed by :meth:`_run`
+        (not while the view sets its own controls)."""
+        for name in names:
+
+            def observer(change, name=name):
+                if not self._paused:
+                    self._run(lambda: handler(name))
+
+            self.controls[name].observe(observer, names="value")
+
+    def _follow(self, document):
+        """Redraw after every change of ``document`` (:meth:`_document_changed`): guarded
+        by the view's own :meth:`_run`, except for the view's own edits, which already run
+        inside one."""
+
+        def changed(by):
+            if by is self:
+                self._document_changed()
+            else:
+                self._run(self._document_changed)
+
+        document.observe(changed)
+
+    def _document_changed(self):  # pragma: no cover - views that follow a document override it
+        raise NotImplementedError
+
     def _refresh(self, parts):  # pragma: no cover - every view overrides it
         raise NotImplementedError
 
@@ -177,14 +250,19 @@ class View(widgets.VBox):
             except RheolineError as exc:
                 ok = False
                 notes = [flag_html("error", str(exc))]
+                self._failed(exc)
         notes += [
             flag_html("caution", str(w.message))
             for w in caught
             if issubclass(w.category, RheolineWarning)
         ]
         self.messages.value = "".join(notes)
+        self.last_update_ok = ok
         self.last_update_seconds = time.perf_counter() - start
         return ok
+
+    def _failed(self, exc):
+        """Called when an update ends in an error flag (a view may say so in its status)."""
 
     def set_control(self, name: str, value) -> float:
         """Set a control as a user would; return the update's Python time [s]."""

@@ -1,96 +1,169 @@
-"""The line view: assemble one line, pick the fluid and the drive, read what the line does.
+"""The line view: one scenario of the set, its line of parts, its fluid and its drive.
 
-Controls: the parts (type, gauge or bore, length), the fluid, its temperature and
-hematocrit, the drive (gravity head plus a source pressure, or a prescribed flow
-with a pressure limit) and the back pressure.  Results: flow in mL/min and mL/h,
-the required source pressure, the regime and largest Reynolds number, the
-largest wall shear stress and the hemolysis index, the validity flags in words,
-and two charts: the pressure budget (which part takes the drive) and the flow
-against the drive around the current point.
+The view shows and edits one scenario of a :class:`~rheoline.widgets.document.ScenarioDocument`
+(choose which above the parts).  Controls: the parts (type, gauge or bore, length), the fluid,
+its temperature and hematocrit, the drive (gravity head plus a source pressure, or a
+prescribed flow with a pressure limit) and the back pressure.  A control's change edits that
+field of the scenario description and nothing else (:mod:`rheoline.widgets.edits`); every
+field the view has no control for (tolerances, a volume to deliver, a vein) stays in the
+set, and the status line names it.  A swept field is shown at the first point of its sweep,
+and the status line says so.
 
-Every number comes from :meth:`rheoline.Line.solve`; this module converts units
-for display and draws.
+Results: flow in mL/min and mL/h, the required source pressure, the regime and largest
+Reynolds number, the largest wall shear stress and the hemolysis index, the validity flags in
+words, and two charts: the pressure budget (which part takes the drive) and the flow against
+the drive around the current point.  The fluid and the line are built from the description
+by the scenario layer's builder (:mod:`rheoline.widgets.scenario_models`); every number comes
+from :meth:`rheoline.Line.solve`; this module converts units for display and draws.
 
 Examples
 --------
 >>> view = LineView()
->>> sorted(view.figures)
-['budget', 'drive']
+>>> sorted(view.figures), view.scenario.name
+(['budget', 'drive'], 'line view')
 """
 
 from __future__ import annotations
 
 import functools
+import html
+from dataclasses import replace
 
 import ipywidgets as widgets
 import numpy as np
-import plotly.graph_objects as go
 
-import rheoline
-from rheoline.scenario.compare import HEMOLYSIS_CONCERN_STRESS
-from rheoline.units import ML_PER_H, ML_PER_MIN, MMHG
-from rheoline.widgets.base import _STYLE, View, drive_controls, fluid_controls, labelled
-from rheoline.widgets.figures import BASE_LAYOUT, curve_and_point_figure
-from rheoline.widgets.parts_editor import DEFAULT_PARTS, PartsEditor, build_part
-from rheoline.widgets.style import PALETTE, flag_html, format_number, significant, user_text
+from rheoline.scenario.description import (
+    DEFAULT_TEMPERATURE_C,
+    DriveSpec,
+    FluidSpec,
+    Scenario,
+    ScenarioSet,
+)
+from rheoline.widgets.base import (
+    _STYLE,
+    CONTROL_FIELDS,
+    View,
+    drive_controls,
+    fluid_controls,
+    labelled,
+)
+from rheoline.widgets.document import ScenarioDocument
+from rheoline.widgets.edits import (
+    control_range,
+    first_si,
+    parsed,
+    shown_amount,
+    sweep_notes,
+    unshown_fields,
+    with_fields,
+    written,
+)
+from rheoline.widgets.line_results import (
+    budget_figure,
+    draw_budget,
+    draw_drive,
+    drive_figure,
+    results_html,
+)
+from rheoline.widgets.parts_editor import DEFAULT_PARTS, PartsEditor
+from rheoline.widgets.scenario_models import drive_of, model_of, point_of
 
-__all__ = ["LineView", "fluid_for", "line_for", "DRIVE_MODES", "DRIVE_CURVE_POINTS"]
+__all__ = [
+    "LineView",
+    "line_scenario",
+    "fluid_options",
+    "DRIVE_MODES",
+    "DRIVE_CURVE_POINTS",
+    "SHOWN_FIELDS",
+]
 
 #: Drive modes: label -> meaning.
 DRIVE_MODES = {
     "gravity and pressure": "flow at a head plus a source pressure",
     "set flow (pump)": "source pressure for a prescribed flow",
 }
+_PUMP = "set flow (pump)"
 #: Points on the flow-against-drive chart.
 DRIVE_CURVE_POINTS = 41
+#: The scenario fields the line view shows (the parts have their own rows).
+SHOWN_FIELDS = frozenset(
+    {
+        "notes",
+        "fluid",
+        "temperature",
+        "hematocrit",
+        "mass_fraction",
+        "head",
+        "source_pressure",
+        "back_pressure",
+        "flow",
+        "pressure_limit",
+    }
+)
+#: control name -> the scenario field it shows.
+_FIELD_OF = {
+    **{k: v for k, v in CONTROL_FIELDS.items() if k != "fluid"},
+    "flow_ml_min": "flow",
+    "pressure_limit_mmhg": "pressure_limit",
+}
+_GRAVITY_FIELDS = ("head", "source_pressure")
+_PUMP_FIELDS = ("flow", "pressure_limit")
 
 
 @functools.lru_cache(maxsize=64)
-def fluid_options(name: str) -> frozenset:
-    """The options a library fluid takes (``hematocrit``, ``mass_fraction``, ...)."""
+def fluid_options(name: str) -> dict:
+    """The options a library fluid takes and their defaults (``{"hematocrit": 0.45}``)."""
     from rheoline.model.fluids import FLUID_LIBRARY
 
-    return frozenset(FLUID_LIBRARY[name].options) if name in FLUID_LIBRARY else frozenset()
+    entry = FLUID_LIBRARY.get(name)
+    return {} if entry is None else {k: v[0] for k, v in entry.options.items()}
 
 
-def _is_blood(name: str) -> bool:
-    return "hematocrit" in fluid_options(name)
+def _option_fields(fluid, amounts):
+    """The fluid's option fields from control amounts (None where it takes no such option)."""
+    options = fluid_options(fluid)
+    return {
+        key: parsed(key, amounts[key]) if key in options else None
+        for key in ("hematocrit", "mass_fraction")
+    }
 
 
-def fluid_for(name: str, temperature_c, hematocrit: float, mass_fraction: float = 0.4):
-    """The library fluid at a temperature [degC] (float or array), with the hematocrit [-]
-    for blood and the glycerol mass fraction [-] for glycerol-water; cached for floats."""
-    if np.ndim(temperature_c) == 0:
-        return _fluid_cached(name, float(temperature_c), float(hematocrit), float(mass_fraction))
-    return _fluid(name, temperature_c, hematocrit, mass_fraction)
+def line_scenario(
+    name="line view",
+    parts=DEFAULT_PARTS,
+    fluid="saline-0.9",
+    temperature_c=DEFAULT_TEMPERATURE_C,
+    hematocrit=0.45,
+    mass_fraction=0.4,
+    head_cm=100.0,
+    source_pressure_mmhg=0.0,
+    back_pressure_mmhg=0.0,
+    flow_ml_min=100.0,
+    pressure_limit_mmhg=0.0,
+    mode="gravity and pressure",
+) -> Scenario:
+    """A scenario description from the amounts the line view's controls show.
 
-
-def _fluid(name, temperature_c, hematocrit, mass_fraction):
-    options = fluid_options(name)
-    kwargs = {}
-    if "hematocrit" in options:
-        kwargs["hematocrit"] = hematocrit
-    if "mass_fraction" in options:
-        kwargs["mass_fraction"] = mass_fraction
-    return rheoline.fluid(name, temperature_c=temperature_c, **kwargs)
-
-
-@functools.lru_cache(maxsize=256)
-def _fluid_cached(name, temperature_c, hematocrit, mass_fraction):
-    return _fluid(name, temperature_c, hematocrit, mass_fraction)
-
-
-def _frozen(descriptions):
-    return tuple(
-        tuple(sorted((k, v) for k, v in d.items() if k != "part"))
-        + ((("part", id(d["part"])),) if "part" in d else ())
-        for d in descriptions
-    )
-
-
-def line_for(descriptions) -> rheoline.Line:
-    """A :class:`rheoline.Line` from part descriptions (see :mod:`.parts_editor`)."""
-    return rheoline.Line([build_part(d) for d in descriptions])
+    A zero source or back pressure, or a zero pressure limit, is left out (as a file that
+    does not give it); the options are given only for a fluid that takes them.
+    """
+    amounts = {"hematocrit": hematocrit, "mass_fraction": mass_fraction}
+    sc = Scenario(name, FluidSpec(parsed("fluid", fluid)), DriveSpec(), tuple(parts))
+    fields = {
+        "temperature": parsed("temperature", written("temperature", temperature_c)),
+        **_option_fields(fluid, amounts),
+    }
+    given = {"back_pressure": back_pressure_mmhg}
+    if mode == _PUMP:
+        fields["flow"] = parsed("flow", written("flow", flow_ml_min))
+        given["pressure_limit"] = pressure_limit_mmhg
+    else:
+        fields["head"] = parsed("head", written("head", head_cm))
+        given["source_pressure"] = source_pressure_mmhg
+    for key, amount in given.items():
+        if amount:
+            fields[key] = parsed(key, written(key, amount))
+    return with_fields(sc, **fields)
 
 
 class LineView(View):
@@ -98,8 +171,8 @@ class LineView(View):
 
     Parameters
     ----------
-    parts : sequence of dict, optional
-        Part descriptions, source to outlet (default: a 3.0 mm x 1.8 m set and an 18G catheter).
+    parts : sequence of PartSpec, optional
+        The parts, source to outlet (default: a 3.0 mm x 1.8 m set and an 18G catheter).
     fluid : str
         A name from :func:`rheoline.fluid_names`.
     temperature_c : float
@@ -116,6 +189,11 @@ class LineView(View):
         A key of :data:`DRIVE_MODES`.
     lazy : bool
         Keep the charts as plain figures until :meth:`show_figures`.
+    document : ScenarioDocument, optional
+        The set to show one scenario of (the app passes the one all views share); without
+        it the view makes its own from the arguments above (scenario "line view").
+    scenario : str, optional
+        The name of the scenario to show first (default: the document's first).
     """
 
     title = "Line"
@@ -133,10 +211,54 @@ class LineView(View):
         pressure_limit_mmhg: float = 300.0,
         mode: str = "gravity and pressure",
         lazy: bool = False,
+        document: ScenarioDocument | None = None,
+        scenario: str | None = None,
     ):
         super().__init__()
+        if document is None:
+            own = line_scenario(
+                parts=parts,
+                fluid=fluid,
+                temperature_c=temperature_c,
+                hematocrit=hematocrit,
+                head_cm=head_cm,
+                source_pressure_mmhg=source_pressure_mmhg,
+                back_pressure_mmhg=back_pressure_mmhg,
+                flow_ml_min=flow_ml_min,
+                pressure_limit_mmhg=pressure_limit_mmhg,
+                mode=mode,
+            )
+            document = ScenarioDocument(ScenarioSet((own,), source="<views>"))
+        self.document = document
+        self._name = scenario or document.names()[0]
+        self._build_controls(fluid, temperature_c, hematocrit, head_cm, flow_ml_min, mode)
+        self.controls["pressure_limit_mmhg"].value = pressure_limit_mmhg
+        self._built_key = self._point = self._model = None
+        self.result = None
+        self._build_figures()
+
+        self._follow(self.document)
+        self.controls["scenario"].observe(self._chosen, names="value")
+        self._on_edit([n for n in self.controls if n != "scenario"], self._edit)
+        self._run(self._document_changed)
+        self._widgetize(lazy)
+        self._layout()
+        self.status.add_class("rl-line-status")
+
+    # -- building ----------------------------------------------------------------------
+    def _build_controls(self, fluid, temperature_c, hematocrit, head_cm, flow_ml_min, mode):
         c = self.controls
-        self.editor = PartsEditor(parts)
+        c["scenario"] = labelled(
+            widgets.Dropdown(
+                options=self.document.names(),
+                value=self._name,
+                description="scenario",
+                style=_STYLE,
+                layout=widgets.Layout(width="520px"),
+            ),
+            "rl-scenario",
+        )
+        self.editor = PartsEditor(self.document.scenario(self._name).parts)
         c["parts"] = self.editor.version
         c.update(fluid_controls(fluid, temperature_c, hematocrit))
         c["mode"] = labelled(
@@ -145,12 +267,13 @@ class LineView(View):
             ),
             "rl-mode",
         )
-        c.update(drive_controls(head_cm, source_pressure_mmhg, back_pressure_mmhg))
+        c.update(drive_controls(head_cm, 0.0, 0.0))
+        flow_range = control_range("flow")
         c["flow_ml_min"] = labelled(
             widgets.BoundedFloatText(
                 value=flow_ml_min,
-                min=0.001,
-                max=20000.0,
+                min=max(flow_range[0], 0.001),
+                max=flow_range[1],
                 step=5.0,
                 description="set flow [mL/min]",
                 style=_STYLE,
@@ -159,9 +282,9 @@ class LineView(View):
         )
         c["pressure_limit_mmhg"] = labelled(
             widgets.BoundedFloatText(
-                value=pressure_limit_mmhg,
+                value=0.0,
                 min=0.0,
-                max=45000.0,
+                max=control_range("pressure_limit")[1],
                 step=10.0,
                 description="pressure limit [mmHg] (0 = none)",
                 style=_STYLE,
@@ -169,43 +292,14 @@ class LineView(View):
             "rl-pressure-limit",
         )
         self.results = labelled(widgets.HTML(), "rl-results")
-        self.result = None
+        self.notes = labelled(widgets.HTML(), "rl-scenario-notes")
 
-        self.figures["budget"] = go.Figure(
-            data=[
-                go.Bar(
-                    name="pressure drop",
-                    orientation="h",
-                    marker=dict(color=PALETTE[0], line=dict(color="#1a1a1a", width=1)),
-                    textposition="auto",
-                )
-            ],
-            layout=go.Layout(
-                title="Pressure budget: where the drive goes",
-                xaxis_title="pressure drop [mmHg]",
-                yaxis=dict(autorange="reversed"),
-                **{**BASE_LAYOUT, "showlegend": False},
-            ),
-        )
-        self.figures["drive"] = curve_and_point_figure(
-            "Flow against drive",
-            "this line",
-            "current drive",
-            extra_traces=[
-                go.Scatter(
-                    name="pressure limit",
-                    mode="lines",
-                    line=dict(color=PALETTE[3], width=2, dash="dash"),
-                )
-            ],
-        )
+    def _build_figures(self):
+        self.figures["budget"] = budget_figure()
+        self.figures["drive"] = drive_figure()
 
-        self._line_key = None
-        self._line = None
-        self._watch({name: {"solve"} for name in c})
-        self._run(lambda: self._refresh({"solve"}))
-        self._widgetize(lazy)
-
+    def _layout(self):
+        c = self.controls
         drive_box = widgets.VBox(
             [
                 c["mode"],
@@ -221,6 +315,8 @@ class LineView(View):
         )
         self._finish(
             [
+                c["scenario"],
+                self.notes,
                 self.editor,
                 widgets.HBox([fluid_box, drive_box]),
                 self.results,
@@ -228,46 +324,159 @@ class LineView(View):
             ]
         )
 
-    # -- inputs to the line engine ---------------------------------------------------
-    def line(self) -> rheoline.Line:
-        """The line the editor describes (rebuilt only when the parts changed)."""
-        descriptions = self.editor.descriptions()
-        key = _frozen(descriptions)
-        if key != self._line_key:
-            self._line = line_for(descriptions)
-            self._line_key = key
-        return self._line
+    # -- the scenario shown ------------------------------------------------------------
+    @property
+    def scenario(self) -> Scenario:
+        """The scenario description the view shows (as the set holds it)."""
+        return self.document.scenario(self._name)
+
+    def show(self, name: str) -> bool:
+        """Show the scenario called ``name``; True when it computed."""
+        self._name = self.document.scenario(name).name
+        return self._run(self._document_changed)
+
+    def _chosen(self, change):
+        if not self._paused and change.new is not None and change.new != self._name:
+            self.show(change.new)
+
+    def _document_changed(self):
+        if self._name not in self.document.names():
+            self._name = self.document.names()[0]
+        self._sync()
+        self._refresh({"solve"})
+
+    def _sync(self):
+        """Set every control from the scenario (no edit), and the status line."""
+        sc = self.scenario
+        values = {k: first_si(v) for g in sc.groups() for k, v in g.items()}
+        c = self.controls
+        self._paused = True
+        try:
+            c["scenario"].options = self.document.names()
+            c["scenario"].value = sc.name
+            if values["fluid"] not in c["fluid"].options:
+                c["fluid"].options = [*c["fluid"].options, values["fluid"]]
+            c["fluid"].value = values["fluid"]
+            defaults = {"temperature": DEFAULT_TEMPERATURE_C, **fluid_options(values["fluid"])}
+            defaults.update(back_pressure=0.0, source_pressure=0.0, pressure_limit=0.0)
+            pump = sc.mode == "flow"
+            c["mode"].value = _PUMP if pump else "gravity and pressure"
+            for name, key in _FIELD_OF.items():
+                value = values.get(key, defaults.get(key))
+                inactive = key in (_GRAVITY_FIELDS if pump else _PUMP_FIELDS)
+                if value is not None and not (inactive and key not in values):
+                    c[name].value = shown_amount(key, value)
+            self.editor.set_parts(sc.parts, notify=False)
+            self.notes.value = f"<i>{html.escape(sc.notes)}</i>" if sc.notes else ""
+        finally:
+            self._paused = False
+        self._enable()
+        self.say(*self.shown_summary())
+
+    def _enable(self):
+        c = self.controls
+        options = fluid_options(c["fluid"].value)
+        c["hematocrit"].disabled = "hematocrit" not in options
+        c["mass_fraction"].disabled = "mass_fraction" not in options
+        pump = c["mode"].value == _PUMP
+        for name in ("source_pressure_mmhg", "head_cm"):
+            c[name].disabled = pump
+        for name in ("flow_ml_min", "pressure_limit_mmhg"):
+            c[name].disabled = not pump
+
+    def shown_summary(self):
+        """``(level, text)``: what the view shows of its scenario and what it does not
+        ("ok" only when it shows every field of it at its only point)."""
+        sc = self.scenario
+        names = self.document.names()
+        text = f"line view: scenario {sc.name!r}"
+        if len(names) > 1:
+            text += f" ({names.index(sc.name) + 1} of {len(names)}; choose another above)"
+        sweeps = sweep_notes(sc)
+        hidden = unshown_fields(sc, SHOWN_FIELDS)
+        if sweeps:
+            text += f"; shown at the first point of its sweeps: {', '.join(sweeps)}"
+        if hidden:
+            text += f"; not shown here (kept in the set and in saved files): {', '.join(hidden)}"
+        return ("note" if sweeps or hidden else "ok"), text
+
+    # -- edits -------------------------------------------------------------------------
+    def _edit(self, name):
+        """Write the change of control ``name`` into the scenario (that field only)."""
+        sc = self.scenario
+        new = self._edited(sc, name)
+        if new != sc:
+            self.document.replace({sc.name: new}, by=self)
+        else:
+            self._enable()
+
+    def _edited(self, sc, name):
+        c = self.controls
+        pump = sc.mode == "flow"
+        if name == "parts":
+            return replace(sc, parts=self.editor.parts())
+        if name == "fluid":
+            amounts = {k: c[k].value for k in ("hematocrit", "mass_fraction")}
+            fluid = c["fluid"].value
+            return with_fields(sc, fluid=parsed("fluid", fluid), **_option_fields(fluid, amounts))
+        if name == "mode":
+            return self._mode_changed(sc, c["mode"].value == _PUMP)
+        key = _FIELD_OF[name]
+        if key in ("hematocrit", "mass_fraction") and key not in fluid_options(c["fluid"].value):
+            return sc  # a disabled control: the fluid takes no such option
+        if key in (_GRAVITY_FIELDS if pump else _PUMP_FIELDS):
+            return sc  # a disabled control of the other drive mode
+        amount = c[name].value
+        if key == "pressure_limit" and not amount:
+            return with_fields(sc, pressure_limit=None)  # 0 = no limit
+        return with_fields(sc, **{key: parsed(key, written(key, amount))})
+
+    def _mode_changed(self, sc, pump):
+        c = self.controls
+        if pump == (sc.mode == "flow"):
+            return sc
+        fields = dict.fromkeys(_GRAVITY_FIELDS + _PUMP_FIELDS)
+        if pump:
+            fields["flow"] = parsed("flow", written("flow", c["flow_ml_min"].value))
+            limit = c["pressure_limit_mmhg"].value
+            fields["pressure_limit"] = (
+                parsed("pressure_limit", written("pressure_limit", limit)) if limit else None
+            )
+        else:
+            fields["head"] = parsed("head", written("head", c["head_cm"].value))
+            pressure = c["source_pressure_mmhg"].value
+            fields["source_pressure"] = (
+                parsed("source_pressure", written("source_pressure", pressure))
+                if pressure
+                else None
+            )
+        return with_fields(sc, **fields)
+
+    # -- inputs to the line engine -------------------------------------------------------
+    def _built(self):
+        """The builder's point and model objects of the scenario shown (rebuilt only when
+        the scenario changed)."""
+        sc = self.scenario
+        if sc != self._built_key:
+            point = point_of(sc)
+            self._model = model_of(point)
+            self._point, self._built_key = point, sc
+        return self._point, self._model
+
+    def line(self):
+        """The line of the scenario shown, as the scenario layer builds it."""
+        return self._built()[1].line
 
     def fluid(self):
-        """The fluid at the current temperature and hematocrit."""
-        c = self.controls
-        return fluid_for(
-            c["fluid"].value,
-            c["temperature_c"].value,
-            c["hematocrit"].value,
-            c["mass_fraction"].value,
-        )
+        """The fluid of the scenario shown, as the scenario layer builds it."""
+        return self._built()[1].fluid
 
     def drive(self) -> dict:
         """Keyword arguments of :meth:`rheoline.Line.solve` for the current drive (SI)."""
-        c = self.controls
-        back = c["back_pressure_mmhg"].value * MMHG
-        if c["mode"].value == "set flow (pump)":
-            # the pump's outlet pressure is the whole drive (no bag head), as in scenario files
-            limit = c["pressure_limit_mmhg"].value
-            return {
-                "back_pressure": back,
-                "flow": c["flow_ml_min"].value * ML_PER_MIN,
-                "pressure_limit": limit * MMHG if limit > 0 else None,
-            }
-        return {
-            "head": c["head_cm"].value * 1e-2,
-            "back_pressure": back,
-            "source_pressure": c["source_pressure_mmhg"].value * MMHG,
-        }
+        return drive_of(self._built()[0])
 
     def solve(self):
-        """The line engine's result for the current inputs."""
+        """The line engine's result for the scenario shown."""
         return self.line().solve(self.fluid(), **self.drive())
 
     def drive_curve(self):
@@ -283,118 +492,13 @@ class LineView(View):
         heads = np.linspace(0.0, top, DRIVE_CURVE_POINTS)
         return heads, line.solve(fluid, **{**drive, "head": heads}).flow
 
-    # -- drawing ---------------------------------------------------------------------
+    # -- drawing -----------------------------------------------------------------------
     def _refresh(self, parts):
-        c = self.controls
-        options = fluid_options(c["fluid"].value)
-        c["hematocrit"].disabled = "hematocrit" not in options
-        c["mass_fraction"].disabled = "mass_fraction" not in options
-        pump = c["mode"].value == "set flow (pump)"
-        c["source_pressure_mmhg"].disabled = pump
-        c["head_cm"].disabled = pump
-        c["flow_ml_min"].disabled = not pump
-        c["pressure_limit_mmhg"].disabled = not pump
+        self._enable()
         result = self.solve()
         self.result = result
         x, y = self.drive_curve()
-        self._show_results(result, pump)
-        self._draw_budget(result)
-        self._draw_drive(result, x, y, pump)
-
-    def _show_results(self, result, pump):
-        flow = float(result.flow)
-        required = float(result.required_pressure)
-        regime = str(result.regime)
-        lines = [
-            f"<div>flow <b><span class='rl-flow' data-flow-ml-min='{flow / ML_PER_MIN!r}'>"
-            f"{significant(flow / ML_PER_MIN)} mL/min</span></b> "
-            f"(<span class='rl-flow-h'>{significant(flow / ML_PER_H)} mL/h</span>)</div>",
-            (
-                f"<div>required pump pressure <b><span class='rl-required-pressure'>"
-                f"{format_number(required / MMHG, 'mmHg')}</span></b> "
-                f"({format_number(required / 1e3, 'kPa')})</div>"
-                if pump
-                else f"<div>net drive <b>{format_number(float(result.net_drive) / MMHG, 'mmHg')}</b> "
-                f"(gravity head plus source pressure, less back pressure)</div>"
-            ),
-            f"<div>regime <b><span class='rl-regime'>{user_text(regime)}</span></b> "
-            f"(largest Reynolds number {significant(float(result.max_reynolds))})</div>",
-            f"<div>largest wall shear stress <b>"
-            f"{format_number(float(result.max_wall_shear_stress), 'Pa')}</b>; hemolysis index "
-            + (
-                f"<b>{format_number(float(result.hemolysis_index), '%')}</b> (Giersiepen 1990, a "
-                "screening indicator)</div>"
-                if np.isfinite(float(result.hemolysis_index))
-                else "<b>n/a</b> (no red cells)</div>"
-            ),
-            f"<div>dominant part <b>{user_text(result.dominant_part)}</b> "
-            f"({significant(100 * float(result.dominant_share))} % of the pressure budget)</div>",
-        ]
-        flags = []
-        if regime != "laminar":
-            flags.append(flag_html("caution", f"{regime} flow: losses rise faster than the flow"))
-        if pump and bool(np.any(result.exceeds_pressure_limit)):
-            flags.append(flag_html("exceeded", "the required pressure is above the pressure limit"))
-        if (
-            _is_blood(self.controls["fluid"].value)
-            and float(result.max_wall_shear_stress) > HEMOLYSIS_CONCERN_STRESS
-        ):
-            flags.append(
-                flag_html(
-                    "caution",
-                    "hemolysis concern: wall shear stress above "
-                    f"{HEMOLYSIS_CONCERN_STRESS:g} Pa (screening threshold of the "
-                    "scenario layer)",
-                )
-            )
-        flags += [flag_html("caution", text) for text in result.flags]
-        if not flags:
-            flags.append(flag_html("ok", "no validity flags for these inputs"))
-        self.results.value = "".join(lines) + "".join(flags)
-
-    def _draw_budget(self, result):
-        labels = [user_text(f"{i}. {p.name}") for i, p in enumerate(self.line().parts, 1)]
-        labels.append("exit")
-        drops = (
-            np.append(
-                np.asarray(result.part_pressure_drops, dtype=float),
-                float(result.exit_pressure_drop),
-            )
-            / MMHG
-        )
-        total = drops.sum()
-        shares = drops / total if total > 0 else np.zeros_like(drops)
-        dominant = int(np.argmax(drops))
-        text = [
-            f"{significant(d)} mmHg, {significant(100 * s, 2)} %"
-            + (" (dominant)" if i == dominant else "")
-            for i, (d, s) in enumerate(zip(drops, shares, strict=True))
-        ]
-        fig = self.figures["budget"]
-        with fig.batch_update():
-            bar = fig.data[0]
-            bar.x, bar.y, bar.text = drops, labels, text
-            bar.marker.pattern.shape = ["/" if i == dominant else "" for i in range(len(drops))]
-
-    def _draw_drive(self, result, x, y, pump):
-        fig = self.figures["drive"]
-        c = self.controls
-        with fig.batch_update():
-            if pump:
-                limit = c["pressure_limit_mmhg"].value
-                fig.data[0].x, fig.data[0].y = x / ML_PER_MIN, y / MMHG
-                fig.data[1].x = [float(result.flow) / ML_PER_MIN]
-                fig.data[1].y = [float(result.required_pressure) / MMHG]
-                fig.data[2].x = [x[0] / ML_PER_MIN, x[-1] / ML_PER_MIN] if limit > 0 else []
-                fig.data[2].y = [limit, limit] if limit > 0 else []
-                fig.layout.xaxis.title.text = "flow [mL/min]"
-                fig.layout.yaxis.title.text = "required source pressure [mmHg]"
-                fig.layout.title.text = "Pressure the pump must supply"
-            else:
-                fig.data[0].x, fig.data[0].y = x * 100.0, y / ML_PER_MIN
-                fig.data[1].x = [c["head_cm"].value]
-                fig.data[1].y = [float(result.flow) / ML_PER_MIN]
-                fig.data[2].x, fig.data[2].y = [], []
-                fig.layout.xaxis.title.text = "head [cm] (with the set source pressure)"
-                fig.layout.yaxis.title.text = "flow [mL/min]"
-                fig.layout.title.text = "Flow against bag height"
+        pump = "flow" in self.drive()
+        self.results.value = results_html(result, pump, self.fluid().is_blood)
+        draw_budget(self.figures["budget"], result, [p.name for p in self.line().parts])
+        draw_drive(self.figures["drive"], result, x, y, self.drive())

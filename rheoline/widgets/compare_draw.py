@@ -1,0 +1,150 @@
+"""How the comparison shows its candidates: the chart's traces and the operating-point table.
+
+Everything here renders numbers the comparison's solver computed
+(:mod:`rheoline.widgets.compare_solve`): flows in mL/min and mL/h, bands as shaded areas,
+flags as a symbol and words.  Series differ by colour, dash and marker.  Nothing here
+computes physics.
+"""
+
+from __future__ import annotations
+
+import html
+
+import numpy as np
+import plotly.graph_objects as go
+
+from rheoline.scenario.compare import HEMOLYSIS_CONCERN_STRESS
+from rheoline.units import ML_PER_H, ML_PER_MIN
+from rheoline.widgets.compare_solve import BAND_SAMPLES, SWEEPS
+from rheoline.widgets.style import BAND_OPACITY, flag_text, series_style, significant
+
+__all__ = ["chart_text", "traces", "draw_curves", "row_flags", "row_html", "table_html"]
+
+
+def chart_text(text) -> str:
+    """A user's string (a candidate's name) made safe for a chart's legend."""
+    return html.escape(str(text))
+
+
+def traces(names) -> list:
+    """The chart's traces: a band per candidate (first), then a curve per candidate."""
+    out = []
+    for i, name in enumerate(names):
+        s = series_style(i)
+        out.append(
+            go.Scatter(
+                name=chart_text(f"{name} p5-p95"),
+                mode="lines",
+                fill="toself",
+                fillcolor=s["color"],
+                opacity=BAND_OPACITY,
+                line=dict(width=0),
+                hoverinfo="skip",
+                showlegend=False,
+                legendgroup=chart_text(name),
+            )
+        )
+    for i, name in enumerate(names):
+        s = series_style(i)
+        out.append(
+            go.Scatter(
+                name=chart_text(name),
+                mode="lines+markers",
+                line=dict(color=s["color"], dash=s["dash"], width=2.5),
+                marker=dict(symbol=s["marker"], size=8, color=s["color"], maxdisplayed=12),
+                legendgroup=chart_text(name),
+            )
+        )
+    return out
+
+
+def draw_curves(fig, names, curves, bands, sweep):
+    """Set the chart: each candidate's curve ``(x, flow [m^3/s])`` and band ``(x, p5, p95)``
+    (or None), in one batch update; the traces are made anew when the candidates changed."""
+    n = len(names)
+    with fig.batch_update():
+        if len(fig.data) != 2 * n or any(
+            t.name != chart_text(name) for t, name in zip(fig.data[n:], names, strict=False)
+        ):
+            fig.data = []
+            fig.add_traces(traces(names))
+        for i, ((x, flow), band) in enumerate(zip(curves, bands, strict=True)):
+            fig.data[n + i].x, fig.data[n + i].y = x, flow / ML_PER_MIN
+            if band is None:
+                fig.data[i].x, fig.data[i].y = [], []
+            else:
+                bx, p5, p95 = band
+                fig.data[i].x = np.concatenate([bx, bx[::-1]])
+                fig.data[i].y = np.concatenate([p95, p5[::-1]]) / ML_PER_MIN
+        fig.layout.xaxis.title.text = SWEEPS[sweep][0]
+        title = f"Candidates: flow against {sweep}"
+        if any(b is not None for b in bands):
+            title += f" (shaded: p5-p95 of {BAND_SAMPLES} tolerance samples)"
+        fig.layout.title.text = title
+
+
+def row_flags(result, blood: bool, differ) -> list:
+    """The flags of a candidate's operating point, as text: a hemolysis concern (``blood``:
+    the fluid has red cells), a regime other than laminar, the engine's own flags, and the
+    inputs where it differs from the shared controls (``differ``)."""
+    flags = []
+    if blood and float(result.max_wall_shear_stress) > HEMOLYSIS_CONCERN_STRESS:
+        flags.append(
+            flag_text(
+                "caution",
+                f"hemolysis concern: wall shear stress above {HEMOLYSIS_CONCERN_STRESS:g} Pa",
+            )
+        )
+    if str(result.regime) != "laminar":
+        flags.append(flag_text("caution", f"{result.regime} flow"))
+    flags += [flag_text("caution", f) for f in result.flags]
+    if differ:
+        flags.append(flag_text("note", f"at its own inputs: {', '.join(differ)}"))
+    return flags
+
+
+def row_html(name, parts, result, band, flags, banded) -> str:
+    """One table row: the candidate ``name``, its ``parts`` in words, its operating point's
+    numbers, its p5-p95 ``band`` [m^3/s] (a column only when ``banded``) and its flags."""
+    flow = float(result.flow)
+    band_cell = ""
+    if banded:
+        cell = (
+            f"{significant(band[0] / ML_PER_MIN)}-{significant(band[1] / ML_PER_MIN)}"
+            if band
+            else "no tolerance"
+        )
+        band_cell = f"<td>{cell}</td>"
+    flags = "; ".join(flags) or "[ok] ok: no flags"
+    return (
+        f"<tr><td><b>{html.escape(name)}</b></td>"
+        f"<td>{html.escape(parts)}</td>"
+        f"<td class='rl-compare-flow'>{significant(flow / ML_PER_MIN)}</td>"
+        f"<td>{significant(flow / ML_PER_H)}</td>"
+        f"<td>{html.escape(str(result.regime))} ({significant(float(result.max_reynolds))})</td>"
+        f"<td>{html.escape(str(result.dominant_part))} "
+        f"({significant(100 * float(result.dominant_share), 2)} %)</td>"
+        f"<td>{significant(float(result.max_wall_shear_stress))}</td>{band_cell}"
+        f"<td>{html.escape(flags)}</td></tr>"
+    )
+
+
+def table_html(rows, banded, shared) -> str:
+    """The operating-point table of ``rows`` (:func:`row_html`), under a line that states
+    the shared controls' inputs (``shared``: control -> amount)."""
+    head = (
+        "<tr><th>candidate</th><th>parts</th><th>flow [mL/min]</th><th>flow [mL/h]</th>"
+        "<th>regime (max Re)</th><th>dominant part (share)</th>"
+        "<th>max wall shear stress [Pa]</th>"
+        + ("<th>flow p5-p95 [mL/min]</th>" if banded else "")
+        + "<th>flags</th></tr>"
+    )
+    return (
+        f"<div><b>At the operating point</b> (each candidate at its own inputs; the "
+        f"shared controls: head {significant(shared['head_cm'])} cm, source pressure "
+        f"{significant(shared['source_pressure_mmhg'])} mmHg, back pressure "
+        f"{significant(shared['back_pressure_mmhg'])} mmHg, "
+        f"{html.escape(shared['fluid'])} at {significant(shared['temperature_c'])} degC)</div>"
+        "<table class='rl-table' style='border-collapse:collapse' border='1' "
+        f"cellpadding='4'>{head}{''.join(rows)}</table>"
+    )
