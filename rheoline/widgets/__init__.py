@@ -1,13 +1,15 @@
 """Interactive views (ipywidgets + plotly) for notebooks and the local Voila app.
 
 Views call the model and scenario layers and do no physics of their own.  Each
-view shows the caution banner at its top; flags are words and symbols, never
-colour alone.
+view shows the caution banner at its top, then a status line that says what it
+shows of its scenarios; flags are words and symbols, never colour alone.  The
+line, comparison and files views edit one scenario description, a
+:class:`~rheoline.widgets.document.ScenarioDocument`.
 
-* :class:`~rheoline.widgets.line_view.LineView` -- one line: parts, fluid, drive; flow,
-  pressure, regime, shear, pressure budget
-* :class:`~rheoline.widgets.compare_view.ComparisonView` -- candidate lines on one chart with
-  tolerance bands and a table
+* :class:`~rheoline.widgets.line_view.LineView` -- one scenario's line: parts, fluid, drive;
+  flow, pressure, regime, shear, pressure budget
+* :class:`~rheoline.widgets.compare_view.ComparisonView` -- the scenarios' lines on one chart
+  with tolerance bands and a table
 * :class:`~rheoline.widgets.blood_view.BloodVesselView` -- blood viscosity, Fahraeus-Lindqvist,
   vessel resistance, SVR/PVR
 * :class:`~rheoline.widgets.files_view.FilesView` -- load and save scenario files, write
