@@ -297,6 +297,7 @@ def test_line_view_bad_part_shows_an_error_flag_not_a_traceback(line_view):
     line_view.editor.rows[1].bore.value = 5.0  # wider than an 18G catheter's wall allows
     assert "[X] not computed" in line_view.messages.value
     assert "inner_diameter" in line_view.messages.value
+    assert "no result for these inputs" in line_view.results.value  # no stale number
 
 
 # --- the comparison view ---------------------------------------------------------------------

@@ -60,6 +60,7 @@ from rheoline.widgets.parts_editor import (
     part_label,
     part_spec,
 )
+from rheoline.widgets.style import flag_html
 
 __all__ = [
     "ComparisonView",
@@ -343,6 +344,14 @@ class ComparisonView(View):
             if differ:
                 notes.append(f"{name} differs from the shared controls: {', '.join(differ)}")
         return notes
+
+    def _failed(self, exc):
+        # no table for inputs that did not compute (the chart keeps the last that did)
+        self.table.value = flag_html(
+            "error",
+            "no table for these inputs (see the message below); the chart shows the "
+            "last inputs that computed",
+        )
 
     # -- edits of the set --------------------------------------------------------------
     def _edit_shared(self, name):

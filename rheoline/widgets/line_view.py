@@ -67,6 +67,7 @@ from rheoline.widgets.line_results import (
 )
 from rheoline.widgets.parts_editor import DEFAULT_PARTS, PartsEditor
 from rheoline.widgets.scenario_models import drive_of, model_of, point_of
+from rheoline.widgets.style import flag_html
 
 __all__ = [
     "LineView",
@@ -352,7 +353,8 @@ class LineView(View):
         c = self.controls
         self._paused = True
         try:
-            c["scenario"].options = self.document.names()
+            if list(c["scenario"].options) != self.document.names():
+                c["scenario"].options = self.document.names()
             c["scenario"].value = sc.name
             if values["fluid"] not in c["fluid"].options:
                 c["fluid"].options = [*c["fluid"].options, values["fluid"]]
@@ -399,6 +401,14 @@ class LineView(View):
         if hidden:
             text += f"; not shown here (kept in the set and in saved files): {', '.join(hidden)}"
         return ("note" if sweeps or hidden else "ok"), text
+
+    def _failed(self, exc):
+        # no number for inputs that did not compute (the charts keep the last that did)
+        self.results.value = flag_html(
+            "error",
+            "no result for these inputs (see the message below); the charts show "
+            "the last inputs that computed",
+        )
 
     # -- edits -------------------------------------------------------------------------
     def _edit(self, name):

@@ -216,7 +216,8 @@ class PartRow(widgets.HBox):
             value = _NO_SIZE
         elif value not in sizes:
             labels.append((f"{value:g}{suffix}", value))
-        self.size.options = labels
+        if list(self.size.options) != labels:
+            self.size.options = labels
         self.size.value = value
 
     @staticmethod
