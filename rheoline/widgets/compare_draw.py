@@ -13,7 +13,7 @@ import html
 import numpy as np
 import plotly.graph_objects as go
 
-from rheoline.scenario.compare import HEMOLYSIS_CONCERN_STRESS
+from rheoline.model.hemolysis import HEMOLYSIS_CONCERN_STRESS
 from rheoline.units import ML_PER_H, ML_PER_MIN
 from rheoline.widgets.compare_solve import BAND_SAMPLES, SWEEPS
 from rheoline.widgets.style import BAND_OPACITY, flag_text, series_style, significant

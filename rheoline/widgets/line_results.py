@@ -12,7 +12,7 @@ import html
 import numpy as np
 import plotly.graph_objects as go
 
-from rheoline.scenario.compare import HEMOLYSIS_CONCERN_STRESS
+from rheoline.model.hemolysis import HEMOLYSIS_CONCERN_STRESS
 from rheoline.units import ML_PER_H, ML_PER_MIN, MMHG
 from rheoline.widgets.edits import shown_amount
 from rheoline.widgets.figures import BASE_LAYOUT, curve_and_point_figure
@@ -111,8 +111,8 @@ def flags_html(result, pump, blood):
             flag_html(
                 "caution",
                 "hemolysis concern: wall shear stress above "
-                f"{HEMOLYSIS_CONCERN_STRESS:g} Pa (screening threshold of the "
-                "scenario layer)",
+                f"{HEMOLYSIS_CONCERN_STRESS:g} Pa (a screening threshold of the "
+                "hemolysis model)",
             )
         )
     flags += [flag_html("caution", text) for text in result.flags]

@@ -23,28 +23,9 @@ from __future__ import annotations
 
 from dataclasses import replace
 
+from rheoline.scenario.build import build, build_fluid, groups, point_group
 from rheoline.scenario.description import PartSpec
 from rheoline.widgets.edits import at_point, with_part
-
-try:  # the scenario layer's public builder
-    from rheoline.scenario.build import build, build_fluid, groups, point_group
-except ImportError:  # pragma: no cover - until rheoline.scenario.build is on main
-    from rheoline.scenario.compare import _build_fluid as build_fluid
-    from rheoline.scenario.compare import _build_parts, _site_context
-    from rheoline.scenario.compare import _groups as groups
-    from rheoline.scenario.compare import _point_group as point_group
-
-    class _Built:
-        def __init__(self, fluid, parts, line, site):
-            self.fluid, self.parts, self.line, self.site = fluid, parts, line, site
-
-    def build(g, source):
-        from rheoline.model.line import Line
-
-        fl = build_fluid(g, source)
-        parts = _build_parts(g, source)
-        return _Built(fl, parts, Line(parts), _site_context(g, parts, source))
-
 
 __all__ = ["SOURCE", "point_of", "model_of", "drive_of", "fluid_at", "line_with_bores"]
 
