@@ -83,12 +83,12 @@ def draw_curves(fig, names, curves, bands, sweep):
         fig.layout.title.text = title
 
 
-def row_flags(result, blood: bool, differ) -> list:
-    """The flags of a candidate's operating point, as text: a hemolysis concern (``blood``:
-    the fluid has red cells), a regime other than laminar, the engine's own flags, and the
+def row_flags(result, differ) -> list:
+    """The flags of a candidate's operating point, as text: a hemolysis concern, a regime
+    other than laminar (both from the result's conditions), the engine's own flags, and the
     inputs where it differs from the shared controls (``differ``)."""
     flags = []
-    if blood and float(result.max_wall_shear_stress) > HEMOLYSIS_CONCERN_STRESS:
+    if bool(np.any(result.conditions["hemolysis_concern"])):
         flags.append(
             flag_text(
                 "caution",

@@ -477,10 +477,9 @@ class ComparisonView(View):
         rows = []
         for candidate, band in zip(self.candidates, bands, strict=True):
             result = self.operating_point(candidate)
-            blood = self.solver.model(candidate.description)[1].fluid.is_blood
             differ = differences(candidate, shared, self._bore_fraction(candidate))
             parts = ", ".join(part_label(p, i) for i, p in enumerate(candidate.parts, 1))
-            flags = row_flags(result, blood, differ)
+            flags = row_flags(result, differ)
             rows.append(row_html(candidate.name, parts, result, band, flags, banded))
         self.table.value = table_html(rows, banded, shared)
 

@@ -64,9 +64,9 @@ def drive_figure():
     )
 
 
-def results_html(result, pump, blood):
+def results_html(result, pump):
     """The result in words (HTML): flow, pressure, regime, shear, the dominant part, and the
-    flags (``blood``: the fluid has red cells, so a hemolysis concern can apply)."""
+    flags."""
     flow = float(result.flow)
     required = float(result.required_pressure)
     regime = str(result.regime)
@@ -95,18 +95,18 @@ def results_html(result, pump, blood):
         f"<div>dominant part <b>{html.escape(str(result.dominant_part))}</b> "
         f"({significant(100 * float(result.dominant_share))} % of the pressure budget)</div>",
     ]
-    return "".join(lines) + "".join(flags_html(result, pump, blood))
+    return "".join(lines) + "".join(flags_html(result, pump))
 
 
-def flags_html(result, pump, blood):
+def flags_html(result, pump):
     """The validity flags of a result, each a symbol and words (an "ok" flag when none)."""
     regime = str(result.regime)
     flags = []
     if regime != "laminar":
         flags.append(flag_html("caution", f"{regime} flow: losses rise faster than the flow"))
-    if pump and bool(np.any(result.exceeds_pressure_limit)):
+    if pump and bool(np.any(result.conditions["over_pressure_limit"])):
         flags.append(flag_html("exceeded", "the required pressure is above the pressure limit"))
-    if blood and float(result.max_wall_shear_stress) > HEMOLYSIS_CONCERN_STRESS:
+    if bool(np.any(result.conditions["hemolysis_concern"])):
         flags.append(
             flag_html(
                 "caution",

@@ -509,6 +509,6 @@ class LineView(View):
         self.result = result
         x, y = self.drive_curve()
         pump = "flow" in self.drive()
-        self.results.value = results_html(result, pump, self.fluid().is_blood)
+        self.results.value = results_html(result, pump)
         draw_budget(self.figures["budget"], result, [p.name for p in self.line().parts])
         draw_drive(self.figures["drive"], result, x, y, self.drive())
