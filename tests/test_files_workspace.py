@@ -77,11 +77,11 @@ def test_the_default_workspace_is_the_launchers_or_a_folder_beside_the_start(mon
 def test_loading_from_outside_is_refused_and_shows_nothing_of_the_file(files, places, typed):
     work, outside = places
     files.controls["scenario_path"].value = typed.format(outside=outside)
-    before = files.line_view.editor.descriptions()
+    before = files.line_view.editor.parts()
     assert files._run(files.load) is False
     assert "outside the workspace folder" in _shown(files)
     assert SECRET not in _shown(files)
-    assert files.line_view.editor.descriptions() == before  # nothing was loaded
+    assert files.line_view.editor.parts() == before  # nothing was loaded
 
 
 def test_a_file_in_the_workspace_loads_by_its_name(files, places):
@@ -89,7 +89,7 @@ def test_a_file_in_the_workspace_loads_by_its_name(files, places):
     files.controls["scenario_path"].value = "mine.toml"
     assert files._run(files.load) is True
     assert "loaded mine.toml" in files.status.value
-    assert [d.get("gauge") for d in files.line_view.editor.descriptions()] == [14]
+    assert [p.fields["gauge"].si for p in files.line_view.editor.parts()] == [14]
 
 
 @pytest.mark.parametrize(

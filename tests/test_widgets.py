@@ -4,6 +4,7 @@ carry the caution banner, flag in words and symbols, and hold no physics."""
 from __future__ import annotations
 
 import ast
+import html
 import itertools
 from pathlib import Path
 
@@ -399,9 +400,9 @@ def test_loading_an_example_file_fills_both_views(app, tmp_path):
     assert [p.type for p in line.editor.parts()] == ["set", "fitting", "catheter"]
     assert len(app.views["compare"].candidates) == 7
     # the comparison draws 7 of 9 candidates and no pump: the status names the others
-    status = app.views["files"].status.value
+    status = html.unescape(app.views["files"].status.value)
     assert "[i] note" in status and "[ok]" not in status
-    assert "&#x27;18G bore tolerance, warm red cells, bag&#x27;" in status
+    assert "'18G bore tolerance, warm red cells, bag'" in status
     assert line.messages.value == "" or "[X]" not in line.messages.value
 
 

@@ -48,9 +48,12 @@ class App(widgets.VBox):
     ----------
     tabs : sequence of str, optional
         Which tabs to build (default all): any of "line", "compare", "blood", "files".
+    workspace : str or os.PathLike, optional
+        The folder the files tab reads and writes (see
+        :class:`~rheoline.widgets.files_view.FilesView`).
     """
 
-    def __init__(self, tabs=("line", "compare", "blood", "files")):
+    def __init__(self, tabs=("line", "compare", "blood", "files"), workspace=None):
         super().__init__()
         self.add_class("rl-app")
         self.document = demo_document()
@@ -65,7 +68,9 @@ class App(widgets.VBox):
         if "files" in tabs:
             self.views["files"] = self._build(
                 "files",
-                lambda: _files(self.views.get("line"), self.views.get("compare"), self.document),
+                lambda: _files(
+                    self.views.get("line"), self.views.get("compare"), self.document, workspace
+                ),
             )
         self.tabs = widgets.Tab(children=list(self.views.values()))
         self.tabs.titles = tuple(view.title for view in self.views.values())
@@ -109,12 +114,12 @@ def _blood(lazy=False):
     return BloodVesselView(lazy=lazy)
 
 
-def _files(line_view, compare_view, document):
+def _files(line_view, compare_view, document, workspace=None):
     from rheoline.widgets.files_view import FilesView
 
-    return FilesView(line_view, compare_view, document=document)
+    return FilesView(line_view, compare_view, document=document, workspace=workspace)
 
 
-def build_app(tabs=("line", "compare", "blood", "files")) -> App:
+def build_app(tabs=("line", "compare", "blood", "files"), workspace=None) -> App:
     """Build the app (see :class:`App`)."""
-    return App(tabs)
+    return App(tabs, workspace=workspace)

@@ -8,22 +8,21 @@ computes physics.
 
 from __future__ import annotations
 
-import html
-
 import numpy as np
 import plotly.graph_objects as go
 
 from rheoline.model.hemolysis import HEMOLYSIS_CONCERN_STRESS
 from rheoline.units import ML_PER_H, ML_PER_MIN
 from rheoline.widgets.compare_solve import BAND_SAMPLES, SWEEPS
-from rheoline.widgets.style import BAND_OPACITY, flag_text, series_style, significant
+from rheoline.widgets.style import BAND_OPACITY, flag_text, series_style, significant, user_text
 
 __all__ = ["chart_text", "traces", "draw_curves", "row_flags", "row_html", "table_html"]
 
 
 def chart_text(text) -> str:
-    """A user's string (a candidate's name) made safe for a chart's legend."""
-    return html.escape(str(text))
+    """A user's string (a candidate's name) made safe for a chart's legend
+    (:func:`rheoline.widgets.style.user_text`)."""
+    return user_text(text)
 
 
 def traces(names) -> list:
@@ -117,15 +116,15 @@ def row_html(name, parts, result, band, flags, banded) -> str:
         band_cell = f"<td>{cell}</td>"
     flags = "; ".join(flags) or "[ok] ok: no flags"
     return (
-        f"<tr><td><b>{html.escape(name)}</b></td>"
-        f"<td>{html.escape(parts)}</td>"
+        f"<tr><td><b>{user_text(name)}</b></td>"
+        f"<td>{user_text(parts)}</td>"
         f"<td class='rl-compare-flow'>{significant(flow / ML_PER_MIN)}</td>"
         f"<td>{significant(flow / ML_PER_H)}</td>"
-        f"<td>{html.escape(str(result.regime))} ({significant(float(result.max_reynolds))})</td>"
-        f"<td>{html.escape(str(result.dominant_part))} "
+        f"<td>{user_text(str(result.regime))} ({significant(float(result.max_reynolds))})</td>"
+        f"<td>{user_text(str(result.dominant_part))} "
         f"({significant(100 * float(result.dominant_share), 2)} %)</td>"
         f"<td>{significant(float(result.max_wall_shear_stress))}</td>{band_cell}"
-        f"<td>{html.escape(flags)}</td></tr>"
+        f"<td>{user_text(flags)}</td></tr>"
     )
 
 
@@ -144,7 +143,7 @@ def table_html(rows, banded, shared) -> str:
         f"shared controls: head {significant(shared['head_cm'])} cm, source pressure "
         f"{significant(shared['source_pressure_mmhg'])} mmHg, back pressure "
         f"{significant(shared['back_pressure_mmhg'])} mmHg, "
-        f"{html.escape(shared['fluid'])} at {significant(shared['temperature_c'])} degC)</div>"
+        f"{user_text(shared['fluid'])} at {significant(shared['temperature_c'])} degC)</div>"
         "<table class='rl-table' style='border-collapse:collapse' border='1' "
         f"cellpadding='4'>{head}{''.join(rows)}</table>"
     )

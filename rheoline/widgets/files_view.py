@@ -13,6 +13,12 @@ the numbers the views show.  The set is saved and solved by the scenario layer
 After a load the status line says what each view shows of the file and names what it does
 not (a sweep shown at its first point, a field with no control, scenarios beyond what the
 comparison draws); it says "ok" only when the views show all of it.
+
+Every file the view loads or writes lives in one workspace folder (a
+:class:`~rheoline.scenario.workspace.Workspace`, shown in the view): a name is taken
+inside it, and a path that leaves it (directly, through ``..`` or through a symbolic
+link) is refused before any file is opened.  The served app gets its folder from the
+launcher (:mod:`rheoline.widgets.serve`); the default is ``./rheoline-workspace``.
 """
 
 from __future__ import annotations
@@ -23,7 +29,9 @@ import ipywidgets as widgets
 
 from rheoline.errors import ScenarioError
 from rheoline.scenario.files import MAX_FILE_BYTES, load_scenarios, loads_scenarios, save_scenarios
+from rheoline.scenario.workspace import Workspace
 from rheoline.widgets.base import _STYLE, View, labelled
+from rheoline.widgets.style import user_text
 
 __all__ = ["FilesView"]
 
@@ -37,17 +45,24 @@ class FilesView(View):
         The views that show the set (their status lines are summed up after a load).
     document : ScenarioDocument, optional
         The set to load into and save (default: the line view's, else the comparison's).
+    workspace : str or os.PathLike, optional
+        The folder every load, save and pack stays in (default
+        :func:`rheoline.widgets.serve.workspace_folder`: the launcher's choice, else
+        ``./rheoline-workspace``); created when the first file is written.
     """
 
     title = "Files"
 
-    def __init__(self, line_view=None, compare_view=None, document=None):
+    def __init__(self, line_view=None, compare_view=None, document=None, workspace=None):
         super().__init__()
+        from rheoline.widgets.serve import workspace_folder
+
         self.line_view, self.compare_view = line_view, compare_view
         views = [v for v in (line_view, compare_view) if v is not None]
-        if document is None and not views:
-            raise ScenarioError("the files view needs a document or a view that shows one")
-        self.document = document if document is not None else views[0].document
+        if document is None:
+            document = views[0].document if views else _own_document()
+        self.document = document
+        self.workspace = Workspace(workspace_folder() if workspace is None else workspace)
         c = self.controls
         c["scenario_path"] = labelled(
             widgets.Text(
@@ -96,6 +111,14 @@ class FilesView(View):
                     "reads them) and <b>review packs</b> (CSV, XLSX, HTML) of the scenarios "
                     "the line and comparison views show."
                 ),
+                labelled(
+                    widgets.HTML(
+                        "workspace folder <code>"
+                        f"{user_text(self.workspace.root)}</code>: every file "
+                        "named here is read from and written to this folder only"
+                    ),
+                    "rl-workspace",
+                ),
                 c["scenario_path"],
                 widgets.HBox([self.load_button, self.save_button, self.upload]),
                 c["pack_path"],
@@ -112,10 +135,13 @@ class FilesView(View):
         return self.document.scenario_set
 
     def load(self, path=None):
-        """Load the scenario file at ``path`` (default: the path field) into the views."""
-        path = Path(path or self.controls["scenario_path"].value).expanduser()
+        """Load the scenario file at ``path`` (default: the path field) into the views.
+
+        ``path`` is taken inside the workspace folder; one outside it is refused unread.
+        """
+        path = self.workspace.resolve(path or self.controls["scenario_path"].value)
         sset = load_scenarios(path)
-        self._loaded(sset, str(path))
+        self._loaded(sset, self.workspace.relative(path))
         return sset
 
     def _loaded(self, sset, name):
@@ -166,11 +192,13 @@ class FilesView(View):
         self._loaded(sset, name)
 
     def save(self, path=None):
-        """Save the views' set as a scenario file; returns its path."""
-        path = Path(path or self.controls["scenario_path"].value).expanduser()
+        """Save the views' set as a scenario file in the workspace; returns its path."""
+        path = self._target(path or self.controls["scenario_path"].value)
         sset = self.current_set()
         written = save_scenarios(sset, path, force=self.controls["overwrite"].value)
-        self.say("ok", f"saved {len(sset.scenarios)} scenarios to {written}")
+        self.say(
+            "ok", f"saved {len(sset.scenarios)} scenarios to {self.workspace.relative(written)}"
+        )
         return written
 
     def write_pack(self, folder=None):
@@ -178,8 +206,24 @@ class FilesView(View):
         from rheoline.scenario.compare import run_scenarios
         from rheoline.scenario.export import write_pack
 
-        folder = Path(folder or self.controls["pack_path"].value).expanduser()
+        folder = self._target(folder or self.controls["pack_path"].value)
         run = run_scenarios(self.current_set())
         written = write_pack(run, folder, force=self.controls["overwrite"].value)
-        self.say("ok", f"wrote the review pack to {written} ({len(run.table)} cases)")
+        shown = self.workspace.relative(written)
+        self.say("ok", f"wrote the review pack to {shown} ({len(run.table)} cases)")
         return written
+
+    def _target(self, user_path) -> Path:
+        """Where to write ``user_path``: inside the workspace (made if missing), or refused."""
+        path = self.workspace.resolve(user_path, for_writing=True)
+        self.workspace.create()
+        return path
+
+
+def _own_document():
+    """The set of a files view shown without the other views: the line view's demo line."""
+    from rheoline.scenario.description import ScenarioSet
+    from rheoline.widgets.document import ScenarioDocument
+    from rheoline.widgets.line_view import line_scenario
+
+    return ScenarioDocument(ScenarioSet((line_scenario(),), source="<views>"))

@@ -7,8 +7,6 @@ budget and the flow-against-drive chart.  Nothing here computes physics.
 
 from __future__ import annotations
 
-import html
-
 import numpy as np
 import plotly.graph_objects as go
 
@@ -16,7 +14,7 @@ from rheoline.model.hemolysis import HEMOLYSIS_CONCERN_STRESS
 from rheoline.units import ML_PER_H, ML_PER_MIN, MMHG
 from rheoline.widgets.edits import shown_amount
 from rheoline.widgets.figures import BASE_LAYOUT, curve_and_point_figure
-from rheoline.widgets.style import PALETTE, flag_html, format_number, significant
+from rheoline.widgets.style import PALETTE, flag_html, format_number, significant, user_text
 
 __all__ = [
     "budget_figure",
@@ -82,7 +80,7 @@ def results_html(result, pump):
             else f"<div>net drive <b>{format_number(float(result.net_drive) / MMHG, 'mmHg')}</b> "
             f"(gravity head plus source pressure, less back pressure)</div>"
         ),
-        f"<div>regime <b><span class='rl-regime'>{html.escape(regime)}</span></b> "
+        f"<div>regime <b><span class='rl-regime'>{user_text(regime)}</span></b> "
         f"(largest Reynolds number {significant(float(result.max_reynolds))})</div>",
         f"<div>largest wall shear stress <b>"
         f"{format_number(float(result.max_wall_shear_stress), 'Pa')}</b>; hemolysis index "
@@ -92,7 +90,7 @@ def results_html(result, pump):
             if np.isfinite(float(result.hemolysis_index))
             else "<b>n/a</b> (no red cells)</div>"
         ),
-        f"<div>dominant part <b>{html.escape(str(result.dominant_part))}</b> "
+        f"<div>dominant part <b>{user_text(str(result.dominant_part))}</b> "
         f"({significant(100 * float(result.dominant_share))} % of the pressure budget)</div>",
     ]
     return "".join(lines) + "".join(flags_html(result, pump))
@@ -123,7 +121,7 @@ def flags_html(result, pump):
 
 def draw_budget(fig, result, part_names):
     """Set the pressure budget chart: each part's drop and share [mmHg, %], the exit last."""
-    labels = [f"{i}. {name}" for i, name in enumerate(part_names, start=1)] + ["exit"]
+    labels = [user_text(f"{i}. {name}") for i, name in enumerate(part_names, start=1)] + ["exit"]
     drops = (
         np.append(
             np.asarray(result.part_pressure_drops, dtype=float),

@@ -26,7 +26,6 @@ Examples
 from __future__ import annotations
 
 import functools
-import html
 from dataclasses import replace
 
 import ipywidgets as widgets
@@ -67,7 +66,7 @@ from rheoline.widgets.line_results import (
 )
 from rheoline.widgets.parts_editor import DEFAULT_PARTS, PartsEditor
 from rheoline.widgets.scenario_models import drive_of, model_of, point_of
-from rheoline.widgets.style import flag_html
+from rheoline.widgets.style import flag_html, user_text
 
 __all__ = [
     "LineView",
@@ -369,7 +368,7 @@ class LineView(View):
                 if value is not None and not (inactive and key not in values):
                     c[name].value = shown_amount(key, value)
             self.editor.set_parts(sc.parts, notify=False)
-            self.notes.value = f"<i>{html.escape(sc.notes)}</i>" if sc.notes else ""
+            self.notes.value = f"<i>{user_text(sc.notes)}</i>" if sc.notes else ""
         finally:
             self._paused = False
         self._enable()

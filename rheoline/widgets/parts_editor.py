@@ -19,8 +19,6 @@ Examples
 
 from __future__ import annotations
 
-import html
-
 import ipywidgets as widgets
 
 from rheoline.errors import RheolineError
@@ -36,6 +34,7 @@ from rheoline.widgets.edits import (
     shown_amount,
     written,
 )
+from rheoline.widgets.style import user_text
 
 __all__ = [
     "PartsEditor",
@@ -204,7 +203,7 @@ class PartRow(widgets.HBox):
         ]
         controls = {"gauge": self.size, "french": self.size, "inner_diameter": self.bore}
         controls.update(length=self.length, k=self.k)
-        self.extra.value = html.escape(self._extra_words(part, shown))
+        self.extra.value = user_text(self._extra_words(part, shown))
         self.children = [self.kind, *(controls[c] for c in shown), self.extra, self.remove]
 
     def _size_options(self, kind, value):
