@@ -27,23 +27,8 @@ from __future__ import annotations
 
 from dataclasses import replace
 
-from rheoline.scenario.description import (
-    Axis,
-    DeliverySpec,
-    DriveSpec,
-    FluidSpec,
-    SiteSpec,
-    ToleranceSpec,
-    ToleranceWidth,
-    Value,
-)
-from rheoline.scenario.schema import (
-    KIND_OF,
-    PART_FIELDS,
-    SCENARIO_FIELDS,
-    SCENARIO_TOLERANCE_FIELDS,
-    field_spec,
-)
+from rheoline.scenario.description import Axis, ToleranceWidth, Value
+from rheoline.scenario.schema import KIND_OF, PART_FIELDS, field_spec
 from rheoline.scenario.values import Where, parse_field
 from rheoline.units import ML_PER_MIN, MMHG, to_unit
 
@@ -81,8 +66,6 @@ CONTROL_UNITS = {
 }
 
 _VIEWS = Where("<views>")
-_GROUPS = {"fluid": FluidSpec, "drive": DriveSpec, "delivery": DeliverySpec, "site": SiteSpec}
-_ATTRIBUTE = {"fluid": "name"}
 
 
 def _key(path):
@@ -152,30 +135,16 @@ def first_shown(field) -> str:
 
 # --------------------------------------------------------------------------- editing
 def with_fields(scenario, **fields):
-    """``scenario`` with the named fields (file keys; None removes one) replaced."""
-    groups = {}
+    """``scenario`` with the named fields (file keys; None removes one) replaced
+    (:meth:`~rheoline.scenario.description.Scenario.with_field` for each)."""
     for key, field in fields.items():
-        groups.setdefault(SCENARIO_FIELDS[key].group, {})[key] = field
-    changes = {}
-    for group, updates in groups.items():
-        current = getattr(scenario, group)
-        mapping = dict(current.items()) if current is not None else {}
-        mapping.update(updates)
-        mapping = {k: v for k, v in mapping.items() if v is not None}
-        cls = _GROUPS[group]
-        required = [f for f in ("name", "volume", "vein_diameter") if f in cls.__dataclass_fields__]
-        keys = [{"name": "fluid"}.get(f, f) for f in required]
-        changes[group] = cls.from_keys(mapping) if all(k in mapping for k in keys) else None
-    return replace(scenario, **changes)
+        scenario = scenario.with_field(key, field)
+    return scenario
 
 
 def with_tolerance(scenario, key: str, field):
     """``scenario`` with its tolerance ``key`` (a Value, or None to remove it) replaced."""
-    current = scenario.tolerance or ToleranceSpec()
-    tolerance = replace(current, **{key: field})
-    if all(getattr(tolerance, k) is None for k in SCENARIO_TOLERANCE_FIELDS):
-        tolerance = None
-    return replace(scenario, tolerance=tolerance)
+    return scenario.with_field(f"tolerance.{key}", field)
 
 
 def with_part(scenario, index: int, part):
@@ -215,23 +184,9 @@ def at_point(scenario, chosen=None):
     written form).
     """
     chosen = chosen or {}
-
-    def one(path, field):
-        if not isinstance(field, Axis):
-            return field
-        return Value(field.values[chosen.get(path, 0)], None)
-
-    changes = {}
-    for name in ("fluid", "drive", "delivery", "site"):
-        group = getattr(scenario, name)
-        if group is not None:
-            attrs = {_ATTRIBUTE.get(k, k): one(k, v) for k, v in group.items()}
-            changes[name] = replace(group, **attrs)
-    parts = tuple(
-        replace(p, fields={k: one(f"part[{i}].{k}", v) for k, v in p.fields.items()})
-        for i, p in enumerate(scenario.parts, start=1)
-    )
-    return replace(scenario, parts=parts, **changes)
+    for path, axis in scenario.axes:
+        scenario = scenario.with_field(path, Value(axis.values[chosen.get(path, 0)], None))
+    return scenario
 
 
 def without_points(scenario, path: str, indices):
@@ -239,22 +194,17 @@ def without_points(scenario, path: str, indices):
 
     The remaining values are written as a list (a range table cannot skip values).
     """
-    index = int(path[5 : path.index("]")]) - 1 if path.startswith("part[") else None
-    key = path.rsplit(".", 1)[-1]
-    part = scenario.parts[index] if index is not None else None
-    axis = part.fields[key] if part is not None else dict(_items(scenario))[key]
+    from rheoline.scenario.values import written_form
+
+    part_type = scenario.parts[int(path[5 : path.index("]")]) - 1].type if "[" in path else None
+    axis = scenario.field(path)
     keep = [j for j in range(len(axis)) if j not in set(indices)]
     if isinstance(axis.written, tuple):
         text = [axis.written[j] for j in keep]
     else:
-        spec = field_spec(path, part.type if part else None)
-        from rheoline.scenario.values import written_form
-
+        spec = field_spec(path, part_type)
         text = [written_form(spec, axis.values[j]) for j in keep]
-    field = parsed(path, text, part.type if part else None)
-    if part is not None:
-        return with_part(scenario, index, part_with_field(part, key, field))
-    return with_fields(scenario, **{key: field})
+    return scenario.with_field(path, parsed(path, text, part_type))
 
 
 def _items(scenario):
