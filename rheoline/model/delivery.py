@@ -444,7 +444,9 @@ def _time_decay(line, fluid, volume, p_full, tau, h_full, h_empty, back_pressure
         res = line.solve(
             fluid,
             head=hf - (hf - he) * frac,
-            source_pressure=p0 * np.exp(-t / tau_f),
+            # an explicit Runge-Kutta stage may probe a time below 0 where dt/dphi is steep
+            # (a cuff gone within milliseconds); the pressure there is the full one
+            source_pressure=p0 * np.exp(-np.maximum(t, 0.0) / tau_f),
             back_pressure=back_pressure,
             pries_correction=pries,
         )

@@ -22,7 +22,7 @@ import numpy as np
 
 from rheoline.errors import InputRangeError
 from rheoline.model import catalogue
-from rheoline.model.parts import _DEVICE_NAMES, Lumen, Tube, _lookup, _mm, _value
+from rheoline.model.parts import _DEVICE_NAMES, Lumen, Tube, _lookup, _mm, _size_text, _value
 from rheoline.model.shapes import LUMEN_SHAPES
 from rheoline.model.validation import check_positive
 
@@ -177,19 +177,20 @@ class Needle(Lumen):
 
 
 class Cannula(Lumen):
-    """A cannula or sheath by French size (outer diameter = French / 3 mm).
+    """A cannula or sheath by French size (outer diameter = French / 3 mm), or by its bore.
 
     The inner diameter is the user's, or the outer diameter less twice ``wall_thickness``
     (default :data:`~rheoline.model.catalogue.CANNULA_TYPICAL_WALL`, typical, from memory).
+    A cannula given by ``inner_diameter`` alone has no known outer diameter (None).
 
     Parameters
     ----------
-    french : float
-        Size [Fr], > 0.
+    french : float, optional
+        Size [Fr], > 0; needed unless ``inner_diameter`` is given.
     inner_diameter : float, optional
         [m].
     wall_thickness : float, optional
-        [m].
+        [m]; with ``french`` only.
     length : float or array_like
         [m]; default 0.15 (typical, from memory).
     name : str, optional
@@ -199,17 +200,22 @@ class Cannula(Lumen):
     >>> c = Cannula(french=21, wall_thickness=0.5e-3, length=0.2)
     >>> round(c.outer_diameter * 1e3, 2), round(c.inner_diameter * 1e3, 2)
     (7.0, 6.0)
+    >>> Cannula(inner_diameter=2e-3, length=0.1).name
+    'cannula 2 mm x 0.1 m'
     """
 
     def __init__(
         self,
-        french,
+        french=None,
         inner_diameter=None,
         wall_thickness=None,
         length=0.15,
         name=None,
         roughness=0.0,
     ):
+        if french is None:
+            _bore_only_cannula(self, inner_diameter, wall_thickness, length, name, roughness)
+            return
         fr = check_positive("french", french, "Fr")
         od = fr * catalogue.FRENCH_TO_METRE
         if inner_diameter is None:
@@ -226,7 +232,9 @@ class Cannula(Lumen):
             if np.any(inner_diameter <= 0):
                 raise InputRangeError(
                     f"wall_thickness {float(np.max(wall)) * 1e3:g} mm leaves no bore in a "
-                    f"{float(np.min(fr)):g} Fr cannula; pass inner_diameter instead"
+                    f"{float(np.min(fr)):g} Fr cannula; pass inner_diameter instead",
+                    field="wall_thickness",
+                    value=wall_thickness,
                 )
         object.__setattr__(self, "french", _value(fr))
         super().__init__(
@@ -236,6 +244,30 @@ class Cannula(Lumen):
             name=name or (f"{_value(fr):g} Fr cannula" if np.ndim(fr) == 0 else "cannula"),
             outer_diameter=_value(od),
         )
+
+
+def _bore_only_cannula(part, inner_diameter, wall_thickness, length, name, roughness):
+    """Fill a :class:`Cannula` given by its bore (no French size: no outer diameter)."""
+    if inner_diameter is None:
+        raise InputRangeError(
+            "Cannula needs french (its size) or inner_diameter [m] (its bore), e.g. "
+            "Cannula(french=21) or Cannula(inner_diameter=5e-3)",
+            field="french",
+        )
+    if wall_thickness is not None:
+        raise InputRangeError(
+            "wall_thickness sets the bore from the French size; pass french as well, or "
+            "leave wall_thickness out when inner_diameter is given",
+            field="wall_thickness",
+            value=wall_thickness,
+        )
+    object.__setattr__(part, "french", None)
+    Lumen.__init__(
+        part, inner_diameter=inner_diameter, length=length, roughness=roughness, name=name
+    )
+    if name is None:
+        size = f"{_mm(part.inner_diameter)} x {_size_text(part.length, 1.0, 'm')}"
+        object.__setattr__(part, "name", f"cannula {size}")
 
 
 def circuit_tubing(size, length, name=None):

@@ -4,8 +4,12 @@ Each tolerance is a half-width: a part's inner diameter and length as *relative*
 tolerances (0.05 = +/- 5 %), the fluid temperature [degC] and hematocrit [-] as absolute
 ones, and the viscosity as a relative one.  With ``distribution="uniform"`` a sample is
 uniform within +/- the tolerance; with ``"normal"`` the tolerance is read as two standard
-deviations (about 95 % of samples inside).  All samples are solved in one vectorized
-:meth:`~rheoline.model.line.Line.solve`.
+deviations (about 95 % of samples inside), the normal truncated at three standard deviations
+(1.5 times the tolerance: :data:`NORMAL_TRUNCATION`) so that no draw is a bore, length or
+viscosity of zero or less.  A tolerance whose reach (the tolerance, or 1.5 times it for a
+normal) would take a sample out of its physical domain (a relative reach of 1 or more; a
+hematocrit below 0 or above 0.95) is refused with the field named, never clipped.  All
+samples are solved in one vectorized :meth:`~rheoline.model.line.Line.solve`.
 
 The spread is attributed to the inputs by standardized regression coefficients of
 ln(output) on the sampled inputs, :math:`S_i = b_i^2 \operatorname{var}(x_i) /
@@ -32,7 +36,21 @@ from rheoline.model.parts import Lumen
 from rheoline.model.provenance import merge_models
 from rheoline.model.validation import check_nonnegative
 
-__all__ = ["ToleranceResult", "flow_tolerance", "scale_viscosity"]
+__all__ = [
+    "ToleranceResult",
+    "flow_tolerance",
+    "scale_viscosity",
+    "NORMAL_TRUNCATION",
+    "tolerance_reach",
+    "check_relative_reach",
+    "check_hematocrit_reach",
+]
+
+#: A normal draw is truncated at three standard deviations, i.e. at 1.5 times the
+#: tolerance (two standard deviations): 0.27 % of an untruncated normal lies beyond.
+NORMAL_TRUNCATION = 1.5
+#: The highest hematocrit a sample may reach (the blood models' own limit).
+_HEMATOCRIT_HIGH = 0.95
 
 #: Viscosity-like fields of each rheology model, scaled together by a viscosity tolerance.
 _VISCOSITY_FIELDS = {
@@ -261,7 +279,12 @@ class _Draws:
     def __call__(self, tolerance):
         if self.distribution == "uniform":
             return self.rng.uniform(-1.0, 1.0, self.n) * tolerance
-        return self.rng.normal(0.0, 0.5, self.n) * tolerance
+        z = self.rng.normal(0.0, 0.5, self.n)
+        far = np.abs(z) > NORMAL_TRUNCATION
+        while np.any(far):  # truncated: draw again beyond three standard deviations
+            z[far] = self.rng.normal(0.0, 0.5, int(np.count_nonzero(far)))
+            far = np.abs(z) > NORMAL_TRUNCATION
+        return z * tolerance
 
     def record(self, label, value, owner):
         self.inputs[label], self.owners[label] = value, owner
@@ -275,8 +298,8 @@ def _sample_parts(line, draw, diameter_tolerance, length_tolerance):
         if not isinstance(part, Lumen):
             new_parts.append(part)
             continue
-        d_tol = _tolerance_for(diameter_tolerance, i, name, "diameter_tolerance")
-        l_tol = _tolerance_for(length_tolerance, i, name, "length_tolerance")
+        d_tol = _tolerance_for(diameter_tolerance, i, name, "diameter_tolerance", draw)
+        l_tol = _tolerance_for(length_tolerance, i, name, "length_tolerance", draw)
         d = np.asarray(part.inner_diameter, dtype=float)
         length = np.asarray(part.length, dtype=float)
         if d_tol > 0:
@@ -316,14 +339,16 @@ def _sample_fluid(
         if t_tol > 0:
             draw.record("temperature", dev, None)
         if fluid.hematocrit is not None:
+            check_hematocrit_reach(fluid.hematocrit, h_tol, draw.distribution)
             dev = draw(h_tol)
-            kwargs["hematocrit"] = np.clip(
-                np.asarray(fluid.hematocrit, dtype=float) + dev.reshape(draw.axis), 0.0, 0.95
+            kwargs["hematocrit"] = np.asarray(fluid.hematocrit, dtype=float) + dev.reshape(
+                draw.axis
             )
             if h_tol > 0:
                 draw.record("hematocrit", dev, None)
         sampled = builder(**kwargs)
     v_tol = float(check_nonnegative("viscosity_tolerance", viscosity_tolerance))
+    check_relative_reach("viscosity_tolerance", v_tol, draw.distribution)
     if v_tol > 0:
         dev = draw(v_tol)
         draw.record("viscosity", np.log1p(dev), None)
@@ -364,15 +389,92 @@ def _summarize(quantity, nominal, out, draw, percentiles, shape, seed, models, o
     )
 
 
-def _tolerance_for(tolerance, index, name, label):
+def _tolerance_for(tolerance, index, name, label, draw):
     if isinstance(tolerance, dict):
         value = tolerance.get(name, tolerance.get(index, 0.0))
     else:
         value = tolerance
     value = float(check_nonnegative(label, value))
-    if value >= 1.0:
-        raise InputRangeError(f"{label} {value:g} is relative (0.05 = 5 %); pass a value below 1")
+    check_relative_reach(label, value, draw.distribution, part=name)
     return value
+
+
+def tolerance_reach(tolerance, distribution="uniform"):
+    """The farthest a sample lies from its nominal value: the tolerance (uniform), or
+    :data:`NORMAL_TRUNCATION` times it (normal, truncated at three standard deviations).
+
+    Examples
+    --------
+    >>> tolerance_reach(0.1), tolerance_reach(0.1, "normal")
+    (0.1, 0.15000000000000002)
+    """
+    return tolerance * (1.0 if distribution == "uniform" else NORMAL_TRUNCATION)
+
+
+def check_relative_reach(label, tolerance, distribution="uniform", part=None):
+    """Refuse a relative tolerance whose draws could reach zero (or below) of the nominal.
+
+    Raises
+    ------
+    InputRangeError
+        Naming ``label``, when the reach (:func:`tolerance_reach`) is 1 or more.
+
+    Examples
+    --------
+    >>> check_relative_reach("diameter_tolerance", 0.5, "normal")
+    >>> check_relative_reach("diameter_tolerance", 0.7, "normal")
+    Traceback (most recent call last):
+    ...
+    rheoline.errors.InputRangeError: diameter_tolerance 0.7 is relative (0.05 = 5 %); with a \
+normal spread (truncated at 1.5x) it draws values down to -0.05 times the nominal, zero or \
+less; pass a half-width below 0.667, or distribution 'uniform' (below 1)
+    """
+    tolerance = np.asarray(tolerance, dtype=float)
+    reach = tolerance_reach(tolerance, distribution)
+    if np.all(reach < 1.0):
+        return
+    of = f" of {part}" if part else ""
+    how = "uniform spread" if distribution == "uniform" else "normal spread (truncated at 1.5x)"
+    largest = 1.0 / (tolerance_reach(1.0, distribution))
+    fix = f"pass a half-width below {largest:.3g}"
+    if distribution != "uniform":
+        fix += ", or distribution 'uniform' (below 1)"
+    raise InputRangeError(
+        f"{label}{of} {float(np.max(tolerance)):g} is relative (0.05 = 5 %); with a {how} it "
+        f"draws values down to {1.0 - float(np.max(reach)):.3g} times the nominal, zero or "
+        f"less; {fix}",
+        field=label,
+        value=float(np.max(tolerance)),
+    )
+
+
+def check_hematocrit_reach(hematocrit, tolerance, distribution="uniform"):
+    """Refuse a hematocrit tolerance whose draws leave 0 to 0.95 around ``hematocrit``.
+
+    Examples
+    --------
+    >>> check_hematocrit_reach(0.45, 0.03)
+    >>> check_hematocrit_reach(0.02, 0.03)
+    Traceback (most recent call last):
+    ...
+    rheoline.errors.InputRangeError: hematocrit_tolerance 0.03 around hematocrit 0.02 \
+(uniform) draws hematocrits from -0.01 to 0.05, outside 0 to 0.95; narrow the tolerance \
+to 0.02 or less
+    """
+    h = np.asarray(hematocrit, dtype=float)
+    reach = tolerance_reach(float(tolerance), distribution)
+    low, high = h - reach, h + reach
+    if np.all(low >= 0.0) and np.all(high <= _HEMATOCRIT_HIGH):
+        return
+    room = float(np.min(np.minimum(h, _HEMATOCRIT_HIGH - h))) / tolerance_reach(1.0, distribution)
+    raise InputRangeError(
+        f"hematocrit_tolerance {float(tolerance):g} around hematocrit {float(np.min(h)):g} "
+        f"({distribution}) draws hematocrits from {float(np.min(low)):.3g} to "
+        f"{float(np.max(high)):.3g}, outside 0 to {_HEMATOCRIT_HIGH}; narrow the tolerance to "
+        f"{max(room, 0.0):.3g} or less",
+        field="hematocrit_tolerance",
+        value=float(tolerance),
+    )
 
 
 #: Shear rates [1/s] at which a rebuilt fluid must match the nominal one.

@@ -44,6 +44,8 @@ __all__ = [
     "point_part_names",
     "site_context",
     "check_scenarios",
+    "check_tolerances",
+    "check_layout",
 ]
 
 # Part fields that select a catalogue entry, or are single values by nature: grouped on,
@@ -328,5 +330,42 @@ def check_scenarios(sset: ScenarioSet) -> None:
         warnings.simplefilter("ignore")
         for sc in sset.scenarios:
             for g in groups(sc):
-                build_fluid(g, sset.source)
-                site_context(g, build_parts(g, sset.source), sset.source)
+                fl = build_fluid(g, sset.source)
+                parts = build_parts(g, sset.source)
+                site_context(g, parts, sset.source)
+                check_layout(g, fl, parts, sset.source)
+                check_tolerances(g, fl, parts, sset.source)
+
+
+def check_layout(group, fl, parts, source):
+    """Lay the group's line out for its fluid as the solve will (nothing is solved): a
+    line the engine cannot lay out (a K fitting with no bore of its own and no lumen to
+    refer to) is refused here, naming the part's field."""
+    from rheoline.model.line import Line
+    from rheoline.model.line_layout import build_layout
+
+    try:
+        build_layout(Line(parts), fl, (), False)
+    except RheolineError as exc:
+        field = getattr(exc, "field", None)
+        j = next(
+            (
+                j
+                for j, p in enumerate(parts, start=1)
+                if field and getattr(p, "kind", "") == "fitting" and getattr(p, field, 0) is None
+            ),
+            None,
+        )
+        raise ScenarioError(
+            str(exc),
+            source=source,
+            scenario=repr(group.scenario.name),
+            field=f"part[{j}].{field}" if j else "part",
+        ) from None
+
+
+def check_tolerances(group, fl, parts, source):
+    """See :func:`rheoline.scenario.tolerance_check.check_tolerances`."""
+    from rheoline.scenario.tolerance_check import check_tolerances as check
+
+    check(group, fl, parts, source)

@@ -221,9 +221,13 @@ def _json_object(pairs, source):
 
 
 def _check_depth(data, source):
+    """Refuse nesting deeper than the limit, keys that are not text, and text that is not
+    valid Unicode (a lone surrogate, which JSON's escapes can write: it cannot be encoded
+    in any report, so it would pass here and fail when the pack is written)."""
     stack = [(data, 0, "")]
     while stack:
         node, depth, path = stack.pop()
+        _check_unicode(node, path, source)
         if depth > schema.MAX_DEPTH:
             raise ScenarioError(
                 f"is nested {depth} levels deep, above the limit of {schema.MAX_DEPTH}",
@@ -236,12 +240,31 @@ def _check_depth(data, source):
                     raise ScenarioError(
                         f"keys must be text, got {k!r}", source=source, field=path or None
                     )
+                _check_unicode(k, path, source)
                 if isinstance(v, (dict, list)):
                     stack.append((v, depth + 1, f"{path}.{k}" if path else k))
+                elif isinstance(v, str):
+                    _check_unicode(v, f"{path}.{k}" if path else k, source)
         elif isinstance(node, list):
             for j, v in enumerate(node, start=1):
                 if isinstance(v, (dict, list)):
                     stack.append((v, depth + 1, f"{path}[{j}]"))
+                elif isinstance(v, str):
+                    _check_unicode(v, f"{path}[{j}]", source)
+
+
+def _check_unicode(text, path, source):
+    """Refuse text holding a lone surrogate (U+D800-U+DFFF), naming where it is."""
+    if not isinstance(text, str) or text.isascii():
+        return
+    bad = next((c for c in text if 0xD800 <= ord(c) <= 0xDFFF), None)
+    if bad is not None:
+        raise ScenarioError(
+            f"holds a lone surrogate U+{ord(bad):04X}, which is not valid Unicode text; "
+            "remove it (write the character itself, or a valid escaped pair)",
+            source=source,
+            field=path or None,
+        )
 
 
 # --------------------------------------------------------------------------- the set

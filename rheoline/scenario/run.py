@@ -59,7 +59,13 @@ from typing import TYPE_CHECKING
 
 import numpy as np
 
-from rheoline.errors import RangeWarning, RegimeWarning, RheolineWarning
+from rheoline.errors import (
+    RangeWarning,
+    RegimeWarning,
+    RheolineError,
+    RheolineWarning,
+    ScenarioError,
+)
 from rheoline.model.friction import LAMINAR_LIMIT_REYNOLDS, TRANSITION_ZONE_REYNOLDS
 from rheoline.model.provenance import merge_models
 from rheoline.scenario.build import (
@@ -357,12 +363,34 @@ class _GroupRun:
         return self
 
     def _step(self, step):
-        """Run ``step``; the warnings it raises become notes (the model's own words)."""
+        """Run ``step``; the warnings it raises become notes (the model's own words).  A
+        model error becomes a ScenarioError naming the file, the scenario and the field."""
         with warnings.catch_warnings(record=True) as caught:
             warnings.simplefilter("always")
-            step()
+            try:
+                step()
+            except ScenarioError:
+                raise
+            except RheolineError as exc:
+                raise ScenarioError(
+                    str(exc),
+                    source=self.source,
+                    scenario=repr(self.g.scenario.name),
+                    field=self._file_field(step.__name__, getattr(exc, "field", None)),
+                    value=getattr(exc, "value", None),
+                ) from None
         said = [w.message for w in caught if isinstance(w.message, RheolineWarning)]
         self.notes += [(_warning_key(m), str(m)) for m in said]
+
+    def _file_field(self, step, model_field):
+        """The file's field of a model argument a step's error names (``err.field``)."""
+        if model_field in _MODEL_TO_FILE:
+            return _MODEL_TO_FILE[model_field]
+        if model_field in self.g.values:
+            return model_field
+        if step == "solve":
+            return "flow" if self.mode == "flow" else "head"
+        return _STEP_FIELD.get(step, step)
 
     # ----------------------------------------------------------------------- build
     def build_fluid(self):
@@ -513,6 +541,32 @@ class _GroupRun:
         self.columns["flags"] = ["; ".join(f) for f in flags]
         rows = [list(r) for r in zip(*(self.columns[k] for k in TABLE_COLUMNS), strict=True)]
         return list(zip(self.g.indices, rows, part_rows(self), flags, strict=True))
+
+
+#: Model arguments of the run's steps and the file fields they come from.
+_MODEL_TO_FILE = {
+    "time_constant": "pressure_time_constant",
+    "pressure_empty": "source_pressure_when_empty",
+    "pressure_full": "source_pressure",
+    "head_full": "head",
+    "head_empty": "head_when_empty",
+    "temperature_c": "temperature",
+    "temperature_tolerance": "tolerance.temperature",
+    "hematocrit_tolerance": "tolerance.hematocrit",
+    "viscosity_tolerance": "tolerance.viscosity",
+    "n_samples": "tolerance.samples",
+    "distribution": "tolerance.distribution",
+    "diameter_tolerance": "tolerance",
+    "length_tolerance": "tolerance",
+}
+#: The file field a step's error is about when the model names none of the file's.
+_STEP_FIELD = {
+    "build_fluid": "fluid",
+    "build_line": "part",
+    "tolerance": "tolerance",
+    "delivery": "volume",
+    "site": "vein_diameter",
+}
 
 
 def _has(part, attribute):

@@ -215,13 +215,15 @@ def _counted(start, stop, count, at, path):
 
 
 def _stepped(start, stop, step, at, path):
-    n = math.floor((stop - start) / step * (1 + 1e-12) + 1e-9) + 1
-    if n > _max_axis():
+    intervals = (stop - start) / step * (1 + 1e-12) + 1e-9  # inf for a step of 1e-320
+    if not intervals < _max_axis():
+        many = math.floor(intervals) + 1 if intervals < 1e12 else f"{intervals:.3g}"
         at.fail(
-            f"the range has {n} values, above the limit of {_max_axis()} "
+            f"the range has {many} values, above the limit of {_max_axis()} "
             "per field; use a larger step",
             path + ".step",
         )
+    n = math.floor(intervals) + 1
     return [start + j * step for j in range(n)]
 
 
