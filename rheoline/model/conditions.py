@@ -16,7 +16,8 @@ Examples
 >>> CONDITIONS["turbulent"].words
 'turbulent flow'
 >>> [c.key for c in CONDITIONS.values() if c.per_part]
-['turbulent', 'transitional', 'transition_zone', 'developing', 'outside_range', 'catalogue_size', 'hemolysis_extrapolated']
+['turbulent', 'transitional', 'transition_zone', 'developing', 'outside_range', \
+'catalogue_size', 'hemolysis_extrapolated', 'measured_extrapolated']
 >>> count_words(np.array([True, False, True]))
 ' in 2 of 3 scenarios'
 """
@@ -27,7 +28,14 @@ from dataclasses import dataclass
 
 import numpy as np
 
-__all__ = ["Condition", "CONDITIONS", "SEVERITIES", "count_words"]
+__all__ = [
+    "Condition",
+    "CONDITIONS",
+    "SEVERITIES",
+    "count_words",
+    "IMPLAUSIBLE_VELOCITY",
+    "IMPLAUSIBLE_PRESSURE",
+]
 
 #: Severities, mildest first.
 SEVERITIES = ("caution", "limit", "fault")
@@ -114,6 +122,14 @@ _LIST = (
         per_part=True,
     ),
     Condition(
+        "measured_extrapolated",
+        "caution",
+        "measured part extrapolated",
+        "a measured part carries a flow outside the span of its bench flows (its fitted "
+        "a Q + b Q^2 is extrapolated there)",
+        per_part=True,
+    ),
+    Condition(
         "hemolysis_concern",
         "caution",
         "hemolysis concern",
@@ -146,12 +162,30 @@ _LIST = (
         "the required source pressure exceeds the pressure limit given",
     ),
     Condition(
+        "implausible",
+        "fault",
+        "physically implausible",
+        "a lumen's mean velocity exceeds IMPLAUSIBLE_VELOCITY (a tenth of the speed of sound "
+        "in water) or the source pressure exceeds IMPLAUSIBLE_PRESSURE (beyond any part's "
+        "rating): the line cannot carry this flow; the numbers are the model's extrapolation",
+    ),
+    Condition(
         "not_converged",
         "fault",
         "solver not converged",
         "the flow solve stopped before full convergence (the result is the last bracketed iterate)",
     ),
 )
+
+#: The mean velocity [m/s] above which a result is flagged ``implausible``: a tenth of the
+#: speed of sound in water, 1482 m/s at 20 degC (Del Grosso & Mader 1972, J. Acoust. Soc.
+#: Am. 52:1442; rounded down to 148).  Beyond it the liquid's compressibility is no longer
+#: negligible, and no infusion or access device runs near it (common practice, no source).
+IMPLAUSIBLE_VELOCITY = 148.0
+#: The source pressure [Pa] above which a result is flagged ``implausible``: 10 MPa
+#: (75,000 mmHg, 1,450 psi), above the rating of any part of an infusion or access line
+#: (injector-rated sets and catheters are rated to a few MPa; from memory).
+IMPLAUSIBLE_PRESSURE = 10.0e6
 
 #: Every condition by key; results, flags, tables and views read this one dict.
 CONDITIONS = {c.key: c for c in _LIST}

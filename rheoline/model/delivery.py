@@ -41,7 +41,35 @@ __all__ = [
     "DeliveryResult",
     "falling_head_delivery_time",
     "pressure_bag_delivery_time",
+    "check_falls",
 ]
+
+
+def check_falls(full_name, full, empty_name, empty, unit):
+    """Refuse an end value above the start value of a drive that falls as the bag empties
+    (a falling head, a loosening cuff): a rising one contradicts the law.
+
+    Examples
+    --------
+    >>> check_falls("head_full", 1.0, "head_empty", 1.5, "m")
+    Traceback (most recent call last):
+    ...
+    rheoline.errors.InputRangeError: head_empty 1.5 m is above head_full 1 m: this drive falls \
+as the bag empties; swap the two values, or give the same value for a constant drive
+    """
+    full, empty = np.asarray(full, dtype=float), np.asarray(empty, dtype=float)
+    rises = np.broadcast_to(empty > full, np.broadcast_shapes(full.shape, empty.shape))
+    if np.any(rises):
+        at = np.flatnonzero(rises.ravel())[0]
+        hi = float(np.broadcast_to(empty, rises.shape).ravel()[at])
+        lo = float(np.broadcast_to(full, rises.shape).ravel()[at])
+        raise InputRangeError(
+            f"{empty_name} {hi:g} {unit} is above {full_name} {lo:g} {unit}: this drive falls as "
+            "the bag empties; swap the two values, or give the same value for a constant drive",
+            field=empty_name,
+            value=hi,
+        )
+
 
 _gl_x, _gl_w = np.polynomial.legendre.leggauss(12)
 #: 12-point Gauss-Legendre nodes and weights on (0, 1): the rule of one panel.
@@ -320,6 +348,7 @@ def falling_head_delivery_time(
     v = check_positive("volume", volume, "m^3")
     h_full = check_finite("head_full", head_full)
     h_empty = check_finite("head_empty", head_empty)
+    check_falls("head_full", h_full, "head_empty", h_empty, "m")
     return _volume_quadrature(
         line,
         fluid,
@@ -402,6 +431,7 @@ def pressure_bag_delivery_time(
     p_full = check_finite("pressure_full", pressure_full)
     h_full = check_finite("head_full", head_full)
     h_empty = h_full if head_empty is None else check_finite("head_empty", head_empty)
+    check_falls("head_full", h_full, "head_empty", h_empty, "m")
     if (pressure_empty is None) == (time_constant is None):
         raise InputRangeError(
             "give exactly one decay law: pressure_empty [Pa] (decay with delivered volume) or "
@@ -410,6 +440,7 @@ def pressure_bag_delivery_time(
         )
     if pressure_empty is not None:
         p_empty = check_finite("pressure_empty", pressure_empty)
+        check_falls("pressure_full", p_full, "pressure_empty", p_empty, "Pa")
         return _volume_quadrature(
             line,
             fluid,

@@ -37,7 +37,7 @@ import numpy as np
 
 from rheoline.errors import InputRangeError
 from rheoline.model.rheology import Newtonian, RheologyModel
-from rheoline.model.validation import check_positive
+from rheoline.model.validation import check_positive, freeze_arrays, frozen_copy
 
 __all__ = ["Fluid", "FluidRecipe", "newtonian_fluid"]
 
@@ -73,7 +73,11 @@ class FluidRecipe:
     builder: Callable | None = field(default=None, compare=False, repr=False)
 
     def __post_init__(self):
-        object.__setattr__(self, "options", MappingProxyType(dict(self.options)))
+        options = {
+            k: frozen_copy(v) if isinstance(v, np.ndarray) else v for k, v in self.options.items()
+        }
+        object.__setattr__(self, "options", MappingProxyType(options))
+        freeze_arrays(self, ("temperature_c",))
 
     def __repr__(self):
         return (
@@ -149,6 +153,7 @@ class Fluid:
         rho = check_positive("density", self.density, "kg/m^3")
         object.__setattr__(self, "density", float(rho) if rho.ndim == 0 else rho)
         object.__setattr__(self, "models_used", tuple(self.models_used))
+        freeze_arrays(self)  # copies: the caller's arrays may change later
 
     def at(self, temperature_c=None, **options) -> Fluid:
         """The same fluid rebuilt at another temperature, hematocrit or option.

@@ -37,7 +37,12 @@ from functools import cached_property
 import numpy as np
 
 from rheoline.model import lumen as _lumen
-from rheoline.model.conditions import CONDITIONS, count_words
+from rheoline.model.conditions import (
+    CONDITIONS,
+    IMPLAUSIBLE_PRESSURE,
+    IMPLAUSIBLE_VELOCITY,
+    count_words,
+)
 from rheoline.model.friction import TRANSITION_ZONE_REYNOLDS
 from rheoline.model.hemolysis import (
     GIERSIEPEN_1990_MAX_STRESS,
@@ -298,8 +303,19 @@ class LineResult:
                 shape,
             ),
             "hemolysis_extrapolated": self._hemolysis_outside(),
+            "measured_extrapolated": self._measured_outside(moving),
         }
         return {key: out[key] for key in CONDITIONS if key in out}
+
+    def _measured_outside(self, moving):
+        """Measured parts carrying a flow outside the span of their bench flows."""
+        out = np.zeros(self.part_pressure_drops.shape, dtype=bool)
+        q = np.asarray(self.flow, dtype=float)
+        for i, part in enumerate(self.line.parts):
+            if getattr(part, "kind", None) == "measured":
+                low, high = float(np.min(part.flows)), float(np.max(part.flows))
+                out[i] = moving & ((q < low * (1 - 1e-9)) | (q > high * (1 + 1e-9)))
+        return out
 
     def _developing(self, moving, re):
         """Laminar real lumens shorter than their entrance length (Shah 1978 applies)."""
@@ -345,9 +361,18 @@ class LineResult:
         out["blood_as_newtonian"] = full & (fluid.is_newtonian and is_blood)
         out["no_forward_flow"] = ~moving
         out["over_pressure_limit"] = np.broadcast_to(np.asarray(self.exceeds_pressure_limit), shape)
+        out["implausible"] = self._implausible(shape)
         converged = True if self._converged_mask is None else self._converged_mask
         out["not_converged"] = ~np.broadcast_to(np.asarray(converged, dtype=bool), shape)
         return {key: np.asarray(out[key], dtype=bool) for key in CONDITIONS}
+
+    def _implausible(self, shape):
+        """Beyond physical plausibility (:data:`~rheoline.model.conditions.IMPLAUSIBLE_VELOCITY`,
+        :data:`~rheoline.model.conditions.IMPLAUSIBLE_PRESSURE`)."""
+        u = np.nan_to_num(np.abs(self.part_mean_velocity), posinf=np.inf)
+        fast = np.any(u > IMPLAUSIBLE_VELOCITY, axis=0) if u.size else np.zeros(shape, bool)
+        high = np.asarray(self.required_pressure, dtype=float) > IMPLAUSIBLE_PRESSURE
+        return np.broadcast_to(fast | high | ~np.isfinite(self.required_pressure), shape)
 
     @cached_property
     def models_used(self):
@@ -528,6 +553,17 @@ def _flags(result):
         out.append(
             "hemolysis index outside the Giersiepen 1990 fitted range "
             "(stress above 255 Pa or exposure outside 7-700 ms) in some part"
+        )
+    if np.any(c["measured_extrapolated"]):
+        out.append(
+            "a measured part carries a flow outside its bench flows (its fit is extrapolated)"
+            f"{count_words(c['measured_extrapolated'])}"
+        )
+    if np.any(c["implausible"]):
+        out.append(
+            "physically implausible: a mean velocity near the speed of sound in water or a "
+            f"pressure beyond any part's rating{count_words(c['implausible'])}; the line "
+            "cannot carry this flow"
         )
     if np.any(c["not_converged"]):
         out.append(

@@ -29,7 +29,7 @@ from rheoline.errors import InputRangeError
 from rheoline.model import catalogue  # noqa: F401  (read as parts.catalogue by the scenario layer)
 from rheoline.model.losses import _INCH, HOOPER_1981_2K, crane_fitting_k
 from rheoline.model.shapes import LumenShape
-from rheoline.model.validation import check_nonnegative, check_positive
+from rheoline.model.validation import check_nonnegative, check_positive, frozen_copy
 
 __all__ = [
     "Part",
@@ -61,8 +61,8 @@ def __getattr__(name):
 
 
 def _value(arr):
-    arr = np.asarray(arr, dtype=float)
-    return float(arr) if arr.ndim == 0 else arr
+    """A float, or a read-only copy of the array (the caller's array may change later)."""
+    return frozen_copy(np.asarray(arr, dtype=float))
 
 
 def _size_text(value, scale, unit):
@@ -74,6 +74,29 @@ def _size_text(value, scale, unit):
 
 def _mm(value):
     return _size_text(value, 1e3, "mm")
+
+
+#: The largest bore [m] and length [m] a lumen of a line may have: beyond any infusion,
+#: access or circuit line (common practice, no source); a larger value is almost always
+#: millimetres typed where metres are asked for (the same hint as a Vessel's radius).
+LUMEN_DIAMETER_LIMIT = 0.1
+LUMEN_LENGTH_LIMIT = 100.0
+
+
+def _check_metres(inner_diameter, length):
+    """Refuse a bore or length far beyond any line, with the unit-slip hint."""
+    for name, value, limit in (
+        ("inner_diameter", inner_diameter, LUMEN_DIAMETER_LIMIT),
+        ("length", length, LUMEN_LENGTH_LIMIT),
+    ):
+        largest = float(np.max(value))
+        if largest > limit:
+            raise InputRangeError(
+                f"{name} must be at most {limit:g} m for a lumen of a line, got {largest:g} m; "
+                "pass metres (1 mm = 1e-3 m), not millimetres",
+                field=name,
+                value=largest,
+            )
 
 
 def _set_internal_volume(part):
@@ -171,6 +194,7 @@ class Lumen(Part):
         if self.length is None:
             raise InputRangeError(f"{type(self).__name__} needs length [m], e.g. length=0.2")
         object.__setattr__(self, "length", _value(check_positive("length", self.length, "m")))
+        _check_metres(self.inner_diameter, self.length)
         object.__setattr__(
             self, "roughness", _value(check_nonnegative("roughness", self.roughness, "m"))
         )
@@ -426,11 +450,44 @@ class CheckValve(Fitting):
         super().__post_init__()
 
 
+def _check_bench_data(q, dp):
+    """Refuse bench data no real part gives: no pressure drop at all, or a pressure drop
+    that falls as the flow rises (a part's drop never falls with flow; repeated points at
+    one flow may differ)."""
+    if not np.any(dp > 0):
+        raise InputRangeError(
+            "pressure_drops are all 0: a part that takes no pressure at any flow cannot be "
+            "fitted (check the units, e.g. mmHg for Pa, or leave the part out)",
+            field="pressure_drops",
+            value=dp.tolist(),
+        )
+    order = np.lexsort((dp, q))
+    qs, ps = q[order], dp[order]
+    flows, first = np.unique(qs, return_index=True)
+    lowest = np.minimum.reduceat(ps, first)  # per distinct flow
+    highest = np.maximum.reduceat(ps, first)
+    below = np.maximum.accumulate(highest)[:-1]  # the largest drop at any lower flow
+    falls = np.flatnonzero(lowest[1:] < below)
+    if falls.size:
+        k = int(falls[0]) + 1
+        raise InputRangeError(
+            f"pressure_drops fall as the flow rises ({float(below[k - 1]):.4g} Pa at a lower "
+            f"flow, {float(lowest[k]):.4g} Pa at {float(flows[k]):.4g} m^3/s): a part's "
+            "pressure drop never falls with flow; check that flows and pressure_drops are "
+            "in the same order",
+            field="pressure_drops",
+            value=dp.tolist(),
+        )
+
+
 @dataclass(frozen=True)
 class MeasuredPart(Part):
     r"""A part known by bench pressure-flow pairs, fitted :math:`\Delta p = a Q + b Q^2`.
 
-    The coefficients are a non-negative least-squares fit.  When the test fluid's
+    The coefficients are a non-negative least-squares fit.  Bench data no real part gives
+    is refused: all pressure drops 0, or a drop that falls as the flow rises.  A line
+    solved at a flow outside the span of ``flows`` flags the part
+    (``part_conditions["measured_extrapolated"]``).  When the test fluid's
     viscosity and density are given, the laminar term scales with the line fluid's
     viscosity and the quadratic term with its density.
 
@@ -475,6 +532,7 @@ class MeasuredPart(Part):
                 f"flows and pressure_drops must be pairs of equal, non-zero length; got "
                 f"{q.size} flows and {dp.size} pressure drops"
             )
+        _check_bench_data(q, dp)
         for label in ("test_viscosity", "test_density"):
             if getattr(self, label) is not None:
                 object.__setattr__(self, label, float(check_positive(label, getattr(self, label))))
@@ -483,8 +541,8 @@ class MeasuredPart(Part):
         design = np.column_stack([q, q * q]) * weight[:, None]
         scale = np.array([1.0 / q.max(), 1.0 / q.max() ** 2])
         coef, _ = nnls(design * scale, dp * weight)
-        object.__setattr__(self, "flows", q)
-        object.__setattr__(self, "pressure_drops", dp)
+        object.__setattr__(self, "flows", frozen_copy(q))
+        object.__setattr__(self, "pressure_drops", frozen_copy(dp))
         object.__setattr__(self, "a", float(coef[0] * scale[0]))
         object.__setattr__(self, "b", float(coef[1] * scale[1]))
         if self.name is None:

@@ -26,7 +26,7 @@ from dataclasses import dataclass, fields
 import numpy as np
 
 from rheoline.errors import InputRangeError
-from rheoline.model.validation import check_nonnegative, check_positive
+from rheoline.model.validation import check_nonnegative, check_positive, frozen_copy
 
 __all__ = [
     "RheologyModel",
@@ -344,8 +344,9 @@ RHEOLOGY_MODELS = {
 
 
 def _param(arr):
-    """Store 0-d parameters as floats (readable reprs); arrays stay arrays."""
-    return float(arr) if np.ndim(arr) == 0 else arr
+    """Store 0-d parameters as floats (readable reprs); arrays as read-only copies (the
+    caller's array may change later)."""
+    return float(arr) if np.ndim(arr) == 0 else frozen_copy(arr)
 
 
 def _out(arr):

@@ -41,11 +41,43 @@ __all__ = [
     "warn_outside",
     "outside_mask",
     "scalar_or_array",
+    "frozen_copy",
+    "freeze_arrays",
 ]
 
 
 def as_float_array(name: str, value) -> np.ndarray:
-    """Return ``value`` as a float ndarray, or raise naming ``name``."""
+    """Return ``value`` as a float ndarray, or raise naming ``name``.
+
+    None, yes/no values (``True`` would count as 1) and lists holding None are refused
+    with a message that says so, not read as 1 or NaN.
+
+    Examples
+    --------
+    >>> as_float_array("head", True)
+    Traceback (most recent call last):
+    ...
+    rheoline.errors.InputRangeError: head must be a number, got True (a yes/no value, which \
+would count as 1); pass the number itself, e.g. head=1.0
+    """
+    if value is None:
+        raise InputRangeError(
+            f"{name} is None; pass a number (or leave the argument out for its default)",
+            field=name,
+            value=value,
+        )
+    kind = np.asarray(value).dtype.kind if not isinstance(value, np.ndarray) else value.dtype.kind
+    if kind == "b":
+        raise InputRangeError(
+            f"{name} must be a number, got {value!r} (a yes/no value, which would count as 1); "
+            f"pass the number itself, e.g. {name}=1.0",
+            field=name,
+            value=value,
+        )
+    if kind == "O" and any(v is None for v in np.asarray(value, dtype=object).ravel()):
+        raise InputRangeError(
+            f"{name} holds None; pass a number for every element", field=name, value=value
+        )
     try:
         arr = np.asarray(value, dtype=float)
     except (TypeError, ValueError) as exc:
@@ -248,3 +280,36 @@ def scalar_or_array(arr):
     """Return a Python float for 0-d results, the array otherwise."""
     arr = np.asarray(arr)
     return float(arr) if arr.ndim == 0 else arr
+
+
+def frozen_copy(value):
+    """A Python float for a 0-d value, else a read-only copy of the array.
+
+    Parts and fluids keep their inputs this way: a caller who changes an array after
+    building a part cannot change later solves or slip past the part's checks.
+
+    Examples
+    --------
+    >>> a = np.array([1.0, 2.0])
+    >>> kept = frozen_copy(a)
+    >>> a[0] = -5.0
+    >>> kept.tolist(), kept.flags.writeable
+    ([1.0, 2.0], False)
+    """
+    arr = np.asarray(value)
+    if arr.ndim == 0:
+        return float(arr) if arr.dtype.kind in "biuf" else value
+    out = np.array(arr)  # a copy
+    out.setflags(write=False)
+    return out
+
+
+def freeze_arrays(obj, names=None) -> None:
+    """Replace each ndarray attribute of the frozen dataclass ``obj`` (or those in
+    ``names``) with a read-only copy (:func:`frozen_copy`)."""
+    from dataclasses import fields
+
+    for name in names or [f.name for f in fields(obj)]:
+        value = getattr(obj, name, None)
+        if isinstance(value, np.ndarray):
+            object.__setattr__(obj, name, frozen_copy(value))

@@ -31,7 +31,9 @@ from dataclasses import dataclass
 import numpy as np
 
 from rheoline.errors import RheolineError, ScenarioError
+from rheoline.model.conversions import MMHG
 from rheoline.scenario.description import Axis, ScenarioSet, sweep_points
+from rheoline.scenario.schema import FLUID_OPTION_KEYS
 
 __all__ = [
     "Group",
@@ -46,6 +48,7 @@ __all__ = [
     "check_scenarios",
     "check_tolerances",
     "check_layout",
+    "check_delivery",
 ]
 
 # Part fields that select a catalogue entry, or are single values by nature: grouped on,
@@ -66,11 +69,12 @@ _SIZE_FIELDS = ("inner_diameter", "length")
 _BENCH_FIELDS = ("flows", "pressure_drops")
 #: The file's key of each argument of :func:`rheoline.model.fluids.fluid`.
 _FLUID_ARGUMENTS = {
-    "hematocrit": "hematocrit",
-    "mass_fraction": "mass_fraction",
+    **FLUID_OPTION_KEYS,
     "temperature": "temperature",
     "temperature_c": "temperature",
 }
+#: Scenario fields that hold a name: grouped on, never stacked into an array.
+_NAMES = ("fluid", "blood_model")
 
 
 @dataclass
@@ -136,7 +140,7 @@ def groups(sc):
     for i, pt in enumerate(sweep_points(sc)):
         vals, parts = _point_values(sc, pt)
         key = (
-            vals["fluid"],
+            tuple(vals.get(k) for k in _NAMES),
             tuple(tuple((k, v) for k, v in sorted(pv.items()) if k in _DISCRETE) for pv in parts),
         )
         label = ", ".join(shown for _, shown in pt.values())
@@ -146,7 +150,7 @@ def groups(sc):
         vals = {}
         for k in members[0][2]:
             col = [m[2][k] for m in members]
-            vals[k] = col[0] if k == "fluid" else np.asarray(col, dtype=float)
+            vals[k] = col[0] if k in _NAMES else np.asarray(col, dtype=float)
         parts = [_stacked_part(members, j) for j in range(len(sc.parts))]
         out.append(Group(sc, [m[0] for m in members], [m[1] for m in members], vals, parts))
     return out
@@ -165,7 +169,7 @@ def point_group(g, col):
         g.scenario,
         g.indices[col : col + 1],
         g.labels[col : col + 1],
-        {k: (v if k == "fluid" else float(v[col])) for k, v in g.values.items()},
+        {k: (v if k in _NAMES else float(v[col])) for k, v in g.values.items()},
         [{k: one(k, v) for k, v in pv.items()} for pv in g.parts],
     )
 
@@ -191,14 +195,28 @@ def build_fluid(group, source):
 
     sc = group.scenario
     name = group.values["fluid"]
-    opts = {k: group.values[k] for k in ("hematocrit", "mass_fraction") if k in group.values}
+    opts = {
+        option: group.values[key]
+        for option, key in FLUID_OPTION_KEYS.items()
+        if key in group.values
+    }
     try:
         return fluid(name, temperature_c=group.values["temperature"], **opts)
     except RheolineError as exc:
-        entry = FLUID_LIBRARY.get(name.strip().lower().replace("_", "-").replace(" ", "-"))
-        unknown = [k for k in opts if entry is not None and k not in entry.options]
+        entry = FLUID_LIBRARY.get(entry_name(name))
+        unknown = [
+            FLUID_OPTION_KEYS[k] for k in opts if entry is not None and k not in entry.options
+        ]
         field = _model_field(exc, _FLUID_ARGUMENTS, unknown[0] if unknown else "fluid")
+        if unknown:
+            takes = ", ".join(FLUID_OPTION_KEYS.get(k, k) for k in entry.options) or "none"
+            exc = f"fluid {entry_name(name)!r} has no option {unknown[0]!r} (options: {takes})"
         raise ScenarioError(str(exc), source=source, scenario=repr(sc.name), field=field) from None
+
+
+def entry_name(name):
+    """The fluid library's key of a fluid name as written."""
+    return name.strip().lower().replace("_", "-").replace(" ", "-")
 
 
 def build_part(spec, kw, name):
@@ -334,7 +352,33 @@ def check_scenarios(sset: ScenarioSet) -> None:
                 parts = build_parts(g, sset.source)
                 site_context(g, parts, sset.source)
                 check_layout(g, fl, parts, sset.source)
+                check_delivery(g, sset.source)
                 check_tolerances(g, fl, parts, sset.source)
+
+
+#: The falling drives of a delivery: (start field, end field, unit shown, SI per unit).
+_FALLING = (
+    ("head", "head_when_empty", "m", 1.0),
+    ("source_pressure", "source_pressure_when_empty", "mmHg", MMHG),
+)
+
+
+def check_delivery(group, source):
+    """Refuse a falling drive that rises as the bag empties (the delivery law's own
+    check, :func:`rheoline.model.delivery.check_falls`), at every point of the group."""
+    from rheoline.model.delivery import check_falls
+
+    v = group.values
+    for full, empty, unit, scale in _FALLING:
+        if empty in v:
+            try:
+                check_falls(
+                    full, np.asarray(v.get(full, 0.0)) / scale, empty, v[empty] / scale, unit
+                )
+            except RheolineError as exc:
+                raise ScenarioError(
+                    str(exc), source=source, scenario=repr(group.scenario.name), field=empty
+                ) from None
 
 
 def check_layout(group, fl, parts, source):

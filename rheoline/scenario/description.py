@@ -183,24 +183,33 @@ class _Group:
 class FluidSpec(_Group):
     """The fluid recipe: a library fluid's name, its temperature and its options.
 
-    ``temperature`` None is :data:`DEFAULT_TEMPERATURE_C`; ``hematocrit`` (blood fluids) and
-    ``mass_fraction`` (mixtures) are the library's options, None when not given.
+    ``temperature`` None is :data:`DEFAULT_TEMPERATURE_C`; ``hematocrit`` and
+    ``blood_model`` (blood fluids), ``mass_fraction`` or ``target_viscosity``
+    (glycerol-water) and ``albumin_concentration`` (albumin fluids) are the library's
+    options, None when not given.
     """
 
     name: Field
     temperature: Field | None = None
     hematocrit: Field | None = None
     mass_fraction: Field | None = None
+    blood_model: Field | None = None
+    albumin_concentration: Field | None = None
+    target_viscosity: Field | None = None
 
     _KEYS = {"name": "fluid"}
 
     @property
     def options(self):
-        """The options given (``{"hematocrit": ...}``), SI or :class:`Axis`."""
+        """The library options given, by the library's option name (``{"hematocrit": ...,
+        "model": ...}``: :data:`~rheoline.scenario.schema.FLUID_OPTION_KEYS`), SI or
+        :class:`Axis`."""
+        from rheoline.scenario.schema import FLUID_OPTION_KEYS
+
         return {
-            k: _si(getattr(self, k))
-            for k in ("hematocrit", "mass_fraction")
-            if getattr(self, k) is not None
+            option: _si(getattr(self, key))
+            for option, key in FLUID_OPTION_KEYS.items()
+            if getattr(self, key) is not None
         }
 
 

@@ -29,6 +29,7 @@ import difflib
 import numpy as np
 
 from rheoline.errors import ScenarioError
+from rheoline.scenario.schema import FLUID_OPTION_KEYS
 
 __all__ = [
     "fluid_table",
@@ -48,7 +49,7 @@ def fluid_table():
 
     rows = []
     for e in fluid_catalogue():
-        opts = ", ".join(e["options"]) or "-"
+        opts = ", ".join(FLUID_OPTION_KEYS.get(k, k) for k in e["options"]) or "-"
         rows.append([e["name"], e["description"], e["default_temperature_c"], opts, e["source"]])
     return pd.DataFrame(
         rows, columns=["fluid", "description", "default [degC]", "options", "source"]

@@ -178,6 +178,8 @@ FLAG_WORDS = {
     "never_delivers": "never delivers the whole volume: the flow stops first (the drive "
     "falls to the back pressure)",
     "delivery_not_computed": "time to deliver not computed",
+    "implausible": "physically implausible (velocity or pressure beyond any line)",
+    "measured_extrapolated": "measured part used outside its bench flows",
     "not_converged": "solver not converged",
     "large_catheter": lambda d: f"catheter fills {d['ratio']:.0%} of the vein diameter",
     "outside_range": "outside a correlation's range (see notes)",

@@ -130,6 +130,16 @@ def _spec(kind, unit=None, low=None, high=None, sweep=True, help="", element_kin
 
 
 _BAR = 1e5
+#: The fluid library's options (:data:`rheoline.model.fluids.FLUID_LIBRARY`) by the file
+#: key that gives each one; the reader, the builder and ``rheoline fluids`` read this dict.
+FLUID_OPTION_KEYS = {
+    "hematocrit": "hematocrit",
+    "mass_fraction": "mass_fraction",
+    "model": "blood_model",
+    "concentration": "albumin_concentration",
+    "target_viscosity": "target_viscosity",
+}
+
 TOP_FIELDS = {
     "format_version": _spec(
         "number", sweep=False, help=f"the file format version ({FORMAT_VERSION})"
@@ -165,6 +175,29 @@ SCENARIO_FIELDS = {
         0.0,
         1.0,
         help="solute mass fraction, for mixtures such as glycerol-water",
+        group="fluid",
+    ),
+    "blood_model": _spec(
+        "choice",
+        sweep=False,
+        help="blood rheology model, blood fluids only (`rheoline fluids` lists them; carreau "
+        "when not given)",
+        group="fluid",
+    ),
+    "albumin_concentration": _spec(
+        "density",
+        "g/L",
+        1.0,
+        300.0,
+        help="albumin concentration, albumin fluids only (e.g. '50 g/L' for 5 %)",
+        group="fluid",
+    ),
+    "target_viscosity": _spec(
+        "viscosity",
+        "cP",
+        1e-3 * 0.3,
+        1.5,
+        help="viscosity to mix glycerol-water for, instead of mass_fraction",
         group="fluid",
     ),
     "head": _spec(

@@ -316,9 +316,26 @@ def _choice(value, spec, at, path):
         return value.lower()
     if name == "fluid":
         _check_fluid(value, at, path)
+    if name == "blood_model":
+        return _blood_model(value, at, path)
     if name == "distribution" and value not in ("uniform", "normal"):
         at.fail(f"unknown distribution '{shown(value)}'; choose 'uniform' or 'normal'", path)
     return value
+
+
+def _blood_model(value, at, path):
+    from rheoline.model.blood import BLOOD_RHEOLOGY_MODELS
+
+    key = value.lower()
+    if key not in BLOOD_RHEOLOGY_MODELS:
+        near = difflib.get_close_matches(key, list(BLOOD_RHEOLOGY_MODELS), n=1, cutoff=0.5)
+        hint = f"; did you mean '{near[0]}'?" if near else ""
+        at.fail(
+            f"unknown blood model '{shown(value)}'{hint} Allowed: "
+            f"{', '.join(BLOOD_RHEOLOGY_MODELS)}",
+            path,
+        )
+    return key
 
 
 def _quantity_list(value, spec, at, path):
@@ -469,8 +486,24 @@ def _gauge(value, spec, at, path):
 
 
 def _tolerance_value(value, spec, at, path):
-    """``("relative", fraction)`` for a percent, else ``("absolute", width [m])``."""
+    """``("relative", fraction)`` for a percent, else ``("absolute", width [m])``.
+
+    A bare number is refused: it could be a fraction (0.05 = 5 %) or a length in the
+    field's unit, and each reading gives another answer; the message shows both spellings.
+    """
     name = path.rsplit(".", 1)[-1]
+    if not isinstance(value, str) or _unit_of(value) is None:
+        number = shown(value).strip()
+        try:
+            as_percent = f"{float(number) * 100:g} %"
+        except ValueError:
+            as_percent = "3 %"
+        at.fail(
+            f"a bare number {number} is ambiguous for a tolerance; write a unit for an absolute "
+            f"half-width ('{number} {spec.unit}') or a percent for a relative one "
+            f"('{as_percent}')",
+            path,
+        )
     if isinstance(value, str) and value.strip().endswith("%"):
         try:
             frac = parse_quantity(value, "dimensionless", field=name)
