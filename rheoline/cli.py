@@ -25,6 +25,7 @@ import sys
 import warnings
 
 from rheoline.errors import RheolineError
+from rheoline.scenario.interrupts import PackInterrupted, interrupt_guard
 
 __all__ = ["main", "build_parser"]
 
@@ -407,7 +408,9 @@ def main(argv=None) -> int:
         if not getattr(args, "func", None):
             parser.print_help(out)
             return EXIT_BAD_INPUT
-        with warnings.catch_warnings():
+        if getattr(args, "out", None) is not None and not args.out.strip():
+            raise _BadUsage("--out is empty; give the name of a new folder, e.g. --out pack")
+        with warnings.catch_warnings(), interrupt_guard():
             warnings.simplefilter("ignore")  # results carry their flags; no warning text
             return args.func(args, out)
     except _BadUsage as exc:
@@ -419,6 +422,9 @@ def main(argv=None) -> int:
     except KeyboardInterrupt:
         print("rheoline: interrupted", file=sys.stderr)
         return 130
+    except PackInterrupted as exc:  # SIGTERM or SIGHUP before any pack was in place
+        print(f"rheoline: stopped by signal {exc.signum}", file=sys.stderr)
+        return 128 + int(exc.signum)
     except BrokenPipeError:
         return EXIT_OK
     except Exception as exc:  # noqa: BLE001 - the last line of defence: no traceback

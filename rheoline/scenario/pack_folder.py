@@ -26,6 +26,7 @@ from pathlib import Path
 
 from rheoline.errors import PackExistsError  # re-exported from here
 from rheoline.scenario.files import check_output_folder
+from rheoline.scenario.interrupts import PackInterrupted, interrupt_guard, mark_placed
 
 __all__ = [
     "PACK_FILES",
@@ -57,8 +58,9 @@ def write_folder_atomically(out: Path, force: bool, fill: Callable[[Path], None]
     The temporary folder is made beside ``out`` (same file system, so the rename is
     atomic).  When ``out`` exists it is checked again once the new folder is complete (it
     may have changed meanwhile), moved aside, and its own files deleted one by one.  Any
-    exception (an interrupt included) removes the temporary folder and puts an earlier pack
-    back where it was.
+    exception (an interrupt, SIGTERM or SIGHUP included: :func:`interrupt_guard`) removes
+    the temporary folder and puts an earlier pack back where it was; once the new pack is
+    in place a signal no longer interrupts the write.
 
     Raises
     ------
@@ -70,6 +72,12 @@ def write_folder_atomically(out: Path, force: bool, fill: Callable[[Path], None]
     check_target(out, force)
     parent = out.parent if str(out.parent) else Path(".")
     parent.mkdir(parents=True, exist_ok=True)
+    with interrupt_guard():
+        return _write_and_swap(out, force, fill, parent)
+
+
+def _write_and_swap(out, force, fill, parent):
+    """The body of :func:`write_folder_atomically`, under its signal guard."""
     tmp = Path(tempfile.mkdtemp(prefix=f".{out.name}.", suffix=".partial", dir=parent))
     old = old_files = None
     try:
@@ -84,11 +92,15 @@ def write_folder_atomically(out: Path, force: bool, fill: Callable[[Path], None]
             os.rmdir(old)
             os.replace(out, old)
         os.replace(tmp, out)
-    except BaseException:
-        shutil.rmtree(tmp, ignore_errors=True)  # our own temporary folder
-        if old is not None and old.exists() and not out.exists():
-            os.replace(old, out)
-        raise
+        mark_placed()
+    except BaseException as exc:
+        if not os.path.lexists(tmp) and isinstance(exc, (KeyboardInterrupt, PackInterrupted)):
+            mark_placed()  # a signal just after the rename: the pack is in place
+        else:
+            shutil.rmtree(tmp, ignore_errors=True)  # our own temporary folder
+            if old is not None and old.exists() and not out.exists():
+                os.replace(old, out)
+            raise
     if old is not None:
         _remove_old_pack(old, old_files)
     return out
