@@ -22,7 +22,9 @@ Run ``python benchmarks/run.py [--n N] [--json]`` from the repository root after
    scenario at a time;
 6. ``widget_update_ms``: one control change in the line view and the comparison view
    (7 candidates x 200 points, 2,000-sample tolerance band), median of 20;
-7. ``import_model_ms``: importing the model layer in a fresh interpreter.
+7. ``import_model_ms``: importing the model layer in a fresh interpreter;
+8. ``load_file``: reading a valid 200-scenario, 40-part scenario file of about 770 KB
+   (``benchmarks/load_file.py``): seconds and peak memory against 2 s and 300 MB.
 
 Times are medians of repeats (wall clock, ``time.perf_counter``, garbage collector off).
 The machine, its load average and numpy's BLAS are printed beside the figures; the ratios
@@ -49,6 +51,7 @@ import numpy as np
 
 sys.path.insert(0, str(Path(__file__).resolve().parent))
 
+import load_file as load_file_case  # noqa: E402  (the script's own folder)
 import network as network_case  # noqa: E402  (the script's own folder)
 import scalar_reference as scalar  # noqa: E402
 import transient as transient_case  # noqa: E402  (the script's own folder)
@@ -447,6 +450,24 @@ def targets(report):
             report["import_model_ms"] < IMPORT_TARGET,
         )
     )
+    big = report.get("load_file")
+    if big:  # reading a large scenario file (benchmarks/load_file.py)
+        out.append(
+            (
+                "load_file.load_s",
+                big["load_s"],
+                f"< {big['target_s']:g}",
+                big["load_s"] < big["target_s"],
+            )
+        )
+        out.append(
+            (
+                "load_file.peak_mb",
+                big["peak_mb"],
+                f"< {big['target_mb']:g}",
+                big["peak_mb"] < big["target_mb"],
+            )
+        )
     return out
 
 
@@ -473,6 +494,10 @@ def figures(report):
     if tr:  # start-up and time to alarm (benchmarks/transient.py)
         for key in ("speedup_vs_scenario_loop", "vector_solve_ms", "max_relative_difference"):
             flat[f"transient.{key}"] = float(tr[key])
+    big = report.get("load_file")
+    if big:  # reading a large scenario file (benchmarks/load_file.py)
+        for key in ("load_s", "peak_mb"):
+            flat[f"load_file.{key}"] = float(big[key])
     return flat
 
 
@@ -499,6 +524,7 @@ def run(n=100_000, repeats=7, widget_repeats=20, import_repeats=7, subset_scale=
         "import_model_ms": import_ms(import_repeats),
         "network": network_case.run(n, min(3, repeats), subset_scale),
         "transient": transient_case.run(n, 1, subset_scale),
+        "load_file": load_file_case.run(min(3, repeats)),
     }
     report["load_average_after"] = load_average()
     report["figures"] = figures(report)
@@ -583,6 +609,13 @@ def table(report):
             f"alarm: {tr['vector_solve_ms']:.0f} ms; one scenario at a time "
             f"{tr['loop_ms_per_scenario']:.0f} ms each; ratio {tr['speedup_vs_scenario_loop']:.0f}x; "
             f"max rel diff {tr['max_relative_difference']:.1e}"
+        )
+    big = report.get("load_file")
+    if big:
+        out.append(
+            f"scenario file (benchmarks/load_file.py), {big['file_kb']:.0f} KB, "
+            f"{big['scenarios']} scenarios x {big['parts'] // big['scenarios']} parts: read in "
+            f"{big['load_s']:.2f} s, peak {big['peak_mb']:.0f} MB (Python allocations)"
         )
     out.append("")
     w = report["widget_update_ms"]

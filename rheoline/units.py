@@ -239,6 +239,34 @@ def _checked_kind(kind):
 
 def _units_of(unit, kind: str, field: str):
     """``unit`` of ``kind`` as a pint Unit, or a UnitError naming the field, kind and the units allowed."""
+    if isinstance(unit, str):
+        try:
+            return _checked_unit(unit, kind)[0]
+        except UnitError:
+            pass  # not cached: checked again below, for the message naming the field
+    return _parse_unit(unit, kind, field)
+
+
+@functools.lru_cache(maxsize=1024)
+def _checked_unit(unit: str, kind: str):
+    """``(pint Unit, factor)`` of a unit string that passed every check for ``kind``.
+
+    The cache (bounded) keys on the exact text and the kind, so a unit checked for one
+    kind is never taken for another; a unit that fails a check raises and is not cached,
+    so an unsafe or wrong-kind unit is refused every time.  ``factor`` is the SI value of
+    one unit (``SI = number * factor``), or None for a unit with an offset (degF, K),
+    which pint converts each time.
+    """
+    parsed = _parse_unit(unit, kind, "value")
+    ureg = registry()
+    si_unit = KINDS[kind][0]
+    one = ureg.Quantity(1.0, parsed).to(si_unit).magnitude
+    zero = ureg.Quantity(0.0, parsed).to(si_unit).magnitude
+    return parsed, (float(one) if zero == 0.0 else None)
+
+
+def _parse_unit(unit, kind: str, field: str):
+    """The uncached check and parse of :func:`_units_of` (a UnitError naming ``field``)."""
     import pint
 
     ureg = registry()
@@ -268,6 +296,9 @@ def _units_of(unit, kind: str, field: str):
 def from_unit(number, unit: str, kind: str, field: str = "value"):
     """Convert ``number`` given in ``unit`` to SI for ``kind`` (vectorized over number)."""
     parsed = _units_of(unit, kind, field)
+    factor = _checked_unit(unit, kind)[1]  # cached just now by _units_of
+    if factor is not None and isinstance(number, (int, float)) and not isinstance(number, bool):
+        return number * factor
     return registry().Quantity(number, parsed).to(KINDS[kind][0]).magnitude
 
 

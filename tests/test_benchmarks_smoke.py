@@ -51,6 +51,8 @@ EXPECTED_FIGURES = [
     "transient.speedup_vs_scenario_loop",
     "transient.vector_solve_ms",
     "transient.max_relative_difference",
+    "load_file.load_s",
+    "load_file.peak_mb",
 ]
 
 

@@ -132,3 +132,25 @@ def test_conventional_mmhg_is_mercury_density_times_standard_gravity():
 
     assert MMHG == pytest.approx(13595.1 * 9.80665 * 1e-3, rel=1e-15)
     assert MMHG == pytest.approx(pint.UnitRegistry().Quantity(1, "mmHg").to("Pa").magnitude)
+
+
+def test_the_unit_cache_refuses_what_the_parser_refuses_every_time():
+    """Parsed units are cached per (text, kind) for speed (benchmarks/load_file.py); a unit
+    of another kind, an unknown or unsafe one is refused on every call, with the field of
+    that call, and a cached conversion gives pint's own value to the last bit."""
+    from rheoline.errors import UnitError
+    from rheoline.units import KINDS, _units_of, from_unit, parse_quantity, registry
+
+    assert parse_quantity("300 mmHg", "pressure") == parse_quantity("300 mmHg", "pressure")
+    for _ in range(2):
+        with pytest.raises(UnitError, match="first: 'mmHg' is not a unit of length"):
+            parse_quantity("300 mmHg", "length", field="first")
+        with pytest.raises(UnitError, match="second: unknown unit '9.9.9'"):
+            parse_quantity("1 9.9.9", "length", field="second")
+        with pytest.raises(UnitError, match="third: unknown unit"):
+            parse_quantity("1 m**99999", "length", field="third")
+    for kind, unit in [("pressure", "psi"), ("flow", "mL/h"), ("length", "Fr"), ("viscosity", "cP")]:
+        for x in (0.1, 1.0, 22.5, 2.0 / 3.0, 7.3e5):
+            exact = registry().Quantity(x, _units_of(unit, kind, "f")).to(KINDS[kind][0]).magnitude
+            assert from_unit(x, unit, kind) == exact
+    assert parse_quantity("98.6 degF", "temperature") == pytest.approx(37.0)  # offset: pint
