@@ -149,7 +149,12 @@ def test_the_unit_cache_refuses_what_the_parser_refuses_every_time():
             parse_quantity("1 9.9.9", "length", field="second")
         with pytest.raises(UnitError, match="third: unknown unit"):
             parse_quantity("1 m**99999", "length", field="third")
-    for kind, unit in [("pressure", "psi"), ("flow", "mL/h"), ("length", "Fr"), ("viscosity", "cP")]:
+    for kind, unit in [
+        ("pressure", "psi"),
+        ("flow", "mL/h"),
+        ("length", "Fr"),
+        ("viscosity", "cP"),
+    ]:
         for x in (0.1, 1.0, 22.5, 2.0 / 3.0, 7.3e5):
             exact = registry().Quantity(x, _units_of(unit, kind, "f")).to(KINDS[kind][0]).magnitude
             assert from_unit(x, unit, kind) == exact
