@@ -476,21 +476,41 @@ def test_line_view_flags_a_hemolysis_concern_for_blood_at_high_wall_stress():
     assert "hemolysis concern" in view.results.value and "[!]" in view.results.value
 
 
-def test_app_makes_a_tabs_figurewidgets_only_when_the_tab_opens(app):
-    # each FigureWidget makes the browser start plotly's widget code under a short deadline
-    # (anywidget allows 2 s), so only the open tab's charts are widgets
-    import plotly.graph_objects as go
+def _chart_trace(view, name, index, axis):
+    """What the page receives for a chart's trace: the chart widget's synced state."""
+    (output,) = view.charts[name].outputs
+    return np.asarray(output["data"]["application/vnd.plotly.v1+json"]["data"][index][axis])
 
-    assert all(isinstance(f, go.FigureWidget) for f in app.views["line"].figures.values())
+
+def test_app_sends_a_tabs_charts_only_when_the_tab_opens(app):
     blood = app.views["blood"]
-    assert not any(isinstance(f, go.FigureWidget) for f in blood.figures.values())
-    blood.set_control("hematocrit", 0.35)  # updates work on the plain figures too
+    assert all(chart.outputs for chart in app.views["line"].charts.values())
+    assert not any(chart.outputs for chart in blood.charts.values())  # nothing sent yet
+    blood.set_control("hematocrit", 0.35)  # updates work before the tab opens
     app.tabs.selected_index = list(app.views).index("blood")
-    assert all(isinstance(f, go.FigureWidget) for f in blood.figures.values())
     from rheoline.widgets.blood_view import FAHRAEUS_DIAMETERS
 
     expected = rheoline.pries_1992_relative_viscosity(FAHRAEUS_DIAMETERS, 0.35)
-    assert np.allclose(blood.figure_box("fahraeus").children[0].data[0].y, expected)
+    assert np.allclose(_chart_trace(blood, "fahraeus", 0, "y"), expected, rtol=1e-12)
+
+
+def test_a_chart_never_shows_stale_data(app):
+    # the page draws a chart from the chart's synced state alone; after every update that
+    # state is the whole current figure (a FigureWidget kept its first state there and sent
+    # changes as one-off messages, lost when its browser code started late)
+    line = app.views["line"]
+    fluid = rheoline.fluid("saline-0.9", temperature_c=22.0)  # the app's demo line
+    demo = rheoline.Line(
+        [rheoline.Tube(inner_diameter=3.0e-3, length=1.8), rheoline.Catheter(gauge=18)]
+    )
+    for head_cm in (80.0, 120.0, 95.0):
+        line.set_control("head_cm", head_cm)
+        result = demo.solve(fluid, head=head_cm / 100.0, source_pressure=0.0)
+        budget = np.append(result.part_pressure_drops, result.exit_pressure_drop) / MMHG
+        assert np.allclose(_chart_trace(line, "budget", 0, "x"), budget, rtol=1e-9)
+        assert _chart_trace(line, "drive", 1, "y") == pytest.approx([result.flow / ML_PER_MIN])
+    # a chart sent again with nothing changed sends nothing
+    assert not line.charts["budget"].draw()
 
 
 def test_the_line_views_line_joins_the_comparison(app):

@@ -2,7 +2,8 @@
 
 A view is an ``ipywidgets.VBox`` whose first child is the caution banner.  Its
 controls live in ``view.controls`` (name -> widget) and its figures in
-``view.figures`` (name -> plotly ``FigureWidget``).  Each control is wired to the
+``view.figures`` (name -> plotly ``Figure``), each shown by a
+:class:`~rheoline.widgets.figures.Chart` in ``view.charts``.  Each control is wired to the
 handlers of the figures it affects only, so a change recomputes what depends on
 it and nothing else.
 
@@ -120,9 +121,9 @@ class View(widgets.VBox):
     """Base of the views: banner, body, message area, guarded and timed updates.
 
     Subclasses build ``self.controls`` and ``self.figures`` (plain ``go.Figure``) in
-    their constructor, run the first update, call :meth:`_widgetize` (a FigureWidget
-    shown by Voila must be complete when it is built), then :meth:`_finish` with the
-    body, placing each figure with :meth:`figure_box`.
+    their constructor, run the first update, call :meth:`_widgetize`, then
+    :meth:`_finish` with the body, placing each figure with :meth:`figure_box`.  After
+    every update (:meth:`_run`) each changed figure is sent whole to its chart.
     """
 
     title = "view"
@@ -134,8 +135,9 @@ class View(widgets.VBox):
         self.last_update_seconds = float("nan")
         self.last_update_ok = True  # False while the last update ended in an error flag
         self._paused = False  # True while a view sets several controls at once
-        self._shown = False  # figures are FigureWidgets in their boxes
+        self._shown = False  # charts send their figures (after show_figures)
         self._figure_boxes: dict = {}
+        self.charts: dict = {}  # name -> Chart showing self.figures[name]
         self.banner = caution_banner()
         self.messages = widgets.HTML(value="")
         self.messages.add_class("rl-messages")
@@ -144,35 +146,37 @@ class View(widgets.VBox):
         self.add_class("rl-view")
 
     def figure_box(self, name: str) -> widgets.Box:
-        """The box in the layout that holds figure ``name`` once it is a FigureWidget."""
+        """The box in the layout that holds figure ``name`` (a :class:`Chart`)."""
         if name not in self._figure_boxes:
-            box = widgets.Box(layout=widgets.Layout(min_height="60px"))
+            from rheoline.widgets.figures import Chart
+
+            self.charts[name] = Chart(self.figures[name], layout=widgets.Layout(width="100%"))
+            box = widgets.Box([self.charts[name]], layout=widgets.Layout(min_height="60px"))
             box.add_class(f"rl-figure-{name}")
             self._figure_boxes[name] = box
             if self._shown:
-                box.children = [self.figures[name]]
+                self.charts[name].draw()
         return self._figure_boxes[name]
 
     def _widgetize(self, lazy: bool = False):
-        """Turn the filled figures into FigureWidgets now, or at :meth:`show_figures`."""
+        """Show the figures now, or at :meth:`show_figures` (``lazy``)."""
         if not lazy:
             self.show_figures()
 
     def show_figures(self):
-        """Make the figures FigureWidgets (their constructor carries the current state).
+        """Show the charts: from now on each update sends each changed figure whole.
 
-        Each FigureWidget makes the browser load and start plotly's widget code within a
-        short deadline, so the app does this per tab, when the tab is first opened, rather
-        than for every chart at once when the page loads.
+        The app does this per tab, when the tab is first opened, so a tab not looked at
+        sends nothing to the page.
         """
-        import plotly.graph_objects as go
-
-        for name, fig in self.figures.items():
-            if not isinstance(fig, go.FigureWidget):
-                self.figures[name] = go.FigureWidget(fig)
         self._shown = True
-        for name, box in self._figure_boxes.items():
-            box.children = [self.figures[name]]
+        self.redraw()
+
+    def redraw(self):
+        """Send every changed figure to its chart (nothing before :meth:`show_figures`)."""
+        if self._shown:
+            for chart in self.charts.values():
+                chart.draw()
 
     def _finish(self, body: list):
         self.children = [self.banner, self.status, *body, self.messages]
@@ -257,6 +261,7 @@ class View(widgets.VBox):
             if issubclass(w.category, RheolineWarning)
         ]
         self.messages.value = "".join(notes)
+        self.redraw()
         self.last_update_ok = ok
         self.last_update_seconds = time.perf_counter() - start
         return ok

@@ -1,20 +1,79 @@
-"""Figure builders shared by the views (initial state set here, in the constructor).
+"""Figure builders shared by the views, and :class:`Chart`, the widget that shows one.
 
-A FigureWidget that Voila shows must be complete when the page connects: state
-changed in the kernel after the widget is built but before the page connects does
-not reach the page.  So a view builds plain ``go.Figure`` objects with every trace
-and axis in place, fills them with its first update, and only then turns them into
-FigureWidgets (:meth:`rheoline.widgets.base.View._widgetize`), whose constructor
-carries the filled state; later updates set trace data inside ``fig.batch_update()``.
+A view keeps plain ``go.Figure`` objects (``view.figures``) and sets their trace data
+inside ``fig.batch_update()``.  A :class:`Chart` shows a figure on the page as a whole:
+after each update it hands the browser the figure's complete current state (plotly's
+JSON in an ``Output`` widget, drawn by plotly's renderer, which the page loads once), so
+what a chart shows never depends on an earlier message having arrived.
+
+Why not plotly's ``FigureWidget``: it sends each change as a one-off message
+(``_py2js_restyle`` set, then reset to None) that the browser applies to its copy of
+the figure, and its synced state (``_widget_data``) keeps the figure as it was built.
+Its browser code (an anywidget module carrying plotly.js, about 5 MB per chart) takes
+seconds to start under load; messages sent before it listens are lost, and the chart
+then shows its first state beside updated numbers.
 """
 
 from __future__ import annotations
 
+import base64
+import json
+
+import ipywidgets as widgets
+import numpy as np
 import plotly.graph_objects as go
+import plotly.io as pio
 
 from rheoline.widgets.style import PALETTE
 
-__all__ = ["BASE_LAYOUT", "curve_and_point_figure"]
+__all__ = ["BASE_LAYOUT", "Chart", "PLOTLY_MIME", "curve_and_point_figure"]
+
+#: The MIME type of plotly's renderer (the ``jupyterlab-plotly`` extension Voila loads).
+PLOTLY_MIME = "application/vnd.plotly.v1+json"
+#: Chart options: fill the container's width and follow it, no plotly logo or link out.
+CHART_CONFIG = {"responsive": True, "displaylogo": False, "showLink": False}
+
+
+class Chart(widgets.Output):
+    """One figure on the page, always showing the figure's current state.
+
+    Parameters
+    ----------
+    figure : plotly.graph_objects.Figure
+        The figure to show; :meth:`draw` shows its state now.
+
+    Notes
+    -----
+    The state sent is the whole figure (``outputs``, a synced trait), so a page that
+    connects late, a chart drawn late, or a lost message never leaves old data on screen.
+    A draw with nothing changed sends nothing.
+    """
+
+    def __init__(self, figure: go.Figure, **kwargs):
+        super().__init__(**kwargs)
+        self.figure = figure
+        self.add_class("rl-chart")
+        self._sent = None
+
+    def draw(self) -> bool:
+        """Send the figure's current state if it changed; True when it was sent."""
+        text = pio.to_json(self.figure, validate=False)
+        if text == self._sent:
+            return False
+        spec = json.loads(text, object_hook=_plain_array)
+        spec["config"] = CHART_CONFIG
+        title = spec.get("layout", {}).get("title", {})
+        plain = title.get("text", "chart") if isinstance(title, dict) else str(title)
+        self.outputs = (
+            {
+                "output_type": "display_data",
+                "data": {PLOTLY_MIME: spec, "text/plain": plain},
+                "metadata": {},
+            },
+        )
+        self._sent = text
+        return True
+
 
 #: Layout shared by the views' charts.
 BASE_LAYOUT = dict(
@@ -23,6 +82,19 @@ BASE_LAYOUT = dict(
     template="simple_white",
     legend=dict(orientation="h", y=-0.25),
 )
+
+
+def _plain_array(obj: dict):
+    """A typed array plotly encoded (``{"dtype": "f8", "bdata": ...}``) as a plain list,
+    so the page's copy of a trace reads as numbers; other objects unchanged."""
+    if obj.keys() == {"dtype", "bdata"}:
+        values = np.frombuffer(base64.b64decode(obj["bdata"]), dtype=np.dtype(obj["dtype"]))
+        return values.tolist()
+    if obj.keys() == {"dtype", "bdata", "shape"}:
+        values = np.frombuffer(base64.b64decode(obj["bdata"]), dtype=np.dtype(obj["dtype"]))
+        shape = [int(n) for n in str(obj["shape"]).split(",")]
+        return values.reshape(shape).tolist()
+    return obj
 
 
 def curve_and_point_figure(
