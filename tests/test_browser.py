@@ -21,13 +21,8 @@ skips on a developer's machine; under CI (the ``CI`` variable set) it fails.
 from __future__ import annotations
 
 import os
-import re
 import shutil
-import signal
-import socket
-import subprocess
 import sys
-import time
 import urllib.error
 import urllib.parse
 import urllib.request
@@ -39,19 +34,13 @@ import pytest
 import rheoline
 from rheoline.units import ML_PER_MIN, MMHG
 
+sys.path.insert(0, str(Path(__file__).resolve().parents[1] / "benchmarks"))
+import served_page  # noqa: E402  (the launcher and Chromium, shared with the page benchmark)
+
+CHROMIUM = served_page.CHROMIUM
+
 pytestmark = [pytest.mark.browser, pytest.mark.timeout(600)]
 
-CHROMIUM = Path("/usr/bin/chromium")
-CHROMIUM_ARGS = [
-    "--headless",
-    "--no-sandbox",
-    "--disable-gpu",
-    "--disable-quic",
-    "--no-first-run",
-    "--disable-background-networking",
-    "--disable-component-update",
-    "--disable-sync",
-]
 PAGE_TIMEOUT_MS = 180_000  # the first load starts a kernel and builds every view
 UPDATE_TIMEOUT_MS = 180_000  # the machine is shared: waits are generous, never asserted
 
@@ -64,12 +53,6 @@ def _need_chromium():
     pytest.skip(f"{CHROMIUM} is missing (install Debian's chromium to run the browser test)")
 
 
-def _free_port() -> int:
-    with socket.socket(socket.AF_INET, socket.SOCK_STREAM) as s:
-        s.bind(("127.0.0.1", 0))
-        return s.getsockname()[1]
-
-
 LOOPBACK_HOSTS = {"127.0.0.1", "[::1]", "::1", "localhost"}
 
 
@@ -77,64 +60,23 @@ LOOPBACK_HOSTS = {"127.0.0.1", "[::1]", "::1", "localhost"}
 def served_app(tmp_path_factory):
     """Start the app with the launcher, as a user does; yield (link, workspace); stop it."""
     _need_chromium()
-    from rheoline.widgets.serve import serve_environment
-
-    port = _free_port()
     runtime = tmp_path_factory.mktemp("jupyter-runtime")
     workspace = tmp_path_factory.mktemp("browser") / "workspace"
-    env = {**serve_environment(), "JUPYTER_RUNTIME_DIR": str(runtime)}
-    env.pop("JUPYTER_TOKEN", None)
-    log = open(runtime / "voila.log", "w")  # noqa: SIM115 (closed below)
-    process = subprocess.Popen(
-        [sys.executable, "-m", "rheoline.widgets.serve", "--port", str(port)]
-        + ["--workspace", str(workspace)],
-        stdout=subprocess.PIPE,
-        stderr=log,
-        text=True,
-        env=env,
-        start_new_session=True,
-    )
-    printed = process.stdout.readline()
-    found = re.search(r"(http://127\.0\.0\.1:(\d+)/\?token=\S+)", printed)
-    if not found or int(found.group(2)) != port:
-        process.kill()
-        pytest.fail(f"the launcher printed no link to port {port}: {printed!r}")
-    url = found.group(1)
-    deadline = time.monotonic() + 90
-    while True:  # the icon stylesheet answers once the server is up (no kernel started)
-        try:
-            urllib.request.urlopen(url.split("?")[0] + "voila/static/rheoline-icons.css").close()
-            break
-        except OSError:
-            pass
-        if process.poll() is not None or time.monotonic() > deadline:
-            log.close()
-            text = (runtime / "voila.log").read_text()
-            process.kill()
-            pytest.fail(f"Voila did not start on {url}:\n{text[-3000:]}")
-        time.sleep(0.5)
-    yield url, workspace
-    process.send_signal(signal.SIGTERM)  # the launcher is Voila: this stops the server
     try:
-        process.wait(timeout=30)
-    except subprocess.TimeoutExpired:
-        os.killpg(process.pid, signal.SIGKILL)
-    log.close()
+        with served_page.served_app(
+            workspace, runtime / "voila.log", {"JUPYTER_RUNTIME_DIR": str(runtime)}
+        ) as url:
+            yield url, workspace
+    except served_page.LaunchError as exc:
+        pytest.fail(str(exc))
 
 
 @pytest.fixture()
 def page(served_app, tmp_path):
     """The app's page in Chromium; every request it makes is kept in ``page.requests``."""
-    playwright_api = pytest.importorskip("playwright.sync_api")
+    pytest.importorskip("playwright.sync_api")
     url, _ = served_app
-    with playwright_api.sync_playwright() as p:
-        context = p.chromium.launch_persistent_context(
-            str(tmp_path / "chromium-profile"),
-            executable_path=str(CHROMIUM),
-            args=CHROMIUM_ARGS,
-            headless=True,
-            viewport={"width": 1400, "height": 1300},
-        )
+    with served_page.browser(tmp_path / "chromium-profile") as context:
         seen = []  # recorded, not intercepted: routing every request through this process
         # delays plotly's widget code past anywidget's start-up deadline
         context.on("request", lambda request: seen.append(request.url))
@@ -148,7 +90,6 @@ def page(served_app, tmp_path):
             ".rl-view .js-plotly-plot", state="attached", timeout=PAGE_TIMEOUT_MS
         )
         yield page
-        context.close()
 
 
 # --- what the Python API says, built here from the public names, not from the widgets ----

@@ -146,7 +146,8 @@ def _app_icons():
 
     from rheoline.widgets.app import build_app
 
-    stack, icons = [build_app(workspace=Path("unused"))], set()
+    app = build_app(workspace=Path("unused"))
+    stack, icons = list(app.views.values()), set()  # every tab's view, built
     while stack:
         w = stack.pop()
         if isinstance(w, (widgets.Button, widgets.FileUpload, widgets.ToggleButton)) and w.icon:
@@ -258,10 +259,13 @@ def test_the_served_page_needs_its_token_and_stopping_the_launcher_stops_it(laun
 @pytest.mark.timeout(600)
 def test_the_kernel_of_a_page_nobody_keeps_open_is_culled(launched):
     process, url = launched
-    assert _get(url) == 200  # renders the app in a kernel; no browser ever connects to it
-    assert len(_kernels_of(process.pid)) >= 1
     deadline = time.monotonic() + 300
-    while _kernels_of(process.pid):
+    while not _kernels_of(process.pid):  # the kernel kept ready, with the app built
+        assert time.monotonic() < deadline, "no kernel was made ready for the page"
+        time.sleep(0.5)
+    ready = set(_kernels_of(process.pid))
+    assert _get(url) == 200  # the page takes the ready kernel; no browser ever connects to it
+    while ready & set(_kernels_of(process.pid)):
         assert time.monotonic() < deadline, "the idle kernel was never shut down"
         time.sleep(1)
     assert process.poll() is None  # the server itself goes on

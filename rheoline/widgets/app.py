@@ -10,9 +10,11 @@ carries its own caution banner at the top, so the banner is on screen whichever 
 
 from __future__ import annotations
 
+from collections.abc import Mapping
+
 import ipywidgets as widgets
 
-__all__ = ["App", "build_app", "demo_document"]
+__all__ = ["App", "TAB_TITLES", "Views", "build_app", "demo_document"]
 
 
 def demo_document():
@@ -41,8 +43,57 @@ def demo_document():
     )
 
 
+#: Each tab's title, shown before its view is built (a view's ``title`` says the same).
+TAB_TITLES = {"line": "Line", "compare": "Compare", "blood": "Blood and vessels", "files": "Files"}
+
+
+class Views(Mapping):
+    """The app's views by tab name, each built the first time it is asked for.
+
+    ``views[name]`` builds the view if it is not built yet (a view that fails to build is
+    a stand-in that says why, and the error is kept in ``app.failures``);
+    :meth:`built` answers without building.
+    """
+
+    def __init__(self, builders: dict):
+        self._builders = builders
+        self._built: dict = {}
+        self.failures: dict = {}
+
+    def __getitem__(self, name):
+        if name not in self._built:
+            builder = self._builders[name]  # KeyError for a tab the app does not have
+            self._built[name] = self._build(name, builder)
+        return self._built[name]
+
+    def __iter__(self):
+        return iter(self._builders)
+
+    def __len__(self):
+        return len(self._builders)
+
+    def built(self, name):
+        """The view of tab ``name`` if it is built, else None."""
+        return self._built.get(name)
+
+    def _build(self, name, builder):
+        """Build one view; a view that fails shows why instead of taking the app down."""
+        try:
+            return builder()
+        except Exception as exc:  # noqa: BLE001 - shown on the page, and kept for tests
+            from rheoline.widgets.base import View
+
+            self.failures[name] = exc
+            text = f"the {name} view could not be built: {type(exc).__name__}: {exc}"
+            return View.stand_in(name, text)
+
+
 class App(widgets.VBox):
     """The views in tabs: line, comparison, blood and vessels, files.
+
+    Only the first tab's view is built with the app; each other tab's view is built when
+    the tab is first opened (or first asked for in ``app.views``), so the page loads only
+    what it shows.
 
     Parameters
     ----------
@@ -57,61 +108,61 @@ class App(widgets.VBox):
         super().__init__()
         self.add_class("rl-app")
         self.document = demo_document()
-        self.views = {}
-        self.failures = {}
-        builders = {"line": self._line_view, "compare": self._comparison_view, "blood": _blood}
-        first = True
-        for name in tabs:
-            if name in builders:
-                self.views[name] = self._build(name, lambda b=builders[name], f=first: b(not f))
-                first = False
-        if "files" in tabs:
-            self.views["files"] = self._build(
-                "files",
-                lambda: _files(
-                    self.views.get("line"), self.views.get("compare"), self.document, workspace
-                ),
-            )
-        self.tabs = widgets.Tab(children=list(self.views.values()))
-        self.tabs.titles = tuple(view.title for view in self.views.values())
+        builders = {
+            "line": lambda: self._line_view(),
+            "compare": lambda: self._comparison_view(),
+            "blood": _blood,
+            "files": lambda: _files(  # a load's summary asks these views (built then)
+                lambda: self.views.get("line"),
+                lambda: self.views.get("compare"),
+                self.document,
+                workspace,
+            ),
+        }
+        self.views = Views({name: builders[name] for name in tabs if name in builders})
+        self.failures = self.views.failures
+        self._slots = {}
+        for name in self.views:
+            self._slots[name] = widgets.VBox()
+            self._slots[name].add_class(f"rl-tab-{name}")
+        self.tabs = widgets.Tab(children=list(self._slots.values()))
+        self.tabs.titles = tuple(TAB_TITLES[name] for name in self.views)
         self.tabs.add_class("rl-tabs")
         self.tabs.observe(self._opened, names="selected_index")
-        header = widgets.HTML("<h2 style='margin:4px 0'>rheoline: infusion lines and vessels</h2>")
+        header = widgets.HTML("<h2 class='rl-title'>rheoline: infusion lines and vessels</h2>")
         self.children = [header, self.tabs]
+        if self._slots:
+            self._show(next(iter(self.views)))
 
-    def _line_view(self, lazy=False):
+    def _line_view(self):
         from rheoline.widgets.line_view import LineView
 
-        return LineView(lazy=lazy, document=self.document)
+        return LineView(lazy=True, document=self.document)
 
-    def _comparison_view(self, lazy=False):
+    def _comparison_view(self):
         from rheoline.widgets.compare_view import ComparisonView
 
-        line = self.views.get("line")
+        line = self.views.built("line")
         source = None if line is None else (lambda: line.scenario)
-        return ComparisonView(lazy=lazy, line_source=source, document=self.document)
+        return ComparisonView(lazy=True, line_source=source, document=self.document)
 
     def _opened(self, change):
-        """A tab's charts become FigureWidgets when the tab is first opened."""
+        """A tab's view is built, placed and drawn when the tab is first opened."""
         if change.new is not None:
-            list(self.views.values())[change.new].show_figures()
+            self._show(list(self.views)[change.new])
 
-    def _build(self, name, builder):
-        """Build one view; a view that fails shows why instead of taking the app down."""
-        try:
-            return builder()
-        except Exception as exc:  # noqa: BLE001 - shown on the page, and kept for tests
-            from rheoline.widgets.base import View
-
-            self.failures[name] = exc
-            text = f"the {name} view could not be built: {type(exc).__name__}: {exc}"
-            return View.stand_in(name, text)
+    def _show(self, name):
+        view = self.views[name]
+        slot = self._slots[name]
+        if not slot.children:
+            slot.children = [view]
+        view.show_figures()
 
 
-def _blood(lazy=False):
+def _blood():
     from rheoline.widgets.blood_view import BloodVesselView
 
-    return BloodVesselView(lazy=lazy)
+    return BloodVesselView(lazy=True)
 
 
 def _files(line_view, compare_view, document, workspace=None):

@@ -41,8 +41,9 @@ class FilesView(View):
 
     Parameters
     ----------
-    line_view, compare_view : View, optional
-        The views that show the set (their status lines are summed up after a load).
+    line_view, compare_view : View or callable, optional
+        The views that show the set (their status lines are summed up after a load); a
+        callable returns the view, or None while the app has not built it.
     document : ScenarioDocument, optional
         The set to load into and save (default: the line view's, else the comparison's).
     workspace : str or os.PathLike, optional
@@ -57,8 +58,8 @@ class FilesView(View):
         super().__init__()
         from rheoline.widgets.serve import workspace_folder
 
-        self.line_view, self.compare_view = line_view, compare_view
-        views = [v for v in (line_view, compare_view) if v is not None]
+        self._views = (line_view, compare_view)
+        views = [v for v in (self.line_view, self.compare_view) if v is not None]
         if document is None:
             document = views[0].document if views else _own_document()
         self.document = document
@@ -125,6 +126,16 @@ class FilesView(View):
                 widgets.HBox([self.pack_button, c["overwrite"]]),
             ]
         )
+
+    @property
+    def line_view(self):
+        """The line view that shows the set, or None (not built, or none)."""
+        return _view(self._views[0])
+
+    @property
+    def compare_view(self):
+        """The comparison view that shows the set, or None (not built, or none)."""
+        return _view(self._views[1])
 
     def _failed(self, exc):
         # the last action did not happen: its status replaces the previous one
@@ -218,6 +229,11 @@ class FilesView(View):
         path = self.workspace.resolve(user_path, for_writing=True)
         self.workspace.create()
         return path
+
+
+def _view(given):
+    """A view given as itself or as a callable returning it (or None)."""
+    return given() if callable(given) else given
 
 
 def _own_document():

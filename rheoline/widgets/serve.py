@@ -16,6 +16,8 @@ What the launcher guarantees:
   ``--workspace`` (default ``./rheoline-workspace``, created if missing) and shown on
   the page (see :class:`rheoline.scenario.workspace.Workspace`).
 * Kernels of closed pages are shut down after ``--idle-minutes`` (default 15).
+* One kernel is kept ready with the app already built (Voila's preheated kernel), so
+  the page opens without waiting for Python to start and build the views.
 * The page makes no request off the machine: the app's template
   (``share/voila/templates/rheoline``) replaces Voila's icon stylesheet from a public
   CDN with a small one served by Voila itself.
@@ -111,6 +113,9 @@ def voila_command(
         f"--MappingKernelManager.cull_idle_timeout={idle_s}",
         f"--MappingKernelManager.cull_interval={min(_CULL_INTERVAL_S, idle_s)}",
         "--MappingKernelManager.cull_connected=False",
+        # one kernel kept ready with the app built, so a page opens without waiting for it
+        "--VoilaConfiguration.preheat_kernel=True",
+        "--VoilaConfiguration.default_pool_size=1",
         str(notebook),
     ]
 
