@@ -48,6 +48,9 @@ TURBULENT_LIMIT_REYNOLDS = 4000.0
 #: from Re about 1700-2000, Avila et al., Science 333 (2011) 192-196, from memory)
 TRANSITION_ZONE_REYNOLDS = 1800.0
 
+_LOG_7 = np.log(7.0)
+_LOG_37530 = np.log(37530.0)
+
 
 def _shah_fre(x, laminar_f_re=16.0):
     """Shah 1978 f_app*Re (Fanning) at x+ = L/(D Re), and d ln(f_app Re) / d ln x+.
@@ -56,17 +59,20 @@ def _shah_fre(x, laminar_f_re=16.0):
     ``laminar_f_re`` is the fully developed Fanning f Re of the cross-section (16 for a
     circle); the Hagenbach excess 1.25 and the constant 0.00021 stay the circle's.
     """
-    rs = 1.0 / np.sqrt(x)
-    p = 3.44 * rs
-    inv_x = 1.0 / x
+    return _shah_fre_of_inverse(1.0 / np.asarray(x, dtype=float), laminar_f_re)
+
+
+def _shah_fre_of_inverse(inv_x, laminar_f_re=16.0):
+    """:func:`_shah_fre` at ``inv_x`` = 1/x+ = D Re / L (one division fewer in the solvers)."""
+    p = 3.44 * np.sqrt(inv_x)
+    inv_x2 = inv_x * inv_x
     num = 0.3125 * inv_x + laminar_f_re - p
-    den = 1.0 + 0.00021 * inv_x * inv_x
-    fre = p + num / den
-    # x * derivatives with respect to x
-    x_dp = -0.5 * p
-    x_dnum = -0.3125 * inv_x - x_dp
-    x_dden = -0.00042 * inv_x * inv_x
-    x_dfre = x_dp + (x_dnum * den - num * x_dden) / (den * den)
+    den = 1.0 + 0.00021 * inv_x2
+    q = num / den
+    fre = p + q
+    # x times the derivatives with respect to x: x p' = -p/2, x num' = -0.3125/x + p/2,
+    # x den' = -0.00042/x^2, so x fre' = x p' + (x num' - q x den') / den
+    x_dfre = -0.5 * p + (0.5 * p - 0.3125 * inv_x + 0.00042 * q * inv_x2) / den
     return fre, x_dfre / fre
 
 
@@ -132,35 +138,68 @@ def _friction_re_and_slope(
     # a yield-stress fluid at a vanishing flow has an unbounded apparent viscosity, so Re can
     # underflow to 0; f*Re is 64 there whatever Re is, so a floor changes nothing else
     re = np.maximum(np.asarray(re, dtype=float), 1e-300)
-    log_re = np.log(re)
+    a_re, dlog_a = _laminar_term(re, length_over_diameter, developing, laminar_f_re)
+    return _churchill_blend(re, a_re, dlog_a, relative_roughness)
+
+
+def _laminar_term(re, length_over_diameter, developing, laminar_f_re, inv_x=None):
+    """Churchill's laminar term times Re, ``(f_lam / 8) Re``, and d ln(f_lam / 8) / d ln Re.
+
+    The Shah 1978 developing value where ``developing`` (True for all: no mask), else the
+    fully developed ``laminar_f_re / 2`` (Darcy laminar f = 4 f_app Re / Re; Churchill's
+    term is f / 8).  ``inv_x``, D Re / L, may be given instead of computed.
+    """
     if developing is False:
-        log_a_re = np.log(laminar_f_re / 2.0) * np.ones_like(re)
-        dlog_a = -np.ones_like(re)
+        return 0.5 * np.asarray(laminar_f_re, dtype=float), -1.0
+    if inv_x is None:
+        inv_x = re / np.asarray(length_over_diameter, dtype=float)
+    fre, dlog_fre_dlog_x = _shah_fre_of_inverse(inv_x, laminar_f_re)
+    dev = np.asarray(developing, dtype=bool)
+    if developing is True or dev.all():
+        return 0.5 * fre, -1.0 - dlog_fre_dlog_x
+    return (
+        np.where(dev, 0.5 * fre, 0.5 * np.asarray(laminar_f_re, dtype=float)),
+        np.where(dev, -1.0 - dlog_fre_dlog_x, -1.0),
+    )
+
+
+def _churchill_blend(re, a_re, dlog_a, relative_roughness, smooth=None):
+    """Churchill 1977's blend of the laminar term ``a_re / Re`` with its turbulent terms.
+
+    Returns f*Re and d ln f / d ln Re.  Written without ``logaddexp`` and with the smooth
+    wall's ``w = (7/Re)^0.9`` taken in logarithms (no exponential and logarithm where the
+    wall is smooth; ``smooth`` says so when the caller knows): the same expression, a few
+    transcendental functions fewer.  Exponents are kept above -600, where a term is below
+    1e-260 of its neighbour and changes nothing, so that no subnormal number slows the
+    arithmetic down.
+    """
+    log_re = np.log(re)
+    log_a = np.log(a_re) - log_re
+    log_w7 = 0.9 * (_LOG_7 - log_re)  # ln (7/Re)^0.9
+    if smooth is None:
+        smooth = not np.any(relative_roughness)
+    if smooth:
+        log_w, w_share = log_w7, 1.0
     else:
-        x = np.asarray(length_over_diameter, dtype=float) / re
-        fre, dlog_fre_dlog_x = _shah_fre(x, laminar_f_re)
-        dev = np.asarray(developing, dtype=bool)
-        # Darcy laminar f = 4 fre / Re; Churchill's laminar term is f/8 = fre / (2 Re)
-        log_a_re = np.where(dev, np.log(fre / 2.0), np.log(laminar_f_re / 2.0))
-        dlog_a = np.where(dev, -1.0 - dlog_fre_dlog_x, -1.0)
-    log_a = log_a_re - log_re
-    w7 = np.exp(0.9 * (np.log(7.0) - log_re))
-    w = w7 + 0.27 * np.asarray(relative_roughness, dtype=float)
-    log_w = np.log(w)
+        w7 = np.exp(log_w7)
+        w = w7 + 0.27 * np.asarray(relative_roughness, dtype=float)
+        log_w, w_share = np.log(w), w7 / w
     # A is an even power, so use |ln w| (w > 1 below Re ~ 7, where A is negligible anyway)
     abs_log_w = np.maximum(np.abs(log_w), 1e-300)
     log_big_a = 16.0 * np.log(2.457 * abs_log_w)
-    dlog_big_a = 16.0 * (-0.9 * (w7 / w)) / np.where(log_w < 0, -abs_log_w, abs_log_w)
-    log_big_b = 16.0 * (np.log(37530.0) - log_re)
-    log_sum = np.logaddexp(log_big_a, log_big_b)
-    share_a = np.exp(log_big_a - log_sum)
-    dlog_sum = share_a * dlog_big_a + (1.0 - share_a) * (-16.0)
-    log_t = -1.5 * log_sum
-    dlog_t = -1.5 * dlog_sum
-    ratio = np.exp(np.minimum(log_t - 12.0 * log_a, 700.0))
-    f_re = 8.0 * np.exp(log_a_re) * (1.0 + ratio) ** (1.0 / 12.0)
+    dlog_big_a = -14.4 * w_share / np.copysign(abs_log_w, log_w)
+    log_big_b = 16.0 * (_LOG_37530 - log_re)
+    # ln(A + B) = max + log1p(exp(-|ln A - ln B|)), and A's share of the sum
+    gap = log_big_a - log_big_b
+    e = np.exp(np.maximum(-np.abs(gap), -600.0))
+    log_sum = np.maximum(log_big_a, log_big_b) + np.log1p(e)
+    small = e / (1.0 + e)
+    share_a = np.where(gap >= 0.0, 1.0 - small, small)
+    dlog_t = 24.0 - 1.5 * share_a * (dlog_big_a + 16.0)
+    ratio = np.exp(np.minimum(np.maximum(-1.5 * log_sum - 12.0 * log_a, -600.0), 700.0))
+    f_re = 8.0 * a_re * (1.0 + ratio) ** (1.0 / 12.0)
     weight = ratio / (1.0 + ratio)
-    slope = dlog_a + weight * (dlog_t - 12.0 * dlog_a) / 12.0
+    slope = dlog_a + weight * (dlog_t * (1.0 / 12.0) - dlog_a)
     return f_re, slope
 
 
