@@ -292,23 +292,32 @@ def test_model_import_does_not_load_pandas():
 def test_shared_characteristic_path_equals_newton_path(fluid, monkeypatch):
     # many drives through one line: the tabulated-characteristic path must match the
     # per-scenario Newton path (same physics) within its checked interpolation error
-    import rheoline.model.line_solvers as solvers_module
+    import rheoline.model.line_characteristic as curve_module
 
-    heads = np.random.default_rng(3).uniform(0.3, 1.5, 600)
+    heads = np.random.default_rng(3).uniform(0.3, 1.5, 20000)
     line = _line()
     fast = line.solve(fluid, head=heads)
     fast_back = line.solve(fluid, flow=fast.flow)
-    assert fast.iterations == 0  # the curve path was taken
-    monkeypatch.setattr(solvers_module, "CURVE_MIN_SCENARIOS", 10**9)
+    assert fast.iterations == 0  # the curve path was taken (cheaper at 20,000 drives)
+    monkeypatch.setattr(curve_module, "cheaper_than_newton", lambda *args, **kw: False)
     slow = line.solve(fluid, head=heads)
     slow_back = line.solve(fluid, flow=fast.flow)
     assert slow.iterations > 0
     assert np.allclose(fast.flow, slow.flow, rtol=1e-8, atol=0)
     assert np.allclose(fast.part_pressure_drops, slow.part_pressure_drops, rtol=1e-8, atol=0)
     assert np.allclose(fast_back.required_pressure, slow_back.required_pressure, rtol=1e-8)
+    assert np.allclose(fast_back.part_pressure_drops, slow_back.part_pressure_drops, rtol=1e-8)
     assert np.allclose(fast.part_reynolds, slow.part_reynolds, rtol=1e-8)
     drive = fluid.density * GRAVITY * heads
     assert np.allclose(fast.part_pressure_drops.sum(0) + fast.exit_pressure_drop, drive, rtol=1e-8)
+
+
+def test_shared_characteristic_only_where_it_is_cheaper():
+    # its grid (some 1,100 points for these heads, known before it is built) costs two
+    # passes a point; a Newton solve some 3.5 passes a scenario: 600 drives take Newton
+    heads = np.random.default_rng(3).uniform(0.3, 1.5, 600)
+    assert _line().solve(WATER_22, head=heads).iterations > 0
+    assert _line().solve(WATER_22, head=np.resize(heads, 20000)).iterations == 0
 
 
 def test_yield_stress_fluid_needs_the_yield_pressure():

@@ -4,14 +4,18 @@ The table stores ln(wall shear stress) M against phi = ln(3Q/(pi R^3)) and is ac
 when its cubic Hermite interpolant agrees with the exact inverse of
 ``rabinowitsch_flow`` at every interval's midpoint and quarter point within 1e-12
 (``TABLE_TOLERANCE``).  These tests check that bound at points the builder never saw, the
-two closed forms it must reproduce.
+two closed forms it must reproduce, and that a line solved with the table gives the
+answer of the exact inner iteration.
 """
 
 import numpy as np
 import pytest
 
 import rheoline
-from rheoline.model import rheology_table
+from rheoline.model import line_solvers, rheology_table
+from rheoline.model.fluid_base import Fluid
+from rheoline.model.line import Line
+from rheoline.model.parts import Catheter, Tube
 from rheoline.model.rabinowitsch import _solve_log_wall_shear_rate
 from rheoline.model.rheology import Carreau, CarreauYasuda, Casson, Newtonian, PowerLaw
 from rheoline.model.rheology_table import TABLE_TOLERANCE, cached_table
@@ -76,3 +80,39 @@ def test_what_is_not_tabulated():
     varying = CarreauYasuda(np.array([0.05, 0.06]), 0.0035, 3.3, 0.36, 2.0)
     assert rheology_table.rheology_table(varying) is None  # different in each scenario
     assert cached_table(Casson(0.005, 0.004)) is None
+
+
+@pytest.mark.parametrize("n", [40, 60_000], ids=["few", "many"])
+def test_line_with_the_table_equals_the_exact_inner_iteration(n, monkeypatch):
+    heads = np.random.default_rng(9).uniform(0.05, 2.5, n)
+    line = Line([Tube(inner_diameter=np.full(n, 3e-3), length=1.8), Catheter(gauge=20)])
+    monkeypatch.setattr(line_solvers, "TABLE_MIN_EVALUATIONS", 0)
+    tabulated = line.solve(BLOOD, head=heads)
+    pumped = line.solve(BLOOD, flow=tabulated.flow)
+    drops = line.pressure_drop(BLOOD, tabulated.flow)
+    monkeypatch.setattr(line_solvers, "TABLE_MIN_EVALUATIONS", 10**18)
+    monkeypatch.setattr(line_solvers, "cached_table", lambda rheology: False)
+    exact = line.solve(BLOOD, head=heads)
+    np.testing.assert_allclose(tabulated.flow, exact.flow, rtol=1e-10)
+    np.testing.assert_allclose(tabulated.part_pressure_drops, exact.part_pressure_drops, rtol=1e-10)
+    np.testing.assert_allclose(tabulated.part_reynolds, exact.part_reynolds, rtol=1e-10)
+    np.testing.assert_allclose(
+        pumped.required_pressure,
+        line.solve(BLOOD, flow=tabulated.flow).required_pressure,
+        rtol=1e-10,
+    )
+    np.testing.assert_allclose(drops, line.pressure_drop(BLOOD, tabulated.flow), rtol=1e-10)
+
+
+def test_flows_outside_the_table_are_solved_exactly(monkeypatch):
+    # a wall shear rate below the table's range (1e-4 1/s): the inner solve takes over
+    monkeypatch.setattr(line_solvers, "TABLE_MIN_EVALUATIONS", 0)
+    fluid = Fluid("slow blood", 37.0, BLOOD.density, rheology=BLOOD.rheology)
+    line = Line([Tube(inner_diameter=3e-3, length=1.0)])
+    result = line.solve(fluid, source_pressure=np.array([1e-6, 1e-3, 1.0]))
+    shear = 4.0 * result.flow / (np.pi * 1.5e-3**3)
+    assert shear[0] < 1e-4 < shear[2]
+    monkeypatch.setattr(line_solvers, "TABLE_MIN_EVALUATIONS", 10**18)
+    monkeypatch.setattr(line_solvers, "cached_table", lambda rheology: False)
+    exact = line.solve(fluid, source_pressure=np.array([1e-6, 1e-3, 1.0]))
+    np.testing.assert_allclose(result.flow, exact.flow, rtol=1e-10)

@@ -91,12 +91,20 @@ Delivery, tolerance, curves
 
 Where the code lives: this module holds :class:`Line` (the public face);
 :mod:`rheoline.model.line_layout` lays a line out for a fluid (per-part arrays),
-:mod:`rheoline.model.line_solvers` holds the losses and the solvers, and
-:mod:`rheoline.model.line_result` the result, its conditions and flags.
+:mod:`rheoline.model.line_losses` holds the losses at a flow,
+:mod:`rheoline.model.line_solvers` the solvers (in blocks of scenarios,
+:mod:`rheoline.model.line_blocks`), :mod:`rheoline.model.line_newton` the Newton path,
+:mod:`rheoline.model.line_characteristic` the shared characteristic,
+:mod:`rheoline.model.rheology_table` the tabulated Rabinowitsch-Mooney relation of a shared
+non-Newtonian fluid, and :mod:`rheoline.model.line_result` the result, its conditions and
+flags.
 
-Solver cost (see the benchmarks): a flow solve of N scenarios costs a few vectorized residual
-evaluations (safeguarded Newton from the laminar-plus-kinetic closed form); N >= 256 drives
-through one line with one fluid cost less than one, on the line's tabulated characteristic.
+Solver cost (see the benchmarks): a flow solve of N scenarios costs about three vectorized
+residual passes (safeguarded Newton from the laminar-plus-kinetic closed form, the last
+step taken to first order); many drives through one line with one fluid cost less than one,
+on the line's tabulated characteristic, where its grid costs less than the Newton passes.
+Scenarios are solved in blocks of some 8,000 lumen-scenarios: the working memory stays a few
+megabytes for any number of scenarios.
 """
 
 from __future__ import annotations
@@ -110,7 +118,7 @@ from rheoline.model.line_layout import build_layout
 from rheoline.model.line_result import LineResult, make_result
 from rheoline.model.losses import entrance_k
 from rheoline.model.parts import Part
-from rheoline.model.validation import check_finite, check_nonnegative
+from rheoline.model.validation import as_float_array, check_finite, check_nonnegative
 
 __all__ = ["Line", "LineResult", "GRAVITY"]
 
@@ -142,6 +150,18 @@ def _check_line(line, fluid, **named):
             "e.g. Line([Tube(...), Catheter(gauge=18)])"
         )
     return line._check_inputs(fluid, **named)
+
+
+def _drive_of(fluid, head, source_pressure, back_pressure, flow=None):
+    """The checked drive of a solve (:class:`rheoline.model.line_solvers.Drive`)."""
+    return _solvers.Drive(
+        check_finite("head", head),
+        check_finite("source_pressure", source_pressure),
+        check_finite("back_pressure", back_pressure),
+        fluid.density,
+        GRAVITY,
+        None if flow is None else check_nonnegative("flow", flow, "m^3/s"),
+    )
 
 
 def _broadcast_named(named):
@@ -314,14 +334,11 @@ class Line:
         """
         self._check_inputs(fluid, flow=flow)
         q_in = check_nonnegative("flow", flow, "m^3/s")
-        layout = build_layout(self, fluid, q_in.shape, pries_correction)
-        q = np.maximum(q_in * np.ones(layout.shape), _solvers.MIN_FLOW)
-        total, slope = _solvers.exact_losses(layout, fluid, q)[:2]
-        # at (numerically) zero flow the losses are the yield pressure (0 for most fluids)
-        total = np.where(q_in > _solvers.MIN_FLOW, total, _solvers.yield_drop(layout, fluid))
+        drive = _solvers.Drive(0.0, 0.0, 0.0, fluid.density, GRAVITY, q_in)
+        total, slope = _solvers.losses_at(self, fluid, drive, pries_correction)
         if not with_slope:
             return _lumen.scalar_or_array(total)
-        return _lumen.scalar_or_array(total), _lumen.scalar_or_array(slope / q)
+        return _lumen.scalar_or_array(total), _lumen.scalar_or_array(slope)
 
     def pressure_residual(
         self, fluid, flow, head=0.0, source_pressure=0.0, back_pressure=0.0, pries_correction=False
@@ -348,14 +365,9 @@ class Line:
             source_pressure=source_pressure,
             back_pressure=back_pressure,
         )
-        q = check_nonnegative("flow", flow, "m^3/s")
-        drive = self._drive(fluid, head, source_pressure, back_pressure)
-        layout = build_layout(
-            self, fluid, np.broadcast_shapes(q.shape, np.shape(drive)), pries_correction
-        )
-        q = np.maximum(q * np.ones(layout.shape), _solvers.MIN_FLOW)
-        total = _solvers.exact_losses(layout, fluid, q)[0]
-        return _lumen.scalar_or_array(total - drive)
+        drive = _drive_of(fluid, head, source_pressure, back_pressure, flow)
+        total = _solvers.losses_at(self, fluid, drive, pries_correction, residual=True)[0]
+        return _lumen.scalar_or_array(total)
 
     def yield_pressure(self, fluid, pries_correction=False):
         """Net drive [Pa] below which a yield-stress fluid does not move (0 for other fluids).
@@ -392,6 +404,7 @@ class Line:
         flow=None,
         pressure_limit=None,
         pries_correction=False,
+        initial_flow=None,
     ):
         """Flow at a drive, or the source pressure needed for a prescribed flow.
 
@@ -415,6 +428,11 @@ class Line:
         pries_correction : bool
             For blood, scale each lumen's apparent viscosity by the Pries 1992 in-vitro law
             relative to its value at 1.978 mm (the largest tube of its data) (the Fahraeus-Lindqvist effect).
+        initial_flow : float or array_like, optional
+            A warm start for the flow solve [m^3/s]: where a view or a sweep solves near an
+            earlier answer, that answer (broadcasting to the scenarios; entries that are
+            not positive are ignored).  It changes how many iterations the solve takes,
+            not its answer.  Not with ``flow``.
 
         Returns
         -------
@@ -448,8 +466,16 @@ class Line:
             back_pressure=back_pressure,
             flow=flow,
             pressure_limit=pressure_limit,
+            initial_flow=initial_flow,
         )
         if flow is not None:
+            if initial_flow is not None:
+                raise InputRangeError(
+                    "initial_flow is a warm start for a flow solve; a prescribed flow "
+                    "(a pump) needs none: drop initial_flow",
+                    field="initial_flow",
+                    value=initial_flow,
+                )
             if source_pressure is not None:
                 raise InputRangeError(
                     "give either flow (a pump: the pressure is solved) or source_pressure "
@@ -467,18 +493,19 @@ class Line:
             back_pressure,
             pressure_limit,
             pries_correction,
+            initial_flow,
         )
 
     def _solve_pressure(self, fluid, flow, head, back_pressure, pressure_limit, pries):
-        q_in = check_nonnegative("flow", flow, "m^3/s")
-        gravity = fluid.density * GRAVITY * check_finite("head", head)
-        pb = check_finite("back_pressure", back_pressure)
-        solved = _solvers.solve_for_pressure(self, fluid, q_in, gravity, pb, pries)
+        drive = _drive_of(fluid, head, 0.0, back_pressure, flow)
+        solved = _solvers.solve_for_pressure(self, fluid, drive, pries)
         return make_result(self, fluid, solved, pressure_limit)
 
-    def _solve_flow(self, fluid, head, source_pressure, back_pressure, pressure_limit, pries):
-        drive = self._drive(fluid, head, source_pressure, back_pressure)
-        gravity = fluid.density * GRAVITY * check_finite("head", head)
-        pb = check_finite("back_pressure", back_pressure)
-        solved = _solvers.solve_for_flow(self, fluid, drive, gravity, pb, pries)
+    def _solve_flow(
+        self, fluid, head, source_pressure, back_pressure, pressure_limit, pries, start=None
+    ):
+        drive = _drive_of(fluid, head, source_pressure, back_pressure)
+        if start is not None:
+            start = as_float_array("initial_flow", start)
+        solved = _solvers.solve_for_flow(self, fluid, drive, pries, start)
         return make_result(self, fluid, solved, pressure_limit)

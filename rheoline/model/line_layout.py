@@ -28,6 +28,7 @@ Examples
 from __future__ import annotations
 
 from dataclasses import dataclass
+from functools import cached_property
 
 import numpy as np
 
@@ -37,7 +38,15 @@ from rheoline.model.losses import EXIT_K, transition_k
 from rheoline.model.parts import Fitting, Lumen, MeasuredPart, Needle
 from rheoline.model.validation import outside_mask
 
-__all__ = ["LineLayout", "build_layout", "fluid_shape", "part_models", "PRIES_REFERENCE_DIAMETER"]
+__all__ = [
+    "LineLayout",
+    "build_layout",
+    "fluid_shape",
+    "scenario_shape",
+    "lumen_row_count",
+    "part_models",
+    "PRIES_REFERENCE_DIAMETER",
+]
 
 #: Largest diameter [m] of the data behind Pries 1992; the line's correction is relative to it.
 PRIES_REFERENCE_DIAMETER = 1.9779e-3
@@ -121,37 +130,97 @@ class LineLayout:
     models_used: tuple = ()  # provenance keys of the line's own models (not the fluid's)
     part_outside_range: np.ndarray | None = None  # (n_parts, *shape) bool
     part_catalogue: np.ndarray | None = None  # (n_parts,) bool: a catalogue size
+    rheology: object = None  # the fluid's rheology model for these scenarios
+    table: object = None  # the rheology's RheologyTable (rheoline.model.rheology_table)
+
+    # ---------------------------------------------------------------- constants of a pass
+    # (computed once per layout, read by every residual pass of the solvers)
+    @cached_property
+    def inverse_lod(self):
+        """D / L of each lumen [-]."""
+        return self.diameter / self.length
+
+    @cached_property
+    def reynolds_factor(self):
+        """Re / (Q / mu) of each lumen: rho D / A [kg/m^4]."""
+        return self.density * self.diameter / self.area
+
+    @cached_property
+    def friction_factor(self):
+        """Frictional drop / (f Re mu Q) of each lumen: L / (2 D^2 A) [1/m^4]."""
+        return 0.5 * self.length / (self.diameter * self.diameter * self.area)
+
+    @cached_property
+    def minor_factor(self):
+        """Minor (entrance, transition) drop / Q^2 of each lumen: K rho / (2 A^2)."""
+        return self.minor_k * (0.5 * self.density) / (self.area * self.area)
+
+    @cached_property
+    def smooth(self) -> bool:
+        """True when every lumen's wall is smooth (no roughness term in the friction)."""
+        return not np.any(self.relative_roughness)
+
+    @cached_property
+    def developing_rows(self):
+        """``developing`` as the friction wants it: True or False when the same for every
+        lumen, else the per-lumen mask."""
+        dev = np.asarray(self.developing, dtype=bool)
+        return True if dev.all() else (False if not dev.any() else dev)
+
+    @cached_property
+    def phi_offset(self):
+        """ln(3 s / (pi R^3)) of each lumen: phi = ln Q + this is the argument of the
+        rheology table (s the flow scale of a non-circular lumen)."""
+        return np.log(3.0 * self.flow_scale / (np.pi * (self.diameter / 2.0) ** 3))
 
 
-def _lumen_geometry(part, ones, geometry):
+def _identity(value):
+    return value
+
+
+def _lumen_geometry(part, ones, geometry, take=_identity):
     """Append a lumen's flow area, laminar f Re and circle flow scale; its area's diameter.
 
     A circle (any part without a ``shape``) gets exactly pi D^2 / 4, 16 and 1, so that the
     answers of circular lines do not move by a rounding.
     """
-    d = part.inner_diameter * ones
+    d = take(part.inner_diameter) * ones
     shape = getattr(part, "shape", None)
     if shape is None:
         geometry["area"].append(np.pi * d**2 / 4.0)
         geometry["f_re"].append(16.0 * ones)
         geometry["scale"].append(ones)
         return d
-    area = shape.area * ones
+    area = take(shape.area) * ones
     geometry["area"].append(area)
-    geometry["f_re"].append(shape.laminar_f_re * ones)
+    geometry["f_re"].append(take(shape.laminar_f_re) * ones)
     geometry["scale"].append(np.pi * d**2 / (4.0 * area))
     geometry["shaped"].append(part.name)
     return np.sqrt(4.0 * area / np.pi)
 
 
-def _scenario_shape(line, fluid, extra_shape):
+def scenario_shape(line, fluid, extra_shape=()):
+    """The scenario shape of a line, a fluid and drive arrays of ``extra_shape``."""
     dims = [getattr(p, a, None) for p in line.parts for a in _DIMENSIONS]
     return np.broadcast_shapes(
         fluid_shape(fluid), tuple(extra_shape), *(np.shape(v) for v in dims if v is not None)
     )
 
 
-def _sort_parts(parts, ones):
+def _is_lumen_row(part) -> bool:
+    """True for a part laid out as a lumen row: a lumen, or a fitting given by its
+    equivalent length (a short lumen of its bore)."""
+    return isinstance(part, Lumen) or (
+        isinstance(part, Fitting) and part.equivalent_length is not None
+    )
+
+
+def lumen_row_count(line) -> int:
+    """Lumen rows of a line's layout (lumens and equivalent-length fittings)."""
+    return sum(1 for part in line.parts if _is_lumen_row(part))
+
+
+def _sort_parts(parts, ones, take=_identity):
     """Rows of lumens, K fittings and measured parts, and the lumens' stacked geometry.
 
     ``geometry["equivalent"]`` holds each lumen row's area-equivalent diameter (the bore
@@ -167,12 +236,13 @@ def _sort_parts(parts, ones):
     real = {}  # lumen row -> area-equivalent bore of a real lumen (not an equivalent length)
     for i, part in enumerate(parts):
         if isinstance(part, Lumen):
-            entry = (part.inner_diameter, part.length, part.roughness / part.inner_diameter, True)
-            geometry["equivalent"].append(_lumen_geometry(part, ones, geometry))
+            d = take(part.inner_diameter)
+            entry = (d, take(part.length), take(part.roughness) / d, True)
+            geometry["equivalent"].append(_lumen_geometry(part, ones, geometry, take))
             real[i] = geometry["equivalent"][-1]
         elif isinstance(part, Fitting) and part.equivalent_length is not None:
-            entry = (part.inner_diameter, part.equivalent_length, 0.0, False)
-            geometry["equivalent"].append(_lumen_geometry(part, ones, geometry))
+            entry = (take(part.inner_diameter), take(part.equivalent_length), 0.0, False)
+            geometry["equivalent"].append(_lumen_geometry(part, ones, geometry, take))
         elif isinstance(part, Fitting):
             rows["k"].append(i)
             continue
@@ -208,16 +278,15 @@ def _minor_losses(lumen_rows, real, entrance_k, ones, shape):
     return minor, expansion
 
 
-def _k_fittings(parts, k_rows, lumen_rows, equivalent, fluid, rho, ones):
+def _k_fittings(parts, k_rows, lumen_rows, equivalent, mu_ref, rho, ones, take=_identity):
     """Quadratic coefficient, Hooper linear coefficient and reference area of each K fitting.
 
     A K refers to the fitting's own bore, else the nearest upstream lumen, else downstream.
     """
     k_coef, k_area, k_lin = [], [], []
-    mu_ref = fluid.rheology.infinite_shear_viscosity
     for i in k_rows:
         part = parts[i]
-        d = part.inner_diameter
+        d = take(part.inner_diameter)
         if d is None:
             up = [j for j in lumen_rows if j < i]
             down = [j for j in lumen_rows if j > i]
@@ -231,9 +300,9 @@ def _k_fittings(parts, k_rows, lumen_rows, equivalent, fluid, rho, ones):
             d = equivalent[lumen_rows.index(ref)]
         area = np.pi * (d * ones) ** 2 / 4.0
         k_area.append(area)
-        k_coef.append(part.k * rho / (2.0 * area * area))
+        k_coef.append(take(part.k) * rho / (2.0 * area * area))
         # Hooper 1981: K_1/Re rho u^2/2 = K_1 mu Q / (2 D A), linear in Q
-        k1 = 0.0 if part.laminar_k is None else part.laminar_k
+        k1 = 0.0 if part.laminar_k is None else take(part.laminar_k)
         k_lin.append(k1 * mu_ref / (2.0 * (d * ones) * area))
     return k_coef, k_lin, k_area
 
@@ -247,7 +316,7 @@ def _exit_coefficient(lumen_rows, real, equivalent, rho, ones):
     return EXIT_K * rho / (2.0 * a_out * a_out)
 
 
-def _pries_factor(fluid, diameter, ones, n_l, shape):
+def _pries_factor(fluid, diameter, ones, n_l, shape, take=_identity):
     """Pries 1992 in-vitro factor of each lumen relative to the reference diameter."""
     if not fluid.is_blood:
         raise InputRangeError(
@@ -256,7 +325,7 @@ def _pries_factor(fluid, diameter, ones, n_l, shape):
             field="pries_correction",
             value=True,
         )
-    h = fluid.hematocrit * ones
+    h = take(fluid.hematocrit) * ones
     ref = pries_1992_relative_viscosity(PRIES_REFERENCE_DIAMETER, h)
     factor = pries_1992_relative_viscosity(np.minimum(diameter, PRIES_REFERENCE_DIAMETER), h) / ref
     return np.broadcast_to(factor, (n_l, *shape))
@@ -297,7 +366,7 @@ def _part_outside(line, rows, diameter, pries, shape):
     return out
 
 
-def build_layout(line, fluid, extra_shape=(), pries=False) -> LineLayout:
+def build_layout(line, fluid, extra_shape=(), pries=False, block=None, table=None) -> LineLayout:
     """Lay ``line`` out for ``fluid`` over the scenario shape (see the module notes).
 
     Parameters
@@ -308,24 +377,35 @@ def build_layout(line, fluid, extra_shape=(), pries=False) -> LineLayout:
         Shape of drive arrays to broadcast with the fluid's and the parts' arrays.
     pries : bool
         Apply the Pries 1992 diameter correction (blood only).
+    block : rheoline.model.line_blocks.Block, optional
+        Lay out only these scenarios (of the shape the line, the fluid and ``extra_shape``
+        broadcast to): every array then has the block's 1-D shape.
+    table : rheoline.model.rheology_table.RheologyTable, optional
+        The fluid's tabulated Rabinowitsch-Mooney relation, for the solvers to read.
 
     Returns
     -------
     LineLayout
     """
-    shape = _scenario_shape(line, fluid, extra_shape)
+    if block is None:
+        shape, take, rheology = scenario_shape(line, fluid, extra_shape), _identity, fluid.rheology
+    else:
+        shape, take, rheology = block.shape, block.take, block.take_rheology(fluid.rheology)
     ones = np.ones(shape)
-    rho = fluid.density * ones
-    rows, geometry, real = _sort_parts(line.parts, ones)
+    density = take(fluid.density)
+    rho = density * ones
+    rows, geometry, real = _sort_parts(line.parts, ones, take)
     n_l = len(rows["lumen"])
     diameter = np.array(geometry["diameter"]).reshape((n_l, *shape))
     minor, expansion = _minor_losses(rows["lumen"], real, line.entrance_k, ones, shape)
+    mu_ref = rheology.infinite_shear_viscosity
     k_coef, k_lin, k_area = _k_fittings(
-        line.parts, rows["k"], rows["lumen"], geometry["equivalent"], fluid, rho, ones
+        line.parts, rows["k"], rows["lumen"], geometry["equivalent"], mu_ref, rho, ones, take
     )
-    mu_ref = fluid.rheology.infinite_shear_viscosity
-    measured = [line.parts[i].scaled_coefficients(mu_ref, fluid.density) for i in rows["measured"]]
-    factor = _pries_factor(fluid, diameter, ones, n_l, shape) if pries else np.ones((n_l, *shape))
+    measured = [line.parts[i].scaled_coefficients(mu_ref, density) for i in rows["measured"]]
+    factor = (
+        _pries_factor(fluid, diameter, ones, n_l, shape, take) if pries else np.ones((n_l, *shape))
+    )
     n_k, n_m = len(rows["k"]), len(rows["measured"])
     return LineLayout(
         shape=shape,
@@ -352,4 +432,6 @@ def build_layout(line, fluid, extra_shape=(), pries=False) -> LineLayout:
         models_used=_line_models(line, rows, expansion, pries),
         part_outside_range=_part_outside(line, rows, diameter, pries, shape),
         part_catalogue=np.array([p.source_note is not None for p in line.parts], dtype=bool),
+        rheology=rheology,
+        table=table,
     )

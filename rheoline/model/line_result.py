@@ -105,11 +105,17 @@ class LineResult:
     part_kinds: tuple
     line: object = field(repr=False)
     fluid: object = field(repr=False)
-    _layout: object = field(repr=False)
+    _layout_source: object = field(repr=False)
     _viscosity: np.ndarray = field(repr=False)
     _moving: np.ndarray = field(repr=False)
     _pressure_limit: object = field(repr=False, default=None)
     _converged_mask: np.ndarray | None = field(repr=False, default=None)
+
+    @cached_property
+    def _layout(self):
+        """The line's layout for this result (built on first use after a large solve)."""
+        source = self._layout_source
+        return source() if callable(source) else source
 
     @property
     def scenario_shape(self):
@@ -576,46 +582,29 @@ def _flags(result):
 # ---------------------------------------------------------------------------- assembly
 def make_result(line, fluid, solved, pressure_limit) -> LineResult:
     """A :class:`LineResult` from a solve (:class:`rheoline.model.line_solvers.Solved`)."""
-    layout, q, pieces, mu, moving = solved[:5]
-    required, net = solved.required, solved.net
-    dp_lumen, dp_k, dp_meas, dp_exit, re, u = pieces[:6]
-    n = len(line.parts)
-    shape = layout.shape
-    drops = np.zeros((n, *shape))
-    reynolds = np.full((n, *shape), np.nan)
-    velocity = np.full((n, *shape), np.nan)
-    drops[layout.lumen_rows] = dp_lumen
-    drops[layout.k_rows] = dp_k
-    drops[layout.measured_rows] = dp_meas
-    reynolds[layout.lumen_rows] = re
-    velocity[layout.lumen_rows] = u
-    if len(layout.k_rows):
-        velocity[layout.k_rows] = q / layout.k_velocity_area
-    drops = np.where(moving, drops, 0.0)
-    reynolds = np.where(moving, reynolds, np.where(np.isnan(reynolds), np.nan, 0.0))
-    velocity = np.where(moving, velocity, np.where(np.isnan(velocity), np.nan, 0.0))
-    exceeds = np.zeros(shape, bool)
+    required = solved.required
+    exceeds = np.zeros(np.shape(required), bool)
     if pressure_limit is not None:
         limit = check_finite("pressure_limit", pressure_limit)
         exceeds = np.asarray(required > limit)
     return LineResult(
-        flow=_lumen.scalar_or_array(q),
+        flow=_lumen.scalar_or_array(solved.flow),
         required_pressure=_lumen.scalar_or_array(required),
-        net_drive=_lumen.scalar_or_array(net),
-        part_pressure_drops=drops,
-        exit_pressure_drop=_lumen.scalar_or_array(np.where(moving, dp_exit, 0.0)),
-        part_reynolds=reynolds,
-        part_mean_velocity=velocity,
+        net_drive=_lumen.scalar_or_array(solved.net),
+        part_pressure_drops=solved.drops,
+        exit_pressure_drop=_lumen.scalar_or_array(solved.exit_drop),
+        part_reynolds=solved.reynolds,
+        part_mean_velocity=solved.velocity,
         exceeds_pressure_limit=bool(exceeds) if exceeds.ndim == 0 else exceeds,
         iterations=int(solved.iterations),
         converged=bool(np.all(solved.converged)),
-        part_names=layout.names,
-        part_kinds=layout.kinds,
+        part_names=line.part_names,
+        part_kinds=tuple(p.kind for p in line.parts),
         line=line,
         fluid=fluid,
-        _layout=layout,
-        _viscosity=mu * np.ones_like(layout.diameter),
-        _moving=moving,
+        _layout_source=solved.layout,
+        _viscosity=solved.viscosity,
+        _moving=solved.moving,
         _pressure_limit=pressure_limit,
         _converged_mask=np.asarray(solved.converged, dtype=bool),
     )

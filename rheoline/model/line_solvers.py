@@ -4,14 +4,27 @@ Everything here works on a :class:`~rheoline.model.line_layout.LineLayout` (the 
 per-part arrays for one fluid), vectorized over the scenario shape:
 
 * :func:`exact_losses`: every loss at a flow, with d(losses)/d ln Q (for a non-Newtonian
-  fluid each lumen's wall shear rate is first solved on the Rabinowitsch integral);
+  fluid each lumen's apparent viscosity comes from the fluid's tabulated
+  Rabinowitsch-Mooney relation where the layout carries one, else from an exact inner
+  solve of its wall shear rate);
 * :func:`solve_for_flow`: safeguarded Newton iterations on ln(losses) - ln(drive) in
-  ln(Q), from the laminar-plus-kinetic closed form (:func:`guess`), with a bracket kept
-  from the residual's signs; or, for many drives through one shared line, the line's
-  exact characteristic tabulated and inverted by cubic Hermite interpolation
-  (:func:`solve_on_characteristic`);
+  ln(Q) (:mod:`rheoline.model.line_newton`), or, for many drives through one shared line
+  where that is cheaper, the line's exact characteristic tabulated and inverted
+  (:mod:`rheoline.model.line_characteristic`);
 * :func:`solve_for_pressure`: one exact evaluation at the prescribed flow (or the
-  tabulated characteristic for many flows).
+  tabulated characteristic where that is cheaper).
+
+**Blocks.**  A solve of more scenarios than one block holds
+(:mod:`rheoline.model.line_blocks`, some 8,000 lumen-scenarios) lays the line out and
+solves it one block at a time and writes each block's answers into the result's arrays:
+the working memory stays a few megabytes whatever the number of scenarios, and each block's
+arrays stay in the processor's cache.
+
+**Tabulated rheology.**  Where the fluid is non-Newtonian, the same in every scenario,
+and the solve is large enough to repay it (:data:`TABLE_MIN_EVALUATIONS`), its
+Rabinowitsch-Mooney relation is tabulated once (:mod:`rheoline.model.rheology_table`,
+checked to 1e-12) and read by interpolation instead of integrating the constitutive law
+in every lumen at every iteration.
 
 :class:`~rheoline.model.line.Line` is the public face of these functions.
 
@@ -31,14 +44,30 @@ True
 
 from __future__ import annotations
 
+import sys
 from typing import NamedTuple
 
 import numpy as np
 
-from rheoline.model import lumen as _lumen
-from rheoline.model.line_layout import build_layout
+from rheoline.model import line_characteristic as _curve
+from rheoline.model.line_blocks import Blocks, blockable
+from rheoline.model.line_layout import build_layout, lumen_row_count, scenario_shape
+from rheoline.model.line_losses import (  # noqa: F401  (re-exported: the solvers' physics)
+    apparent_viscosity,
+    exact_losses,
+    guess,
+    joint_iteration,
+    losses,
+    newtonian_path,
+    rheology_of,
+    tabulated_viscosity,
+    yield_drop,
+)
+from rheoline.model.line_newton import newton_flow
+from rheoline.model.rheology_table import cached_table, rheology_table
 
 __all__ = [
+    "Drive",
     "Solved",
     "exact_losses",
     "losses",
@@ -46,32 +75,65 @@ __all__ = [
     "yield_drop",
     "solve_for_flow",
     "solve_for_pressure",
-    "solve_on_characteristic",
     "MIN_DRIVE",
     "MIN_FLOW",
     "CURVE_MIN_SCENARIOS",
+    "TABLE_MIN_EVALUATIONS",
 ]
 
-_TOL = 1e-11  # convergence on ln(Q)
 #: Drives [Pa] and flows [m^3/s] at or below these are numerically zero: flows that small
 #: would underflow double precision in the friction terms, so they give a zero result.
 MIN_DRIVE = 1e-150
 MIN_FLOW = 1e-200
-#: From this many scenarios on, a line whose geometry and fluid are shared by every scenario
-#: (only the drive varies) is solved on its tabulated characteristic
-#: (:func:`solve_on_characteristic`); fewer scenarios, or per-scenario parts or fluids, take
-#: the Newton path.
+#: Fewest scenarios for which the shared characteristic is considered (it is then taken
+#: where it costs less than the Newton path; see :mod:`rheoline.model.line_characteristic`).
 CURVE_MIN_SCENARIOS = 256
-_CURVE_TOL = 1e-9  # largest interpolation error in ln(Q) accepted on the characteristic
-_MAX_ITER = 60
+#: Lumen evaluations (scenarios x lumens x passes) from which a shared non-Newtonian
+#: rheology is tabulated: building the table costs about this many joint-iteration passes.
+TABLE_MIN_EVALUATIONS = 50_000
+_SOLVERS = sys.modules[__name__]
+
+
+class Drive(NamedTuple):
+    """What drives the scenarios: gravity head [m] of a fluid of ``density`` [kg/m^3],
+    source and back pressures [Pa], or a prescribed ``flow`` [m^3/s] (then the source
+    pressure is solved).  Arrays broadcast to the scenario shape."""
+
+    head: object
+    source_pressure: object
+    back_pressure: object
+    density: object
+    gravity: float
+    flow: object = None
+
+    def take(self, take):
+        """The drive of one block (``take`` is :meth:`Block.take`)."""
+        return Drive(*(take(v) for v in self[:4]), self.gravity, take(self.flow))
+
+    @property
+    def shape(self):
+        return np.broadcast_shapes(*(np.shape(v) for v in (*self[:4], self.flow) if v is not None))
+
+    def gravity_pressure(self):
+        """rho g h [Pa]."""
+        return self.density * self.gravity * self.head
+
+    def net(self):
+        """Net drive [Pa]: source pressure + rho g h - back pressure."""
+        return self.source_pressure + self.gravity_pressure() - self.back_pressure
 
 
 class Solved(NamedTuple):
-    """What a solve hands to :func:`rheoline.model.line_result.make_result`."""
+    """What a solve hands to :func:`rheoline.model.line_result.make_result`: the answers
+    over the whole scenario shape, and the layout (or a function building it: a large
+    solve lays the whole line out only if a result's per-part property asks for it)."""
 
     layout: object
     flow: np.ndarray
-    pieces: tuple
+    drops: np.ndarray
+    exit_drop: np.ndarray
+    reynolds: np.ndarray
+    velocity: np.ndarray
     viscosity: np.ndarray
     moving: np.ndarray
     net: np.ndarray
@@ -80,435 +142,270 @@ class Solved(NamedTuple):
     converged: np.ndarray
 
 
-# ---------------------------------------------------------------------------- the physics
-def newtonian_path(layout, fluid):
-    """True when the apparent viscosity does not depend on the flow."""
-    return fluid.is_newtonian or layout.diameter.shape[0] == 0
+# ---------------------------------------------------------------------------- the answers
+def part_values(layout, q, pieces, moving, n_parts):
+    """Per-part drops, Reynolds numbers and mean velocities ``(n_parts, *shape)`` and the
+    exit drop, from a solve's pieces (zero where the scenario does not move; NaN where a
+    quantity does not apply)."""
+    dp_lumen, dp_k, dp_meas, dp_exit, re, u = pieces[:6]
+    shape = np.shape(q)
+    drops = np.zeros((n_parts, *shape))
+    reynolds = np.full((n_parts, *shape), np.nan)
+    velocity = np.full((n_parts, *shape), np.nan)
+    drops[layout.lumen_rows] = dp_lumen
+    drops[layout.k_rows] = dp_k
+    drops[layout.measured_rows] = dp_meas
+    reynolds[layout.lumen_rows] = re
+    velocity[layout.lumen_rows] = u
+    if len(layout.k_rows):
+        velocity[layout.k_rows] = q / layout.k_velocity_area
+    drops = np.where(moving, drops, 0.0)
+    reynolds = np.where(moving, reynolds, np.where(np.isnan(reynolds), np.nan, 0.0))
+    velocity = np.where(moving, velocity, np.where(np.isnan(velocity), np.nan, 0.0))
+    return drops, reynolds, velocity, np.where(moving, dp_exit * np.ones(shape), 0.0)
 
 
-def apparent_viscosity(layout, fluid, log_q, state):
-    """Apparent viscosity of each lumen at ln(Q) from the Rabinowitsch state (Taylor step)."""
-    if state is None:
-        mu = fluid.rheology.viscosity() * layout.viscosity_factor
-        return mu, 0.0, None
-    radius = layout.diameter / 2.0
-    q_i, tau_i, dlog_q, dlog_tau = _lumen._rabinowitsch_state(fluid.rheology, state, radius)
-    dlog_tau_q = dlog_tau / dlog_q  # d ln(tau_w) / d ln(Q)
-    dlog_mu = dlog_tau_q - 1.0
-    log_q_i = np.log(q_i)
-    mismatch = log_q + np.log(layout.flow_scale) - log_q_i
-    # wall stress carried from the inner state to ln(Q) by one Taylor step, then
-    # mu_app = tau_w / (4 Q / (pi R^3)), Q that of a circle of the hydraulic diameter
-    tau = tau_i * np.exp(dlog_tau_q * mismatch)
-    mu = (
-        layout.viscosity_factor
-        * tau
-        * np.pi
-        * radius**3
-        / (4.0 * np.exp(log_q) * layout.flow_scale)
-    )
-    return mu, dlog_mu, (log_q_i, dlog_q, mismatch)
+class _Answers:
+    """The result arrays of a solve, filled one block at a time (or at once: ``block`` None)."""
 
+    def __init__(self, shape, n_parts, n_lumens, viscosity=None):
+        self.shape, self.n_parts = shape, n_parts
+        self.flow, self.net, self.required, self.exit_drop = (np.empty(shape) for _ in range(4))
+        self.moving = np.empty(shape, dtype=bool)
+        self.converged = np.empty(shape, dtype=bool)
+        self.drops, self.reynolds, self.velocity = (np.empty((n_parts, *shape)) for _ in range(3))
+        # a Newtonian fluid without a diameter correction: one viscosity, no array
+        self.viscosity = viscosity if viscosity is not None else np.empty((n_lumens, *shape))
+        self._own_viscosity = viscosity is None
+        self.iterations = 0
 
-def losses(layout, q, mu, dlog_mu):
-    """Every loss at flow ``q``: total [Pa], d(total)/d ln Q [Pa], and the pieces.
-
-    The pieces are ``(lumen drops, K-fitting drops, measured drops, exit drop, lumen
-    Reynolds numbers, lumen mean velocities, lumen log-slopes)``.
-    """
-    dp_f, slope_f, re, u = _lumen._lumen_friction(
-        q,
-        layout.area,
-        layout.diameter,
-        layout.length,
-        layout.relative_roughness,
-        layout.density,
-        mu,
-        dlog_mu,
-        layout.developing,
-        layout.laminar_f_re,
-    )
-    dp_m = layout.minor_k * 0.5 * layout.density * u * u
-    dp_lumen = dp_f + dp_m
-    q2 = q * q
-    k_quad = layout.k_coefficient * q2
-    k_lin = layout.k_linear * q
-    dp_k = k_quad + k_lin
-    lin = layout.measured_a * q
-    quad = layout.measured_b * q2
-    dp_exit = layout.exit_coefficient * q2
-    total = dp_lumen.sum(axis=0) + dp_k.sum(axis=0) + (lin + quad).sum(axis=0) + dp_exit
-    lumen_slope = dp_f * slope_f + 2.0 * dp_m
-    slope = (
-        lumen_slope.sum(axis=0)
-        + (2.0 * k_quad + k_lin).sum(axis=0)
-        + (lin + 2.0 * quad).sum(axis=0)
-        + 2.0 * dp_exit
-    )
-    return total, slope, (dp_lumen, dp_k, lin + quad, dp_exit, re, u, lumen_slope)
-
-
-def exact_losses(layout, fluid, q):
-    """Losses at ``q`` with each lumen's apparent viscosity solved exactly.
-
-    Returns ``(total [Pa], d total / d ln Q [Pa], pieces, apparent viscosity [Pa s],
-    d ln(viscosity) / d ln Q)``.
-    """
-    if newtonian_path(layout, fluid):
-        mu, dlog_mu, _ = apparent_viscosity(layout, fluid, np.log(q), None)
-    else:
-        radius = layout.diameter / 2.0
-        y, q_i, tau_i, dlog_q, dlog_tau = _lumen._solve_log_wall_shear_rate(
-            fluid.rheology, q * layout.flow_scale * np.ones_like(radius), radius
-        )
-        # with the target flow, so that 64/Re gives 2 L tau_w / R even where the inner
-        # solve is limited by rounding (a yield-stress fluid at a vanishing flow)
-        mu = layout.viscosity_factor * tau_i * np.pi * radius**3 / (4.0 * q * layout.flow_scale)
-        dlog_mu = dlog_tau / dlog_q - 1.0
-    total, slope, pieces = losses(layout, q, mu, dlog_mu)
-    return total, slope, pieces, mu, dlog_mu
-
-
-def yield_drop(layout, fluid):
-    """Net drive [Pa] a yield-stress fluid needs to move, sum of 2 L tau_y / R (else 0)."""
-    tau_y = getattr(fluid.rheology, "yield_stress", None)
-    if tau_y is None or not layout.diameter.shape[0]:
-        return np.zeros(layout.shape)
-    return (2.0 * layout.length * tau_y * layout.viscosity_factor / (layout.diameter / 2.0)).sum(
-        axis=0
-    )
-
-
-def _quadratic_guess(layout, mu, drive):
-    d, length = layout.diameter, layout.length
-    # 2 C mu L / (A D_h^2) with C the laminar f Re: 128 mu L / (pi D^4) for a circle
-    shape_factor = layout.laminar_f_re / 16.0 * layout.flow_scale
-    a = (128.0 * mu * length / (np.pi * d**4) * shape_factor).sum(axis=0)
-    a = a + layout.measured_a.sum(axis=0) + layout.k_linear.sum(axis=0)
-    area = layout.area
-    hagenbach = np.where(layout.developing, 1.25, 0.0)
-    b = ((layout.minor_k + hagenbach) * layout.density / (2.0 * area * area)).sum(axis=0)
-    b = b + layout.k_coefficient.sum(axis=0) + layout.measured_b.sum(axis=0)
-    b = b + layout.exit_coefficient
-    return 2.0 * drive / (a + np.sqrt(a * a + 4.0 * b * drive))
-
-
-def guess(layout, fluid, drive):
-    """Flow from the laminar-plus-kinetic closed form dp = A Q + B Q^2 (quadratic in Q).
-
-    For a non-Newtonian fluid the viscosity in A is refined by three cheap fixed-point
-    passes at each lumen's Newtonian wall shear rate 4Q/(pi R^3).
-    """
-    mu = fluid.rheology.infinite_shear_viscosity * layout.viscosity_factor
-    q = _quadratic_guess(layout, mu, drive)
-    if not newtonian_path(layout, fluid):
-        radius = layout.diameter / 2.0
-        # a yield-stress fluid's viscosity is unbounded at vanishing shear: a pass whose
-        # guess overflows or underflows keeps the previous, finite guess
-        with np.errstate(over="ignore", divide="ignore", invalid="ignore"):
-            for _ in range(3):
-                rate = 4.0 * q * layout.flow_scale / (np.pi * radius**3)
-                mu = fluid.rheology.viscosity(rate) * layout.viscosity_factor
-                refined = _quadratic_guess(layout, mu, drive)
-                q = np.where(np.isfinite(refined) & (refined > 0.0), refined, q)
-    return q
-
-
-# ---------------------------------------------------------------------------- Newton path
-def _newton_start(layout, fluid, drive):
-    """Starting ln(Q), ln(drive), the moving mask and the Rabinowitsch state (or None)."""
-    moving = drive > MIN_DRIVE
-    drive_pos = np.where(moving, drive, 1.0)
-    x = np.log(guess(layout, fluid, drive_pos))
-    log_drive = np.log(drive_pos)
-    state = None
-    if not newtonian_path(layout, fluid):
-        radius = layout.diameter / 2.0
-        state = np.log(4.0 * layout.flow_scale / (np.pi * radius**3)) + x
-        # a yield-stress fluid needs the yield pressure 2 L tau_y / R in every lumen to move
-        if getattr(fluid.rheology, "yield_stress", None) is not None:
-            moving = (drive > yield_drop(layout, fluid) * (1.0 + 1e-9)) & (drive > MIN_DRIVE)
-            drive_pos = np.where(moving, drive, 1.0)
-            log_drive = np.log(drive_pos)
-            x = np.where(moving, x, 0.0)
-            state = np.log(4.0 * layout.flow_scale / (np.pi * radius**3)) + x
-    return x, log_drive, moving, state
-
-
-def _safeguarded_step(x, g, g_prime, lo, hi):
-    """Newton step kept strictly inside the bracket (else bisected), at most 5 in ln(Q)."""
-    x_new = x - g / g_prime
-    # strictly inside the bracket, else bisect (converged scenarios are frozen by the
-    # caller, so a step that lands on a bracket end is a cycle, not convergence)
-    outside = ~((x_new > lo) & (x_new < hi)) & (np.abs(x_new - x) >= _TOL)
-    both = np.isfinite(lo) & np.isfinite(hi)
-    fallback = np.where(
-        both,
-        0.5 * (np.where(both, lo, 0.0) + np.where(both, hi, 0.0)),
-        np.where(np.isfinite(hi), np.minimum(x, hi) - 2.0, np.maximum(x, lo) + 2.0),
-    )
-    x_new = np.where(outside, fallback, x_new)
-    return np.clip(x_new, x - 5.0, x + 5.0)
-
-
-def _newton(layout, fluid, drive):
-    """Flow of every scenario at its drive by safeguarded Newton iterations in ln(Q)."""
-    x, log_drive, moving, state = _newton_start(layout, fluid, drive)
-    lo = np.full(layout.shape, -np.inf)
-    hi = np.full(layout.shape, np.inf)
-    converged = np.zeros(layout.shape, bool)
-    for iteration in range(1, _MAX_ITER + 1):  # noqa: B007 (read after the loop)
-        mu, dlog_mu, inner = apparent_viscosity(layout, fluid, x, state)
-        q = np.exp(x)
-        total, slope, pieces = losses(layout, q, mu, dlog_mu)
-        g = np.log(total) - log_drive
-        if inner is None:
-            consistent = np.ones(layout.shape, bool)
-            mismatch = 0.0
+    def put(self, block, layout, q, pieces, mu, moving, total, drive, converged, iterations):
+        """Store a block's answers (the whole scenario shape's when ``block`` is None)."""
+        drops, reynolds, velocity, exit_drop = part_values(layout, q, pieces, moving, self.n_parts)
+        net = np.where(moving, total, 0.0)
+        per_scenario = {
+            "flow": q,
+            "net": net,
+            "required": net + drive.back_pressure - drive.gravity_pressure(),
+            "exit_drop": exit_drop,
+            "moving": moving,
+            "converged": converged,
+        }
+        per_part = {"drops": drops, "reynolds": reynolds, "velocity": velocity}
+        if self._own_viscosity:
+            per_part["viscosity"] = mu * np.ones_like(pieces[0])
+        if block is None:
+            for name, value in (*per_scenario.items(), *per_part.items()):
+                getattr(self, name)[...] = value
         else:
-            mismatch = np.max(np.abs(inner[2]), axis=0)
-            consistent = mismatch < 1e-3
-        hi = np.where(consistent & (g > 0), np.minimum(hi, x), hi)
-        lo = np.where(consistent & (g <= 0), np.maximum(lo, x), lo)
-        x_new = _safeguarded_step(x, g, slope / total, lo, hi)
-        step = np.where(moving & ~converged, x_new - x, 0.0)
-        converged = converged | ((np.abs(step) < _TOL) & (np.asarray(mismatch) < _TOL))
-        if np.all(converged | ~moving):
-            break
-        if inner is not None:
-            log_q_i, dlog_q, _ = inner
-            step = (x_new + np.log(layout.flow_scale) - log_q_i) / dlog_q
-            state = np.where(converged, state, state + np.clip(step, -5.0, 5.0))
-        x = np.where(moving & ~converged, x_new, x)
-    return q, pieces, mu, moving, total, iteration, converged | ~moving
+            sl = slice(block.start, block.stop)
+            for name, value in per_scenario.items():
+                getattr(self, name).reshape(-1)[sl] = value
+            for name, value in per_part.items():
+                array = getattr(self, name)
+                array.reshape(len(array), -1)[:, sl] = value
+        self.iterations = max(self.iterations, int(iterations))
+
+    def solved(self, layout):
+        """The :class:`Solved` of the whole solve."""
+        return Solved(
+            layout,
+            self.flow,
+            self.drops,
+            self.exit_drop,
+            self.reynolds,
+            self.velocity,
+            self.viscosity,
+            self.moving,
+            self.net,
+            self.required,
+            self.iterations,
+            self.converged,
+        )
 
 
-def solve_for_flow(line, fluid, drive, gravity, back_pressure, pries) -> Solved:
-    """Flow at each net drive ``drive`` [Pa] (= source pressure + rho g h - back pressure).
-
-    ``gravity`` [Pa] (rho g h) and ``back_pressure`` [Pa] give the required source
-    pressure of the result.  256 or more drives through a shared line take the tabulated
-    characteristic (when its error check passes), the others the Newton path.
-    """
-    if np.size(drive) >= CURVE_MIN_SCENARIOS:
-        shared = build_layout(line, fluid, (), pries)
-        if shared.shape == ():
-            solved = solve_on_characteristic(line, shared, fluid, np.asarray(drive), pries)
-            if solved is not None:
-                q_out, pieces, mu, moving, total, layout = solved
-                net = np.where(moving, total, 0.0)
-                return Solved(
-                    layout,
-                    q_out,
-                    pieces,
-                    mu,
-                    moving,
-                    net,
-                    net + back_pressure - gravity,
-                    0,
-                    np.ones(layout.shape, bool),
-                )
-    layout = build_layout(line, fluid, np.shape(drive), pries)
-    drive = drive * np.ones(layout.shape)
-    q, pieces, mu, moving, total, iterations, converged = _newton(layout, fluid, drive)
-    net = np.where(moving, total, 0.0)
-    return Solved(
-        layout,
-        np.where(moving, q, 0.0),
-        pieces,
-        mu,
-        moving,
-        net,
-        net + back_pressure - gravity,
-        iterations,
-        converged,
-    )
+def _laid_out(line, fluid, drive, pries, table, blocks):
+    """``(block, layout, drive)`` of each block of a solve; one ``(None, layout, drive)``
+    over the whole scenario shape when one block holds every scenario."""
+    if blocks.single:
+        yield None, build_layout(line, fluid, drive.shape, pries, table=table), drive
+        return
+    for block in blocks:
+        layout = build_layout(line, fluid, pries=pries, block=block, table=table)
+        yield block, layout, drive.take(block.take)
 
 
-def solve_for_pressure(line, fluid, q_in, gravity, back_pressure, pries) -> Solved:
-    """Losses at each prescribed flow ``q_in`` [m^3/s] and the source pressure they need."""
-    shape = np.broadcast_shapes(q_in.shape, np.shape(gravity), back_pressure.shape)
-    positive = q_in[q_in > MIN_FLOW]
-    if q_in.size >= CURVE_MIN_SCENARIOS and positive.size:
-        shared = build_layout(line, fluid, (), pries)
-        table = None
-        if shared.shape == ():
-            table = _tabulate(
-                line, fluid, float(positive.min()) / 1.01, float(positive.max()) * 1.01, pries
-            )
-        if table is not None:
-            layout = build_layout(line, fluid, shape, pries)
-            q = q_in * np.ones(shape)
-            moving = q > MIN_FLOW
-            y = np.log(np.where(moving, q, float(positive.min())))
-            pieces, mu, total = _parts_on_curve(table, layout, fluid, y)
-            net = np.where(moving, total, 0.0)
-            return Solved(
-                layout,
-                q,
-                pieces,
-                mu,
-                moving,
-                net,
-                net + back_pressure - gravity,
-                0,
-                np.ones(shape, bool),
-            )
-    layout = build_layout(line, fluid, shape, pries)
-    q = q_in * np.ones(layout.shape)
-    moving = q > MIN_FLOW
-    q_safe = np.where(moving, q, 1e-100)  # any flow; the results are masked below
-    total, _, pieces, mu, _ = exact_losses(layout, fluid, q_safe)
-    required = np.where(moving, total, 0.0) + back_pressure - gravity
-    return Solved(
-        layout,
-        q,
-        pieces,
-        mu,
-        moving,
-        required + gravity - back_pressure,
-        required,
-        1,
-        np.ones(layout.shape, bool),
-    )
+def _result_layout(line, fluid, drive, pries, table, blocks, layout):
+    """The layout a result keeps: the solve's own (one block), else a function building
+    the whole line's layout if a result's per-part property asks for it."""
+    if blocks.single:
+        return layout
+    return lambda: build_layout(line, fluid, drive.shape, pries, table=table)
 
 
-# ---------------------------------------------------------------- the shared characteristic
-def _characteristic(line, fluid, q_grid, pries):
-    """The line's exact loss curve on a grid of flows (one small vectorized pass)."""
-    layout = build_layout(line, fluid, q_grid.shape, pries)
-    return exact_losses(layout, fluid, q_grid)
+# ---------------------------------------------------------------------------- the solves
+def _plan(line, fluid, drive, passes):
+    """The scenario shape, its blocks and the rheology table (or None) of a solve."""
+    shape = scenario_shape(line, fluid, drive.shape)
+    n_lumens = lumen_row_count(line) or 1
+    blocks = Blocks(shape, n_lumens)
+    if not blockable(fluid.rheology):
+        blocks = Blocks(shape, n_lumens, size=max(1, blocks.count))
+    table = None
+    if not fluid.is_newtonian:
+        found = cached_table(fluid.rheology)
+        if found is not False:
+            table = found
+        elif blocks.count * n_lumens * passes >= TABLE_MIN_EVALUATIONS:
+            table = rheology_table(fluid.rheology)
+    return shape, blocks, table
 
 
-def solve_on_characteristic(line, shared, fluid, drive, pries):
-    """Flow for many drives through one line whose geometry and fluid are shared.
+def _constant_viscosity(fluid, pries, n_lumens, shape):
+    """A Newtonian fluid's one viscosity broadcast over the lumens and scenarios (no
+    array of it), or None where it varies (a diameter correction, per-scenario fluids)."""
+    mu = fluid.rheology.viscosity() if fluid.is_newtonian else None
+    if mu is None or pries or np.ndim(mu):
+        return None
+    return np.broadcast_to(np.asarray(float(mu)), (n_lumens, *shape))
 
-    Every scenario then lies on the same characteristic, losses(Q).  It is computed
-    exactly on a log-spaced grid of flows and inverted by cubic Hermite interpolation
-    in (ln losses, ln Q) with the exact slopes; each part's drop and apparent viscosity
-    are interpolated the same way.  The interpolation error is checked at the grid
-    midpoints against exact evaluations (below 1e-9 in ln Q, else the grid is refined
-    or the Newton path is used).  Returns None to fall back to the Newton path.
-    """
+
+class _FlowCurve(NamedTuple):
+    """The shared characteristic of a flow solve, the drive the fluid needs to move, and
+    the lowest moving drive (which the non-moving scenarios are evaluated at)."""
+
+    curve: object
+    threshold: float
+    low: float
+
+
+def _shared_curve(line, fluid, drive, pries, table):
+    """The characteristic for many drives through one shared line, where it is cheaper
+    than the Newton path and passes its check (else None)."""
+    count = int(np.prod(drive.shape))
+    if count < _SOLVERS.CURVE_MIN_SCENARIOS or scenario_shape(line, fluid) != ():
+        return None
+    shared = build_layout(line, fluid, (), pries, table=table)
+    net_drive = np.asarray(drive.net(), dtype=float)
     threshold = max(MIN_DRIVE, float(yield_drop(shared, fluid)) * (1.0 + 1e-9))
-    moving = drive > threshold
+    moving = net_drive > threshold
     if not np.any(moving):
         return None
-    d_lo, d_hi = float(np.min(drive[moving])), float(np.max(drive[moving]))
-    q_lo = float(guess(shared, fluid, np.asarray(d_lo))) / 4.0
-    q_hi = float(guess(shared, fluid, np.asarray(d_hi))) * 4.0
-    for _ in range(12):  # widen until the curve spans every drive
-        ends = _characteristic(line, fluid, np.array([q_lo, q_hi]), pries)[0]
-        if ends[0] < d_lo and ends[1] > d_hi:
-            break
-        q_lo = q_lo / 8.0 if ends[0] >= d_lo else q_lo
-        q_hi = q_hi * 8.0 if ends[1] <= d_hi else q_hi
-    else:
+    d_lo, d_hi = float(np.min(net_drive[moving])), float(np.max(net_drive[moving]))
+    del net_drive, moving
+    span = _curve.flow_range(line, shared, fluid, d_lo, d_hi, pries, table)
+    if span is None:
         return None
-    table = _tabulate(line, fluid, q_lo, q_hi, pries)
-    if table is None:
+    n_grid = _curve.grid_size(*span)
+    if not _curve.cheaper_than_newton(count, n_grid, _curve.exact_pass_cost(shared, fluid)):
         return None
-    log_q, log_t, dydx = table[0], table[1], table[2]
-    y = _hermite(log_t, log_q, dydx, np.log(np.where(moving, drive, d_lo)))
-    layout = build_layout(line, fluid, drive.shape, pries)
-    pieces_out, mu_out, total_out = _parts_on_curve(table, layout, fluid, y)
-    return np.where(moving, np.exp(y), 0.0), pieces_out, mu_out, moving, total_out, layout
+    curve = _curve.characteristic(line, fluid, *span, pries, table)
+    return None if curve is None else _FlowCurve(curve, threshold, d_lo)
 
 
-def _tabulate(line, fluid, q_lo, q_hi, pries):
-    """The characteristic on a log grid from q_lo to q_hi, checked at the midpoints."""
-    span = np.log(q_hi / q_lo)
-    n_grid = int(np.clip(np.ceil(span / 0.004), 64, 20000)) + 1
-    for _ in range(4):
-        log_q = np.linspace(np.log(q_lo), np.log(q_hi), n_grid)
-        total, slope, pieces, mu, dlog_mu = _characteristic(line, fluid, np.exp(log_q), pries)
-        log_t = np.log(total)
-        dydx = total / slope  # d ln Q / d ln losses
-        log_mid = 0.5 * (log_q[1:] + log_q[:-1])
-        log_mid_total = np.log(_characteristic(line, fluid, np.exp(log_mid), pries)[0])
-        if np.all(np.diff(log_t) > 0):
-            err_q = np.abs(_hermite(log_t, log_q, dydx, log_mid_total) - log_mid)
-            forward = _hermite_apply(
-                _hermite_basis(log_q, log_mid, uniform=True), log_t, 1.0 / dydx
-            )
-            err_t = np.abs(forward - log_mid_total)
-            if max(np.max(err_q), np.max(err_t)) < _CURVE_TOL:
-                return log_q, log_t, dydx, pieces, mu, dlog_mu
-        n_grid = 2 * n_grid - 1
-    return None
+def solve_for_flow(line, fluid, drive, pries, start=None) -> Solved:
+    """Flow at each net drive of ``drive`` (a :class:`Drive`).
 
-
-def _parts_on_curve(table, layout, fluid, y):
-    """Per-part drops and apparent viscosities at ln(Q) = y from the tabulated curve."""
-    log_q, _, _, pieces, mu, dlog_mu = table
-    q = np.exp(y)
-    dp_lumen_grid, lumen_slope_grid = pieces[0], pieces[6]
-    n_l = dp_lumen_grid.shape[0]
-    dp_lumen = np.empty((n_l, *np.shape(y)))
-    mu_out = np.empty((n_l, *np.shape(y)))
-    mu_grid = mu * np.ones_like(dp_lumen_grid)
-    dlog_mu_grid = dlog_mu * np.ones_like(dp_lumen_grid)
-    basis = _hermite_basis(log_q, y, uniform=True)
-    for j in range(n_l):
-        dp_lumen[j] = np.exp(
-            _hermite_apply(basis, np.log(dp_lumen_grid[j]), lumen_slope_grid[j] / dp_lumen_grid[j])
-        )
-        if newtonian_path(layout, fluid):
-            mu_out[j] = mu_grid[j, 0]
-        else:
-            mu_out[j] = np.exp(_hermite_apply(basis, np.log(mu_grid[j]), dlog_mu_grid[j]))
-    area = layout.area
-    u = q / area
-    re = layout.density * u * layout.diameter / mu_out
-    q2 = q * q
-    dp_k = layout.k_coefficient * q2 + layout.k_linear * q
-    dp_meas = layout.measured_a * q + layout.measured_b * q2
-    dp_exit = layout.exit_coefficient * q2
-    total_out = dp_lumen.sum(axis=0) + dp_k.sum(axis=0) + dp_meas.sum(axis=0) + dp_exit
-    return (dp_lumen, dp_k, dp_meas, dp_exit, re, u), mu_out, total_out
-
-
-def _locate(x_grid, x):
-    """Index k with x_grid[k] <= x < x_grid[k+1] (clipped), for an increasing grid.
-
-    Buckets no wider than the smallest grid step hold at most one grid point, so a table
-    lookup plus one comparison replaces a binary search per value.
+    Many drives through a shared line take the tabulated characteristic where it is
+    cheaper and its error check passes, the others the Newton path, in blocks.  ``start``
+    is an optional starting flow [m^3/s] (a warm start, broadcasting to the scenarios).
     """
-    step = float(np.min(np.diff(x_grid)))
-    span = float(x_grid[-1] - x_grid[0])
-    n_buckets = int(np.ceil(span / step)) + 1 if step > 0 else 0
-    if not 0 < n_buckets <= 16 * x_grid.size:
-        return np.clip(np.searchsorted(x_grid, x, side="right") - 1, 0, x_grid.size - 2)
-    width = span / (n_buckets - 1) if n_buckets > 1 else 1.0
-    starts = x_grid[0] + width * np.arange(n_buckets)
-    table = np.clip(np.searchsorted(x_grid, starts, side="right") - 1, 0, x_grid.size - 2)
-    b = np.clip(((x - x_grid[0]) / width).astype(np.intp), 0, n_buckets - 1)
-    k = table[b]
-    k = k + (x >= x_grid[np.minimum(k + 1, x_grid.size - 1)])
-    return np.clip(k, 0, x_grid.size - 2)
+    shape, blocks, table = _plan(line, fluid, drive, 4)
+    n_parts, n_lumens = len(line.parts), lumen_row_count(line)
+    curve = None if start is not None else _shared_curve(line, fluid, drive, pries, table)
+    viscosity = _constant_viscosity(fluid, pries, n_lumens, shape)
+    answers = _Answers(shape, n_parts, n_lumens, None if blocks.single else viscosity)
+    for block, layout, d in _laid_out(line, fluid, drive, pries, table, blocks):
+        net = d.net() * np.ones(layout.shape)
+        if curve is not None:
+            q, pieces, mu, moving, total = _on_curve(curve, layout, net)
+            answers.put(block, layout, q, pieces, mu, moving, total, d, True, 0)
+            continue
+        warm = None if start is None or block is None else block.take(start)
+        res = newton_flow(layout, fluid, net, _SOLVERS, start if block is None else warm)
+        q = np.where(res.moving, res.flow, 0.0)
+        answers.put(
+            block,
+            layout,
+            q,
+            res.pieces,
+            res.viscosity,
+            res.moving,
+            res.total,
+            d,
+            res.converged,
+            res.iterations,
+        )
+    return answers.solved(_result_layout(line, fluid, drive, pries, table, blocks, layout))
 
 
-def _hermite_basis(x_grid, x, uniform=False):
-    """Interval index and the four cubic Hermite basis values (times the interval width)."""
-    if uniform:
-        h0 = x_grid[1] - x_grid[0]
-        k = np.clip(((x - x_grid[0]) / h0).astype(np.intp), 0, x_grid.size - 2)
-    else:
-        k = _locate(x_grid, x)
-    x0 = x_grid[k]
-    h = x_grid[k + 1] - x0
-    s = (x - x0) / h
-    s2 = s * s
-    s3 = s2 * s
-    b01 = 3.0 * s2 - 2.0 * s3
-    return k, (1.0 - b01, (s3 - 2.0 * s2 + s) * h, b01, (s3 - s2) * h)
+def _on_curve(curve, layout, net):
+    """Flows and losses of the scenarios of ``layout`` at net drives ``net`` on the curve."""
+    moving = net > curve.threshold
+    y = curve.curve.log_flow(np.where(moving, net, curve.low))
+    pieces, mu, total = curve.curve.parts(layout, y)
+    return np.where(moving, np.exp(y), 0.0), pieces, mu, moving, total
 
 
-def _hermite_apply(basis, y_grid, slope_grid):
-    k, (b00, b10, b01, b11) = basis
-    return b00 * y_grid[k] + b10 * slope_grid[k] + b01 * y_grid[k + 1] + b11 * slope_grid[k + 1]
+def solve_for_pressure(line, fluid, drive, pries) -> Solved:
+    """Losses at each prescribed flow ``drive.flow`` [m^3/s] and the source pressure they
+    need (one exact evaluation per scenario, in blocks; or the shared characteristic where
+    that is cheaper)."""
+    shape, blocks, table = _plan(line, fluid, drive, 1)
+    n_parts, n_lumens = len(line.parts), lumen_row_count(line)
+    curve = _pressure_curve(line, fluid, drive, pries, table)
+    viscosity = _constant_viscosity(fluid, pries, n_lumens, shape)
+    answers = _Answers(shape, n_parts, n_lumens, None if blocks.single else viscosity)
+    for block, layout, d in _laid_out(line, fluid, drive, pries, table, blocks):
+        q = d.flow * np.ones(layout.shape)
+        moving = q > MIN_FLOW
+        if curve is not None:
+            pieces, mu, total = curve.parts(layout, np.log(np.where(moving, q, curve_low(curve))))
+        else:  # any flow where none moves: the results are masked
+            total, _, pieces, mu, _ = exact_losses(layout, fluid, np.where(moving, q, 1e-100))
+        answers.put(block, layout, q, pieces, mu, moving, total, d, True, 1)
+    return answers.solved(_result_layout(line, fluid, drive, pries, table, blocks, layout))
 
 
-def _hermite(x_grid, y_grid, slope_grid, x):
-    """Cubic Hermite interpolation of y(x) on an increasing grid with slopes dy/dx."""
-    return _hermite_apply(_hermite_basis(x_grid, x), y_grid, slope_grid)
+def curve_low(curve):
+    """The lowest flow [m^3/s] of a characteristic's grid."""
+    return float(np.exp(curve.log_q[0]))
+
+
+def _pressure_curve(line, fluid, drive, pries, table):
+    """The characteristic over the prescribed flows where it is cheaper than evaluating
+    each (else None)."""
+    count = int(np.prod(drive.shape))
+    if count < _SOLVERS.CURVE_MIN_SCENARIOS or scenario_shape(line, fluid) != ():
+        return None
+    shared = build_layout(line, fluid, (), pries, table=table)
+    q_in = np.asarray(drive.flow, dtype=float)
+    positive = q_in[q_in > MIN_FLOW]
+    if not positive.size:
+        return None
+    q_lo, q_hi = float(positive.min()) / 1.01, float(positive.max()) * 1.01
+    del q_in, positive
+    cost = _curve.exact_pass_cost(shared, fluid)
+    if not _curve.cheaper_than_newton(count, _curve.grid_size(q_lo, q_hi), cost, cost):
+        return None
+    return _curve.characteristic(line, fluid, q_lo, q_hi, pries, table)
+
+
+def losses_at(line, fluid, drive, pries, residual=False):
+    """Losses [Pa] and d(losses)/dQ [Pa s/m^3] at the flows ``drive.flow`` (>= 0), over the
+    scenario shape, in blocks; with ``residual`` the losses minus the net drive (and at
+    zero flow the losses of the smallest flow), else at zero flow the yield pressure."""
+    shape, blocks, table = _plan(line, fluid, drive, 1)
+    total_out, slope_out = np.empty(shape), np.empty(shape)
+    for block, layout, d in _laid_out(line, fluid, drive, pries, table, blocks):
+        q_in = d.flow * np.ones(layout.shape)
+        q = np.maximum(q_in, MIN_FLOW)
+        total, slope = exact_losses(layout, fluid, q)[:2]
+        if residual:
+            total = total - d.net()
+        else:  # at (numerically) zero flow the losses are the yield pressure (0 for most)
+            total = np.where(q_in > MIN_FLOW, total, yield_drop(layout, fluid))
+        sl = slice(None) if block is None else slice(block.start, block.stop)
+        total_out.reshape(-1)[sl] = np.broadcast_to(total, layout.shape).reshape(-1)
+        slope_out.reshape(-1)[sl] = np.broadcast_to(slope / q, layout.shape).reshape(-1)
+    return total_out, slope_out

@@ -105,10 +105,13 @@ class NetworkResult:
             free_p = np.zeros((len(topo.free_nodes), *shape))
         nodes_p = topo.node_pressure(free_p, fixed)
         flows = np.where(closed, 0.0, flows)
+        scale = np.maximum(np.max(np.abs(flows), axis=0), 1e-300)
+        # a flow within rounding of zero (1e-12 of its scenario's largest) has no sign: it
+        # is zero (a pump branch at zero pump flow comes out of the linear solve as +-1e-23)
+        flows = np.where(np.abs(flows) <= 1e-12 * scale, 0.0, flows)
         reversed_ = (flows < 0.0) & ~closed
         inflow = np.tensordot(topo.a_fixed.T, flows, axes=(1, 0))  # into the network
         balance = np.tensordot(topo.a_free.T, flows, axes=(1, 0)) - topo.injection(shape)
-        scale = np.maximum(np.max(np.abs(flows), axis=0), 1e-300)
         imbalance = float(np.max(np.abs(balance) / scale)) if len(topo.free_nodes) else 0.0
         pump_p = np.stack(
             [nodes_p[topo.nodes.index(p.node)] for p in topo.pumps] or [np.zeros((0,))]
