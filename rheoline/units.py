@@ -20,6 +20,7 @@ from __future__ import annotations
 
 import functools
 import math
+import os
 import re
 
 from rheoline.errors import UnitError
@@ -58,12 +59,32 @@ KINDS = {
 }
 
 
+#: Set this environment variable to ``0`` to build pint's registry from its definitions at
+#: every start (no cache on disk).
+CACHE_ENV = "RHEOLINE_UNIT_CACHE"
+
+
 @functools.lru_cache(maxsize=1)
 def registry():
-    """The package's single pint UnitRegistry (created on first use)."""
+    """The package's single pint UnitRegistry (created on first use).
+
+    pint parses its definitions file (some 0.6 s) unless its own on-disk cache of the
+    parsed definitions exists (pint's ``cache_folder=":auto:"``, the user's cache folder):
+    then a command starts its registry in well under 0.1 s.  A cache that cannot be
+    written or read is skipped (the registry is built from the definitions), and
+    ``RHEOLINE_UNIT_CACHE=0`` turns it off.  The package's own units below are defined
+    after loading, never cached.
+    """
     import pint
 
-    ureg = pint.UnitRegistry(autoconvert_offset_to_baseunit=True)
+    ureg = None
+    if os.environ.get(CACHE_ENV, "1") != "0":
+        try:
+            ureg = pint.UnitRegistry(autoconvert_offset_to_baseunit=True, cache_folder=":auto:")
+        except Exception:  # noqa: BLE001  (any failure of the cache: build without it)
+            ureg = None
+    if ureg is None:
+        ureg = pint.UnitRegistry(autoconvert_offset_to_baseunit=True)
     # The trade's pressure units with their conventional (NIST SP 811) values.
     ureg.define(f"mmHg_conv = {MMHG} * Pa = mmHg_c")
     ureg.define(f"cmH2O_conv = {CMH2O} * Pa = cmH2O_c")

@@ -159,3 +159,54 @@ def test_the_unit_cache_refuses_what_the_parser_refuses_every_time():
             exact = registry().Quantity(x, _units_of(unit, kind, "f")).to(KINDS[kind][0]).magnitude
             assert from_unit(x, unit, kind) == exact
     assert parse_quantity("98.6 degF", "temperature") == pytest.approx(37.0)  # offset: pint
+
+
+def _fresh_registry_values(monkeypatch, **env):
+    """Conversions read from a registry built now (the module's cached one cleared)."""
+    from rheoline import units
+
+    for key, value in env.items():
+        monkeypatch.setenv(key, value)
+    units.registry.cache_clear()
+    units._checked_unit.cache_clear()
+    try:
+        ureg = units.registry()
+        return [
+            ureg.Quantity(text).to_base_units().magnitude
+            for text in ("300 mmHg_conv", "20 cmH2O_conv", "18 Fr", "1 psi", "37 degC")
+        ]
+    finally:
+        units.registry.cache_clear()
+        units._checked_unit.cache_clear()
+
+
+def test_registry_from_pints_disk_cache_equals_the_one_built_from_definitions(monkeypatch):
+    # NIST SP 811 (2008) Appendix B: 1 mmHg (conventional) = 133.322 387 415 Pa,
+    # 1 cmH2O (conventional) = 98.0665 Pa, 1 psi = 6894.757 Pa; ISO 10555-1: 1 Fr = 1/3 mm
+    cached = _fresh_registry_values(monkeypatch, RHEOLINE_UNIT_CACHE="1")
+    again = _fresh_registry_values(monkeypatch, RHEOLINE_UNIT_CACHE="1")  # read from disk
+    built = _fresh_registry_values(monkeypatch, RHEOLINE_UNIT_CACHE="0")
+    assert cached == again == built
+    assert built[0] == pytest.approx(300 * 133.322387415, rel=1e-12)
+    assert built[1] == pytest.approx(20 * 98.0665, rel=1e-12)
+    assert built[2] == pytest.approx(6e-3, rel=1e-12)
+    assert built[3] == pytest.approx(6894.757, rel=1e-6)
+    assert built[4] == pytest.approx(310.15, rel=1e-12)
+
+
+def test_a_cache_that_fails_builds_the_registry_from_its_definitions(monkeypatch):
+    import pint
+
+    real = pint.UnitRegistry
+    calls = []
+
+    def registry(*args, **kwargs):
+        calls.append(kwargs.get("cache_folder"))
+        if kwargs.get("cache_folder"):
+            raise PermissionError("cache folder not writable")
+        return real(*args, **kwargs)
+
+    monkeypatch.setattr(pint, "UnitRegistry", registry)
+    values = _fresh_registry_values(monkeypatch, RHEOLINE_UNIT_CACHE="1")
+    assert calls == [":auto:", None]
+    assert values[0] == pytest.approx(300 * 133.322387415, rel=1e-12)
