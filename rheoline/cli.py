@@ -2,7 +2,7 @@
 
 Commands::
 
-    rheoline run FILE [--out DIR] [--json] [--force] [--sort COLUMN] [--reach FLOW]
+    rheoline run FILE [--out DIR] [--json [--pretty]] [--force] [--sort COLUMN] [--reach FLOW]
                                                        solve a scenario file, print the table
     rheoline check FILE                                validate a scenario file, solve nothing
     rheoline fluids                                    the fluid library and its sources
@@ -155,7 +155,12 @@ def _output_options(cmd):
     cmd.add_argument(
         "--json",
         action="store_true",
-        help="print a JSON array (one object per scenario or sweep point)",
+        help="print a JSON array (one object per scenario or sweep point), compact",
+    )
+    cmd.add_argument(
+        "--pretty",
+        action="store_true",
+        help="with --json: indent the JSON for reading (larger and slower to write)",
     )
     cmd.add_argument(
         "--force",
@@ -224,7 +229,8 @@ def _cmd_run(args, out, sset=None):
 
         run = dataclasses.replace(run, table=rank(run.table, by=args.sort))  # a run is frozen
     if args.json:
-        out.write(json.dumps(run.records(), indent=2, allow_nan=False) + "\n")
+        indent = 2 if args.pretty else None
+        out.write(json.dumps(run.records(), indent=indent, allow_nan=False) + "\n")
         print(_caution(), file=sys.stderr)
     else:
         out.write(format_run(run, reach) + "\n")

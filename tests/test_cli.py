@@ -181,6 +181,14 @@ def _api_result(fluid_name, temperature_c, parts, **drive):
     return line.solve(rheoline.fluid(fluid_name, temperature_c=temperature_c), **drive)
 
 
+def test_json_is_compact_unless_pretty_is_asked(capsys):
+    status, compact, _ = call(capsys, "run", example_path("bench-sweep"), "--json")
+    assert status == 0 and compact.count("\n") == 1  # one line: no indentation
+    status, pretty, _ = call(capsys, "run", example_path("bench-sweep"), "--json", "--pretty")
+    assert status == 0 and pretty.count("\n") > 100 and '\n  {\n    "name"' in pretty
+    assert json.loads(compact) == json.loads(pretty)
+
+
 def test_json_agrees_with_the_python_api_for_a_drive(capsys):
     status, out, err = call(capsys, "run", example_path("minimal"), "--json")
     assert status == 0 and rheoline.CAUTION in err

@@ -640,3 +640,65 @@ def test_the_inputs_sheet_echoes_the_scenario_description(tmp_path):
     # the description the pack echoes writes back to the same scenarios
     again = loads_scenarios(dump_scenarios(run.scenario_set), source="again.toml")
     assert again == run.scenario_set
+
+
+def test_streamed_workbook_and_csv_keep_every_cell_type(tmp_path):
+    # numbers stay numbers, missing and infinite numbers are empty, text that a spreadsheet
+    # would run is neutralized (OWASP, CSV injection), booleans stay booleans, a mixed text
+    # column keeps its numbers
+    import math
+
+    import openpyxl
+    import pandas as pd
+
+    frame = pd.DataFrame(
+        {
+            "flow [mL/min]": [1.5, math.nan, math.inf, -2.25],
+            "count": [1, 2, 3, 4],
+            "ok": [True, False, True, False],
+            "note": ["=1+2", None, 3.5, "a\x07b"],
+            "-lead": ["plain", "@cmd", "+x", "\tt"],
+        }
+    )
+    pack_tables.write_xlsx(tmp_path / "t.xlsx", {"sheet one": frame}, "=title")
+    rows = list(openpyxl.load_workbook(tmp_path / "t.xlsx").active.iter_rows(values_only=True))
+    assert rows[0][0] == "'=title"
+    assert rows[1] == ("flow [mL/min]", "count", "ok", "note", "'-lead")
+    assert rows[2] == (1.5, 1, True, "'=1+2", "plain")
+    assert rows[3] == (None, 2, False, None, "'@cmd")
+    assert rows[4] == (None, 3, True, 3.5, "'+x")
+    assert rows[5] == (-2.25, 4, False, "a\ufffdb", "'\tt")
+    pack_tables.write_csv(frame, tmp_path / "t.csv", "=title")
+    lines = (tmp_path / "t.csv").read_text(encoding="utf-8").splitlines()
+    assert lines[0] == "'=title"
+    assert lines[1] == "flow [mL/min],count,ok,note,'-lead"
+    assert lines[2:4] == ["1.5,1,True,'=1+2,plain", ",2,False,,'@cmd"]
+    assert lines[4] == ",3,True,3.5,'+x"
+    assert lines[5] == "-2.25,4,False,a\ufffdb,'\tt"  # a tab needs no quotes (RFC 4180)
+
+
+def test_charts_beyond_a_few_hundred_cases_show_a_sample_and_say_so():
+    from rheoline.scenario.run import run_scenarios
+
+    doc = """format_version = 1
+[[scenario]]
+name = "head sweep"
+fluid = "water"
+head = { start = "10 cm", stop = "209.5 cm", step = "0.5 cm" }
+[[scenario.part]]
+type = "catheter"
+gauge = 18
+"""
+    run = run_scenarios(loads_scenarios(doc, source="sweep.toml"))
+    assert len(run.table) == 400
+    rows = pack_report.chart_rows(run.table)
+    flows = run.table["flow [mL/min]"].to_numpy()
+    assert len(rows) <= pack_report.CHART_MAX_CASES + 2
+    assert {int(np.argmin(flows)), int(np.argmax(flows))} <= set(rows.tolist())
+    figures = pack_report.pack_figures(run)
+    assert len(figures[0].data[0].x) == len(rows)
+    assert set(figures[1].data[0].y) == set(run.table["case"].iloc[rows])
+    page = pack_report._charts_html(run)
+    assert f"The charts show {len(rows):,} of 400 cases" in page
+    small = run_scenarios(loads_scenarios(doc.replace("209.5 cm", "59.5 cm"), source="s.toml"))
+    assert len(small.table) == 100 and "The charts show" not in pack_report._charts_html(small)

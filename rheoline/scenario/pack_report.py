@@ -16,7 +16,14 @@ from pathlib import Path
 
 from rheoline.scenario.pack_tables import plain_value
 
-__all__ = ["frame_html", "pack_figures", "report_html", "write_html"]
+__all__ = [
+    "frame_html",
+    "pack_figures",
+    "chart_rows",
+    "report_html",
+    "write_html",
+    "CHART_MAX_CASES",
+]
 
 _CSS = """
 body{font-family:system-ui,-apple-system,'Segoe UI',sans-serif;margin:1.5rem auto;max-width:72rem;
@@ -117,7 +124,7 @@ def _flow_figure(table):
     return fig
 
 
-def _budget_figure(run, n_cases):
+def _budget_figure(run, shown):
     import numpy as np
     import plotly.graph_objects as go
 
@@ -127,6 +134,10 @@ def _budget_figure(run, n_cases):
     # point's own size, shown on hover)
     keys = list(getattr(run, "part_keys", ()) or ())
     keys = np.asarray(keys if len(keys) == len(parts) else parts["part"], dtype=object)
+    if len(shown) < len(run.table):  # only the parts of the cases the charts show
+        mine = parts["case"].isin(shown["case"]).to_numpy()
+        parts, keys = parts[mine], keys[mine]
+    n_cases = len(shown)
     for key in dict.fromkeys(keys):
         sub = parts[keys == key]
         fig.add_bar(
@@ -144,28 +155,71 @@ def _budget_figure(run, n_cases):
     return fig
 
 
-def pack_figures(run):
-    """Plotly figures of the run: flow per case, and the pressure budget of each line."""
+#: Most cases a chart shows: beyond it the charts show a sample (:func:`chart_rows`).
+CHART_MAX_CASES = 300
+
+
+def chart_rows(table, max_cases=CHART_MAX_CASES):
+    """Row positions of ``table`` the charts show: every row up to ``max_cases``, else
+    ``max_cases`` rows evenly spaced through the table plus each scenario's lowest- and
+    highest-flow case (so no extreme is left out), in table order.
+
+    >>> import pandas as pd
+    >>> t = pd.DataFrame({"scenario": ["a"] * 10, "flow [mL/min]": [5, 1, 2, 3, 4, 9, 6, 7, 8, 0]})
+    >>> chart_rows(t, 4).tolist()
+    [0, 3, 5, 6, 9]
+    """
+    import numpy as np
+
+    n = len(table)
+    if n <= max_cases:
+        return np.arange(n)
+    picked = set(np.linspace(0, n - 1, max_cases).round().astype(int).tolist())
+    flow = table["flow [mL/min]"].to_numpy(dtype=float, na_value=np.nan)
+    for rows in table.groupby("scenario", sort=False).indices.values():
+        finite = rows[np.isfinite(flow[rows])]
+        if finite.size:
+            picked.update(
+                (int(finite[np.argmin(flow[finite])]), int(finite[np.argmax(flow[finite])]))
+            )
+    return np.array(sorted(picked))
+
+
+def pack_figures(run, rows=None):
+    """Plotly figures of the run: flow per case, and the pressure budget of each line;
+    only the table rows at positions ``rows`` (default: :func:`chart_rows`)."""
     table = run.table
     if len(table) == 0:
         return []
-    figs = [_flow_figure(table)]
+    if rows is None:
+        rows = chart_rows(table)
+    shown = table.iloc[rows]
+    figs = [_flow_figure(shown)]
     if len(run.parts):
-        figs.append(_budget_figure(run, len(table)))
+        figs.append(_budget_figure(run, shown))
     return figs
 
 
 def _charts_html(run):
     import plotly.io as pio
 
-    return "".join(
+    rows = chart_rows(run.table)
+    note = ""
+    if len(rows) < len(run.table):
+        note = (
+            f"<p><strong>The charts show {len(rows):,} of {len(run.table):,} cases</strong>: "
+            f"{CHART_MAX_CASES} evenly spaced through the table, and each scenario's lowest "
+            "and highest flow. Every case is in the tables above and below and in "
+            "results.csv.</p>"
+        )
+    return note + "".join(
         pio.to_html(
             fig,
             include_plotlyjs=(i == 0),
             full_html=False,
             config={"displaylogo": False, "responsive": True},
         )
-        for i, fig in enumerate(pack_figures(run))
+        for i, fig in enumerate(pack_figures(run, rows))
     )
 
 

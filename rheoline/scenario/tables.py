@@ -68,59 +68,82 @@ def records(table, parts, flags=None):
     """
     from rheoline import CAUTION
 
+    # built by columns: each field's values converted once, vectorized, then zipped
+    part_fields = {
+        "part": _column(parts, "part"),
+        "kind": _column(parts, "kind"),
+        "pressure_drop_pa": _numbers(parts, "pressure drop [Pa]"),
+        "reynolds": _numbers(parts, "reynolds"),
+        "regime": _column(parts, "regime"),
+        "wall_shear_stress_pa": _numbers(parts, "wall shear stress [Pa]"),
+        "share": _numbers(parts, "share [%]", 100.0),
+    }
     by_case = {}
-    for row in parts.itertuples(index=False):
-        by_case.setdefault(row.case, []).append(
-            {
-                "part": row.part,
-                "kind": row.kind,
-                "pressure_drop_pa": _num(row[parts.columns.get_loc("pressure drop [Pa]")]),
-                "reynolds": _num(row.reynolds),
-                "regime": row.regime,
-                "wall_shear_stress_pa": _num(row[parts.columns.get_loc("wall shear stress [Pa]")]),
-                "share": _num(row[parts.columns.get_loc("share [%]")] / 100.0),
-            }
-        )
-    out = []
-    for r in table.to_dict("records"):
-        out.append(
-            {
-                "name": r["case"],
-                "scenario": r["scenario"],
-                "point": r["point"],
-                "fluid": r["fluid"],
-                "flow_ml_min": _num(r["flow [mL/min]"]),
-                "flow_ml_h": _num(r["flow [mL/h]"]),
-                "required_pressure_mmhg": _num(r["required pressure [mmHg]"]),
-                "max_reynolds": _num(r["max Reynolds number"]),
-                "regime": r["regime"],
-                "transition_zone": bool(r["transition zone"]),
-                "dominant_part": r["dominant part"],
-                "dominant_share": _num(r["dominant share [%]"] / 100.0),
-                "max_wall_shear_stress_pa": _num(r["max wall shear stress [Pa]"]),
-                "hemolysis_index_percent": _num(r["hemolysis index [%]"]),
-                "hemolysis_concern": bool(r["hemolysis concern"]),
-                "exceeds_pressure_limit": None
-                if r["over pressure limit"] is None
-                else bool(r["over pressure limit"]),
-                "flow_p5_ml_min": _num(r["flow p5 [mL/min]"]),
-                "flow_p95_ml_min": _num(r["flow p95 [mL/min]"]),
-                "required_pressure_p5_mmhg": _num(r["pressure p5 [mmHg]"]),
-                "required_pressure_p95_mmhg": _num(r["pressure p95 [mmHg]"]),
-                "dominant_tolerance": r["dominant tolerance"] or None,
-                "flow_model_low_ml_min": _num(r["flow model low [mL/min]"]),
-                "flow_model_high_ml_min": _num(r["flow model high [mL/min]"]),
-                "required_pressure_model_low_mmhg": _num(r["pressure model low [mmHg]"]),
-                "required_pressure_model_high_mmhg": _num(r["pressure model high [mmHg]"]),
-                "model_band_driver": r["model band driver"] or None,
-                "time_to_deliver_min": _num(r["time to deliver [min]"]),
-                "catheter_to_vein_ratio": _num(r["catheter-to-vein ratio [-]"]),
-                "flags": list((flags or {}).get(r["case"], ())),
-                "parts": by_case.get(r["case"], []),
-                "caution": CAUTION,
-            }
-        )
+    names = list(part_fields)
+    for case, *values in zip(_column(parts, "case"), *part_fields.values(), strict=True):
+        by_case.setdefault(case, []).append(dict(zip(names, values, strict=True)))
+    cases = _column(table, "case")
+    flags = flags or {}
+    fields = {
+        "name": cases,
+        "scenario": _column(table, "scenario"),
+        "point": _column(table, "point"),
+        "fluid": _column(table, "fluid"),
+        "flow_ml_min": _numbers(table, "flow [mL/min]"),
+        "flow_ml_h": _numbers(table, "flow [mL/h]"),
+        "required_pressure_mmhg": _numbers(table, "required pressure [mmHg]"),
+        "max_reynolds": _numbers(table, "max Reynolds number"),
+        "regime": _column(table, "regime"),
+        "transition_zone": _booleans(table, "transition zone"),
+        "dominant_part": _column(table, "dominant part"),
+        "dominant_share": _numbers(table, "dominant share [%]", 100.0),
+        "max_wall_shear_stress_pa": _numbers(table, "max wall shear stress [Pa]"),
+        "hemolysis_index_percent": _numbers(table, "hemolysis index [%]"),
+        "hemolysis_concern": _booleans(table, "hemolysis concern"),
+        "exceeds_pressure_limit": [
+            None if v is None else bool(v) for v in table["over pressure limit"].tolist()
+        ],
+        "flow_p5_ml_min": _numbers(table, "flow p5 [mL/min]"),
+        "flow_p95_ml_min": _numbers(table, "flow p95 [mL/min]"),
+        "required_pressure_p5_mmhg": _numbers(table, "pressure p5 [mmHg]"),
+        "required_pressure_p95_mmhg": _numbers(table, "pressure p95 [mmHg]"),
+        "dominant_tolerance": [v or None for v in _column(table, "dominant tolerance")],
+        "flow_model_low_ml_min": _numbers(table, "flow model low [mL/min]"),
+        "flow_model_high_ml_min": _numbers(table, "flow model high [mL/min]"),
+        "required_pressure_model_low_mmhg": _numbers(table, "pressure model low [mmHg]"),
+        "required_pressure_model_high_mmhg": _numbers(table, "pressure model high [mmHg]"),
+        "model_band_driver": [v or None for v in _column(table, "model band driver")],
+        "time_to_deliver_min": _numbers(table, "time to deliver [min]"),
+        "catheter_to_vein_ratio": _numbers(table, "catheter-to-vein ratio [-]"),
+        "flags": [list(flags.get(case, ())) for case in cases],
+        "parts": [by_case.get(case, []) for case in cases],
+    }
+    keys = list(fields)
+    return [
+        {**dict(zip(keys, values, strict=True)), "caution": CAUTION}
+        for values in zip(*fields.values(), strict=True)
+    ]
+
+
+def _column(frame, name):
+    """A column's values as Python objects (None where missing)."""
+    col = frame[name].astype(object)
+    return col.where(col.notna(), None).tolist()
+
+
+def _numbers(frame, name, divisor=1.0):
+    """A numeric column (divided by ``divisor``) as finite floats or None (JSON has no
+    NaN), vectorized."""
+    values = frame[name].to_numpy(dtype=float, na_value=np.nan) / divisor
+    finite = np.isfinite(values)
+    out = values.tolist()
+    if not finite.all():
+        out = [v if ok else None for v, ok in zip(out, finite.tolist(), strict=True)]
     return out
+
+
+def _booleans(frame, name):
+    return [bool(v) for v in frame[name].tolist()]
 
 
 def _num(v):
