@@ -103,8 +103,13 @@ Solver cost (see the benchmarks): a flow solve of N scenarios costs about three 
 residual passes (safeguarded Newton from the laminar-plus-kinetic closed form, the last
 step taken to first order); many drives through one line with one fluid cost less than one,
 on the line's tabulated characteristic, where its grid costs less than the Newton passes.
-Scenarios are solved in blocks of some 8,000 lumen-scenarios: the working memory stays a few
-megabytes for any number of scenarios.
+Scenarios are solved in blocks of some 8,000 lumen-scenarios: the working memory of a solve
+stays a few megabytes for any number of scenarios, on top of its answers.  Not yet in blocks:
+a large result's per-part properties beyond the drops, Reynolds numbers and velocities
+(``conditions``, ``part_conditions``, ``flags``, ``models_used``, wall stresses, hemolysis)
+lay the whole line out again on first use (measured: some 500 MB per million scenarios of a
+two-lumen line), so a sweep of many millions of scenarios that needs them is best solved
+in parts.
 """
 
 from __future__ import annotations

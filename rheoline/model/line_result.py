@@ -113,7 +113,9 @@ class LineResult:
 
     @cached_property
     def _layout(self):
-        """The line's layout for this result (built on first use after a large solve)."""
+        """The line's layout for this result (built on first use after a blocked solve:
+        whole, so its memory grows with the scenarios, some 500 MB per million scenarios of
+        a two-lumen line)."""
         source = self._layout_source
         return source() if callable(source) else source
 
