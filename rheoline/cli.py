@@ -198,7 +198,12 @@ def _cmd_check(args, out):
     )
     for s in sset.scenarios:
         axes = ", ".join(f"{p} x{len(a)}" for p, a in s.axes) or "no sweep"
-        out.write(f"  - {_printable(s.name)}: {s.mode} mode, {len(s.parts)} part(s), {axes}\n")
+        what = f"{s.mode} mode, {len(s.parts)} part(s)"
+        if s.topology is not None:  # a branched line
+            t = s.topology
+            what = f"network of {len(t.nodes)} nodes and {len(t.branches)} branches"
+            what += f", {s.n_parts} part(s)"
+        out.write(f"  - {_printable(s.name)}: {what}, {axes}\n")
     out.write(_caution() + "\n")
     return EXIT_OK
 

@@ -75,8 +75,9 @@ def part_models(part) -> tuple:
 
     A part may say so itself with a ``models_used`` attribute; otherwise a catalogue-sized
     needle rests on ISO 9626, a catalogue-sized catheter or cannula on typical catalogue
-    values, a fitting made by :meth:`Fitting.crane` on Crane TP-410 and one made with a
-    Hooper ``laminar_k`` on Hooper 1981.
+    values, a non-circular lumen on Shah & London 1978, a fitting made by
+    :meth:`Fitting.crane` on Crane TP-410 and one made with a Hooper ``laminar_k`` on
+    Hooper 1981.
 
     Examples
     --------
@@ -90,6 +91,9 @@ def part_models(part) -> tuple:
     keys = []
     if part.source_note is not None:  # a catalogue size (catheters, needles, cannula walls)
         keys.append("iso-9626" if isinstance(part, Needle) else "typical-catalogue")
+    shape = getattr(part, "shape", None)
+    if shape is not None and shape.key != "circle":  # a non-circular lumen's laminar f Re
+        keys.append("shah-london-1978")
     if isinstance(part, Fitting):
         if str(part.name).endswith("(Crane TP-410)"):
             keys.append("crane-tp410")

@@ -20,7 +20,7 @@ import numpy as np
 
 from rheoline.errors import NetworkError
 
-__all__ = ["Topology"]
+__all__ = ["Topology", "sourceless_parts"]
 
 #: Conductance of a closed one-way branch relative to the largest open one: keeps a node
 #: reached only through a closed valve solvable without letting flow through (1e-14 of it).
@@ -88,10 +88,34 @@ def _components(nodes, branches):
     return {n: find(n) for n in nodes}
 
 
-def _check_sources(nodes, branches, held):
-    """Every connected part of the network must reach a pressure node."""
+def sourceless_parts(nodes, branches, held):
+    """The connected parts of a network that reach no held (pressure) node.
+
+    Parameters
+    ----------
+    nodes : sequence
+        Every node.
+    branches : sequence
+        Objects with ``name``, ``start`` and ``end``.
+    held : collection
+        The nodes whose pressure is held (bags, reservoirs, outlets).
+
+    Returns
+    -------
+    list of (nodes, branch names, kind)
+        One entry per part joined to no held node; ``kind`` is "a loop with no source"
+        when the part has as many branches as nodes or more, else "a disconnected branch".
+
+    Examples
+    --------
+    >>> from types import SimpleNamespace as B
+    >>> sourceless_parts("abcd", [B(name="x", start="a", end="b"),
+    ...                           B(name="y", start="c", end="d")], {"a"})
+    [(['c', 'd'], ['y'], 'a disconnected branch')]
+    """
     root = _components(nodes, branches)
     reached = {root[n] for n in held}
+    out = []
     for r in dict.fromkeys(root.values()):
         if r in reached:
             continue
@@ -102,6 +126,13 @@ def _check_sources(nodes, branches, held):
             if len(part_branches) >= len(part_nodes)
             else "a disconnected branch"
         )
+        out.append((part_nodes, part_branches, what))
+    return out
+
+
+def _check_sources(nodes, branches, held):
+    """Every connected part of the network must reach a pressure node."""
+    for part_nodes, part_branches, what in sourceless_parts(nodes, branches, held)[:1]:
         raise _network_error(
             f"branch(es) {_preview(part_branches)} (nodes {_preview(part_nodes)}) are joined to "
             f"no bag, reservoir or outlet: {what}, whose pressures and flows are undetermined. "

@@ -43,6 +43,7 @@ __all__ = [
     "build",
     "build_fluid",
     "build_parts",
+    "build_part_list",
     "point_part_names",
     "site_context",
     "check_scenarios",
@@ -62,9 +63,21 @@ _DISCRETE = {
     "equivalent_length",
     "test_viscosity",
     "test_density",
+    "shape",
+    "lumen",
+    "lumens",
 }
 #: Part fields whose sweep changes the name the engine gives a part ("tube 3 mm x 1.8 m").
-_SIZE_FIELDS = ("inner_diameter", "length")
+_SIZE_FIELDS = (
+    "inner_diameter",
+    "length",
+    "diameter",
+    "outer_diameter",
+    "core_diameter",
+    "eccentricity",
+    "width",
+    "height",
+)
 #: Part fields that are lists of bench points (fixed over a sweep).
 _BENCH_FIELDS = ("flows", "pressure_drops")
 #: The file's key of each argument of :func:`rheoline.model.fluids.fluid`.
@@ -222,8 +235,11 @@ def entry_name(name):
 def build_part(spec, kw, name):
     """One model part of the file's part ``spec`` with the field values ``kw``."""
     from rheoline.model import parts as mp
+    from rheoline.scenario.lumen_parts import LUMEN_PART_TYPES, build_lumen_part
 
     kw = dict(kw)
+    if spec.type in LUMEN_PART_TYPES or "shape" in kw:
+        return build_lumen_part(spec.type, kw, name)
     if spec.type == "set":
         kind = kw.pop("kind")
         if "inner_diameter" in kw:
@@ -247,8 +263,15 @@ def build_parts(group, source):
     """The group's model parts, source to outlet, named by their labels (a repeated label
     gets " (2)"), or by the engine where they have none."""
     sc = group.scenario
+    return build_part_list(sc.parts, group.parts, source, sc.name)
+
+
+def build_part_list(specs, values, source, scenario_name, base=""):
+    """Model parts of the file's parts ``specs`` with the field values ``values`` (one dict
+    per part), as :func:`build_parts` names them; a model error names the field
+    ``{base}part[j].field`` (``base`` "branch[2]." for a branch of a branched line)."""
     built, used = [], {}
-    for j, (spec, pv) in enumerate(zip(sc.parts, group.parts, strict=True), start=1):
+    for j, (spec, pv) in enumerate(zip(specs, values, strict=True), start=1):
         name = None if spec.name == spec.type else spec.name  # None: the engine names it
         if name is not None:
             used[name] = used.get(name, 0) + 1
@@ -261,7 +284,10 @@ def build_parts(group, source):
         except RheolineError as exc:
             field = _model_field(exc, {k: k for k in pv}, next(iter(pv), "type"))
             raise ScenarioError(
-                str(exc), source=source, scenario=repr(sc.name), field=f"part[{j}].{field}"
+                str(exc),
+                source=source,
+                scenario=repr(scenario_name),
+                field=f"{base}part[{j}].{field}",
             ) from None
         built.append(part)
     return built
@@ -347,6 +373,11 @@ def check_scenarios(sset: ScenarioSet) -> None:
     with warnings.catch_warnings():
         warnings.simplefilter("ignore")
         for sc in sset.scenarios:
+            if sc.topology is not None:  # a branched line: build its networks
+                from rheoline.scenario.network_run import check_network_scenario
+
+                check_network_scenario(sc, sset.source)
+                continue
             for g in groups(sc):
                 fl = build_fluid(g, sset.source)
                 parts = build_parts(g, sset.source)

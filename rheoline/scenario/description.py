@@ -340,7 +340,9 @@ class Scenario:
 
     ``parts`` run from source to outlet.  ``tolerance``, ``delivery`` and ``site`` are None
     when the file gives none of their fields.  ``model_band`` False leaves the run's model
-    band out (:mod:`rheoline.scenario.model_band`).
+    band out (:mod:`rheoline.scenario.model_band`).  A branched scenario has a ``topology``
+    (:class:`rheoline.scenario.topology.TopologySpec`: nodes with their sources, pumps and
+    outlets, and branches of parts), no ``parts`` and an empty ``drive``.
     """
 
     name: str
@@ -352,9 +354,15 @@ class Scenario:
     site: SiteSpec | None = None
     notes: str = ""
     model_band: bool = True
+    topology: object = None
 
     def __post_init__(self):
         object.__setattr__(self, "parts", tuple(self.parts))
+
+    @property
+    def n_parts(self):
+        """Parts of the line, or of every branch of a branched scenario."""
+        return len(self.parts) + (self.topology.n_parts if self.topology is not None else 0)
 
     def groups(self):
         """The groups of single-valued fields that are given, in file order."""
@@ -376,6 +384,8 @@ class Scenario:
         out = [(k, v) for g in self.groups() for k, v in g.items() if isinstance(v, Axis)]
         for i, p in enumerate(self.parts, start=1):
             out += [(f"part[{i}].{k}", v) for k, v in p.fields.items() if isinstance(v, Axis)]
+        if self.topology is not None:
+            out += self.topology.axes
         return out
 
     @property

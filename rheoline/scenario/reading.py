@@ -59,7 +59,7 @@ from pathlib import Path
 
 from rheoline.errors import ScenarioError
 from rheoline.model import catalogue
-from rheoline.scenario import schema, text_guard
+from rheoline.scenario import lumen_parts, schema, text_guard
 from rheoline.scenario.description import (
     Axis,
     DeliverySpec,
@@ -330,7 +330,7 @@ class _FileBudget:
                 "sweep fewer values",
                 "scenario",
             )
-        self.part_points += sc.n_points * len(sc.parts)
+        self.part_points += sc.n_points * sc.n_parts
         if self.part_points > schema.MAX_PART_POINTS:
             at.fail(
                 f"the file asks for more than {schema.MAX_PART_POINTS} part solves "
@@ -357,6 +357,12 @@ def _parse_scenario(raw, index, source):
         for key, spec in SCENARIO_FIELDS.items()
         if key in raw and spec.group
     }
+    if "branch" in raw or "node" in raw:  # a branched line: rheoline.scenario.topology
+        from rheoline.scenario.topology_reading import parse_branched_scenario
+
+        sc = parse_branched_scenario(raw, values, at, name, notes)
+        _check_scenario_budget(sc, at)
+        return sc
     _check_drive(values, at)
     _check_delivery(values, at)
     tolerance = None
@@ -489,9 +495,10 @@ def _parse_parts(raw, at):
     return tuple(_parse_part(p, j, at) for j, p in enumerate(parts_raw, start=1))
 
 
-def _parse_part(raw, j, at):
-    prefix = f"part[{j}]."
-    ptype = _part_type(raw, j, at)
+def _parse_part(raw, j, at, base=""):
+    """Part ``j`` of a line (``base`` "") or of a branch (``base`` "branch[2].")."""
+    prefix = f"{base}part[{j}]."
+    ptype = _part_type(raw, prefix, at)
     fields = PART_FIELDS[ptype]
     check_keys(raw, fields, at, prefix, what=f"{ptype} field")
     for group in REQUIRED_PART[ptype]:
@@ -505,10 +512,11 @@ def _parse_part(raw, j, at):
     }
     _check_catalogue(ptype, values, at, prefix)
     _check_part_sizes(ptype, values, at, prefix)
+    lumen_parts.check_part(ptype, values, at, prefix)
     tolerance = {}
     if "tolerance" in raw:
         table = _tolerance_table(raw["tolerance"], PART_TOLERANCE_FIELDS, at, prefix + "tolerance.")
-        if ptype in ("fitting", "measured"):
+        if ptype in ("fitting", "measured", "check-valve"):
             at.fail(
                 f"a {ptype} takes no tolerance (only lumens: tube, set, catheter, needle, cannula)",
                 prefix + "tolerance",
@@ -517,10 +525,9 @@ def _parse_part(raw, j, at):
     return PartSpec(ptype, label, values, tolerance)
 
 
-def _part_type(raw, j, at):
-    prefix = f"part[{j}]."
+def _part_type(raw, prefix, at):
     if not isinstance(raw, dict):
-        at.fail(f"must be a table, got {type_name(raw)}", f"part[{j}]")
+        at.fail(f"must be a table, got {type_name(raw)}", prefix[:-1])
     if "type" not in raw:
         at.fail(f"is missing; choose one of {', '.join(PART_TYPES)}", prefix + "type")
     ptype = raw["type"]

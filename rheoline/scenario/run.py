@@ -95,6 +95,7 @@ __all__ = [
     "TABLE_COLUMNS",
     "PART_COLUMNS",
     "FLAG_WORDS",
+    "render_flags",
     "Note",
     "RunResult",
     "run_scenarios",
@@ -137,6 +138,8 @@ TABLE_COLUMNS = [
     "model band driver",
     "time to deliver [min]",
     "catheter-to-vein ratio [-]",
+    "reversed flow [mL/min]",
+    "reversed branch",
     "flags",
 ]
 PART_COLUMNS = [
@@ -164,6 +167,9 @@ UNIT_MODELS = ("nist-sp811",)
 #: The words of each condition in a row's ``flags``, in the order they are shown; a
 #: callable renders words from the case's data (the parts concerned, the ratio).
 FLAG_WORDS = {
+    "backflow_into_source": lambda d: _backflow_words(d["backflow"]),
+    "reversed_flow": lambda d: f"reversed flow in {', '.join(d['reversed'])}",
+    "check_valve_closed": lambda d: f"check valve closed in {', '.join(d['closed'])}",
     "turbulent": lambda d: f"turbulent: {', '.join(d['turbulent'])}",
     "transitional": lambda d: f"transitional: {', '.join(d['transitional'])}",
     "transition_zone": lambda d: (
@@ -184,6 +190,24 @@ FLAG_WORDS = {
     "large_catheter": lambda d: f"catheter fills {d['ratio']:.0%} of the vein diameter",
     "outside_range": "outside a correlation's range (see notes)",
 }
+
+
+def _backflow_words(backflow):
+    """'12.3 mL/min pushed back into saline bag by syringe pump' per bag or source."""
+    return "; ".join(
+        f"{q:.3g} mL/min pushed back into {node}" + (f" by {' and '.join(by)}" if by else "")
+        for node, q, by in backflow
+    )
+
+
+def render_flags(conditions, data, col):
+    """The flags of point ``col`` (a tuple of words), in :data:`FLAG_WORDS` order, for each
+    condition that holds there; ``data`` gives what a callable's words name."""
+    return tuple(
+        words(data) if callable(words) else words
+        for key, words in FLAG_WORDS.items()
+        if key in conditions and conditions[key][col]
+    )
 
 
 @dataclass(frozen=True)
@@ -228,6 +252,13 @@ class RunResult:
         Per row of ``parts``, the part's name in its line (the same for every point of a
         sweep), where ``parts["part"]`` names each point's own size; the pack's charts
         group on it.
+    branches : pandas.DataFrame or None
+        One row per branched case and branch (:data:`rheoline.scenario.network_run.
+        BRANCH_COLUMNS`): flow, direction, whether reversed or held by a check valve, the
+        drop, Reynolds number and wall shear; empty when no scenario is branched.
+    nodes : pandas.DataFrame or None
+        One row per branched case and node (:data:`rheoline.scenario.network_run.
+        NODE_COLUMNS`): pressure, the flow it feeds in (negative: takes out), pump limits.
     created : datetime.datetime
         When the run was made (UTC).
     """
@@ -240,6 +271,8 @@ class RunResult:
     notes: tuple[Note, ...] = ()
     flags: Mapping[str, tuple[str, ...]] = field(default_factory=dict)
     part_keys: tuple[str, ...] = ()
+    branches: pandas.DataFrame | None = None
+    nodes: pandas.DataFrame | None = None
     created: _dt.datetime = field(default_factory=lambda: _dt.datetime.now(_dt.UTC))
 
     @property
@@ -262,7 +295,7 @@ class RunResult:
         :func:`rheoline.scenario.tables.records`)."""
         from rheoline.scenario.tables import records
 
-        return records(self.table, self.parts, self.flags)
+        return records(self.table, self.parts, self.flags, self.branches, self.nodes)
 
 
 # --------------------------------------------------------------------------- the run
@@ -283,24 +316,29 @@ def run_scenarios(sset: ScenarioSet, progress=None) -> RunResult:
     """
     import pandas as pd
 
+    from rheoline.scenario.network_run import run_network_scenario
+
     cases, notes, models = [], [], ()
     bar = progress(sset.n_points) if progress else None
     try:
         for sc in sset.scenarios:
-            runs = []
-            for g in groups(sc):
-                runs.append(_GroupRun(g, sset.source).run())
-                if bar is not None:
-                    bar.update(g.size)
+            if sc.topology is not None:  # a branched line: rheoline.scenario.network_run
+                runs = run_network_scenario(sc, sset.source)
+            else:
+                runs = [_GroupRun(g, sset.source).run() for g in groups(sc)]
+            if bar is not None:
+                bar.update(sc.n_points)
             cases += sorted((c for r in runs for c in r.cases()), key=lambda c: c[0])
-            notes += [Note(sc.name, None, key, text) for key, text in scenario_notes(runs)]
+            views = runs if sc.topology is None else [v for r in runs for v in r.note_views()]
+            notes += [Note(sc.name, None, key, text) for key, text in scenario_notes(views)]
             models = merge_models(models, *(r.models_used for r in runs))
     finally:
         if bar is not None:
             bar.close()
-    keys = _unique([row[0] for _, row, _, _ in cases])
-    table = [[key, *row[1:]] for key, (_, row, _, _) in zip(keys, cases, strict=True)]
-    part_table = [[key, *p[1:]] for key, (_, _, ps, _) in zip(keys, cases, strict=True) for p in ps]
+    keys = _unique([c[1][0] for c in cases])
+    table = [[key, *c[1][1:]] for key, c in zip(keys, cases, strict=True)]
+    part_table = [[key, *p[1:]] for key, c in zip(keys, cases, strict=True) for p in c[2]]
+    branches, nodes = _network_tables(keys, [c[4] for c in cases])
     return RunResult(
         sset,
         pd.DataFrame(table, columns=TABLE_COLUMNS),
@@ -308,8 +346,27 @@ def run_scenarios(sset: ScenarioSet, progress=None) -> RunResult:
         inputs_table(sset),
         models_used=merge_models(models, UNIT_MODELS),
         notes=tuple(dict.fromkeys(notes)),
-        flags={key: f for key, (_, _, _, f) in zip(keys, cases, strict=True)},
+        flags={key: c[3] for key, c in zip(keys, cases, strict=True)},
         part_keys=tuple(r[-1] for r in part_table),
+        branches=branches,
+        nodes=nodes,
+    )
+
+
+def _network_tables(keys, extras):
+    """The branches and nodes tables of the branched cases (empty tables when none)."""
+    import pandas as pd
+
+    from rheoline.scenario.network_run import BRANCH_COLUMNS, NODE_COLUMNS
+
+    rows = {"branches": [], "nodes": []}
+    for key, extra in zip(keys, extras, strict=True):
+        if extra is not None:
+            rows["branches"] += [[key, *r[1:]] for r in extra[0]]
+            rows["nodes"] += [[key, *r[1:]] for r in extra[1]]
+    return (
+        pd.DataFrame(rows["branches"], columns=BRANCH_COLUMNS),
+        pd.DataFrame(rows["nodes"], columns=NODE_COLUMNS),
     )
 
 
@@ -424,6 +481,7 @@ class _GroupRun:
             (_vec(v["source_pressure"], n) / MMHG).tolist() if "source_pressure" in v else _nan(n)
         )
         c["back pressure [mmHg]"] = (_vec(v.get("back_pressure", 0.0), n) / MMHG).tolist()
+        c["reversed flow [mL/min]"], c["reversed branch"] = _nan(n), [""] * n  # branched only
 
     # ----------------------------------------------------------------------- solve
     def solve(self):
@@ -531,18 +589,15 @@ class _GroupRun:
             for r in ("turbulent", "transitional", "transition_zone")
         }
         data["ratio"] = self.columns["catheter-to-vein ratio [-]"][col]
-        return tuple(
-            words(data) if callable(words) else words
-            for key, words in FLAG_WORDS.items()
-            if self.conditions[key][col]
-        )
+        return render_flags(self.conditions, data, col)
 
     def cases(self):
-        """``(index in the sweep, table row, part rows, flags)`` per point of the group."""
+        """``(index in the sweep, table row, part rows, flags, None)`` per point of the
+        group (a branched group's fifth item holds its branch and node rows)."""
         flags = [self.flags(col) for col in range(self.n)]
         self.columns["flags"] = ["; ".join(f) for f in flags]
         rows = [list(r) for r in zip(*(self.columns[k] for k in TABLE_COLUMNS), strict=True)]
-        return list(zip(self.g.indices, rows, part_rows(self), flags, strict=True))
+        return list(zip(self.g.indices, rows, part_rows(self), flags, [None] * self.n, strict=True))
 
 
 #: Model arguments of the run's steps and the file fields they come from.

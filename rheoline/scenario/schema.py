@@ -292,6 +292,16 @@ SCENARIO_FIELDS = {
         help="tolerances: temperature, hematocrit, viscosity, distribution, samples, seed",
     ),
     "part": _spec("parts", sweep=False, help="the [[scenario.part]] tables, source to outlet"),
+    "node": _spec(
+        "nodes",
+        sweep=False,
+        help="a branched line's [[scenario.node]] tables: bags, sources, pumps, outlets, junctions",
+    ),
+    "branch": _spec(
+        "branches",
+        sweep=False,
+        help="a branched line's [[scenario.branch]] tables: from, to and their parts",
+    ),
 }
 
 SCENARIO_TOLERANCE_FIELDS = {
@@ -343,12 +353,40 @@ _COMMON_PART = {
 _ID = _spec("length", "mm", 1e-5, 0.06, help="inner diameter (bore) of the lumen")
 _LEN = _spec("length", "m", 1e-4, 30.0, help="length of the lumen")
 
+#: Dimensions of a non-circular tube (``shape``), by the shape's key in
+#: :data:`rheoline.model.shapes.LUMEN_SHAPES`; :mod:`rheoline.scenario.lumen_parts` reads them.
+_SHAPE_FIELDS = {
+    "shape": _spec(
+        "choice",
+        sweep=False,
+        help="cross-section of a non-circular lumen: d-shaped, annulus, crescent or rectangle "
+        "(Shah & London 1978 laminar friction); instead of inner_diameter",
+    ),
+    "diameter": _spec("length", "mm", 1e-5, 0.06, help="d-shaped: length of the flat side"),
+    "outer_diameter": _spec(
+        "length", "mm", 1e-5, 0.06, help="annulus, crescent: bore of the outer lumen"
+    ),
+    "core_diameter": _spec(
+        "length",
+        "mm",
+        1e-5,
+        0.06,
+        help="annulus, crescent: outer diameter of the core (inner tube, guidewire)",
+    ),
+    "eccentricity": _spec(
+        "fraction", None, 0.0, 1.0, help="annulus: core offset over the gap, 0 concentric"
+    ),
+    "width": _spec("length", "mm", 1e-5, 0.06, help="rectangle: width"),
+    "height": _spec("length", "mm", 1e-5, 0.06, help="rectangle: height"),
+}
+
 PART_FIELDS = {
     "tube": {
         **_COMMON_PART,
         "inner_diameter": _ID,
         "length": _LEN,
         "roughness": _spec("length", "mm", 0.0, 1e-3, help="absolute wall roughness"),
+        **_SHAPE_FIELDS,
     },
     "catheter": {
         **_COMMON_PART,
@@ -386,6 +424,28 @@ PART_FIELDS = {
         "inner_diameter": _spec(
             "length", "mm", 1e-5, 0.06, help="bore the K or equivalent length refers to"
         ),
+    },
+    "multi-lumen": {
+        **_COMMON_PART,
+        "kind": _spec(
+            "choice",
+            help="a multi-lumen catheter with shaped lumens: "
+            + ", ".join(catalogue.MULTI_LUMEN_CATHETERS),
+        ),
+        "lumen": _spec("choice", help="one lumen of that catheter, e.g. 'venous'"),
+        "length": _spec("length", "m", 1e-3, 1.5, help="catheter length (typical when not given)"),
+    },
+    "central-line": {
+        **_COMMON_PART,
+        "french": _spec("number", None, 1.0, 40.0, help="outer size in French, e.g. 7"),
+        "lumens": _spec("integer", None, 2, 5, help="number of lumens, e.g. 3"),
+        "lumen": _spec("choice", help="distal, medial, proximal or fourth"),
+        "length": _spec("length", "m", 1e-3, 1.5, help="catheter length (0.20 m when not given)"),
+    },
+    "check-valve": {
+        **_COMMON_PART,
+        "k": _spec("number", None, 0.0, 1000.0, help="loss coefficient K [-] of the open valve"),
+        "inner_diameter": _spec("length", "mm", 1e-5, 0.06, help="bore the K refers to"),
     },
     "measured": {
         **_COMMON_PART,
@@ -428,13 +488,16 @@ PART_FIELDS = {
 #: The part types a scenario file may name.
 PART_TYPES = tuple(PART_FIELDS)
 REQUIRED_PART = {
-    "tube": (("inner_diameter",), ("length",)),
+    "tube": (("inner_diameter", "shape"), ("length",)),
     "catheter": (("gauge", "inner_diameter"),),
     "needle": (("gauge",),),
     "cannula": (("french", "inner_diameter"),),
     "set": (("kind",),),
     "fitting": (("k", "equivalent_length"),),
     "measured": (("flows",), ("pressure_drops",)),
+    "multi-lumen": (("kind",), ("lumen",)),
+    "central-line": (("lumen",),),
+    "check-valve": (("k",),),
 }
 
 PART_TOLERANCE_FIELDS = {
@@ -473,9 +536,21 @@ def field_spec(path: str, part_type: str | None = None) -> FieldSpec:
     """The :class:`FieldSpec` of a dotted field path.
 
     ``"head"``, ``"tolerance.samples"``, ``"part[2].inner_diameter"`` (with the part's type)
-    or ``"part[2].tolerance.length"``.  A KeyError for a field the file cannot hold.
+    or ``"part[2].tolerance.length"``; in a branched scenario ``"node[3].flow"`` (with the
+    node's type), ``"branch[1].to"`` or ``"branch[2].part[1].gauge"`` (with the part's
+    type).  A KeyError for a field the file cannot hold.
     """
     *head, key = path.split(".")
+    if head and head[0].startswith("branch["):  # a branched scenario's field
+        if len(head) == 1:
+            from rheoline.scenario.topology import topology_field_spec
+
+            return topology_field_spec(path)
+        head = head[1:]
+    if head and head[0].startswith("node["):
+        from rheoline.scenario.topology import topology_field_spec
+
+        return topology_field_spec(path, part_type)
     if head and head[0].startswith("part["):
         if head[1:] == ["tolerance"]:
             return PART_TOLERANCE_FIELDS[key]
@@ -504,6 +579,11 @@ def fields_table():
     for ptype, specs in PART_FIELDS.items():
         data += _rows(f'part type = "{ptype}"', specs)
     data += _rows("[part].tolerance", PART_TOLERANCE_FIELDS)
+    from rheoline.scenario.topology import BRANCH_FIELDS, NODE_FIELDS
+
+    for ntype, specs in NODE_FIELDS.items():
+        data += _rows(f'node type = "{ntype}"', specs)
+    data += _rows("[[scenario.branch]]", BRANCH_FIELDS)
     return pd.DataFrame(
         data, columns=["table", "field", "bare number in", "allowed", "sweeps", "what it is"]
     )

@@ -46,11 +46,13 @@ def summary(t):
             out[led_by] = t[leader]
     if t["time to deliver [min]"].notna().any():
         out["deliver [min]"] = t["time to deliver [min]"]
+    if t["reversed flow [mL/min]"].notna().any():  # branched cases
+        out["reversed [mL/min]"] = t["reversed flow [mL/min]"]
     out["flags"] = t["flags"]
     return out
 
 
-def records(table, parts, flags=None):
+def records(table, parts, flags=None, branches=None, nodes=None):
     """The table as a list of JSON-ready dicts (one per case), with the parts of each line.
 
     Keys: ``name``, ``scenario``, ``point``, ``fluid``, ``flow_ml_min``, ``flow_ml_h``,
@@ -65,6 +67,12 @@ def records(table, parts, flags=None):
     ``part``, ``kind``, ``pressure_drop_pa``, ``reynolds``, ``regime``,
     ``wall_shear_stress_pa``, ``share``), and ``caution``.  ``flags`` maps a case to its
     flags (:attr:`rheoline.scenario.run.RunResult.flags`).
+
+    A branched case (a row of ``branches``) adds ``reversed_flow_ml_min``,
+    ``reversed_branch``, ``branches`` (a list of ``name``, ``from``, ``to``,
+    ``flow_ml_min``, ``reversed``, ``closed``, ``pressure_drop_mmhg``, ``max_reynolds``,
+    ``regime``) and ``nodes`` (``name``, ``type``, ``pressure_mmhg``, ``flow_in_ml_min``,
+    ``exceeds_pressure_limit``); its ``flow_ml_min`` is the total flow into the outlets.
     """
     from rheoline import CAUTION
 
@@ -119,9 +127,19 @@ def records(table, parts, flags=None):
         "parts": [by_case.get(case, []) for case in cases],
     }
     keys = list(fields)
+    network = _network_records(branches, nodes)
+    branched = [
+        _reversed(case, flow, branch, network)
+        for case, flow, branch in zip(
+            cases,
+            _numbers(table, "reversed flow [mL/min]"),
+            _column(table, "reversed branch"),
+            strict=True,
+        )
+    ]
     return [
-        {**dict(zip(keys, values, strict=True)), "caution": CAUTION}
-        for values in zip(*fields.values(), strict=True)
+        {**dict(zip(keys, values, strict=True)), **more, "caution": CAUTION}
+        for values, more in zip(zip(*fields.values(), strict=True), branched, strict=True)
     ]
 
 
@@ -144,6 +162,48 @@ def _numbers(frame, name, divisor=1.0):
 
 def _booleans(frame, name):
     return [bool(v) for v in frame[name].tolist()]
+
+
+def _reversed(case, flow, branch, network):
+    """A branched case's reversed flow and branch, branches and nodes (nothing for a line)."""
+    if case not in network:
+        return {}
+    return {"reversed_flow_ml_min": flow, "reversed_branch": branch or None, **network[case]}
+
+
+def _network_records(branches, nodes):
+    """Per branched case: its reversed flow, branches and nodes as JSON-ready dicts."""
+    out = {}
+    if branches is None or not len(branches):
+        return out
+    for r in branches.to_dict("records"):
+        case = out.setdefault(r["case"], {"branches": [], "nodes": []})
+        case["branches"].append(
+            {
+                "name": r["branch"],
+                "from": r["from"],
+                "to": r["to"],
+                "flow_ml_min": _num(r["flow [mL/min]"]),
+                "reversed": bool(r["reversed"]),
+                "closed": bool(r["check valve closed"]),
+                "pressure_drop_mmhg": _num(r["pressure drop [mmHg]"]),
+                "max_reynolds": _num(r["max Reynolds number"]),
+                "regime": r["regime"],
+            }
+        )
+    for r in nodes.to_dict("records"):
+        out[r["case"]]["nodes"].append(
+            {
+                "name": r["node"],
+                "type": r["type"],
+                "pressure_mmhg": _num(r["pressure [mmHg]"]),
+                "flow_in_ml_min": _num(r["flow in [mL/min]"]),
+                "exceeds_pressure_limit": None
+                if r["over pressure limit"] is None
+                else bool(r["over pressure limit"]),
+            }
+        )
+    return out
 
 
 def _num(v):
@@ -169,11 +229,16 @@ def inputs_table(sset):
 
     rows = []
     for sc in sset.scenarios:
-        data = scenario_data(sc)
-        for k, v in data.items():
-            if k != "part":
-                rows.append([sc.name, k, _text_of(v)])
-        for j, p in enumerate(data["part"], start=1):
-            for k, v in p.items():
-                rows.append([sc.name, f"part[{j}].{k}", _text_of(v)])
+        rows += [[sc.name, path, text] for path, text in _flat_fields(scenario_data(sc))]
     return pd.DataFrame(rows, columns=["scenario", "field", "value as written"])
+
+
+def _flat_fields(data, prefix=""):
+    """``(dotted path, text)`` of every field of a scenario's plain data; lists of tables
+    (parts, nodes, branches and their parts) numbered from 1 and after the other fields."""
+    tables = {k: v for k, v in data.items() if isinstance(v, list) and v and isinstance(v[0], dict)}
+    out = [(prefix + k, _text_of(v)) for k, v in data.items() if k not in tables]
+    for k, items in tables.items():
+        for j, item in enumerate(items, start=1):
+            out += _flat_fields(item, f"{prefix}{k}[{j}].")
+    return out

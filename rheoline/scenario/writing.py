@@ -102,7 +102,12 @@ def scenario_data(sc) -> dict:
             key: _plain(field, SCENARIO_TOLERANCE_FIELDS[key])
             for key, field in sc.tolerance.items()
         }
-    out["part"] = [_part_data(p) for p in sc.parts]
+    if sc.topology is not None:  # a branched scenario: its nodes and branches
+        from rheoline.scenario.topology_reading import topology_data
+
+        out.update(topology_data(sc.topology, _plain, _part_data))
+    else:
+        out["part"] = [_part_data(p) for p in sc.parts]
     return out
 
 

@@ -229,10 +229,46 @@ FLOW_ENTRIES = (
         "Untersuchung der linearen Vertheilung galvanischer Stroeme gefuehrt wird', Ann. Phys. "
         "Chem. 72 (1847) 497-508",
         None,
-        "linear segments (Poiseuille resistances); one connected network",
+        "linear segments (Poiseuille resistances); one connected network; in a branched "
+        "line, each branch's own nonlinear law (mass balance at every node, one pressure per "
+        "node)",
         {},
         cite="Kirchhoff",
-        used_in=(_M + "network",),
+        used_in=(_M + "network", _M + "branched.PartNetwork"),
+    ),
+    ModelEntry(
+        "todini-pilati-1988",
+        "Todini & Pilati 1988 global gradient method",
+        "node pressures and branch flows of a branched line: Newton's method on the branch "
+        "laws and node balances together, from the linearized (laminar) network",
+        "Todini, E., Pilati, S., 'A gradient algorithm for the analysis of pipe networks', "
+        "in Coulbeck, B., Orr, C.-H. (eds.), Computer Applications in Water Supply, Vol. 1, "
+        "Research Studies Press, Letchworth, 1988, pp. 1-20",
+        None,
+        "steady flow; each branch's pressure-flow law continuous and increasing (a yield "
+        "stress is refused); check valves taken as ideal one-way branches; convergence to "
+        "1e-11 of the largest flow, flagged where not reached",
+        {},
+        cite="Todini",
+        used_in=(_M + "branched.PartNetwork",),
+    ),
+    ModelEntry(
+        "shah-london-1978",
+        "Shah & London 1978 laminar friction of non-circular ducts",
+        "laminar f Re and hydraulic diameter of D-shaped, annular, crescent and rectangular "
+        "lumens (annulus exact; rectangle and eccentric annulus by their series)",
+        "Shah, R.K., London, A.L., 'Laminar Flow Forced Convection in Ducts', Advances in "
+        "Heat Transfer, Supplement 1, Academic Press, New York, 1978; Piercy, N.A.V., "
+        "Hooper, M.S., Winny, H.F., 'Viscous flow through pipes with cores', Phil. Mag. (7) 15 "
+        "(1933) 647-676 (eccentric annulus)",
+        None,
+        "fully developed laminar flow of a Newtonian fluid; transitional and turbulent flow "
+        "use the circle's friction at the hydraulic diameter (approximate); the semicircle's "
+        "constant is recalled (from memory, checked against a finite-difference solution)",
+        {"reynolds": (0.0, 2300.0)},
+        recalled=True,
+        cite="Shah & London",
+        used_in=(_M + "shapes",),
     ),
     ModelEntry(
         "annulus-poiseuille",

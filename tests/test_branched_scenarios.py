@@ -1,0 +1,391 @@
+"""Branched lines in scenario files, runs, JSON records and packs (issue 17).
+
+The network physics are checked in tests/test_branched.py (exact linear networks, the
+series Line, parallel lumens, the Y-site's backflow exactly when the junction exceeds the
+bag head).  Here: the file layer reads, checks and writes topologies; a branched run gives
+the model's own answer (Kirchhoff 1847: mass balance at every node) and renders its flags
+from the network's condition arrays.
+"""
+
+import json
+import re
+import warnings
+
+import numpy as np
+import pytest
+
+import rheoline
+from rheoline.errors import ScenarioError
+from rheoline.model.branched import Branch, PartNetwork, PressureNode, Pump
+from rheoline.model.parts import Catheter, CheckValve, Fitting, Tube, extension_set
+from rheoline.model.shapes import Annulus, Semicircle
+from rheoline.scenario.compare import check_scenarios, run_scenarios
+from rheoline.scenario.files import (
+    dump_scenarios,
+    example_path,
+    load_scenarios,
+    loads_scenarios,
+    value_of,
+)
+from rheoline.units import ML_PER_MIN, MMHG
+
+HEAD = 'format_version = 1\n[[scenario]]\nname = "case"\nfluid = "saline-0.9"\n'
+
+
+def node(name, kind, **fields):
+    extra = "".join(f'{k} = "{v}"\n' for k, v in fields.items())
+    return f'[[scenario.node]]\nname = "{name}"\ntype = "{kind}"\n{extra}'
+
+
+def branch(name, start, end, parts='type = "tube"\ninner_diameter = "1 mm"\nlength = "1 m"\n'):
+    return (
+        f'[[scenario.branch]]\nname = "{name}"\nfrom = "{start}"\nto = "{end}"\n'
+        f"[[scenario.branch.part]]\n{parts}"
+    )
+
+
+def load(*tables):
+    return loads_scenarios(HEAD + "".join(tables))
+
+
+def run(sset):
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")
+        return run_scenarios(sset)
+
+
+BAG = node("bag", "bag", head="1 m")
+VEIN = node("vein", "outlet", pressure="8 mmHg")
+
+
+# --------------------------------------------------------------------------- reading
+@pytest.mark.parametrize("name", ["ward-y-site", "trauma-bay"])
+def test_branched_examples_round_trip_in_toml_and_json(name):
+    sset = load_scenarios(example_path(name))
+    assert all(sc.topology is not None for sc in sset.scenarios)
+    assert loads_scenarios(dump_scenarios(sset)) == sset
+    assert loads_scenarios(dump_scenarios(sset, "json"), fmt="json") == sset
+    check_scenarios(sset)
+
+
+def test_topology_description_holds_nodes_branches_and_sweeps():
+    sset = load(
+        node("bag", "bag", head="80 cm"),
+        'pressure = ["0 mmHg", "300 mmHg"]\n',
+        node("pump", "pump", flow="100 mL/h", pressure_limit="300 mmHg"),
+        node("y", "junction"),
+        VEIN,
+        branch("set", "bag", "y"),
+        branch("pump line", "pump", "y"),
+        branch("catheter", "y", "vein", 'type = "catheter"\ngauge = [18, 20]\n'),
+    )
+    sc = sset.scenarios[0]
+    topo = sc.topology
+    assert [n.type for n in topo.nodes] == ["bag", "pump", "junction", "outlet"]
+    assert topo.node("pump").values["flow"] == pytest.approx(100 * 1e-6 / 3600)
+    assert topo.node("bag").fields["head"].written == "80 cm"
+    assert [(b.start, b.end) for b in topo.branches] == [("bag", "y"), ("pump", "y"), ("y", "vein")]
+    assert [p for p, _ in sc.axes] == ["node[1].pressure", "branch[3].part[1].gauge"]
+    assert sc.n_points == 4 and sc.n_parts == 3 and sc.parts == ()
+    assert value_of("node[2].flow", 2e-6, "pump").written == "120 mL/min"
+
+
+@pytest.mark.parametrize(
+    ("tables", "field", "words"),
+    [
+        (
+            (BAG, VEIN, node("bag", "junction"), branch("s", "bag", "vein")),
+            "node[3].name",
+            "node 'bag' is named twice (node[1] and node[3])",
+        ),
+        (
+            (BAG, VEIN, branch("s", "bag", "vien")),
+            "branch[1].to",
+            "unknown node 'vien'; did you mean 'vein'",
+        ),
+        (
+            (BAG, VEIN, branch("s", "bag", "vein"), branch("s", "bag", "vein")),
+            "branch[2].name",
+            "branch 's' is named twice",
+        ),
+        ((BAG, VEIN, branch("s", "vein", "vein")), "branch[1].to", "to itself"),
+        (
+            (BAG, VEIN, node("spare", "junction"), branch("s", "bag", "vein")),
+            "node[3].name",
+            "node 'spare' is on no branch",
+        ),
+        (
+            (
+                BAG,
+                VEIN,
+                node("cap", "junction"),
+                branch("s", "bag", "vein"),
+                branch("t", "bag", "cap"),
+            ),
+            "node[3].type",
+            "a dead end",
+        ),
+        (
+            (
+                BAG,
+                VEIN,
+                node("p", "pump", flow="5 mL/h"),
+                node("q", "pump", flow="5 mL/h"),
+                node("m", "junction"),
+                branch("s", "bag", "vein"),
+                branch("a", "p", "m"),
+                branch("b", "q", "m"),
+            ),
+            "branch[2].name",
+            "a disconnected branch",
+        ),
+        (
+            (
+                BAG,
+                VEIN,
+                node("x", "junction"),
+                node("y", "junction"),
+                branch("s", "bag", "vein"),
+                branch("up", "x", "y"),
+                branch("down", "y", "x"),
+            ),
+            "branch[2].name",
+            "a loop with no source",
+        ),
+        (
+            (
+                node("m", "junction"),
+                node("p", "pump", flow="5 mL/h"),
+                branch("s", "p", "m"),
+                branch("t", "p", "m"),
+            ),
+            "node",
+            "no bag, source or outlet",
+        ),
+        (
+            (node("p", "pump"), VEIN, branch("s", "p", "vein")),
+            "node[1].flow",
+            "a pump node needs flow",
+        ),
+        ((node("b", "bgg"), VEIN, branch("s", "b", "vein")), "node[1].type", "did you mean 'bag'"),
+        (
+            (node("b", "bag", head="1 m", flow="1 mL/h"), VEIN, branch("s", "b", "vein")),
+            "node[1].flow",
+            "unknown bag node field 'flow'",
+        ),
+        (
+            (BAG, VEIN, branch("s", "bag", "vein", 'type = "tube"\nlength = "1 m"\n')),
+            "branch[1].part[1].inner_diameter",
+            "a tube needs inner_diameter or shape",
+        ),
+        (
+            (BAG, VEIN, branch("s", "bag", "vein", 'type = "catheter"\ngauge = 19\n')),
+            "branch[1].part[1].gauge",
+            "not in the catheter catalogue",
+        ),
+        ((BAG, VEIN), "branch", "lists its branches"),
+        (
+            ('head = "1 m"\n', BAG, VEIN, branch("s", "bag", "vein")),
+            "head",
+            "give each bag node its head",
+        ),
+    ],
+)
+def test_topology_errors_name_the_file_scenario_and_field(tables, field, words):
+    with pytest.raises(ScenarioError, match=re.escape(words)) as info:
+        sset = load(*tables)
+        check_scenarios(sset)
+    assert info.value.field == field
+    assert str(info.value).startswith(f"<string>, scenario 'case', field '{field}'")
+
+
+def test_a_model_error_in_a_branch_names_the_branch_part():
+    cannula = 'type = "cannula"\nfrench = 3\nwall_thickness = "0.6 mm"\nlength = "0.1 m"\n'
+    sset = load(BAG, VEIN, branch("s", "bag", "vein"), branch("t", "bag", "vein", cannula))
+    with pytest.raises(ScenarioError, match="leaves no bore in a 3 Fr cannula") as info:
+        check_scenarios(sset)
+    assert info.value.field == "branch[2].part[1].french"
+
+
+# --------------------------------------------------------------------------- shapes
+def test_shaped_and_catalogue_lumens_build_the_model_parts():
+    sset = load(
+        BAG,
+        VEIN,
+        branch(
+            "s",
+            "bag",
+            "vein",
+            'type = "tube"\nshape = "annulus"\nouter_diameter = "2 mm"\ncore_diameter = "0.9 mm"\n'
+            'length = "0.3 m"\n[[scenario.branch.part]]\ntype = "tube"\nshape = "d-shaped"\n'
+            'diameter = "3 mm"\nlength = "0.2 m"\n[[scenario.branch.part]]\ntype = "check-valve"\n'
+            "k = 3\n",
+        ),
+    )
+    table = run(sset).table
+    line = rheoline.Line(
+        [
+            Tube(shape=Annulus(2e-3, 0.9e-3), length=0.3),
+            Tube(shape=Semicircle(3e-3), length=0.2),
+            CheckValve(k=3.0),
+        ]
+    )
+    expected = line.solve(
+        rheoline.fluid("saline-0.9", temperature_c=22.0), head=1.0, back_pressure=8 * MMHG
+    ).flow
+    assert table["flow [mL/min]"].iloc[0] == pytest.approx(expected / ML_PER_MIN, rel=1e-9)
+
+
+# --------------------------------------------------------------------------- runs
+def test_one_branch_network_gives_the_line_scenario_answer():
+    parts = 'type = "set"\nkind = "gravity-set"\n[[scenario.branch.part]]\ntype = "catheter"\ngauge = 18\n'
+    net = run(load(node("bag", "bag", head="90 cm"), VEIN, branch("set", "bag", "vein", parts)))
+    line = run(
+        loads_scenarios(
+            HEAD + 'head = "90 cm"\nback_pressure = "8 mmHg"\n[[scenario.part]]\ntype = "set"\n'
+            'kind = "gravity-set"\n[[scenario.part]]\ntype = "catheter"\ngauge = 18\n'
+        )
+    )
+    for column in ("flow [mL/min]", "max Reynolds number", "max wall shear stress [Pa]"):
+        assert net.table[column].iloc[0] == pytest.approx(line.table[column].iloc[0], rel=1e-9)
+    assert net.table["drive"].iloc[0] == "network" and net.table["reversed flow [mL/min]"][0] == 0
+    assert np.isnan(line.table["reversed flow [mL/min]"].iloc[0])
+    drops = net.parts.set_index("part")["pressure drop [Pa]"]
+    assert drops["set / 18G catheter"] == pytest.approx(
+        line.parts.set_index("part")["pressure drop [Pa]"]["18G catheter"], rel=1e-9
+    )
+    assert net.models_used[-2:] == ("kirchhoff-1847", "todini-pilati-1988")
+    assert "todini-pilati-1988" not in line.models_used
+
+
+def _ward_network(check_valve, pump_ml_h):
+    """The ward example's network built directly with the model (same parts and nodes)."""
+    gravity = [extension_set("gravity-set", name="gravity set"), Fitting(k=2.0)]
+    if check_valve:
+        gravity.append(CheckValve(k=4.0))
+    return PartNetwork(
+        [
+            Branch("gravity set", "saline bag", "y-site", gravity),
+            Branch("pump line", "pump", "y-site", [Tube(inner_diameter=2.5e-3, length=2.5)]),
+            Branch(
+                "extension and catheter",
+                "y-site",
+                "vein",
+                [extension_set("small-bore-extension"), Catheter(gauge=22)],
+            ),
+        ],
+        [PressureNode("saline bag", head=0.6), PressureNode("vein", 8 * MMHG, outlet=True)],
+        [Pump("pump", flow=np.asarray(pump_ml_h) * 1e-6 / 3600, pressure_limit=300 * MMHG)],
+    )
+
+
+def test_ward_example_reports_backflow_into_the_bag_in_words_and_data():
+    result = run(load_scenarios(example_path("ward-y-site")))
+    table, branches = result.table, result.branches
+    fluid = rheoline.fluid("saline-0.9", temperature_c=22.0)
+    for valved, scenario in (
+        (False, "Y-site without a check valve"),
+        (True, "Y-site with a check valve on the gravity line"),
+    ):
+        rows = table[table["scenario"] == scenario]
+        model = _ward_network(valved, [100.0, 500.0, 1500.0]).solve(fluid)
+        gravity = branches[
+            (branches["branch"] == "gravity set") & branches["case"].isin(rows["case"])
+        ]
+        np.testing.assert_allclose(
+            gravity["flow [mL/min]"], model.branch_flow[0] / ML_PER_MIN, rtol=1e-9
+        )
+        outflow = -model.pressure_node_inflow[1] / ML_PER_MIN
+        np.testing.assert_allclose(rows["flow [mL/min]"], outflow, rtol=1e-9)
+        assert list(gravity["reversed"]) == list(model.reversed[0])
+        assert not valved or not gravity["reversed"].any()
+    backward = table.set_index("case").loc["Y-site without a check valve | 1500 mL/h"]
+    amount = backward["reversed flow [mL/min]"]
+    assert amount > 1.0 and backward["reversed branch"] == "gravity set"
+    assert f"{amount:.3g} mL/min pushed back into saline bag by pump" in backward["flags"]
+    assert "reversed flow in gravity set" in backward["flags"]
+    valved = table.set_index("case").loc[
+        "Y-site with a check valve on the gravity line | 1500 mL/h"
+    ]
+    assert valved["flags"] == "check valve closed in gravity set"
+    assert valved["flow [mL/min]"] == pytest.approx(25.0, rel=1e-12)  # all of the pump's flow
+
+
+def test_sweep_points_equal_single_scenarios_and_balance_mass():
+    text = HEAD + "".join(
+        [
+            node("bag", "bag", head="80 cm"),
+            node("pump", "pump", pressure_limit="300 mmHg"),
+            'flow = ["60 mL/h", "900 mL/h", "2400 mL/h"]\n',
+            node("y", "junction"),
+            VEIN,
+            branch("set", "bag", "y", 'type = "set"\nkind = "gravity-set"\n'),
+            branch("pump line", "pump", "y"),
+            branch("catheter", "y", "vein", 'type = "catheter"\ngauge = [20, 22]\n'),
+        ]
+    )
+    swept = run(loads_scenarios(text))
+    assert len(swept.table) == 6
+    for case, row in swept.table.set_index("case").iterrows():
+        flow_text, gauge = row["point"].split(", ")
+        single = text.replace('["60 mL/h", "900 mL/h", "2400 mL/h"]', f'"{flow_text}"')
+        single = single.replace("gauge = [20, 22]", f"gauge = {gauge[:-1]}")
+        one = run(loads_scenarios(single))
+        assert one.table["flow [mL/min]"].iloc[0] == pytest.approx(row["flow [mL/min]"], rel=1e-9)
+        mine = swept.nodes[swept.nodes["case"] == case].set_index("node")["flow in [mL/min]"]
+        # Kirchhoff 1847: what the bag and the pump feed in leaves at the vein
+        assert mine["bag"] + mine["pump"] == pytest.approx(-mine["vein"], rel=1e-9)
+        assert mine["y"] == 0.0
+
+
+def test_trauma_bay_shares_its_flow_between_five_lumens():
+    result = run(load_scenarios(example_path("trauma-bay")))
+    for case, rows in result.branches.groupby("case", sort=False):
+        flows = rows.set_index("branch")["flow [mL/min]"]
+        lumens = flows.drop("rapid line")
+        assert lumens.sum() == pytest.approx(flows["rapid line"], rel=1e-9)
+        assert flows["left arm 16G"] > flows["right arm 18G"]
+        assert flows["central line medial lumen"] == pytest.approx(
+            flows["central line proximal lumen"], rel=1e-12
+        )
+        total = result.table.set_index("case").loc[case, "flow [mL/min]"]
+        assert total == pytest.approx(flows["rapid line"], rel=1e-9)
+    assert not result.branches["reversed"].any()
+    assert (result.table["reversed flow [mL/min]"] == 0).all()
+
+
+def test_run_json_records_gain_branches(capsys):
+    from rheoline import cli
+
+    assert cli.main(["run", str(example_path("ward-y-site")), "--json"]) == 0
+    out, err = capsys.readouterr()
+    records = json.loads(out)
+    assert rheoline.CAUTION in err and all(r["caution"] == rheoline.CAUTION for r in records)
+    back = next(r for r in records if r["name"] == "Y-site without a check valve | 1500 mL/h")
+    names = [b["name"] for b in back["branches"]]
+    assert names == ["gravity set", "pump line", "extension and catheter"]
+    gravity = back["branches"][0]
+    assert gravity["reversed"] is True and gravity["flow_ml_min"] < 0
+    assert back["reversed_flow_ml_min"] == pytest.approx(-gravity["flow_ml_min"], rel=1e-12)
+    assert back["reversed_branch"] == "gravity set"
+    assert {n["name"]: n["type"] for n in back["nodes"]}["y-site"] == "junction"
+    assert all(
+        {"name", "flow_ml_min", "reversed"} <= set(b) for r in records for b in r["branches"]
+    )
+
+
+def test_line_records_have_no_branches(capsys):
+    from rheoline import cli
+
+    assert cli.main(["run", str(example_path("minimal")), "--json"]) == 0
+    [record] = json.loads(capsys.readouterr().out)
+    assert "branches" not in record and "reversed_flow_ml_min" not in record
+
+
+def test_check_names_the_network(capsys):
+    from rheoline import cli
+
+    assert cli.main(["check", str(example_path("trauma-bay"))]) == 0
+    out = capsys.readouterr().out
+    assert "pressure bag: network of 5 nodes and 6 branches, 12 part(s)" in out
+
