@@ -21,7 +21,8 @@ reversed line where the flow runs backwards)
     ``max Reynolds number``, ``regime``, ``dominant part`` (the part with the largest drop
     anywhere, named "branch / part") and its ``dominant share [%]`` of its branch's losses,
     ``max wall shear stress [Pa]``, ``hemolysis index [%]`` (largest branch, blood only),
-    ``hemolysis concern``, and the per-part conditions (turbulent, transitional, outside a
+    ``hemolysis concern``, ``transition zone``, and the per-part conditions (turbulent,
+    transitional, laminar near transition, outside a
     correlation's range, hemolysis extrapolated).
 
 The flags are rendered by :func:`rheoline.scenario.run.render_flags` from those arrays, as
@@ -49,6 +50,7 @@ import numpy as np
 from rheoline.errors import RheolineError, RheolineWarning, ScenarioError
 from rheoline.model.provenance import merge_models
 from rheoline.scenario.build import point_part_names
+from rheoline.scenario.model_band import BAND_COLUMNS
 from rheoline.scenario.network_build import branch_group, build_network, network_groups
 from rheoline.scenario.steps import part_rows
 from rheoline.units import ML_PER_H, ML_PER_MIN, MMHG
@@ -192,6 +194,8 @@ class NetworkGroupRun:
             c[what] = _nan(n)
         c["pressure p95 [mmHg]"] = _nan(n)
         c["dominant tolerance"] = [""] * n
+        for key in BAND_COLUMNS:  # the model band is computed for lines only
+            c[key] = [""] * n if key == "model band driver" else _nan(n)
         c["time to deliver [min]"] = _nan(n)
         c["catheter-to-vein ratio [-]"] = _nan(n)
 
@@ -269,12 +273,13 @@ class NetworkGroupRun:
             [[_REGIMES.index(str(r)) for r in np.atleast_1d(f.regime)] for f in self.flows]
         )
         c["regime"] = [_REGIMES[k] for k in ranks.max(axis=0)]
+        self._part_conditions()
+        c["transition zone"] = self.conditions["transition_zone"].tolist()
         self._dominant()
         wss = np.array([_vec(f.max_wall_shear_stress, n) for f in self.flows]).max(axis=0)
         c["max wall shear stress [Pa]"] = wss.tolist()
         hemo = np.array([_vec(f.hemolysis_index, n) for f in self.flows])
         c["hemolysis index [%]"] = hemo.max(axis=0).tolist()  # NaN: no red cells
-        self._part_conditions()
         c["hemolysis concern"] = self.conditions["hemolysis_concern"].tolist()
 
     def _dominant(self):
@@ -295,7 +300,7 @@ class NetworkGroupRun:
         """Per-part turbulent and transitional lumens (every branch's parts in order), and
         the branches' outside-range and hemolysis conditions, from their line results."""
         n = self.n
-        per_part = {"turbulent": [], "transitional": []}
+        per_part = {"turbulent": [], "transitional": [], "transition_zone": []}
         held = dict.fromkeys(("outside_range", "hemolysis_extrapolated", "hemolysis_concern"))
         held = {key: np.zeros(n, bool) for key in held}
         for f in self.flows:
@@ -306,8 +311,8 @@ class NetworkGroupRun:
             for key in held:
                 held[key] |= np.asarray(cond[key]).reshape(n)
         self.part_conditions = {k: np.concatenate(v) for k, v in per_part.items()}
-        self.conditions["turbulent"] = self.part_conditions["turbulent"].any(axis=0)
-        self.conditions["transitional"] = self.part_conditions["transitional"].any(axis=0)
+        for key in per_part:
+            self.conditions[key] = self.part_conditions[key].any(axis=0)
         self.conditions.update(held)
 
     def note_views(self):
@@ -340,7 +345,7 @@ class NetworkGroupRun:
         ]
         data = {
             key: [labels[j] for j in np.flatnonzero(self.part_conditions[key][:, col])]
-            for key in ("turbulent", "transitional")
+            for key in ("turbulent", "transitional", "transition_zone")
         }
         for key, mask in (("reversed", self.res.reversed), ("closed", self.res.closed)):
             held = mask.reshape(-1, self.n)[:, col]
