@@ -7,6 +7,7 @@ the model's own answer (Kirchhoff 1847: mass balance at every node) and renders 
 from the network's condition arrays.
 """
 
+import html
 import json
 import re
 import warnings
@@ -389,3 +390,62 @@ def test_check_names_the_network(capsys):
     out = capsys.readouterr().out
     assert "pressure bag: network of 5 nodes and 6 branches, 12 part(s)" in out
 
+
+# --------------------------------------------------------------------------- packs
+def test_pack_of_a_branched_run_has_branch_and_node_tables_with_the_caution(tmp_path):
+    import csv
+
+    from openpyxl import load_workbook
+
+    from rheoline.scenario.export import is_review_pack, write_pack
+
+    result = run(load_scenarios(example_path("ward-y-site")))
+    folder = write_pack(result, tmp_path / "pack")
+    for name, columns in (("branches.csv", "branch"), ("nodes.csv", "node")):
+        with (folder / name).open(encoding="utf-8", newline="") as fh:
+            rows = list(csv.reader(fh))
+        assert rows[0] == ["caution: " + rheoline.CAUTION]
+        assert columns in rows[1] and len(rows) == 2 + (18 if name == "branches.csv" else 24)
+    book = load_workbook(folder / "results.xlsx", read_only=True)
+    assert {"branches", "nodes"} <= set(book.sheetnames)
+    assert next(book["branches"].iter_rows(values_only=True))[0] == "caution: " + rheoline.CAUTION
+    page = (folder / "report.html").read_text(encoding="utf-8")
+    assert page.index(html.escape(rheoline.CAUTION)) < page.index("Branches of each branched line")
+    assert (
+        "Y-site without a check valve | 1500 mL/h: flow runs backwards in branch gravity set"
+        in page
+    )
+    assert "mL/min flows back into saline bag (bag)" in page
+    manifest = json.loads((folder / "manifest.json").read_text())
+    assert {"branches.csv", "nodes.csv"} <= set(manifest["files_sha256"])
+    assert is_review_pack(folder)
+    assert write_pack(result, folder, force=True) == folder  # replaces its own pack
+
+
+def test_pack_of_lines_only_adds_no_network_files(tmp_path):
+    from rheoline.scenario.export import write_pack
+
+    folder = write_pack(run(load_scenarios(example_path("minimal"))), tmp_path / "pack")
+    names = {p.name for p in folder.iterdir()}
+    assert not names & {"branches.csv", "nodes.csv"}
+    assert "Branches of each branched line" not in (folder / "report.html").read_text()
+
+
+def test_hostile_node_and_branch_names_are_escaped_and_neutralized(tmp_path):
+    import csv
+
+    from rheoline.scenario.export import write_pack
+
+    evil = "<img src=x onerror=alert(1)>"
+    sset = load(
+        node("=HYPERLINK(1)", "bag", head="1 m"),
+        node(evil, "outlet"),
+        branch("@SUM(A1)", "=HYPERLINK(1)", evil),
+    )
+    folder = write_pack(run(sset), tmp_path / "pack")
+    page = (folder / "report.html").read_text(encoding="utf-8")
+    assert evil not in page and "&lt;img src=x onerror=alert(1)&gt;" in page
+    with (folder / "branches.csv").open(encoding="utf-8", newline="") as fh:
+        cells = [c for row in csv.reader(fh) for c in row]
+    assert "'@SUM(A1)" in cells and "'=HYPERLINK(1)" in cells
+    assert not any(c.startswith(("=", "@", "+")) for c in cells)

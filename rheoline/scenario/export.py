@@ -30,7 +30,9 @@ The work is shared by idea:
   (:func:`neutralize_cell`), the CSV and XLSX writers;
 - :mod:`rheoline.scenario.pack_report`: the HTML report (every text escaped);
 - :mod:`rheoline.scenario.pack_sources`: the models used with their references, the
-  cautions and the run's notes.
+  cautions and the run's notes;
+- :mod:`rheoline.scenario.pack_network`: a run with branched lines adds ``branches.csv``
+  and ``nodes.csv`` (and the workbook's sheets and the report's section of the same name).
 """
 
 from __future__ import annotations
@@ -43,7 +45,13 @@ import re
 from pathlib import Path
 
 from rheoline.errors import OutputError, PackExistsError  # re-exported from here
-from rheoline.scenario import pack_evidence, pack_report, pack_sources, pack_tables
+from rheoline.scenario import (
+    pack_evidence,
+    pack_network,
+    pack_report,
+    pack_sources,
+    pack_tables,
+)
 from rheoline.scenario.files import output_error
 from rheoline.scenario.pack_folder import (
     PACK_FILES,
@@ -121,6 +129,8 @@ def _write_all(run, folder: Path):
     pack_tables.write_csv(assumptions, folder / "assumptions.csv", title_row)
     evidence = pack_evidence.evidence_table(run)
     pack_tables.write_csv(evidence, folder / "model-evidence.csv", title_row)
+    for name, frame in pack_network.network_frames(run).items():  # branched lines only
+        pack_tables.write_csv(frame, folder / f"{name}.csv", title_row)
     cautions = pack_sources.cautions_list(run, caution)
     sheets = {}
     for name, frame in _sheets(run, meta, assumptions, cautions).items():
@@ -152,6 +162,7 @@ def _sheets(run, meta, assumptions, cautions):
     return {
         "results": run.table,
         "parts": run.parts,
+        **pack_network.network_frames(run),
         "scenario inputs": run.inputs,
         "assumptions": assumptions,
         "cautions": pd.DataFrame({"caution": cautions}),

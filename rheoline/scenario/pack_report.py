@@ -290,6 +290,7 @@ def report_html(
 {_charts_html(run)}
 <h2>Parts of each line</h2>
 {frame_html(run.parts)}
+{_network_section(run)}
 <h2>Scenario inputs</h2>
 {frame_html(run.inputs)}
 <h2 id="models-used">Models used and their references</h2>
@@ -311,6 +312,13 @@ def _evidence_section(evidence):
     from rheoline.scenario.pack_evidence import evidence_html
 
     return f'<h2 id="model-evidence">Model evidence</h2>\n{evidence_html(evidence, _e)}'
+
+
+def _network_section(run) -> str:
+    """The branched lines' section (:mod:`rheoline.scenario.pack_network`), or ""."""
+    from rheoline.scenario.pack_network import network_html
+
+    return network_html(run)
 
 
 def write_html(path: Path, page: str):
