@@ -165,9 +165,10 @@ class NetworkGroupRun:
             self.build()
             self.solve()
             self.branches()
+        from rheoline.scenario.run import _warning_key
+
         said = [w.message for w in caught if isinstance(w.message, RheolineWarning)]
-        self.notes += [(getattr(m, "model", None) or "warning", str(m)) for m in said]
-        self.notes += [("network", text) for text in self.res.flags]
+        self.notes += [(_warning_key(m), str(m)) for m in said]
         return self
 
     # ----------------------------------------------------------------------- build
