@@ -417,7 +417,10 @@ class Scenario:
 
     def field(self, path):
         """The field at a dotted path (``"head"``, ``"fluid"``, ``"tolerance.samples"``,
-        ``"part[2].gauge"``, ``"part[2].tolerance.length"``), or None where not given."""
+        ``"part[2].gauge"``, ``"part[2].tolerance.length"``; a branched scenario's
+        ``"node[1].head"``, ``"branch[2].part[1].gauge"``), or None where not given."""
+        if path.startswith(("node[", "branch[")):
+            return self.topology.field(path)
         group, key, part = self._locate(path)
         if part is not None:
             return (part.tolerance if group == "tolerance" else part.fields).get(key)
@@ -438,6 +441,8 @@ class Scenario:
         """
         from dataclasses import replace
 
+        if path.startswith(("node[", "branch[")):  # rheoline.scenario.topology
+            return replace(self, topology=self.topology.with_field(path, value))
         group, key, part = self._locate(path)
         if part is not None:
             j = int(path[5 : path.index("]")]) - 1

@@ -270,6 +270,48 @@ class TopologySpec:
             for j, p in enumerate(b.parts, start=1)
         ]
 
+    def _locate(self, path):
+        """``(kind, indices, key)`` of ``"node[i].key"`` or ``"branch[i].part[j].key"``."""
+        head, _, key = path.rpartition(".")
+        numbers = [int(x.split("]")[0]) - 1 for x in head.split("[")[1:]]
+        return ("node" if head.startswith("node[") else "part"), numbers, key
+
+    def field(self, path):
+        """The field at ``"node[2].head"`` or ``"branch[1].part[2].gauge"`` (None where not
+        given)."""
+        kind, idx, key = self._locate(path)
+        if kind == "node":
+            return self.nodes[idx[0]].fields.get(key)
+        return self.branches[idx[0]].parts[idx[1]].fields.get(key)
+
+    def with_field(self, path, value):
+        """A copy with the field at ``path`` set to ``value`` (None removes it); nothing is
+        validated here (the reader checks an edited set, as for
+        :meth:`rheoline.scenario.description.Scenario.with_field`).
+
+        >>> t = TopologySpec((NodeSpec("p", "pump", {"flow": Value(1e-6)}),), ())
+        >>> t.with_field("node[1].flow", Value(2e-6)).nodes[0].values
+        {'flow': 2e-06}
+        """
+        from dataclasses import replace
+
+        kind, idx, key = self._locate(path)
+        holder = self.nodes[idx[0]] if kind == "node" else self.branches[idx[0]].parts[idx[1]]
+        entries = {k: v for k, v in holder.fields.items() if k != key}
+        if value is not None:
+            entries[key] = value
+        holder = replace(holder, fields=entries)
+        if kind == "node":
+            nodes = list(self.nodes)
+            nodes[idx[0]] = holder
+            return replace(self, nodes=tuple(nodes))
+        branch = self.branches[idx[0]]
+        parts = list(branch.parts)
+        parts[idx[1]] = holder
+        branches = list(self.branches)
+        branches[idx[0]] = replace(branch, parts=tuple(parts))
+        return replace(self, branches=tuple(branches))
+
     @property
     def axes(self):
         """The swept fields as ``[(path, Axis), ...]``: nodes first, then the branches'

@@ -44,7 +44,13 @@ def demo_document():
 
 
 #: Each tab's title, shown before its view is built (a view's ``title`` says the same).
-TAB_TITLES = {"line": "Line", "compare": "Compare", "blood": "Blood and vessels", "files": "Files"}
+TAB_TITLES = {
+    "line": "Line",
+    "compare": "Compare",
+    "network": "Branched line",
+    "blood": "Blood and vessels",
+    "files": "Files",
+}
 
 
 class Views(Mapping):
@@ -89,7 +95,7 @@ class Views(Mapping):
 
 
 class App(widgets.VBox):
-    """The views in tabs: line, comparison, blood and vessels, files.
+    """The views in tabs: line, comparison, branched line, blood and vessels, files.
 
     Only the first tab's view is built with the app; each other tab's view is built when
     the tab is first opened (or first asked for in ``app.views``), so the page loads only
@@ -98,19 +104,21 @@ class App(widgets.VBox):
     Parameters
     ----------
     tabs : sequence of str, optional
-        Which tabs to build (default all): any of "line", "compare", "blood", "files".
+        Which tabs to build (default all): any of "line", "compare", "network", "blood",
+        "files".
     workspace : str or os.PathLike, optional
         The folder the files tab reads and writes (see
         :class:`~rheoline.widgets.files_view.FilesView`).
     """
 
-    def __init__(self, tabs=("line", "compare", "blood", "files"), workspace=None):
+    def __init__(self, tabs=("line", "compare", "network", "blood", "files"), workspace=None):
         super().__init__()
         self.add_class("rl-app")
         self.document = demo_document()
         builders = {
             "line": lambda: self._line_view(),
             "compare": lambda: self._comparison_view(),
+            "network": _network,
             "blood": _blood,
             "files": lambda: _files(  # a load's summary asks these views (built then)
                 lambda: self.views.get("line"),
@@ -159,6 +167,12 @@ class App(widgets.VBox):
         view.show_figures()
 
 
+def _network():
+    from rheoline.widgets.network_view import NetworkView
+
+    return NetworkView(lazy=True)
+
+
 def _blood():
     from rheoline.widgets.blood_view import BloodVesselView
 
@@ -171,6 +185,6 @@ def _files(line_view, compare_view, document, workspace=None):
     return FilesView(line_view, compare_view, document=document, workspace=workspace)
 
 
-def build_app(tabs=("line", "compare", "blood", "files"), workspace=None) -> App:
+def build_app(tabs=("line", "compare", "network", "blood", "files"), workspace=None) -> App:
     """Build the app (see :class:`App`)."""
     return App(tabs, workspace=workspace)

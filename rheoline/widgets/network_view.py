@@ -1,0 +1,303 @@
+"""The branched-line view: a drawn network, its flows, and reversed flow in words and shape.
+
+Pick a branched scenario (the shipped examples' by default: an invented trauma bay and an
+invented ward), set the fluid, its temperature and hematocrit, and the drives at the nodes
+(a bag's head and pressure, a source's pressure, a pump's rate and pressure limit, an
+outlet's pressure), and read what each branch does: the diagram
+(:func:`rheoline.widgets.network_draw.network_figure`) draws every branch with an arrow
+in the direction its flow takes, dashed with its arrow pointing back and the word
+"REVERSED" where the flow runs against the branch's direction, dotted and "closed" where a
+check valve holds it; the results list each branch in words, the total flow into the
+outlets and the flags.
+
+The view edits one :class:`~rheoline.scenario.description.Scenario` (its topology is the
+description's): each control replaces one field through the scenario layer
+(:meth:`Scenario.with_field` with :func:`rheoline.scenario.values.value_of`), the edited
+set is checked by the reader (:func:`~rheoline.scenario.reading.parse_scenarios`) and run
+by :func:`~rheoline.scenario.run.run_scenarios`; no physics here.  A swept scenario is
+shown at its first sweep point.  The caution banner is on top; every user string is
+escaped.
+
+Examples
+--------
+>>> view = NetworkView()
+>>> sorted(view.figures), view.controls["scenario"].value
+(['network'], 'pressure bag')
+>>> _ = view.set_control("scenario", "Y-site without a check valve")
+>>> view.controls["node[2].flow"].value                   # the pump's rate [mL/h]
+100.0
+>>> "REVERSED" in view.results.value
+False
+>>> _ = view.set_control("node[2].flow", 1500.0)
+>>> "Reversed flow: 6.37 mL/min in gravity set" in view.results.value
+True
+"""
+
+from __future__ import annotations
+
+import html
+
+import ipywidgets as widgets
+
+from rheoline.scenario.description import ScenarioSet, Value
+from rheoline.units import from_unit, to_unit
+from rheoline.widgets.base import _STYLE, View, fluid_controls, labelled, number_field
+from rheoline.widgets.network_draw import branch_words, network_figure
+from rheoline.widgets.style import flag_html
+
+__all__ = ["NetworkView", "NODE_CONTROLS", "single_point", "branched_examples"]
+
+#: Per node type: (field, label, display unit, unit kind, step) of each drive control.
+NODE_CONTROLS = {
+    "bag": (
+        ("head", "head", "cm", "length", 5.0),
+        ("pressure", "pressure", "mmHg", "pressure", 10.0),
+    ),
+    "source": (
+        ("pressure", "pressure", "mmHg", "pressure", 10.0),
+        ("head", "head", "cm", "length", 5.0),
+    ),
+    "pump": (
+        ("flow", "rate", "mL/h", "flow", 10.0),
+        ("pressure_limit", "pressure limit (0 = none)", "mmHg", "pressure", 10.0),
+    ),
+    "outlet": (("pressure", "pressure", "mmHg", "pressure", 1.0),),
+    "junction": (),
+}
+#: Fields a control may clear by reading 0 (no bag pressure, no pump limit).
+_OPTIONAL_AT_ZERO = {("bag", "pressure"), ("pump", "pressure_limit")}
+_FLUID_FIELDS = {
+    "temperature_c": "temperature",
+    "hematocrit": "hematocrit",
+    "mass_fraction": "mass_fraction",
+}
+
+
+def branched_examples():
+    """The branched scenarios of the shipped example files (a tuple of Scenario)."""
+    from rheoline.scenario.reading import example_names, example_path, load_scenarios
+
+    out = []
+    for name in example_names():
+        out += [s for s in load_scenarios(example_path(name)).scenarios if s.topology is not None]
+    return tuple(out)
+
+
+def single_point(scenario):
+    """``scenario`` with every swept field at its first value (an :class:`Axis` becomes a
+    :class:`Value` written as the file wrote that value, where it did)."""
+    for path, axis in scenario.axes:
+        written = axis.written[0] if isinstance(axis.written, tuple) else None
+        scenario = scenario.with_field(path, Value(axis.values[0], written))
+    return scenario
+
+
+def _node_path(i, key):
+    return f"node[{i}].{key}"
+
+
+class NetworkView(View):
+    """Draw a branched line and read its branch flows, with reversed flow marked.
+
+    Parameters
+    ----------
+    scenarios : sequence of Scenario, optional
+        Branched scenarios to choose from (default :func:`branched_examples`).
+    lazy : bool
+        Keep the diagram a plain figure until :meth:`show_figures`.
+    """
+
+    title = "Branched line"
+
+    def __init__(self, scenarios=None, lazy: bool = False):
+        super().__init__()
+        chosen = tuple(scenarios) if scenarios is not None else branched_examples()
+        self.choices = {s.name: single_point(s) for s in chosen if s.topology is not None}
+        if not self.choices:
+            raise ValueError("the network view needs at least one branched scenario")
+        first = next(iter(self.choices.values()))
+        self.scenario = first
+        self.run = None
+        c = self.controls
+        c["scenario"] = labelled(
+            widgets.Dropdown(
+                options=list(self.choices), value=first.name, description="scenario", style=_STYLE
+            ),
+            "rl-network-scenario",
+        )
+        fluid = first.fluid
+        c.update(
+            fluid_controls(
+                fluid.name.si,
+                first.values["temperature"],
+                fluid.hematocrit.si if fluid.hematocrit else 0.45,
+                fluid.mass_fraction.si if fluid.mass_fraction else 0.4,
+            )
+        )
+        self.node_box = widgets.VBox()
+        self.node_box.add_class("rl-network-nodes")
+        self.results = labelled(widgets.HTML(), "rl-network-results")
+        self.figures["network"] = network_figure_placeholder()
+        self._build_node_controls()
+        c["scenario"].observe(lambda change: self._run(self._choose), names="value")
+        for name in ("fluid", *_FLUID_FIELDS):
+            self._observe(name, self._edit_fluid)
+        self._run(self._solve)
+        self._widgetize(lazy)
+        fluid_box = widgets.VBox(
+            [c["fluid"], c["temperature_c"], c["hematocrit"], c["mass_fraction"]]
+        )
+        self._finish(
+            [
+                c["scenario"],
+                widgets.HBox([fluid_box, self.node_box]),
+                self.results,
+                self.figure_box("network"),
+            ]
+        )
+
+    # -- controls ------------------------------------------------------------------
+    def _observe(self, name, handler):
+        def observer(change, name=name):
+            if not self._paused:
+                self._run(lambda: handler(name))
+
+        self.controls[name].observe(observer, names="value")
+
+    def _build_node_controls(self):
+        """One row of drive controls per node that has drives (rebuilt per scenario)."""
+        from rheoline.scenario.schema import field_spec
+
+        for name in [k for k in self.controls if k.startswith("node[")]:
+            del self.controls[name]
+        rows = []
+        for i, node in enumerate(self.scenario.topology.nodes, start=1):
+            boxes = []
+            for key, label, unit, kind, step in NODE_CONTROLS[node.type]:
+                spec = field_spec(_node_path(i, key), node.type)
+                low = (
+                    0.0 if (node.type, key) in _OPTIONAL_AT_ZERO else to_unit(spec.low, unit, kind)
+                )
+                value = node.values.get(key, 0.0)
+                name = _node_path(i, key)
+                self.controls[name] = number_field(
+                    float(to_unit(value, unit, kind)),
+                    float(low),
+                    float(to_unit(spec.high, unit, kind)),
+                    step,
+                    f"{label} [{unit}]",
+                    f"rl-node-{key.replace('_', '-')}",
+                )
+                self._observe(name, self._edit_node)
+                boxes.append(self.controls[name])
+            if boxes:
+                title = widgets.HTML(f"<b>{html.escape(node.name)}</b> ({html.escape(node.type)})")
+                rows.append(widgets.VBox([title, *boxes]))
+        self.node_box.children = rows
+
+    def _choose(self):
+        """Show the scenario picked in the dropdown (controls set to its values)."""
+        self.scenario = self.choices[self.controls["scenario"].value]
+        fluid = self.scenario.fluid
+        self._paused = True
+        try:
+            c = self.controls
+            c["fluid"].value = fluid.name.si
+            c["temperature_c"].value = float(self.scenario.values["temperature"])
+            for key in ("hematocrit", "mass_fraction"):
+                if getattr(fluid, key) is not None:
+                    c[key].value = float(getattr(fluid, key).si)
+        finally:
+            self._paused = False
+        self._build_node_controls()
+        self._solve()
+
+    # -- edits of the description ------------------------------------------------------
+    def _edit_fluid(self, name):
+        from rheoline.model.fluids import FLUID_LIBRARY
+        from rheoline.scenario.values import value_of
+
+        c, sc = self.controls, self.scenario
+        fluid = c["fluid"].value
+        sc = sc.with_field("fluid", Value(fluid, fluid))
+        sc = sc.with_field("temperature", value_of("temperature", float(c["temperature_c"].value)))
+        options = FLUID_LIBRARY[fluid].options
+        for key in ("hematocrit", "mass_fraction"):
+            value = value_of(key, float(c[key].value)) if key in options else None
+            sc = sc.with_field(key, value)
+        self.scenario = sc
+        self._solve()
+
+    def _edit_node(self, name):
+        from rheoline.scenario.values import value_of
+
+        i = int(name[5 : name.index("]")])
+        node = self.scenario.topology.nodes[i - 1]
+        key = name.rsplit(".", 1)[1]
+        unit, kind = next((u, k) for f, _, u, k, _ in NODE_CONTROLS[node.type] if f == key)
+        shown = float(self.controls[name].value)
+        if shown == 0.0 and (node.type, key) in _OPTIONAL_AT_ZERO:
+            value = None
+        else:
+            value = value_of(name, float(from_unit(shown, unit, kind)), node.type)
+        self.scenario = self.scenario.with_field(name, value)
+        self._solve()
+
+    # -- solve and draw ------------------------------------------------------------------
+    def _solve(self):
+        """Check the edited scenario as the reader checks a file, run it, draw the case."""
+        from rheoline.scenario.reading import parse_scenarios
+        from rheoline.scenario.run import run_scenarios
+        from rheoline.scenario.writing import scenario_set_data
+
+        self.results.value = flag_html("error", "the inputs did not compute (see the message)")
+        sset = parse_scenarios(
+            scenario_set_data(ScenarioSet((self.scenario,), source="<network view>")),
+            source="<network view>",
+        )
+        run = self.run = run_scenarios(sset)
+        row = run.table.iloc[0]
+        case = row["case"]
+        branches = run.branches[run.branches["case"] == case]
+        nodes = run.nodes[run.nodes["case"] == case]
+        self._draw(network_figure(self.scenario.topology, branches, nodes, self.scenario.name))
+        self.results.value = _results_html(row, branches, run.flags[case])
+
+    def _draw(self, fresh):
+        fig = self.figures["network"]
+        if fig is fresh:
+            return
+        if hasattr(fig, "batch_update"):
+            with fig.batch_update():
+                fig.data = ()
+                fig.add_traces(list(fresh.data))
+                fig.layout = fresh.layout
+        else:
+            self.figures["network"] = fresh
+
+
+def network_figure_placeholder():
+    """An empty diagram (filled by the first update)."""
+    import plotly.graph_objects as go
+
+    return go.Figure(layout=go.Layout(template="simple_white", height=380))
+
+
+def _results_html(row, branches, flags):
+    """The case in words: total flow, pump pressure, each branch, the flags (escaped)."""
+    items = [f"<li>{html.escape(branch_words(r))}</li>" for r in branches.to_dict("records")]
+    lines = [
+        f"<b>Total flow into the outlets: {row['flow [mL/min]']:.3g} mL/min "
+        f"({row['flow [mL/h]']:.4g} mL/h)</b>",
+        f"Highest pump or source pressure: {row['required pressure [mmHg]']:.3g} mmHg",
+    ]
+    reversed_flow = row["reversed flow [mL/min]"]
+    if reversed_flow > 0:
+        lines.append(
+            f"<b>Reversed flow: {reversed_flow:.3g} mL/min in {html.escape(row['reversed branch'])}"
+            "</b> (drawn dashed, its arrow pointing back)"
+        )
+    else:
+        lines.append("No branch carries flow against its direction.")
+    said = "".join(flag_html("caution", f) for f in flags)
+    return "<br>".join(lines) + f"<ul>{''.join(items)}</ul>" + said
