@@ -30,12 +30,10 @@ True
 
 from __future__ import annotations
 
-import html
-
 import numpy as np
 import plotly.graph_objects as go
 
-from rheoline.widgets.style import PALETTE, significant
+from rheoline.widgets.style import PALETTE, significant, user_text
 
 __all__ = ["NODE_SYMBOLS", "node_positions", "branch_paths", "network_figure", "branch_words"]
 
@@ -161,7 +159,7 @@ _LABELS = {
 
 def _label(row):
     q = significant(abs(float(row["flow [mL/min]"])))
-    return f"{html.escape(str(row['branch']))}<br>" + _LABELS[_state(row)].format(q=q)
+    return f"{user_text(str(row['branch']))}<br>" + _LABELS[_state(row)].format(q=q)
 
 
 def network_figure(topology, branches, nodes, title) -> go.Figure:
@@ -189,9 +187,9 @@ def network_figure(topology, branches, nodes, title) -> go.Figure:
                 x=xs,
                 y=ys,
                 mode="lines",
-                name=b.name,
+                name=user_text(b.name),
                 line=dict(color=_COLOUR[state], width=3, dash=_DASH[state]),
-                hovertext=html.escape(branch_words(row)),
+                hovertext=user_text(branch_words(row)),
                 hoverinfo="text",
                 showlegend=False,
             )
@@ -240,10 +238,10 @@ def network_figure(topology, branches, nodes, title) -> go.Figure:
                 y=[positions[n.name][1] for n in members],
                 mode="markers+text",
                 name=kind,
-                text=[html.escape(n.name) for n in members],
+                text=[user_text(n.name) for n in members],
                 textposition="bottom center",
                 hovertext=[
-                    f"{html.escape(n.name)} ({kind}): {pressure[n.name]:.3g} mmHg" for n in members
+                    f"{user_text(n.name)} ({kind}): {pressure[n.name]:.3g} mmHg" for n in members
                 ],
                 hoverinfo="text",
                 marker=dict(
@@ -253,7 +251,7 @@ def network_figure(topology, branches, nodes, title) -> go.Figure:
         )
     xs = [p[0] for p in positions.values()]
     layout = go.Layout(
-        title=html.escape(str(title)),
+        title=user_text(str(title)),
         annotations=notes,
         xaxis=dict(visible=False, range=[min(xs) - 0.4, max(xs) + 0.4]),
         yaxis=dict(visible=False, scaleanchor=None),

@@ -35,15 +35,13 @@ True
 
 from __future__ import annotations
 
-import html
-
 import ipywidgets as widgets
 
 from rheoline.scenario.description import ScenarioSet, Value
 from rheoline.units import from_unit, to_unit
 from rheoline.widgets.base import _STYLE, View, fluid_controls, labelled, number_field
 from rheoline.widgets.network_draw import branch_words, network_figure
-from rheoline.widgets.style import flag_html
+from rheoline.widgets.style import flag_html, user_text
 
 __all__ = ["NetworkView", "NODE_CONTROLS", "single_point", "branched_examples"]
 
@@ -191,7 +189,7 @@ class NetworkView(View):
                 self._observe(name, self._edit_node)
                 boxes.append(self.controls[name])
             if boxes:
-                title = widgets.HTML(f"<b>{html.escape(node.name)}</b> ({html.escape(node.type)})")
+                title = widgets.HTML(f"<b>{user_text(node.name)}</b> ({user_text(node.type)})")
                 rows.append(widgets.VBox([title, *boxes]))
         self.node_box.children = rows
 
@@ -285,7 +283,7 @@ def network_figure_placeholder():
 
 def _results_html(row, branches, flags):
     """The case in words: total flow, pump pressure, each branch, the flags (escaped)."""
-    items = [f"<li>{html.escape(branch_words(r))}</li>" for r in branches.to_dict("records")]
+    items = [f"<li>{user_text(branch_words(r))}</li>" for r in branches.to_dict("records")]
     lines = [
         f"<b>Total flow into the outlets: {row['flow [mL/min]']:.3g} mL/min "
         f"({row['flow [mL/h]']:.4g} mL/h)</b>",
@@ -294,7 +292,7 @@ def _results_html(row, branches, flags):
     reversed_flow = row["reversed flow [mL/min]"]
     if reversed_flow > 0:
         lines.append(
-            f"<b>Reversed flow: {reversed_flow:.3g} mL/min in {html.escape(row['reversed branch'])}"
+            f"<b>Reversed flow: {reversed_flow:.3g} mL/min in {user_text(row['reversed branch'])}"
             "</b> (drawn dashed, its arrow pointing back)"
         )
     else:
