@@ -43,6 +43,10 @@ import itertools
 import math
 from collections.abc import Mapping
 from dataclasses import dataclass, field, fields
+from typing import TYPE_CHECKING
+
+if TYPE_CHECKING:  # the topology module builds on this one
+    from rheoline.scenario.topology import TopologySpec
 
 __all__ = [
     "DEFAULT_TEMPERATURE_C",
@@ -354,7 +358,7 @@ class Scenario:
     site: SiteSpec | None = None
     notes: str = ""
     model_band: bool = True
-    topology: object = None
+    topology: TopologySpec | None = None
 
     def __post_init__(self):
         object.__setattr__(self, "parts", tuple(self.parts))
