@@ -131,3 +131,46 @@ def test_app_has_the_network_tab():
     app = build_app(tabs=("network",))
     assert not app.failures
     assert app.tabs.titles == ("Branched line",)
+
+
+def test_files_view_loads_branched_scenarios_into_the_shared_set(tmp_path):
+    import shutil
+
+    from rheoline.widgets.app import build_app
+
+    app = build_app(tabs=("line", "compare", "network", "files"), workspace=tmp_path)
+    network, files = app.views["network"], app.views["files"]
+    assert not network.from_document  # the demo set holds lines only: the examples shown
+    shutil.copy(example_path("trauma-bay"), tmp_path / "bay.toml")
+    files.load("bay.toml")
+    assert network.from_document
+    assert list(network.controls["scenario"].options) == ["pressure bag", "rapid infuser"]
+    assert network.scenario.name == "pressure bag"
+    assert "central line distal lumen" in network.results.value
+    status = files.status.value
+    assert "network view: scenario &#39;pressure bag&#39; (1 of 2 branched" in status
+    assert "the scenario set holds no line scenario" in status  # the line view says so
+    assert "branched scenarios (the Network tab shows them)" in status
+    assert list(app.views["line"].controls["scenario"].options) == []
+    # an edit in the network view is an edit of the set: saved, and read back
+    network.set_control("temperature_c", 30.0)
+    assert files.document.scenario("pressure bag").values["temperature"] == pytest.approx(30.0)
+    saved = files.save("bay-edited.toml")
+    again = load_scenarios(saved)
+    assert again.scenarios[0].values["temperature"] == pytest.approx(30.0)
+    assert again.scenarios[1] == load_scenarios(example_path("trauma-bay")).scenarios[1]
+
+
+def test_line_view_keeps_to_line_scenarios_of_a_mixed_set():
+    from rheoline.scenario.description import ScenarioSet
+    from rheoline.widgets.document import ScenarioDocument
+    from rheoline.widgets.line_view import LineView
+
+    lines = load_scenarios(example_path("minimal")).scenarios
+    ward = load_scenarios(example_path("ward-y-site")).scenarios
+    doc = ScenarioDocument(ScenarioSet((*ward, *lines), source="<mixed>"))
+    view = LineView(document=doc)
+    assert list(view.controls["scenario"].options) == [lines[0].name]
+    assert view.last_update_ok
+    network = NetworkView(document=doc)
+    assert list(network.controls["scenario"].options) == [s.name for s in ward]

@@ -1,9 +1,11 @@
 """The whole app: the views in tabs over one scenario set, plus the file panel.
 
 :func:`build_app` is what the served notebook (``notebooks/app.ipynb``) shows.  The line,
-comparison and files views share one :class:`~rheoline.widgets.document.ScenarioDocument`:
-the line view edits one of its scenarios, the comparison draws them all, and the files view
-loads a file into it and saves it.  The app starts from invented demo scenarios: the line
+comparison, network and files views share one
+:class:`~rheoline.widgets.document.ScenarioDocument`: the line view edits one of its line
+scenarios, the comparison draws them all, the network view draws and edits its branched
+scenarios (the shipped branched examples while it holds none), and the files view loads a
+file into it and saves it.  The app starts from invented demo scenarios: the line
 view's line ("line view") and three catheters behind the same set.  Each tab is a view that
 carries its own caution banner at the top, so the banner is on screen whichever tab is open.
 """
@@ -118,13 +120,14 @@ class App(widgets.VBox):
         builders = {
             "line": lambda: self._line_view(),
             "compare": lambda: self._comparison_view(),
-            "network": _network,
+            "network": lambda: self._network_view(),
             "blood": _blood,
             "files": lambda: _files(  # a load's summary asks these views (built then)
                 lambda: self.views.get("line"),
                 lambda: self.views.get("compare"),
                 self.document,
                 workspace,
+                lambda: self.views.get("network"),
             ),
         }
         self.views = Views({name: builders[name] for name in tabs if name in builders})
@@ -154,6 +157,11 @@ class App(widgets.VBox):
         source = None if line is None else (lambda: line.scenario)
         return ComparisonView(lazy=True, line_source=source, document=self.document)
 
+    def _network_view(self):
+        from rheoline.widgets.network_view import NetworkView
+
+        return NetworkView(lazy=True, document=self.document)
+
     def _opened(self, change):
         """A tab's view is built, placed and drawn when the tab is first opened."""
         if change.new is not None:
@@ -167,22 +175,22 @@ class App(widgets.VBox):
         view.show_figures()
 
 
-def _network():
-    from rheoline.widgets.network_view import NetworkView
-
-    return NetworkView(lazy=True)
-
-
 def _blood():
     from rheoline.widgets.blood_view import BloodVesselView
 
     return BloodVesselView(lazy=True)
 
 
-def _files(line_view, compare_view, document, workspace=None):
+def _files(line_view, compare_view, document, workspace=None, network_view=None):
     from rheoline.widgets.files_view import FilesView
 
-    return FilesView(line_view, compare_view, document=document, workspace=workspace)
+    return FilesView(
+        line_view,
+        compare_view,
+        document=document,
+        workspace=workspace,
+        network_view=network_view,
+    )
 
 
 def build_app(tabs=("line", "compare", "network", "blood", "files"), workspace=None) -> App:

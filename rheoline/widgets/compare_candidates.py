@@ -107,11 +107,13 @@ class Candidate:
 @dataclass(frozen=True)
 class Found:
     """The candidates of a set: those drawn, those beyond :data:`MAX_SHOWN_CANDIDATES`
-    (names), and the pump scenarios (names) that are not candidates."""
+    (names), and the pump scenarios and branched scenarios (names) that are not
+    candidates."""
 
     shown: tuple
     hidden: tuple
     pumps: tuple
+    networks: tuple = ()
 
 
 def _points(sc):
@@ -129,8 +131,11 @@ def _points(sc):
 def find_candidates(scenarios, limit: int = MAX_SHOWN_CANDIDATES) -> Found:
     """The candidates of ``scenarios`` (file order, then sweep order), the first ``limit``
     drawn."""
-    found, pumps, names = [], [], set()
+    found, pumps, networks, names = [], [], [], set()
     for sc in scenarios:
+        if sc.topology is not None:  # the network view draws these
+            networks.append(sc.name)
+            continue
         if sc.mode == "flow":
             pumps.append(sc.name)
             continue
@@ -140,7 +145,8 @@ def find_candidates(scenarios, limit: int = MAX_SHOWN_CANDIDATES) -> Found:
                 name, k = f"{sc.name}{suffix} #{k}", k + 1
             names.add(name)
             found.append(Candidate(name, sc.name, chosen, at_point(sc, dict(chosen)), sc))
-    return Found(tuple(found[:limit]), tuple(c.name for c in found[limit:]), tuple(pumps))
+    hidden = tuple(c.name for c in found[limit:])
+    return Found(tuple(found[:limit]), hidden, tuple(pumps), tuple(networks))
 
 
 # --------------------------------------------------------------------------- shared inputs

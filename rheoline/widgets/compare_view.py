@@ -307,6 +307,10 @@ class ComparisonView(View):
             text = "comparison: no scenario with a gravity or pressure drive to compare"
             if found.pumps:
                 text += f"; pump scenarios (the line view shows them): {_quoted(found.pumps)}"
+            if found.networks:
+                text += (
+                    f"; branched scenarios (the Network tab shows them): {_quoted(found.networks)}"
+                )
             return "note", text
         scenarios = list(dict.fromkeys(c.scenario for c in self.candidates))
         n = len(self.candidates)
@@ -318,6 +322,8 @@ class ComparisonView(View):
             )
         if found.pumps:
             notes.append(f"pump scenarios, not compared here: {_quoted(found.pumps)}")
+        if found.networks:
+            notes.append(f"branched scenarios, drawn in the Network tab: {_quoted(found.networks)}")
         notes += self._per_scenario_notes()
         if len(scenarios) > 1:
             text += (

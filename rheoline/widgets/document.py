@@ -93,6 +93,16 @@ class ScenarioDocument:
         """The scenarios' names, in file order."""
         return [s.name for s in self._set.scenarios]
 
+    def line_names(self) -> list:
+        """The names of the line scenarios (those without a network), in file order: what
+        the line and comparison views show."""
+        return [s.name for s in self._set.scenarios if s.topology is None]
+
+    def branched(self) -> tuple:
+        """The branched scenarios (those with a network), in file order: what the network
+        view shows."""
+        return tuple(s for s in self._set.scenarios if s.topology is not None)
+
     def scenario(self, name: str) -> Scenario:
         """The scenario called ``name``."""
         for s in self._set.scenarios:

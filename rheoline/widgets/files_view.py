@@ -44,6 +44,9 @@ class FilesView(View):
     line_view, compare_view : View or callable, optional
         The views that show the set (their status lines are summed up after a load); a
         callable returns the view, or None while the app has not built it.
+    network_view : NetworkView or callable, optional
+        The view that shows the set's branched scenarios (summed up after a load too, while
+        the set holds any), given as the other views are.
     document : ScenarioDocument, optional
         The set to load into and save (default: the line view's, else the comparison's).
     workspace : str or os.PathLike, optional
@@ -54,11 +57,13 @@ class FilesView(View):
 
     title = "Files"
 
-    def __init__(self, line_view=None, compare_view=None, document=None, workspace=None):
+    def __init__(
+        self, line_view=None, compare_view=None, document=None, workspace=None, network_view=None
+    ):
         super().__init__()
         from rheoline.widgets.serve import workspace_folder
 
-        self._views = (line_view, compare_view)
+        self._views = (line_view, compare_view, network_view)
         views = [v for v in (self.line_view, self.compare_view) if v is not None]
         if document is None:
             document = views[0].document if views else _own_document()
@@ -137,6 +142,11 @@ class FilesView(View):
         """The comparison view that shows the set, or None (not built, or none)."""
         return _view(self._views[1])
 
+    @property
+    def network_view(self):
+        """The network view that shows the set's branched scenarios, or None."""
+        return _view(self._views[2])
+
     def _failed(self, exc):
         # the last action did not happen: its status replaces the previous one
         self.say("error", f"nothing was loaded, saved or written: {exc}")
@@ -167,7 +177,10 @@ class FilesView(View):
     def views_summary(self):
         """``(level, text)``: what each view shows of the set, and what it does not."""
         levels, texts = [], []
-        for view in (self.line_view, self.compare_view):
+        network = self.network_view
+        if network is not None and not network.from_document:
+            network = None  # it shows the shipped examples, not this set
+        for view in (self.line_view, self.compare_view, network):
             if view is None:
                 continue
             level, text = view.shown_summary()

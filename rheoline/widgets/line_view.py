@@ -31,6 +31,7 @@ from dataclasses import replace
 import ipywidgets as widgets
 import numpy as np
 
+from rheoline.errors import ScenarioError
 from rheoline.scenario.description import (
     DEFAULT_TEMPERATURE_C,
     DriveSpec,
@@ -83,6 +84,11 @@ DRIVE_MODES = {
     "set flow (pump)": "source pressure for a prescribed flow",
 }
 _PUMP = "set flow (pump)"
+#: What the view says when the set holds branched scenarios only.
+_NO_LINE = (
+    "line view: the scenario set holds no line scenario (its branched scenarios are shown "
+    "in the Network tab)"
+)
 #: Points on the flow-against-drive chart.
 DRIVE_CURVE_POINTS = 41
 #: The scenario fields the line view shows (the parts have their own rows).
@@ -230,7 +236,7 @@ class LineView(View):
             )
             document = ScenarioDocument(ScenarioSet((own,), source="<views>"))
         self.document = document
-        self._name = scenario or document.names()[0]
+        self._name = scenario or next(iter(document.line_names()), None)
         self._build_controls(fluid, temperature_c, hematocrit, head_cm, flow_ml_min, mode)
         self.controls["pressure_limit_mmhg"].value = pressure_limit_mmhg
         self._built_key = self._point = self._model = None
@@ -250,7 +256,7 @@ class LineView(View):
         c = self.controls
         c["scenario"] = labelled(
             widgets.Dropdown(
-                options=self.document.names(),
+                options=self.document.line_names(),
                 value=self._name,
                 description="scenario",
                 style=_STYLE,
@@ -328,6 +334,8 @@ class LineView(View):
     @property
     def scenario(self) -> Scenario:
         """The scenario description the view shows (as the set holds it)."""
+        if self._name is None:
+            raise ScenarioError(_NO_LINE)
         return self.document.scenario(self._name)
 
     def show(self, name: str) -> bool:
@@ -340,8 +348,12 @@ class LineView(View):
             self.show(change.new)
 
     def _document_changed(self):
-        if self._name not in self.document.names():
-            self._name = self.document.names()[0]
+        names = self.document.line_names()
+        if not names:  # a set of branched scenarios only: the network view shows them
+            self._show_no_line()
+            return
+        if self._name not in names:
+            self._name = names[0]
         self._sync()
         self._refresh({"solve"})
 
@@ -352,8 +364,8 @@ class LineView(View):
         c = self.controls
         self._paused = True
         try:
-            if list(c["scenario"].options) != self.document.names():
-                c["scenario"].options = self.document.names()
+            if list(c["scenario"].options) != self.document.line_names():
+                c["scenario"].options = self.document.line_names()
             c["scenario"].value = sc.name
             if values["fluid"] not in c["fluid"].options:
                 c["fluid"].options = [*c["fluid"].options, values["fluid"]]
@@ -374,6 +386,19 @@ class LineView(View):
         self._enable()
         self.say(*self.shown_summary())
 
+    def _show_no_line(self):
+        """The set holds no line scenario: say so, and show no number."""
+        self._name = None
+        self._paused = True
+        try:
+            self.controls["scenario"].options = []
+        finally:
+            self._paused = False
+        self.editor.set_parts((), notify=False)
+        self.notes.value = ""
+        self.results.value = flag_html("note", _NO_LINE)
+        self.say("note", _NO_LINE)
+
     def _enable(self):
         c = self.controls
         options = fluid_options(c["fluid"].value)
@@ -388,8 +413,10 @@ class LineView(View):
     def shown_summary(self):
         """``(level, text)``: what the view shows of its scenario and what it does not
         ("ok" only when it shows every field of it at its only point)."""
+        names = self.document.line_names()
+        if not names:
+            return "note", _NO_LINE
         sc = self.scenario
-        names = self.document.names()
         text = f"line view: scenario {sc.name!r}"
         if len(names) > 1:
             text += f" ({names.index(sc.name) + 1} of {len(names)}; choose another above)"

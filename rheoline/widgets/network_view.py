@@ -100,26 +100,35 @@ class NetworkView(View):
     Parameters
     ----------
     scenarios : sequence of Scenario, optional
-        Branched scenarios to choose from (default :func:`branched_examples`).
+        Branched scenarios to choose from when no document holds any (default
+        :func:`branched_examples`).
     lazy : bool
         Keep the diagram a plain figure until :meth:`show_figures`.
+    document : ScenarioDocument, optional
+        The scenario set the views share (:mod:`rheoline.widgets.document`).  While it
+        holds branched scenarios the view offers those and writes every edit into it (so a
+        saved file or a review pack holds the edit); while it holds none, the view offers
+        ``scenarios`` and keeps its edits to itself.
     """
 
     title = "Branched line"
 
-    def __init__(self, scenarios=None, lazy: bool = False):
+    def __init__(self, scenarios=None, lazy: bool = False, document=None):
         super().__init__()
-        chosen = tuple(scenarios) if scenarios is not None else branched_examples()
-        self.choices = {s.name: single_point(s) for s in chosen if s.topology is not None}
-        if not self.choices:
+        self.document = document
+        chosen = tuple(scenarios) if scenarios is not None else None
+        self._own = {s.name: s for s in (chosen or ()) if s.topology is not None}
+        self._editing = False
+        self.sources = self._offered()
+        if not self.sources:
             raise ValueError("the network view needs at least one branched scenario")
-        first = next(iter(self.choices.values()))
+        first = single_point(next(iter(self.sources.values())))
         self.scenario = first
         self.run = None
         c = self.controls
         c["scenario"] = labelled(
             widgets.Dropdown(
-                options=list(self.choices), value=first.name, description="scenario", style=_STYLE
+                options=list(self.sources), value=first.name, description="scenario", style=_STYLE
             ),
             "rl-network-scenario",
         )
@@ -137,9 +146,11 @@ class NetworkView(View):
         self.results = labelled(widgets.HTML(), "rl-network-results")
         self.figures["network"] = network_figure_placeholder()
         self._build_node_controls()
-        c["scenario"].observe(lambda change: self._run(self._choose), names="value")
+        c["scenario"].observe(self._picked, names="value")
         for name in ("fluid", *_FLUID_FIELDS):
             self._observe(name, self._edit_fluid)
+        if document is not None:
+            self._follow(document)
         self._run(self._solve)
         self._widgetize(lazy)
         fluid_box = widgets.VBox(
@@ -154,6 +165,53 @@ class NetworkView(View):
             ]
         )
 
+    # -- the scenarios offered ---------------------------------------------------------
+    @property
+    def from_document(self) -> bool:
+        """Whether the view shows the shared set's branched scenarios (and edits them)."""
+        return self.document is not None and bool(self.document.branched())
+
+    def _offered(self):
+        """``{name: scenario}``: the document's branched scenarios, else the view's own."""
+        if self.from_document:
+            return {s.name: s for s in self.document.branched()}
+        if not self._own:
+            self._own = {s.name: s for s in branched_examples()}
+        return dict(self._own)
+
+    def _document_changed(self):
+        """Another view changed the set (a file was loaded): offer its branched scenarios."""
+        if self._editing:
+            return
+        offered = self._offered()
+        if offered == self.sources:
+            return
+        self.sources = offered
+        name = self.scenario.name if self.scenario.name in offered else next(iter(offered))
+        self._paused = True
+        try:
+            self.controls["scenario"].options = list(offered)
+            self.controls["scenario"].value = name
+        finally:
+            self._paused = False
+        self._choose()
+
+    def shown_summary(self):
+        """``(level, text)``: what the view shows of the set's branched scenarios."""
+        if not self.from_document:
+            return "ok", "network view: the set holds no branched scenario"
+        names = list(self.sources)
+        sc = self.sources[self.scenario.name]
+        text = (
+            f"network view: scenario {sc.name!r} ({names.index(sc.name) + 1} of "
+            f"{len(names)} branched; choose another above); its parts are kept, not edited here"
+        )
+        if sc.axes:
+            text += "; shown at the first point of its sweeps: " + ", ".join(
+                f"{path} {axis.shown[0]}" for path, axis in sc.axes
+            )
+        return "note", text
+
     # -- controls ------------------------------------------------------------------
     def _observe(self, name, handler):
         def observer(change, name=name):
@@ -161,6 +219,10 @@ class NetworkView(View):
                 self._run(lambda: handler(name))
 
         self.controls[name].observe(observer, names="value")
+
+    def _picked(self, change):
+        if not self._paused and change.new is not None:
+            self._run(self._choose)
 
     def _build_node_controls(self):
         """One row of drive controls per node that has drives (rebuilt per scenario)."""
@@ -195,7 +257,7 @@ class NetworkView(View):
 
     def _choose(self):
         """Show the scenario picked in the dropdown (controls set to its values)."""
-        self.scenario = self.choices[self.controls["scenario"].value]
+        self.scenario = single_point(self.sources[self.controls["scenario"].value])
         fluid = self.scenario.fluid
         self._paused = True
         try:
@@ -215,16 +277,16 @@ class NetworkView(View):
         from rheoline.model.fluids import FLUID_LIBRARY
         from rheoline.scenario.values import value_of
 
-        c, sc = self.controls, self.scenario
+        c = self.controls
         fluid = c["fluid"].value
-        sc = sc.with_field("fluid", Value(fluid, fluid))
-        sc = sc.with_field("temperature", value_of("temperature", float(c["temperature_c"].value)))
+        fields = [
+            ("fluid", Value(fluid, fluid)),
+            ("temperature", value_of("temperature", float(c["temperature_c"].value))),
+        ]
         options = FLUID_LIBRARY[fluid].options
         for key in ("hematocrit", "mass_fraction"):
-            value = value_of(key, float(c[key].value)) if key in options else None
-            sc = sc.with_field(key, value)
-        self.scenario = sc
-        self._solve()
+            fields.append((key, value_of(key, float(c[key].value)) if key in options else None))
+        self._apply(fields)
 
     def _edit_node(self, name):
         from rheoline.scenario.values import value_of
@@ -238,7 +300,25 @@ class NetworkView(View):
             value = None
         else:
             value = value_of(name, float(from_unit(shown, unit, kind)), node.type)
-        self.scenario = self.scenario.with_field(name, value)
+        self._apply([(name, value)])
+
+    def _apply(self, fields):
+        """Write ``[(path, value), ...]`` into the scenario shown (every other field, a
+        sweep included, kept): into the shared set, checked by its reader, when the view
+        shows the set's scenarios; then solve it."""
+        sc = self.sources[self.scenario.name]
+        for path, value in fields:
+            sc = sc.with_field(path, value)
+        if self.from_document:
+            self._editing = True
+            try:
+                sc = self.document.replace({sc.name: sc}, by=self)[sc.name]
+            finally:
+                self._editing = False
+        else:
+            self._own[sc.name] = sc
+        self.sources[sc.name] = sc
+        self.scenario = single_point(sc)
         self._solve()
 
     # -- solve and draw ------------------------------------------------------------------
