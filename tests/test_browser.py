@@ -310,7 +310,7 @@ def test_a_link_in_a_part_label_stays_text_in_the_charts(page, served_app):
 
 def test_the_page_asks_nothing_of_another_machine(page):
     # every tab opened, so each tab's widgets and charts load their code and styles
-    for name in ("Compare", "Blood and vessels", "Files", "Line"):
+    for name in ("Compare", "Network", "Blood and vessels", "Files", "Line"):
         page.get_by_role("tab", name=name).click()
         page.wait_for_timeout(1000)
     page.wait_for_function("() => [...document.querySelectorAll('.js-plotly-plot')].length >= 4")

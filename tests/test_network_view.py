@@ -130,7 +130,7 @@ def test_app_has_the_network_tab():
 
     app = build_app(tabs=("network",))
     assert not app.failures
-    assert app.tabs.titles == ("Branched line",)
+    assert app.tabs.titles == ("Network",)
 
 
 def test_files_view_loads_branched_scenarios_into_the_shared_set(tmp_path):

@@ -111,7 +111,7 @@ class NetworkView(View):
         ``scenarios`` and keeps its edits to itself.
     """
 
-    title = "Branched line"
+    title = "Network"
 
     def __init__(self, scenarios=None, lazy: bool = False, document=None):
         super().__init__()
