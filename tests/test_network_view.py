@@ -174,3 +174,35 @@ def test_line_view_keeps_to_line_scenarios_of_a_mixed_set():
     assert view.last_update_ok
     network = NetworkView(document=doc)
     assert list(network.controls["scenario"].options) == [s.name for s in ward]
+
+
+def test_a_branchs_parts_are_edited_with_the_line_views_parts_editor():
+    # a bigger catheter on the outlet branch: more flow, and the edit is the set's
+    from rheoline.scenario.description import ScenarioSet
+    from rheoline.widgets.document import ScenarioDocument
+
+    ward = load_scenarios(example_path("ward-y-site"))
+    doc = ScenarioDocument(ScenarioSet(ward.scenarios, source="<ward>"))
+    view = NetworkView(document=doc)
+    assert view.controls["branch"].value == 1
+    assert [p.type for p in view.editor.parts()] == ["set", "fitting"]
+    before = view.run.table["flow [mL/min]"].iloc[0]
+    view.set_control("branch", 3)  # extension and catheter
+    assert [p.type for p in view.editor.parts()] == ["set", "catheter"]
+    catheter = view.editor.rows[1]
+    catheter.size.value = 18
+    after = view.run.table["flow [mL/min]"].iloc[0]
+    assert after > before
+    held = doc.scenario("Y-site without a check valve").topology.branches[2].parts[1]
+    assert held.fields["gauge"].si == 18
+    assert (
+        doc.scenario("Y-site without a check valve").topology.branches[0]
+        == (ward.scenarios[0].topology.branches[0])
+    )
+    # the pump's sweep (three rates) is kept in the set; the view shows its first point
+    assert len(doc.scenario("Y-site without a check valve").topology.nodes[1].fields["flow"]) == 3
+    # a bore the file format refuses is refused with the reader's message, nothing kept
+    catheter.bore.value = 90.0
+    assert not view.last_update_ok
+    assert "inner_diameter" in view.messages.value
+    assert doc.scenario("Y-site without a check valve").topology.branches[2].parts[1] == held

@@ -312,6 +312,21 @@ class TopologySpec:
         branches[idx[0]] = replace(branch, parts=tuple(parts))
         return replace(self, branches=tuple(branches))
 
+    def with_branch_parts(self, index, parts):
+        """A copy whose branch ``index`` (1-based, as in ``branch[1]``) holds ``parts``
+        (PartSpecs, from its ``from`` node to its ``to`` node); validated by the reader, as
+        :meth:`with_field` is.
+
+        >>> t = TopologySpec((), (BranchSpec("set", "bag", "vein", ()),))
+        >>> t.with_branch_parts(1, ("a part",)).branches[0].parts
+        ('a part',)
+        """
+        from dataclasses import replace
+
+        branches = list(self.branches)
+        branches[index - 1] = replace(branches[index - 1], parts=tuple(parts))
+        return replace(self, branches=tuple(branches))
+
     @property
     def axes(self):
         """The swept fields as ``[(path, Axis), ...]``: nodes first, then the branches'

@@ -3,7 +3,9 @@
 Pick a branched scenario (the shipped examples' by default: an invented trauma bay and an
 invented ward), set the fluid, its temperature and hematocrit, and the drives at the nodes
 (a bag's head and pressure, a source's pressure, a pump's rate and pressure limit, an
-outlet's pressure), and read what each branch does: the diagram
+outlet's pressure), pick a branch and edit its parts as the line view edits a line's (the
+same parts editor, :class:`~rheoline.widgets.parts_editor.PartsEditor`), and read what each
+branch does: the diagram
 (:func:`rheoline.widgets.network_draw.network_figure`) draws every branch with an arrow
 in the direction its flow takes, dashed with its arrow pointing back and the word
 "REVERSED" where the flow runs against the branch's direction, dotted and "closed" where a
@@ -12,7 +14,8 @@ outlets and the flags.
 
 The view edits one :class:`~rheoline.scenario.description.Scenario` (its topology is the
 description's): each control replaces one field through the scenario layer
-(:meth:`Scenario.with_field` with :func:`rheoline.scenario.values.value_of`), the edited
+(:meth:`Scenario.with_field` with :func:`rheoline.scenario.values.value_of`; the parts
+editor one branch's parts, :meth:`TopologySpec.with_branch_parts`), the edited
 set is checked by the reader (:func:`~rheoline.scenario.reading.parse_scenarios`) and run
 by :func:`~rheoline.scenario.run.run_scenarios`; no physics here.  A swept scenario is
 shown at its first sweep point.  The caution banner is on top; every user string is
@@ -35,12 +38,15 @@ True
 
 from __future__ import annotations
 
+from dataclasses import replace
+
 import ipywidgets as widgets
 
 from rheoline.scenario.description import ScenarioSet, Value
 from rheoline.units import from_unit, to_unit
 from rheoline.widgets.base import _STYLE, View, fluid_controls, labelled, number_field
 from rheoline.widgets.network_draw import branch_words, network_figure
+from rheoline.widgets.parts_editor import PartsEditor
 from rheoline.widgets.style import flag_html, user_text
 
 __all__ = ["NetworkView", "NODE_CONTROLS", "single_point", "branched_examples"]
@@ -143,10 +149,19 @@ class NetworkView(View):
         )
         self.node_box = widgets.VBox()
         self.node_box.add_class("rl-network-nodes")
+        c["branch"] = labelled(
+            widgets.Dropdown(options=[], description="branch", style=_STYLE),
+            "rl-network-branch",
+        )
+        self.editor = PartsEditor(())
+        c["parts"] = self.editor.version
         self.results = labelled(widgets.HTML(), "rl-network-results")
         self.figures["network"] = network_figure_placeholder()
         self._build_node_controls()
+        self._show_branches()
         c["scenario"].observe(self._picked, names="value")
+        c["branch"].observe(self._branch_picked, names="value")
+        self._observe("parts", self._edit_parts)
         for name in ("fluid", *_FLUID_FIELDS):
             self._observe(name, self._edit_fluid)
         if document is not None:
@@ -160,6 +175,7 @@ class NetworkView(View):
             [
                 c["scenario"],
                 widgets.HBox([fluid_box, self.node_box]),
+                widgets.VBox([c["branch"], self.editor], layout=widgets.Layout(margin="6px 0")),
                 self.results,
                 self.figure_box("network"),
             ]
@@ -204,7 +220,7 @@ class NetworkView(View):
         sc = self.sources[self.scenario.name]
         text = (
             f"network view: scenario {sc.name!r} ({names.index(sc.name) + 1} of "
-            f"{len(names)} branched; choose another above); its parts are kept, not edited here"
+            f"{len(names)} branched; choose another above)"
         )
         if sc.axes:
             text += "; shown at the first point of its sweeps: " + ", ".join(
@@ -270,7 +286,33 @@ class NetworkView(View):
         finally:
             self._paused = False
         self._build_node_controls()
+        self._show_branches()
         self._solve()
+
+    def _show_branches(self):
+        """The branch dropdown for the scenario shown, and the parts of the branch picked
+        in the editor (the set's parts, sweeps included)."""
+        branches = self.scenario.topology.branches
+        options = [(f"{i}. {b.name} ({b.start} to {b.end})", i) for i, b in enumerate(branches, 1)]
+        picked = self.controls["branch"].value
+        self._paused = True
+        try:
+            if list(self.controls["branch"].options) != options:
+                self.controls["branch"].options = options
+            self.controls["branch"].value = picked if picked in range(1, len(options) + 1) else 1
+            self._show_parts()
+        finally:
+            self._paused = False
+
+    def _show_parts(self):
+        branch = self.sources[self.scenario.name].topology.branches[
+            self.controls["branch"].value - 1
+        ]
+        self.editor.set_parts(branch.parts, notify=False)
+
+    def _branch_picked(self, change):
+        if not self._paused and change.new is not None:
+            self._show_parts()
 
     # -- edits of the description ------------------------------------------------------
     def _edit_fluid(self, name):
@@ -286,7 +328,12 @@ class NetworkView(View):
         options = FLUID_LIBRARY[fluid].options
         for key in ("hematocrit", "mass_fraction"):
             fields.append((key, value_of(key, float(c[key].value)) if key in options else None))
-        self._apply(fields)
+        self._apply(lambda sc: _with_fields(sc, fields))
+
+    def _edit_parts(self, name):
+        """The parts editor changed the branch picked: that branch's parts, all of them."""
+        index, parts = self.controls["branch"].value, self.editor.parts()
+        self._apply(lambda sc: replace(sc, topology=sc.topology.with_branch_parts(index, parts)))
 
     def _edit_node(self, name):
         from rheoline.scenario.values import value_of
@@ -300,15 +347,13 @@ class NetworkView(View):
             value = None
         else:
             value = value_of(name, float(from_unit(shown, unit, kind)), node.type)
-        self._apply([(name, value)])
+        self._apply(lambda sc: sc.with_field(name, value))
 
-    def _apply(self, fields):
-        """Write ``[(path, value), ...]`` into the scenario shown (every other field, a
-        sweep included, kept): into the shared set, checked by its reader, when the view
-        shows the set's scenarios; then solve it."""
-        sc = self.sources[self.scenario.name]
-        for path, value in fields:
-            sc = sc.with_field(path, value)
+    def _apply(self, edit):
+        """Write ``edit(scenario)`` into the scenario shown (an edit changes some fields and
+        keeps every other, a sweep included): into the shared set, checked by its reader,
+        when the view shows the set's scenarios; then solve it."""
+        sc = edit(self.sources[self.scenario.name])
         if self.from_document:
             self._editing = True
             try:
@@ -352,6 +397,13 @@ class NetworkView(View):
                 fig.layout = fresh.layout
         else:
             self.figures["network"] = fresh
+
+
+def _with_fields(scenario, fields):
+    """``scenario`` with each ``(path, value)`` of ``fields`` set."""
+    for path, value in fields:
+        scenario = scenario.with_field(path, value)
+    return scenario
 
 
 def network_figure_placeholder():
