@@ -205,7 +205,7 @@ def test_a_model_error_in_a_branch_names_the_branch_part():
     sset = load(BAG, VEIN, branch("s", "bag", "vein"), branch("t", "bag", "vein", cannula))
     with pytest.raises(ScenarioError, match="leaves no bore in a 3 Fr cannula") as info:
         check_scenarios(sset)
-    assert info.value.field == "branch[2].part[1].french"
+    assert info.value.field == "branch[2].part[1].wall_thickness"  # the field the model names
 
 
 # --------------------------------------------------------------------------- shapes
