@@ -452,3 +452,20 @@ def test_hostile_node_and_branch_names_are_escaped_and_neutralized(tmp_path):
         cells = [c for row in csv.reader(fh) for c in row]
     assert "'@SUM(A1)" in cells and "'=HYPERLINK(1)" in cells
     assert not any(c.startswith(("=", "@", "+")) for c in cells)
+
+
+def test_network_rows_flag_a_measured_part_outside_its_bench_and_implausible_answers():
+    # a bench curve of 1-2 mL/min driven at about 30 mL/min: flagged as a line's would be
+    measured = (
+        'type = "measured"\nflows = ["1 mL/min", "2 mL/min"]\n'
+        'pressure_drops = ["10 mmHg", "20 mmHg"]\n'
+    )
+    bag = node("bag", "bag", head="1 m") + 'pressure = "300 mmHg"\n'
+    result = run(load(bag, VEIN, branch("bench", "bag", "vein", measured)))
+    assert "measured part used outside its bench flows" in result.table["flags"].iloc[0]
+    assert "physically implausible" not in result.table["flags"].iloc[0]
+    # a pump forcing 20 L/min through a 0.3 mm, 1 m tube: no line holds that
+    pump = node("pump", "pump", flow="20 L/min")
+    tiny = 'type = "tube"\ninner_diameter = "0.3 mm"\nlength = "1 m"\n'
+    result = run(load(pump, VEIN, branch("tiny", "pump", "vein", tiny)))
+    assert "physically implausible" in result.table["flags"].iloc[0]

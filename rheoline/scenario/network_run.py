@@ -48,6 +48,7 @@ from types import SimpleNamespace
 import numpy as np
 
 from rheoline.errors import RheolineError, RheolineWarning, ScenarioError
+from rheoline.model.conditions import IMPLAUSIBLE_PRESSURE
 from rheoline.model.provenance import merge_models
 from rheoline.scenario.build import point_part_names
 from rheoline.scenario.model_band import BAND_COLUMNS
@@ -215,7 +216,8 @@ class NetworkGroupRun:
         total = -sum((inflow[o] for o in outlets), np.zeros(n))
         c["flow [mL/min]"] = (total / ML_PER_MIN).tolist()
         c["flow [mL/h]"] = (total / ML_PER_H).tolist()
-        c["required pressure [mmHg]"] = (self._drive_pressure(res) / MMHG + 0.0).tolist()
+        self.drive_pressure = self._drive_pressure(res)
+        c["required pressure [mmHg]"] = (self.drive_pressure / MMHG + 0.0).tolist()
         limits = [
             _vec(v["pressure_limit"], n)
             for nd, v in zip(topo.nodes, self.g.nodes, strict=True)
@@ -299,10 +301,21 @@ class NetworkGroupRun:
 
     def _part_conditions(self):
         """Per-part turbulent and transitional lumens (every branch's parts in order), and
-        the branches' outside-range and hemolysis conditions, from their line results."""
+        the branches' outside-range, hemolysis, measured-part, plausibility and convergence
+        conditions, from their line results (a pump or source pressure beyond any line's
+        is implausible too, as for a line)."""
         n = self.n
         per_part = {"turbulent": [], "transitional": [], "transition_zone": []}
-        held = dict.fromkeys(("outside_range", "hemolysis_extrapolated", "hemolysis_concern"))
+        held = dict.fromkeys(
+            (
+                "outside_range",
+                "hemolysis_extrapolated",
+                "hemolysis_concern",
+                "measured_extrapolated",
+                "implausible",
+                "not_converged",
+            )
+        )
         held = {key: np.zeros(n, bool) for key in held}
         for f in self.flows:
             part_cond = f.part_conditions
@@ -314,6 +327,8 @@ class NetworkGroupRun:
         self.part_conditions = {k: np.concatenate(v) for k, v in per_part.items()}
         for key in per_part:
             self.conditions[key] = self.part_conditions[key].any(axis=0)
+        held["not_converged"] |= self.conditions["not_converged"]  # the network's own
+        held["implausible"] |= self.drive_pressure > IMPLAUSIBLE_PRESSURE
         self.conditions.update(held)
 
     def note_views(self):
