@@ -49,7 +49,7 @@ def demo_document():
 TAB_TITLES = {
     "line": "Line",
     "compare": "Compare",
-    "network": "Branched line",
+    "network": "Network",
     "blood": "Blood and vessels",
     "files": "Files",
 }
