@@ -84,13 +84,8 @@ def _check_shape(values, at, prefix):
         return
     shape = values["shape"].si
     if shape not in SHAPE_DIMENSIONS:
-        near = difflib.get_close_matches(str(shape), list(SHAPE_DIMENSIONS), n=1, cutoff=0.5)
-        hint = f"; did you mean '{near[0]}'?" if near else ""
-        at.fail(
-            f"unknown shape '{shown(shape)}'{hint} Allowed: {', '.join(SHAPE_DIMENSIONS)} "
-            "(a circular lumen gives inner_diameter instead)",
-            prefix + "shape",
-        )
+        after = " (a circular lumen gives inner_diameter instead)"
+        _choice_fail(at, prefix + "shape", "shape", shape, list(SHAPE_DIMENSIONS), after=after)
     if "inner_diameter" in values:
         at.fail(
             f"{_a(shape)} lumen is given by its dimensions "
@@ -124,11 +119,12 @@ def _a(word):
     return f"{'an' if word[0] in 'aeiou' else 'a'} {word}"
 
 
-def _choice_fail(at, path, what, value, allowed, of=""):
+def _choice_fail(at, path, what, value, allowed, of="", after=""):
+    """Fail with "unknown <what> '<value>'<of>; did you mean '...'? Allowed: ...<after>"."""
     near = difflib.get_close_matches(str(value), [str(a) for a in allowed], n=1, cutoff=0.5)
-    hint = f"; did you mean '{near[0]}'?" if near else ""
+    hint = f"; did you mean '{near[0]}'?" if near else "."
     listed = ", ".join(map(str, allowed))
-    at.fail(f"unknown {what} '{shown(value)}'{of}{hint} Allowed: {listed}", path)
+    at.fail(f"unknown {what} '{shown(value)}'{of}{hint} Allowed: {listed}{after}", path)
 
 
 def _check_multi_lumen(values, at, prefix):
