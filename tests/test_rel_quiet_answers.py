@@ -170,6 +170,25 @@ def test_cases_that_share_a_label_keep_their_own_parts_everywhere(tmp_path):
         keys[1]: ["22G catheter"],
         keys[2]: ["18G catheter"],
     }
+    # the report's charts: one bar per case key (a repeated label would stack two cases'
+    # drops on one bar), each case's own catheter and drop
+    from rheoline.scenario.pack_report import _budget_figure, _flow_figure
+
+    flow_bars = _flow_figure(run.table).data[0]
+    assert list(flow_bars.y) == keys
+    assert list(flow_bars.x) == run.table["flow [mL/min]"].tolist()
+    drops = {}
+    for trace in _budget_figure(run, len(keys)).data:
+        assert len(set(trace.y)) == len(trace.y), trace.name  # no case key twice in a trace
+        for case, part, drop in zip(trace.y, trace.hovertext, trace.x, strict=True):
+            drops.setdefault(case, []).append((part, drop))
+    rows = run.parts
+    for case in keys:
+        mine = rows[rows["case"] == case]
+        assert sorted(drops[case]) == sorted(
+            zip(mine["part"], mine["pressure drop [mmHg]"], strict=True)
+        )
+    assert sorted(drops[keys[0]]) == sorted(drops[keys[2]]) != sorted(drops[keys[1]])
 
 
 # --------------------------------------------------------------------------- hemolysis
@@ -189,6 +208,21 @@ def test_no_hemolysis_index_for_fluids_without_red_cells(name, tmp_path):
     assert records[0]["hemolysis_index_percent"] is None
     blood = Line([Catheter(gauge=18)]).solve(rheoline.fluid("whole-blood"), head=1.0)
     assert float(blood.hemolysis_index) > 0  # the index is there where there are red cells
+
+
+@pytest.mark.parametrize("name", ["saline-0.9", "dextrose-5"])
+def test_the_apps_line_view_shows_no_hemolysis_index_without_red_cells(name):
+    pytest.importorskip("ipywidgets")
+    from rheoline.widgets.line_view import LineView
+    from rheoline.widgets.parts_editor import part_spec
+
+    view = LineView(parts=[part_spec("catheter", gauge=18)], fluid=name, temperature_c=22.0)
+    shown = view.results.value
+    assert "hemolysis index <b>n/a</b> (no red cells)" in shown
+    assert "Giersiepen" not in shown  # no screening number, nor its model, for this fluid
+    blood = LineView(parts=[part_spec("catheter", gauge=18)], fluid="whole-blood")
+    assert "n/a</b> (no red cells)" not in blood.results.value
+    assert "Giersiepen 1990" in blood.results.value
 
 
 # --------------------------------------------------------------------------- bare tolerances
