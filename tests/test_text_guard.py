@@ -50,6 +50,18 @@ BOMBS = {
     "many-keys": ("k=1\n" * (MAX_TEXT_ITEMS + 5), "toml", MAX_TEXT_ITEMS + 1),
     "many-entries": ("x = [" + "1," * (MAX_TEXT_ITEMS + 5) + "]\n", "toml", 1),
     "many-headers": ("[t]\n" * (MAX_TEXT_ITEMS + 5), "toml", MAX_TEXT_ITEMS + 1),
+    # each part of a header or dotted key counts: distinct headers of the deepest nesting
+    # allowed (8 parts) cost the TOML reader 8 times what one part does
+    "many-deepest-headers": (
+        "".join(f"[k{i}.b.c.d.e.f.g.h]\n" for i in range(MAX_TEXT_ITEMS // 8 + 5)),
+        "toml",
+        MAX_TEXT_ITEMS // 8 + 1,
+    ),
+    "many-deepest-dotted-keys": (
+        "".join(f"k{i}.a.b.c.d.e.f.g.h = 1\n" for i in range(MAX_TEXT_ITEMS // 9 + 5)),
+        "toml",
+        MAX_TEXT_ITEMS // 9 + 1,
+    ),
     "json-deep-array": ("[" * 300_000 + "]" * 300_000, "json", 1),
     "json-deep-object": ('{"a":' * 100_000 + "1" + "}" * 100_000, "json", 1),
     "json-many-keys": ("{" + '"k":1,' * (MAX_TEXT_ITEMS + 5) + '"k":1}', "json", 1),
@@ -120,6 +132,19 @@ def test_the_item_limit_is_exact():
     check_text("x = [" + "1," * (MAX_TEXT_ITEMS - 1) + "]\n", "toml", "s.toml")
     with pytest.raises(ScenarioError, match=f"more than {MAX_TEXT_ITEMS} keys"):
         check_text("x = [" + "1," * MAX_TEXT_ITEMS + "]\n", "toml", "s.toml")
+
+
+@pytest.mark.parametrize(
+    ("line", "parts"),
+    [("[k{i}.b.c.d]\n", 4), ("[[k{i}.b.c.d]]\n", 4), ("k{i}.b.c.d = 1\n", 4), ("k{i} = 1\n", 1)],
+    ids=["header", "array-of-tables-header", "dotted-key", "key"],
+)
+def test_each_part_of_a_key_or_header_counts_toward_the_item_limit(line, parts):
+    n = MAX_TEXT_ITEMS // parts
+    text = "".join(line.format(i=i) for i in range(n))
+    check_text(text, "toml", "s.toml")  # n x parts items: at the limit
+    with pytest.raises(ScenarioError, match=rf"^s\.toml: line {n + 1}: .*more than"):
+        check_text(text + line.format(i=n), "toml", "s.toml")
 
 
 # ------------------------------------------------------------- agreement with the data check

@@ -9,8 +9,11 @@ memory per token, and refuses
 * any table, list or dotted key nested deeper than :data:`MAX_DEPTH` levels (the
   same limit and the same way of counting as the check of the parsed data, so the
   guard never refuses a file that the data check would accept), and
-* more than :data:`MAX_TEXT_ITEMS` items (keys, table headers and list entries: each
-  costs the TOML reader a few microseconds and a few hundred bytes),
+* more than :data:`MAX_TEXT_ITEMS` items: key parts (a key or table header counts one
+  item per part, ``a.b.c = 1`` three) and list entries.  The TOML reader's time and
+  memory grow with the parts of the keys and headers it reads, each a few microseconds
+  and up to a kilobyte (a megabyte of distinct eight-part headers took 300 MB and several
+  seconds when each header counted once),
 
 with a :class:`~rheoline.errors.ScenarioError` naming the file, the line and the
 limit, and never quoting the file's text.
@@ -41,8 +44,9 @@ from rheoline.scenario import schema
 
 __all__ = ["MAX_TEXT_ITEMS", "check_text", "max_depth"]
 
-#: Most keys, table headers and list entries a scenario file may hold.  The largest
-#: file the other limits allow (200 scenarios of 40 parts) needs well under half.
+#: Most key parts (each part of a key or a table header: ``a.b.c`` is three) and list
+#: entries a scenario file may hold.  The largest file the other limits allow (200
+#: scenarios of 40 parts, ``benchmarks/load_file.py``) holds about 53,000.
 MAX_TEXT_ITEMS = 100_000
 
 
@@ -92,8 +96,8 @@ def check_text(text: str, fmt: str, source: str) -> None:
     ------
     ScenarioError
         Naming ``source``, the line, and the limit: a table, list or dotted key nested
-        deeper than :func:`max_depth` levels, or more than :data:`MAX_TEXT_ITEMS` keys,
-        headers and list entries.  Other faults are left to the parser.
+        deeper than :func:`max_depth` levels, or more than :data:`MAX_TEXT_ITEMS` key
+        parts and list entries.  Other faults are left to the parser.
     """
     scan = _scan_json if fmt == "json" else _scan_toml
     try:
@@ -113,8 +117,8 @@ def _too_deep(position, what, depth, limit):
 def _too_many(position):
     return _Refusal(
         position,
-        f"the file holds more than {MAX_TEXT_ITEMS} keys, table headers and list "
-        "entries, above the limit; split it into smaller files",
+        f"the file holds more than {MAX_TEXT_ITEMS} keys (each part of a dotted key or "
+        "table header counts) and list entries, above the limit; split it into smaller files",
     )
 
 
@@ -131,8 +135,8 @@ class _TomlScan:
         self.header = 0  # 1 inside [..], 2 inside [[..]], 0 elsewhere
         self.value_depth = 0  # depth a list or table would have at the current value
 
-    def count(self, position):
-        self.items += 1
+    def count(self, position, items=1):
+        self.items += items
         if self.items > MAX_TEXT_ITEMS:
             raise _too_many(position)
 
@@ -179,8 +183,8 @@ class _TomlScan:
             return
         if self.key_parts > self.limit:
             raise _too_deep(position, "a table header nests tables", self.key_parts, self.limit)
+        self.count(position, self.key_parts)
         self.table_depth, self.key_parts, self.expect_key = self.key_parts, 0, False
-        self.count(position)
 
     def assign(self, position):
         base = self.stack[-1][1] if self.stack else self.table_depth
@@ -188,8 +192,8 @@ class _TomlScan:
         if inner > self.limit:
             raise _too_deep(position, "a dotted key nests tables", inner, self.limit)
         self.value_depth = base + max(self.key_parts, 1)
+        self.count(position, max(self.key_parts, 1))
         self.key_parts, self.expect_key = 0, False
-        self.count(position)
 
     def comma(self, position):
         if self.stack and self.stack[-1][0] == "{":
