@@ -244,6 +244,47 @@ def test_a_file_of_many_scenarios_over_the_total_is_refused():
         loads_scenarios("format_version = 1\n" + "".join(blocks))
 
 
+def test_a_file_that_spells_its_units_many_ways_is_refused_before_parsing_them_all(
+    monkeypatch,
+):
+    # each new spelling ("mm*cm/cm", "mm*inch/inch", ...) costs the unit library a parse,
+    # and 16,000 of them took 7.5 s to read: the spelling past the limit is refused,
+    # naming its field, before the unit library sees it
+    import itertools
+
+    from rheoline import units
+
+    names = "m cm mm um km dm nm inch ft yd mil hand point fathom furlong".split()
+    spelled = [f"mm*{a}/{a}*{b}/{b}" for a, b in itertools.product(names, names)]
+    limit = files.MAX_UNIT_SPELLINGS
+    assert len(spelled) > limit
+
+    def scenario(i, units_of_parts):
+        parts = "".join(
+            f'[[scenario.part]]\ntype = "tube"\ninner_diameter = "2 {u}"\nlength = "1000 {u}"\n'
+            for u in units_of_parts
+        )
+        return f'[[scenario]]\nname = "s{i}"\nfluid = "water"\nhead = "1000 {spelled[0]}"\n{parts}'
+
+    per = files.MAX_PARTS
+    text = "format_version = 1\n" + "".join(
+        scenario(i, spelled[j : j + per]) for i, j in enumerate(range(0, limit, per))
+    )
+    parsed = []
+    real = units._parse_unit
+    monkeypatch.setattr(units, "_parse_unit", lambda u, *a: parsed.append(u) or real(u, *a))
+    units._checked_unit.cache_clear()
+    loads_scenarios(text)  # the limit's spellings, each parsed once
+    assert sorted(set(parsed)) == sorted(spelled[:limit])
+    parsed.clear()
+    units._checked_unit.cache_clear()
+    one_more = scenario("-last", [spelled[limit]])
+    with pytest.raises(ScenarioError, match=f"units in more than {limit} different ways") as err:
+        loads_scenarios(text + one_more)
+    assert (err.value.scenario, err.value.field) == ("'s-last'", "part[1].inner_diameter")
+    assert spelled[limit] not in parsed  # refused before the unit library saw it
+
+
 # --------------------------------------------------------------------------- the corpus
 def _corpus():
     return sorted(p for p in MALFORMED.iterdir() if p.suffix in (".toml", ".json"))

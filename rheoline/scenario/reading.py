@@ -82,7 +82,15 @@ from rheoline.scenario.schema import (
     SCENARIO_TOLERANCE_FIELDS,
     TOP_FIELDS,
 )
-from rheoline.scenario.values import Where, check_keys, check_text, parse_field, shown, type_name
+from rheoline.scenario.unit_spellings import counting_unit_spellings
+from rheoline.scenario.values import (
+    Where,
+    check_keys,
+    check_text,
+    parse_field,
+    shown,
+    type_name,
+)
 
 __all__ = [
     "load_scenarios",
@@ -270,6 +278,11 @@ def _check_unicode(text, path, source):
 # --------------------------------------------------------------------------- the set
 def parse_scenarios(data, source: str = "<dict>") -> ScenarioSet:
     """Validate plain data (as read from TOML or JSON) into a :class:`ScenarioSet`."""
+    with counting_unit_spellings():  # one file: at most schema.MAX_UNIT_SPELLINGS of them
+        return _parse_set(data, source)
+
+
+def _parse_set(data, source):
     _check_depth(data, source)
     at = Where(source)
     if not isinstance(data, dict):

@@ -13,8 +13,9 @@ Limits (module constants, read by the reader at each call): :data:`MAX_FILE_BYTE
 :data:`MAX_DEPTH` (nesting of tables and lists), :data:`MAX_SCENARIOS`, :data:`MAX_PARTS`
 per scenario, :data:`MAX_AXIS_VALUES` per swept field, :data:`MAX_SWEEP_POINTS` per
 scenario, :data:`MAX_TOTAL_POINTS` per file, :data:`MAX_TOLERANCE_SOLVES` (tolerance
-samples times sweep points) per scenario, :data:`MAX_FILE_TOLERANCE_SOLVES` per file, and
-:data:`MAX_PART_POINTS` (sweep points times parts) per file.
+samples times sweep points) per scenario, :data:`MAX_FILE_TOLERANCE_SOLVES` per file,
+:data:`MAX_PART_POINTS` (sweep points times parts) per file, and :data:`MAX_UNIT_SPELLINGS`
+(different ways of writing units) per file.
 
 Examples
 --------
@@ -45,6 +46,7 @@ __all__ = [
     "MAX_FILE_TOLERANCE_SOLVES",
     "MAX_PART_POINTS",
     "MAX_MEASURED_POINTS",
+    "MAX_UNIT_SPELLINGS",
     "FieldSpec",
     "TOP_FIELDS",
     "SCENARIO_FIELDS",
@@ -86,6 +88,10 @@ MAX_FILE_TOLERANCE_SOLVES = 2_000_000
 MAX_PART_POINTS = 200_000
 #: Most bench points of a measured part.
 MAX_MEASURED_POINTS = 50
+#: Most different unit spellings ("mm", "mL/min", "mm*cm/cm", ...) in one file.  Each new
+#: spelling costs a parse by the unit library (about 0.3 ms); a file that wrote 16,000
+#: quantities each a new way took 7.5 s of CPU to read.  The shipped examples use six at most.
+MAX_UNIT_SPELLINGS = 200
 
 
 # --------------------------------------------------------------------------- field specs

@@ -39,6 +39,7 @@ from rheoline.model import catalogue
 from rheoline.scenario import schema
 from rheoline.scenario.description import Axis, FrozenMap, ToleranceWidth, Value
 from rheoline.scenario.schema import KIND_OF, FieldSpec, field_spec
+from rheoline.scenario.unit_spellings import count_spelling
 from rheoline.units import parse_quantity, to_unit
 
 __all__ = [
@@ -292,8 +293,10 @@ def _check_plain(value, at, path):
     if isinstance(value, str):
         if len(value) > _MAX_QUANTITY_CHARS:
             at.fail(f"is {len(value)} characters long; a quantity is a number and a unit", path)
-        if not _UNIT_CHARS.match(value.strip().lstrip("+-0123456789.eE")):
+        unit = value.strip().lstrip("+-0123456789.eE")
+        if not _UNIT_CHARS.match(unit):
             at.fail(f"{shown(value)!r} has characters that are not part of a unit", path)
+        count_spelling(unit.strip(), at, path)
     if isinstance(value, float) and not math.isfinite(value):
         at.fail(f"{value} is not a finite number", path)
 
