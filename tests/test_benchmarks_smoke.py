@@ -256,3 +256,18 @@ def test_transient_case_agrees_with_its_per_scenario_solves():
     assert report["max_relative_difference"] < 1e-3
     low, high = report["time_to_alarm_min_range"]
     assert 0 < low < high
+
+
+@pytest.mark.slow
+def test_hostile_files_benchmark_reads_its_files_and_reports_every_figure():
+    # benchmarks/hostile_files.py (README's Reliability figures); no timing asserted
+    hostile = _load("hostile_files")
+    names = ["deepest-headers-1MB", "unit-spellings"]
+    report = hostile.run(only=names)
+    assert [row["name"] for row in report["files"]] == names
+    assert all(row["outcome"] == "refused" for row in report["files"])
+    assert report["valid"]["outcome"] == "loaded" and report["valid"]["kb"] > 700
+    for key in ("max_load_s", "max_cpu_s", "max_grown_mb", "startup_s"):
+        assert math.isfinite(report[key]) and report[key] >= 0, key
+    text = hostile._report(report)
+    assert all(name in text for name in names) and "largest:" in text
