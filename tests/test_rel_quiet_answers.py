@@ -178,7 +178,7 @@ def test_cases_that_share_a_label_keep_their_own_parts_everywhere(tmp_path):
     assert list(flow_bars.y) == keys
     assert list(flow_bars.x) == run.table["flow [mL/min]"].tolist()
     drops = {}
-    for trace in _budget_figure(run, len(keys)).data:
+    for trace in _budget_figure(run, run.table).data:
         assert len(set(trace.y)) == len(trace.y), trace.name  # no case key twice in a trace
         for case, part, drop in zip(trace.y, trace.hovertext, trace.x, strict=True):
             drops.setdefault(case, []).append((part, drop))
