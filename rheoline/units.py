@@ -41,7 +41,12 @@ __all__ = [
     "PSI",
     "ML_PER_MIN",
     "ML_PER_H",
+    "FLOW_UNITS",
 ]
+
+#: The flow units the views and the command line offer: name -> m^3/s in one such unit.
+#: Each name is one the scenario files' parser reads (``"100 mL/h"``).
+FLOW_UNITS = {"mL/min": ML_PER_MIN, "mL/h": ML_PER_H, "L/min": 1e-3 / 60.0, "mL/s": 1e-6}
 
 #: kind -> (SI unit as pint understands it, pint dimensionality, examples of accepted units)
 KINDS = {

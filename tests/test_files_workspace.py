@@ -147,7 +147,7 @@ def test_an_uploaded_bomb_is_refused_by_the_raw_text_guard(files, name, content,
         patch.setattr(tomllib, "loads", lambda *a, **k: pytest.fail("the TOML reader ran"))
         upload(files, name, content)
     shown = _shown(files)
-    assert "not computed" in shown and f"{name}: line {line}: " in shown and "limit" in shown
+    assert "[X] failed" in shown and f"{name}: line {line}: " in shown and "limit" in shown
 
 
 def test_the_status_line_names_files_relative_to_the_workspace(files, places):

@@ -11,6 +11,8 @@ exception the view does not turn into a flag reach the test, where ipywidgets wo
 
 from __future__ import annotations
 
+import html
+
 import pytest
 from rel_record import bump, hostile_scenario_file, module_recorder, upload
 
@@ -134,7 +136,9 @@ def test_the_files_view_never_overwrites_unless_asked(app, work):
     files.controls["pack_path"].value = str(folder)
     assert files._run(files.write_pack) is False
     assert [p.name for p in folder.iterdir()] == ["keep.txt"]
-    assert "exists" in files.messages.value
+    status = html.unescape(files.status.value)
+    assert "exists" in status and "'replace an existing file or pack'" in status
+    assert "--force" not in status and "force=" not in status  # the page has a box, no flags
 
 
 def test_every_control_at_its_limits_never_raises(app):
@@ -178,12 +182,12 @@ def test_unwritable_targets_become_flags_not_tracebacks(app, work):
         for target in (work / "a folder", work / "no such folder" / "s.toml"):
             files.controls["scenario_path"].value = str(target)
             assert files._run(files.save) is False
-            assert "not computed" in files.messages.value
+            assert "[X] failed" in files.status.value and not files.messages.value
         blocker = work / "a file"
         blocker.write_text("x")
         files.controls["pack_path"].value = str(blocker / "pack")  # parent is a file
         assert files._run(files.write_pack) is False
-        assert "not computed" in files.messages.value
+        assert "[X] failed" in files.status.value and not files.messages.value
     finally:
         files.controls["overwrite"].value = False
     assert (work / "a folder").is_dir() and blocker.read_text() == "x"
@@ -202,4 +206,4 @@ def test_an_uploaded_bad_file_becomes_a_flag(app, name, content):
     # the app's upload button gets whatever bytes a colleague sent
     files = app.views["files"]
     upload(files, name, content)  # the upload's observer runs the load
-    assert "not computed" in files.messages.value
+    assert "[X] failed" in files.status.value and not files.messages.value

@@ -12,7 +12,7 @@ import numpy as np
 import pytest
 
 import rheoline
-from rheoline.units import ML_PER_MIN, MMHG
+from rheoline.units import ML_PER_H, ML_PER_MIN, MMHG
 from rheoline.widgets import style
 from rheoline.widgets.banner import BANNER_CLASS, caution_banner
 
@@ -84,11 +84,19 @@ def test_flags_carry_a_symbol_and_a_word_not_colour_alone():
 
 def test_number_formats_carry_their_units():
     # 1 mL/min = 1e-6/60 m^3/s; 300 mmHg = 300 * 133.322387415 Pa (NIST SP 811)
-    assert style.format_flow(100e-6 / 60) == "100 mL/min (6000 mL/h)"
+    assert style.format_flow(100e-6 / 60) == "100 mL/min (6,000 mL/h)"
     assert style.format_pressure(300 * MMHG) == "300 mmHg"
     assert style.format_pressure(300 * MMHG, "kPa") == "40.0 kPa"
     assert style.format_viscosity(1.0e-3) == "1.00 mPa s"
     assert style.significant(float("nan")) == "n/a"
+
+
+def test_one_number_format_three_significant_figures_with_thousands_separators():
+    # the pair: 183 mL/min beside 11,000 mL/h, both to three figures
+    assert style.format_flow(183.35 * ML_PER_MIN) == "183 mL/min (11,000 mL/h)"
+    cases = {12345.6: "12,300", 999.96: "1,000", 1.0: "1.00", 0.012345: "0.0123", -45.67: "-45.7"}
+    for value, text in cases.items():
+        assert style.significant(value) == text
 
 
 def test_banner_states_the_caution_and_links_to_the_cautions_file():
@@ -276,7 +284,7 @@ def test_line_view_every_number_shown_carries_a_unit(line_view):
         " ",
         text,
     )
-    for match in re.finditer(r"(-?\d[\d.e+-]*)\s*(\S+)", text):
+    for match in re.finditer(r"(-?\d[\d,.e+-]*)\s*(\S+)", text):
         number, after = match.groups()
         assert (
             after.strip("(),;") in {"mL/min", "mL/h", "mmHg", "kPa", "Pa", "%"}
@@ -421,7 +429,8 @@ def test_a_bad_scenario_file_is_a_flag_in_the_files_view(app, tmp_path):
     files = app.views["files"]
     files.controls["scenario_path"].value = str(bad)
     files.load_button.click()
-    assert "[X] not computed" in files.messages.value and "fluid" in files.messages.value
+    assert "[X] failed" in files.status.value and "fluid" in files.status.value
+    assert files.messages.value == ""  # said once, in the status line
 
 
 def test_bore_only_band_equals_solving_every_sample(compare_view):
@@ -566,3 +575,63 @@ def test_no_view_shadows_an_ipywidgets_method():
     ):
         clash = (set(vars(cls)) & inherited) - allowed
         assert not clash, f"{cls.__name__} shadows {sorted(clash)}"
+
+
+def test_the_files_view_opens_every_shipped_example(app):
+    from rheoline.scenario.files import load_scenarios
+    from rheoline.scenario.reading import example_names, example_path
+
+    files = app.views["files"]
+    assert list(files.controls["example"].options) == list(example_names())
+    for name in example_names():
+        files.controls["example"].value = name
+        files.example_button.click()
+        assert app.document.scenario_set.scenarios == load_scenarios(example_path(name)).scenarios
+        assert f"loaded the shipped example {name!r}" in html.unescape(files.status.value)
+
+
+def test_a_files_status_replaces_the_one_before(app, tmp_path):
+    files = app.views["files"]
+    files.save("kept.toml")
+    assert "[ok]" in files.status.value
+    files.controls["scenario_path"].value = "kept.toml"
+    files.save_button.click()  # exists, the box not ticked: refused
+    status = html.unescape(files.status.value)
+    assert "[ok]" not in status and "[X] failed" in status and "file problem" in status
+    files.controls["scenario_path"].value = "no-such-file.toml"
+    files.load_button.click()
+    status = html.unescape(files.status.value)
+    assert status.count("[X] failed") == 1 and "kept.toml" not in status
+
+
+@pytest.mark.parametrize("unit", ["mL/h", "L/min", "mL/s"])
+def test_the_pump_flow_is_entered_and_shown_in_the_chosen_unit(unit):
+    from rheoline.units import FLOW_UNITS
+    from rheoline.widgets.line_view import LineView
+
+    view = LineView(mode="set flow (pump)", flow_ml_min=100.0, pressure_limit_mmhg=0.0)
+    view.set_control("flow_unit", unit)
+    per = FLOW_UNITS[unit]  # m^3/s in one unit (NIST SP 811 litre and minute)
+    box = view.controls["flow_ml_min"]
+    assert box.description == f"set flow [{unit}]"
+    assert box.value == pytest.approx(100.0 * ML_PER_MIN / per, rel=1e-11)  # same flow
+    assert view.scenario.drive.flow.si == pytest.approx(100.0 * ML_PER_MIN, rel=1e-12)
+    view.set_control("flow_ml_min", 2.0 * box.value)  # typed in the chosen unit
+    assert view.scenario.drive.flow.si == pytest.approx(200.0 * ML_PER_MIN, rel=1e-9)
+    assert view.scenario.drive.flow.written.endswith(unit)  # saved as the user wrote it
+    assert view.result.flow == pytest.approx(200.0 * ML_PER_MIN, rel=1e-9)
+    assert f" {unit}</span>" in view.results.value
+    drive = view.figures["drive"]
+    assert drive.layout.xaxis.title.text == f"flow [{unit}]"
+    assert drive.data[1].x == pytest.approx([200.0 * ML_PER_MIN / per], rel=1e-9)
+
+
+def test_a_gravity_lines_flow_is_shown_in_the_chosen_unit():
+    from rheoline.widgets.line_view import LineView
+
+    view = LineView()
+    flow = view.result.flow
+    view.set_control("flow_unit", "mL/h")
+    assert view.figures["drive"].data[1].y == pytest.approx([flow / ML_PER_H], rel=1e-12)
+    assert view.figures["drive"].layout.yaxis.title.text == "flow [mL/h]"
+    assert f"{style.significant(flow / ML_PER_H)} mL/h</span>" in view.results.value

@@ -127,6 +127,8 @@ class View(widgets.VBox):
     """
 
     title = "view"
+    #: True where a view says a failed update in its status line alone (no message flag).
+    errors_in_status = False
 
     def __init__(self, **kwargs):
         super().__init__(**kwargs)
@@ -177,6 +179,22 @@ class View(widgets.VBox):
         if self._shown:
             for chart in self.charts.values():
                 chart.draw()
+
+    @staticmethod
+    def two_columns(inputs: list, outputs: list) -> widgets.Box:
+        """Inputs in the left column, results and charts in the right; the right column
+        goes below the left when the window is too narrow for both."""
+        left = widgets.VBox(inputs, layout=widgets.Layout(flex="1 1 420px", min_width="0"))
+        right = widgets.VBox(
+            outputs, layout=widgets.Layout(flex="1.4 1 480px", min_width="0", padding="0 0 0 12px")
+        )
+        left.add_class("rl-inputs")
+        right.add_class("rl-outputs")
+        box = widgets.Box(
+            [left, right], layout=widgets.Layout(display="flex", flex_flow="row wrap", width="100%")
+        )
+        box.add_class("rl-columns")
+        return box
 
     def _finish(self, body: list):
         self.children = [self.banner, self.status, *body, self.messages]
@@ -253,7 +271,7 @@ class View(widgets.VBox):
                 notes = []
             except RheolineError as exc:
                 ok = False
-                notes = [flag_html("error", str(exc))]
+                notes = [] if self.errors_in_status else [flag_html("error", str(exc))]
                 self._failed(exc)
         notes += [
             flag_html("caution", str(w.message))

@@ -204,36 +204,31 @@ class BloodVesselView(View):
         self._run(lambda: self._refresh(everything | {"calculator"}))
         self._widgetize(lazy)
 
-        blood_box = widgets.VBox(
-            [
-                c["hematocrit"],
-                c["temperature_c"],
-                c["shear_rate"],
-                c["axis"],
-                self.figure_box("viscosity"),
-            ]
-        )
-        vessel_box = widgets.VBox(
-            [
-                widgets.HBox([c["vessel_radius_um"], c["vessel_length_mm"]]),
-                self.point_output,
-                self.figure_box("fahraeus"),
-                self.figure_box("resistance"),
-            ]
-        )
-        calculator = widgets.VBox(
-            [
-                widgets.HTML("<b>Vascular resistance from measurements</b>"),
-                c["bed"],
-                c["upstream_mmhg"],
-                c["downstream_mmhg"],
-                c["cardiac_output_l_min"],
-                c["height_cm"],
-                c["weight_kg"],
-                self.calculator_output,
-            ]
-        )
-        self._finish([blood_box, vessel_box, calculator])
+        inputs = [
+            widgets.HTML("<b>Blood</b>"),
+            c["hematocrit"],
+            c["temperature_c"],
+            c["shear_rate"],
+            c["axis"],
+            widgets.HTML("<b>One vessel</b>"),
+            c["vessel_radius_um"],
+            c["vessel_length_mm"],
+            widgets.HTML("<b>Vascular resistance from measurements</b>"),
+            c["bed"],
+            c["upstream_mmhg"],
+            c["downstream_mmhg"],
+            c["cardiac_output_l_min"],
+            c["height_cm"],
+            c["weight_kg"],
+        ]
+        outputs = [
+            self.point_output,
+            self.calculator_output,
+            self.figure_box("viscosity"),
+            self.figure_box("fahraeus"),
+            self.figure_box("resistance"),
+        ]
+        self._finish([self.two_columns(inputs, outputs)])
 
     # -- values from the layers ----------------------------------------------------
     def _inputs(self):

@@ -139,11 +139,12 @@ def table_html(rows, banded, shared) -> str:
         + "<th>flags</th></tr>"
     )
     return (
+        "<div style='white-space:normal;overflow-wrap:anywhere'>"
         f"<div><b>At the operating point</b> (each candidate at its own inputs; the "
         f"shared controls: head {significant(shared['head_cm'])} cm, source pressure "
         f"{significant(shared['source_pressure_mmhg'])} mmHg, back pressure "
         f"{significant(shared['back_pressure_mmhg'])} mmHg, "
         f"{user_text(shared['fluid'])} at {significant(shared['temperature_c'])} degC)</div>"
-        "<table class='rl-table' style='border-collapse:collapse' border='1' "
-        f"cellpadding='4'>{head}{''.join(rows)}</table>"
+        "<table class='rl-table' style='border-collapse:collapse;width:100%' border='1' "
+        f"cellpadding='4'>{head}{''.join(rows)}</table></div>"
     )

@@ -70,6 +70,9 @@ __all__ = [
     "BAND_POINTS",
 ]
 
+#: The unit of a sweep's "from" and "to" fields (the bore sweeps a share of the nominal bore).
+SWEEP_INPUT_UNITS = {"head": "cm", "bore": "% of nominal bore", "temperature": "degC"}
+
 _EVERYTHING = frozenset({"curves", "table"})
 
 
@@ -192,12 +195,17 @@ class ComparisonView(View):
             "rl-sweep",
         )
         low, high = SWEEPS[sweep][1]
+        unit = SWEEP_INPUT_UNITS[sweep]
         c["sweep_from"] = labelled(
-            widgets.BoundedFloatText(value=low, min=0.0, max=1e4, description="from", style=_STYLE),
+            widgets.BoundedFloatText(
+                value=low, min=0.0, max=1e4, description=f"from [{unit}]", style=_STYLE
+            ),
             "rl-sweep-from",
         )
         c["sweep_to"] = labelled(
-            widgets.BoundedFloatText(value=high, min=0.0, max=1e4, description="to", style=_STYLE),
+            widgets.BoundedFloatText(
+                value=high, min=0.0, max=1e4, description=f"to [{unit}]", style=_STYLE
+            ),
             "rl-sweep-to",
         )
 
@@ -211,7 +219,10 @@ class ComparisonView(View):
             layout=widgets.Layout(width="80px"),
         )
         self.new_behind_set = widgets.Checkbox(
-            value=True, description="behind the 3.0 mm x 1.8 m set", indent=False
+            value=True,
+            description="behind the 3.0 mm x 1.8 m set",
+            indent=False,
+            layout=widgets.Layout(width="auto"),
         )
         self.add_button = labelled(
             widgets.Button(description="add candidate", icon="plus"), "rl-add-candidate"
@@ -230,9 +241,9 @@ class ComparisonView(View):
         self.table = labelled(widgets.HTML(), "rl-compare-table")
         self.add_line_button = labelled(
             widgets.Button(
-                description="add a copy of the line view's scenario",
+                description="add the line view's scenario",
                 icon="plus",
-                layout=widgets.Layout(display=None if self.line_source else "none"),
+                layout=widgets.Layout(width="auto", display=None if self.line_source else "none"),
             ),
             "rl-add-line",
         )
@@ -241,31 +252,30 @@ class ComparisonView(View):
 
     def _layout(self):
         c = self.controls
-        shared = widgets.HBox(
+        adder = widgets.VBox(
             [
-                widgets.VBox([c["fluid"], c["temperature_c"], c["hematocrit"], c["mass_fraction"]]),
-                widgets.VBox([c["head_cm"], c["source_pressure_mmhg"], c["back_pressure_mmhg"]]),
-                widgets.VBox([c["bore_tolerance_percent"], c["temperature_tolerance_c"]]),
-            ]
-        )
-        adder = widgets.HBox(
-            [
-                self.new_kind,
-                self.new_gauge,
+                widgets.HBox([self.new_kind, self.new_gauge]),
                 self.new_behind_set,
-                self.add_button,
-                self.add_line_button,
+                widgets.HBox([self.add_button, self.add_line_button]),
             ]
         )
-        self._finish(
-            [
-                widgets.VBox([adder, widgets.HBox([self.chooser, self.remove_button])]),
-                shared,
-                widgets.HBox([c["sweep"], c["sweep_from"], c["sweep_to"]]),
-                self.figure_box("curves"),
-                self.table,
-            ]
-        )
+        inputs = [
+            adder,
+            widgets.HBox([self.chooser, self.remove_button]),
+            c["fluid"],
+            c["temperature_c"],
+            c["hematocrit"],
+            c["mass_fraction"],
+            c["head_cm"],
+            c["source_pressure_mmhg"],
+            c["back_pressure_mmhg"],
+            c["bore_tolerance_percent"],
+            c["temperature_tolerance_c"],
+            c["sweep"],
+            c["sweep_from"],
+            c["sweep_to"],
+        ]
+        self._finish([self.two_columns(inputs, [self.figure_box("curves")]), self.table])
 
     # -- the set's candidates ----------------------------------------------------------
     def _document_changed(self):
@@ -438,6 +448,8 @@ class ComparisonView(View):
         self._paused = True
         try:
             c["sweep_from"].value, c["sweep_to"].value = low, high
+            c["sweep_from"].description = f"from [{SWEEP_INPUT_UNITS[change.new]}]"
+            c["sweep_to"].description = f"to [{SWEEP_INPUT_UNITS[change.new]}]"
         finally:
             self._paused = False
         self._run(lambda: self._refresh({"curves"}))

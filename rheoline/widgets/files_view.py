@@ -27,13 +27,15 @@ from pathlib import Path
 
 import ipywidgets as widgets
 
-from rheoline.errors import ScenarioError
+from rheoline.errors import OutputError, ScenarioError
 from rheoline.scenario.files import MAX_FILE_BYTES, load_scenarios, loads_scenarios, save_scenarios
 from rheoline.scenario.workspace import Workspace
 from rheoline.widgets.base import _STYLE, View, labelled
 from rheoline.widgets.style import user_text
 
 __all__ = ["FilesView"]
+
+_AUTO = widgets.Layout(width="auto")
 
 
 class FilesView(View):
@@ -90,33 +92,51 @@ class FilesView(View):
         )
         c["overwrite"] = widgets.Checkbox(
             value=False,
-            description="replace an existing file or an earlier review pack",
+            description="replace an existing file or pack",
             indent=False,
+            layout=widgets.Layout(width="auto"),
         )
         self.load_button = labelled(
-            widgets.Button(description="load scenario file", icon="folder-open"), "rl-load"
+            widgets.Button(description="load scenario file", icon="folder-open", layout=_AUTO),
+            "rl-load",
         )
         self.save_button = labelled(
-            widgets.Button(description="save as scenario file", icon="save"), "rl-save"
+            widgets.Button(description="save as scenario file", icon="save", layout=_AUTO),
+            "rl-save",
         )
         self.pack_button = labelled(
-            widgets.Button(description="write review pack", icon="file-export"), "rl-pack"
+            widgets.Button(description="write review pack", icon="file-export", layout=_AUTO),
+            "rl-pack",
         )
         self.upload = widgets.FileUpload(
-            accept=".toml,.json", multiple=False, description="upload a scenario file"
+            accept=".toml,.json", multiple=False, description="upload a file", layout=_AUTO
         )
         self.status.add_class("rl-files-status")
         self.load_button.on_click(lambda b: self._run(self.load))
         self.save_button.on_click(lambda b: self._run(self.save))
         self.pack_button.on_click(lambda b: self._run(self.write_pack))
         self.upload.observe(lambda change: self._run(self._uploaded), names="value")
+        from rheoline.scenario.reading import example_names
+
+        c["example"] = labelled(
+            widgets.Dropdown(
+                options=list(example_names()), description="shipped example", style=_STYLE
+            ),
+            "rl-example",
+        )
+        self.example_button = labelled(
+            widgets.Button(description="open example", icon="folder-open", layout=_AUTO),
+            "rl-open-example",
+        )
+        self.example_button.on_click(lambda b: self._run(self.open_example))
         self._finish(
             [
                 widgets.HTML(
-                    "<b>Scenario files</b> (TOML or JSON, as <code>rheoline run</code> "
-                    "reads them) and <b>review packs</b> (CSV, XLSX, HTML) of the scenarios "
-                    "the line and comparison views show."
+                    "<b>Scenario files</b> (TOML or JSON, the format the command line reads) "
+                    "and <b>review packs</b> (CSV, XLSX, HTML) of the scenarios the line and "
+                    "comparison views show."
                 ),
+                widgets.HBox([c["example"], self.example_button]),
                 labelled(
                     widgets.HTML(
                         "workspace folder <code>"
@@ -147,9 +167,22 @@ class FilesView(View):
         """The network view that shows the set's branched scenarios, or None."""
         return _view(self._views[2])
 
+    #: A failed load, save or pack is said in the status line alone (it replaces the last).
+    errors_in_status = True
+
     def _failed(self, exc):
         # the last action did not happen: its status replaces the previous one
-        self.say("error", f"nothing was loaded, saved or written: {exc}")
+        what = "file problem" if isinstance(exc, OSError) else "problem in the file"
+        self.say("failed", f"nothing was loaded, saved or written ({what}): {exc}")
+
+    def open_example(self, name=None):
+        """Load the shipped example ``name`` (default: the one chosen) into the views."""
+        from rheoline.scenario.reading import example_path
+
+        name = name or self.controls["example"].value
+        sset = load_scenarios(example_path(name))
+        self._loaded(sset, f"the shipped example {name!r}")
+        return sset
 
     def current_set(self):
         """The set the views show and edit (a :class:`ScenarioSet`), as it will be saved."""
@@ -218,6 +251,7 @@ class FilesView(View):
     def save(self, path=None):
         """Save the views' set as a scenario file in the workspace; returns its path."""
         path = self._target(path or self.controls["scenario_path"].value)
+        self._refuse_existing(path)
         sset = self.current_set()
         written = save_scenarios(sset, path, force=self.controls["overwrite"].value)
         self.say(
@@ -231,11 +265,25 @@ class FilesView(View):
         from rheoline.scenario.export import write_pack
 
         folder = self._target(folder or self.controls["pack_path"].value)
+        self._refuse_existing(folder)
         run = run_scenarios(self.current_set())
         written = write_pack(run, folder, force=self.controls["overwrite"].value)
         shown = self.workspace.relative(written)
         self.say("ok", f"wrote the review pack to {shown} ({len(run.table)} cases)")
         return written
+
+    def _refuse_existing(self, path):
+        """An existing file or folder is replaced only with the box ticked (said in the
+        box's words)."""
+        if path.exists() and not self.controls["overwrite"].value:
+            shown = self.workspace.relative(path)
+            raise OutputError(
+                f"{shown} exists already; choose another name, or tick "
+                f"'{self.controls['overwrite'].description}' to replace it",
+                source=shown,
+                field="path",
+                value=shown,
+            )
 
     def _target(self, user_path) -> Path:
         """Where to write ``user_path``: inside the workspace (made if missing), or refused."""

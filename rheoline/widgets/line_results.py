@@ -62,16 +62,18 @@ def drive_figure():
     )
 
 
-def results_html(result, pump):
-    """The result in words (HTML): flow, pressure, regime, shear, the dominant part, and the
-    flags."""
+def results_html(result, pump, flow_unit=("mL/min", ML_PER_MIN)):
+    """The result in words (HTML): flow (in ``flow_unit``: name, m^3/s per unit, and in a
+    second unit), pressure, regime, shear, the dominant part, and the flags."""
     flow = float(result.flow)
+    unit, per = flow_unit
+    other, other_per = ("mL/min", ML_PER_MIN) if unit == "mL/h" else ("mL/h", ML_PER_H)
     required = float(result.required_pressure)
     regime = str(result.regime)
     lines = [
         f"<div>flow <b><span class='rl-flow' data-flow-ml-min='{flow / ML_PER_MIN!r}'>"
-        f"{significant(flow / ML_PER_MIN)} mL/min</span></b> "
-        f"(<span class='rl-flow-h'>{significant(flow / ML_PER_H)} mL/h</span>)</div>",
+        f"{significant(flow / per)} {unit}</span></b> "
+        f"(<span class='rl-flow-other'>{significant(flow / other_per)} {other}</span>)</div>",
         (
             f"<div>required pump pressure <b><span class='rl-required-pressure'>"
             f"{format_number(required / MMHG, 'mmHg')}</span></b> "
@@ -143,26 +145,28 @@ def draw_budget(fig, result, part_names):
         bar.marker.pattern.shape = ["/" if i == dominant else "" for i in range(len(drops))]
 
 
-def draw_drive(fig, result, x, y, drive):
-    """Set the flow-against-drive chart from the curve ``(x, y)`` and the drive [SI]."""
+def draw_drive(fig, result, x, y, drive, flow_unit=("mL/min", ML_PER_MIN)):
+    """Set the flow-against-drive chart from the curve ``(x, y)`` and the drive [SI], flows in
+    ``flow_unit`` (name, m^3/s per unit)."""
     pump = "flow" in drive
+    unit, per = flow_unit
     with fig.batch_update():
         if pump:
             limit = drive.get("pressure_limit")
-            fig.data[0].x, fig.data[0].y = x / ML_PER_MIN, y / MMHG
-            fig.data[1].x = [float(result.flow) / ML_PER_MIN]
+            fig.data[0].x, fig.data[0].y = x / per, y / MMHG
+            fig.data[1].x = [float(result.flow) / per]
             fig.data[1].y = [float(result.required_pressure) / MMHG]
-            ends = [x[0] / ML_PER_MIN, x[-1] / ML_PER_MIN]
+            ends = [x[0] / per, x[-1] / per]
             fig.data[2].x = ends if limit else []
             fig.data[2].y = [shown_amount("pressure_limit", limit)] * 2 if limit else []
-            fig.layout.xaxis.title.text = "flow [mL/min]"
+            fig.layout.xaxis.title.text = f"flow [{unit}]"
             fig.layout.yaxis.title.text = "required source pressure [mmHg]"
             fig.layout.title.text = "Pressure the pump must supply"
         else:
-            fig.data[0].x, fig.data[0].y = x * 100.0, y / ML_PER_MIN
+            fig.data[0].x, fig.data[0].y = x * 100.0, y / per
             fig.data[1].x = [shown_amount("head", drive["head"])]
-            fig.data[1].y = [float(result.flow) / ML_PER_MIN]
+            fig.data[1].y = [float(result.flow) / per]
             fig.data[2].x, fig.data[2].y = [], []
             fig.layout.xaxis.title.text = "head [cm] (with the set source pressure)"
-            fig.layout.yaxis.title.text = "flow [mL/min]"
+            fig.layout.yaxis.title.text = f"flow [{unit}]"
             fig.layout.title.text = "Flow against bag height"

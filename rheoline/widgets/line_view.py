@@ -39,6 +39,7 @@ from rheoline.scenario.description import (
     Scenario,
     ScenarioSet,
 )
+from rheoline.units import FLOW_UNITS, ML_PER_MIN
 from rheoline.widgets.base import (
     _STYLE,
     CONTROL_FIELDS,
@@ -245,7 +246,8 @@ class LineView(View):
 
         self._follow(self.document)
         self.controls["scenario"].observe(self._chosen, names="value")
-        self._on_edit([n for n in self.controls if n != "scenario"], self._edit)
+        self._on_edit([n for n in self.controls if n not in ("scenario", "flow_unit")], self._edit)
+        self.controls["flow_unit"].observe(self._unit_chosen, names="value")
         self._run(self._document_changed)
         self._widgetize(lazy)
         self._layout()
@@ -260,7 +262,7 @@ class LineView(View):
                 value=self._name,
                 description="scenario",
                 style=_STYLE,
-                layout=widgets.Layout(width="520px"),
+                layout=widgets.Layout(width="auto", max_width="100%"),
             ),
             "rl-scenario",
         )
@@ -274,8 +276,14 @@ class LineView(View):
             "rl-mode",
         )
         c.update(drive_controls(head_cm, 0.0, 0.0))
+        c["flow_unit"] = labelled(
+            widgets.Dropdown(
+                options=list(FLOW_UNITS), value="mL/min", description="flow unit", style=_STYLE
+            ),
+            "rl-flow-unit",
+        )
         flow_range = control_range("flow")
-        c["flow_ml_min"] = labelled(
+        c["flow_ml_min"] = labelled(  # the pump's flow, in the unit chosen in "flow unit"
             widgets.BoundedFloatText(
                 value=flow_ml_min,
                 min=max(flow_range[0], 0.001),
@@ -309,6 +317,7 @@ class LineView(View):
         drive_box = widgets.VBox(
             [
                 c["mode"],
+                c["flow_unit"],
                 c["head_cm"],
                 c["source_pressure_mmhg"],
                 c["flow_ml_min"],
@@ -321,12 +330,10 @@ class LineView(View):
         )
         self._finish(
             [
-                c["scenario"],
-                self.notes,
-                self.editor,
-                widgets.HBox([fluid_box, drive_box]),
-                self.results,
-                widgets.HBox([self.figure_box("budget"), self.figure_box("drive")]),
+                self.two_columns(
+                    [c["scenario"], self.notes, self.editor, fluid_box, drive_box],
+                    [self.results, self.figure_box("budget"), self.figure_box("drive")],
+                )
             ]
         )
 
@@ -378,7 +385,7 @@ class LineView(View):
                 value = values.get(key, defaults.get(key))
                 inactive = key in (_GRAVITY_FIELDS if pump else _PUMP_FIELDS)
                 if value is not None and not (inactive and key not in values):
-                    c[name].value = shown_amount(key, value)
+                    c[name].value = self._shown_amount(key, value)
             self.editor.set_parts(sc.parts, notify=False)
             self.notes.value = f"<i>{user_text(sc.notes)}</i>" if sc.notes else ""
         finally:
@@ -465,7 +472,43 @@ class LineView(View):
         amount = c[name].value
         if key == "pressure_limit" and not amount:
             return with_fields(sc, pressure_limit=None)  # 0 = no limit
+        if key == "flow":
+            return with_fields(sc, flow=parsed("flow", self._written_flow(amount)))
         return with_fields(sc, **{key: parsed(key, written(key, amount))})
+
+    # -- the flow unit -----------------------------------------------------------------
+    @property
+    def flow_unit(self) -> tuple[str, float]:
+        """The flow unit chosen for the view: (name, m^3/s in one unit)."""
+        name = self.controls["flow_unit"].value
+        return name, FLOW_UNITS[name]
+
+    def _written_flow(self, amount) -> str:
+        """The pump's flow as a file writes it, in the chosen unit (``"100 mL/h"``)."""
+        return f"{float(amount):.12g} {self.flow_unit[0]}"
+
+    def _shown_amount(self, key, si) -> float:
+        """A field's SI value in its control's unit (the flow in the chosen unit)."""
+        if key == "flow":
+            return float(f"{float(si) / self.flow_unit[1]:.12g}")
+        return shown_amount(key, si)
+
+    def _unit_chosen(self, change):
+        """Show the set flow, its range, the results and the charts in the chosen unit (the
+        scenario is not edited: the flow is the same)."""
+        box = self.controls["flow_ml_min"]
+        flow_si = box.value * FLOW_UNITS[change.old]
+        low, high = (float(b) * ML_PER_MIN / self.flow_unit[1] for b in control_range("flow"))
+        self._paused = True
+        try:
+            box.max = max(high, box.max)
+            box.min = max(low, 1e-6)
+            box.max = high
+            box.value = float(f"{flow_si / self.flow_unit[1]:.12g}")
+            box.description = f"set flow [{self.flow_unit[0]}]"
+        finally:
+            self._paused = False
+        self._run(lambda: self._refresh({"solve"}))
 
     def _mode_changed(self, sc, pump):
         c = self.controls
@@ -473,7 +516,7 @@ class LineView(View):
             return sc
         fields = dict.fromkeys(_GRAVITY_FIELDS + _PUMP_FIELDS)
         if pump:
-            fields["flow"] = parsed("flow", written("flow", c["flow_ml_min"].value))
+            fields["flow"] = parsed("flow", self._written_flow(c["flow_ml_min"].value))
             limit = c["pressure_limit_mmhg"].value
             fields["pressure_limit"] = (
                 parsed("pressure_limit", written("pressure_limit", limit)) if limit else None
@@ -535,6 +578,6 @@ class LineView(View):
         self.result = result
         x, y = self.drive_curve()
         pump = "flow" in self.drive()
-        self.results.value = results_html(result, pump)
+        self.results.value = results_html(result, pump, self.flow_unit)
         draw_budget(self.figures["budget"], result, [p.name for p in self.line().parts])
-        draw_drive(self.figures["drive"], result, x, y, self.drive())
+        draw_drive(self.figures["drive"], result, x, y, self.drive(), self.flow_unit)

@@ -67,7 +67,7 @@ _CONTROLLED = {
 _SIZE_KEY = {"catheter": "gauge", "needle": "gauge", "cannula": "french"}
 _SIZES = {"catheter": CATHETER_GAUGES, "needle": NEEDLE_GAUGES, "cannula": CANNULA_FRENCH}
 _NO_SIZE = 0  # the size list's "no size" entry (a part given by its bore alone)
-_W = {"type": "105px", "size": "90px", "num": "150px", "button": "34px"}
+_W = {"type": "105px", "size": "90px", "num": "150px", "button": "40px"}
 
 
 def part_spec(type_: str, label: str = "", **fields) -> PartSpec:

@@ -13,7 +13,7 @@ symbol plus words, so colour is never the only cue.
 Examples
 --------
 >>> format_flow(2.5e-6)
-'150 mL/min (9000 mL/h)'
+'150 mL/min (9,000 mL/h)'
 >>> format_pressure(39996.6)
 '300 mmHg'
 >>> flag_text("caution", "turbulent in part 2")
@@ -63,6 +63,7 @@ FLAG_LEVELS = {
     "caution": ("[!]", "caution", "#8a5a00"),
     "exceeded": ("[X]", "limit exceeded", "#a8327a"),
     "error": ("[X]", "not computed", "#a8327a"),
+    "failed": ("[X]", "failed", "#a8327a"),
 }
 
 
@@ -108,16 +109,25 @@ def flag_html(level: str, message: str) -> str:
 
 
 def significant(value: float, digits: int = 3) -> str:
-    """``value`` with ``digits`` significant figures, no exponent for everyday magnitudes."""
+    """``value`` with ``digits`` significant figures and thousands separators: the one
+    number format of the views (an exponent only below 0.001 or from a billion up).
+
+    >>> significant(11001.4), significant(183.26), significant(0.045678), significant(-2.5)
+    ('11,000', '183', '0.0457', '-2.50')
+    >>> significant(1234567.0), significant(2.5e-5), significant(0.0)
+    ('1,230,000', '2.5e-05', '0')
+    """
     v = float(value)
     if not math.isfinite(v):
         return "n/a"
     if v == 0:
         return "0"
-    if 1e-3 <= abs(v) < 1e6:
-        decimals = max(digits - 1 - math.floor(math.log10(abs(v))), 0)
-        text = f"{round(v, decimals):.{decimals}f}"
-        return text
+    if 1e-3 <= abs(v) < 1e9:
+        place = digits - 1 - math.floor(math.log10(abs(v)))
+        rounded = round(v, place)
+        if rounded != 0 and math.floor(math.log10(abs(rounded))) > math.floor(math.log10(abs(v))):
+            place -= 1  # 999.6 -> 1,000: one digit fewer after the point
+        return f"{rounded:,.{max(place, 0)}f}"
     return f"{v:.{digits}g}"
 
 
