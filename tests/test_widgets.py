@@ -635,3 +635,36 @@ def test_a_gravity_lines_flow_is_shown_in_the_chosen_unit():
     assert view.figures["drive"].data[1].y == pytest.approx([flow / ML_PER_H], rel=1e-12)
     assert view.figures["drive"].layout.yaxis.title.text == "flow [mL/h]"
     assert f"{style.significant(flow / ML_PER_H)} mL/h</span>" in view.results.value
+
+
+def test_the_line_view_draws_its_line_to_scale_with_each_parts_share():
+    from rheoline.widgets.line_view import LineView
+
+    view = LineView()  # the demo line: a 3.0 mm x 1.8 m set, then an 18G catheter
+    api = rheoline.Line(
+        [rheoline.Tube(inner_diameter=3.0e-3, length=1.8), rheoline.Catheter(gauge=18)]
+    ).solve(rheoline.fluid("saline-0.9", temperature_c=22.0), head=1.0)
+    drops = np.append(api.part_pressure_drops, api.exit_pressure_drop)
+    shares = 100.0 * drops / drops.sum()
+    fig = view.figures["drawing"]
+    outlines = [t for t in fig.data if t.fill == "toself"]
+    catheter = rheoline.Catheter(gauge=18)
+    sizes = [
+        (0.0, 180.0, 3.0),
+        (180.0, 180.0 + catheter.length * 100, catheter.inner_diameter * 1e3),
+    ]
+    for trace, (start, end, bore) in zip(outlines, sizes, strict=True):
+        assert min(trace.x) == pytest.approx(start) and max(trace.x) == pytest.approx(end)
+        assert max(trace.y) - min(trace.y) == pytest.approx(bore)  # the bore across, to scale
+    labels = [a.text for a in fig.layout.annotations]
+    names = ["1. administration set", "2. 18G catheter", "exit"]
+    for name, share, label in zip(names, shares, labels, strict=True):
+        assert label.replace("<b>", "").startswith(f"{name}: {style.significant(share)} %")
+    dominant = int(np.argmax(drops))
+    assert "(dominant)" in labels[dominant] and sum("(dominant)" in t for t in labels) == 1
+    assert outlines[dominant].fillpattern.shape == "x"  # a pattern, not colour alone
+    assert any(t.marker.symbol == "star" for t in fig.data if t.mode == "markers")
+    view.set_control("head_cm", 150.0)  # a new drawing for new inputs reaches the chart
+    (output,) = view.charts["drawing"].outputs
+    assert output["data"]["application/vnd.plotly.v1+json"]["layout"]["annotations"][0]["text"]
+    assert view.charts["drawing"].figure is view.figures["drawing"]

@@ -155,6 +155,36 @@ def _budget_figure(run, shown):
     return fig
 
 
+#: Most scenarios whose line the report draws to scale (the first ones of the file).
+DRAWINGS_MAX = 12
+
+
+def _drawings(run):
+    """The line of each scenario drawn to scale at its first case (name, share of the
+    pressure drop, the dominant part marked), as the line view draws it; the first
+    :data:`DRAWINGS_MAX` scenarios, the last title saying how many more there are."""
+    from rheoline.scenario.line_drawing import line_drawing
+
+    parts, figs = run.parts, []
+    if not len(parts) or "scenario" not in run.table:
+        return figs
+    firsts = run.table.drop_duplicates("scenario")["case"]
+    for k, case in enumerate(firsts[:DRAWINGS_MAX]):
+        more = len(firsts) - DRAWINGS_MAX
+        after = f" ({more} more scenarios not drawn)" if k == DRAWINGS_MAX - 1 and more > 0 else ""
+        rows = parts[parts["case"] == case]
+        figs.append(
+            line_drawing(
+                [_e(n) for n in rows["part"]],
+                rows["inner diameter [mm]"].tolist(),
+                rows["length [m]"].tolist(),
+                rows["pressure drop [mmHg]"].tolist(),
+                title=f"The line to scale: {_e(case)}{after}",
+            )
+        )
+    return figs
+
+
 #: Most cases a chart shows: beyond it the charts show a sample (:func:`chart_rows`).
 CHART_MAX_CASES = 300
 
@@ -186,8 +216,9 @@ def chart_rows(table, max_cases=CHART_MAX_CASES):
 
 
 def pack_figures(run, rows=None):
-    """Plotly figures of the run: flow per case, and the pressure budget of each line;
-    only the table rows at positions ``rows`` (default: :func:`chart_rows`)."""
+    """Plotly figures of the run: flow per case, and the pressure budget of each line, only
+    the table rows at positions ``rows`` (default: :func:`chart_rows`); and each scenario's
+    line drawn to scale at its first case."""
     table = run.table
     if len(table) == 0:
         return []
@@ -197,7 +228,7 @@ def pack_figures(run, rows=None):
     figs = [_flow_figure(shown)]
     if len(run.parts):
         figs.append(_budget_figure(run, shown))
-    return figs
+    return figs + _drawings(run)
 
 
 def _charts_html(run):

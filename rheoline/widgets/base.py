@@ -174,6 +174,12 @@ class View(widgets.VBox):
         self._shown = True
         self.redraw()
 
+    def replace_figure(self, name: str, figure):
+        """Put a new figure in place of figure ``name`` (drawn at the next redraw)."""
+        self.figures[name] = figure
+        if name in self.charts:
+            self.charts[name].figure = figure
+
     def redraw(self):
         """Send every changed figure to its chart (nothing before :meth:`show_figures`)."""
         if self._shown:

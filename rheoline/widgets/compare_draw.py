@@ -122,7 +122,7 @@ def row_html(name, parts, result, band, flags, banded) -> str:
         f"<td>{significant(flow / ML_PER_H)}</td>"
         f"<td>{user_text(str(result.regime))} ({significant(float(result.max_reynolds))})</td>"
         f"<td>{user_text(str(result.dominant_part))} "
-        f"({significant(100 * float(result.dominant_share), 2)} %)</td>"
+        f"({significant(100 * float(result.dominant_share))} %)</td>"
         f"<td>{significant(float(result.max_wall_shear_stress))}</td>{band_cell}"
         f"<td>{user_text(flags)}</td></tr>"
     )

@@ -23,6 +23,7 @@ __all__ = [
     "flags_html",
     "draw_budget",
     "draw_drive",
+    "drawing_of",
 ]
 
 
@@ -135,7 +136,7 @@ def draw_budget(fig, result, part_names):
     shares = drops / total if total > 0 else np.zeros_like(drops)
     dominant = int(np.argmax(drops))
     text = [
-        f"{significant(d)} mmHg, {significant(100 * s, 2)} %"
+        f"{significant(d)} mmHg, {significant(100 * s)} %"
         + (" (dominant)" if i == dominant else "")
         for i, (d, s) in enumerate(zip(drops, shares, strict=True))
     ]
@@ -143,6 +144,26 @@ def draw_budget(fig, result, part_names):
         bar = fig.data[0]
         bar.x, bar.y, bar.text = drops, labels, text
         bar.marker.pattern.shape = ["/" if i == dominant else "" for i in range(len(drops))]
+
+
+def drawing_of(parts, result):
+    """The line drawn to scale (:func:`rheoline.scenario.line_drawing.line_drawing`) from the
+    line engine's parts and result: each part's bore and length, its pressure drop, the exit
+    last."""
+    from rheoline.scenario.line_drawing import line_drawing
+
+    def size(part, name, factor):
+        value = getattr(part, name, None)
+        return None if value is None else float(np.ravel(value)[0]) * factor
+
+    names = [user_text(f"{i}. {p.name}") for i, p in enumerate(parts, start=1)] + ["exit"]
+    bores = [size(p, "inner_diameter", 1e3) for p in parts] + [None]
+    lengths = [size(p, "length", 1.0) for p in parts] + [None]
+    drops = np.append(
+        np.asarray(result.part_pressure_drops, dtype=float).reshape(len(parts), -1)[:, 0],
+        float(np.ravel(result.exit_pressure_drop)[0]),
+    )
+    return line_drawing(names, bores, lengths, drops / MMHG)
 
 
 def draw_drive(fig, result, x, y, drive, flow_unit=("mL/min", ML_PER_MIN)):

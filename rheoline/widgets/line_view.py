@@ -39,6 +39,7 @@ from rheoline.scenario.description import (
     Scenario,
     ScenarioSet,
 )
+from rheoline.scenario.line_drawing import line_drawing
 from rheoline.units import FLOW_UNITS, ML_PER_MIN
 from rheoline.widgets.base import (
     _STYLE,
@@ -63,6 +64,7 @@ from rheoline.widgets.line_results import (
     budget_figure,
     draw_budget,
     draw_drive,
+    drawing_of,
     drive_figure,
     results_html,
 )
@@ -311,6 +313,7 @@ class LineView(View):
     def _build_figures(self):
         self.figures["budget"] = budget_figure()
         self.figures["drive"] = drive_figure()
+        self.figures["drawing"] = line_drawing([], [], [], [])
 
     def _layout(self):
         c = self.controls
@@ -332,7 +335,12 @@ class LineView(View):
             [
                 self.two_columns(
                     [c["scenario"], self.notes, self.editor, fluid_box, drive_box],
-                    [self.results, self.figure_box("budget"), self.figure_box("drive")],
+                    [
+                        self.results,
+                        self.figure_box("drawing"),
+                        self.figure_box("budget"),
+                        self.figure_box("drive"),
+                    ],
                 )
             ]
         )
@@ -579,5 +587,7 @@ class LineView(View):
         x, y = self.drive_curve()
         pump = "flow" in self.drive()
         self.results.value = results_html(result, pump, self.flow_unit)
-        draw_budget(self.figures["budget"], result, [p.name for p in self.line().parts])
+        parts = self.line().parts
+        draw_budget(self.figures["budget"], result, [p.name for p in parts])
+        self.replace_figure("drawing", drawing_of(parts, result))
         draw_drive(self.figures["drive"], result, x, y, self.drive(), self.flow_unit)

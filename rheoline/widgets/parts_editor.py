@@ -161,7 +161,7 @@ class PartRow(widgets.HBox):
             description="",
             icon="trash",
             tooltip="remove this part",
-            layout=widgets.Layout(width=_W["button"]),
+            layout=widgets.Layout(width=_W["button"], min_width=_W["button"], flex="0 0 auto"),
         )
         self.remove.add_class("rl-part-remove")
         self.adopt(part)

@@ -1,0 +1,73 @@
+"""The line drawn to scale: in the line view (tests/test_widgets.py) and in the review pack's
+report, from one function (rheoline.scenario.line_drawing)."""
+
+from __future__ import annotations
+
+import math
+
+import numpy as np
+import pytest
+
+from rheoline.scenario.line_drawing import line_drawing, shares_percent
+
+
+def test_each_part_is_drawn_to_its_length_and_bore():
+    # invented demo line: 150 cm of 3 mm tube, a fitting, 30 cm of 1 mm tube, the exit
+    fig = line_drawing(
+        ["tube a", "fitting", "tube b", "exit"],
+        [3.0, None, 1.0, float("nan")],
+        [1.5, None, 0.3, float("nan")],
+        [2.0, 1.0, 12.0, 5.0],
+    )
+    outlines = [t for t in fig.data if t.fill == "toself"]
+    assert [(min(t.x), max(t.x)) for t in outlines] == [(0.0, 150.0), (150.0, 180.0)]
+    assert [max(t.y) - min(t.y) for t in outlines] == [3.0, 1.0]
+    ticks = [t for t in fig.data if t.mode == "lines+markers"]
+    assert [t.x[0] for t in ticks] == [150.0, 180.0]  # the fitting and the exit, in place
+    labels = [a.text for a in fig.layout.annotations]
+    assert labels == [
+        "tube a: 10.0 %",
+        "fitting: 5.00 %",
+        "<b>tube b: 60.0 % (dominant)</b>",
+        "exit: 25.0 %",
+    ]
+    assert outlines[1].fillpattern.shape == "x" and outlines[0].fillpattern.shape is None
+
+
+def test_a_dominant_part_without_a_length_is_marked_by_a_symbol():
+    fig = line_drawing(["tube", "filter"], [3.0, None], [1.0, None], [1.0, 9.0])
+    stars = [t for t in fig.data if t.mode == "markers" and t.marker.symbol == "star"]
+    assert len(stars) == 1 and stars[0].x[0] == 100.0
+    assert "(dominant)" in fig.layout.annotations[1].text
+
+
+def test_shares_of_no_drop_are_zero():
+    assert shares_percent([0.0, 0.0]) == [0.0, 0.0]
+    assert shares_percent([float("nan"), 2.0]) == [0.0, 100.0]
+
+
+def test_the_review_pack_draws_each_scenarios_line(tmp_path):
+    from rheoline.scenario.compare import run_scenarios
+    from rheoline.scenario.export import write_pack
+    from rheoline.scenario.files import load_scenarios
+    from rheoline.scenario.pack_report import pack_figures
+    from rheoline.scenario.reading import example_path
+
+    run = run_scenarios(load_scenarios(example_path("minimal")))
+    drawings = [f for f in pack_figures(run) if f.layout.title.text.startswith("The line to scale")]
+    assert len(drawings) == run.table["scenario"].nunique()
+    first = run.table["case"].iloc[0]
+    rows = run.parts[run.parts["case"] == first]
+    labels = [a.text.replace("<b>", "").replace("</b>", "") for a in drawings[0].layout.annotations]
+    for part, share, label in zip(rows["part"], rows["share [%]"], labels, strict=True):
+        shown = float(label.split(": ")[1].split(" %")[0].replace(",", ""))
+        assert label.startswith(f"{part}: ")
+        assert shown == pytest.approx(share, rel=5e-3)  # three significant figures
+    lumens = rows[rows["kind"] == "lumen"]
+    outlines = [t for t in drawings[0].data if t.fill == "toself"]
+    assert np.allclose([max(t.x) - min(t.x) for t in outlines], 100.0 * lumens["length [m]"])
+    assert np.allclose([max(t.y) - min(t.y) for t in outlines], lumens["inner diameter [mm]"])
+    folder = write_pack(run, tmp_path / "pack")
+    report = (folder / "report.html").read_text(encoding="utf-8")
+    assert "The line to scale" in report and "(dominant)" in report
+    assert not math.isnan(float(rows["share [%]"].max()))
