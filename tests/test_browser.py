@@ -6,7 +6,7 @@ that the flow shown on the page and the data of both charts become the values th
 Python API gives for the new inputs; it also checks that the caution banner is
 visible, cannot be closed, and links to the full text of CAUTIONS.md on the page.
 A screenshot goes to pytest's temporary folder (and to ``$RHEOLINE_SCREENSHOT``
-when that is set, which is how docs/line-view.png was taken).
+when that is set; docs/screenshots.py takes the README's screenshots).
 
 The app is started the way a user starts it, with the launcher
 (``python -m rheoline.widgets.serve``), and opened with the link it prints (token

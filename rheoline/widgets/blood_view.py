@@ -27,6 +27,11 @@ from rheoline.widgets.style import flag_html, format_number, significant
 
 __all__ = ["BloodVesselView", "VISCOSITY_AXES"]
 
+#: One mmHg min/mL in Pa s/m^3: the unit the view shows a vessel's resistance in.
+_MMHG_MIN_PER_ML = MMHG * 60.0 / 1e-6
+#: A slider as wide as its column, so a step of the hematocrit is a few pixels, not one.
+_SLIDER = widgets.Layout(width="100%", max_width="560px")
+
 #: x-axis choices of the blood viscosity chart: label -> (control name, grid, axis title, log axis)
 VISCOSITY_AXES = {
     "hematocrit": ("hematocrit", np.linspace(0.0, 0.7, 71), "hematocrit [-]", False),
@@ -73,6 +78,7 @@ class BloodVesselView(View):
                 max=0.7,
                 step=0.01,
                 description="hematocrit [-]",
+                layout=_SLIDER,
                 continuous_update=False,
                 style=_STYLE,
             ),
@@ -85,6 +91,7 @@ class BloodVesselView(View):
                 max=40.0,
                 step=0.5,
                 description="temperature [degC]",
+                layout=_SLIDER,
                 continuous_update=False,
                 style=_STYLE,
             ),
@@ -98,6 +105,7 @@ class BloodVesselView(View):
                 max=3,
                 step=0.05,
                 description="shear rate [1/s]",
+                layout=_SLIDER,
                 continuous_update=False,
                 style=_STYLE,
             ),
@@ -285,8 +293,7 @@ class BloodVesselView(View):
                 fig.data[0].x, fig.data[0].y = FAHRAEUS_DIAMETERS * 1e6, rel
                 fig.data[1].x, fig.data[1].y = [2 * c["vessel_radius_um"].value], [here]
         if "resistance" in parts:
-            # Pa s/m^3 -> mmHg min/mL for display
-            to_display = 1.0 / (MMHG * 60.0 / 1e-6)
+            to_display = 1.0 / _MMHG_MIN_PER_ML
             curve = self.vessel(RESISTANCE_RADII).resistance
             here = self.vessel(radius).resistance
             fig = self.figures["resistance"]
@@ -302,7 +309,8 @@ class BloodVesselView(View):
                 f"blood viscosity {format_number(mu * 1e3, 'mPa s')} at "
                 f"{significant(shear_rate)} 1/s; apparent viscosity in a "
                 f"{significant(2 * radius * 1e6)} um tube {significant(rel)} x plasma "
-                f"(Pries 1992); vessel resistance {significant(vessel.resistance)} Pa s/m^3"
+                f"(Pries 1992); vessel resistance "
+                f"{significant(vessel.resistance / _MMHG_MIN_PER_ML)} mmHg min/mL"
             )
         if "calculator" in parts:
             self._calculate()
@@ -327,5 +335,9 @@ class BloodVesselView(View):
             f"body surface area {significant(bsa)} m^2 (Mosteller 1987); "
             f"{name}I {significant(indexed.wood_units)} WU m^2 = "
             f"{significant(indexed.dyn_s_per_cm5)} dyn s cm^-5 m^2</div>"
-            + flag_html("note", "typical adult ranges are context only, not targets")
+            + flag_html(
+                "note",
+                "an index of the measurements entered; no reference range is built in: "
+                "compare with the ranges your institution uses",
+            )
         )

@@ -139,7 +139,7 @@ def table_html(rows, banded, shared) -> str:
         + "<th>flags</th></tr>"
     )
     return (
-        "<div style='white-space:normal;overflow-wrap:anywhere'>"
+        "<div style='white-space:normal;overflow-wrap:break-word'>"
         f"<div><b>At the operating point</b> (each candidate at its own inputs; the "
         f"shared controls: head {significant(shared['head_cm'])} cm, source pressure "
         f"{significant(shared['source_pressure_mmhg'])} mmHg, back pressure "

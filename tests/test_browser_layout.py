@@ -1,0 +1,61 @@
+"""The served app's layout in a real browser: for each tab, at 1280 and 1920 px wide, no
+element leaves its container sideways and no text is cut (benchmarks/page_checks.js), and a
+screenshot is taken (to ``$RHEOLINE_SCREENSHOTS`` when set: ``docs/screenshots.py`` sets it
+to docs/, which the README shows).
+
+Chromium is ``/usr/bin/chromium``; without it the test skips, unless ``CI`` is set.
+"""
+
+from __future__ import annotations
+
+import os
+import shutil
+import sys
+from pathlib import Path
+
+import pytest
+
+sys.path.insert(0, str(Path(__file__).resolve().parents[1] / "benchmarks"))
+import served_page  # noqa: E402
+
+pytestmark = [pytest.mark.browser, pytest.mark.timeout(900)]
+
+CHECKS = (Path(served_page.__file__).parent / "page_checks.js").read_text()
+WIDTHS = (1280, 1920)
+
+
+@pytest.fixture(scope="module")
+def served_url(tmp_path_factory):
+    if not served_page.CHROMIUM.exists():
+        if os.environ.get("CI"):
+            pytest.fail(f"CI is set but {served_page.CHROMIUM} is missing")
+        pytest.skip(f"{served_page.CHROMIUM} is missing")
+    pytest.importorskip("playwright.sync_api")
+    runtime = tmp_path_factory.mktemp("layout-runtime")
+    env = {"JUPYTER_RUNTIME_DIR": str(runtime)}
+    with served_page.served_app(runtime / "workspace", runtime / "voila.log", env) as url:
+        yield url
+
+
+def _slug(tab: str) -> str:
+    return tab.lower().replace(" and ", "-").replace(" ", "-")
+
+
+@pytest.mark.parametrize("width", WIDTHS)
+def test_no_tab_clips_or_cuts_anything(served_url, tmp_path, width):
+    shots = os.environ.get("RHEOLINE_SCREENSHOTS")
+    with served_page.browser(tmp_path / "profile", width=width, height=1000) as context:
+        page = context.new_page()
+        page.set_default_timeout(180_000)
+        page.goto(served_url, timeout=180_000)
+        found = {}
+        for tab in served_page.TAB_READY:
+            served_page.open_tab(page, tab)
+            page.wait_for_timeout(1500)  # the charts' first layout, as a person would wait
+            found[tab] = page.evaluate(CHECKS)
+            shot = tmp_path / f"app-{_slug(tab)}-{width}.png"
+            page.screenshot(path=str(shot), full_page=True)
+            assert shot.stat().st_size > 10_000
+            if shots:
+                shutil.copyfile(shot, Path(shots) / shot.name)
+    assert found == {tab: [] for tab in served_page.TAB_READY}

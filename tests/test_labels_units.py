@@ -1,0 +1,126 @@
+"""Every number in a label or title of the app carries a unit (issue 15).
+
+Reads every control's description, every chart's title, axis titles, annotations and bar
+texts, of every tab's view, and the line view's results.  A number is followed by a unit,
+or it is part of a name (a gauge such as 18G, an author's year such as Pries 1992, a
+percentile such as p5, a part's place in the line such as "2."), or the "0 = none" of a
+limit that can be left off.
+"""
+
+from __future__ import annotations
+
+import re
+
+import ipywidgets as widgets
+import pytest
+
+UNITS = (
+    "mL/min",
+    "mL/h",
+    "L/min",
+    "mL/s",
+    "mmHg",
+    "kPa",
+    "Pa",
+    "cmH2O",
+    "mPa s",
+    "cP",
+    "degC",
+    "cm",
+    "mm",
+    "um",
+    "m",
+    "%",
+    "% of nominal bore",
+    "1/s",
+    "s",
+    "min",
+    "h",
+    "kg",
+    "L",
+    "Wood units",
+    "mmHg min/mL",
+    "-",
+)
+NAMED = re.compile(
+    r"\b\d+G\b|[A-Z][a-z]+(?: (?:&|and) [A-Z][a-z]+| et al\.)? (?:19|20)\d\d\b|\bp\d+\b|"
+    r"^\d+\. |<br>\d+\. |\(\d+ of \d+|\b0 = none\b|\bRe \d[\d,]*-\d[\d,]*|H2O|[A-Za-z]\d|"
+    r"Reynolds number \d[\d,]*"  # a dimensionless number, named
+)
+NUMBER = re.compile(r"(?<![\w.])-?\d[\d,]*(?:\.\d+)?(?:e[-+]?\d+)?")
+
+
+def _without_tags(text: str) -> str:
+    return re.sub(r"<(?!br>)[^>]+>", "", str(text))
+
+
+def numbers_without_unit(text: str) -> list[str]:
+    """The numbers in ``text`` with no unit after them (after a space, in brackets, or
+    before a dash and a second number with its unit)."""
+    text = re.sub(r"\[[^\]]*\]", "[unit]", NAMED.sub(" ", _without_tags(text)))
+    missing = []
+    for match in NUMBER.finditer(text):
+        after = text[match.end() :].lstrip()
+        after = re.sub(r"^(?:-|to|and|,)\s*-?\d[\d,.]*\s*", "", after)  # a range: 5-95 %
+        after = re.sub(r"^[)\]]\s*", "", after)
+        if after.startswith("[unit]"):
+            continue
+        if not any(re.match(re.escape(u) + r"(?![A-Za-z])", after) for u in UNITS):
+            if not re.search(r"\[[^\]]+\]", text[: match.start()]):  # "head [cm] 100"
+                missing.append(f"{match.group()} | {text[match.start() : match.start() + 30]}")
+    return missing
+
+
+def test_the_rule_finds_a_bare_number():
+    assert numbers_without_unit("flow 183 mL/min (11,000 mL/h)") == []
+    assert numbers_without_unit("Pries 1992 relative viscosity at 0.45 [-]") == []
+    assert numbers_without_unit("flow 183") == ["183 | 183"]
+    assert numbers_without_unit("head 10 to 200") != []
+
+
+def _labels(view):
+    seen, stack, texts = set(), [view], []
+    while stack:
+        w = stack.pop()
+        if id(w) in seen:
+            continue
+        seen.add(id(w))
+        description = getattr(w, "description", "")
+        if description and isinstance(w, widgets.Widget):
+            texts.append(("description", description))
+        stack.extend(getattr(w, "children", ()))
+    for name, fig in view.figures.items():
+        layout = fig.layout
+        texts.append((f"{name} title", layout.title.text or ""))
+        for axis in ("xaxis", "yaxis"):
+            texts.append((f"{name} {axis}", getattr(layout, axis).title.text or ""))
+        texts += [(f"{name} annotation", a.text or "") for a in layout.annotations]
+        for trace in fig.data:
+            if trace.type == "bar" and trace.text is not None:
+                texts += [(f"{name} bar", t) for t in trace.text]
+    return texts
+
+
+@pytest.fixture(scope="module")
+def app(tmp_path_factory):
+    from rheoline.widgets.app import build_app
+
+    return build_app(workspace=tmp_path_factory.mktemp("labels"))
+
+
+@pytest.mark.parametrize("tab", ["line", "compare", "blood", "files"])
+def test_every_number_in_a_label_or_title_carries_a_unit(app, tab):
+    view = app.views[tab]
+    bare = [(where, n) for where, text in _labels(view) for n in numbers_without_unit(text)]
+    assert bare == []
+
+
+def test_the_line_views_results_carry_units_in_the_pump_mode_and_every_flow_unit(app):
+    line = app.views["line"]
+    for unit in ("mL/min", "mL/h", "L/min", "mL/s"):
+        line.set_control("flow_unit", unit)
+        for mode in ("set flow (pump)", "gravity and pressure"):
+            line.set_control("mode", mode)
+            results = re.sub(r"\[[!ioX]k?\] \w+:[^<]*", "", line.results.value)  # flags: words
+            assert numbers_without_unit(results) == [], (unit, mode)
+            assert [n for _, t in _labels(line) for n in numbers_without_unit(t)] == []
