@@ -22,10 +22,12 @@ from __future__ import annotations
 import argparse
 import json
 import sys
+import textwrap
 import warnings
 
 from rheoline.errors import RheolineError
 from rheoline.scenario.interrupts import PackInterrupted, interrupt_guard
+from rheoline.units import FLOW_UNITS
 
 __all__ = ["main", "build_parser"]
 
@@ -177,6 +179,25 @@ def _output_options(cmd):
         metavar="FLOW",
         help="also name, per scenario, the smallest-bore case reaching FLOW (e.g. '100 mL/min')",
     )
+    cmd.add_argument(
+        "--flow-unit",
+        choices=list(FLOW_UNITS),
+        default="mL/min",
+        help="the unit of the printed flows (default mL/min)",
+    )
+    cmd.add_argument(
+        "--columns",
+        metavar="LIST",
+        help="the printed columns, comma-separated (a unique start of a name is enough, e.g. "
+        "'flow,regime,flags'), or 'all'; by default those that fit the terminal. Every column "
+        "is in --json and in the review pack",
+    )
+    cmd.add_argument(
+        "--width",
+        type=int,
+        metavar="N",
+        help="the printed table's width in characters (default: the terminal's, else 100)",
+    )
 
 
 # --------------------------------------------------------------------------- commands
@@ -224,7 +245,7 @@ def _cmd_run(args, out, sset=None):
     if args.reach:
         from rheoline.units import ML_PER_MIN, parse_quantity
 
-        reach = parse_quantity(args.reach, "flow", default_unit="mL/min", field="--reach")
+        reach = parse_quantity(args.reach, "flow", default_unit=args.flow_unit, field="--reach")
         reach /= ML_PER_MIN
     run = _solve(sset)
     if args.sort:
@@ -238,7 +259,10 @@ def _cmd_run(args, out, sset=None):
         out.write(json.dumps(run.records(), indent=indent, allow_nan=False) + "\n")
         print(_caution(), file=sys.stderr)
     else:
-        out.write(format_run(run, reach) + "\n")
+        out.write(
+            format_run(run, reach, args.flow_unit, _columns(args.columns), _width(args.width))
+            + "\n"
+        )
     if args.out:
         from rheoline.scenario.export import write_pack
 
@@ -351,44 +375,187 @@ def _cell_text(v):
         return "", True
     if isinstance(v, bool):
         return ("yes" if v else "no"), False
-    if isinstance(v, int):
-        return str(v), True
-    if isinstance(v, float):
-        return f"{v:.4g}", True
+    if isinstance(v, int | float):
+        from rheoline.units import significant
+
+        return significant(v), True
     return _printable(v), False
 
 
-def _frame_text(frame):
-    """A plain-text table: text left-aligned, numbers right-aligned, blanks for missing values."""
+def _frame_text(frame, width=None, caps=None):
+    """A plain-text table: text left-aligned, numbers right-aligned, blanks for missing
+    values; with ``width``, the widest text columns wrap within their cells to fit it, and a
+    text column named in ``caps`` wraps at that many characters."""
     columns = [_printable(c) for c in frame.columns]
     cells = [[_cell_text(v) for v in row] for row in frame.itertuples(index=False)]
     numeric = [all(c[j][1] for c in cells) if cells else False for j in range(len(columns))]
     widths = [max([len(columns[j])] + [len(c[j][0]) for c in cells]) for j in range(len(columns))]
+    widths = [min(w, (caps or {}).get(c, w)) for w, c in zip(widths, frame.columns, strict=True)]
+    if width is not None:
+        widths = _fitted_widths(widths, numeric, width)
 
-    def line(texts):
-        parts = [
-            t.rjust(w) if num else t.ljust(w)
-            for t, w, num in zip(texts, widths, numeric, strict=True)
+    def lines(texts):
+        wrapped = [
+            textwrap.wrap(t, w, break_long_words=True) or [""] if len(t) > w else [t]
+            for t, w in zip(texts, widths, strict=True)
         ]
-        return "  ".join(parts).rstrip()
+        out = []
+        for k in range(max(len(w) for w in wrapped)):
+            parts = [
+                (w[k] if k < len(w) else "").rjust(n)
+                if num
+                else (w[k] if k < len(w) else "").ljust(n)
+                for w, n, num in zip(wrapped, widths, numeric, strict=True)
+            ]
+            out.append("  ".join(parts).rstrip())
+        return out
 
-    return "\n".join([line(columns)] + [line([t for t, _ in c]) for c in cells])
+    body = [line for c in cells for line in lines([t for t, _ in c])]
+    return "\n".join(lines(columns) + body)
 
 
-def format_run(run, reach=None) -> str:
+#: The narrowest a wrapped text column gets, the flags column, and the case column in a
+#: table fitted to the width [characters].
+_MIN_WRAP, _MIN_FLAGS, _MIN_CASE = 14, 24, 24
+
+
+def _fitted_widths(widths, numeric, width):
+    """Column widths within ``width`` (two spaces between columns): the widest text columns
+    give up characters first, none below :data:`_MIN_WRAP` (numbers never wrap)."""
+    widths = list(widths)
+    over = sum(widths) + 2 * (len(widths) - 1) - width
+    while over > 0:
+        text = [j for j, num in enumerate(numeric) if not num and widths[j] > _MIN_WRAP]
+        if not text:
+            break
+        j = max(text, key=lambda i: widths[i])
+        cut = min(over, widths[j] - _MIN_WRAP)
+        widths[j] -= cut
+        over -= cut
+    return widths
+
+
+#: The columns printed when --columns is not given, most wanted first (flows are matched by
+#: their start, since their unit is chosen); the others are added while they fit.
+_DEFAULT_COLUMNS = (
+    "case",
+    "flow [",
+    "source pressure [mmHg]",
+    "regime",
+    "dominant part (share)",
+    "flags",
+    "max wall shear [Pa]",
+    "flow p5-p95 [",
+    "deliver [min]",
+    "max Re",
+    "flow model band [",
+    "pressure model band [mmHg]",
+    "pressure p5-p95 [mmHg]",
+    "spread led by",
+    "model band led by",
+)
+
+
+def _columns(text):
+    """The --columns choice: None (fit the width), "all", or a list of names."""
+    if text is None:
+        return None
+    if text.strip().lower() == "all":
+        return "all"
+    return [name.strip() for name in text.split(",") if name.strip()]
+
+
+def _width(width):
+    """The table width: --width, else the terminal's, else 100 characters."""
+    if width is not None:
+        if width < 40:
+            raise _BadUsage(f"--width {width} is too narrow; give 40 or more characters")
+        return width
+    import shutil
+
+    return shutil.get_terminal_size((100, 24)).columns
+
+
+def _chosen(frame, names):
+    """The columns of ``frame`` named in ``names`` (each a whole name, a name less its unit,
+    or a unique start of a name; any case), after the case column."""
+    chosen = ["case"]
+    for name in names:
+        found = [c for c in frame.columns if c.lower().startswith(name.lower())]
+        # a whole name, or a name less its unit ("flow" for "flow [mL/h]")
+        exact = [c for c in found if name.lower() in (c.lower(), c.split(" [")[0].lower())]
+        if len(exact) == 1 or len(found) == 1:
+            column = (exact or found)[0]
+        else:
+            what = "matches several columns" if found else "is not a column"
+            raise _BadUsage(
+                f"--columns: {name!r} {what}; the columns are: {', '.join(frame.columns)}"
+            )
+        if column not in chosen:
+            chosen.append(column)
+    return frame[chosen]
+
+
+def _fitting(frame, width):
+    """The default columns that fit ``width``: the case, its flow and its flags always (the
+    flags wrap within their cell, at least :data:`_MIN_FLAGS` wide), then the others most
+    wanted first while they fit at their full width; the names of those left out; and the
+    case column's width (:func:`_case_width`)."""
+    wanted = [c for start in _DEFAULT_COLUMNS for c in frame.columns if c.startswith(start)]
+    wanted = list(dict.fromkeys(wanted))
+    always = [c for c in wanted[:2]] + ["flags"]
+
+    def natural(column):
+        return max([len(column)] + [len(_cell_text(v)[0]) for v in frame[column]])
+
+    case = _case_width(natural("case"), natural(always[1]), width)
+    budget = width - case - natural(always[1]) - 4 - _MIN_FLAGS
+    kept = set(always)
+    for column in wanted:
+        if column not in kept and natural(column) + 2 <= budget:
+            kept.add(column)
+            budget -= natural(column) + 2
+    order = [c for c in wanted if c in kept and c != "flags"] + ["flags"]
+    return frame[order], [c for c in frame.columns if c not in kept], {"case": case}
+
+
+def _case_width(case, flow, width):
+    """The case column's width: whole where the flow and the flags still fit beside it,
+    else what they leave (not below :data:`_MIN_CASE`; longer names wrap)."""
+    return max(min(case, width - flow - 4 - _MIN_FLAGS), _MIN_CASE)
+
+
+def format_run(run, reach=None, flow_unit="mL/min", columns=None, width=None) -> str:
     """The comparison table as printed by ``rheoline run``, with the caution above and below.
 
-    With ``reach`` [mL/min], a line per scenario names its smallest-bore case reaching it.
+    Flows are in ``flow_unit``.  ``columns``: None for the columns that fit ``width``
+    characters (text wraps within its cells), ``"all"`` for every column, or a list of names
+    (a unique start of each).  With ``reach`` [mL/min], a line per scenario names its
+    smallest-bore case reaching it.
     """
+    from rheoline.units import FLOW_UNITS, ML_PER_MIN, significant
+
     lines = [f"CAUTION: {_caution()}", ""]
     title = run.scenario_set.title
     if title:
         lines += [_printable(title), ""]
-    lines.append(_frame_text(run.summary()))
+    frame, left_out, caps = run.summary(flow_unit), [], None
+    if columns is None and width is not None:
+        frame, left_out, caps = _fitting(frame, width)
+    elif columns not in (None, "all"):
+        frame = _chosen(frame, columns)
+    lines.append(_frame_text(frame, None if columns == "all" else width, caps))
+    if left_out:
+        lines += textwrap.wrap(
+            f"(not printed, to fit {width} characters: {', '.join(left_out)}; choose with "
+            "--columns, or --columns all; every column is in --json and in the review pack)",
+            width,
+        )
     if reach is not None:
         from rheoline.scenario.compare import smallest_reaching
 
-        lines += ["", f"Smallest bore reaching {reach:g} mL/min:"]
+        per = ML_PER_MIN / FLOW_UNITS[flow_unit]
+        lines += ["", f"Smallest bore reaching {significant(reach * per)} {flow_unit}:"]
         for name in dict.fromkeys(run.table["scenario"]):
             best = smallest_reaching(run.table, reach, scenario=name)
             if best.empty:
@@ -397,11 +564,17 @@ def format_run(run, reach=None) -> str:
                 row = best.iloc[0]
                 lines.append(
                     f"  - {_printable(name)}: {_printable(row['case'])} "
-                    f"({row['smallest bore [mm]']:.3g} mm bore, "
-                    f"{row['flow [mL/min]']:.4g} mL/min)"
+                    f"({significant(row['smallest bore [mm]'])} mm bore, "
+                    f"{significant(row['flow [mL/min]'] * per)} {flow_unit})"
                 )
     if run.warnings:
-        lines += ["", "Notes:"] + [f"  - {_printable(w)}" for w in run.warnings]
+        lines += ["", "Notes:"] + [
+            wrapped
+            for w in run.warnings
+            for wrapped in textwrap.wrap(
+                _printable(w), width or 100, initial_indent="  - ", subsequent_indent="    "
+            )
+        ]
     lines += ["", f"CAUTION: {_caution()}"]
     return "\n".join(lines)
 

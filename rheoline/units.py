@@ -42,6 +42,7 @@ __all__ = [
     "ML_PER_MIN",
     "ML_PER_H",
     "FLOW_UNITS",
+    "significant",
 ]
 
 #: The flow units the views and the command line offer: name -> m^3/s in one such unit.
@@ -348,6 +349,29 @@ def to_unit(value_si, unit: str, kind: str, field: str = "unit"):
     """
     parsed = _units_of(unit, kind, field)
     return registry().Quantity(value_si, KINDS[kind][0]).to(parsed).magnitude
+
+
+def significant(value: float, digits: int = 3) -> str:
+    """``value`` with ``digits`` significant figures and thousands separators: the one
+    number format of the views (an exponent only below 0.001 or from a billion up).
+
+    >>> significant(11001.4), significant(183.26), significant(0.045678), significant(-2.5)
+    ('11,000', '183', '0.0457', '-2.50')
+    >>> significant(1234567.0), significant(2.5e-5), significant(0.0)
+    ('1,230,000', '2.5e-05', '0')
+    """
+    v = float(value)
+    if not math.isfinite(v):
+        return "n/a"
+    if v == 0:
+        return "0"
+    if 1e-3 <= abs(v) < 1e9:
+        place = digits - 1 - math.floor(math.log10(abs(v)))
+        rounded = round(v, place)
+        if rounded != 0 and math.floor(math.log10(abs(rounded))) > math.floor(math.log10(abs(v))):
+            place -= 1  # 999.6 -> 1,000: one digit fewer after the point
+        return f"{rounded:,.{max(place, 0)}f}"
+    return f"{v:.{digits}g}"
 
 
 def format_quantity(value_si, kind: str, unit: str, digits: int = 3) -> str:

@@ -142,16 +142,66 @@ def test_every_command_output_carries_the_caution(capsys):
 
 
 def test_run_prints_a_readable_table(capsys):
-    status, out, err = call(capsys, "run", example_path("bench-sweep"))
+    status, out, err = call(capsys, "run", example_path("bench-sweep"), "--width", "100")
     assert status == 0 and err == ""  # no progress bar when not a terminal
     lines = out.splitlines()
     assert lines[0] == f"CAUTION: {rheoline.CAUTION}"
     assert lines[-1] == f"CAUTION: {rheoline.CAUTION}"
     header = next(line for line in lines if "flow [mL/min]" in line)
-    assert "source pressure [mmHg]" in header and "max Re" in header
+    assert "source pressure [mmHg]" in header and "flags" in header
     assert "NaN" not in out
     assert sum(" | 50 cm, 14G" in line for line in lines) == 1
     assert sum("water, gauge x height |" in line for line in lines) == 30
+    status, out, _ = call(capsys, "run", example_path("bench-sweep"), "--columns", "all")
+    header = next(line for line in out.splitlines() if "flow [mL/min]" in line)
+    assert "max Re" in header and "max wall shear [Pa]" in header
+
+
+def _table_lines(out):
+    """The printed lines between the title's blank line and the caution at the end."""
+    lines = out.splitlines()
+    return [line for line in lines[1:-1] if not line.startswith("CAUTION: ")]
+
+
+@pytest.mark.parametrize("width", [80, 100])
+def test_the_table_fits_the_width_and_says_what_it_left_out(capsys, width):
+    status, out, _ = call(capsys, "demo", "--width", str(width))
+    assert status == 0
+    assert max(len(line) for line in _table_lines(out)) <= width
+    assert "flags" in next(line for line in out.splitlines() if line.startswith("case "))
+    assert "hemolysis concern" in out  # the flags are printed, wrapped within the width
+    assert "not printed, to fit" in out and "--columns" in out
+    status, wide, _ = call(capsys, "demo", "--columns", "all")
+    assert max(len(line) for line in _table_lines(wide)) > 200  # what no terminal fits
+
+
+def test_columns_choose_the_printed_columns(capsys):
+    status, out, _ = call(capsys, "demo", "--columns", "flow,regime,max wall")
+    assert status == 0
+    header = next(line for line in out.splitlines() if line.startswith("case "))
+    assert header.split("  ")[0] == "case" and header.split()[-3:] == ["wall", "shear", "[Pa]"]
+    assert "flags" not in header and "not printed" not in out
+    status, _, err = call(capsys, "demo", "--columns", "flow,max")
+    assert status == 2
+    assert_one_line_error(err, "--columns: 'max' matches several columns")
+
+
+@pytest.mark.parametrize("unit, per_ml_min", [("mL/h", 60.0), ("L/min", 1e-3), ("mL/s", 1 / 60)])
+def test_flow_unit_converts_the_printed_flows(capsys, unit, per_ml_min):
+    # 1 mL/min = 60 mL/h = 0.001 L/min = 1/60 mL/s (NIST SP 811 litre and minute)
+    from rheoline.scenario.compare import run_scenarios
+    from rheoline.scenario.files import load_scenarios
+    from rheoline.units import significant
+
+    table = run_scenarios(load_scenarios(example_path("bench-sweep"))).table
+    status, out, _ = call(
+        capsys, "run", example_path("bench-sweep"), "--flow-unit", unit, "--columns", "flow"
+    )
+    assert status == 0
+    rows = [line for line in out.splitlines() if line.startswith("water, gauge x height |")]
+    shown = [line.split()[-1] for line in rows]
+    assert shown == [significant(f * per_ml_min) for f in table["flow [mL/min]"]]
+    assert f"flow [{unit}]" in out
 
 
 def test_examples_print_loadable_files(capsys, tmp_path):

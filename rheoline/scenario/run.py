@@ -280,15 +280,16 @@ class RunResult:
         """The notes as text, each with its scenario's name (``"gravity: ..."``)."""
         return tuple(dict.fromkeys(str(n) for n in self.notes))
 
-    def summary(self):
-        """The columns printed by ``rheoline run``.
+    def summary(self, flow_unit: str = "mL/min"):
+        """The columns printed by ``rheoline run``, flows in ``flow_unit`` (mL/min, mL/h,
+        L/min or mL/s).
 
         ``source pressure [mmHg]`` is the given bag or infuser pressure for a drive, and the
         pressure the pump must supply (above the gravity head) for a prescribed flow.
         """
         from rheoline.scenario.tables import summary
 
-        return summary(self.table)
+        return summary(self.table, flow_unit)
 
     def records(self):
         """The table as JSON-ready dicts, one per case, with the parts of each line (see

@@ -17,18 +17,26 @@ from rheoline.scenario.writing import scenario_data
 __all__ = ["summary", "records", "inputs_table"]
 
 
-def summary(t):
-    """The columns of the table ``t`` printed by ``rheoline run``.
+def summary(t, flow_unit: str = "mL/min"):
+    """The columns of the table ``t`` printed by ``rheoline run``, flows in ``flow_unit``
+    (a key of :data:`rheoline.units.FLOW_UNITS`), numbers in ranges to three significant
+    figures.
 
     ``source pressure [mmHg]`` is the given bag or infuser pressure for a drive, and the
     pressure the pump must supply (above the gravity head) for a prescribed flow.
     """
-    out = t[["case", "flow [mL/min]", "required pressure [mmHg]"]].copy()
-    out.columns = ["case", "flow [mL/min]", "source pressure [mmHg]"]
+    from rheoline.units import FLOW_UNITS, ML_PER_MIN, significant
+
+    scale = {"mL/min": ML_PER_MIN / FLOW_UNITS[flow_unit], "mmHg": 1.0}
+    shown = {"mL/min": flow_unit, "mmHg": "mmHg"}
+    out = t[["case"]].copy()
+    out[f"flow [{flow_unit}]"] = t["flow [mL/min]"] * scale["mL/min"]
+    out["source pressure [mmHg]"] = t["required pressure [mmHg]"]
     out["max Re"] = t["max Reynolds number"].round().astype("Int64")
     out["regime"] = t["regime"]
     out["dominant part (share)"] = [
-        f"{p} ({s:.0f} %)" for p, s in zip(t["dominant part"], t["dominant share [%]"], strict=True)
+        f"{p} ({significant(s)} %)"
+        for p, s in zip(t["dominant part"], t["dominant share [%]"], strict=True)
     ]
     out["max wall shear [Pa]"] = t["max wall shear stress [Pa]"]
     # the tolerance band, then the model band: each as "low-high" and what leads it
@@ -39,8 +47,11 @@ def summary(t):
         for what, unit in (("flow", "mL/min"), ("pressure", "mmHg")):
             lo, hi = t[f"{what} {low} [{unit}]"], t[f"{what} {high} [{unit}]"]
             if lo.notna().any():
-                out[f"{what} {label} [{unit}]"] = [
-                    "" if np.isnan(a) else f"{a:.4g}-{b:.4g}" for a, b in zip(lo, hi, strict=True)
+                out[f"{what} {label} [{shown[unit]}]"] = [
+                    ""
+                    if np.isnan(a)
+                    else f"{significant(a * scale[unit])}-{significant(b * scale[unit])}"
+                    for a, b in zip(lo, hi, strict=True)
                 ]
         if t[leader].astype(bool).any():
             out[led_by] = t[leader]
