@@ -668,3 +668,18 @@ def test_the_line_view_draws_its_line_to_scale_with_each_parts_share():
     (output,) = view.charts["drawing"].outputs
     assert output["data"]["application/vnd.plotly.v1+json"]["layout"]["annotations"][0]["text"]
     assert view.charts["drawing"].figure is view.figures["drawing"]
+
+
+def test_the_comparison_shows_flows_in_the_chosen_unit(compare_view):
+    first = compare_view.candidates[0]
+    flow = compare_view.operating_point(first).flow
+    curve = np.asarray(compare_view.figures["curves"].data[len(compare_view.candidates)].y)
+    compare_view.set_control("flow_unit", "L/min")
+    fig = compare_view.figures["curves"]
+    assert fig.layout.yaxis.title.text == "flow [L/min]"
+    # 1 L/min = 1000 mL/min (NIST SP 811 litre)
+    shown = np.asarray(fig.data[len(compare_view.candidates)].y)
+    assert np.allclose(shown, curve / 1000.0, rtol=1e-12)
+    table = html.unescape(compare_view.table.value)
+    assert "flow [L/min]" in table and "flow [mL/h]" in table
+    assert f"<td class='rl-compare-flow'>{style.significant(flow / 1e-3 * 60)}</td>" in table

@@ -57,10 +57,12 @@ def traces(names) -> list:
     return out
 
 
-def draw_curves(fig, names, curves, bands, sweep):
+def draw_curves(fig, names, curves, bands, sweep, flow_unit=("mL/min", ML_PER_MIN)):
     """Set the chart: each candidate's curve ``(x, flow [m^3/s])`` and band ``(x, p5, p95)``
-    (or None), in one batch update; the traces are made anew when the candidates changed."""
+    (or None), flows in ``flow_unit`` (name, m^3/s per unit), in one batch update; the
+    traces are made anew when the candidates changed."""
     n = len(names)
+    unit, per = flow_unit
     with fig.batch_update():
         if len(fig.data) != 2 * n or any(
             t.name != chart_text(name) for t, name in zip(fig.data[n:], names, strict=False)
@@ -68,14 +70,15 @@ def draw_curves(fig, names, curves, bands, sweep):
             fig.data = []
             fig.add_traces(traces(names))
         for i, ((x, flow), band) in enumerate(zip(curves, bands, strict=True)):
-            fig.data[n + i].x, fig.data[n + i].y = x, flow / ML_PER_MIN
+            fig.data[n + i].x, fig.data[n + i].y = x, flow / per
             if band is None:
                 fig.data[i].x, fig.data[i].y = [], []
             else:
                 bx, p5, p95 = band
                 fig.data[i].x = np.concatenate([bx, bx[::-1]])
-                fig.data[i].y = np.concatenate([p95, p5[::-1]]) / ML_PER_MIN
+                fig.data[i].y = np.concatenate([p95, p5[::-1]]) / per
         fig.layout.xaxis.title.text = SWEEPS[sweep][0]
+        fig.layout.yaxis.title.text = f"flow [{unit}]"
         title = f"Candidates: flow against {sweep}"
         if any(b is not None for b in bands):
             title += f" (shaded: p5-p95 of {BAND_SAMPLES} tolerance samples)"
@@ -102,24 +105,24 @@ def row_flags(result, differ) -> list:
     return flags
 
 
-def row_html(name, parts, result, band, flags, banded) -> str:
+def row_html(name, parts, result, band, flags, banded, flow_unit=("mL/min", ML_PER_MIN)) -> str:
     """One table row: the candidate ``name``, its ``parts`` in words, its operating point's
-    numbers, its p5-p95 ``band`` [m^3/s] (a column only when ``banded``) and its flags."""
+    numbers (flows in ``flow_unit`` and in a second unit), its p5-p95 ``band`` [m^3/s] (a
+    column only when ``banded``) and its flags."""
     flow = float(result.flow)
+    per, other = flow_unit[1], _other_flow_unit(flow_unit[0])[1]
     band_cell = ""
     if banded:
         cell = (
-            f"{significant(band[0] / ML_PER_MIN)}-{significant(band[1] / ML_PER_MIN)}"
-            if band
-            else "no tolerance"
+            f"{significant(band[0] / per)}-{significant(band[1] / per)}" if band else "no tolerance"
         )
         band_cell = f"<td>{cell}</td>"
     flags = "; ".join(flags) or "[ok] ok: no flags"
     return (
         f"<tr><td><b>{user_text(name)}</b></td>"
         f"<td>{user_text(parts)}</td>"
-        f"<td class='rl-compare-flow'>{significant(flow / ML_PER_MIN)}</td>"
-        f"<td>{significant(flow / ML_PER_H)}</td>"
+        f"<td class='rl-compare-flow'>{significant(flow / per)}</td>"
+        f"<td>{significant(flow / other)}</td>"
         f"<td>{user_text(str(result.regime))} ({significant(float(result.max_reynolds))})</td>"
         f"<td>{user_text(str(result.dominant_part))} "
         f"({significant(100 * float(result.dominant_share))} %)</td>"
@@ -128,14 +131,20 @@ def row_html(name, parts, result, band, flags, banded) -> str:
     )
 
 
-def table_html(rows, banded, shared) -> str:
-    """The operating-point table of ``rows`` (:func:`row_html`), under a line that states
-    the shared controls' inputs (``shared``: control -> amount)."""
+def _other_flow_unit(unit):
+    """The second flow unit a table shows beside ``unit``: mL/h, or mL/min beside mL/h."""
+    return ("mL/min", ML_PER_MIN) if unit == "mL/h" else ("mL/h", ML_PER_H)
+
+
+def table_html(rows, banded, shared, flow_unit="mL/min") -> str:
+    """The operating-point table of ``rows`` (:func:`row_html`, flows in ``flow_unit``),
+    under a line that states the shared controls' inputs (``shared``: control -> amount)."""
+    other = _other_flow_unit(flow_unit)[0]
     head = (
-        "<tr><th>candidate</th><th>parts</th><th>flow [mL/min]</th><th>flow [mL/h]</th>"
+        f"<tr><th>candidate</th><th>parts</th><th>flow [{flow_unit}]</th><th>flow [{other}]</th>"
         "<th>regime (max Re)</th><th>dominant part (share)</th>"
         "<th>max wall shear stress [Pa]</th>"
-        + ("<th>flow p5-p95 [mL/min]</th>" if banded else "")
+        + (f"<th>flow p5-p95 [{flow_unit}]</th>" if banded else "")
         + "<th>flags</th></tr>"
     )
     return (

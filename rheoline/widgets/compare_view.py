@@ -29,6 +29,7 @@ import plotly.graph_objects as go
 
 from rheoline.errors import RheolineError
 from rheoline.scenario.description import ScenarioSet
+from rheoline.units import FLOW_UNITS
 from rheoline.widgets.base import _STYLE, View, drive_controls, fluid_controls, labelled
 from rheoline.widgets.compare_candidates import (
     DEFAULT_SET_PART,
@@ -147,7 +148,9 @@ class ComparisonView(View):
         )
         self._follow(self.document)
         self._on_edit(list(SHARED), self._edit_shared)
-        self._watch({"sweep_from": {"curves"}, "sweep_to": {"curves"}})
+        self._watch(
+            {"sweep_from": {"curves"}, "sweep_to": {"curves"}, "flow_unit": {"curves", "table"}}
+        )
         c["sweep"].observe(self._sweep_changed, names="value")
         self._run(self._document_changed)
         self._widgetize(lazy)
@@ -193,6 +196,12 @@ class ComparisonView(View):
                 options=list(SWEEPS), value=sweep, description="flow against", style=_STYLE
             ),
             "rl-sweep",
+        )
+        c["flow_unit"] = labelled(
+            widgets.Dropdown(
+                options=list(FLOW_UNITS), value="mL/min", description="flow unit", style=_STYLE
+            ),
+            "rl-flow-unit",
         )
         low, high = SWEEPS[sweep][1]
         unit = SWEEP_INPUT_UNITS[sweep]
@@ -271,6 +280,7 @@ class ComparisonView(View):
             c["back_pressure_mmhg"],
             c["bore_tolerance_percent"],
             c["temperature_tolerance_c"],
+            c["flow_unit"],
             c["sweep"],
             c["sweep_from"],
             c["sweep_to"],
@@ -484,7 +494,14 @@ class ComparisonView(View):
         if "curves" in parts:
             curves = [self.curve(c) for c in self.candidates]
             bands = [self.band(c) for c in self.candidates]
-            draw_curves(self.figures["curves"], names, curves, bands, self.controls["sweep"].value)
+            draw_curves(
+                self.figures["curves"],
+                names,
+                curves,
+                bands,
+                self.controls["sweep"].value,
+                self.flow_unit,
+            )
         if "table" in parts:
             self._draw_table()
 
@@ -498,8 +515,16 @@ class ComparisonView(View):
             differ = differences(candidate, shared, self._bore_fraction(candidate))
             parts = ", ".join(part_label(p, i) for i, p in enumerate(candidate.parts, 1))
             flags = row_flags(result, differ)
-            rows.append(row_html(candidate.name, parts, result, band, flags, banded))
-        self.table.value = table_html(rows, banded, shared)
+            rows.append(
+                row_html(candidate.name, parts, result, band, flags, banded, self.flow_unit)
+            )
+        self.table.value = table_html(rows, banded, shared, self.flow_unit[0])
+
+    @property
+    def flow_unit(self) -> tuple[str, float]:
+        """The flow unit chosen for the chart and the table: (name, m^3/s in one unit)."""
+        name = self.controls["flow_unit"].value
+        return name, FLOW_UNITS[name]
 
     def _bore_fraction(self, candidate):
         return self.solver.tolerances(candidate.description)[0]
