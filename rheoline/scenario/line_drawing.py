@@ -80,23 +80,22 @@ def line_drawing(names, bores_mm, lengths_m, drops_mmhg, title: str = DRAWING_TI
 
     shares = shares_percent(drops_mmhg)
     dominant = max(range(len(shares)), key=shares.__getitem__) if shares else -1
-    fig = go.Figure()
     widest = max((_number(b) for b in bores_mm), default=0.0) or 1.0
-    position, annotations = 0.0, []
+    position, traces, annotations = 0.0, [], []
     for i, name in enumerate(names):
         length_cm = 100.0 * _number(lengths_m[i])
         bore = _number(bores_mm[i])
         start, end = position, position + length_cm
         dom = i == dominant
         if length_cm > 0 and bore > 0:
-            fig.add_trace(_outline(start, end, bore, dom, name))
+            traces.append(_outline(start, end, bore, dom, name))
             middle = 0.5 * (start + end)
         else:
-            fig.add_trace(_tick(start, widest, dom, name))
+            traces.append(_tick(start, widest, dom, name))
             middle = start
         if dom:
-            fig.add_trace(_star(middle, widest))
-        label = f"{str(name)}: {_three_figures(shares[i])} %"
+            traces.append(_star(middle, widest))
+        label = f"{name}: {_three_figures(shares[i])} %"
         if dom:
             label = f"<b>{label} (dominant)</b>"
         row = i % _LABEL_ROWS
@@ -115,22 +114,27 @@ def line_drawing(names, bores_mm, lengths_m, drops_mmhg, title: str = DRAWING_TI
             )
         )
         position = end
-    fig.update_layout(
-        title=title,
-        template="simple_white",
+    axis = dict(showline=True, linecolor=_EDGE, ticks="outside", showgrid=False, zeroline=False)
+    layout = dict(
+        title=dict(text=title),
+        template="none",  # an empty template: a drawing is made at every update, keep it cheap
+        plot_bgcolor="white",
+        paper_bgcolor="white",
+        font=dict(family="sans-serif", size=12, color="#2b2b2b"),
         showlegend=False,
         height=300,
         margin=dict(l=60, r=30, t=50 + 22 * _LABEL_ROWS, b=50),
         annotations=annotations,
-        xaxis=dict(title="distance from the source [cm]", rangemode="tozero", zeroline=False),
+        xaxis=dict(axis, title=dict(text="distance from the source [cm]"), rangemode="tozero"),
         yaxis=dict(
-            title="bore [mm] (centreline at 0)",
+            axis,
+            title=dict(text="bore [mm] (centreline at 0)"),
             range=[-0.75 * widest, 0.95 * widest],
             zeroline=True,
             zerolinecolor="#bbbbbb",
         ),
     )
-    return fig
+    return go.Figure(data=traces, layout=layout)
 
 
 def _number(value) -> float:
@@ -142,16 +146,15 @@ def _number(value) -> float:
 
 
 def _outline(start, end, bore, dominant, name):
-    import plotly.graph_objects as go
-
     half = 0.5 * bore
-    return go.Scatter(
+    return dict(
+        type="scatter",
         x=[start, end, end, start, start],
         y=[-half, -half, half, half, -half],
         mode="lines",
         fill="toself",
         fillcolor=_DOMINANT_FILL if dominant else _FILL,
-        fillpattern=dict(shape="x", fgcolor=_EDGE, size=8) if dominant else None,
+        fillpattern=dict(shape="x", fgcolor=_EDGE, size=8) if dominant else {},
         line=dict(color=_EDGE, width=1.5),
         name=str(name),
         hoverinfo="name",
@@ -159,9 +162,8 @@ def _outline(start, end, bore, dominant, name):
 
 
 def _tick(at, widest, dominant, name):
-    import plotly.graph_objects as go
-
-    return go.Scatter(
+    return dict(
+        type="scatter",
         x=[at, at],
         y=[-0.5 * widest, 0.5 * widest],
         mode="lines+markers",
@@ -173,9 +175,8 @@ def _tick(at, widest, dominant, name):
 
 
 def _star(x, widest):
-    import plotly.graph_objects as go
-
-    return go.Scatter(
+    return dict(
+        type="scatter",
         x=[x],
         y=[0.62 * widest],
         mode="markers",
