@@ -153,7 +153,7 @@ class PartRow(widgets.HBox):
         self.bore.add_class("rl-part-bore")
         self.length = _number_box("length [cm]", control_range("part[1].length", "tube")[1], 0.1)
         self.length.add_class("rl-part-length")
-        self.k = _number_box("K [-]", control_range("part[1].k", "fitting")[1], 0.1, "120px")
+        self.k = _number_box("K [-]", control_range("part[1].k", "fitting")[1], 0.1, _W["num"])
         self.k.add_class("rl-part-k")
         self.extra = widgets.HTML()
         self.extra.add_class("rl-part-extra")
