@@ -9,10 +9,12 @@ field the view has no control for (tolerances, a volume to deliver, a vein) stay
 set, and the status line names it.  A swept field is shown at the first point of its sweep,
 and the status line says so.
 
-Results: flow in mL/min and mL/h, the required source pressure, the regime and largest
-Reynolds number, the largest wall shear stress and the hemolysis index, the validity flags in
-words, and two charts: the pressure budget (which part takes the drive) and the flow against
-the drive around the current point.  The fluid and the line are built from the description
+Results: flow in the chosen flow unit (mL/min, mL/h, L/min or mL/s; the pump's set flow is
+typed in it) and a second one, the required source pressure, the regime and largest Reynolds
+number, the largest wall shear stress and the hemolysis index, the validity flags in words,
+and three charts: the line drawn to scale with each part's share of the pressure drop, the
+pressure budget (which part takes the drive) and the flow against the drive around the
+current point.  The fluid and the line are built from the description
 by the scenario layer's builder (:mod:`rheoline.widgets.scenario_models`); every number comes
 from :meth:`rheoline.Line.solve`; this module converts units for display and draws.
 
@@ -20,7 +22,7 @@ Examples
 --------
 >>> view = LineView()
 >>> sorted(view.figures), view.scenario.name
-(['budget', 'drive'], 'line view')
+(['budget', 'drawing', 'drive'], 'line view')
 """
 
 from __future__ import annotations
