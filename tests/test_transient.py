@@ -165,6 +165,23 @@ def test_laminar_drug_delay_follows_levenspiel():
     assert "levenspiel-1999" in r.models_used
 
 
+def test_a_drug_joining_at_the_syringe_is_diluted_by_the_carrier_before_it_travels():
+    # a port at boundary 0 joins the main syringe's node, where no segment arrives: the
+    # carrier entering there is the main pump's own displacement.  Levenspiel's laminar F
+    # over the whole line, as for a port further down (50 % at tau / (2 sqrt 0.5), 90 % at
+    # tau / (2 sqrt 0.1)), and the drug arrives diluted to 1/3 (1 of 3 mL/h)
+    carrier = SyringePump(rate=2.0 * ML_H, name="carrier")
+    drug = SyringePump(rate=RateProfile.constant(1.0 * ML_H, start=600.0), name="drug")
+    line = Line([Tube(inner_diameter=0.5e-3, length=1.5)])
+    port = InjectionPort(boundary=0, pump=drug, concentration=2.0)
+    r = simulate_infusion(line, WATER, carrier, ports=[port], transport="laminar", duration=5000.0)
+    tau = line.parts[0].internal_volume / (3.0 * ML_H)
+    p = r.ports[0]
+    assert p.delay_50 == pytest.approx(tau / (2 * np.sqrt(0.5)), rel=3e-3)
+    assert p.delay_90 == pytest.approx(tau / (2 * np.sqrt(0.1)), rel=3e-3)
+    assert p.delivery[-1] == pytest.approx(p.steady_delivery, rel=1e-3)
+
+
 def test_dispersed_drug_delay_is_centred_on_the_plug_delay():
     # Taylor-Aris, small dispersion: a Gaussian about V/Q, 90 % at V/Q + 1.2816 sigma
     r, tau = _port_setup("dispersion", diffusivity=5e-10)

@@ -133,10 +133,14 @@ def run_displacement(pumps_in, shape, n):
 
 # ---------------------------------------------------------------------- drug transport
 def _junction_inflows(layout, ports, node, t, flows, rates, n):
-    """Per port joining at ``node``: its inflow (n_t, N); and the main flow arriving there."""
+    """Per port joining at ``node``: its inflow (n_t, N); and the main flow arriving there
+    (at the main syringe's node, node 0, the main pump's displacement: no segment arrives)."""
     net = layout.net
     arriving = [s for s in layout.main_segments if net.seg_down[s] == node]
-    main_in = flows[:, arriving[0], :] if arriving else np.zeros((t.size, n))
+    if arriving:
+        main_in = flows[:, arriving[0], :]
+    else:
+        main_in = rates[:, 0, :] if node == 0 else np.zeros((t.size, n))
     port_in = {}
     for k in range(len(ports)):
         seg = layout.port_segments[k]
