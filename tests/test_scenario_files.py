@@ -652,19 +652,32 @@ def test_load_dump_load_is_the_identity_for_every_kind_of_field(fmt):
 def test_every_scenario_field_has_one_home_in_the_description():
     from dataclasses import fields
 
-    from rheoline.scenario.description import DeliverySpec, DriveSpec, FluidSpec, SiteSpec
+    from rheoline.scenario.description import (
+        DeliverySpec,
+        DriveSpec,
+        FluidSpec,
+        SiteSpec,
+        SyringeSpec,
+    )
     from rheoline.scenario.schema import SCENARIO_FIELDS
+    from rheoline.scenario.transient_schema import TRANSIENT_KEYS
 
-    classes = {"fluid": FluidSpec, "drive": DriveSpec, "delivery": DeliverySpec, "site": SiteSpec}
+    classes = {
+        "fluid": FluidSpec,
+        "drive": DriveSpec,
+        "delivery": DeliverySpec,
+        "site": SiteSpec,
+        "syringe": SyringeSpec,
+    }
     for group, cls in classes.items():
         keys = [k for k, spec in SCENARIO_FIELDS.items() if spec.group == group]
         built = cls(**{f.name: Value(i) for i, f in enumerate(fields(cls))})
         assert [k for k, _ in built.items()] == keys, group
     grouped = {k for k, spec in SCENARIO_FIELDS.items() if spec.group}
-    # "node" and "branch" are held by Scenario.topology (rheoline.scenario.topology)
-    assert grouped | {"name", "notes", "model_band", "tolerance", "part", "node", "branch"} == set(
-        SCENARIO_FIELDS
-    )
+    # "node" and "branch" are held by Scenario.topology (rheoline.scenario.topology); the time
+    # solve's lists and tables by Scenario.transient (transient_spec.py)
+    tables = {"name", "notes", "model_band", "tolerance", "part", "node", "branch", *TRANSIENT_KEYS}
+    assert grouped | tables == set(SCENARIO_FIELDS)
 
 
 def test_a_description_edited_in_code_saves_and_loads_to_itself(tmp_path):
@@ -754,6 +767,76 @@ _PARTS = st.sampled_from(
 )
 
 
+#: Parts with the time solve's fields (a pump's line only).
+_TIME_PARTS = st.sampled_from(
+    [
+        {"type": "tube", "inner_diameter": "0.5 mm", "length": "1.5 m", "compliance": "0.04"},
+        {
+            "type": "tube",
+            "inner_diameter": "0.5 mm",
+            "length": "150 cm",
+            "compliance_pressures": ["0 mmHg", "300 mmHg"],
+            "compliance_values": ["0.06 uL/mmHg/m", 0.04],
+        },
+        {
+            "type": "fitting",
+            "equivalent_length": "3 cm",
+            "inner_diameter": "1 mm",
+            "internal_volume": "0.07 mL",
+            "compliance": "0.1 uL/mmHg",
+        },
+        {"type": "catheter", "gauge": 24, "compliance": "0.01 uL/mmHg/m"},
+    ]
+)
+_CHANGES = st.sampled_from(
+    [
+        [],
+        [{"time": "60 min", "rate": "2 mL/h"}],
+        [{"time": 30, "rate": 1.5, "ramp": "5 min"}, {"time": "2 h", "rate": "0 mL/h"}],
+    ]
+)
+
+
+def _time_solve(draw, sc):
+    """The time solve's fields of a pump scenario (drawn after its parts)."""
+    if draw(st.booleans()):
+        sc["part"] = sc["part"] + [draw(_TIME_PARTS)]
+    syringe = {  # single values: a pump's sweep stays within the time solve's limit
+        "syringe_compliance": st.sampled_from(["1.5 uL/mmHg", 2, "10 nL/kPa"]),
+        "slack": st.sampled_from(["30 uL", 50, "0.1 mL"]),
+        "break_loose_pressure": st.sampled_from(["50 mmHg", 40]),
+    }
+    for key in draw(st.lists(st.sampled_from(sorted(syringe)), max_size=2, unique=True)):
+        sc[key] = draw(syringe[key])
+    if "break_loose_pressure" not in sc and draw(st.booleans()):
+        sc["break_loose_force"] = draw(st.sampled_from(["5 N", 3]))
+        if draw(st.booleans()):
+            sc["barrel_diameter"] = "26.6 mm"
+        else:
+            sc["syringe_size"] = draw(st.sampled_from(["20 mL", 50]))
+    if "syringe_compliance" not in sc and draw(st.booleans()):
+        sc["syringe_compliance_pressures"] = ["0 mmHg", "50 mmHg", 300]
+        sc["syringe_compliance_values"] = ["4 uL/mmHg", "1.5 uL/mmHg", 1.2]
+    changes = draw(_CHANGES)
+    if changes:
+        sc["rate_changes"] = changes
+    if draw(st.booleans()):
+        sc["duration"] = draw(st.sampled_from(["6 h", 300]))
+    n = len(sc["part"])
+    if draw(st.booleans()):
+        sc["occlusion"] = {"part": draw(st.integers(1, n)), "time": "20 min", "alarm_pressure": 300}
+        if draw(st.booleans()):
+            sc["occlusion"]["release"] = "90 min"
+    if draw(st.booleans()):
+        port = {"boundary": draw(st.integers(0, n)), "flow": "0.5 mL/h", "concentration": 0.2}
+        extra = {"label": "drug", "start": "10 min", "syringe_compliance": 0.8, "slack": "10 uL"}
+        for key in draw(st.lists(st.sampled_from(sorted(extra)), max_size=3, unique=True)):
+            port[key] = extra[key]
+        if draw(st.booleans()):
+            port["rate_changes"] = [{"time": "1 h", "rate": "1 mL/h", "ramp": 0}]
+        sc["port"] = [port]
+
+
 @st.composite
 def _valid_documents(draw):
     scenarios = []
@@ -783,6 +866,8 @@ def _valid_documents(draw):
         sc["part"] = draw(st.lists(_PARTS, min_size=1, max_size=2))
         if any("tolerance" in p for p in sc["part"]):  # within the Monte Carlo budget
             sc.setdefault("tolerance", {})["samples"] = 100
+        if "flow" in sc and draw(st.booleans()):
+            _time_solve(draw, sc)
         scenarios.append(sc)
     return {"format_version": 1, "title": draw(st.sampled_from(["", "t"])), "scenario": scenarios}
 

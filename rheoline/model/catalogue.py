@@ -29,6 +29,9 @@ Tables (SI metres)
     catheter whose outer lumen is an annulus (typical sizes, from memory).
 :data:`CANNULA_TYPICAL_WALL`
     Typical wall thickness of cannulas and sheaths given by French size (from memory).
+:data:`SYRINGE_BARRELS`
+    Typical barrel bores of single-use syringes by nominal volume (from memory), for a
+    stopper's break-loose force as a pressure.
 """
 
 from __future__ import annotations
@@ -43,6 +46,7 @@ __all__ = [
     "MULTI_LUMEN_CATHETERS",
     "CANNULA_TYPICAL_WALL",
     "FRENCH_TO_METRE",
+    "SYRINGE_BARRELS",
 ]
 
 _MM = 1e-3
@@ -147,3 +151,16 @@ CANNULA_TYPICAL_WALL = 0.2 * _MM
 
 #: 1 French = 1/3 mm of outer diameter (a definition of the Charriere scale).
 FRENCH_TO_METRE = _MM / 3.0
+
+#: Nominal syringe volume [m^3] -> typical barrel bore [m] (the inner diameter the stopper
+#: seals, whose area turns a break-loose force into a pressure); typical of single-use
+#: syringes, from memory.  Makers differ by a millimetre or more: measure the barrel.
+SYRINGE_BARRELS = {
+    1e-6: 4.8 * _MM,
+    3e-6: 8.7 * _MM,
+    5e-6: 12.1 * _MM,
+    10e-6: 14.5 * _MM,
+    20e-6: 19.1 * _MM,
+    30e-6: 21.7 * _MM,
+    50e-6: 26.6 * _MM,
+}

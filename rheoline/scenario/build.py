@@ -34,6 +34,7 @@ from rheoline.errors import RheolineError, ScenarioError
 from rheoline.model.conversions import MMHG
 from rheoline.scenario.description import Axis, ScenarioSet, sweep_points
 from rheoline.scenario.schema import FLUID_OPTION_KEYS
+from rheoline.scenario.transient_schema import PART_KEYS as _TIME_ONLY  # not the engine's
 
 __all__ = [
     "Group",
@@ -78,8 +79,8 @@ _SIZE_FIELDS = (
     "width",
     "height",
 )
-#: Part fields that are lists of bench points (fixed over a sweep).
-_BENCH_FIELDS = ("flows", "pressure_drops")
+#: Part fields that are lists of bench points or table points (fixed over a sweep).
+_BENCH_FIELDS = ("flows", "pressure_drops", "compliance_pressures", "compliance_values")
 #: The file's key of each argument of :func:`rheoline.model.fluids.fluid`.
 _FLUID_ARGUMENTS = {
     **FLUID_OPTION_KEYS,
@@ -237,7 +238,7 @@ def build_part(spec, kw, name):
     from rheoline.model import parts as mp
     from rheoline.scenario.lumen_parts import LUMEN_PART_TYPES, build_lumen_part
 
-    kw = dict(kw)
+    kw = {k: v for k, v in kw.items() if k not in _TIME_ONLY}
     if spec.type in LUMEN_PART_TYPES or "shape" in kw:
         return build_lumen_part(spec.type, kw, name)
     if spec.type == "set":

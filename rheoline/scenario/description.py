@@ -47,6 +47,7 @@ from typing import TYPE_CHECKING
 
 if TYPE_CHECKING:  # the topology module builds on this one
     from rheoline.scenario.topology import TopologySpec
+    from rheoline.scenario.transient_spec import TransientSpec
 
 __all__ = [
     "DEFAULT_TEMPERATURE_C",
@@ -58,6 +59,7 @@ __all__ = [
     "DriveSpec",
     "DeliverySpec",
     "SiteSpec",
+    "SyringeSpec",
     "ToleranceSpec",
     "ToleranceWidth",
     "PartSpec",
@@ -254,6 +256,23 @@ class SiteSpec(_Group):
 
 
 @dataclass(frozen=True)
+class SyringeSpec(_Group):
+    """The main syringe pump's mechanics, for the time solve: the syringe's compliance
+    [m^3/Pa], the pump's slack [m^3], the stopper's break-loose as a pressure [Pa] or as a
+    force [N] with the barrel's bore [m] or the syringe's nominal volume [m^3].  Its set rate
+    is the drive's ``flow``; its rate changes, a compliance table, an occlusion and ports are
+    the scenario's ``transient``
+    (:class:`rheoline.scenario.transient_spec.TransientSpec`)."""
+
+    syringe_compliance: Field | None = None
+    slack: Field | None = None
+    break_loose_pressure: Field | None = None
+    break_loose_force: Field | None = None
+    barrel_diameter: Field | None = None
+    syringe_size: Field | None = None
+
+
+@dataclass(frozen=True)
 class ToleranceSpec(_Group):
     """Scenario-wide Monte Carlo tolerances (each a :class:`Value`, None when not given).
 
@@ -347,6 +366,9 @@ class Scenario:
     band out (:mod:`rheoline.scenario.model_band`).  A branched scenario has a ``topology``
     (:class:`rheoline.scenario.topology.TopologySpec`: nodes with their sources, pumps and
     outlets, and branches of parts), no ``parts`` and an empty ``drive``.
+    A scenario that asks for the time solve has a ``syringe`` (:class:`SyringeSpec`) or a
+    ``transient`` (:class:`rheoline.scenario.transient_spec.TransientSpec`: rate changes, a
+    syringe compliance table, the solve's duration, an occlusion, injection ports), or both.
     """
 
     name: str
@@ -359,6 +381,8 @@ class Scenario:
     notes: str = ""
     model_band: bool = True
     topology: TopologySpec | None = None
+    syringe: SyringeSpec | None = None
+    transient: TransientSpec | None = None
 
     def __post_init__(self):
         object.__setattr__(self, "parts", tuple(self.parts))
@@ -370,7 +394,18 @@ class Scenario:
 
     def groups(self):
         """The groups of single-valued fields that are given, in file order."""
-        return [g for g in (self.fluid, self.drive, self.delivery, self.site) if g is not None]
+        given = (self.fluid, self.drive, self.delivery, self.site, self.syringe)
+        return [g for g in given if g is not None]
+
+    @property
+    def asks_time_solve(self):
+        """Whether the scenario asks for the time solve (a syringe, a transient table, or a
+        part's compliance)."""
+        return (
+            self.syringe is not None
+            or self.transient is not None
+            or any(k in p.fields for p in self.parts for k in ("compliance", "compliance_values"))
+        )
 
     @property
     def values(self):
@@ -488,6 +523,7 @@ _GROUPS = {
     "drive": DriveSpec,
     "delivery": DeliverySpec,
     "site": SiteSpec,
+    "syringe": SyringeSpec,
     "tolerance": ToleranceSpec,
 }
 

@@ -59,7 +59,7 @@ from pathlib import Path
 
 from rheoline.errors import ScenarioError
 from rheoline.model import catalogue
-from rheoline.scenario import lumen_parts, schema, text_guard
+from rheoline.scenario import lumen_parts, schema, text_guard, transient_fields
 from rheoline.scenario.description import (
     Axis,
     DeliverySpec,
@@ -383,6 +383,7 @@ def _parse_scenario(raw, index, source):
         table = _tolerance_table(raw["tolerance"], SCENARIO_TOLERANCE_FIELDS, at, "tolerance.")
         tolerance = ToleranceSpec(**table) if table else None
     parts = _parse_parts(raw, at)
+    syringe, transient = transient_fields.parse_transient(raw, values, parts, at)
     sc = Scenario(
         name,
         FluidSpec.from_keys(values),
@@ -393,8 +394,11 @@ def _parse_scenario(raw, index, source):
         SiteSpec.from_keys(values) if "vein_diameter" in values else None,
         notes,
         _flag(raw, "model_band", at),
+        syringe=syringe,
+        transient=transient,
     )
     _check_scenario_budget(sc, at)
+    transient_fields.check_transient(sc, at)
     return sc
 
 

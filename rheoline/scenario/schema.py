@@ -30,6 +30,7 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 from rheoline.model import catalogue
+from rheoline.scenario import transient_schema
 from rheoline.units import MMHG, to_unit
 
 __all__ = [
@@ -55,6 +56,7 @@ __all__ = [
     "PART_TYPES",
     "REQUIRED_PART",
     "PART_TOLERANCE_FIELDS",
+    "TRANSIENT_TABLE_FIELDS",
     "KIND_OF",
     "field_spec",
     "fields_table",
@@ -292,6 +294,7 @@ SCENARIO_FIELDS = {
         help="true (default): add the model band, the answer across defensible model "
         "choices; false: leave it out",
     ),
+    **transient_schema.scenario_fields(_spec),  # the time solve: syringe, changes, ports
     "tolerance": _spec(
         "tolerance",
         sweep=False,
@@ -357,6 +360,9 @@ _COMMON_PART = {
     ),
 }
 _ID = _spec("length", "mm", 1e-5, 0.06, help="inner diameter (bore) of the lumen")
+#: A lumen's tubing compliance; a fitting's or measured part's volume and compliance.
+_LUMEN_TIME = transient_schema.lumen_fields(_spec)
+_LUMPED_TIME = transient_schema.lumped_fields(_spec)
 _LEN = _spec("length", "m", 1e-4, 30.0, help="length of the lumen")
 
 #: Dimensions of a non-circular tube (``shape``), by the shape's key in
@@ -393,18 +399,21 @@ PART_FIELDS = {
         "length": _LEN,
         "roughness": _spec("length", "mm", 0.0, 1e-3, help="absolute wall roughness"),
         **_SHAPE_FIELDS,
+        **_LUMEN_TIME,
     },
     "catheter": {
         **_COMMON_PART,
         "gauge": _spec("gauge", None, 10, 34, help="nominal catalogue gauge, e.g. 18"),
         "inner_diameter": _ID,
         "length": _spec("length", "m", 1e-3, 1.5, help="catheter length"),
+        **_LUMEN_TIME,
     },
     "needle": {
         **_COMMON_PART,
         "gauge": _spec("gauge", None, 7, 34, help="needle gauge (ISO 9626)"),
         "wall": _spec("choice", help="wall type (ISO 9626): " + ", ".join(catalogue.NEEDLE_WALLS)),
         "length": _spec("length", "m", 1e-3, 0.5, help="needle length"),
+        **_LUMEN_TIME,
     },
     "cannula": {
         **_COMMON_PART,
@@ -412,6 +421,7 @@ PART_FIELDS = {
         "inner_diameter": _ID,
         "wall_thickness": _spec("length", "mm", 1e-5, 5e-3, help="cannula wall thickness"),
         "length": _spec("length", "m", 1e-3, 2.0, help="cannula length"),
+        **_LUMEN_TIME,
     },
     "set": {
         **_COMMON_PART,
@@ -420,6 +430,7 @@ PART_FIELDS = {
         ),
         "inner_diameter": _ID,
         "length": _LEN,
+        **_LUMEN_TIME,
     },
     "fitting": {
         **_COMMON_PART,
@@ -430,6 +441,7 @@ PART_FIELDS = {
         "inner_diameter": _spec(
             "length", "mm", 1e-5, 0.06, help="bore the K or equivalent length refers to"
         ),
+        **_LUMPED_TIME,
     },
     "multi-lumen": {
         **_COMMON_PART,
@@ -489,6 +501,7 @@ PART_FIELDS = {
             sweep=False,
             help="density of the bench fluid (rescales the fit)",
         ),
+        **_LUMPED_TIME,
     },
 }
 #: The part types a scenario file may name.
@@ -525,6 +538,10 @@ PART_TOLERANCE_FIELDS = {
     ),
 }
 
+#: The fields of one rate change, of the occlusion and of a port, by table
+#: (:mod:`rheoline.scenario.transient_schema`).
+TRANSIENT_TABLE_FIELDS = transient_schema.table_fields(_spec)
+
 #: The :data:`rheoline.units.KINDS` key of each field kind that is a physical quantity.
 KIND_OF = {
     "length": "length",
@@ -535,6 +552,11 @@ KIND_OF = {
     "time": "time",
     "viscosity": "viscosity",
     "density": "density",
+    "compliance": "compliance",
+    "tubing_compliance": "tubing_compliance",
+    "force": "force",
+    "concentration": "concentration",
+    "diffusivity": "diffusivity",
 }
 
 
@@ -585,6 +607,8 @@ def fields_table():
     for ptype, specs in PART_FIELDS.items():
         data += _rows(f'part type = "{ptype}"', specs)
     data += _rows("[part].tolerance", PART_TOLERANCE_FIELDS)
+    for table, specs in TRANSIENT_TABLE_FIELDS.items():
+        data += _rows(_TRANSIENT_TABLE_NAMES[table], specs)
     from rheoline.scenario.topology import BRANCH_FIELDS, NODE_FIELDS
 
     for ntype, specs in NODE_FIELDS.items():
@@ -593,6 +617,13 @@ def fields_table():
     return pd.DataFrame(
         data, columns=["table", "field", "bare number in", "allowed", "sweeps", "what it is"]
     )
+
+
+_TRANSIENT_TABLE_NAMES = {
+    "rate_change": "rate_changes = [{...}]",
+    "occlusion": "[scenario.occlusion]",
+    "port": "[[scenario.port]]",
+}
 
 
 def _rows(table, specs):

@@ -76,6 +76,8 @@ _FIELD_HINTS = {
     "flow": "a flow (mL/min, mL/h, L/min)",
     "volume": "a volume (mL, L)",
     "inner_diameter": "a diameter (mm, um, inch); for a catalogue size use gauge",
+    "compliance": "a lumen's compliance is per metre (uL/mmHg/m), a fitting's or measured "
+    "part's lumped (uL/mmHg)",
 }
 
 

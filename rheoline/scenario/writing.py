@@ -35,6 +35,7 @@ from rheoline.scenario.schema import (
     SCENARIO_FIELDS,
     SCENARIO_TOLERANCE_FIELDS,
 )
+from rheoline.scenario.transient_fields import transient_data
 from rheoline.scenario.values import written_form
 
 __all__ = [
@@ -102,6 +103,7 @@ def scenario_data(sc) -> dict:
             key: _plain(field, SCENARIO_TOLERANCE_FIELDS[key])
             for key, field in sc.tolerance.items()
         }
+    out.update(transient_data(sc))  # the time solve's lists and tables
     if sc.topology is not None:  # a branched scenario: its nodes and branches
         from rheoline.scenario.topology_reading import topology_data
 

@@ -143,8 +143,10 @@ FLOW_ENTRIES = (
     ),
     ModelEntry(
         "typical-catalogue",
-        "Typical nominal sizes of catheters, sets, cannula walls and central-line lumens",
-        "catheter bores and lengths by gauge, set bores, cannula walls, central-line lumens",
+        "Typical nominal sizes of catheters, sets, cannula walls, central-line lumens and syringe "
+        "barrels",
+        "catheter bores and lengths by gauge, set bores, cannula walls, central-line lumens, the "
+        "barrel bore of a syringe named by its volume",
         "typical nominal values (from memory); intravascular catheters are specified in the "
         "ISO 10555 series, whose tables were not read",
         None,
@@ -152,7 +154,7 @@ FLOW_ENTRIES = (
         {},
         recalled=True,
         cite="from memory",
-        used_in=(_M + "parts.Catheter", _M + "parts.Cannula"),
+        used_in=(_M + "parts.Catheter", _M + "parts.Cannula", _M + "catalogue"),
     ),
     # ------------------------------------------------------------------ blood damage
     ModelEntry(
