@@ -54,6 +54,7 @@ from rheoline.scenario.build import point_part_names
 from rheoline.scenario.model_band import BAND_COLUMNS
 from rheoline.scenario.network_build import branch_group, build_network, network_groups
 from rheoline.scenario.steps import part_rows
+from rheoline.scenario.transient_step import TRANSIENT_COLUMNS
 from rheoline.units import ML_PER_H, ML_PER_MIN, MMHG
 
 __all__ = [
@@ -200,6 +201,8 @@ class NetworkGroupRun:
             c[key] = [""] * n if key == "model band driver" else _nan(n)
         c["time to deliver [min]"] = _nan(n)
         c["catheter-to-vein ratio [-]"] = _nan(n)
+        for name in TRANSIENT_COLUMNS:  # the time solve is a line's, not a network's
+            c[name] = _nan(n)
 
     # ----------------------------------------------------------------------- solve
     def solve(self):

@@ -30,6 +30,11 @@ read from the step's result:
     ``time to deliver [min]``.
 ``site`` (:func:`rheoline.model.vessels.infusion_site_context`, where a vein is given)
     ``catheter-to-vein ratio [-]``.
+``transient`` (:func:`rheoline.model.transient.simulate_infusion`, where the scenario asks
+    for the time solve: :mod:`rheoline.scenario.transient_step`)
+    ``internal volume [mL]`` (every case), ``start-up time [min]``, ``rate change t90
+    [min]``, ``time to alarm [min]``, ``bolus [mL]``, ``drug delay t50 [min]``, ``drug
+    delay t90 [min]``, ``port dead volume [mL]``; and the time series of each case.
 
 Each step also reads boolean conditions per case from its result (the line's
 ``conditions`` and ``part_conditions``, keys of :data:`rheoline.model.conditions.CONDITIONS`;
@@ -85,6 +90,8 @@ from rheoline.scenario.steps import (
     tolerance_band,
 )
 from rheoline.scenario.tables import inputs_table
+from rheoline.scenario.transient_step import FLAG_WORDS as TRANSIENT_FLAG_WORDS
+from rheoline.scenario.transient_step import TRANSIENT_COLUMNS, time_series_table, transient_step
 from rheoline.units import ML_PER_H, ML_PER_MIN, MMHG
 
 if TYPE_CHECKING:  # pandas is imported where a table is built, not with this module
@@ -140,6 +147,7 @@ TABLE_COLUMNS = [
     "catheter-to-vein ratio [-]",
     "reversed flow [mL/min]",
     "reversed branch",
+    *TRANSIENT_COLUMNS,
     "flags",
 ]
 PART_COLUMNS = [
@@ -189,6 +197,7 @@ FLAG_WORDS = {
     "not_converged": "solver not converged",
     "large_catheter": lambda d: f"catheter fills {d['ratio']:.0%} of the vein diameter",
     "outside_range": "outside a correlation's range (see notes)",
+    **TRANSIENT_FLAG_WORDS,  # the time solve's, in the model's words
 }
 
 
@@ -259,6 +268,9 @@ class RunResult:
     nodes : pandas.DataFrame or None
         One row per branched case and node (:data:`rheoline.scenario.network_run.
         NODE_COLUMNS`): pressure, the flow it feeds in (negative: takes out), pump limits.
+    time_series : pandas.DataFrame or None
+        The time series of every case with the time solve
+        (:func:`rheoline.scenario.transient_step.time_series_table`); empty when none.
     created : datetime.datetime
         When the run was made (UTC).
     """
@@ -273,6 +285,7 @@ class RunResult:
     part_keys: tuple[str, ...] = ()
     branches: pandas.DataFrame | None = None
     nodes: pandas.DataFrame | None = None
+    time_series: pandas.DataFrame | None = None
     created: _dt.datetime = field(default_factory=lambda: _dt.datetime.now(_dt.UTC))
 
     @property
@@ -319,7 +332,7 @@ def run_scenarios(sset: ScenarioSet, progress=None) -> RunResult:
 
     from rheoline.scenario.network_run import run_network_scenario
 
-    cases, notes, models = [], [], ()
+    cases, notes, models, every_run = [], [], (), []
     bar = progress(sset.n_points) if progress else None
     try:
         for sc in sset.scenarios:
@@ -332,6 +345,8 @@ def run_scenarios(sset: ScenarioSet, progress=None) -> RunResult:
             cases += sorted((c for r in runs for c in r.cases()), key=lambda c: c[0])
             views = runs if sc.topology is None else [v for r in runs for v in r.note_views()]
             notes += [Note(sc.name, None, key, text) for key, text in scenario_notes(views)]
+            if sc.topology is None:  # the time solve is a line's
+                every_run += runs
             models = merge_models(models, *(r.models_used for r in runs))
     finally:
         if bar is not None:
@@ -349,6 +364,7 @@ def run_scenarios(sset: ScenarioSet, progress=None) -> RunResult:
         notes=tuple(dict.fromkeys(notes)),
         flags={key: c[3] for key, c in zip(keys, cases, strict=True)},
         part_keys=tuple(r[-1] for r in part_table),
+        time_series=time_series_table(every_run, cases, keys),
         branches=branches,
         nodes=nodes,
     )
@@ -418,7 +434,7 @@ class _GroupRun:
     def run(self):
         for step in (self.build_fluid, self.build_line, self.solve):
             self._step(step)
-        for step in (self.tolerance, self.model_band, self.delivery, self.site):
+        for step in (self.tolerance, self.model_band, self.delivery, self.site, self.transient):
             self._step(step)
         return self
 
@@ -581,6 +597,9 @@ class _GroupRun:
         self.conditions["large_catheter"] = large
         if site is not None:
             self.models_used = merge_models(self.models_used, SITE_MODELS)
+
+    def transient(self):
+        transient_step(self)  # rheoline.scenario.transient_step
 
     # ----------------------------------------------------------------------- rows
     def flags(self, col):

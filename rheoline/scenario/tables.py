@@ -59,6 +59,7 @@ def summary(t, flow_unit: str = "mL/min"):
         out["deliver [min]"] = t["time to deliver [min]"]
     if t["reversed flow [mL/min]"].notna().any():  # branched cases
         out["reversed [mL/min]"] = t["reversed flow [mL/min]"]
+    out = out.assign(**_transient_summary(t))
     out["flags"] = t["flags"]
     return out
 
@@ -74,7 +75,10 @@ def records(table, parts, flags=None, branches=None, nodes=None):
     ``flow_p95_ml_min``, the model band (``flow_model_low_ml_min``,
     ``flow_model_high_ml_min``, ``required_pressure_model_low_mmhg``,
     ``required_pressure_model_high_mmhg``, ``model_band_driver``),
-    ``time_to_deliver_min``, ``flags`` and ``parts`` (a list of
+    ``time_to_deliver_min``, the time solve's ``internal_volume_ml``
+    (every case), ``startup_time_s``, ``rate_change_90_s``, ``time_to_alarm_s``,
+    ``drug_delay_50_s``, ``drug_delay_90_s``, ``bolus_ml`` and ``port_dead_volume_ml`` (null
+    where the scenario does not ask for the time solve), ``flags`` and ``parts`` (a list of
     ``part``, ``kind``, ``pressure_drop_pa``, ``reynolds``, ``regime``,
     ``wall_shear_stress_pa``, ``share``), and ``caution``.  ``flags`` maps a case to its
     flags (:attr:`rheoline.scenario.run.RunResult.flags`).
@@ -134,6 +138,7 @@ def records(table, parts, flags=None, branches=None, nodes=None):
         "model_band_driver": [v or None for v in _column(table, "model band driver")],
         "time_to_deliver_min": _numbers(table, "time to deliver [min]"),
         "catheter_to_vein_ratio": _numbers(table, "catheter-to-vein ratio [-]"),
+        **_transient_fields(table),
         "flags": [list(flags.get(case, ())) for case in cases],
         "parts": [by_case.get(case, []) for case in cases],
     }
@@ -215,6 +220,34 @@ def _network_records(branches, nodes):
             }
         )
     return out
+
+
+#: Printed columns of the time solve: (short name, table column), shown where any case has one.
+_TRANSIENT_SUMMARY = (
+    ("start-up [min]", "start-up time [min]"),
+    ("alarm [min]", "time to alarm [min]"),
+    ("bolus [mL]", "bolus [mL]"),
+    ("drug t90 [min]", "drug delay t90 [min]"),
+)
+
+
+def _transient_summary(t):
+    return {short: t[name] for short, name in _TRANSIENT_SUMMARY if t[name].notna().any()}
+
+
+def _transient_fields(table):
+    """The time solve's record keys, by column (null where not computed)."""
+    factors = {
+        "internal_volume_ml": ("internal volume [mL]", 1.0),
+        "startup_time_s": ("start-up time [min]", 60.0),
+        "rate_change_90_s": ("rate change t90 [min]", 60.0),
+        "time_to_alarm_s": ("time to alarm [min]", 60.0),
+        "bolus_ml": ("bolus [mL]", 1.0),
+        "drug_delay_50_s": ("drug delay t50 [min]", 60.0),
+        "drug_delay_90_s": ("drug delay t90 [min]", 60.0),
+        "port_dead_volume_ml": ("port dead volume [mL]", 1.0),
+    }
+    return {key: _numbers(table, name, 1.0 / f) for key, (name, f) in factors.items()}
 
 
 def _num(v):
