@@ -33,6 +33,8 @@ The work is shared by idea:
   cautions and the run's notes;
 - :mod:`rheoline.scenario.pack_network`: a run with branched lines adds ``branches.csv``
   and ``nodes.csv`` (and the workbook's sheets and the report's section of the same name).
+- :mod:`rheoline.scenario.pack_time`: a run with the time solve adds ``time-series.csv``
+  and the report's time plots.
 """
 
 from __future__ import annotations
@@ -51,6 +53,7 @@ from rheoline.scenario import (
     pack_report,
     pack_sources,
     pack_tables,
+    pack_time,
 )
 from rheoline.scenario.files import output_error
 from rheoline.scenario.pack_folder import (
@@ -130,6 +133,8 @@ def _write_all(run, folder: Path):
     evidence = pack_evidence.evidence_table(run)
     pack_tables.write_csv(evidence, folder / "model-evidence.csv", title_row)
     for name, frame in pack_network.network_frames(run).items():  # branched lines only
+        pack_tables.write_csv(frame, folder / f"{name}.csv", title_row)
+    for name, frame in pack_time.time_frames(run).items():  # the time solve only
         pack_tables.write_csv(frame, folder / f"{name}.csv", title_row)
     cautions = pack_sources.cautions_list(run, caution)
     sheets = {}

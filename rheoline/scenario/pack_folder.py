@@ -31,6 +31,7 @@ from rheoline.scenario.interrupts import PackInterrupted, interrupt_guard, mark_
 __all__ = [
     "PACK_FILES",
     "NETWORK_PACK_FILES",
+    "TIME_PACK_FILES",
     "PackExistsError",
     "check_target",
     "is_review_pack",
@@ -50,6 +51,8 @@ PACK_FILES = (
 )
 #: The files a pack adds when its run has branched lines (:mod:`rheoline.scenario.pack_network`).
 NETWORK_PACK_FILES = ("branches.csv", "nodes.csv")
+#: The files a pack adds when its run has the time solve (:mod:`rheoline.scenario.pack_time`).
+TIME_PACK_FILES = ("time-series.csv",)
 
 #: The largest manifest read back when deciding whether a folder is a pack [bytes].
 _MAX_MANIFEST_BYTES = 1_000_000
@@ -221,7 +224,7 @@ def _not_a_pack_reason(folder: Path) -> str:
         return reason
     listed = manifest["files_sha256"]
     copy = manifest["scenario_copy"]
-    allowed = set(PACK_FILES) | set(NETWORK_PACK_FILES) | {copy}
+    allowed = set(PACK_FILES) | set(NETWORK_PACK_FILES) | set(TIME_PACK_FILES) | {copy}
     expected = set(listed) | {"manifest.json"}
     if (
         not expected <= allowed

@@ -1,7 +1,7 @@
 """The review pack's HTML report: one self-contained page, readable offline.
 
 The page opens with the caution, then the results, the charts (plotly, its script embedded
-once, no network needed), the parts of each line, the scenario inputs, the models the run
+once, no network needed) and, for a run with the time solve, the time plots, the parts of each line, the scenario inputs, the models the run
 used with their references, the cautions, and the scenario file as given with its SHA-256
 hash.  Every text that came from a scenario file is HTML-escaped; invisible format
 characters of the echoed file (bidirectional overrides, zero-width spaces) are shown as
@@ -319,6 +319,7 @@ def report_html(
 </details>
 <h2>Charts</h2>
 {_charts_html(run)}
+{_time_section(run)}
 <h2>Parts of each line</h2>
 {frame_html(run.parts)}
 {_network_section(run)}
@@ -350,6 +351,13 @@ def _network_section(run) -> str:
     from rheoline.scenario.pack_network import network_html
 
     return network_html(run)
+
+
+def _time_section(run) -> str:
+    """The time solve's plots (:mod:`rheoline.scenario.pack_time`), or ""."""
+    from rheoline.scenario.pack_time import time_html
+
+    return time_html(run)
 
 
 def write_html(path: Path, page: str):
