@@ -91,7 +91,12 @@ from rheoline.scenario.steps import (
 )
 from rheoline.scenario.tables import inputs_table
 from rheoline.scenario.transient_step import FLAG_WORDS as TRANSIENT_FLAG_WORDS
-from rheoline.scenario.transient_step import TRANSIENT_COLUMNS, time_series_table, transient_step
+from rheoline.scenario.transient_step import (
+    TRANSIENT_COLUMNS,
+    not_computed_table,
+    time_series_table,
+    transient_step,
+)
 from rheoline.units import ML_PER_H, ML_PER_MIN, MMHG
 
 if TYPE_CHECKING:  # pandas is imported where a table is built, not with this module
@@ -271,6 +276,9 @@ class RunResult:
     time_series : pandas.DataFrame or None
         The time series of every case with the time solve
         (:func:`rheoline.scenario.transient_step.time_series_table`); empty when none.
+    not_computed : Mapping[str, Mapping[str, str]]
+        Per case, why each of its empty time-solve values is empty (JSON record key ->
+        words of :data:`rheoline.scenario.transient_step.NULL_REASONS`).
     created : datetime.datetime
         When the run was made (UTC).
     """
@@ -286,6 +294,7 @@ class RunResult:
     branches: pandas.DataFrame | None = None
     nodes: pandas.DataFrame | None = None
     time_series: pandas.DataFrame | None = None
+    not_computed: Mapping[str, Mapping[str, str]] = field(default_factory=dict)
     created: _dt.datetime = field(default_factory=lambda: _dt.datetime.now(_dt.UTC))
 
     @property
@@ -309,7 +318,9 @@ class RunResult:
         :func:`rheoline.scenario.tables.records`)."""
         from rheoline.scenario.tables import records
 
-        return records(self.table, self.parts, self.flags, self.branches, self.nodes)
+        return records(
+            self.table, self.parts, self.flags, self.branches, self.nodes, self.not_computed
+        )
 
 
 # --------------------------------------------------------------------------- the run
@@ -365,6 +376,7 @@ def run_scenarios(sset: ScenarioSet, progress=None) -> RunResult:
         flags={key: c[3] for key, c in zip(keys, cases, strict=True)},
         part_keys=tuple(r[-1] for r in part_table),
         time_series=time_series_table(every_run, cases, keys),
+        not_computed=not_computed_table(every_run, cases, keys),
         branches=branches,
         nodes=nodes,
     )

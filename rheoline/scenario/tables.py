@@ -64,7 +64,7 @@ def summary(t, flow_unit: str = "mL/min"):
     return out
 
 
-def records(table, parts, flags=None, branches=None, nodes=None):
+def records(table, parts, flags=None, branches=None, nodes=None, not_computed=None):
     """The table as a list of JSON-ready dicts (one per case), with the parts of each line.
 
     Keys: ``name``, ``scenario``, ``point``, ``fluid``, ``flow_ml_min``, ``flow_ml_h``,
@@ -78,9 +78,11 @@ def records(table, parts, flags=None, branches=None, nodes=None):
     ``time_to_deliver_min``, the time solve's ``internal_volume_ml``
     (every case), ``startup_time_s``, ``rate_change_90_s``, ``time_to_alarm_s``,
     ``drug_delay_50_s``, ``drug_delay_90_s``, ``bolus_ml`` and ``port_dead_volume_ml`` (null
-    where the scenario does not ask for the time solve), ``flags`` and ``parts`` (a list of
-    ``part``, ``kind``, ``pressure_drop_pa``, ``reynolds``, ``regime``,
+    where not computed, and ``not_computed`` says why: record key -> reason), ``flags`` and
+    ``parts`` (a list of ``part``, ``kind``, ``pressure_drop_pa``, ``reynolds``, ``regime``,
     ``wall_shear_stress_pa``, ``share``), and ``caution``.  ``flags`` maps a case to its
+    flags (:attr:`rheoline.scenario.run.RunResult.flags`); ``not_computed`` maps a case to
+    why its time-solve values are null (:attr:`rheoline.scenario.run.RunResult.not_computed`).
     flags (:attr:`rheoline.scenario.run.RunResult.flags`).
 
     A branched case (a row of ``branches``) adds ``reversed_flow_ml_min``,
@@ -139,6 +141,7 @@ def records(table, parts, flags=None, branches=None, nodes=None):
         "time_to_deliver_min": _numbers(table, "time to deliver [min]"),
         "catheter_to_vein_ratio": _numbers(table, "catheter-to-vein ratio [-]"),
         **_transient_fields(table),
+        "not_computed": [dict((not_computed or {}).get(case, {})) for case in cases],
         "flags": [list(flags.get(case, ())) for case in cases],
         "parts": [by_case.get(case, []) for case in cases],
     }
@@ -237,17 +240,9 @@ def _transient_summary(t):
 
 def _transient_fields(table):
     """The time solve's record keys, by column (null where not computed)."""
-    factors = {
-        "internal_volume_ml": ("internal volume [mL]", 1.0),
-        "startup_time_s": ("start-up time [min]", 60.0),
-        "rate_change_90_s": ("rate change t90 [min]", 60.0),
-        "time_to_alarm_s": ("time to alarm [min]", 60.0),
-        "bolus_ml": ("bolus [mL]", 1.0),
-        "drug_delay_50_s": ("drug delay t50 [min]", 60.0),
-        "drug_delay_90_s": ("drug delay t90 [min]", 60.0),
-        "port_dead_volume_ml": ("port dead volume [mL]", 1.0),
-    }
-    return {key: _numbers(table, name, 1.0 / f) for key, (name, f) in factors.items()}
+    from rheoline.scenario.transient_step import RECORD_KEYS
+
+    return {key: _numbers(table, name, 1.0 / f) for key, (name, f) in RECORD_KEYS.items()}
 
 
 def _num(v):

@@ -34,9 +34,12 @@ __all__ = [
     "FLAG_KEYS",
     "FLAG_WORDS",
     "SERIES_POINTS",
+    "RECORD_KEYS",
+    "NULL_REASONS",
     "transient_step",
     "model_inputs",
     "time_series_table",
+    "not_computed_table",
 ]
 
 TRANSIENT_COLUMNS = [
@@ -69,6 +72,30 @@ FLAG_KEYS = tuple(k for k, c in TRANSIENT_CONDITIONS.items() if c.severity != "c
 )
 #: The flag words of :data:`FLAG_KEYS`, read from the model's conditions.
 FLAG_WORDS = {k: TRANSIENT_CONDITIONS[k].words for k in FLAG_KEYS}
+#: The JSON record's key of each transient column, and the factor from the column's unit.
+RECORD_KEYS = {
+    "internal_volume_ml": ("internal volume [mL]", 1.0),
+    "startup_time_s": ("start-up time [min]", 60.0),
+    "rate_change_90_s": ("rate change t90 [min]", 60.0),
+    "time_to_alarm_s": ("time to alarm [min]", 60.0),
+    "bolus_ml": ("bolus [mL]", 1.0),
+    "drug_delay_50_s": ("drug delay t50 [min]", 60.0),
+    "drug_delay_90_s": ("drug delay t90 [min]", 60.0),
+    "port_dead_volume_ml": ("port dead volume [mL]", 1.0),
+}
+#: Why a transient column of a case is empty (a JSON record's null): reason key -> words.
+NULL_REASONS = {
+    "no_time_solve": "the scenario asks for no time solve (give syringe_compliance, a part's "
+    "compliance, rate_changes, an occlusion or a port)",
+    "volume_not_known": "a part of the line has no internal volume",
+    "no_rate_change": "the main pump's set rate does not change after its start",
+    "no_occlusion": "the scenario has no occlusion",
+    "no_port": "the scenario has no port",
+    **{
+        k: TRANSIENT_CONDITIONS[k].meaning
+        for k in ("startup_not_reached", "rate_change_not_reached", "no_alarm", "drug_not_reached")
+    },
+}
 #: Most points of one phase of one case kept in the time series (every k-th solver step,
 #: so the solver's dense steps at a fast change stay dense).
 SERIES_POINTS = 400
@@ -260,6 +287,36 @@ def _columns(res, n):
     }
 
 
+def _null_reason(key, sc, res, col):
+    """The :data:`NULL_REASONS` key of an empty column ``key`` of point ``col``."""
+    if key == "internal_volume_ml":
+        return "volume_not_known"
+    if res is None:
+        return "no_time_solve"
+    spec = sc.transient
+    if key == "startup_time_s":
+        return "startup_not_reached"
+    if key == "rate_change_90_s":
+        moved = [r for r in res.rate_changes if r.pump == MAIN_PUMP][1:]
+        return "rate_change_not_reached" if moved else "no_rate_change"
+    if key in ("time_to_alarm_s", "bolus_ml"):
+        return "no_occlusion" if spec is None or spec.occlusion is None else "no_alarm"
+    return "no_port" if spec is None or not spec.ports else "drug_not_reached"
+
+
+def _not_computed(run):
+    """Per point, ``{record key: reason words}`` of its empty transient columns."""
+    out = []
+    for col in range(run.n):
+        empty = {}
+        for key, (name, _) in RECORD_KEYS.items():
+            if not np.isfinite(run.columns[name][col]):
+                reason = _null_reason(key, run.g.scenario, run.transient_result, col)
+                empty[key] = NULL_REASONS[reason]
+        out.append(empty)
+    return out
+
+
 def transient_step(run):
     """Fill the transient columns, conditions, notes and ``models_used`` of a group run
     (:class:`rheoline.scenario.run._GroupRun`: ``g``, ``n``, ``fluid``, ``line``,
@@ -276,6 +333,7 @@ def transient_step(run):
     if not g.scenario.asks_time_solve:
         for name in TRANSIENT_COLUMNS[1:]:
             c[name] = [np.nan] * n
+        run.not_computed = _not_computed(run)
         return
     res = _solve(run)
     run.transient_result = res
@@ -291,6 +349,7 @@ def transient_step(run):
     if "syringe_size" in g.values:
         run.models_used = merge_models(run.models_used, ("typical-catalogue",))
     run.models_used = merge_models(run.models_used, res.models_used)
+    run.not_computed = _not_computed(run)
 
 
 def _solve(run):
@@ -379,3 +438,15 @@ def time_series_table(runs, cases, keys):
         for col, index in enumerate(run.g.indices):
             rows += _case_rows(res, key_of[(run.g.scenario.name, index)], col)
     return pd.DataFrame(rows, columns=TIME_SERIES_COLUMNS)
+
+
+def not_computed_table(runs, cases, keys):
+    """Case key -> ``{JSON record key: why it is null}`` (:data:`NULL_REASONS`), for every
+    case (an empty mapping where every transient value was computed); arguments as
+    :func:`time_series_table`."""
+    key_of = {(case[1][1], case[0]): key for case, key in zip(cases, keys, strict=True)}
+    out = {}
+    for run in runs:
+        for col, index in enumerate(run.g.indices):
+            out[key_of[(run.g.scenario.name, index)]] = run.not_computed[col]
+    return out
