@@ -5,7 +5,8 @@ comparison, network and files views share one
 :class:`~rheoline.widgets.document.ScenarioDocument`: the line view edits one of its line
 scenarios, the comparison draws them all, the network view draws and edits its branched
 scenarios (the shipped branched examples while it holds none), and the files view loads a
-file into it and saves it.  The app starts from invented demo scenarios: the line
+file into it and saves it; the time view shows and edits its scenarios that ask
+for the time solve (else its own demo).  The app starts from invented demo scenarios: the line
 view's line ("line view") and three catheters behind the same set.  Each tab is a view that
 carries its own caution banner at the top, so the banner is on screen whichever tab is open.
 """
@@ -51,6 +52,7 @@ TAB_TITLES = {
     "compare": "Compare",
     "network": "Network",
     "blood": "Blood and vessels",
+    "time": "Infusion in time",
     "files": "Files",
 }
 
@@ -97,7 +99,8 @@ class Views(Mapping):
 
 
 class App(widgets.VBox):
-    """The views in tabs: line, comparison, branched line, blood and vessels, files.
+    """The views in tabs: line, comparison, branched line, blood and vessels, the infusion in time,
+    files.
 
     Only the first tab's view is built with the app; each other tab's view is built when
     the tab is first opened (or first asked for in ``app.views``), so the page loads only
@@ -107,13 +110,15 @@ class App(widgets.VBox):
     ----------
     tabs : sequence of str, optional
         Which tabs to build (default all): any of "line", "compare", "network", "blood",
-        "files".
+        "time", "files".
     workspace : str or os.PathLike, optional
         The folder the files tab reads and writes (see
         :class:`~rheoline.widgets.files_view.FilesView`).
     """
 
-    def __init__(self, tabs=("line", "compare", "network", "blood", "files"), workspace=None):
+    def __init__(
+        self, tabs=("line", "compare", "network", "blood", "time", "files"), workspace=None
+    ):
         super().__init__()
         self.add_class("rl-app")
         self.document = demo_document()
@@ -122,6 +127,7 @@ class App(widgets.VBox):
             "compare": lambda: self._comparison_view(),
             "network": lambda: self._network_view(),
             "blood": _blood,
+            "time": lambda: self._time_view(),
             "files": lambda: _files(  # a load's summary asks these views (built then)
                 lambda: self.views.get("line"),
                 lambda: self.views.get("compare"),
@@ -162,6 +168,11 @@ class App(widgets.VBox):
 
         return NetworkView(lazy=True, document=self.document)
 
+    def _time_view(self):
+        from rheoline.widgets.transient_view import TransientView
+
+        return TransientView(document=self.document, lazy=True)
+
     def _opened(self, change):
         """A tab's view is built, placed and drawn when the tab is first opened."""
         if change.new is not None:
@@ -193,6 +204,6 @@ def _files(line_view, compare_view, document, workspace=None, network_view=None)
     )
 
 
-def build_app(tabs=("line", "compare", "network", "blood", "files"), workspace=None) -> App:
+def build_app(tabs=("line", "compare", "network", "blood", "time", "files"), workspace=None) -> App:
     """Build the app (see :class:`App`)."""
     return App(tabs, workspace=workspace)
