@@ -1,4 +1,4 @@
-"""The line in time: pressure, flow and drug delivery against time, with the occlusion and
+"""The infusion in time: pressure, flow and drug delivery against time, with the occlusion and
 the rate changes as controls.
 
 The view shows one scenario that asks for the time solve (a syringe pump's line): the
@@ -159,7 +159,9 @@ class TransientView(View):
         of now.
     """
 
-    title = "Line in time"
+    title = (
+        "Infusion in time"  # no other tab's name inside it (the browser test finds tabs by name)
+    )
 
     def __init__(self, document=None, lazy: bool = False):
         super().__init__()
