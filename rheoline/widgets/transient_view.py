@@ -159,9 +159,8 @@ class TransientView(View):
         of now.
     """
 
-    title = (
-        "Infusion in time"  # no other tab's name inside it (the browser test finds tabs by name)
-    )
+    #: No other tab's name is inside it (the browser test finds a tab by a part of its name).
+    title = "Infusion in time"
 
     def __init__(self, document=None, lazy: bool = False):
         super().__init__()
