@@ -10,7 +10,7 @@ from hypothesis import strategies as st
 
 import rheoline
 from rheoline.errors import InputRangeError
-from rheoline.model import catalogue
+from rheoline.model import catalogue, fluids
 from rheoline.model.fluid_base import Fluid, newtonian_fluid
 from rheoline.model.line import GRAVITY, Line
 from rheoline.model.lumen import poiseuille_flow, power_law_tube_flow
@@ -433,3 +433,18 @@ def test_functions_taking_a_line_reject_a_list_of_parts():
         falling_head_delivery_time(parts, WATER_22, 1e-4, 1.0, 0.5)
     with pytest.raises(InputRangeError, match=r"rheoline\.fluid\('saline-0\.9'\)"):
         flow_tolerance(Line(parts), "saline-0.9", head=1.0, diameter_tolerance=0.05)
+
+
+def test_a_line_that_resists_nothing_is_refused_naming_the_parts():
+    # with every loss coefficient zero, dp = K rho u^2 / 2 (Crane 1988, TP-410, eq. 2-4,
+    # the definition of K) is zero at any flow: the flow would be unbounded
+    fluid_ = fluids.fluid("saline-0.9")
+    with pytest.raises(InputRangeError, match="no part of this line resists flow") as err:
+        Line([Fitting(k=0.0, inner_diameter=0.3e-3)])
+    assert err.value.field == "parts"
+    with pytest.raises(InputRangeError, match="give a fitting k > 0"):
+        Line([Fitting(k=np.array([0.0, 1.0]), inner_diameter=0.3e-3)])
+    # one fitting with a loss is enough to bound the flow: dp = k rho u^2 / 2
+    res = Line([Fitting(k=1.0, inner_diameter=0.3e-3)]).solve(fluid_, head=0.0, source_pressure=1e3)
+    area = np.pi * (0.3e-3) ** 2 / 4.0
+    assert res.flow == pytest.approx(area * np.sqrt(2.0 * 1e3 / fluid_.density), rel=1e-6)

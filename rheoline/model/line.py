@@ -122,7 +122,7 @@ from rheoline.model import lumen as _lumen
 from rheoline.model.line_layout import build_layout
 from rheoline.model.line_result import LineResult, make_result
 from rheoline.model.losses import entrance_k
-from rheoline.model.parts import Part
+from rheoline.model.parts import Fitting, Part
 from rheoline.model.validation import as_float_array, check_finite, check_nonnegative
 
 __all__ = ["Line", "LineResult", "GRAVITY"]
@@ -184,6 +184,28 @@ def _broadcast_named(named):
         ) from None
 
 
+def _check_something_resists(parts):
+    """Refuse a line of loss-free fittings only: it would carry an unbounded flow.
+
+    Only a line made of fittings given by ``k`` can resist nothing; it is refused where
+    the sum of its coefficients is zero in any scenario (a swept ``k`` that reaches 0).
+    """
+    if not all(isinstance(part, Fitting) and part.k is not None for part in parts):
+        return
+    total = sum(
+        np.asarray(part.k, dtype=float)
+        + (0.0 if part.laminar_k is None else np.asarray(part.laminar_k, dtype=float))
+        for part in parts
+    )
+    if np.any(total == 0):
+        raise InputRangeError(
+            "parts: no part of this line resists flow (every part is a fitting with k = 0 "
+            "and no laminar_k), so any drive gives an unbounded flow; add the lumen the "
+            "fluid runs through (a tube, catheter, needle or set) or give a fitting k > 0",
+            field="parts",
+        )
+
+
 class Line:
     """Parts in series from the source (bag, pump, reservoir) to the outlet (vein, beaker).
 
@@ -241,6 +263,7 @@ class Line:
                     f"part[{i}] is {part!r}, not a rheoline part; use Tube, Catheter, Needle, "
                     "Cannula, Fitting or MeasuredPart"
                 )
+        _check_something_resists(parts)
         self.parts = parts
         self.entrance = entrance
         self.entrance_k = entrance_k(entrance)
