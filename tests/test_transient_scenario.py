@@ -10,6 +10,7 @@ import csv
 import json
 
 import numpy as np
+import openpyxl
 import pytest
 
 import rheoline
@@ -103,6 +104,24 @@ def test_startup_alarm_and_bolus_follow_the_closed_forms(occluded):
     )
 
 
+def test_a_rate_change_reaches_the_outlet_as_the_closed_form_says():
+    # one compliance C behind a linear line R: a step of the set rate reaches the outlet as
+    # Q_out = Q1 + (Q2 - Q1) (1 - exp(-t / RC)), so t50 = R C ln 2 and t90 = R C ln 10
+    text = (
+        OCCLUDED.split("[scenario.occlusion]")[0].replace('["1 mL/h", "4 mL/h"]', '"1 mL/h"')
+        + 'rate_changes = [{ time = "5 min", rate = "3 mL/h" }]\n'
+        + ('[[scenario.part]]\ntype = "tube"\ninner_diameter = "0.5 mm"\nlength = "1 m"\n')
+    )
+    run = run_scenarios(loads_scenarios(text))
+    row = run.table.iloc[0]
+    rc = _resistance() * 1.5 * UL_PER_MMHG
+    assert row["rate change t50 [min]"] * 60 == pytest.approx(rc * np.log(2.0), rel=2e-3)
+    assert row["rate change t90 [min]"] * 60 == pytest.approx(rc * np.log(10.0), rel=2e-3)
+    (record,) = run.records()
+    assert record["rate_change_50_s"] == pytest.approx(row["rate change t50 [min]"] * 60)
+    assert "rate_change_50_s" not in record["not_computed"]
+
+
 def test_more_syringe_compliance_means_longer_alarm_and_bigger_bolus():
     # Snijder et al. 2015 (the syringe's compliance sets alarm times and boluses): the trend
     one = run_scenarios(loads_scenarios(OCCLUDED)).table.iloc[:2]
@@ -178,6 +197,9 @@ def test_neonatal_run_equals_the_model_api(neonatal):
     assert second["rate change t90 [min]"].to_numpy() * 60 == pytest.approx(
         res.rate_changes[1].time_90
     )
+    assert second["rate change t50 [min]"].to_numpy() * 60 == pytest.approx(
+        res.rate_changes[1].time_50
+    )
     assert set(res.models_used) <= set(neonatal.models_used)
 
 
@@ -250,6 +272,10 @@ def test_pack_has_the_time_series_and_the_time_plots(neonatal, tmp_path):
     run_rows = [r for r in rows[2:] if r[0] == case and r[1] == "run"]
     t_end, delivered = float(run_rows[-1][3]), float(run_rows[-1][6])
     assert 0 < delivered < 0.5 * t_end / 60
+    sheet = openpyxl.load_workbook(folder / "results.xlsx", read_only=True)["time series"]
+    head = list(sheet.iter_rows(min_row=1, max_row=3, values_only=True))
+    assert rheoline.CAUTION in head[0][0] and head[1][:4] == ("case", "phase", "port", "time [min]")
+    assert head[2][:2] == tuple(rows[2][:2])
     page = (folder / "report.html").read_text(encoding="utf-8")
     assert "Pressure, flow and drug delivery in time" in page
     for title in ("Pressure at the syringe", "Flow at the outlet", "Drug leaving the outlet"):
@@ -262,6 +288,7 @@ def test_pack_without_the_time_solve_has_no_time_series(occluded, tmp_path):
     only = "format_version = 1\n[[scenario]]" + OCCLUDED.split("[[scenario]]")[2]
     folder = write_pack(run_scenarios(loads_scenarios(only)), tmp_path / "p")
     assert not (folder / "time-series.csv").exists()
+    assert "time series" not in openpyxl.load_workbook(folder / "results.xlsx").sheetnames
     assert "Pressure, flow and drug delivery in time" not in (folder / "report.html").read_text(
         encoding="utf-8"
     )

@@ -34,7 +34,7 @@ The work is shared by idea:
 - :mod:`rheoline.scenario.pack_network`: a run with branched lines adds ``branches.csv``
   and ``nodes.csv`` (and the workbook's sheets and the report's section of the same name).
 - :mod:`rheoline.scenario.pack_time`: a run with the time solve adds ``time-series.csv``
-  and the report's time plots.
+  (and the workbook's sheet "time series") and the report's time plots.
 """
 
 from __future__ import annotations
@@ -134,7 +134,8 @@ def _write_all(run, folder: Path):
     pack_tables.write_csv(evidence, folder / "model-evidence.csv", title_row)
     for name, frame in pack_network.network_frames(run).items():  # branched lines only
         pack_tables.write_csv(frame, folder / f"{name}.csv", title_row)
-    for name, frame in pack_time.time_frames(run).items():  # the time solve only
+    time_frames = pack_time.time_frames(run)  # the time solve only
+    for name, frame in time_frames.items():
         pack_tables.write_csv(frame, folder / f"{name}.csv", title_row)
     cautions = pack_sources.cautions_list(run, caution)
     sheets = {}
@@ -142,6 +143,8 @@ def _write_all(run, folder: Path):
         sheets[name] = frame
         if name == "assumptions":  # the evidence for those models next to them
             sheets["model evidence"] = evidence
+        if name == "parts":  # a time solve's series after the results and parts
+            sheets.update((n.replace("-", " "), f) for n, f in time_frames.items())
     pack_tables.write_xlsx(folder / "results.xlsx", sheets, title_row)
     page = pack_report.report_html(
         run,

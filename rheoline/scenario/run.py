@@ -32,9 +32,10 @@ read from the step's result:
     ``catheter-to-vein ratio [-]``.
 ``transient`` (:func:`rheoline.model.transient.simulate_infusion`, where the scenario asks
     for the time solve: :mod:`rheoline.scenario.transient_step`)
-    ``internal volume [mL]`` (every case), ``start-up time [min]``, ``rate change t90
-    [min]``, ``time to alarm [min]``, ``bolus [mL]``, ``drug delay t50 [min]``, ``drug
-    delay t90 [min]``, ``port dead volume [mL]``; and the time series of each case.
+    ``internal volume [mL]`` (every case), ``start-up time [min]``, ``rate change t50
+    [min]``, ``rate change t90 [min]``, ``time to alarm [min]``, ``bolus [mL]``, ``drug
+    delay t50 [min]``, ``drug delay t90 [min]``, ``port dead volume [mL]``; and the time
+    series of each case.
 
 Each step also reads boolean conditions per case from its result (the line's
 ``conditions`` and ``part_conditions``, keys of :data:`rheoline.model.conditions.CONDITIONS`;

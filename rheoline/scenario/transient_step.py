@@ -45,6 +45,7 @@ __all__ = [
 TRANSIENT_COLUMNS = [
     "internal volume [mL]",
     "start-up time [min]",
+    "rate change t50 [min]",
     "rate change t90 [min]",
     "time to alarm [min]",
     "bolus [mL]",
@@ -76,6 +77,7 @@ FLAG_WORDS = {k: TRANSIENT_CONDITIONS[k].words for k in FLAG_KEYS}
 RECORD_KEYS = {
     "internal_volume_ml": ("internal volume [mL]", 1.0),
     "startup_time_s": ("start-up time [min]", 60.0),
+    "rate_change_50_s": ("rate change t50 [min]", 60.0),
     "rate_change_90_s": ("rate change t90 [min]", 60.0),
     "time_to_alarm_s": ("time to alarm [min]", 60.0),
     "bolus_ml": ("bolus [mL]", 1.0),
@@ -267,7 +269,9 @@ def _columns(res, n):
     """The transient columns (other than the internal volume) of a solved group."""
     main = [r for r in res.rate_changes if r.pump == MAIN_PUMP][1:]
     moved = [_vec(r.rate_after, n) != _vec(r.rate_before, n) for r in main]
-    change = _largest([_vec(r.time_90, n) for r in main], moved)
+    change = {
+        k: _largest([_vec(getattr(r, f"time_{k}"), n) for r in main], moved) for k in (50, 90)
+    }
     alarm = _vec(res.time_to_alarm, n)
     ports = res.ports
     every = [np.ones(n, bool)] * len(ports)
@@ -278,7 +282,10 @@ def _columns(res, n):
 
     return {
         "start-up time [min]": _vec(res.startup_time, n) / 60.0,
-        "rate change t90 [min]": np.full(n, np.nan) if change is None else change / 60.0,
+        **{
+            f"rate change t{k} [min]": np.full(n, np.nan) if top is None else top / 60.0
+            for k, top in change.items()
+        },
         "time to alarm [min]": np.where(np.isfinite(alarm), alarm / 60.0, np.nan),
         "bolus [mL]": _vec(res.bolus_volume, n) / _ML,
         "drug delay t50 [min]": over_ports("delay_50", 60.0),
@@ -296,7 +303,7 @@ def _null_reason(key, sc, res, col):
     spec = sc.transient
     if key == "startup_time_s":
         return "startup_not_reached"
-    if key == "rate_change_90_s":
+    if key in ("rate_change_50_s", "rate_change_90_s"):
         moved = [r for r in res.rate_changes if r.pump == MAIN_PUMP][1:]
         return "rate_change_not_reached" if moved else "no_rate_change"
     if key in ("time_to_alarm_s", "bolus_ml"):

@@ -55,6 +55,7 @@ DEMO_EXAMPLE = "neonatal-syringe-line"
 RESULT_ROWS = (
     ("internal volume of the line", "internal volume [mL]"),
     ("start-up (outlet at 90 % of the set rate)", "start-up time [min]"),
+    ("rate change at the outlet, 50 %", "rate change t50 [min]"),
     ("rate change at the outlet, 90 %", "rate change t90 [min]"),
     ("time to the occlusion alarm", "time to alarm [min]"),
     ("bolus when the occlusion clears", "bolus [mL]"),
