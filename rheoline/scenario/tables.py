@@ -75,8 +75,8 @@ def records(table, parts, flags=None, branches=None, nodes=None, not_computed=No
     ``flow_p95_ml_min``, the model band (``flow_model_low_ml_min``,
     ``flow_model_high_ml_min``, ``required_pressure_model_low_mmhg``,
     ``required_pressure_model_high_mmhg``, ``model_band_driver``),
-    ``time_to_deliver_min``, the time solve's ``internal_volume_ml``
-    (every case), ``startup_time_s``, ``rate_change_50_s``, ``rate_change_90_s``, ``time_to_alarm_s``,
+    ``time_to_deliver_min``, the time solve's ``internal_volume_ml`` (every case),
+    ``startup_time_s``, ``rate_change_50_s``, ``rate_change_90_s``, ``time_to_alarm_s``,
     ``drug_delay_50_s``, ``drug_delay_90_s``, ``bolus_ml`` and ``port_dead_volume_ml`` (null
     where not computed, and ``not_computed`` says why: record key -> reason), ``flags`` and
     ``parts`` (a list of ``part``, ``kind``, ``pressure_drop_pa``, ``reynolds``, ``regime``,
