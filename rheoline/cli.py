@@ -25,6 +25,15 @@ import sys
 import textwrap
 import warnings
 
+from rheoline.cli_tables import (
+    BadUsage,
+    chosen,
+    columns_option,
+    fitting,
+    frame_text,
+    printable,
+    width_option,
+)
 from rheoline.errors import RheolineError
 from rheoline.scenario.interrupts import PackInterrupted, interrupt_guard
 from rheoline.units import FLOW_UNITS
@@ -35,13 +44,9 @@ EXIT_OK, EXIT_FAULT, EXIT_BAD_INPUT = 0, 1, 2
 EXIT_ACCURACY = 3  # validate: a model outside its stated accuracy
 
 
-class _BadUsage(Exception):
-    """argparse found a usage error (exit 2, one line)."""
-
-
 class _Parser(argparse.ArgumentParser):
     def error(self, message):  # one line, no usage dump
-        raise _BadUsage(f"{message} (see '{self.prog} --help')")
+        raise BadUsage(f"{message} (see '{self.prog} --help')")
 
 
 def _caution():
@@ -224,7 +229,7 @@ def _cmd_check(args, out):
             t = s.topology
             what = f"network of {len(t.nodes)} nodes and {len(t.branches)} branches"
             what += f", {s.n_parts} part(s)"
-        out.write(f"  - {_printable(s.name)}: {what}, {axes}\n")
+        out.write(f"  - {printable(s.name)}: {what}, {axes}\n")
     out.write(_caution() + "\n")
     return EXIT_OK
 
@@ -260,7 +265,9 @@ def _cmd_run(args, out, sset=None):
         print(_caution(), file=sys.stderr)
     else:
         out.write(
-            format_run(run, reach, args.flow_unit, _columns(args.columns), _width(args.width))
+            format_run(
+                run, reach, args.flow_unit, columns_option(args.columns), width_option(args.width)
+            )
             + "\n"
         )
     if args.out:
@@ -310,21 +317,21 @@ def _cmd_examples(args, out):
 def _cmd_fluids(args, out):
     from rheoline.scenario.compare import fluid_table
 
-    out.write(_frame_text(fluid_table()) + "\n" + _caution() + "\n")
+    out.write(frame_text(fluid_table()) + "\n" + _caution() + "\n")
     return EXIT_OK
 
 
 def _cmd_fields(args, out):
     from rheoline.scenario.files import fields_table
 
-    out.write(_frame_text(fields_table()) + "\n" + _caution() + "\n")
+    out.write(frame_text(fields_table()) + "\n" + _caution() + "\n")
     return EXIT_OK
 
 
 def _cmd_parts(args, out):
     from rheoline.scenario.compare import parts_table
 
-    out.write(_frame_text(parts_table(kind=args.kind)) + "\n" + _caution() + "\n")
+    out.write(frame_text(parts_table(kind=args.kind)) + "\n" + _caution() + "\n")
     return EXIT_OK
 
 
@@ -358,173 +365,6 @@ def _tqdm_progress(total):
     return tqdm(total=total, delay=2.0, unit="case", leave=False, file=sys.stderr)
 
 
-def _printable(text):
-    return "".join(c if c.isprintable() else "?" for c in str(text))
-
-
-def _cell_text(v):
-    """(text, is_number) of one table cell."""
-    import pandas as pd
-
-    if hasattr(v, "item") and not isinstance(v, str):
-        try:
-            v = v.item()
-        except (ValueError, AttributeError):
-            pass
-    if v is None or (not isinstance(v, str | bool) and pd.isna(v)):
-        return "", True
-    if isinstance(v, bool):
-        return ("yes" if v else "no"), False
-    if isinstance(v, int | float):
-        from rheoline.units import significant
-
-        return significant(v), True
-    return _printable(v), False
-
-
-def _frame_text(frame, width=None, caps=None):
-    """A plain-text table: text left-aligned, numbers right-aligned, blanks for missing
-    values; with ``width``, the widest text columns wrap within their cells to fit it, and a
-    text column named in ``caps`` wraps at that many characters."""
-    columns = [_printable(c) for c in frame.columns]
-    cells = [[_cell_text(v) for v in row] for row in frame.itertuples(index=False)]
-    numeric = [all(c[j][1] for c in cells) if cells else False for j in range(len(columns))]
-    widths = [max([len(columns[j])] + [len(c[j][0]) for c in cells]) for j in range(len(columns))]
-    widths = [min(w, (caps or {}).get(c, w)) for w, c in zip(widths, frame.columns, strict=True)]
-    if width is not None:
-        widths = _fitted_widths(widths, numeric, width)
-
-    def lines(texts):
-        wrapped = [
-            textwrap.wrap(t, w, break_long_words=True) or [""] if len(t) > w else [t]
-            for t, w in zip(texts, widths, strict=True)
-        ]
-        out = []
-        for k in range(max(len(w) for w in wrapped)):
-            parts = [
-                (w[k] if k < len(w) else "").rjust(n)
-                if num
-                else (w[k] if k < len(w) else "").ljust(n)
-                for w, n, num in zip(wrapped, widths, numeric, strict=True)
-            ]
-            out.append("  ".join(parts).rstrip())
-        return out
-
-    body = [line for c in cells for line in lines([t for t, _ in c])]
-    return "\n".join(lines(columns) + body)
-
-
-#: The narrowest a wrapped text column gets, the flags column, and the case column in a
-#: table fitted to the width [characters].
-_MIN_WRAP, _MIN_FLAGS, _MIN_CASE = 14, 24, 24
-
-
-def _fitted_widths(widths, numeric, width):
-    """Column widths within ``width`` (two spaces between columns): the widest text columns
-    give up characters first, none below :data:`_MIN_WRAP` (numbers never wrap)."""
-    widths = list(widths)
-    over = sum(widths) + 2 * (len(widths) - 1) - width
-    while over > 0:
-        text = [j for j, num in enumerate(numeric) if not num and widths[j] > _MIN_WRAP]
-        if not text:
-            break
-        j = max(text, key=lambda i: widths[i])
-        cut = min(over, widths[j] - _MIN_WRAP)
-        widths[j] -= cut
-        over -= cut
-    return widths
-
-
-#: The columns printed when --columns is not given, most wanted first (flows are matched by
-#: their start, since their unit is chosen); the others are added while they fit.
-_DEFAULT_COLUMNS = (
-    "case",
-    "flow [",
-    "source pressure [mmHg]",
-    "regime",
-    "dominant part (share)",
-    "flags",
-    "max wall shear [Pa]",
-    "flow p5-p95 [",
-    "deliver [min]",
-    "max Re",
-    "flow model band [",
-    "pressure model band [mmHg]",
-    "pressure p5-p95 [mmHg]",
-    "spread led by",
-    "model band led by",
-)
-
-
-def _columns(text):
-    """The --columns choice: None (fit the width), "all", or a list of names."""
-    if text is None:
-        return None
-    if text.strip().lower() == "all":
-        return "all"
-    return [name.strip() for name in text.split(",") if name.strip()]
-
-
-def _width(width):
-    """The table width: --width, else the terminal's, else 100 characters."""
-    if width is not None:
-        if width < 40:
-            raise _BadUsage(f"--width {width} is too narrow; give 40 or more characters")
-        return width
-    import shutil
-
-    return shutil.get_terminal_size((100, 24)).columns
-
-
-def _chosen(frame, names):
-    """The columns of ``frame`` named in ``names`` (each a whole name, a name less its unit,
-    or a unique start of a name; any case), after the case column."""
-    chosen = ["case"]
-    for name in names:
-        found = [c for c in frame.columns if c.lower().startswith(name.lower())]
-        # a whole name, or a name less its unit ("flow" for "flow [mL/h]")
-        exact = [c for c in found if name.lower() in (c.lower(), c.split(" [")[0].lower())]
-        if len(exact) == 1 or len(found) == 1:
-            column = (exact or found)[0]
-        else:
-            what = "matches several columns" if found else "is not a column"
-            raise _BadUsage(
-                f"--columns: {name!r} {what}; the columns are: {', '.join(frame.columns)}"
-            )
-        if column not in chosen:
-            chosen.append(column)
-    return frame[chosen]
-
-
-def _fitting(frame, width):
-    """The default columns that fit ``width``: the case, its flow and its flags always (the
-    flags wrap within their cell, at least :data:`_MIN_FLAGS` wide), then the others most
-    wanted first while they fit at their full width; the names of those left out; and the
-    case column's width (:func:`_case_width`)."""
-    wanted = [c for start in _DEFAULT_COLUMNS for c in frame.columns if c.startswith(start)]
-    wanted = list(dict.fromkeys(wanted))
-    always = [c for c in wanted[:2]] + ["flags"]
-
-    def natural(column):
-        return max([len(column)] + [len(_cell_text(v)[0]) for v in frame[column]])
-
-    case = _case_width(natural("case"), natural(always[1]), width)
-    budget = width - case - natural(always[1]) - 4 - _MIN_FLAGS
-    kept = set(always)
-    for column in wanted:
-        if column not in kept and natural(column) + 2 <= budget:
-            kept.add(column)
-            budget -= natural(column) + 2
-    order = [c for c in wanted if c in kept and c != "flags"] + ["flags"]
-    return frame[order], [c for c in frame.columns if c not in kept], {"case": case}
-
-
-def _case_width(case, flow, width):
-    """The case column's width: whole where the flow and the flags still fit beside it,
-    else what they leave (not below :data:`_MIN_CASE`; longer names wrap)."""
-    return max(min(case, width - flow - 4 - _MIN_FLAGS), _MIN_CASE)
-
-
 def format_run(run, reach=None, flow_unit="mL/min", columns=None, width=None) -> str:
     """The comparison table as printed by ``rheoline run``, with the caution above and below.
 
@@ -538,13 +378,13 @@ def format_run(run, reach=None, flow_unit="mL/min", columns=None, width=None) ->
     lines = [f"CAUTION: {_caution()}", ""]
     title = run.scenario_set.title
     if title:
-        lines += [_printable(title), ""]
+        lines += [printable(title), ""]
     frame, left_out, caps = run.summary(flow_unit), [], None
     if columns is None and width is not None:
-        frame, left_out, caps = _fitting(frame, width)
+        frame, left_out, caps = fitting(frame, width)
     elif columns not in (None, "all"):
-        frame = _chosen(frame, columns)
-    lines.append(_frame_text(frame, None if columns == "all" else width, caps))
+        frame = chosen(frame, columns)
+    lines.append(frame_text(frame, None if columns == "all" else width, caps))
     if left_out:
         lines += textwrap.wrap(
             f"(not printed, to fit {width} characters: {', '.join(left_out)}; choose with "
@@ -559,11 +399,11 @@ def format_run(run, reach=None, flow_unit="mL/min", columns=None, width=None) ->
         for name in dict.fromkeys(run.table["scenario"]):
             best = smallest_reaching(run.table, reach, scenario=name)
             if best.empty:
-                lines.append(f"  - {_printable(name)}: no case reaches it")
+                lines.append(f"  - {printable(name)}: no case reaches it")
             else:
                 row = best.iloc[0]
                 lines.append(
-                    f"  - {_printable(name)}: {_printable(row['case'])} "
+                    f"  - {printable(name)}: {printable(row['case'])} "
                     f"({significant(row['smallest bore [mm]'])} mm bore, "
                     f"{significant(row['flow [mL/min]'] * per)} {flow_unit})"
                 )
@@ -572,7 +412,7 @@ def format_run(run, reach=None, flow_unit="mL/min", columns=None, width=None) ->
             wrapped
             for w in run.warnings
             for wrapped in textwrap.wrap(
-                _printable(w), width or 100, initial_indent="  - ", subsequent_indent="    "
+                printable(w), width or 100, initial_indent="  - ", subsequent_indent="    "
             )
         ]
     lines += ["", f"CAUTION: {_caution()}"]
@@ -593,11 +433,11 @@ def main(argv=None) -> int:
             parser.print_help(out)
             return EXIT_BAD_INPUT
         if getattr(args, "out", None) is not None and not args.out.strip():
-            raise _BadUsage("--out is empty; give the name of a new folder, e.g. --out pack")
+            raise BadUsage("--out is empty; give the name of a new folder, e.g. --out pack")
         with warnings.catch_warnings(), interrupt_guard():
             warnings.simplefilter("ignore")  # results carry their flags; no warning text
             return args.func(args, out)
-    except _BadUsage as exc:
+    except BadUsage as exc:
         print(f"rheoline: error: {_one_line(exc)}", file=sys.stderr)
         return EXIT_BAD_INPUT
     except RheolineError as exc:

@@ -20,7 +20,7 @@ the file's keys (the fluid's name is the file's ``fluid``); :mod:`rheoline.scena
 says which group each key belongs to.
 
 A value built in code, not read from a file, may leave ``written`` as None; the writer then
-writes it in the field's unit.  :func:`rheoline.scenario.values.value_of` builds a value
+writes it in the field's unit.  :func:`rheoline.scenario.written_values.value_of` builds a value
 whose SI number is exactly what its written form reads back to.
 
 Examples

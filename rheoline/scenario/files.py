@@ -43,6 +43,7 @@ from rheoline.scenario.description import (
     Value,
     sweep_points,
 )
+from rheoline.scenario.field_listing import fields_table
 from rheoline.scenario.reading import (
     example_names,
     example_path,
@@ -70,9 +71,7 @@ from rheoline.scenario.schema import (
     SCENARIO_TOLERANCE_FIELDS,
     TOP_FIELDS,
     FieldSpec,
-    fields_table,
 )
-from rheoline.scenario.values import axis_of, value_of, width_of
 from rheoline.scenario.writing import (
     OutputError,
     check_output_folder,
@@ -81,6 +80,7 @@ from rheoline.scenario.writing import (
     save_scenarios,
     scenario_set_data,
 )
+from rheoline.scenario.written_values import axis_of, value_of, width_of
 
 __all__ = [
     "FORMAT_VERSION",

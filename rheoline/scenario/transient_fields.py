@@ -70,7 +70,8 @@ from rheoline.scenario.transient_spec import (
     RateChangeSpec,
     TransientSpec,
 )
-from rheoline.scenario.values import check_keys, check_text, parse_field, type_name, written_form
+from rheoline.scenario.values import check_keys, check_text, parse_field, type_name
+from rheoline.scenario.written_values import written_form
 
 __all__ = ["parse_transient", "check_transient", "transient_data", "port_data", "barrel_of"]
 

@@ -1,4 +1,4 @@
-"""Scenario-file values: one quantity, a list or a range table, to SI and back to text.
+"""Scenario-file values: one quantity, a list or a range table, to SI.
 
 :func:`parse_field` reads one field of a file (a scalar, or a list or range table when the
 field sweeps) into a :class:`~rheoline.scenario.description.Value` or
@@ -6,14 +6,13 @@ field sweeps) into a :class:`~rheoline.scenario.description.Value` or
 written.  Every problem raises one :class:`~rheoline.errors.ScenarioError` naming the file,
 the scenario and the dotted field path (:class:`Where` carries the first two).
 
-:func:`written_form` is the inverse for a value built in code: the text the writer puts in a
-file for an SI number; :func:`value_of` and :func:`axis_of` build values whose SI numbers
-are exactly what that text reads back to, so a description edited in code saves and loads
-to itself.
+:mod:`rheoline.scenario.written_values` holds the inverse for a value built in code
+(``written_form``, ``value_of``, ``axis_of``), so a description edited in code saves and
+loads to itself.
 
 Examples
 --------
->>> from rheoline.scenario.schema import SCENARIO_FIELDS
+>>> from rheoline.scenario.schema import SCENARIO_FIELDS, field_spec
 >>> at = Where("demo.toml", "'case'")
 >>> v = parse_field("80 cm", SCENARIO_FIELDS["head"], at, "head")
 >>> v.si, v.written
@@ -21,8 +20,6 @@ Examples
 >>> parse_field({"start": 14, "stop": 18, "step": 2}, field_spec("part[1].gauge", "catheter"),
 ...             at, "part[1].gauge").shown
 ('14G', '16G', '18G')
->>> value_of("head", 1.2)
-Value(si=1.2, written='1.2 m')
 """
 
 from __future__ import annotations
@@ -37,8 +34,8 @@ from typing import NoReturn
 from rheoline.errors import ScenarioError, UnitError
 from rheoline.model import catalogue
 from rheoline.scenario import schema
-from rheoline.scenario.description import Axis, FrozenMap, ToleranceWidth, Value
-from rheoline.scenario.schema import KIND_OF, FieldSpec, field_spec
+from rheoline.scenario.description import Axis, FrozenMap, Value
+from rheoline.scenario.schema import KIND_OF, FieldSpec
 from rheoline.scenario.unit_spellings import count_spelling
 from rheoline.units import parse_quantity, to_unit
 
@@ -46,10 +43,6 @@ __all__ = [
     "Where",
     "parse_field",
     "parse_scalar",
-    "written_form",
-    "value_of",
-    "axis_of",
-    "width_of",
     "shown",
     "type_name",
     "check_text",
@@ -554,70 +547,3 @@ def _check_range(si, raw, spec, at, path):
     if isinstance(raw, (int, float)) and unit and si > high:
         msg += f"; a bare number is read in {unit}, write the unit if you meant another"
     at.fail(msg, path)
-
-
-# --------------------------------------------------------------------------- back to text
-def written_form(spec: FieldSpec, si):
-    """What a file holds for the SI value ``si`` of a field of ``spec``.
-
-    Names, gauges and plain numbers as they are; fractions as numbers; quantities in the
-    field's unit with 12 significant digits (``"80 cm"`` style); a list of quantities as a
-    list.
-
-    >>> from rheoline.scenario.schema import SCENARIO_FIELDS
-    >>> from rheoline.units import MMHG
-    >>> written_form(SCENARIO_FIELDS["source_pressure"], 300 * MMHG)
-    '300 mmHg'
-    """
-    if spec.kind == "quantity_list":
-        element = FieldSpec(spec.element_kind, spec.unit)
-        return [written_form(element, v) for v in si]
-    if spec.kind == "temperature_delta":
-        return f"{float(si):.12g} degC"
-    if spec.kind == "tolerance_value":
-        kind, width = si
-        if kind == "relative":
-            return f"{width * 100:.12g} %"
-        return f"{float(to_unit(width, spec.unit, 'length')):.12g} {spec.unit}"
-    kind = KIND_OF.get(spec.kind)
-    if kind and spec.unit:
-        return f"{float(to_unit(si, spec.unit, kind)):.12g} {spec.unit}"
-    return si
-
-
-def value_of(path: str, si, part_type: str | None = None) -> Value:
-    """A :class:`Value` of the field at ``path`` from its SI value, as the writer writes it.
-
-    The SI number is the one its written form reads back to, and it is checked against the
-    field's range (a :class:`ScenarioError` naming the field otherwise).
-
-    >>> value_of("part[1].inner_diameter", 1.1e-3, "tube")
-    Value(si=0.0011, written='1.1 mm')
-    """
-    spec = field_spec(path, part_type)
-    written = written_form(spec, si)
-    return Value(parse_scalar(written, spec, Where("<code>"), path), _frozen_list(written))
-
-
-def axis_of(path: str, values, part_type: str | None = None) -> Axis:
-    """An :class:`Axis` of the field at ``path`` sweeping the SI ``values`` (a list as the
-    writer writes it)."""
-    spec = field_spec(path, part_type)
-    written = [written_form(spec, v) for v in values]
-    axis = parse_field(written, spec, Where("<code>"), path)
-    if not isinstance(axis, Axis):
-        raise ScenarioError("does not sweep; give one value", field=path)
-    return axis
-
-
-def width_of(path: str, kind: str, width: float) -> ToleranceWidth:
-    """A part's :class:`ToleranceWidth` (``kind`` "relative" or "absolute" [m]) as the writer
-    writes it, e.g. ``width_of("part[2].tolerance.inner_diameter", "relative", 0.05)``."""
-    spec = field_spec(path)
-    written = written_form(spec, (kind, width))
-    parsed_kind, parsed = parse_scalar(written, spec, Where("<code>"), path)
-    return ToleranceWidth(parsed_kind, parsed, written)
-
-
-def _frozen_list(written):
-    return tuple(written) if isinstance(written, list) else written

@@ -2,7 +2,7 @@
 
 The writer serializes a :class:`~rheoline.scenario.description.ScenarioSet` field by field,
 in the order of :mod:`rheoline.scenario.schema`, each value as it was written (or, for a
-value built in code, in its field's unit: :func:`rheoline.scenario.values.written_form`).
+value built in code, in its field's unit: :func:`rheoline.scenario.written_values.written_form`).
 Reading what it writes gives an equal description: ``load -> dump -> load`` is the identity.
 
 :func:`save_scenarios` writes atomically (a temporary file, then a rename) and never
@@ -36,7 +36,7 @@ from rheoline.scenario.schema import (
     SCENARIO_TOLERANCE_FIELDS,
 )
 from rheoline.scenario.transient_fields import transient_data
-from rheoline.scenario.values import written_form
+from rheoline.scenario.written_values import written_form
 
 __all__ = [
     "OutputError",

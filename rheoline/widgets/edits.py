@@ -194,7 +194,7 @@ def without_points(scenario, path: str, indices):
 
     The remaining values are written as a list (a range table cannot skip values).
     """
-    from rheoline.scenario.values import written_form
+    from rheoline.scenario.written_values import written_form
 
     part_type = scenario.parts[int(path[5 : path.index("]")]) - 1].type if "[" in path else None
     axis = scenario.field(path)

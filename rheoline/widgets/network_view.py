@@ -14,7 +14,7 @@ outlets and the flags.
 
 The view edits one :class:`~rheoline.scenario.description.Scenario` (its topology is the
 description's): each control replaces one field through the scenario layer
-(:meth:`Scenario.with_field` with :func:`rheoline.scenario.values.value_of`; the parts
+(:meth:`Scenario.with_field` with :func:`rheoline.scenario.written_values.value_of`; the parts
 editor one branch's parts, :meth:`TopologySpec.with_branch_parts`), the edited
 set is checked by the reader (:func:`~rheoline.scenario.reading.parse_scenarios`) and run
 by :func:`~rheoline.scenario.run.run_scenarios`; no physics here.  A swept scenario is
@@ -317,7 +317,7 @@ class NetworkView(View):
     # -- edits of the description ------------------------------------------------------
     def _edit_fluid(self, name):
         from rheoline.model.fluids import FLUID_LIBRARY
-        from rheoline.scenario.values import value_of
+        from rheoline.scenario.written_values import value_of
 
         c = self.controls
         fluid = c["fluid"].value
@@ -336,7 +336,7 @@ class NetworkView(View):
         self._apply(lambda sc: replace(sc, topology=sc.topology.with_branch_parts(index, parts)))
 
     def _edit_node(self, name):
-        from rheoline.scenario.values import value_of
+        from rheoline.scenario.written_values import value_of
 
         i = int(name[5 : name.index("]")])
         node = self.scenario.topology.nodes[i - 1]
