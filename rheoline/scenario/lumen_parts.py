@@ -25,14 +25,12 @@ Examples
 
 from __future__ import annotations
 
-import difflib
-
 import numpy as np
 
 from rheoline.model import catalogue
 from rheoline.model.shapes import LUMEN_SHAPES
 from rheoline.scenario.description import Axis
-from rheoline.scenario.values import shown
+from rheoline.scenario.values import fail_unknown
 
 __all__ = ["SHAPE_DIMENSIONS", "LUMEN_PART_TYPES", "check_part", "build_lumen_part"]
 
@@ -85,7 +83,7 @@ def _check_shape(values, at, prefix):
     shape = values["shape"].si
     if shape not in SHAPE_DIMENSIONS:
         after = " (a circular lumen gives inner_diameter instead)"
-        _choice_fail(at, prefix + "shape", "shape", shape, list(SHAPE_DIMENSIONS), after=after)
+        fail_unknown(at, prefix + "shape", "shape", shape, list(SHAPE_DIMENSIONS), after=after)
     if "inner_diameter" in values:
         at.fail(
             f"{_a(shape)} lumen is given by its dimensions "
@@ -119,23 +117,15 @@ def _a(word):
     return f"{'an' if word[0] in 'aeiou' else 'a'} {word}"
 
 
-def _choice_fail(at, path, what, value, allowed, of="", after=""):
-    """Fail with "unknown <what> '<value>'<of>; did you mean '...'? Allowed: ...<after>"."""
-    near = difflib.get_close_matches(str(value), [str(a) for a in allowed], n=1, cutoff=0.5)
-    hint = f"; did you mean '{near[0]}'?" if near else "."
-    listed = ", ".join(map(str, allowed))
-    at.fail(f"unknown {what} '{shown(value)}'{of}{hint} Allowed: {listed}{after}", path)
-
-
 def _check_multi_lumen(values, at, prefix):
     table = catalogue.MULTI_LUMEN_CATHETERS
     for kind in _names(values["kind"]):
         if kind not in table:
-            _choice_fail(at, prefix + "kind", "multi-lumen catheter", kind, list(table))
+            fail_unknown(at, prefix + "kind", "multi-lumen catheter", kind, list(table))
         lumens = table[kind]["lumens"]
         for lumen in _names(values["lumen"]):
             if lumen not in lumens:
-                _choice_fail(at, prefix + "lumen", "lumen", lumen, list(lumens), f" of the {kind}")
+                fail_unknown(at, prefix + "lumen", "lumen", lumen, list(lumens), f" of the {kind}")
 
 
 def _check_central_line(values, at, prefix):
@@ -155,7 +145,7 @@ def _check_central_line(values, at, prefix):
             for lumen in _names(values["lumen"]):
                 if lumen not in table[key]:
                     of = f" of the {french:g} Fr {count}-lumen central line"
-                    _choice_fail(at, prefix + "lumen", "lumen", lumen, list(table[key]), of)
+                    fail_unknown(at, prefix + "lumen", "lumen", lumen, list(table[key]), of)
 
 
 # --------------------------------------------------------------------------- builders

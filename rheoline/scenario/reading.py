@@ -86,6 +86,7 @@ from rheoline.scenario.values import (
     Where,
     check_keys,
     check_text,
+    fail_unknown,
     parse_field,
     shown,
     type_name,
@@ -439,10 +440,8 @@ def _part_type(raw, prefix, at):
     ptype = raw["type"]
     if not isinstance(ptype, str) or ptype.strip().lower() not in PART_FIELDS:
         text = shown(ptype) if isinstance(ptype, str) else type_name(ptype)
-        near = difflib.get_close_matches(str(ptype).lower(), PART_TYPES, n=1, cutoff=0.6)
-        hint = f"; did you mean '{near[0]}'?" if near else ""
-        at.fail(
-            f"unknown part type '{text}'{hint} Allowed: {', '.join(PART_TYPES)}", prefix + "type"
+        fail_unknown(
+            at, prefix + "type", "part type", text, PART_TYPES, cutoff=0.6, match=str(ptype).lower()
         )
     return ptype.strip().lower()
 
@@ -496,9 +495,7 @@ def _check_catalogue(ptype, values, at, prefix):
         if v in table:
             continue
         if ptype == "set":
-            near = difflib.get_close_matches(str(v), list(table), n=1, cutoff=0.5)
-            hint = f"; did you mean '{near[0]}'?" if near else ""
-            at.fail(f"unknown set '{shown(v)}'{hint} Allowed: {', '.join(table)}", prefix + key)
+            fail_unknown(at, prefix + key, "set", v, list(table))
         allowed = ", ".join(f"{g}G" for g in table)
         extra = " or give inner_diameter and length for another size" if ptype == "catheter" else ""
         at.fail(f"gauge {v} is not in the {ptype} catalogue ({allowed}){extra}", prefix + key)

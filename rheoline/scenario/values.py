@@ -136,12 +136,19 @@ def check_keys(table, allowed, at: Where, prefix, what="key"):
     """Refuse a key of ``table`` that is not in ``allowed``, with the nearest allowed one."""
     for key in table:
         if key not in allowed:
-            near = difflib.get_close_matches(key, list(allowed), n=1, cutoff=0.6)
-            hint = f"; did you mean '{near[0]}'?" if near else ""
-            at.fail(
-                f"unknown {what} '{shown(key)}'{hint} Allowed: {', '.join(allowed)}",
-                f"{prefix}{shown(key)}",
-            )
+            fail_unknown(at, f"{prefix}{shown(key)}", what, key, allowed, cutoff=0.6)
+
+
+def fail_unknown(at: Where, path, what, value, allowed, of="", after="", cutoff=0.5, match=None):
+    """Fail with "unknown <what> '<value>'<of>; did you mean '...'? Allowed: ...<after>.".
+
+    ``match`` is the text compared with ``allowed`` for the hint (default ``value``);
+    without a near name the sentence ends at the value.
+    """
+    names = [str(a) for a in allowed]
+    near = difflib.get_close_matches(str(value if match is None else match), names, 1, cutoff)
+    hint = f"; did you mean '{near[0]}'?" if near else "."
+    at.fail(f"unknown {what} '{shown(value)}'{of}{hint} Allowed: {', '.join(names)}{after}.", path)
 
 
 # --------------------------------------------------------------------------- fields
@@ -308,9 +315,7 @@ def _choice(value, spec, at, path):
     if name == "wall":
         walls = catalogue.NEEDLE_WALLS
         if value.lower() not in walls:
-            near = difflib.get_close_matches(value.lower(), walls, n=1, cutoff=0.5)
-            hint = f"; did you mean '{near[0]}'?" if near else ""
-            at.fail(f"unknown wall type '{shown(value)}'{hint} Allowed: {', '.join(walls)}", path)
+            fail_unknown(at, path, "wall type", value, walls, match=value.lower())
         return value.lower()
     if name == "fluid":
         _check_fluid(value, at, path)
@@ -326,13 +331,7 @@ def _blood_model(value, at, path):
 
     key = value.lower()
     if key not in BLOOD_RHEOLOGY_MODELS:
-        near = difflib.get_close_matches(key, list(BLOOD_RHEOLOGY_MODELS), n=1, cutoff=0.5)
-        hint = f"; did you mean '{near[0]}'?" if near else ""
-        at.fail(
-            f"unknown blood model '{shown(value)}'{hint} Allowed: "
-            f"{', '.join(BLOOD_RHEOLOGY_MODELS)}",
-            path,
-        )
+        fail_unknown(at, path, "blood model", value, list(BLOOD_RHEOLOGY_MODELS), match=key)
     return key
 
 
@@ -441,12 +440,15 @@ def _check_fluid(value, at, path):
 
     names = fluid_names()
     if value.strip().lower().replace("_", "-").replace(" ", "-") not in names:
-        near = difflib.get_close_matches(value.lower(), names, n=1, cutoff=0.6)
-        hint = f"; did you mean '{near[0]}'?" if near else ""
-        at.fail(
-            f"unknown fluid '{shown(value)}'{hint} Allowed: {', '.join(names)} "
-            "(see `rheoline fluids`)",
+        fail_unknown(
+            at,
             path,
+            "fluid",
+            value,
+            names,
+            after=" (see `rheoline fluids`)",
+            cutoff=0.6,
+            match=value.lower(),
         )
 
 
