@@ -85,15 +85,32 @@ def _target_section(result: ValidationResult) -> Section:
         for t in result.targets
     ]
     verdict = "All targets with data are met." if result.passed else "A target is NOT met."
+    untargeted = [
+        [key, _family(result, key), *_stats_cells(s)] for key, s in result.untargeted.items()
+    ]
+    tables = [(["target", "rows", "median abs. error", "max abs. error", "limits", "status"], rows)]
+    if untargeted:
+        tables.append(
+            (
+                ["held-out data set (no target)", "family", "rows", "median abs. error"]
+                + ["max abs. error", "median error"],
+                untargeted,
+            )
+        )
     return Section(
         "Stated accuracy",
         [
             verdict + " Errors are relative: (predicted - measured) / measured, over rows "
             "that were predicted and are not recalled.  'no data' means no packaged "
-            "measurement covers the target: the toolkit's accuracy there is unvalidated."
+            "measurement covers the target: the toolkit's accuracy there is unvalidated.  "
+            "Held-out rows no target covers are listed after the targets: shown, not judged."
         ],
-        [(["target", "rows", "median abs. error", "max abs. error", "limits", "status"], rows)],
+        tables,
     )
+
+
+def _family(result: ValidationResult, key: str) -> str:
+    return next(d.source.family for d in result.datasets if d.key == key)
 
 
 def _dataset_section(result: ValidationResult) -> Section:
@@ -415,6 +432,11 @@ def summary_text(result: ValidationResult, written=()) -> str:
             else "no packaged data"
         )
         lines.append(f"  [{t.status:>7}] {t.target.description}: {numbers}")
+    for key, s in result.untargeted.items():
+        lines.append(
+            f"  [no target] held-out {key} ({_family(result, key)}): {s.n} rows, "
+            f"median error {_pct(s.median_error)}, max {_pct(s.max_abs_error)} (shown, not judged)"
+        )
     lines.append("All targets with data are met." if result.passed else "A target is NOT met.")
     if written:
         lines.append(f"Report: {Path(written[1])} (summary: {Path(written[0]).name})")

@@ -172,6 +172,23 @@ class ValidationResult:
         """False when any target with data is not met."""
         return all(t.status != "not met" for t in self.targets)
 
+    @property
+    def untargeted(self) -> dict:
+        """``{data set: ErrorStats}`` of held-out rows (role "test") no target covers.
+
+        No stated accuracy judges them, so the summary prints their error beside the
+        targets instead of letting a large one pass unseen.
+        """
+        rows = _row_index(self.datasets)
+        roles = {d.key: d.source.role for d in self.datasets}
+        chosen = [
+            p
+            for p in _counted(rows, [p for p in self.predictions if p.default])
+            if roles[p.dataset] == "test"
+            and not any(t.selects(rows[(p.dataset, p.row)]) for t in TARGETS)
+        ]
+        return group_stats(chosen, lambda p: (p.dataset,))
+
     def row(self, prediction: Prediction) -> Row:
         """The row a prediction belongs to."""
         return _row_index(self.datasets)[(prediction.dataset, prediction.row.split("/")[0])]
