@@ -12,8 +12,8 @@ that Reynolds number, and the laminar friction is the shape's own constant
 
 which is exact for fully developed laminar flow of a Newtonian fluid.  The constants are
 those of Shah & London (1978): closed forms where a closed form exists (the concentric
-annulus), the exact series of the rectangle and of the eccentric annulus, and the tabulated
-value of the semicircle (a "D-shaped" lumen).
+annulus and the semicircle, a "D-shaped" lumen), and the exact series of the rectangle and of
+the eccentric annulus.
 
 Shapes (frozen dataclasses, dimensions [m], arrays allowed for sweeps)
     :class:`Circle` (diameter), :class:`Semicircle` (the D: diameter of its flat side),
@@ -58,10 +58,17 @@ __all__ = [
 
 #: Fanning f Re of fully developed laminar flow in a circle (Hagen-Poiseuille).
 CIRCLE_F_RE = 16.0
-#: Fanning f Re of a semicircular duct on its hydraulic diameter; Shah & London 1978, table
-#: of circular sector ducts (sector angle 180 deg); from memory (a finite-difference solution
-#: in the tests agrees to 0.1 %).
-SEMICIRCLE_F_RE = 15.767
+#: Fanning f Re of a semicircular duct on its hydraulic diameter, exact:
+#: :math:`8\pi^4/((\pi+2)^2(\pi^2-8)) = 15.76683...`.  Derivation: on the half disc of
+#: radius a (flat side y = 0), :math:`w = -y^2/2 + \sum_{n\ odd} c_n r^n \sin n\theta`
+#: solves :math:`\nabla^2 w = -1` with w = 0 on the flat side, and the :math:`c_n` (the sine
+#: series of :math:`\sin^2\theta` on the arc) give the flow
+#: :math:`Q = a^4(\pi/8 - 1/\pi)` (G/mu = 1), so the mean velocity is
+#: :math:`a^2(1/4 - 2/\pi^2)` and :math:`f Re = D_h^2/(2\bar u)` with
+#: :math:`D_h = 2\pi a/(\pi + 2)`.  Shah & London 1978 tabulate 15.767 for the 180 deg
+#: circular sector (from memory); the tests check the series summed term by term and a
+#: finite-difference solution of the same duct.
+SEMICIRCLE_F_RE = 8.0 * np.pi**4 / ((np.pi + 2.0) ** 2 * (np.pi**2 - 8.0))
 
 # Largest eccentricity evaluated by the series: a core that touches the wall (eccentricity 1)
 # is the limit, reached within 1e-8 relative at 1 - 1e-6 (the series needs ~1e4 terms there).
@@ -333,14 +340,14 @@ class Circle(_RoundShape):
 class Semicircle(_RoundShape):
     """A D-shaped lumen: half a circle of ``diameter`` (the flat side's length) [m].
 
-    The wetted perimeter is the arc and the flat side; f Re = 15.767 (Shah & London 1978,
-    from memory).
+    The wetted perimeter is the arc and the flat side; f Re = 15.7668 (the exact value
+    :data:`SEMICIRCLE_F_RE`; Shah & London 1978 tabulate 15.767, from memory).
 
     Examples
     --------
     >>> d = Semicircle(2e-3)
-    >>> round(d.hydraulic_diameter * 1e3, 4), d.laminar_f_re
-    (1.222, 15.767)
+    >>> round(d.hydraulic_diameter * 1e3, 4), round(d.laminar_f_re, 4)
+    (1.222, 15.7668)
     """
 
     key = "d-shaped"
