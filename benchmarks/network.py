@@ -14,7 +14,11 @@ largest relative difference of the branch flows.
 
 from __future__ import annotations
 
+import argparse
+import json
+import sys
 import time
+from pathlib import Path
 
 import numpy as np
 from scipy.optimize import root
@@ -22,6 +26,9 @@ from scipy.optimize import root
 import rheoline
 from rheoline.model.branched import Branch, PartNetwork, PressureNode, Pump
 from rheoline.model.parts import Catheter, Tube
+
+sys.path.insert(0, str(Path(__file__).resolve().parent))
+from timing import load_average, machine  # noqa: E402
 
 SEED = 20261217
 HEADS = (0.5, 1.5)  # [m]
@@ -112,3 +119,24 @@ def run(n, repeats=3, subset_scale=1.0):
         "max_relative_difference": diff,
         "agree": bool(diff < 1e-6 and result.converged),
     }
+
+
+def main(argv=None):
+    """Run the case alone and print one JSON object (with the machine and its load)."""
+    parser = argparse.ArgumentParser(description=__doc__.splitlines()[0])
+    parser.add_argument("--n", type=int, default=100_000, help="scenarios solved together")
+    parser.add_argument("--repeats", type=int, default=3, help="vectorized solves (median)")
+    parser.add_argument(
+        "--subset-scale", type=float, default=1.0, help="scale the scipy loop's timed subset"
+    )
+    args = parser.parse_args(argv)
+    before = load_average()
+    report = run(args.n, args.repeats, args.subset_scale)
+    report = {"machine": machine(), "load_average_before": before, **report}
+    report["load_average_after"] = load_average()
+    print(json.dumps(report, indent=1))
+    return 0 if report["agree"] else 1
+
+
+if __name__ == "__main__":  # pragma: no cover
+    sys.exit(main())

@@ -1,5 +1,10 @@
 """Branched lines (model/branched.py): Kirchhoff networks of parts with nonlinear laws."""
 
+import json
+import subprocess
+import sys
+from pathlib import Path
+
 import numpy as np
 import pytest
 
@@ -206,3 +211,20 @@ def test_topology_errors_name_what_is_wrong():
         PartNetwork([Branch("a", "x", "out", tube)], [out, PressureNode("x", pressure=1e3)]).solve(
             paste
         )
+
+
+def test_network_benchmark_runs_alone_and_agrees_with_scipy():
+    # benchmarks/network.py on its own at a tiny N: one JSON object with the machine's load,
+    # the solve's counts and the per-scenario scipy.optimize.root reference agreeing
+    script = Path(__file__).resolve().parents[1] / "benchmarks" / "network.py"
+    out = subprocess.run(
+        [sys.executable, str(script), "--n", "40", "--repeats", "1", "--subset-scale", "0.05"],
+        capture_output=True,
+        text=True,
+        timeout=300,
+        check=True,
+    ).stdout
+    report = json.loads(out)
+    assert report["n"] == 40 and report["branches"] == 4 and report["agree"]
+    assert report["max_relative_difference"] < 1e-6 and report["residual_passes"] >= 1
+    assert {"machine", "load_average_before", "load_average_after"} <= set(report)
