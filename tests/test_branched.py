@@ -127,6 +127,54 @@ def test_pump_pushes_back_into_the_bag_exactly_when_the_junction_exceeds_the_bag
     assert np.any(shut)
     np.testing.assert_allclose(valved.branch_flow[1][shut], valved.branch_flow[2][shut], rtol=1e-12)
     assert any("check valve in branch gravity set closed" in f for f in valved.flags)
+    assert not np.any(valved.conditions["pump_blocked"]) and valved.converged
+
+
+def test_a_check_valve_closed_against_a_pump_is_an_occlusion_not_a_solution():
+    # The pump line's check valve fitted the wrong way round: the set flow has no way out,
+    # so no flows balance it (the pump's pressure would rise to its alarm).  Those scenarios
+    # are marked, not reported as a backflow; at zero pump flow the valve is simply shut and
+    # the bag feeds the catheter as if the pump line were not there.
+    bag_line = Tube(inner_diameter=3e-3, length=1.5)
+    catheter = Catheter(gauge=22)
+    net = PartNetwork(
+        [
+            Branch("gravity set", "bag", "y-site", [bag_line]),
+            Branch(
+                "pump line",
+                "y-site",
+                "pump",
+                [Tube(inner_diameter=1e-3, length=1.0), CheckValve(k=2.0)],
+            ),
+            Branch("catheter", "y-site", "vein", [catheter]),
+        ],
+        [PressureNode("bag", head=0.8), PressureNode("vein", pressure=800.0, outlet=True)],
+        [Pump("pump", flow=np.array([0.0, 5.0, 60.0]) * ML_MIN, label="syringe pump")],
+    )
+    result = net.solve(WATER)
+    assert result.conditions["pump_blocked"].tolist() == [False, True, True]
+    assert result.conditions["not_converged"].tolist() == [False, True, True]
+    assert not result.converged and not np.any(result.reversed)
+    assert not np.any(result.conditions["backflow_into_source"])
+    assert result.node_conditions["blocked"][result.node_names.index("pump")].tolist() == [
+        False,
+        True,
+        True,
+    ]
+    assert (
+        "the set flow of syringe pump has no open way out: the check valve in branch pump line "
+        "is closed against it" in " | ".join(result.flags)
+    )
+    assert not any("did not converge" in f or "back into" in f for f in result.flags)
+    alone = PartNetwork(
+        [
+            Branch("gravity set", "bag", "y-site", [bag_line]),
+            Branch("c", "y-site", "vein", catheter),
+        ],
+        [PressureNode("bag", head=0.8), PressureNode("vein", pressure=800.0, outlet=True)],
+    ).solve(WATER)
+    assert result.branch_flow[0, 0] == pytest.approx(alone.branch_flow[0], rel=1e-9)
+    assert result.branch_flow[1, 0] == 0.0
 
 
 def test_mass_balance_at_every_node_and_vectorized_equals_scalar():

@@ -315,6 +315,25 @@ def test_ward_example_reports_backflow_into_the_bag_in_words_and_data():
     assert valved["flow [mL/min]"] == pytest.approx(25.0, rel=1e-12)  # all of the pump's flow
 
 
+def test_a_check_valve_against_the_pump_is_flagged_as_an_occlusion():
+    valve_back = 'type = "tube"\ninner_diameter = "1 mm"\nlength = "1 m"\n' + (
+        '[[scenario.branch.part]]\ntype = "check-valve"\nk = 4.0\n'
+    )
+    sset = load(
+        BAG,
+        VEIN,
+        node("pump", "pump", flow="60 mL/h"),
+        node("y", "junction"),
+        branch("gravity", "bag", "y"),
+        branch("pump line", "y", "pump", valve_back),
+        branch("catheter", "y", "vein"),
+    )
+    row = run(sset).table.iloc[0]
+    assert "pump occluded: a check valve is closed against its set flow" in row["flags"]
+    assert "not converged" not in row["flags"] and "pushed back" not in row["flags"]
+    assert row["reversed flow [mL/min]"] == 0
+
+
 def test_sweep_points_equal_single_scenarios_and_balance_mass():
     text = HEAD + "".join(
         [

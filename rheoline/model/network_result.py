@@ -18,6 +18,9 @@ __all__ = ["NetworkResult", "NETWORK_MODELS"]
 #: Provenance keys this module's solve adds to those of the lines' own models.
 NETWORK_MODELS = ("kirchhoff-1847", "todini-pilati-1988")
 _ML_MIN = 6e7  # m^3/s -> mL/min
+#: A node whose flows miss its balance by more than this share of the scenario's largest flow
+#: holds a pump's set flow with no open way out (a converged solve balances to ~1e-15).
+_BLOCKED = 1e-9
 
 
 def _scalar(value):
@@ -64,9 +67,15 @@ class NetworkResult:
     conditions : dict
         Scenario-shaped boolean arrays: ``reversed_flow`` (some branch), ``backflow_into_source``
         (some bag or reservoir takes fluid in), ``check_valve_closed``, ``over_pressure_limit``
-        (some pump), ``not_converged``.
+        (some pump), ``pump_blocked`` (a pump's set flow has no open way out: every path
+        from its node is shut by a check valve closed against it, an occlusion whose
+        pressure has no finite answer; these scenarios' flows are not a solution, so they
+        report no reversed flow and count as ``not_converged``), ``not_converged``.
     branch_conditions : dict
         (n_branches, *scenario_shape) boolean arrays ``reversed`` and ``closed``.
+    node_conditions : dict
+        (n_nodes, *scenario_shape) boolean array ``blocked``: the node where a pump's set
+        flow finds no open way out.
     iterations : int
         Newton (gradient-method) steps taken.
     residual_passes : int
@@ -89,6 +98,7 @@ class NetworkResult:
     pump_pressure: np.ndarray
     conditions: dict
     branch_conditions: dict
+    node_conditions: dict
     iterations: int
     residual_passes: int
     converged: bool
@@ -109,10 +119,14 @@ class NetworkResult:
         # a flow within rounding of zero (1e-12 of its scenario's largest) has no sign: it
         # is zero (a pump branch at zero pump flow comes out of the linear solve as +-1e-23)
         flows = np.where(np.abs(flows) <= 1e-12 * scale, 0.0, flows)
-        reversed_ = (flows < 0.0) & ~closed
         inflow = np.tensordot(topo.a_fixed.T, flows, axes=(1, 0))  # into the network
         balance = np.tensordot(topo.a_free.T, flows, axes=(1, 0)) - topo.injection(shape)
         imbalance = float(np.max(np.abs(balance) / scale)) if len(topo.free_nodes) else 0.0
+        stuck_at = np.zeros((len(topo.nodes), *shape), bool)
+        for row, node in enumerate(topo.free_nodes):
+            stuck_at[topo.nodes.index(node)] = np.abs(balance[row]) > _BLOCKED * scale
+        blocked = np.any(stuck_at, axis=0)
+        reversed_ = (flows < 0.0) & ~closed & ~blocked
         pump_p = np.stack(
             [nodes_p[topo.nodes.index(p.node)] for p in topo.pumps] or [np.zeros((0,))]
         )
@@ -126,10 +140,11 @@ class NetworkResult:
         is_source = is_source.reshape((-1,) + (1,) * len(shape))
         conditions = {
             "reversed_flow": np.any(reversed_, axis=0),
-            "backflow_into_source": np.any(is_source & (inflow < 0.0), axis=0),
+            "backflow_into_source": np.any(is_source & (inflow < 0.0), axis=0) & ~blocked,
             "check_valve_closed": np.any(closed, axis=0),
             "over_pressure_limit": over,
-            "not_converged": ~np.asarray(done, bool),
+            "pump_blocked": blocked,
+            "not_converged": ~np.asarray(done, bool) | blocked,
         }
         return cls(
             node_names=topo.nodes,
@@ -143,9 +158,10 @@ class NetworkResult:
             pump_pressure=pump_p,
             conditions=conditions,
             branch_conditions={"reversed": reversed_, "closed": np.asarray(closed, bool)},
+            node_conditions={"blocked": stuck_at},
             iterations=int(iters),
             residual_passes=int(passes),
-            converged=bool(np.all(done)),
+            converged=bool(np.all(done & ~blocked)),
             max_imbalance=imbalance,
             models_used=NETWORK_MODELS,
             network=network,
@@ -201,7 +217,7 @@ def _backflow_flags(result):
             if node.node not in (branch.start, branch.end):
                 continue
             into = -result.branch_flow[b] if branch.start == node.node else result.branch_flow[b]
-            mask = into > 0.0
+            mask = (into > 0.0) & ~result.conditions["pump_blocked"]
             if not np.any(mask):
                 continue
             told.add(b)
@@ -230,10 +246,26 @@ def _other_flags(result):
                 f"check valve in branch {branch.name} closed: it holds back flow from "
                 f"{branch.end} to {branch.start}{_in_scenarios(mask)}"
             )
+    blocked = result.conditions["pump_blocked"]
+    if np.any(blocked):
+        network = result.network
+        ends = dict(zip(result.node_names, result.node_conditions["blocked"], strict=True))
+        shut = [
+            b.name
+            for k, b in enumerate(network.branches)
+            if np.any(result.closed[k] & (ends[b.start] | ends[b.end]))
+        ]
+        where = f"the check valve in branch {', '.join(shut)} is" if shut else "check valves are"
+        pumps = " and ".join(p.label for p in network.topology.pumps)
+        out.append(
+            f"the set flow of {pumps} has no open way out: {where} closed against it (an "
+            "occlusion: the pump's pressure rises to its alarm); the flows are not a "
+            f"solution{_in_scenarios(blocked)}"
+        )
     over = result.conditions["over_pressure_limit"]
     if np.any(over):
         out.append(f"a pump's pressure exceeds its pressure limit{_in_scenarios(over)}")
-    stuck = result.conditions["not_converged"]
+    stuck = result.conditions["not_converged"] & ~result.conditions["pump_blocked"]
     if np.any(stuck):
         out.append(
             f"the network solve did not converge{_in_scenarios(stuck)}; its flows are the last "

@@ -14,8 +14,8 @@ call of :meth:`rheoline.model.branched.PartNetwork.solve`, in these steps:
     pressure limit``; ``reversed flow [mL/min]`` and ``reversed branch``: the largest flow
     against a branch's from -> to direction and its branch (0 and "" when none); the
     conditions ``backflow_into_source``, ``reversed_flow``, ``check_valve_closed``,
-    ``over_pressure_limit``, ``not_converged`` and ``no_forward_flow`` from the result's
-    arrays.
+    ``pump_blocked``, ``over_pressure_limit``, ``not_converged`` and ``no_forward_flow`` from
+    the result's arrays.
 ``branches`` (each branch's :class:`~rheoline.model.line.Line` at its solved flow, the
 reversed line where the flow runs backwards)
     ``max Reynolds number``, ``regime``, ``dominant part`` (the part with the largest drop
@@ -238,10 +238,10 @@ class NetworkGroupRun:
             topo.branches[w].name if a > 0 else "" for w, a in zip(worst, amount, strict=True)
         ]
         cond = self.conditions
-        for key in ("backflow_into_source", "reversed_flow", "check_valve_closed"):
+        for key in ("backflow_into_source", "reversed_flow", "check_valve_closed", "pump_blocked"):
             cond[key] = res.conditions[key].reshape(n)
         cond["over_pressure_limit"] = over & bool(limits)
-        cond["not_converged"] = res.conditions["not_converged"].reshape(n)
+        cond["not_converged"] = res.conditions["not_converged"].reshape(n) & ~cond["pump_blocked"]
         cond["no_forward_flow"] = ~(total > 0) if outlets else np.zeros(n, bool)
         self.inflow = inflow
 
