@@ -33,6 +33,7 @@ import math
 __all__ = [
     "EVIDENCE_COLUMNS",
     "PART_KIND_MODELS",
+    "TESTED",
     "evidence_table",
     "evidence_html",
 ]
@@ -81,13 +82,21 @@ def _percent(value):
 
 
 def _status(stats, roles):
-    """ "validated" (some independent data), "fit only" (only data a default was fitted
-    to) or "unvalidated" (no packaged measurement)."""
+    """ "tested" (some independent data), "fit only" (only data a default was fitted
+    to) or "unvalidated" (no packaged measurement).
+
+    "Tested" says that independent data exist, not that the errors are small: the row's
+    error columns say how close the model came (5 % albumin, say, is tested and 29 % low).
+    """
     if not stats.validated:
         return _UNVALIDATED
     if all(roles.get(d) == "fit" for d in stats.datasets):
         return "fit only: the error on the data it was fitted to, no independent test"
-    return "validated"
+    return TESTED
+
+
+#: The status of a row with independent data; how close it came is in its error columns.
+TESTED = "tested on independent data: read its errors"
 
 
 def _row(subject, what, item, title, stats, roles):
@@ -197,7 +206,8 @@ def evidence_html(table, escape) -> str:
         "measurements packaged with the toolkit (rheoline validate): relative errors in per "
         "cent over measured rows (values recalled rather than read never count). Data set "
         "roles: fit = a default was fitted to it (a fit error, not a prediction); test = "
-        "never used to choose a default; check = shown only. Unvalidated means no packaged "
-        "measurement checks it: treat that number as the model's claim alone."
+        "never used to choose a default; check = shown only. Tested means independent data "
+        "exist, not that they agree: the error columns say how closely. Unvalidated means no "
+        "packaged measurement checks it: treat that number as the model's claim alone."
     )
     return f"<p>{escape(intro)}</p>" + frame_html(table)
