@@ -125,11 +125,14 @@ class Built:
 
 
 # --------------------------------------------------------------------------- groups
-def _point_values(sc, pt):
-    vals = {k: (pt[k][0] if k in pt else v) for k, v in sc.values.items()}
+def _point_values(base, base_parts, pt):
+    """The scenario's fields at sweep point ``pt``: ``base`` (its values, an :class:`Axis`
+    where swept) and ``base_parts`` (each part's) with every axis replaced by the point's
+    value."""
+    vals = {k: (pt[k][0] if k in pt else v) for k, v in base.items()}
     parts = [
-        {k: (pt[f"part[{j}].{k}"][0] if isinstance(v, Axis) else v) for k, v in p.values.items()}
-        for j, p in enumerate(sc.parts, start=1)
+        {k: (pt[f"part[{j}].{k}"][0] if isinstance(v, Axis) else v) for k, v in p.items()}
+        for j, p in enumerate(base_parts, start=1)
     ]
     return vals, parts
 
@@ -151,11 +154,13 @@ def groups(sc):
     """The sweep points of scenario ``sc`` gathered into :class:`Group` s (in first-point
     order)."""
     keyed = {}
+    base, base_parts = sc.values, [p.values for p in sc.parts]  # built once, not per point
+    discrete = [sorted(k for k in p if k in _DISCRETE) for p in base_parts]
     for i, pt in enumerate(sweep_points(sc)):
-        vals, parts = _point_values(sc, pt)
+        vals, parts = _point_values(base, base_parts, pt)
         key = (
             tuple(vals.get(k) for k in _NAMES),
-            tuple(tuple((k, v) for k, v in sorted(pv.items()) if k in _DISCRETE) for pv in parts),
+            tuple(tuple((k, pv[k]) for k in ks) for ks, pv in zip(discrete, parts, strict=True)),
         )
         label = ", ".join(shown for _, shown in pt.values())
         keyed.setdefault(key, []).append((i, label, vals, parts))
