@@ -10,6 +10,7 @@ the column names; numbers stay numbers and missing values are empty cells.
 from __future__ import annotations
 
 import csv
+import functools
 import math
 import re
 from collections.abc import Mapping
@@ -69,16 +70,34 @@ def neutralize_frame(frame):
 
 
 def _neutralized_column(col):
-    """A text column with :func:`neutralize_cell` applied to its strings (object dtype)."""
+    """A text column with :func:`neutralize_cell` applied to its strings (object dtype).
+
+    One regular-expression search over the column's joined text and a check of first
+    characters find whether any cell changes (the common case: none); only then are cells
+    neutralized, once per distinct text."""
     values = col.astype(object)
-    is_text = np.fromiter((isinstance(v, str) for v in values), bool, len(values))
-    if not is_text.any():
+    cells = values.to_numpy()
+    text = [v for v in cells if isinstance(v, str)]
+    if not text or (
+        _CONTROL.search("\n".join(text)) is None
+        and not any(v.startswith(_FORMULA_START) for v in text)
+    ):
         return values
-    text = values[is_text].str.replace(_CONTROL, "\ufffd", regex=True)
-    text = text.where(~text.str.startswith(_FORMULA_START), "'" + text)
-    values = values.copy()
-    values[is_text] = text
-    return values
+    done = {}
+    out = [
+        (done[v] if v in done else done.setdefault(v, neutralize_cell(v)))
+        if isinstance(v, str)
+        else v
+        for v in cells
+    ]
+    return _series(out, values)
+
+
+def _series(cells, like):
+    """``cells`` as an object Series with the index and name of ``like``."""
+    import pandas as pd
+
+    return pd.Series(cells, index=like.index, name=like.name, dtype=object)
 
 
 def plain_value(v):
@@ -129,33 +148,23 @@ def write_csv(frame, path: Path, title_row: str):
 
 
 # --------------------------------------------------------------------------- XLSX
-def _column_writers(sheet, frame):
-    """Per column: its index, the sheet's typed write method and its values (Python objects;
-    None for a missing cell), so a row is written without testing each cell's type."""
-    out = []
-    for k in range(frame.shape[1]):
-        col = frame.iloc[:, k]
-        kind = col.dtype.kind
-        if kind == "b" and not col.isna().any():
-            out.append((k, sheet.write_boolean, col.tolist()))
-        elif kind in "iuf":
-            values = col.to_numpy(dtype=float)
-            values = np.where(np.isfinite(values), values, np.nan).tolist()
-            out.append((k, sheet.write_number, [None if v != v else v for v in values]))
-        else:  # text by column (neutralized at once); other values of the column one by one
-            missing = col.isna().to_numpy().tolist()
-            values = _neutralized_column(col).tolist()
-            out.append(
-                (
-                    k,
-                    None,
-                    [
-                        None if gone else (v if type(v) is str else _xlsx_value(v))
-                        for v, gone in zip(values, missing, strict=True)
-                    ],
-                )
-            )
-    return out
+def _xlsx_column(col):
+    """A column as ``(kind, values)`` for :func:`rheoline.scenario.xlsx_stream.write_workbook`:
+    booleans, numbers (missing and infinite ones None) or text (neutralized at once; the
+    column's other values one by one, None where missing)."""
+    kind = col.dtype.kind
+    if kind == "b" and not col.isna().any():
+        return "bool", col.tolist()
+    if kind in "iuf":
+        values = col.to_numpy(dtype=float)
+        values = np.where(np.isfinite(values), values, np.nan).tolist()
+        return "number", [None if v != v else v for v in values]
+    missing = col.isna().to_numpy().tolist()
+    values = _neutralized_column(col).tolist()
+    return "text", [
+        None if gone else (v if type(v) is str else _xlsx_value(v))
+        for v, gone in zip(values, missing, strict=True)
+    ]
 
 
 def _xlsx_value(v):
@@ -174,54 +183,30 @@ def _column_width(name, values):
     return min(max(max(width, len(name)) + 2, low), high)
 
 
-def _write_sheet(book, name, frame, title_row, bold):
-    sheet = book.add_worksheet(name)
-    columns = [neutralize_cell(str(c)) for c in frame.columns]
-    writers = _column_writers(sheet, frame)
-    for (k, _, values), column in zip(writers, columns, strict=True):
-        # widths from the data (at most the first 2,000 rows: a width, not a census)
-        sheet.set_column(k, k, _column_width(column, values[:2000]))
-    sheet.freeze_panes(2, 0)
-    sheet.write_string(0, 0, neutralize_cell(title_row), bold)
-    sheet.write_row(1, 0, columns, bold)
-    for r in range(len(frame)):
-        row = r + 2
-        for k, write, values in writers:
-            v = values[r]
-            if v is None:
-                continue
-            if write is not None:
-                write(row, k, v)
-            elif isinstance(v, str):
-                sheet.write_string(row, k, v)
-            elif isinstance(v, bool):
-                sheet.write_boolean(row, k, v)
-            else:
-                sheet.write_number(row, k, v)
+def _sheet(frame, title_row):
+    header = [neutralize_cell(str(c)) for c in frame.columns]
+    columns = [_xlsx_column(frame.iloc[:, k]) for k in range(frame.shape[1])]
+    # widths from the data (at most the first 2,000 rows: a width, not a census)
+    widths = [
+        _column_width(name, values[:2000])
+        for name, (_, values) in zip(header, columns, strict=True)
+    ]
+    return neutralize_cell(title_row), header, columns, widths, len(frame)
 
 
 def write_xlsx(path: Path, sheets: Mapping[str, object], title_row: str):
     """A workbook with one sheet per ``(name, DataFrame)``, each headed by ``title_row``.
 
-    Written by XlsxWriter in its constant-memory mode (each row goes to disk as it is
-    written): at the documented file limit it took 1.8 times less time than openpyxl's
-    write-only mode (20,000 rows of 37 columns), and openpyxl's default mode (every cell an
-    object held until saving) took most of a pack's time.  No cell holds a formula: every string is written as
-    a string (:meth:`write_string`, never parsed as a formula or a link), after
+    Written by :func:`rheoline.scenario.xlsx_stream.write_workbook`, which renders whole
+    columns to sheet XML and streams the rows to disk: at the documented file limit
+    (20,000 points, 1.26 million cells) XlsxWriter's constant-memory mode took some 10 s of
+    per-cell calls and most of a pack's time (and openpyxl's write-only mode 1.8 times
+    more).  No cell holds a formula: every string is written as text, after
     :func:`neutralize_cell`.
     """
-    import xlsxwriter
+    from rheoline.scenario.xlsx_stream import write_workbook
 
-    options = {
-        "constant_memory": True,
-        "strings_to_formulas": False,
-        "strings_to_urls": False,
-        "strings_to_numbers": False,
-    }
-    book = xlsxwriter.Workbook(str(path), options)
-    try:
-        bold = book.add_format({"bold": True})
-        for name, frame in sheets.items():
-            _write_sheet(book, name, frame, title_row, bold)
-    finally:
-        book.close()
+    write_workbook(
+        path,
+        {name: functools.partial(_sheet, frame, title_row) for name, frame in sheets.items()},
+    )
