@@ -16,13 +16,24 @@ class BadUsage(Exception):
 
 
 def printable(text):
-    return "".join(c if c.isprintable() else "?" for c in str(text))
+    text = str(text)
+    if text.isprintable():  # the common case, at C speed
+        return text
+    return "".join(c if c.isprintable() else "?" for c in text)
 
 
 def cell_text(v):
     """(text, is_number) of one table cell."""
     import pandas as pd
 
+    if type(v) is float:  # the common case first
+        if v != v:
+            return "", True
+        from rheoline.units import significant
+
+        return significant(v), True
+    if type(v) is str:
+        return printable(v), False
     if hasattr(v, "item") and not isinstance(v, str):
         try:
             v = v.item()
@@ -44,9 +55,12 @@ def frame_text(frame, width=None, caps=None):
     values; with ``width``, the widest text columns wrap within their cells to fit it, and a
     text column named in ``caps`` wraps at that many characters."""
     columns = [printable(c) for c in frame.columns]
-    cells = [[cell_text(v) for v in row] for row in frame.itertuples(index=False)]
-    numeric = [all(c[j][1] for c in cells) if cells else False for j in range(len(columns))]
-    widths = [max([len(columns[j])] + [len(c[j][0]) for c in cells]) for j in range(len(columns))]
+    by_column = [column_texts(frame, k) for k in range(frame.shape[1])]
+    numeric = [num for _, num in by_column]
+    widths = [
+        max([len(c)] + [len(t) for t in texts])
+        for c, (texts, _) in zip(columns, by_column, strict=True)
+    ]
     widths = [min(w, (caps or {}).get(c, w)) for w, c in zip(widths, frame.columns, strict=True)]
     if width is not None:
         widths = fitted_widths(widths, numeric, width)
@@ -67,8 +81,26 @@ def frame_text(frame, width=None, caps=None):
             out.append("  ".join(parts).rstrip())
         return out
 
-    body = [line for c in cells for line in lines([t for t, _ in c])]
+    body = [line for row in zip(*(t for t, _ in by_column), strict=True) for line in lines(row)]
     return "\n".join(lines(columns) + body)
+
+
+def column_texts(frame, k):
+    """The texts of column ``k`` of ``frame`` (:func:`cell_text`, once per distinct value)
+    and whether it is numeric (every cell a number or blank; False for no rows)."""
+    values = frame.iloc[:, k].tolist()
+    done, texts, numeric = {}, [], bool(values)
+    for v in values:
+        key = (type(v), v)
+        try:
+            text, num = done[key]
+        except KeyError:
+            text, num = done[key] = cell_text(v)
+        except TypeError:  # unhashable
+            text, num = cell_text(v)
+        texts.append(text)
+        numeric = numeric and num
+    return texts, numeric
 
 
 #: The narrowest a wrapped text column gets, the flags column, and the case column in a
@@ -163,7 +195,8 @@ def fitting(frame, width):
     always = [c for c in wanted[:2]] + ["flags"]
 
     def natural(column):
-        return max([len(column)] + [len(cell_text(v)[0]) for v in frame[column]])
+        texts, _ = column_texts(frame, frame.columns.get_loc(column))
+        return max([len(column)] + [len(t) for t in texts])
 
     case = case_width(natural("case"), natural(always[1]), width)
     budget = width - case - natural(always[1]) - 4 - _MIN_FLAGS
