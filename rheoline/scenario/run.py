@@ -508,19 +508,33 @@ class _GroupRun:
         transient_step(self)  # rheoline.scenario.transient_step
 
     # ----------------------------------------------------------------------- rows
-    def flags(self, col):
-        """The flags of point ``col`` (a tuple of words), rendered from the conditions."""
-        data = {
-            r: [self.point_names[j, col] for j in np.flatnonzero(self.part_conditions[r][:, col])]
-            for r in ("turbulent", "transitional", "transition_zone")
-        }
+    def flags(self, col, named=None):
+        """The flags of point ``col`` (a tuple of words), rendered from the conditions;
+        ``named``: :meth:`_named_parts`, computed once for every point."""
+        named = named or self._named_parts()
+        data = {r: named[r][col] if named[r] is not None else [] for r in named}
         data["ratio"] = self.columns["catheter-to-vein ratio [-]"][col]
         return render_flags(self.conditions, data, col)
+
+    def _named_parts(self):
+        """Per part condition (turbulent, transitional, transition zone), the names of the
+        parts in it at each point; None where it holds at no point."""
+        out = {}
+        for r in ("turbulent", "transitional", "transition_zone"):
+            held = self.part_conditions[r]
+            out[r] = None
+            if held.any():
+                out[r] = [
+                    [self.point_names[j, col] for j in np.flatnonzero(held[:, col])]
+                    for col in range(self.n)
+                ]
+        return out
 
     def cases(self):
         """``(index in the sweep, table row, part rows, flags, None)`` per point of the
         group (a branched group's fifth item holds its branch and node rows)."""
-        flags = [self.flags(col) for col in range(self.n)]
+        named = self._named_parts()
+        flags = [self.flags(col, named) for col in range(self.n)]
         self.columns["flags"] = ["; ".join(f) for f in flags]
         rows = [list(r) for r in zip(*(self.columns[k] for k in TABLE_COLUMNS), strict=True)]
         return list(zip(self.g.indices, rows, part_rows(self), flags, [None] * self.n, strict=True))

@@ -294,8 +294,9 @@ def _columns(res, n):
     }
 
 
-def _null_reason(key, sc, res, col):
-    """The :data:`NULL_REASONS` key of an empty column ``key`` of point ``col``."""
+def _null_reason(key, sc, res):
+    """The :data:`NULL_REASONS` key of an empty column ``key`` (the same at every point of
+    a group)."""
     if key == "internal_volume_ml":
         return "volume_not_known"
     if res is None:
@@ -313,15 +314,16 @@ def _null_reason(key, sc, res, col):
 
 def _not_computed(run):
     """Per point, ``{record key: reason words}`` of its empty transient columns."""
-    out = []
-    for col in range(run.n):
-        empty = {}
-        for key, (name, _) in RECORD_KEYS.items():
-            if not np.isfinite(run.columns[name][col]):
-                reason = _null_reason(key, run.g.scenario, run.transient_result, col)
-                empty[key] = NULL_REASONS[reason]
-        out.append(empty)
-    return out
+    empty = {}  # record key -> (empty at each point, the reason)
+    for key, (name, _) in RECORD_KEYS.items():
+        gone = ~np.isfinite(np.asarray(run.columns[name], dtype=float))
+        if gone.any():
+            reason = _null_reason(key, run.g.scenario, run.transient_result)
+            empty[key] = (gone.tolist(), NULL_REASONS[reason])
+    return [
+        {key: reason for key, (gone, reason) in empty.items() if gone[col]}
+        for col in range(run.n)
+    ]
 
 
 def transient_step(run):
