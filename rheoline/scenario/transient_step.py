@@ -321,8 +321,7 @@ def _not_computed(run):
             reason = _null_reason(key, run.g.scenario, run.transient_result)
             empty[key] = (gone.tolist(), NULL_REASONS[reason])
     return [
-        {key: reason for key, (gone, reason) in empty.items() if gone[col]}
-        for col in range(run.n)
+        {key: reason for key, (gone, reason) in empty.items() if gone[col]} for col in range(run.n)
     ]
 
 
