@@ -27,6 +27,7 @@ __all__ = [
 ]
 
 _FORMULA_START = ("=", "+", "-", "@", "\t", "\r", "\n")
+_FIRST_OF_FORMULA = frozenset(_FORMULA_START)
 _CONTROL = re.compile(r"[\x00-\x08\x0b\x0c\x0e-\x1f\x7f]")
 #: Column widths of a sheet [characters]: at least, at most.
 _WIDTH_RANGE = (8, 60)
@@ -80,7 +81,7 @@ def _neutralized_column(col):
     text = [v for v in cells if isinstance(v, str)]
     if not text or (
         _CONTROL.search("\n".join(text)) is None
-        and not any(v.startswith(_FORMULA_START) for v in text)
+        and _FIRST_OF_FORMULA.isdisjoint({v[:1] for v in text})
     ):
         return values
     done = {}
@@ -138,13 +139,27 @@ def _finite_numbers(frame):
 def write_csv(frame, path: Path, title_row: str):
     """CSV with ``title_row`` on its first line, then a header row; numbers as numbers.
 
-    Cells are neutralized by column (:func:`neutralize_frame`) and written by
-    ``DataFrame.to_csv``; missing and infinite numbers are empty cells.
+    Cells are neutralized by column (:func:`neutralize_frame`), taken out of the frame a
+    column at a time and written by :func:`csv.writer` (numbers as ``repr``, as
+    ``DataFrame.to_csv`` writes them, at a fraction of its cost); missing and infinite
+    numbers are empty cells.
     """
     safe = _finite_numbers(neutralize_frame(frame))
+    columns = [_csv_cells(safe.iloc[:, k]) for k in range(safe.shape[1])]
     with Path(path).open("w", encoding="utf-8", newline="") as fh:
-        csv.writer(fh).writerow([neutralize_cell(title_row)])
-        safe.to_csv(fh, index=False, na_rep="", lineterminator="\r\n")
+        out = csv.writer(fh, lineterminator="\r\n")
+        out.writerow([neutralize_cell(title_row)])
+        out.writerow(list(safe.columns))
+        out.writerows(zip(*columns, strict=True))
+
+
+def _csv_cells(col):
+    """A column's cells as Python objects, None where missing (an empty cell)."""
+    values = col.tolist()
+    missing = col.isna().to_numpy()
+    if not missing.any():
+        return values
+    return [None if gone else v for v, gone in zip(values, missing.tolist(), strict=True)]
 
 
 # --------------------------------------------------------------------------- XLSX
