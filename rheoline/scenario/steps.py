@@ -217,12 +217,12 @@ def part_rows(run):
     kinds = [getattr(p, "kind", "part") for p in parts]
     names = run.point_names.tolist()
     exit_cells = [exit_drop.tolist(), (exit_drop / MMHG).tolist(), exit_share.tolist()]
+    # per part, its cells at every point zipped at once (tuples, in column order)
+    cells = [list(zip(*(c[j] for c in columns), strict=True)) for j in range(k)]
+    keys = run.line.part_names
     out = []
     for col, case in enumerate(run.columns["case"]):
-        rows = [
-            [case, names[j][col], kinds[j], *(c[j][col] for c in columns), run.line.part_names[j]]
-            for j in range(k)
-        ]
+        rows = [[case, names[j][col], kinds[j], *cells[j][col], keys[j]] for j in range(k)]
         drop, drop_mmhg, drop_share = (e[col] for e in exit_cells)
         exit_row = [case, "exit", "exit", np.nan, np.nan, np.nan, "", drop, drop_mmhg]
         rows.append(exit_row + [drop_share, np.nan, np.nan, np.nan, np.nan, "exit"])
