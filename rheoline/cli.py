@@ -20,6 +20,8 @@ printed result carries :data:`rheoline.CAUTION`.
 from __future__ import annotations
 
 import argparse
+import contextlib
+import gc
 import json
 import sys
 import textwrap
@@ -234,7 +236,31 @@ def _cmd_check(args, out):
     return EXIT_OK
 
 
+@contextlib.contextmanager
+def _cycle_collector_paused():
+    """Pause Python's cyclic garbage collector for one command's pass over its data.
+
+    A run at the file limit holds some two million small objects (rows, cells, records) to
+    its end and makes almost no reference cycles (reference counting frees the rest), so
+    every full collection walks them all for nothing: 0.5 s of CPU, some 18 % of a
+    20,000-point ``--json`` run, measured in this project (issue 14).  Collection resumes
+    (as it was) when the command ends.
+    """
+    was_on = gc.isenabled()
+    gc.disable()
+    try:
+        yield
+    finally:
+        if was_on:
+            gc.enable()
+
+
 def _cmd_run(args, out, sset=None):
+    with _cycle_collector_paused():
+        return _run(args, out, sset)
+
+
+def _run(args, out, sset):
     from rheoline.scenario.export import check_target
 
     if sset is None:

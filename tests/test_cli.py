@@ -500,3 +500,31 @@ def test_reach_never_names_a_case_over_its_pressure_limit(capsys):
     assert f": {best['case']} (" in named
     for case in over["case"]:
         assert f": {case} (" not in named
+
+
+def test_run_pauses_the_cycle_collector_and_restores_it(capsys, monkeypatch, tmp_path):
+    import gc
+
+    import rheoline.scenario.compare as compare
+
+    seen, real = [], compare.run_scenarios
+
+    def spy(*args, **kwargs):
+        seen.append(gc.isenabled())
+        return real(*args, **kwargs)
+
+    monkeypatch.setattr(compare, "run_scenarios", spy)
+    assert gc.isenabled()
+    code, out, _ = call(capsys, "run", str(example_path("minimal")), "--json")
+    assert code == 0 and json.loads(out) and seen == [False]
+    assert gc.isenabled()
+    bad = tmp_path / "bad.toml"
+    bad.write_text('format_version = 1\n[[scenario]]\nname = "x"\nfluid = "nope"\n')
+    code, _, _ = call(capsys, "run", str(bad), "--json")
+    assert code == 2 and gc.isenabled()  # restored after an error as well
+    gc.disable()
+    try:
+        call(capsys, "run", str(example_path("minimal")), "--json")
+        assert not gc.isenabled()  # left as the caller had it
+    finally:
+        gc.enable()
