@@ -125,19 +125,10 @@ class Built:
 
 
 # --------------------------------------------------------------------------- groups
-def _point_values(base, base_parts, pt):
-    """The scenario's fields at sweep point ``pt``: ``base`` (its values, an :class:`Axis`
-    where swept) and ``base_parts`` (each part's) with every axis replaced by the point's
-    value."""
-    vals = {k: (pt[k][0] if k in pt else v) for k, v in base.items()}
-    parts = [
-        {k: (pt[f"part[{j}].{k}"][0] if isinstance(v, Axis) else v) for k, v in p.items()}
-        for j, p in enumerate(base_parts, start=1)
-    ]
-    return vals, parts
-
-
 def _stacked_part(members, j):
+    """Part ``j`` over the points ``members`` (``(index, label, values, parts, ...)``, the
+    parts' fields per point): discrete fields the first point's, measured pairs fixed,
+    the rest arrays (the branched scenarios' groups)."""
     pv = {}
     for k in members[0][3][j]:
         col = [m[3][j][k] for m in members]
@@ -150,28 +141,51 @@ def _stacked_part(members, j):
     return pv
 
 
+def _column(value, points, path, stack):
+    """A field over a group's ``points``: the first point's value (``stack`` false), else
+    an array of every point's; ``value`` is the scenario's (an :class:`Axis` where swept,
+    then read from each point at ``path``)."""
+    swept = isinstance(value, Axis)
+    first = points[0][path][0] if swept else value
+    if not stack:
+        return first
+    if isinstance(first, tuple):  # measured pairs, fixed
+        return np.asarray(first, dtype=float)
+    if swept:
+        return np.asarray([pt[path][0] for pt in points], dtype=float)
+    return np.asarray([value] * len(points), dtype=float)
+
+
 def groups(sc):
     """The sweep points of scenario ``sc`` gathered into :class:`Group` s (in first-point
-    order)."""
-    keyed = {}
+    order).
+
+    Points share a group where their fluid name (and blood model) and the discrete fields
+    of their parts agree: only the swept ones of those can differ, so they alone key the
+    points, and a group's fields are stacked a field at a time.
+    """
     base, base_parts = sc.values, [p.values for p in sc.parts]  # built once, not per point
-    discrete = [sorted(k for k in p if k in _DISCRETE) for p in base_parts]
-    for i, pt in enumerate(sweep_points(sc)):
-        vals, parts = _point_values(base, base_parts, pt)
-        key = (
-            tuple(vals.get(k) for k in _NAMES),
-            tuple(tuple((k, pv[k]) for k in ks) for ks, pv in zip(discrete, parts, strict=True)),
-        )
-        label = ", ".join(shown for _, shown in pt.values())
-        keyed.setdefault(key, []).append((i, label, vals, parts))
+    points = sweep_points(sc)
+    keys = [k for k in _NAMES if isinstance(base.get(k), Axis)]
+    keys += [
+        f"part[{j}].{k}"
+        for j, pv in enumerate(base_parts, start=1)
+        for k in sorted(pv)
+        if k in _DISCRETE and isinstance(pv[k], Axis)
+    ]
+    keyed = {}
+    for i, pt in enumerate(points):
+        keyed.setdefault(tuple(pt[path][0] for path in keys), []).append(i)
     out = []
     for members in keyed.values():
-        vals = {}
-        for k in members[0][2]:
-            col = [m[2][k] for m in members]
-            vals[k] = col[0] if k in _NAMES else np.asarray(col, dtype=float)
-        parts = [_stacked_part(members, j) for j in range(len(sc.parts))]
-        out.append(Group(sc, [m[0] for m in members], [m[1] for m in members], vals, parts))
+        pts = [points[i] for i in members]
+        labels = [", ".join(shown for _, shown in pt.values()) for pt in pts]
+        vals = {k: _column(v, pts, k, k not in _NAMES) for k, v in base.items()}
+        parts = [
+            {k: _column(v, pts, f"part[{j}].{k}", k not in _DISCRETE) for k, v in pv.items()}
+            for j, pv in enumerate(base_parts, start=1)
+        ]
+        out.append(Group(sc, members, labels, vals, parts))
     return out
 
 
