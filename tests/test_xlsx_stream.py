@@ -89,8 +89,8 @@ def test_reads_back_as_xlsxwriter_writes_it(tmp_path):
     rows = list(new["hostile"].iter_rows(values_only=True))
     assert rows[2] == ("'=1+2", 1, True, "x")  # neutralized, never a formula
     assert rows[3][:2] == ("a\ufffdb", None)  # control character replaced; inf: empty
-    # a literal "_x0041_" gets its underscore escaped (ECMA-376 part 1, 22.9.2.19
-    # ST_Xstring), so a spreadsheet shows it as written; openpyxl reads the escape raw
+    # a literal "_x0041_" gets its underscore escaped (ECMA-376 part 1, ST_Xstring; as
+    # XlsxWriter does), so a spreadsheet shows it as written; openpyxl reads the escape raw
     assert rows[4][0] == "_x005F_x0041_ x"
 
 
@@ -123,3 +123,15 @@ def test_sheet_names_are_checked(tmp_path, name):
     sheets = {name: sheet, "DUP": sheet} if name == "dup" else {name: sheet}
     with pytest.raises(ValueError, match="sheet name"):
         write_workbook(tmp_path / "t.xlsx", sheets)
+
+
+def test_a_sheet_beyond_a_spreadsheets_grid_is_refused(tmp_path):
+    rows = ("title", ["x"], [("number", [])], [8], 1_048_575)  # + title and header rows
+    with pytest.raises(ValueError, match="1,048,577 rows x 1 columns exceed"):
+        write_workbook(tmp_path / "t.xlsx", {"s": rows})
+    wide = ("title", ["x"] * 16_385, [], [], 0)
+    with pytest.raises(ValueError, match="16,385 columns exceed"):
+        write_workbook(tmp_path / "t.xlsx", {"s": wide})
+    fits = ("title", ["x"], [("number", [1.0])], [8], 1)
+    write_workbook(tmp_path / "t.xlsx", {"s": fits})
+    assert openpyxl.load_workbook(tmp_path / "t.xlsx")["s"]["A3"].value == 1.0

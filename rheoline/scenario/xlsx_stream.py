@@ -41,6 +41,8 @@ _BLOCK_ROWS = 2000
 #: zlib's level: 1 deflates sheet XML some three times faster than the default 6, for a
 #: file about a quarter larger (measured on a pack at the documented limit).
 _DEFLATE_LEVEL = 1
+#: A sheet's grid in Excel: rows, columns (the last column is XFD).
+_MAX_ROWS, _MAX_COLUMNS = 1_048_576, 16_384  # from memory
 #: Excel's longest cell text [UTF-16 code units].
 _MAX_TEXT = 32767
 _SHEET_NAME_BAD = re.compile(r"[\[\]:*?/\\]")
@@ -265,6 +267,16 @@ def _check_name(name, seen):
     seen.add(name.lower())
 
 
+def _check_size(name, header, n_rows):
+    """A sheet within a spreadsheet's grid (:data:`_MAX_ROWS` x :data:`_MAX_COLUMNS`),
+    title and header rows included: never a workbook a spreadsheet cuts or refuses."""
+    if n_rows + 2 > _MAX_ROWS or len(header) > _MAX_COLUMNS:
+        raise ValueError(
+            f"sheet {name!r}: {n_rows + 2:,} rows x {len(header):,} columns exceed a "
+            f"spreadsheet's {_MAX_ROWS:,} x {_MAX_COLUMNS:,}; the CSV files hold every row"
+        )
+
+
 def write_workbook(path, sheets):
     """Write an XLSX workbook of ``sheets``: ``{name: (title, header, columns, widths,
     n_rows)}``, where ``columns`` is a list of ``(kind, values)`` (kind "bool", "number"
@@ -282,5 +294,7 @@ def write_workbook(path, sheets):
     ) as zf:
         for member, text in _package_parts(list(sheets)).items():
             zf.writestr(member, text)
-        for index, sheet in enumerate(sheets.values(), start=1):
-            _sheet(zf, index, sheet() if callable(sheet) else sheet)
+        for index, (name, sheet) in enumerate(sheets.items(), start=1):
+            sheet = sheet() if callable(sheet) else sheet
+            _check_size(name, sheet[1], sheet[4])
+            _sheet(zf, index, sheet)
