@@ -2,7 +2,11 @@
 // - "overflow": an element whose box leaves its parent's box sideways (more than 1 px), where
 //   the parent does not scroll;
 // - "cut": an element whose own text is wider than its box while it hides the rest
-//   (overflow hidden or clip, or text-overflow ellipsis).
+//   (overflow hidden or clip, or text-overflow ellipsis);
+// - "cut" also: a drop-down whose chosen option, or a text or number box whose value, is
+//   wider than the box shows (measured in the box's own font);
+// - "scroll": an element that scrolls sideways because what it holds is wider than it (a
+//   box the user must scroll to see its right edge hides that edge as surely as a clip).
 // Used by tests/test_browser_layout.py and docs/screenshots.py.
 () => {
   const root = document.querySelector('.rl-app');
@@ -17,6 +21,14 @@
     const s = getComputedStyle(e);
     return s.visibility !== 'hidden' && s.display !== 'none';
   };
+  const ruler = document.createElement('canvas').getContext('2d');
+  const textWidth = (e, text) => {
+    const s = getComputedStyle(e);
+    ruler.font = `${s.fontStyle} ${s.fontWeight} ${s.fontSize} ${s.fontFamily}`;
+    return ruler.measureText(text).width;
+  };
+  const shown = e => e.tagName === 'SELECT' ? (e.selectedOptions[0] || {}).text || ''
+    : (e.tagName === 'INPUT' && /^(text|number|)$/.test(e.type) ? e.value : null);
   for (const e of root.querySelectorAll('*')) {
     if (!visible(e) || e.closest('.js-plotly-plot .modebar-container')) continue;
     if (e instanceof SVGElement && !(e.tagName === 'svg' && e.classList.contains('main-svg'))) continue;
@@ -25,6 +37,20 @@
     const hides = s.overflowX === 'hidden' || s.overflowX === 'clip' || s.textOverflow === 'ellipsis';
     if (hides && e.scrollWidth > e.clientWidth + 1 && text && !(e instanceof SVGElement)) {
       problems.push({kind: 'cut', element: name(e), text, width: e.clientWidth, needs: e.scrollWidth});
+    }
+    if (scrolls(s.overflowX) && e.scrollWidth > e.clientWidth + 1 && !(e instanceof SVGElement)) {
+      problems.push({kind: 'scroll', element: name(e), text, width: e.clientWidth, needs: e.scrollWidth});
+    }
+    const value = shown(e);
+    if (value) {
+      const s = getComputedStyle(e);
+      // the room inside the box: its width less padding, and a drop-down's arrow (20 px)
+      const room = e.clientWidth - parseFloat(s.paddingLeft) - parseFloat(s.paddingRight)
+        - (e.tagName === 'SELECT' ? 20 : 0);
+      if (textWidth(e, value) > room + 1) {
+        problems.push({kind: 'cut', element: name(e), text: value.slice(0, 60), width: Math.round(room),
+          needs: Math.ceil(textWidth(e, value))});
+      }
     }
     const p = e.parentElement;
     if (!p || !root.contains(p) || !visible(p)) continue;

@@ -34,7 +34,9 @@ CHROMIUM_ARGS = [
 TAB_READY = {
     "Line": ".rl-chart .js-plotly-plot",
     "Compare": ".rl-chart .js-plotly-plot",
+    "Network": ".rl-chart .js-plotly-plot",
     "Blood and vessels": ".rl-chart .js-plotly-plot",
+    "Infusion in time": ".rl-chart .js-plotly-plot",
     "Files": ".rl-scenario-path input",
 }
 

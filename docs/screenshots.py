@@ -1,12 +1,13 @@
-"""Take the app's screenshots shown in the README: each tab at 1280 and 1920 px wide.
+"""Take the app's screenshots shown in the README: each tab at 1280 px wide.
 
 ```
 python docs/screenshots.py
 ```
 
 Runs the layout browser test (tests/test_browser_layout.py), which also checks that nothing
-on the page is clipped or cut, with ``RHEOLINE_SCREENSHOTS`` set to this folder; the files
-are ``docs/app-<tab>-<width>.png``.  Needs Debian's ``/usr/bin/chromium`` and Playwright.
+on the page is clipped or cut at 1024, 1280 and 1920 px, with ``RHEOLINE_SCREENSHOTS`` set
+to this folder; the files are ``docs/app-<tab>-1280.png``.  Needs Debian's
+``/usr/bin/chromium`` and Playwright.
 """
 
 from __future__ import annotations

@@ -88,6 +88,6 @@ def caution_banner(href: str | None = None) -> widgets.HTML:
         "<summary>Read CAUTIONS.md here</summary>"
         f"<div style='max-height:320px;overflow:auto'>{cautions_html()}</div></details></div>"
     )
-    banner = widgets.HTML(value=value, layout=widgets.Layout(width="100%"))
+    banner = widgets.HTML(value=value, layout=widgets.Layout(width="auto"))
     banner.add_class(BANNER_CLASS)
     return banner

@@ -30,7 +30,7 @@ __all__ = ["BloodVesselView", "VISCOSITY_AXES"]
 #: One mmHg min/mL in Pa s/m^3: the unit the view shows a vessel's resistance in.
 _MMHG_MIN_PER_ML = MMHG * 60.0 / 1e-6
 #: A slider as wide as its column, so a step of the hematocrit is a few pixels, not one.
-_SLIDER = widgets.Layout(width="100%", max_width="560px")
+_SLIDER = widgets.Layout(width="auto", max_width="560px")
 
 #: x-axis choices of the blood viscosity chart: label -> (control name, grid, axis title, log axis)
 VISCOSITY_AXES = {

@@ -142,10 +142,10 @@ def branch_words(row) -> str:
     """
     words = {
         "closed": "{b}: closed by its check valve (no flow from {t} to {f})",
-        "reversed": "{b}: REVERSED, {q:.3g} mL/min flows back from {t} to {f}",
-        "forward": "{b}: {q:.3g} mL/min from {f} to {t}",
+        "reversed": "{b}: REVERSED, {q} mL/min flows back from {t} to {f}",
+        "forward": "{b}: {q} mL/min from {f} to {t}",
     }[_state(row)]
-    q = abs(float(row["flow [mL/min]"]))
+    q = significant(abs(float(row["flow [mL/min]"])))
     return words.format(b=row["branch"], f=row["from"], t=row["to"], q=q)
 
 
@@ -241,7 +241,8 @@ def network_figure(topology, branches, nodes, title) -> go.Figure:
                 text=[user_text(n.name) for n in members],
                 textposition="bottom center",
                 hovertext=[
-                    f"{user_text(n.name)} ({kind}): {pressure[n.name]:.3g} mmHg" for n in members
+                    f"{user_text(n.name)} ({kind}): {significant(pressure[n.name])} mmHg"
+                    for n in members
                 ],
                 hoverinfo="text",
                 marker=dict(

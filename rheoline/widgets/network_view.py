@@ -47,7 +47,7 @@ from rheoline.units import from_unit, to_unit
 from rheoline.widgets.base import _STYLE, View, fluid_controls, labelled, number_field
 from rheoline.widgets.network_draw import branch_words, network_figure
 from rheoline.widgets.parts_editor import PartsEditor
-from rheoline.widgets.style import flag_html, user_text
+from rheoline.widgets.style import flag_html, significant, user_text
 
 __all__ = ["NetworkView", "NODE_CONTROLS", "single_point", "branched_examples"]
 
@@ -147,10 +147,13 @@ class NetworkView(View):
                 fluid.mass_fraction.si if fluid.mass_fraction else 0.4,
             )
         )
-        self.node_box = widgets.VBox()
+        # each node's drives side by side, wrapping to the next line where the column ends
+        self.node_box = widgets.Box(layout=widgets.Layout(flex_flow="row wrap"))
         self.node_box.add_class("rl-network-nodes")
-        c["branch"] = labelled(
-            widgets.Dropdown(options=[], description="branch", style=_STYLE),
+        c["branch"] = labelled(  # as wide as its column: a branch's name and its ends
+            widgets.Dropdown(
+                options=[], description="branch", style=_STYLE, layout=widgets.Layout(width="auto")
+            ),
             "rl-network-branch",
         )
         self.editor = PartsEditor(())
@@ -171,15 +174,13 @@ class NetworkView(View):
         fluid_box = widgets.VBox(
             [c["fluid"], c["temperature_c"], c["hematocrit"], c["mass_fraction"]]
         )
-        self._finish(
-            [
-                c["scenario"],
-                widgets.HBox([fluid_box, self.node_box]),
-                widgets.VBox([c["branch"], self.editor], layout=widgets.Layout(margin="6px 0")),
-                self.results,
-                self.figure_box("network"),
-            ]
-        )
+        inputs = [
+            c["scenario"],
+            fluid_box,
+            self.node_box,
+            widgets.VBox([c["branch"], self.editor], layout=widgets.Layout(margin="6px 0")),
+        ]
+        self._finish([self.two_columns(inputs, [self.results, self.figure_box("network")])])
 
     # -- the scenarios offered ---------------------------------------------------------
     @property
@@ -268,7 +269,9 @@ class NetworkView(View):
                 boxes.append(self.controls[name])
             if boxes:
                 title = widgets.HTML(f"<b>{user_text(node.name)}</b> ({user_text(node.type)})")
-                rows.append(widgets.VBox([title, *boxes]))
+                rows.append(
+                    widgets.VBox([title, *boxes], layout=widgets.Layout(margin="0 12px 0 0"))
+                )
         self.node_box.children = rows
 
     def _choose(self):
@@ -417,14 +420,14 @@ def _results_html(row, branches, flags):
     """The case in words: total flow, pump pressure, each branch, the flags (escaped)."""
     items = [f"<li>{user_text(branch_words(r))}</li>" for r in branches.to_dict("records")]
     lines = [
-        f"<b>Total flow into the outlets: {row['flow [mL/min]']:.3g} mL/min "
-        f"({row['flow [mL/h]']:.4g} mL/h)</b>",
-        f"Highest pump or source pressure: {row['required pressure [mmHg]']:.3g} mmHg",
+        f"<b>Total flow into the outlets: {significant(row['flow [mL/min]'])} mL/min "
+        f"({significant(row['flow [mL/h]'])} mL/h)</b>",
+        f"Highest pump or source pressure: {significant(row['required pressure [mmHg]'])} mmHg",
     ]
     reversed_flow = row["reversed flow [mL/min]"]
     if reversed_flow > 0:
         lines.append(
-            f"<b>Reversed flow: {reversed_flow:.3g} mL/min in {user_text(row['reversed branch'])}"
+            f"<b>Reversed flow: {significant(reversed_flow)} mL/min in {user_text(row['reversed branch'])}"
             "</b> (drawn dashed, its arrow pointing back)"
         )
     else:

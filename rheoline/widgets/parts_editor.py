@@ -133,7 +133,8 @@ class PartRow(widgets.HBox):
     """
 
     def __init__(self, part: PartSpec, on_change, on_remove, index: int = 1):
-        super().__init__()
+        # a narrow column wraps the row's boxes onto a second line rather than hiding them
+        super().__init__(layout=widgets.Layout(flex_flow="row wrap"))
         self.add_class("rl-part-row")
         self.index = index
         self._on_change = on_change

@@ -137,6 +137,30 @@ def _demo_set():
     return load_scenarios(example_path(DEMO_EXAMPLE))
 
 
+#: What an empty chart says instead of blank axes.
+_NOTHING_DRAWN = {
+    name: {
+        "text": text,
+        "showarrow": False,
+        "xref": "paper",
+        "yref": "paper",
+        "x": 0.5,
+        "y": 0.5,
+    }
+    for name, text in (
+        ("drug", "no drug joins this line at a port: nothing to draw"),
+        ("pressure", "no time series"),
+        ("flow", "no time series"),
+    )
+}
+
+
+def _shown(amount) -> float:
+    """An amount as its control shows it: 12 significant digits (0.5, not the
+    0.5000000000000001 that the unit conversion leaves)."""
+    return float(f"{amount:.12g}")
+
+
 def _number(value, low, high, step, description, css):
     return labelled(
         widgets.BoundedFloatText(
@@ -217,11 +241,14 @@ class TransientView(View):
         change = widgets.VBox([c[k] for k in ("rate_change", "change_min", "new_rate_ml_h")])
         change.children += (c["ramp_min"],)
         pump = widgets.VBox([c["scenario"], c["flow_ml_h"], c["compliance"]])
+        for box in (occlusion, change):
+            box.layout.margin = "6px 0 0 0"
         self._finish(
             [
-                widgets.HBox([pump, occlusion, change]),
-                self.results,
-                *(self.figure_box(name) for name in _PLOTS),
+                self.two_columns(
+                    [pump, occlusion, change],
+                    [self.results, *(self.figure_box(name) for name in _PLOTS)],
+                )
             ]
         )
 
@@ -261,26 +288,28 @@ class TransientView(View):
         c, spec = self.controls, self.scenario.transient
         self._paused = True
         try:
-            c["flow_ml_h"].value = sc.drive.flow.si / ML_PER_H
+            c["flow_ml_h"].value = _shown(sc.drive.flow.si / ML_PER_H)
             compliance = sc.syringe.syringe_compliance if sc.syringe is not None else None
-            c["compliance"].value = 0.0 if compliance is None else compliance.si * MMHG / 1e-9
+            c["compliance"].value = (
+                0.0 if compliance is None else _shown(compliance.si * MMHG / 1e-9)
+            )
             labels = [(f"{j}: {p.label or p.type}", j) for j, p in enumerate(sc.parts, start=1)]
             c["occluded_part"].options = labels
             occlusion = spec.occlusion if spec is not None else None
             c["occlusion"].value = occlusion is not None
             if occlusion is not None:
                 c["occluded_part"].value = int(occlusion.part.si)
-                c["occlusion_min"].value = occlusion.time.si / 60.0
-                c["alarm_mmhg"].value = occlusion.alarm_pressure.si / MMHG
+                c["occlusion_min"].value = _shown(occlusion.time.si / 60.0)
+                c["alarm_mmhg"].value = _shown(occlusion.alarm_pressure.si / MMHG)
                 release = occlusion.release
-                c["release_min"].value = 0.0 if release is None else release.si / 60.0
+                c["release_min"].value = 0.0 if release is None else _shown(release.si / 60.0)
             changes = spec.rate_changes if spec is not None else ()
             c["rate_change"].value = bool(changes)
             if changes:
-                c["change_min"].value = changes[0].time.si / 60.0
-                c["new_rate_ml_h"].value = changes[0].rate.si / ML_PER_H
+                c["change_min"].value = _shown(changes[0].time.si / 60.0)
+                c["new_rate_ml_h"].value = _shown(changes[0].rate.si / ML_PER_H)
                 ramp = changes[0].ramp
-                c["ramp_min"].value = 0.0 if ramp is None else ramp.si / 60.0
+                c["ramp_min"].value = 0.0 if ramp is None else _shown(ramp.si / 60.0)
         finally:
             self._paused = False
 
@@ -363,6 +392,7 @@ class TransientView(View):
                 fig.data = ()
                 for trace in traces:
                     fig.add_scatter(**trace)
+                fig.layout.annotations = () if traces else (_NOTHING_DRAWN[name],)
         self.results.value = self._results_html(row)
 
     @staticmethod
