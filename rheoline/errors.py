@@ -138,8 +138,17 @@ class PackExistsError(ScenarioError):
     """The output folder exists and may not be replaced.
 
     Raised when ``force`` was not given, when the target is a file, and (even with
-    ``force``) when the folder is not an unchanged rheoline review pack.
+    ``force``) when the folder is not an unchanged rheoline review pack.  The message is
+    the command line's; ``kind`` says which case, for a caller's own words: ``"link"`` (a
+    symbolic link), ``"not a folder"``, ``"not a pack"`` (``detail`` says why: "no
+    manifest.json", a file changed or added) or ``"exists"`` (an earlier pack, replaced
+    only with ``force``).
     """
+
+    def __init__(self, message: str = "", *, source=None, kind=None, detail=None, **where):
+        super().__init__(message, source=source, **where)
+        self.kind = kind
+        self.detail = detail
 
 
 class NetworkError(RheolineError):

@@ -116,7 +116,7 @@ def test_save_and_pack_inside_create_the_workspace(tmp_path):
     files = FilesView(LineView(), None, workspace=tmp_path / "new-workspace")
     assert files._run(lambda: files.save("s.toml")) is True
     assert (tmp_path / "new-workspace" / "s.toml").is_file()
-    assert "saved 1 scenarios to s.toml" in files.status.value
+    assert "saved 1 scenario to s.toml" in files.status.value
     assert files._run(lambda: files.write_pack("pack")) is True
     assert (tmp_path / "new-workspace" / "pack").is_dir()
 

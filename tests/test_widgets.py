@@ -597,7 +597,7 @@ def test_a_files_status_replaces_the_one_before(app, tmp_path):
     files.controls["scenario_path"].value = "kept.toml"
     files.save_button.click()  # exists, the box not ticked: refused
     status = html.unescape(files.status.value)
-    assert "[ok]" not in status and "[X] failed" in status and "file problem" in status
+    assert "[ok]" not in status and "[X] failed" in status and "was not saved" in status
     files.controls["scenario_path"].value = "no-such-file.toml"
     files.load_button.click()
     status = html.unescape(files.status.value)

@@ -156,11 +156,14 @@ def check_target(out: Path, force: bool):
             "is a symbolic link; rheoline does not replace links (nor "
             "what they point to); choose a new folder for --out",
             source=str(out),
+            kind="link",
         )
     if not out.exists():
         return
     if not out.is_dir():
-        raise PackExistsError("exists and is not a folder; choose another --out", source=str(out))
+        raise PackExistsError(
+            "exists and is not a folder; choose another --out", source=str(out), kind="not a folder"
+        )
     reason = _not_a_pack_reason(out)
     if reason:
         raise PackExistsError(
@@ -168,10 +171,14 @@ def check_target(out: Path, force: bool):
             "left as it is, even with --force (which replaces only an "
             "earlier pack); choose a new folder for --out",
             source=str(out),
+            kind="not a pack",
+            detail=reason,
         )
     if not force:
         raise PackExistsError(
-            "exists already; choose another folder or pass --force to replace it", source=str(out)
+            "exists already; choose another folder or pass --force to replace it",
+            source=str(out),
+            kind="exists",
         )
 
 

@@ -27,7 +27,7 @@ from pathlib import Path
 
 import ipywidgets as widgets
 
-from rheoline.errors import OutputError, ScenarioError
+from rheoline.errors import OutputError, PackExistsError, ScenarioError
 from rheoline.scenario.files import MAX_FILE_BYTES, load_scenarios, loads_scenarios, save_scenarios
 from rheoline.scenario.workspace import Workspace
 from rheoline.widgets.base import _STYLE, View, labelled
@@ -36,6 +36,12 @@ from rheoline.widgets.style import user_text
 __all__ = ["FilesView"]
 
 _AUTO = widgets.Layout(width="auto")
+#: What did not happen when an action fails, in the user's words (the status line's start).
+NOT_DONE = {
+    "load": "nothing was loaded",
+    "save": "the scenario file was not saved",
+    "pack": "the review pack was not written",
+}
 
 
 class FilesView(View):
@@ -170,15 +176,39 @@ class FilesView(View):
     #: A failed load, save or pack is said in the status line alone (it replaces the last).
     errors_in_status = True
 
+    _action = "load"  # the action under way: "load", "save" or "pack" (NOT_DONE)
+
     def _failed(self, exc):
-        # the last action did not happen: its status replaces the previous one
-        what = "file problem" if isinstance(exc, OSError) else "problem in the file"
-        self.say("failed", f"nothing was loaded, saved or written ({what}): {exc}")
+        # the action did not happen: its status replaces the previous one, in the page's
+        # words (the checkbox, never a command-line flag), rendered from the error's data
+        self.say("failed", f"{NOT_DONE[self._action]}: {self._words(exc)}")
+
+    def _words(self, exc) -> str:
+        """What failed, from the error's data: the pack's case, a write's path and reason,
+        else the reader's message (which names the file and the field)."""
+        if isinstance(exc, PackExistsError):
+            return self._pack_words(exc)
+        if isinstance(exc, OutputError) and exc.source is not None:
+            return f"{self.workspace.relative(exc.source)}: {exc.reason}"
+        return str(exc)
+
+    def _pack_words(self, exc) -> str:
+        shown = self.workspace.relative(exc.source)
+        tick = self.controls["overwrite"].description
+        return {
+            "link": f"{shown} is a symbolic link, and a pack is never written through one; "
+            "choose another folder name",
+            "not a folder": f"{shown} is a file, not a folder; choose another folder name",
+            "not a pack": f"the folder {shown} is not an unchanged rheoline review pack "
+            f"({exc.detail}), so it is kept as it is even with '{tick}' ticked (that box "
+            "replaces only an earlier pack); choose another folder name",
+        }.get(exc.kind, f"{shown} exists already; choose another name, or tick '{tick}'")
 
     def open_example(self, name=None):
         """Load the shipped example ``name`` (default: the one chosen) into the views."""
         from rheoline.scenario.reading import example_path
 
+        self._action = "load"
         name = name or self.controls["example"].value
         sset = load_scenarios(example_path(name))
         self._loaded(sset, f"the shipped example {name!r}")
@@ -193,6 +223,7 @@ class FilesView(View):
 
         ``path`` is taken inside the workspace folder; one outside it is refused unread.
         """
+        self._action = "load"
         path = self.workspace.resolve(path or self.controls["scenario_path"].value)
         sset = load_scenarios(path)
         self._loaded(sset, self.workspace.relative(path))
@@ -226,6 +257,7 @@ class FilesView(View):
         return worst, ". ".join(texts)
 
     def _uploaded(self):
+        self._action = "load"
         if not self.upload.value:
             return
         item = self.upload.value[0]
@@ -250,26 +282,30 @@ class FilesView(View):
 
     def save(self, path=None):
         """Save the views' set as a scenario file in the workspace; returns its path."""
+        self._action = "save"
         path = self._target(path or self.controls["scenario_path"].value)
         self._refuse_existing(path)
         sset = self.current_set()
         written = save_scenarios(sset, path, force=self.controls["overwrite"].value)
-        self.say(
-            "ok", f"saved {len(sset.scenarios)} scenarios to {self.workspace.relative(written)}"
-        )
+        n = len(sset.scenarios)
+        shown = self.workspace.relative(written)
+        self.say("ok", f"saved {n} scenario{'s' * (n != 1)} to {shown}")
         return written
 
     def write_pack(self, folder=None):
         """Solve the views' set with the scenario layer and write its review pack."""
         from rheoline.scenario.compare import run_scenarios
         from rheoline.scenario.export import write_pack
+        from rheoline.scenario.pack_folder import check_target
 
+        self._action = "pack"
         folder = self._target(folder or self.controls["pack_path"].value)
-        self._refuse_existing(folder)
+        check_target(folder, force=True)  # a link, a file, a folder that is not a pack
+        self._refuse_existing(folder)  # an earlier pack, replaced only with the box ticked
         run = run_scenarios(self.current_set())
         written = write_pack(run, folder, force=self.controls["overwrite"].value)
-        shown = self.workspace.relative(written)
-        self.say("ok", f"wrote the review pack to {shown} ({len(run.table)} cases)")
+        shown, n = self.workspace.relative(written), len(run.table)
+        self.say("ok", f"wrote the review pack to {shown} ({n} case{'s' * (n != 1)})")
         return written
 
     def _refuse_existing(self, path):
@@ -277,11 +313,10 @@ class FilesView(View):
         box's words)."""
         if path.exists() and not self.controls["overwrite"].value:
             shown = self.workspace.relative(path)
+            tick = self.controls["overwrite"].description
             raise OutputError(
-                f"{shown} exists already; choose another name, or tick "
-                f"'{self.controls['overwrite'].description}' to replace it",
-                source=shown,
-                field="path",
+                f"exists already; choose another name, or tick '{tick}' to replace it",
+                source=str(path),
                 value=shown,
             )
 
