@@ -138,3 +138,52 @@ def test_description_edits_read_like_a_file():
     assert with_rate_change(changed) == sc
     with pytest.raises(Exception, match="occlusion.alarm_pressure"):
         with_occlusion(sc, 1, 30, 5000)
+
+
+def test_another_views_edit_does_not_solve_the_time_view_again():
+    """A head change in the line view changes the shared set but not the time view's
+    scenario: the time view keeps its run (it used to solve again at every edit of any
+    view once its tab had been opened) and draws nothing."""
+    from rheoline.widgets.app import build_app
+
+    app = build_app(tabs=("line", "time"))
+    app.tabs.selected_index = 1
+    time_view = app.views["time"]
+    run, drawn = time_view.run, []
+    assert run is not None and time_view.figures["pressure"].data
+    time_view._draw = lambda: drawn.append("drawn")
+    app.views["line"].set_control("head_cm", 123.0)
+    assert app.views["line"].scenario.values["head"] == pytest.approx(1.23)  # it was edited
+    assert time_view.run is run and drawn == []
+
+
+def test_a_scenario_solved_before_is_not_solved_again(monkeypatch):
+    from rheoline.widgets import transient_view
+
+    view = TransientView(lazy=True)
+    view.set_control("flow_ml_h", 0.7)
+    first = view.run
+    view.set_control("flow_ml_h", 0.9)
+    assert view.run is not first and view.last_update_ok
+    solved = []
+    monkeypatch.setattr(
+        "rheoline.scenario.run.run_scenarios", lambda *a, **k: solved.append(a) or None
+    )
+    view.set_control("flow_ml_h", 0.7)  # back to the rate before: the run kept
+    assert view.run is first and solved == [] and view.last_update_ok
+    assert len(transient_view._RUNS) <= transient_view.RUNS_KEPT
+
+
+def test_prepare_solves_the_first_scenario_without_building_a_view():
+    from rheoline.widgets import transient_view
+    from rheoline.widgets.app import build_app
+
+    transient_view._RUNS.clear()
+    app = build_app()
+    assert "time" in app.views and app.views.built("time") is None  # asking builds nothing
+    app.prepare()
+    assert [app.views.built(n) is None for n in app.views] == [False] + [True] * 5
+    (point,) = transient_view._RUNS
+    app.tabs.selected_index = list(app.views).index("time")
+    view = app.views["time"]
+    assert at_point(view.scenario) == point and view.run is transient_view._RUNS[point][0]

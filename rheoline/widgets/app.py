@@ -79,6 +79,9 @@ class Views(Mapping):
     def __iter__(self):
         return iter(self._builders)
 
+    def __contains__(self, name):  # Mapping's own would build the view to answer
+        return name in self._builders
+
     def __len__(self):
         return len(self._builders)
 
@@ -150,6 +153,17 @@ class App(widgets.VBox):
         self.children = [header, self.tabs]
         if self._slots:
             self._show(next(iter(self.views)))
+
+    def prepare(self):
+        """Ready what the other tabs need when first opened, without building their
+        widgets (the page fetches every widget that exists): the modules they import and
+        the time view's first solve.  The app's notebook calls it, so the served app does
+        this in its preheated kernel, before anyone opens the page."""
+        from rheoline.widgets import blood_view, compare_view, files_view, network_view  # noqa: F401
+        from rheoline.widgets.transient_view import prepare_first_run
+
+        if "time" in self.views and self.views.built("time") is None:
+            prepare_first_run(self.document)
 
     def _line_view(self):
         from rheoline.widgets.line_view import LineView

@@ -28,6 +28,9 @@ Examples
 
 from __future__ import annotations
 
+import functools
+import warnings
+
 import ipywidgets as widgets
 import numpy as np
 
@@ -45,6 +48,8 @@ __all__ = [
     "DEMO_EXAMPLE",
     "RESULT_ROWS",
     "time_scenarios",
+    "time_run",
+    "prepare_first_run",
     "with_occlusion",
     "with_rate_change",
 ]
@@ -131,10 +136,51 @@ def with_rate_change(scenario, time_min=None, rate_ml_h=None, ramp_min=0.0):
     return _with_spec(scenario, spec.with_rate_changes((change,)))
 
 
+@functools.lru_cache(maxsize=1)
 def _demo_set():
+    """The demo example's set, read once (a ScenarioSet is immutable)."""
     from rheoline.scenario.files import example_path, load_scenarios
 
     return load_scenarios(example_path(DEMO_EXAMPLE))
+
+
+#: The latest time solves by the scenario solved (one sweep point), most recent last.
+_RUNS: dict = {}
+#: How many time solves :func:`time_run` keeps.
+RUNS_KEPT = 8
+
+
+def time_run(point):
+    """The scenario layer's run of ``point`` (a scenario at one sweep point), with the time
+    solve; the latest :data:`RUNS_KEPT` are kept, keyed on the scenario (an immutable
+    description), so a scenario solved before is not solved again.
+
+    The warnings of the run are given again at every call (a range warning of a kept run
+    is shown as when it was solved).
+    """
+    from rheoline.scenario.run import run_scenarios
+
+    kept = _RUNS.pop(point, None)
+    if kept is None:
+        with warnings.catch_warnings(record=True) as caught:
+            warnings.simplefilter("always")
+            run = run_scenarios(ScenarioSet((point,), "line in time", source="<views>"))
+        kept = (run, tuple(w.message for w in caught))
+    _RUNS[point] = kept
+    while len(_RUNS) > RUNS_KEPT:
+        del _RUNS[next(iter(_RUNS))]
+    for message in kept[1]:
+        warnings.warn(message, stacklevel=2)
+    return kept[0]
+
+
+def prepare_first_run(document=None):
+    """Solve what the view shows first (the set's first time-solve scenario, else the
+    demo's), so the tab opens without waiting for it (:meth:`App.prepare`)."""
+    from rheoline.widgets.edits import at_point
+
+    mine = time_scenarios(document.scenario_set) if document is not None else []
+    time_run(at_point((mine or _demo_set().scenarios)[0]))
 
 
 #: What an empty chart says instead of blank axes.
@@ -321,8 +367,10 @@ class TransientView(View):
     def _document_changed(self):
         self._choices()
         self._show_controls()
-        if self._solved or self._shown:
-            self._solve()
+        if self._shown:
+            self._solve()  # nothing solved where the scenario shown is unchanged
+        else:
+            self._solved = False  # solved when the tab is opened
 
     # -- edits ----------------------------------------------------------------------
     def edited_scenario(self, name=None):
@@ -366,13 +414,14 @@ class TransientView(View):
         self.say("error", "the inputs did not compute; the charts show the last good state")
 
     def _solve(self):
-        from rheoline.scenario.run import run_scenarios
         from rheoline.widgets.edits import at_point, sweep_notes
 
         self._solved = True
         sc = self.scenario
-        self.run = run_scenarios(ScenarioSet((at_point(sc),), "line in time", source="<views>"))
-        self._draw()
+        run = time_run(at_point(sc))
+        if run is not self.run:  # another view's edit leaves this scenario as it was
+            self.run = run
+            self._draw()
         shown = f"{sc.name} from t = 0"
         notes = sweep_notes(sc)
         if notes:
