@@ -50,7 +50,7 @@ def _next_value(control):
 def view_changes(view):
     """{control: [ms there, ms back]} of one view."""
     out = {}
-    for name, control in list(view.controls.items()):
+    for name in list(view.controls):
         if name in SKIPPED or name not in view.controls:
             continue
         change = _next_value(view.controls[name])
