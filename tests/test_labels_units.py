@@ -142,3 +142,44 @@ def test_the_results_in_words_carry_units(app, tab):
     text = re.sub(r"<div class='rl-flag[^>]*>.*?</div>", "", app.views[tab].results.value)
     assert re.search(r"\d", text)
     assert numbers_without_unit(text) == []
+
+
+#: A sentence that speaks of a reference range ("typical adult ranges", "normal range").
+RANGE_WORDS = re.compile(r"\b(?:reference|typical|normal|usual|adult)\b[^.;:]*\branges?\b", re.I)
+#: A range shown: two numbers and a unit, and a source (an author and year) in the sentence.
+SHOWN_RANGE = re.compile(r"\d[\d,.]*\s*(?:-|to)\s*\d[\d,.]*\s*[A-Za-z%]")
+SOURCE = re.compile(r"[A-Z][a-z]+(?: et al\.| (?:&|and) [A-Z][a-z]+)? (?:19|20)\d\d")
+
+
+def _texts(view):
+    """Every HTML text of a view: status, messages, results, and other HTML outputs."""
+    seen, stack, out = set(), [view], []
+    while stack:
+        w = stack.pop()
+        if id(w) in seen:
+            continue
+        seen.add(id(w))
+        if isinstance(w, widgets.HTML) and "rl-caution-banner" not in w._dom_classes:
+            out.append(_without_tags(w.value))
+        stack.extend(getattr(w, "children", ()))
+    return out
+
+
+def test_the_rule_finds_a_range_mentioned_but_not_shown():
+    said = "context: typical adult ranges apply"
+    assert RANGE_WORDS.search(said) and not SHOWN_RANGE.search(said)
+    shown = "typical adult range 800-1,200 dyn s cm^-5 (Smith 1999)"
+    assert SHOWN_RANGE.search(shown) and SOURCE.search(shown)
+
+
+@pytest.mark.parametrize("tab", ["line", "compare", "network", "blood", "time", "files"])
+def test_no_note_mentions_a_range_it_does_not_show_with_its_source(app, tab):
+    """A note that speaks of reference ranges shows the range and its source (issue 15:
+    'a note mentions typical adult ranges that are never shown')."""
+    app.tabs.selected_index = list(app.views).index(tab)
+    texts = _texts(app.views[tab])  # the blood view's: its resistance calculator's note too
+    assert texts
+    for text in texts:
+        for sentence in re.split(r"(?<=[.;])\s+|<br>", text):
+            if RANGE_WORDS.search(sentence):
+                assert SHOWN_RANGE.search(sentence) and SOURCE.search(sentence), sentence

@@ -337,7 +337,7 @@ class BloodVesselView(View):
             f"{significant(indexed.dyn_s_per_cm5)} dyn s cm^-5 m^2</div>"
             + flag_html(
                 "note",
-                "an index of the measurements entered; no reference range is built in: "
-                "compare with the ranges your institution uses",
+                "computed from the pressures, flow, height and weight entered; "
+                "the view judges no result as high or low",
             )
         )
