@@ -206,3 +206,21 @@ def test_a_branchs_parts_are_edited_with_the_line_views_parts_editor():
     assert not view.last_update_ok
     assert "inner_diameter" in view.messages.value
     assert doc.scenario("Y-site without a check valve").topology.branches[2].parts[1] == held
+
+
+def test_flows_are_shown_in_the_flow_unit_chosen_without_solving_again():
+    view = _ward(NetworkView(), 1500.0)
+    run = view.run
+    view.set_control("flow_unit", "mL/h")
+    text = view.results.value
+    # 6.37 mL/min x 60 min/h = 382 mL/h (the same run, said in the other unit)
+    assert "gravity set: REVERSED, 382 mL/h flows back from y-site to saline bag" in text
+    assert "Reversed flow: 382 mL/h in gravity set" in text
+    assert run.table.iloc[0]["flow [mL/h]"] == pytest.approx(1120, abs=5)
+    assert "Total flow into the outlets: 1,120 mL/h</b>" in text  # three figures, once
+    labels = [a.text for a in view.figures["network"].layout.annotations if not a.showarrow]
+    assert any("<b>REVERSED</b> 382 mL/h" in t for t in labels)
+    assert view.run is run  # a unit is a way of showing, not an input
+    view.set_control("flow_unit", "L/min")
+    assert "REVERSED, 0.00637 L/min flows back" in view.results.value
+    assert "mL/h)</b>" in view.results.value  # the total also in mL/h

@@ -33,6 +33,7 @@ from __future__ import annotations
 import numpy as np
 import plotly.graph_objects as go
 
+from rheoline.units import FLOW_UNITS, ML_PER_MIN
 from rheoline.widgets.style import PALETTE, significant, user_text
 
 __all__ = ["NODE_SYMBOLS", "node_positions", "branch_paths", "network_figure", "branch_words"]
@@ -131,8 +132,14 @@ def _state(row):
     return "reversed" if row["reversed"] else "forward"
 
 
-def branch_words(row) -> str:
-    """What a branch does, in words (plain text), from its row of ``RunResult.branches``.
+def _in_unit(row, unit):
+    """The branch's flow (its size) in ``unit``, a key of :data:`rheoline.units.FLOW_UNITS`."""
+    return significant(abs(float(row["flow [mL/min]"])) * ML_PER_MIN / FLOW_UNITS[unit])
+
+
+def branch_words(row, unit: str = "mL/min") -> str:
+    """What a branch does, in words (plain text), from its row of ``RunResult.branches``;
+    its flow in ``unit`` (mL/min, mL/h, L/min or mL/s).
 
     Examples
     --------
@@ -142,27 +149,27 @@ def branch_words(row) -> str:
     """
     words = {
         "closed": "{b}: closed by its check valve (no flow from {t} to {f})",
-        "reversed": "{b}: REVERSED, {q} mL/min flows back from {t} to {f}",
-        "forward": "{b}: {q} mL/min from {f} to {t}",
+        "reversed": "{b}: REVERSED, {q} {u} flows back from {t} to {f}",
+        "forward": "{b}: {q} {u} from {f} to {t}",
     }[_state(row)]
-    q = significant(abs(float(row["flow [mL/min]"])))
-    return words.format(b=row["branch"], f=row["from"], t=row["to"], q=q)
+    q = _in_unit(row, unit)
+    return words.format(b=row["branch"], f=row["from"], t=row["to"], q=q, u=unit)
 
 
 #: A branch's label on the diagram after its (escaped) name, by what its flow does.
 _LABELS = {
     "closed": "closed (check valve)",
-    "reversed": "<b>REVERSED</b> {q} mL/min",
-    "forward": "{q} mL/min",
+    "reversed": "<b>REVERSED</b> {q} {u}",
+    "forward": "{q} {u}",
 }
 
 
-def _label(row):
-    q = significant(abs(float(row["flow [mL/min]"])))
-    return f"{user_text(str(row['branch']))}<br>" + _LABELS[_state(row)].format(q=q)
+def _label(row, unit):
+    words = _LABELS[_state(row)].format(q=_in_unit(row, unit), u=unit)
+    return f"{user_text(str(row['branch']))}<br>" + words
 
 
-def network_figure(topology, branches, nodes, title) -> go.Figure:
+def network_figure(topology, branches, nodes, title, flow_unit="mL/min") -> go.Figure:
     """The diagram of one case (see the module docstring).
 
     Parameters
@@ -172,6 +179,8 @@ def network_figure(topology, branches, nodes, title) -> go.Figure:
         The case's rows of ``RunResult.branches`` and ``RunResult.nodes``.
     title : str
         Shown above the diagram (escaped).
+    flow_unit : str
+        The unit of the branches' flows (a key of :data:`rheoline.units.FLOW_UNITS`).
     """
     positions = node_positions(topology)
     paths = branch_paths(topology, positions)
@@ -189,7 +198,7 @@ def network_figure(topology, branches, nodes, title) -> go.Figure:
                 mode="lines",
                 name=user_text(b.name),
                 line=dict(color=_COLOUR[state], width=3, dash=_DASH[state]),
-                hovertext=user_text(branch_words(row)),
+                hovertext=user_text(branch_words(row, flow_unit)),
                 hoverinfo="text",
                 showlegend=False,
             )
@@ -220,7 +229,7 @@ def network_figure(topology, branches, nodes, title) -> go.Figure:
             dict(
                 x=xs[mid],
                 y=ys[mid],
-                text=_label(row),
+                text=_label(row, flow_unit),
                 showarrow=False,
                 yshift=16,
                 font=dict(size=11),

@@ -43,7 +43,7 @@ from dataclasses import replace
 import ipywidgets as widgets
 
 from rheoline.scenario.description import ScenarioSet, Value
-from rheoline.units import from_unit, to_unit
+from rheoline.units import FLOW_UNITS, ML_PER_MIN, from_unit, to_unit
 from rheoline.widgets.base import _STYLE, View, fluid_controls, labelled, number_field
 from rheoline.widgets.network_draw import branch_words, network_figure
 from rheoline.widgets.parts_editor import PartsEditor
@@ -158,12 +158,19 @@ class NetworkView(View):
         )
         self.editor = PartsEditor(())
         c["parts"] = self.editor.version
+        c["flow_unit"] = labelled(
+            widgets.Dropdown(
+                options=list(FLOW_UNITS), value="mL/min", description="flow unit", style=_STYLE
+            ),
+            "rl-network-flow-unit",
+        )
         self.results = labelled(widgets.HTML(), "rl-network-results")
         self.figures["network"] = network_figure_placeholder()
         self._build_node_controls()
         self._show_branches()
         c["scenario"].observe(self._picked, names="value")
         c["branch"].observe(self._branch_picked, names="value")
+        self._observe("flow_unit", lambda name: self._show_run())
         self._observe("parts", self._edit_parts)
         for name in ("fluid", *_FLUID_FIELDS):
             self._observe(name, self._edit_fluid)
@@ -177,6 +184,7 @@ class NetworkView(View):
         inputs = [
             c["scenario"],
             fluid_box,
+            c["flow_unit"],
             self.node_box,
             widgets.VBox([c["branch"], self.editor], layout=widgets.Layout(margin="6px 0")),
         ]
@@ -381,13 +389,21 @@ class NetworkView(View):
             scenario_set_data(ScenarioSet((self.scenario,), source="<network view>")),
             source="<network view>",
         )
-        run = self.run = run_scenarios(sset)
+        self.run = run_scenarios(sset)
+        self._show_run()
+
+    def _show_run(self):
+        """Draw the last run and say it in words, flows in the unit chosen (no solve)."""
+        run, unit = self.run, self.controls["flow_unit"].value
+        if run is None:  # nothing computed yet (the first inputs were refused)
+            return
         row = run.table.iloc[0]
         case = row["case"]
         branches = run.branches[run.branches["case"] == case]
         nodes = run.nodes[run.nodes["case"] == case]
-        self._draw(network_figure(self.scenario.topology, branches, nodes, self.scenario.name))
-        self.results.value = _results_html(row, branches, run.flags[case])
+        topology, name = self.scenario.topology, self.scenario.name
+        self._draw(network_figure(topology, branches, nodes, name, flow_unit=unit))
+        self.results.value = _results_html(row, branches, run.flags[case], unit)
 
     def _draw(self, fresh):
         fig = self.figures["network"]
@@ -416,18 +432,22 @@ def network_figure_placeholder():
     return go.Figure(layout=go.Layout(template="simple_white", height=380))
 
 
-def _results_html(row, branches, flags):
-    """The case in words: total flow, pump pressure, each branch, the flags (escaped)."""
-    items = [f"<li>{user_text(branch_words(r))}</li>" for r in branches.to_dict("records")]
+def _results_html(row, branches, flags, unit="mL/min"):
+    """The case in words: total flow, pump pressure, each branch, the flags (escaped);
+    flows in ``unit``, the total also in mL/h where another unit is chosen."""
+    records = branches.to_dict("records")
+    items = [f"<li>{user_text(branch_words(r, unit))}</li>" for r in records]
+    total = significant(row["flow [mL/min]"] * ML_PER_MIN / FLOW_UNITS[unit])
+    also = "" if unit == "mL/h" else f" ({significant(row['flow [mL/h]'])} mL/h)"
     lines = [
-        f"<b>Total flow into the outlets: {significant(row['flow [mL/min]'])} mL/min "
-        f"({significant(row['flow [mL/h]'])} mL/h)</b>",
+        f"<b>Total flow into the outlets: {total} {unit}{also}</b>",
         f"Highest pump or source pressure: {significant(row['required pressure [mmHg]'])} mmHg",
     ]
     reversed_flow = row["reversed flow [mL/min]"]
     if reversed_flow > 0:
+        back = significant(reversed_flow * ML_PER_MIN / FLOW_UNITS[unit])
         lines.append(
-            f"<b>Reversed flow: {significant(reversed_flow)} mL/min in {user_text(row['reversed branch'])}"
+            f"<b>Reversed flow: {back} {unit} in {user_text(row['reversed branch'])}"
             "</b> (drawn dashed, its arrow pointing back)"
         )
     else:
