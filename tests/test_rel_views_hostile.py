@@ -137,7 +137,9 @@ def test_the_files_view_never_overwrites_unless_asked(app, work):
     assert files._run(files.write_pack) is False
     assert [p.name for p in folder.iterdir()] == ["keep.txt"]
     status = html.unescape(files.status.value)
-    assert "exists" in status and "'replace an existing file or pack'" in status
+    # a folder that is not an earlier pack: said at once, ticking the box would not help
+    assert "not an unchanged rheoline review pack" in status
+    assert "'replace an existing file or pack'" in status
     assert "--force" not in status and "force=" not in status  # the page has a box, no flags
 
 
