@@ -5,6 +5,7 @@
 //   (overflow hidden or clip, or text-overflow ellipsis);
 // - "cut" also: a drop-down whose chosen option, or a text or number box whose value, is
 //   wider than the box shows (measured in the box's own font);
+// - "overlap": two texts of one chart drawn over each other (more than 2 px each way);
 // - "scroll": an element that scrolls sideways because what it holds is wider than it (a
 //   box the user must scroll to see its right edge hides that edge as surely as a clip).
 // Used by tests/test_browser_layout.py and docs/screenshots.py.
@@ -61,6 +62,20 @@
       problems.push({kind: 'overflow', element: name(e), parent: name(p), text,
         right: Math.round(r.right), parent_right: Math.round(pr.right)});
     }
+  }
+  for (const plot of root.querySelectorAll('.js-plotly-plot')) {
+    if (!visible(plot)) continue;
+    const texts = [...plot.querySelectorAll('text')]
+      .map(t => ({text: (t.textContent || '').trim().slice(0, 60), r: t.getBoundingClientRect()}))
+      .filter(t => t.text && t.r.width > 0);
+    texts.forEach((a, i) => texts.slice(i + 1).forEach(b => {
+      const w = Math.min(a.r.right, b.r.right) - Math.max(a.r.left, b.r.left);
+      const h = Math.min(a.r.bottom, b.r.bottom) - Math.max(a.r.top, b.r.top);
+      if (w > 2 && h > 2) {
+        problems.push({kind: 'overlap', element: 'chart text', text: a.text, other: b.text,
+          width: Math.round(w), height: Math.round(h)});
+      }
+    }));
   }
   const page = document.documentElement;
   if (page.scrollWidth > page.clientWidth + 1) {

@@ -237,6 +237,10 @@ def network_figure(topology, branches, nodes, title, flow_unit="mL/min") -> go.F
             )
         )
     pressure = {r["node"]: r["pressure [mmHg]"] for r in nodes.to_dict("records")}
+    xs = [p[0] for p in positions.values()]
+    # a name beside its node at the drawing's left and right edges (where no branch label
+    # is), below it elsewhere
+    edge = {min(xs): "middle left", max(xs): "middle right"}
     for kind, symbol in NODE_SYMBOLS.items():
         members = [n for n in topology.nodes if n.type == kind]
         if not members:
@@ -248,7 +252,8 @@ def network_figure(topology, branches, nodes, title, flow_unit="mL/min") -> go.F
                 mode="markers+text",
                 name=kind,
                 text=[user_text(n.name) for n in members],
-                textposition="bottom center",
+                textposition=[edge.get(positions[n.name][0], "bottom center") for n in members],
+                cliponaxis=False,
                 hovertext=[
                     f"{user_text(n.name)} ({kind}): {significant(pressure[n.name])} mmHg"
                     for n in members
@@ -259,11 +264,10 @@ def network_figure(topology, branches, nodes, title, flow_unit="mL/min") -> go.F
                 ),
             )
         )
-    xs = [p[0] for p in positions.values()]
     layout = go.Layout(
         title=user_text(str(title)),
         annotations=notes,
-        xaxis=dict(visible=False, range=[min(xs) - 0.4, max(xs) + 0.4]),
+        xaxis=dict(visible=False, range=[min(xs) - 0.6, max(xs) + 0.6]),
         yaxis=dict(visible=False, scaleanchor=None),
         template="simple_white",
         height=max(380, 140 + 110 * _ROW * _column_size(positions)),
