@@ -106,3 +106,18 @@ def test_each_status_replaces_the_one_before(files):
     assert "wrote" not in _status(files) and _status(files).count("[X] failed") == 1
     assert files._run(lambda: files.save("again.toml"))
     assert _status(files) == "[ok] ok: saved 1 scenario to again.toml"
+
+
+def test_a_file_that_appears_before_the_save_is_said_in_the_pages_words(files, monkeypatch):
+    # the view's own check passes, then the file appears before the write (another program
+    # saved it): the scenario layer's refusal names force=True, the page names its box
+    monkeypatch.setattr(type(files), "_refuse_existing", lambda self, path: None)
+    (files.workspace.root / "late.toml").write_text("# written meanwhile\n", encoding="utf-8")
+    files.controls["overwrite"].value = False
+    assert files._run(lambda: files.save("late.toml")) is False
+    status = _status(files)
+    assert re.search(r"not saved: late\.toml: exists already.*tick 'replace", status), status
+    assert not FLAG.search(status) and "force" not in status
+    assert (files.workspace.root / "late.toml").read_text(
+        encoding="utf-8"
+    ) == "# written meanwhile\n"

@@ -26,7 +26,7 @@ import tempfile
 from collections.abc import Mapping
 from pathlib import Path
 
-from rheoline.errors import OutputError, ScenarioError  # OutputError re-exported
+from rheoline.errors import OutputError  # OutputError re-exported
 from rheoline.scenario.description import Axis, ScenarioSet, Value
 from rheoline.scenario.schema import (
     FORMAT_VERSION,
@@ -166,10 +166,9 @@ def save_scenarios(sset: ScenarioSet, path, force: bool = False) -> Path:
 
     Raises
     ------
-    ScenarioError
-        When ``path`` exists and ``force`` is false.
     OutputError
-        When ``path`` is a folder or not a regular file, its folder does not exist, or the
+        When ``path`` exists and ``force`` is false (``err.field`` "force", ``err.reason``
+        "exists already": a caller words its own way to replace it), or when ``path`` is a folder or not a regular file, its folder does not exist, or the
         system refuses the write (the reason named); nothing is left behind.
     """
     path = Path(path)
@@ -178,8 +177,11 @@ def save_scenarios(sset: ScenarioSet, path, force: bool = False) -> Path:
             "is a folder; give a file name, such as scenarios.toml inside it", source=str(path)
         )
     if path.exists() and not force:
-        raise ScenarioError(
-            "exists already; choose another name or pass force=True", source=str(path)
+        raise OutputError(
+            "exists already; choose another name or pass force=True",
+            source=str(path),
+            reason="exists already",
+            field="force",
         )
     if path.exists() and not path.is_file():
         raise OutputError("exists and is not a regular file; choose another name", source=str(path))

@@ -188,6 +188,8 @@ class FilesView(View):
         else the reader's message (which names the file and the field)."""
         if isinstance(exc, PackExistsError):
             return self._pack_words(exc)
+        if isinstance(exc, OutputError) and exc.field == "force":  # a file came in the way
+            return f"{self.workspace.relative(exc.source)}: {self._exists_words()}"
         if isinstance(exc, OutputError) and exc.source is not None:
             return f"{self.workspace.relative(exc.source)}: {exc.reason}"
         return str(exc)
@@ -313,12 +315,11 @@ class FilesView(View):
         box's words)."""
         if path.exists() and not self.controls["overwrite"].value:
             shown = self.workspace.relative(path)
-            tick = self.controls["overwrite"].description
-            raise OutputError(
-                f"exists already; choose another name, or tick '{tick}' to replace it",
-                source=str(path),
-                value=shown,
-            )
+            raise OutputError(self._exists_words(), source=str(path), value=shown)
+
+    def _exists_words(self) -> str:
+        tick = self.controls["overwrite"].description
+        return f"exists already; choose another name, or tick '{tick}' to replace it"
 
     def _target(self, user_path) -> Path:
         """Where to write ``user_path``: inside the workspace (made if missing), or refused."""
