@@ -119,6 +119,7 @@ def test_an_occlusion_edit_goes_into_the_shared_description(shared):
 
 def test_a_refused_edit_is_the_files_message_and_keeps_the_charts(shared):
     doc, view = shared
+    view.set_control("occlusion", True)  # as the test before leaves it (run alone, too)
     before = view.figures["pressure"].data[0].y
     view.set_control("release_min", 5.0)  # clears before it begins (at 20 min)
     assert view.last_update_ok is False
