@@ -170,6 +170,11 @@ def test_topology_description_holds_nodes_branches_and_sweeps():
         ),
         ((node("b", "bgg"), VEIN, branch("s", "b", "vein")), "node[1].type", "did you mean 'bag'"),
         (
+            (node("b", "zz"), VEIN, branch("s", "b", "vein")),
+            "node[1].type",
+            "unknown node type 'zz'. Allowed: bag, source, pump, outlet, junction.",
+        ),
+        (
             (node("b", "bag", head="1 m", flow="1 mL/h"), VEIN, branch("s", "b", "vein")),
             "node[1].flow",
             "unknown bag node field 'flow'",

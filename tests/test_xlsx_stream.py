@@ -16,8 +16,9 @@ import openpyxl
 import pandas as pd
 import pytest
 
+from rheoline.errors import OutputError
 from rheoline.scenario import pack_tables
-from rheoline.scenario.xlsx_stream import write_workbook
+from rheoline.scenario.xlsx_stream import number_fragment, write_workbook
 
 
 def _hostile():
@@ -121,13 +122,13 @@ def test_every_member_is_well_formed_xml_and_text_is_cut_at_excels_limit(tmp_pat
 def test_sheet_names_are_checked(tmp_path, name):
     sheet = ("title", ["x"], [("number", [1.0])], [8], 1)
     sheets = {name: sheet, "DUP": sheet} if name == "dup" else {name: sheet}
-    with pytest.raises(ValueError, match="sheet name"):
+    with pytest.raises(OutputError, match="sheet name"):
         write_workbook(tmp_path / "t.xlsx", sheets)
 
 
 def test_a_sheet_beyond_a_spreadsheets_grid_is_refused(tmp_path):
     rows = ("title", ["x"], [("number", [])], [8], 1_048_575)  # + title and header rows
-    with pytest.raises(ValueError, match="1,048,577 rows x 1 columns exceed"):
+    with pytest.raises(OutputError, match="1,048,577 rows x 1 columns exceed"):
         write_workbook(tmp_path / "t.xlsx", {"s": rows})
     wide = ("title", ["x"] * 16_385, [], [], 0)
     with pytest.raises(ValueError, match="16,385 columns exceed"):
@@ -135,3 +136,40 @@ def test_a_sheet_beyond_a_spreadsheets_grid_is_refused(tmp_path):
     fits = ("title", ["x"], [("number", [1.0])], [8], 1)
     write_workbook(tmp_path / "t.xlsx", {"s": fits})
     assert openpyxl.load_workbook(tmp_path / "t.xlsx")["s"]["A3"].value == 1.0
+
+
+def test_no_zip64_records_in_a_workbook_of_ordinary_size(tmp_path):
+    # APPNOTE.TXT (PKWARE, zip format specification) 4.3.7: a local file header is the
+    # signature PK\x03\x04, "version needed to extract" (2 bytes), ..., the extra field
+    # length at offset 28; ZIP64 records need version 45 and extra field id 0x0001.
+    # Spreadsheet programs are reported to refuse ZIP64 records in small files, and
+    # XlsxWriter never writes them there (the reference writer below).
+    frame = pd.DataFrame({"n [-]": [1.5, 2.5], "t": ["a", "b"]})
+    pack_tables.write_xlsx(tmp_path / "t.xlsx", {"one": frame}, "title")
+    data = (tmp_path / "t.xlsx").read_bytes()
+    with zipfile.ZipFile(tmp_path / "t.xlsx") as zf:
+        infos = zf.infolist()
+    assert any(i.filename.startswith("xl/worksheets/") for i in infos)
+    for info in infos:
+        head = data[info.header_offset : info.header_offset + 30]
+        assert head[:4] == b"PK\x03\x04"
+        version = int.from_bytes(head[4:6], "little")
+        assert version < 45, (info.filename, version)
+        name_len = int.from_bytes(head[26:28], "little")
+        extra_len = int.from_bytes(head[28:30], "little")
+        extra = data[
+            info.header_offset + 30 + name_len : info.header_offset + 30 + name_len + extra_len
+        ]
+        assert b"\x01\x00" not in extra[:2], info.filename  # no ZIP64 extended information
+
+
+def test_a_number_a_cell_cannot_hold_is_an_empty_cell(tmp_path):
+    nan, inf = float("nan"), float("inf")
+    assert number_fragment(nan) is None and number_fragment(-inf) is None
+    sheet = ("title", ["x"], [("number", [1.0, nan, inf])], [8], 3)
+    write_workbook(tmp_path / "t.xlsx", {"s": sheet})
+    sheet = openpyxl.load_workbook(tmp_path / "t.xlsx")["s"]  # loads: no NAN in a <v>
+    assert [sheet.cell(r, 1).value for r in (3, 4, 5)] == [1.0, None, None]
+    with zipfile.ZipFile(tmp_path / "t.xlsx") as zf:
+        xml = zf.read("xl/worksheets/sheet1.xml").decode()
+    assert "<v>1</v>" in xml and "NAN" not in xml and "INF" not in xml

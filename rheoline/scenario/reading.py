@@ -89,6 +89,7 @@ from rheoline.scenario.values import (
     fail_unknown,
     parse_field,
     shown,
+    table_type,
     type_name,
 )
 
@@ -435,15 +436,7 @@ def _parse_part(raw, j, at, base=""):
 def _part_type(raw, prefix, at):
     if not isinstance(raw, dict):
         at.fail(f"must be a table, got {type_name(raw)}", prefix[:-1])
-    if "type" not in raw:
-        at.fail(f"is missing; choose one of {', '.join(PART_TYPES)}", prefix + "type")
-    ptype = raw["type"]
-    if not isinstance(ptype, str) or ptype.strip().lower() not in PART_FIELDS:
-        text = shown(ptype) if isinstance(ptype, str) else type_name(ptype)
-        fail_unknown(
-            at, prefix + "type", "part type", text, PART_TYPES, cutoff=0.6, match=str(ptype).lower()
-        )
-    return ptype.strip().lower()
+    return table_type(raw, prefix, at, "part type", PART_TYPES)
 
 
 def _check_part_sizes(ptype, values, at, prefix):

@@ -67,7 +67,14 @@ from rheoline.scenario.topology import (
     NodeSpec,
     TopologySpec,
 )
-from rheoline.scenario.values import check_keys, check_text, parse_field, shown, type_name
+from rheoline.scenario.values import (
+    check_keys,
+    check_text,
+    parse_field,
+    shown,
+    table_type,
+    type_name,
+)
 
 __all__ = ["LINE_ONLY_FIELDS", "parse_branched_scenario", "topology_data"]
 
@@ -170,7 +177,7 @@ def _parse_nodes(tables, at):
     for i, raw in enumerate(tables, start=1):
         prefix = f"node[{i}]."
         name = _name(raw, prefix, at)
-        ntype = _node_type(raw, prefix, at)
+        ntype = table_type(raw, prefix, at, "node type", NODE_TYPES)
         specs = NODE_FIELDS[ntype]
         check_keys(raw, specs, at, prefix, what=f"{ntype} node field")
         for key in REQUIRED_NODE.get(ntype, ()):
@@ -184,20 +191,6 @@ def _parse_nodes(tables, at):
         nodes.append(NodeSpec(name, ntype, fields))
         _once([n.name for n in nodes], "node", prefix + "name", at)
     return nodes
-
-
-def _node_type(raw, prefix, at):
-    if "type" not in raw:
-        at.fail(f"is missing; choose one of {', '.join(NODE_TYPES)}", prefix + "type")
-    ntype = raw["type"]
-    if not isinstance(ntype, str) or ntype.strip().lower() not in NODE_FIELDS:
-        text = shown(ntype) if isinstance(ntype, str) else type_name(ntype)
-        near = difflib.get_close_matches(str(ntype).lower(), NODE_TYPES, n=1, cutoff=0.6)
-        hint = f"; did you mean '{near[0]}'?" if near else ""
-        at.fail(
-            f"unknown node type '{text}'{hint} Allowed: {', '.join(NODE_TYPES)}", prefix + "type"
-        )
-    return ntype.strip().lower()
 
 
 # --------------------------------------------------------------------------- branches

@@ -139,6 +139,18 @@ def check_keys(table, allowed, at: Where, prefix, what="key"):
             fail_unknown(at, f"{prefix}{shown(key)}", what, key, allowed, cutoff=0.6)
 
 
+def table_type(raw, prefix, at: Where, what, types) -> str:
+    """The ``type`` of the table ``raw`` at ``prefix`` (a part's, a node's), one of
+    ``types`` (lower-cased, stripped); a missing or unknown type fails naming the field."""
+    if "type" not in raw:
+        at.fail(f"is missing; choose one of {', '.join(types)}", prefix + "type")
+    kind = raw["type"]
+    if not isinstance(kind, str) or kind.strip().lower() not in types:
+        text = shown(kind) if isinstance(kind, str) else type_name(kind)
+        fail_unknown(at, prefix + "type", what, text, types, cutoff=0.6, match=str(kind).lower())
+    return kind.strip().lower()
+
+
 def fail_unknown(at: Where, path, what, value, allowed, of="", after="", cutoff=0.5, match=None):
     """Fail with "unknown <what> '<value>'<of>; did you mean '...'? Allowed: ...<after>.".
 

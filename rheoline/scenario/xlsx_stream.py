@@ -32,7 +32,10 @@ from __future__ import annotations
 
 import re
 import zipfile
+from math import isfinite
 from pathlib import Path
+
+from rheoline.errors import OutputError
 
 __all__ = ["write_workbook", "text_fragment", "number_fragment", "column_letters"]
 
@@ -118,12 +121,16 @@ def text_fragment(text, style=""):
 
 
 def number_fragment(value):
-    """The rest of a number cell after ``<c r="A1"`` (``%.16G``, as XlsxWriter writes).
+    """The rest of a number cell after ``<c r="A1"`` (``%.16G``, as XlsxWriter writes);
+    None (an empty cell) for NaN or an infinity, which a cell cannot hold (``NAN`` in
+    ``<v>`` makes the workbook unreadable).
 
     >>> number_fragment(0.1), number_fragment(2.0), number_fragment(1e-7)
     ('><v>0.1</v></c>', '><v>2</v></c>', '><v>1E-07</v></c>')
+    >>> number_fragment(float("nan")) is None
+    True
     """
-    return f"><v>{value:.16G}</v></c>"
+    return f"><v>{value:.16G}</v></c>" if isfinite(value) else None
 
 
 _TRUE, _FALSE = ' t="b"><v>1</v></c>', ' t="b"><v>0</v></c>'
@@ -134,7 +141,7 @@ def _fragments(kind, values):
     if kind == "bool":
         return [_TRUE if v else _FALSE for v in values]
     if kind == "number":
-        return [None if v is None else f"><v>{v:.16G}</v></c>" for v in values]
+        return [None if v is None else number_fragment(v) for v in values]
     memo = {}
     out = []
     for v in values:
@@ -203,7 +210,9 @@ def _sheet(zf, index, sheet):
         '</sheetData><pageMargins left="0.7" right="0.7" top="0.75" bottom="0.75" '
         'header="0.3" footer="0.3"/></worksheet>'
     )
-    with zf.open(f"xl/worksheets/sheet{index}.xml", "w", force_zip64=True) as fh:
+    # no ZIP64 records: spreadsheet programs are reported to refuse them in a small file,
+    # and a sheet within the file limits (20,000 points) is far below zip's 2 GiB
+    with zf.open(f"xl/worksheets/sheet{index}.xml", "w") as fh:
         fh.write(start.encode())
         _sheet_rows(fh, title, header, columns, n_rows)
         fh.write(end.encode())
@@ -263,7 +272,9 @@ def _package_parts(names):
 
 def _check_name(name, seen):
     if not name or len(name) > 31 or _SHEET_NAME_BAD.search(name) or name.lower() in seen:
-        raise ValueError(f"sheet name {name!r}: 1-31 characters, unique, none of []:*?/\\")
+        raise OutputError(
+            f"sheet name {name!r}: 1-31 characters, unique, none of []:*?/\\", field="sheet"
+        )
     seen.add(name.lower())
 
 
@@ -271,9 +282,10 @@ def _check_size(name, header, n_rows):
     """A sheet within a spreadsheet's grid (:data:`_MAX_ROWS` x :data:`_MAX_COLUMNS`),
     title and header rows included: never a workbook a spreadsheet cuts or refuses."""
     if n_rows + 2 > _MAX_ROWS or len(header) > _MAX_COLUMNS:
-        raise ValueError(
+        raise OutputError(
             f"sheet {name!r}: {n_rows + 2:,} rows x {len(header):,} columns exceed a "
-            f"spreadsheet's {_MAX_ROWS:,} x {_MAX_COLUMNS:,}; the CSV files hold every row"
+            f"spreadsheet's {_MAX_ROWS:,} x {_MAX_COLUMNS:,}; the CSV files hold every row",
+            field="sheet",
         )
 
 
