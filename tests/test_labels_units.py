@@ -84,17 +84,24 @@ def test_the_rule_finds_a_bare_number():
     assert numbers_without_unit("head 10 to 200") != []
 
 
-def _labels(view):
-    seen, stack, texts = set(), [view], []
+def _widgets(view):
+    """Every widget under ``view``, each once."""
+    seen, stack = set(), [view]
     while stack:
         w = stack.pop()
         if id(w) in seen:
             continue
         seen.add(id(w))
+        yield w
+        stack.extend(getattr(w, "children", ()))
+
+
+def _labels(view):
+    texts = []
+    for w in _widgets(view):
         description = getattr(w, "description", "")
         if description and isinstance(w, widgets.Widget):
             texts.append(("description", description))
-        stack.extend(getattr(w, "children", ()))
     for name, fig in view.figures.items():
         layout = fig.layout
         texts.append((f"{name} title", layout.title.text or ""))
@@ -153,16 +160,11 @@ SOURCE = re.compile(r"[A-Z][a-z]+(?: et al\.| (?:&|and) [A-Z][a-z]+)? (?:19|20)\
 
 def _texts(view):
     """Every HTML text of a view: status, messages, results, and other HTML outputs."""
-    seen, stack, out = set(), [view], []
-    while stack:
-        w = stack.pop()
-        if id(w) in seen:
-            continue
-        seen.add(id(w))
-        if isinstance(w, widgets.HTML) and "rl-caution-banner" not in w._dom_classes:
-            out.append(_without_tags(w.value))
-        stack.extend(getattr(w, "children", ()))
-    return out
+    return [
+        _without_tags(w.value)
+        for w in _widgets(view)
+        if isinstance(w, widgets.HTML) and "rl-caution-banner" not in w._dom_classes
+    ]
 
 
 def test_the_rule_finds_a_range_mentioned_but_not_shown():

@@ -204,7 +204,7 @@ class FilesView(View):
             "not a pack": f"the folder {shown} is not an unchanged rheoline review pack "
             f"({exc.detail}), so it is kept as it is even with '{tick}' ticked (that box "
             "replaces only an earlier pack); choose another folder name",
-        }.get(exc.kind, f"{shown} exists already; choose another name, or tick '{tick}'")
+        }.get(exc.kind, f"{shown}: {self._exists_words()}")
 
     def open_example(self, name=None):
         """Load the shipped example ``name`` (default: the one chosen) into the views."""
@@ -302,8 +302,9 @@ class FilesView(View):
 
         self._action = "pack"
         folder = self._target(folder or self.controls["pack_path"].value)
-        check_target(folder, force=True)  # a link, a file, a folder that is not a pack
-        self._refuse_existing(folder)  # an earlier pack, replaced only with the box ticked
+        # before the run: a link, a file, a folder that is not a pack, or an earlier pack
+        # with the box not ticked is refused (in the page's words, from the error's kind)
+        check_target(folder, force=self.controls["overwrite"].value)
         run = run_scenarios(self.current_set())
         written = write_pack(run, folder, force=self.controls["overwrite"].value)
         shown, n = self.workspace.relative(written), len(run.table)
