@@ -188,3 +188,19 @@ def test_prepare_solves_the_first_scenario_without_building_a_view():
     app.tabs.selected_index = list(app.views).index("time")
     view = app.views["time"]
     assert at_point(view.scenario) == point and view.run is transient_view._RUNS[point][0]
+
+
+def test_prepare_never_breaks_the_served_page(monkeypatch):
+    # the app's notebook calls prepare() in the served kernel: a scenario the time solve
+    # refuses must leave the page to open (the tab says why when opened), not fail the cell
+    from rheoline.errors import ScenarioError
+    from rheoline.widgets import transient_view
+    from rheoline.widgets.app import build_app
+
+    def refuse(document):
+        raise ScenarioError("refused for the test", field="occlusion")
+
+    monkeypatch.setattr(transient_view, "prepare_first_run", refuse)
+    app = build_app()
+    app.prepare()
+    assert app.views.built("time") is None

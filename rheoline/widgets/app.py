@@ -17,6 +17,8 @@ from collections.abc import Mapping
 
 import ipywidgets as widgets
 
+from rheoline.errors import RheolineError
+
 __all__ = ["App", "TAB_TITLES", "Views", "build_app", "demo_document"]
 
 
@@ -163,7 +165,10 @@ class App(widgets.VBox):
         from rheoline.widgets.transient_view import prepare_first_run
 
         if "time" in self.views and self.views.built("time") is None:
-            prepare_first_run(self.document)
+            try:
+                prepare_first_run(self.document)
+            except RheolineError:
+                pass  # only a head start: the tab solves again when opened and says why
 
     def _line_view(self):
         from rheoline.widgets.line_view import LineView
