@@ -153,14 +153,21 @@ def test_a_check_valve_closed_against_a_pump_is_an_occlusion_not_a_solution():
     )
     result = net.solve(WATER)
     assert result.conditions["pump_blocked"].tolist() == [False, True, True]
-    assert result.conditions["not_converged"].tolist() == [False, True, True]
+    # the solver itself settled (a closed valve and balanced other nodes): not_converged is
+    # its own word, while the result as a whole is not converged to a solution
+    assert result.conditions["not_converged"].tolist() == [False, False, False]
     assert not result.converged and not np.any(result.reversed)
     assert not np.any(result.conditions["backflow_into_source"])
-    assert result.node_conditions["blocked"][result.node_names.index("pump")].tolist() == [
-        False,
-        True,
-        True,
-    ]
+    # only the pump's node is blocked, not the y-site its leak fed
+    assert result.node_conditions["blocked"].sum(axis=0).tolist() == [0, 1, 1]
+    pump = result.node_names.index("pump")
+    assert result.node_conditions["blocked"][pump].tolist() == [False, True, True]
+    # no finite pressure where the pump is blocked (it was ~5e14 mmHg, the leak of the
+    # closed valve's near-zero conductance); a number at zero pump flow
+    assert np.isnan(result.pump_pressure[0]).tolist() == [False, True, True]
+    assert np.isnan(result.node_pressure[pump]).tolist() == [False, True, True]
+    assert np.isnan(result.branch_drop[1]).tolist() == [False, True, True]
+    assert np.all(np.isfinite(np.delete(result.node_pressure, pump, axis=0)))
     assert (
         "the set flow of syringe pump has no open way out: the check valve in branch pump line "
         "is closed against it" in " | ".join(result.flags)
@@ -175,6 +182,69 @@ def test_a_check_valve_closed_against_a_pump_is_an_occlusion_not_a_solution():
     ).solve(WATER)
     assert result.branch_flow[0, 0] == pytest.approx(alone.branch_flow[0], rel=1e-9)
     assert result.branch_flow[1, 0] == 0.0
+
+
+def test_of_two_pumps_only_the_one_shut_in_is_blocked_and_named():
+    # Kirchhoff 1847: what a pump feeds into a node must leave it; pump A's only branch
+    # holds a check valve facing it, so its set flow has no way out, while pump B's line
+    # is open.  Only A is blocked: its node alone is marked, the flag names A alone,
+    # A's pressure is NaN and B's, which has an answer, stays a number.
+    tube = Tube(inner_diameter=1e-3, length=1.0)
+    net = PartNetwork(
+        [
+            Branch("gravity set", "bag", "y-site", [Tube(inner_diameter=3e-3, length=1.5)]),
+            Branch("line A", "y-site", "pump A", [tube, CheckValve(k=2.0)]),
+            Branch("line B", "pump B", "y-site", [tube]),
+            Branch("catheter", "y-site", "vein", [Catheter(gauge=22)]),
+        ],
+        [PressureNode("bag", head=0.8), PressureNode("vein", pressure=800.0, outlet=True)],
+        [
+            Pump("pump A", flow=60.0 * ML_MIN, pressure_limit=40000.0, label="syringe pump A"),
+            Pump("pump B", flow=30.0 * ML_MIN, pressure_limit=40000.0, label="syringe pump B"),
+        ],
+    )
+    result = net.solve(WATER)
+    assert bool(result.conditions["pump_blocked"]) and not result.converged
+    assert not bool(result.conditions["not_converged"])
+    blocked = dict(zip(result.node_names, result.node_conditions["blocked"], strict=True))
+    assert [n for n, on in blocked.items() if on] == ["pump A"]
+    assert np.isnan(result.pump_pressure[0]) and np.isfinite(result.pump_pressure[1])
+    assert result.pump_pressure[1] == pytest.approx(result.pressure("pump B"), rel=1e-12)
+    assert result.pump_pressure[1] > result.pressure("y-site") > 800.0  # B pushes through its line
+    said = " | ".join(result.flags)
+    assert (
+        "the set flow of syringe pump A has no open way out: the check valve in branch line A "
+        "is closed against it" in said
+    )
+    assert "syringe pump B" not in said
+    # a blocked pump with a limit counts as over it (its pressure rises to the alarm)
+    assert bool(result.conditions["over_pressure_limit"])
+
+
+def test_a_pump_shut_in_behind_a_junction_is_blocked_at_the_pump_only():
+    # The closed valve need not touch the pump's node: pump -> tube -> junction -> valve
+    # facing the pump.  The set flow still has no way out (Kirchhoff 1847); the pump's
+    # node is marked, not the junction between it and the valve.
+    net = PartNetwork(
+        [
+            Branch("bag line", "bag", "y-site", [Tube(inner_diameter=3e-3, length=1.5)]),
+            Branch(
+                "valve",
+                "y-site",
+                "joint",
+                [Tube(inner_diameter=1e-3, length=0.1), CheckValve(k=2.0)],
+            ),
+            Branch("pump line", "pump", "joint", [Tube(inner_diameter=1e-3, length=1.0)]),
+            Branch("catheter", "y-site", "vein", [Catheter(gauge=22)]),
+        ],
+        [PressureNode("bag", head=0.8), PressureNode("vein", pressure=800.0, outlet=True)],
+        [Pump("pump", flow=np.array([0.0, 20.0]) * ML_MIN, label="syringe pump")],
+    )
+    result = net.solve(WATER)
+    assert result.conditions["pump_blocked"].tolist() == [False, True]
+    blocked = dict(zip(result.node_names, result.node_conditions["blocked"], strict=True))
+    assert blocked["pump"].tolist() == [False, True] and not np.any(blocked["joint"])
+    assert any("check valve in branch valve is closed against it" in f for f in result.flags)
 
 
 def test_mass_balance_at_every_node_and_vectorized_equals_scalar():

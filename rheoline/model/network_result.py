@@ -18,9 +18,6 @@ __all__ = ["NetworkResult", "NETWORK_MODELS"]
 #: Provenance keys this module's solve adds to those of the lines' own models.
 NETWORK_MODELS = ("kirchhoff-1847", "todini-pilati-1988")
 _ML_MIN = 6e7  # m^3/s -> mL/min
-#: A node whose flows miss its balance by more than this share of the scenario's largest flow
-#: holds a pump's set flow with no open way out (a converged solve balances to ~1e-15).
-_BLOCKED = 1e-9
 
 
 def _scalar(value):
@@ -37,6 +34,42 @@ def _amount(values, mask):
     """'12.3 mL/min' for one scenario, 'up to 12.3 mL/min' for several."""
     q = float(np.max(np.abs(np.where(mask, values, 0.0)))) * _ML_MIN
     return f"{q:.3g} mL/min" if mask.size == 1 else f"up to {q:.3g} mL/min"
+
+
+def _ends(network, topo):
+    """Per branch, the index in ``topo.nodes`` of its start and of its end (two lists)."""
+    index = {n: i for i, n in enumerate(topo.nodes)}
+    return [index[b.start] for b in network.branches], [index[b.end] for b in network.branches]
+
+
+def _reached(network, topo, closed):
+    """(n_nodes, *scenario_shape): the nodes joined to a bag, source or outlet by open
+    branches (a closed check valve cuts its branch), spread out from the pressure nodes."""
+    closed = np.asarray(closed, bool)
+    reach = np.zeros((len(topo.nodes), *closed.shape[1:]), bool)
+    for p in topo.pressure_nodes:
+        reach[topo.nodes.index(p.node)] = True
+    starts, ends = _ends(network, topo)
+    for _ in topo.nodes:  # each pass reaches at least one more node, or nothing changes
+        before = reach.copy()
+        for k, (s, e) in enumerate(zip(starts, ends, strict=True)):
+            joined = ~closed[k] & (reach[s] | reach[e])
+            reach[s] |= joined
+            reach[e] |= joined
+        if np.array_equal(reach, before):
+            break
+    return reach
+
+
+def _blocked_pump_nodes(network, topo, closed):
+    """(n_nodes, *scenario_shape): true at the node of each pump whose set flow (> 0)
+    reaches no bag, source or outlet through open branches, and nowhere else."""
+    reach = _reached(network, topo, closed)
+    out = np.zeros_like(reach)
+    for pump in topo.pumps:
+        row = topo.nodes.index(pump.node)
+        out[row] = ~reach[row] & (np.asarray(pump.flow, dtype=float) > 0.0)
+    return out
 
 
 @dataclass(frozen=True)
@@ -63,19 +96,23 @@ class NetworkResult:
         (n_pressure_nodes, *scenario_shape) flow [m^3/s] entering the network at each
         pressure node (negative: leaving it, at an outlet or back into a bag).
     pump_pressure : ndarray
-        (n_pumps, *scenario_shape) pressure [Pa] at each pump's node.
+        (n_pumps, *scenario_shape) pressure [Pa] at each pump's node; NaN where the pump is
+        blocked (``node_conditions["blocked"]``): its pressure would rise without bound.
     conditions : dict
         Scenario-shaped boolean arrays: ``reversed_flow`` (some branch), ``backflow_into_source``
         (some bag or reservoir takes fluid in), ``check_valve_closed``, ``over_pressure_limit``
-        (some pump), ``pump_blocked`` (a pump's set flow has no open way out: every path
-        from its node is shut by a check valve closed against it, an occlusion whose
-        pressure has no finite answer; these scenarios' flows are not a solution, so they
-        report no reversed flow and count as ``not_converged``), ``not_converged``.
+        (some pump; a blocked pump with a limit counts as over it), ``pump_blocked`` (a
+        pump's set flow has no open way out: every path from its node to a bag, source or
+        outlet is shut by a check valve closed against it, an occlusion whose pressure has
+        no finite answer; these scenarios' flows are not a solution, so they report no
+        reversed flow, and ``converged`` is False), ``not_converged`` (the solver's own:
+        its Newton steps did not settle).
     branch_conditions : dict
         (n_branches, *scenario_shape) boolean arrays ``reversed`` and ``closed``.
     node_conditions : dict
-        (n_nodes, *scenario_shape) boolean array ``blocked``: the node where a pump's set
-        flow finds no open way out.
+        (n_nodes, *scenario_shape) boolean array ``blocked``: true only at the node of a
+        pump whose set flow finds no open way out (its ``node_pressure`` and
+        ``pump_pressure`` are NaN there, and the ``branch_drop`` of its branches).
     iterations : int
         Newton (gradient-method) steps taken.
     residual_passes : int
@@ -122,20 +159,24 @@ class NetworkResult:
         inflow = np.tensordot(topo.a_fixed.T, flows, axes=(1, 0))  # into the network
         balance = np.tensordot(topo.a_free.T, flows, axes=(1, 0)) - topo.injection(shape)
         imbalance = float(np.max(np.abs(balance) / scale)) if len(topo.free_nodes) else 0.0
-        stuck_at = np.zeros((len(topo.nodes), *shape), bool)
-        for row, node in enumerate(topo.free_nodes):
-            stuck_at[topo.nodes.index(node)] = np.abs(balance[row]) > _BLOCKED * scale
+        stuck_at = _blocked_pump_nodes(network, topo, closed)
         blocked = np.any(stuck_at, axis=0)
         reversed_ = (flows < 0.0) & ~closed & ~blocked
-        pump_p = np.stack(
-            [nodes_p[topo.nodes.index(p.node)] for p in topo.pumps] or [np.zeros((0,))]
-        )
-        if not topo.pumps:
-            pump_p = np.zeros((0, *shape))
+        pump_rows = [topo.nodes.index(p.node) for p in topo.pumps]
+        pump_p = nodes_p[pump_rows]  # (n_pumps, *shape), empty without pumps
+        pump_stuck = stuck_at[pump_rows]
         over = np.zeros(shape, bool)
         for row, pump in enumerate(topo.pumps):
             if pump.pressure_limit is not None:
-                over = over | (pump_p[row] > np.asarray(pump.pressure_limit, dtype=float))
+                limit = np.asarray(pump.pressure_limit, dtype=float)
+                over = over | (pump_p[row] > limit) | pump_stuck[row]
+        # a blocked pump's pressure has no finite answer: NaN, not the huge number the
+        # near-zero conductance of the closed valve left there
+        nodes_p = np.where(stuck_at, np.nan, nodes_p)
+        pump_p = np.where(pump_stuck, np.nan, pump_p)
+        starts, ends = _ends(network, topo)
+        drop = topo.branch_drop(free_p, fixed)
+        drop = np.where(stuck_at[starts] | stuck_at[ends], np.nan, drop)
         is_source = np.array([not p.outlet for p in topo.pressure_nodes], bool)
         is_source = is_source.reshape((-1,) + (1,) * len(shape))
         conditions = {
@@ -144,14 +185,14 @@ class NetworkResult:
             "check_valve_closed": np.any(closed, axis=0),
             "over_pressure_limit": over,
             "pump_blocked": blocked,
-            "not_converged": ~np.asarray(done, bool) | blocked,
+            "not_converged": ~np.asarray(done, bool),
         }
         return cls(
             node_names=topo.nodes,
             node_pressure=nodes_p,
             branch_names=tuple(b.name for b in network.branches),
             branch_flow=flows,
-            branch_drop=topo.branch_drop(free_p, fixed),
+            branch_drop=drop,
             reversed=reversed_,
             closed=np.asarray(closed, bool),
             pressure_node_inflow=inflow,
@@ -248,27 +289,36 @@ def _other_flags(result):
             )
     blocked = result.conditions["pump_blocked"]
     if np.any(blocked):
-        network = result.network
-        ends = dict(zip(result.node_names, result.node_conditions["blocked"], strict=True))
-        shut = [
-            b.name
-            for k, b in enumerate(network.branches)
-            if np.any(result.closed[k] & (ends[b.start] | ends[b.end]))
-        ]
-        where = f"the check valve in branch {', '.join(shut)} is" if shut else "check valves are"
-        pumps = " and ".join(p.label for p in network.topology.pumps)
-        out.append(
-            f"the set flow of {pumps} has no open way out: {where} closed against it (an "
-            "occlusion: the pump's pressure rises to its alarm); the flows are not a "
-            f"solution{_in_scenarios(blocked)}"
-        )
+        out.append(_blocked_words(result, blocked))
     over = result.conditions["over_pressure_limit"]
     if np.any(over):
         out.append(f"a pump's pressure exceeds its pressure limit{_in_scenarios(over)}")
-    stuck = result.conditions["not_converged"] & ~result.conditions["pump_blocked"]
+    stuck = result.conditions["not_converged"]
     if np.any(stuck):
         out.append(
             f"the network solve did not converge{_in_scenarios(stuck)}; its flows are the last "
             "iterate"
         )
     return out
+
+
+def _blocked_words(result, blocked):
+    """'the set flow of syringe pump has no open way out: the check valve in branch ...'
+    naming only the blocked pumps and the closed valves that shut them in."""
+    network = result.network
+    topo = network.topology
+    stuck = result.node_conditions["blocked"]
+    pumps = [p.label for p in topo.pumps if np.any(stuck[topo.nodes.index(p.node)])]
+    cut_off = ~_reached(network, topo, result.closed) & blocked
+    starts, ends = _ends(network, topo)
+    shut = [
+        b.name
+        for k, b in enumerate(network.branches)
+        if np.any(result.closed[k] & (cut_off[starts[k]] | cut_off[ends[k]]))
+    ]
+    where = f"the check valve in branch {', '.join(shut)} is" if shut else "check valves are"
+    return (
+        f"the set flow of {' and '.join(pumps)} has no open way out: {where} closed against it "
+        "(an occlusion: the pump's pressure rises to its alarm, so none is given); the flows "
+        f"are not a solution{_in_scenarios(blocked)}"
+    )
