@@ -334,9 +334,46 @@ def test_a_check_valve_against_the_pump_is_flagged_as_an_occlusion():
         branch("catheter", "y", "vein"),
     )
     row = run(sset).table.iloc[0]
-    assert "pump occluded: a check valve is closed against its set flow" in row["flags"]
+    assert "pump occluded at pump: a check valve is closed against its set flow" in row["flags"]
     assert "not converged" not in row["flags"] and "pushed back" not in row["flags"]
     assert row["reversed flow [mL/min]"] == 0
+
+
+def test_a_blocked_pump_has_no_pressure_in_the_table_json_or_nodes():
+    # Pump A's only branch holds a check valve facing it: its set flow has no way out
+    # (Kirchhoff 1847), so its pressure has no finite value (it was 4.98e14 mmHg) and the
+    # highest pump pressure is empty; pump B's open line has an answer.  Only A is named.
+    valve_back = 'type = "tube"\ninner_diameter = "1 mm"\nlength = "1 m"\n' + (
+        '[[scenario.branch.part]]\ntype = "check-valve"\nk = 4.0\n'
+    )
+    sset = load(
+        BAG,
+        VEIN,
+        node("pump A", "pump", flow="60 mL/h", pressure_limit="300 mmHg"),
+        node("pump B", "pump", flow="30 mL/h"),
+        node("y", "junction"),
+        branch("gravity", "bag", "y"),
+        branch("line A", "y", "pump A", valve_back),
+        branch("line B", "pump B", "y"),
+        branch("catheter", "y", "vein"),
+    )
+    result = run(sset)
+    row = result.table.iloc[0]
+    assert np.isnan(row["required pressure [mmHg]"])
+    assert "pump occluded at pump A: a check valve is closed against its set flow" in row["flags"]
+    assert "pump B" not in row["flags"]
+    assert "implausible" not in row["flags"]  # no huge pressure left to call implausible
+    assert bool(row["over pressure limit"])  # A's pressure rises to its alarm
+    nodes = result.nodes.set_index("node")
+    assert np.isnan(nodes.loc["pump A", "pressure [mmHg]"])
+    assert bool(nodes.loc["pump A", "over pressure limit"])
+    assert np.isfinite(nodes.loc["pump B", "pressure [mmHg]"])
+    drops = result.branches.set_index("branch")["pressure drop [mmHg]"]
+    assert np.isnan(drops["line A"]) and np.isfinite(drops["line B"])
+    [record] = json.loads(json.dumps(result.records(), allow_nan=False))
+    assert record["required_pressure_mmhg"] is None
+    pressures = {n["name"]: n["pressure_mmhg"] for n in record["nodes"]}
+    assert pressures["pump A"] is None and pressures["pump B"] > 0
 
 
 def test_sweep_points_equal_single_scenarios_and_balance_mass():

@@ -99,6 +99,32 @@ def test_fluid_and_node_edits_go_through_the_scenario_layer():
     assert view.scenario.field("node[1].pressure") is None
 
 
+def test_a_blocked_pump_shows_no_pressure_and_says_why():
+    # the pump line's check valve faces the pump: its set flow has no way out, and the view
+    # gives no number for the pump's pressure (the model's was ~5e14 mmHg) but the reason
+    sset = loads_scenarios(
+        'format_version = 1\n[[scenario]]\nname = "s"\nfluid = "saline-0.9"\n'
+        '[[scenario.node]]\nname = "bag"\ntype = "bag"\nhead = "1 m"\n'
+        '[[scenario.node]]\nname = "vein"\ntype = "outlet"\n'
+        '[[scenario.node]]\nname = "pump"\ntype = "pump"\nflow = "60 mL/h"\n'
+        '[[scenario.node]]\nname = "y"\ntype = "junction"\n'
+        '[[scenario.branch]]\nname = "gravity"\nfrom = "bag"\nto = "y"\n'
+        '[[scenario.branch.part]]\ntype = "tube"\ninner_diameter = "3 mm"\nlength = "1 m"\n'
+        '[[scenario.branch]]\nname = "pump line"\nfrom = "y"\nto = "pump"\n'
+        '[[scenario.branch.part]]\ntype = "tube"\ninner_diameter = "1 mm"\nlength = "1 m"\n'
+        '[[scenario.branch.part]]\ntype = "check-valve"\nk = 4.0\n'
+        '[[scenario.branch]]\nname = "catheter"\nfrom = "y"\nto = "vein"\n'
+        '[[scenario.branch.part]]\ntype = "catheter"\ngauge = 20\n'
+    )
+    text = NetworkView(sset.scenarios).results.value
+    assert (
+        "Highest pump or source pressure: n/a (no finite value: the set flow of the pump at "
+        "pump has no open way out, a check valve is closed against it)" in text
+    )
+    assert "e+14" not in text and "mmHg" not in text.split("Highest pump")[1].split("<br>")[0]
+    assert "pump occluded at pump" in text
+
+
 def test_swept_scenarios_show_their_first_point():
     sc = load_scenarios(example_path("ward-y-site")).scenarios[0]
     one = single_point(sc)

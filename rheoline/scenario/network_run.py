@@ -9,8 +9,9 @@ call of :meth:`rheoline.model.branched.PartNetwork.solve`, in these steps:
     ``temperature [degC]``, ``drive`` ("network"), ``smallest bore [mm]``.
 ``solve`` (the network)
     ``flow [mL/min]`` and ``flow [mL/h]``: the total flow into the outlets;
-    ``required pressure [mmHg]``: the highest pump pressure (with pumps), else the highest
-    pressure applied at a bag or source; the pumps' ``pressure limit [mmHg]`` and ``over
+    ``required pressure [mmHg]``: the highest pump pressure (with pumps; empty, NaN, where
+    a pump is blocked: ``pump_blocked``), else the highest pressure applied at a bag or
+    source; the pumps' ``pressure limit [mmHg]`` and ``over
     pressure limit``; ``reversed flow [mL/min]`` and ``reversed branch``: the largest flow
     against a branch's from -> to direction and its branch (0 and "" when none); the
     conditions ``backflow_into_source``, ``reversed_flow``, ``check_valve_closed``,
@@ -241,7 +242,7 @@ class NetworkGroupRun:
         for key in ("backflow_into_source", "reversed_flow", "check_valve_closed", "pump_blocked"):
             cond[key] = res.conditions[key].reshape(n)
         cond["over_pressure_limit"] = over & bool(limits)
-        cond["not_converged"] = res.conditions["not_converged"].reshape(n) & ~cond["pump_blocked"]
+        cond["not_converged"] = res.conditions["not_converged"].reshape(n)
         cond["no_forward_flow"] = ~(total > 0) if outlets else np.zeros(n, bool)
         self.inflow = inflow
 
@@ -375,6 +376,8 @@ class NetworkGroupRun:
             for node, q in self.inflow.items()
             if self.topo.node(node).type != "outlet" and q[col] < 0.0
         ]
+        stuck = self.res.node_conditions["blocked"].reshape(-1, self.n)[:, col]
+        data["blocked"] = [node for node, on in zip(self.res.node_names, stuck, strict=True) if on]
         data["ratio"] = np.nan
         return data
 
@@ -437,6 +440,9 @@ class NetworkGroupRun:
     def _node_rows(self, col):
         n, res, case = self.n, self.res, self.columns["case"][col]
         pressure = dict(zip(res.node_names, res.node_pressure.reshape(-1, n)[:, col], strict=True))
+        stuck = dict(
+            zip(res.node_names, res.node_conditions["blocked"].reshape(-1, n)[:, col], strict=True)
+        )
         rows = []
         for node, v in zip(self.topo.nodes, self.g.nodes, strict=True):
             limit, over = np.nan, None
@@ -444,7 +450,7 @@ class NetworkGroupRun:
                 flow = float(_vec(v["flow"], n)[col])
                 if "pressure_limit" in v:
                     limit = float(_vec(v["pressure_limit"], n)[col])
-                    over = bool(pressure[node.name] > limit)
+                    over = bool(pressure[node.name] > limit or stuck[node.name])
                     limit /= MMHG
             else:
                 flow = float(self.inflow[node.name][col]) if node.held else 0.0

@@ -79,7 +79,10 @@ FLAG_WORDS = {
     "backflow_into_source": lambda d: _backflow_words(d["backflow"]),
     "reversed_flow": lambda d: f"reversed flow in {', '.join(d['reversed'])}",
     "check_valve_closed": lambda d: f"check valve closed in {', '.join(d['closed'])}",
-    "pump_blocked": "pump occluded: a check valve is closed against its set flow (no solution)",
+    "pump_blocked": lambda d: (
+        f"pump occluded at {', '.join(d['blocked'])}: a check valve is closed against its set "
+        "flow (no solution; its pressure is left empty)"
+    ),
     "turbulent": lambda d: f"turbulent: {', '.join(d['turbulent'])}",
     "transitional": lambda d: f"transitional: {', '.join(d['transitional'])}",
     "transition_zone": lambda d: (

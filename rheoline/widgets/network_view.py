@@ -38,6 +38,7 @@ True
 
 from __future__ import annotations
 
+import math
 from dataclasses import replace
 
 import ipywidgets as widgets
@@ -403,7 +404,7 @@ class NetworkView(View):
         nodes = run.nodes[run.nodes["case"] == case]
         topology, name = self.scenario.topology, self.scenario.name
         self._draw(network_figure(topology, branches, nodes, name, flow_unit=unit))
-        self.results.value = _results_html(row, branches, run.flags[case], unit)
+        self.results.value = _results_html(row, branches, run.flags[case], unit, nodes)
 
     def _draw(self, fresh):
         fig = self.figures["network"]
@@ -432,16 +433,32 @@ def network_figure_placeholder():
     return go.Figure(layout=go.Layout(template="simple_white", height=380))
 
 
-def _results_html(row, branches, flags, unit="mL/min"):
+def _drive_words(row, nodes):
+    """The highest pump or source pressure in words; where a pump is blocked (its node's
+    pressure empty in the case's ``nodes`` rows) none, and why, naming it (plain text)."""
+    pressure = float(row["required pressure [mmHg]"])
+    stuck = []
+    if not math.isfinite(pressure) and nodes is not None:
+        stuck = nodes[(nodes["type"] == "pump") & nodes["pressure [mmHg]"].isna()]["node"]
+    if len(stuck) == 0:
+        return f"Highest pump or source pressure: {significant(pressure)} mmHg"
+    return (
+        "Highest pump or source pressure: n/a (no finite value: the set flow of the pump at "
+        f"{', '.join(stuck)} has no open way out, a check valve is closed against it)"
+    )
+
+
+def _results_html(row, branches, flags, unit="mL/min", nodes=None):
     """The case in words: total flow, pump pressure, each branch, the flags (escaped);
-    flows in ``unit``, the total also in mL/h where another unit is chosen."""
+    flows in ``unit``, the total also in mL/h where another unit is chosen; ``nodes`` the
+    case's node rows (for a blocked pump's name)."""
     records = branches.to_dict("records")
     items = [f"<li>{user_text(branch_words(r, unit))}</li>" for r in records]
     total = significant(row["flow [mL/min]"] * ML_PER_MIN / FLOW_UNITS[unit])
     also = "" if unit == "mL/h" else f" ({significant(row['flow [mL/h]'])} mL/h)"
     lines = [
         f"<b>Total flow into the outlets: {total} {unit}{also}</b>",
-        f"Highest pump or source pressure: {significant(row['required pressure [mmHg]'])} mmHg",
+        user_text(_drive_words(row, nodes)),
     ]
     reversed_flow = row["reversed flow [mL/min]"]
     if reversed_flow > 0:
