@@ -39,13 +39,17 @@ import numpy as np
 
 from rheoline.errors import RheolineError
 
-__all__ = ["FlowTable", "Network", "Pump", "integrate", "FirstCrossing", "Recorder"]
+__all__ = ["FlowTable", "Network", "Pump", "integrate", "FirstCrossing", "Recorder", "dense_at"]
 
 #: Grid points per decade of flow in a segment's tabulated law (ln-ln interpolation
 #: error below about 1e-4 where the law bends, exact where it is linear).
 GRID_PER_DECADE = 40
 #: Sub-intervals of a solver step searched for a crossing.
 SUBSTEPS = 16
+#: Most regula falsi (Illinois) iterations locating a crossing kept with its state, and
+#: the fraction of the bracketing sub-interval (or of the threshold) it stops within.
+REFINE_ITERATIONS = 60
+REFINE_TOLERANCE = 1e-12
 
 
 @dataclass
@@ -335,6 +339,7 @@ class FirstCrossing:
     def __post_init__(self):
         self.time = np.full(np.shape(self.threshold), np.nan)
         self.state = None
+        self.new_times = np.zeros(0)  # the crossings found by the last update
 
     @property
     def done(self):
@@ -351,13 +356,20 @@ class FirstCrossing:
         open_ = np.isnan(self.time) & (self.t_from <= t_new) & (self.t_until > t_old)
         return bool(np.any(open_ & (self._past(value_new) >= 0)))
 
-    def update(self, times, values, states):
-        """Record crossings from sub-step samples (K+1 times, values (K+1, N))."""
+    def update(self, times, values, states, located=None):
+        """Record crossings from sub-step samples (K+1 times, values (K+1, N)).
+
+        ``located(t) -> flat state`` at per-scenario times (N,) (the step's dense output,
+        :func:`dense_at`): a tracker with ``keep_state`` then locates each crossing on it
+        (regula falsi) and keeps the state there, so the quantity at the kept state is the
+        threshold; without it the crossing is interpolated linearly between the samples.
+        """
         n = values.shape[1]
         past = self._past(values)
         inside = (times[:, None] >= self.t_from) & (times[:, None] < self.t_until)
         hit = inside & (past >= 0) & np.isnan(self.time)
         found = hit.any(axis=0)
+        self.new_times = np.zeros(0)
         if not np.any(found):
             return
         k = np.argmax(hit, axis=0)
@@ -370,10 +382,46 @@ class FirstCrossing:
         weight = np.where(first_inside | (rise <= 0), 1.0, -s0 / np.where(rise > 0, rise, 1.0))
         weight = np.clip(weight, 0.0, 1.0)
         t_cross = np.where(first_inside, np.maximum(self.t_from, t0), t0 + weight * (t1 - t0))
-        self.time = np.where(found, t_cross, self.time)
-        if self.keep_state:
+        if self.keep_state and located is not None:
+            bracket = found & ~first_inside
+            t_cross = self._locate(located, t0, t1, s0, s1, t_cross, bracket)
+            cross = np.asarray(located(t_cross)).reshape(-1, n)
+        else:
             cross = states[:, prev, cols] + weight * (states[:, k, cols] - states[:, prev, cols])
+        self.time = np.where(found, t_cross, self.time)
+        self.new_times = np.unique(t_cross[found])
+        if self.keep_state:
             self.state = cross if self.state is None else np.where(found, cross, self.state)
+
+    def _locate(self, located, t0, t1, s0, s1, t_guess, bracket):
+        """Crossing times (N,) on the dense output: Illinois regula falsi inside [t0, t1]
+        where ``bracket`` (s0 < 0 <= s1 there), ``t_guess`` elsewhere."""
+        a, b = np.where(bracket, t0, t_guess), np.where(bracket, t1, t_guess)
+        fa, fb = np.where(bracket, s0, -1.0), np.where(bracket, s1, 1.0)
+        scale = np.maximum(
+            np.abs(np.where(np.isfinite(self.threshold), self.threshold, 1.0)), 1e-300
+        )
+        t = t_guess
+        for _ in range(REFINE_ITERATIONS):
+            width = np.abs(b - a)
+            open_ = bracket & (width > REFINE_TOLERANCE * np.maximum(np.abs(b), 1.0))
+            if not np.any(open_):
+                break
+            t = np.where(open_, (a * fb - b * fa) / np.where(fb != fa, fb - fa, 1.0), t)
+            t = np.where(open_, np.clip(t, np.minimum(a, b), np.maximum(a, b)), t)
+            f = self._past(self.quantity(t, located(t)))
+            done = open_ & (np.abs(f) <= REFINE_TOLERANCE * scale)
+            right = open_ & ~done & (f >= 0)
+            left = open_ & ~done & (f < 0)
+            # Illinois: halve the value kept at the end that did not move
+            fa = np.where(right, fa * 0.5, np.where(left, f, fa))
+            a = np.where(left, t, a)
+            fb = np.where(left, fb * 0.5, np.where(right, f, fb))
+            b = np.where(right, t, b)
+            a = np.where(done, t, a)
+            b = np.where(done, t, b)
+        # the end past the threshold: its state reads at or beyond it
+        return np.where(bracket, np.where(np.abs(b - a) > 0, b, t), t_guess)
 
 
 @dataclass
@@ -419,14 +467,36 @@ def _by_quantity(trackers):
     return list(groups.values())
 
 
+def dense_at(net, dense, times):
+    """The flat state at per-scenario times (N,) [s] inside one step, from its dense output.
+
+    scipy's BDF dense output is one polynomial per state component; each scenario's
+    components are evaluated at its own time.  Another method's dense output is called
+    once per distinct time.
+    """
+    times = np.broadcast_to(np.asarray(times, dtype=float), (net.n,))
+    d = getattr(dense, "D", None)
+    if d is None or not hasattr(dense, "t_shift"):
+        out = np.empty((net.nv, net.n))
+        for t in np.unique(times):
+            cols = times == t
+            out[:, cols] = np.asarray(dense(t)).reshape(net.nv, net.n)[:, cols]
+        return out.ravel()
+    x = (times[None, :] - dense.t_shift[:, None]) / dense.denom[:, None]  # (order, N)
+    p = np.cumprod(x, axis=0)
+    d = d.reshape(d.shape[0], net.nv, net.n)
+    return (d[0] + np.einsum("kvn,kn->vn", d[1:], p)).ravel()
+
+
 def _sample(net, dense, t_old, t_new, trackers):
     times = np.linspace(t_old, t_new, SUBSTEPS + 1)
     states = dense(times).reshape(net.nv, net.n, times.size).transpose(0, 2, 1)  # (nv, K+1, N)
+    located = lambda t: dense_at(net, dense, t)  # noqa: E731
     for group in _by_quantity(trackers):
         quantity = group[0].quantity
         values = np.stack([quantity(t, states[:, i, :].ravel()) for i, t in enumerate(times)])
         for tracker in group:
-            tracker.update(times, values, states)
+            tracker.update(times, values, states, located)
 
 
 def integrate(net, y0, t0, t1, breaks=(), trackers=(), recorder=None, stop=None, rtol=1e-6):
@@ -464,6 +534,14 @@ def _step_done(net, solver, trackers, recorder):
         value = group[0].quantity(t_new, y_new)
         wanting += [tr for tr in group if tr.wants(t_old, t_new, value)]
     if wanting:
-        _sample(net, solver.dense_output(), t_old, t_new, wanting)
+        dense = solver.dense_output()
+        _sample(net, dense, t_old, t_new, wanting)
+        if recorder is not None:
+            # a crossing kept with its state (an alarm) is a row of the series: the step's
+            # dense output there, for every scenario
+            kept = [tr.new_times for tr in wanting if tr.keep_state]
+            for t in np.unique(np.concatenate(kept)) if kept else ():
+                if t_old < t < t_new:
+                    recorder.add(t, dense(t))
     if recorder is not None:
         recorder.add(t_new, y_new)

@@ -387,10 +387,9 @@ def occlusion_phase(layout, occlusion, ports, y_occ, breaks, shape, n, series, r
     state = np.where(alarmed[None], state, np.asarray(y_end).reshape(net.nv, n))
     occluded = None
     if series:
-        arrays = recorder.arrays()
-        mask = arrays[0][:, None] > np.where(alarmed, tracker.time, np.inf)[None]
-        v, q, w = (np.where(mask[:, None], np.nan, arrays[i]) for i in (1, 2, 3))
-        occluded = series_of(layout, (arrays[0], v, q, w), shape, _displaced_since(net, t0))
+        occluded = _occluded_series(
+            layout, recorder, closed, np.where(alarmed, tracker.time, np.inf), t0, release, shape
+        )
     conditions = {
         "no_alarm": ~alarmed & ~early,
         "released_before_alarm": early,
@@ -412,13 +411,58 @@ def occlusion_phase(layout, occlusion, ports, y_occ, breaks, shape, n, series, r
     return info, occluded
 
 
-def _displaced_since(net, start, running=1.0):
-    """``displaced(t)`` of the pumps from ``start`` (N,) on, running where ``running`` is 1."""
+def _occluded_series(layout, recorder, closed, alarm_time, t0, release, shape):
+    """The occluded line's series: each scenario's solver steps until its alarm, the row at
+    the alarm (the step's dense output there, recorded by the alarm's tracker), and, where
+    the occlusion holds after the alarm until a later release, the state held (pumps
+    stopped, the line shut) at the release.  Steps after a scenario's alarm are NaN."""
+    net = layout.net
+    t, volumes, flows, delivered = recorder.arrays()[:4]
+    held = (
+        np.isfinite(alarm_time) & (alarm_time < release)
+        if release is not None
+        else np.zeros(net.n, bool)
+    )
+    if np.any(held):
+        if t[-1] < release:
+            t = np.append(t, release)
+            volumes, flows, delivered = (
+                np.concatenate([a, a[-1:]]) for a in (volumes, flows, delivered)
+            )
+        # the state kept at the alarm, and the flows it passes with the line shut
+        at_alarm = np.argmin(np.abs(t[:, None] - np.where(held, alarm_time, 0.0)[None]), axis=0)
+        cols = np.arange(net.n)
+        v_held = volumes[at_alarm, :, cols].T
+        net.closed = np.arange(net.ns) == closed
+        try:
+            q_held, _ = net.flows(release, net.pressures(v_held))
+        finally:
+            net.closed = None
+        volumes[-1] = np.where(held, v_held, volumes[-1])
+        flows[-1] = np.where(held, q_held, flows[-1])
+        delivered[-1] = np.where(held, delivered[at_alarm, :, cols].T, delivered[-1])
+    end = np.where(held, np.inf, alarm_time)
+    after = t[:, None] > end[None]
+    v, q, w = (np.where(after[:, None], np.nan, a) for a in (volumes, flows, delivered))
+    if np.any(held):
+        gap = (t[:, None] > alarm_time[None]) & (t[:, None] < release) & held[None]
+        v, q, w = (np.where(gap[:, None], np.nan, a) for a in (v, q, w))
+    return series_of(layout, (t, v, q, w), shape, _displaced_since(net, t0, stop=alarm_time))
+
+
+def _displaced_since(net, start, running=1.0, stop=None):
+    """``displaced(t)`` of the pumps from ``start`` (N,) on, running where ``running`` is 1.
+
+    ``t`` counts from ``start`` (``stop`` None, a phase from 0), or is absolute, the pumps
+    stopping at ``stop`` (N,) [s] (the occluded line until its alarm).
+    """
 
     def displaced(t):
-        liquid = np.stack(
-            [sum(p.volume(start + ti) - p.volume(start) for p in net.pumps) for ti in t]
-        )
+        if stop is None:
+            ends = [start + ti for ti in t]
+        else:
+            ends = [np.minimum(ti, stop) for ti in t]
+        liquid = np.stack([sum(p.volume(e) - p.volume(start) for p in net.pumps) for e in ends])
         liquid = liquid * running
         return liquid, liquid
 

@@ -135,7 +135,9 @@ class TimeSeries:
     Attributes
     ----------
     time : ndarray
-        (n_t,) [s]: the solver's steps (from 0 at the phase's start for a release).
+        (n_t,) [s]: the solver's steps (from 0 at the phase's start for a release); an
+        occluded line adds each scenario's alarm (the step's dense output there, every
+        scenario) and, for an occlusion held past its alarm, the release.
     source_pressure : ndarray
         Gauge pressure at the main syringe [Pa] (what its pump senses).
     outlet_flow : ndarray
@@ -143,7 +145,8 @@ class TimeSeries:
     delivered_volume : ndarray
         Volume through the outlet since the phase began [m^3].
     pumped_volume : ndarray
-        Set displacement of all pumps since time 0 [m^3] (0 in a release: pumps stopped).
+        Set displacement of all pumps since the phase began [m^3] (the occluded line's
+        pumps stop at its alarm; 0 in a release after an alarm: pumps stopped).
     slack_volume : ndarray
         Displacement taken up by slack so far [m^3].
     stored_volume : ndarray
@@ -265,7 +268,10 @@ class OcclusionResult:
         When the occlusion cleared [s] (the alarm, or the given release time if later;
         NaN where neither happened within the wait).
     occluded : TimeSeries or None
-        From the occlusion on (absolute time; NaN after a scenario's alarm).
+        From the occlusion on (absolute time) to each scenario's alarm, its last row
+        (the alarm pressure); where the occlusion holds past the alarm, then the state held
+        at the release time.  NaN after a scenario's end, and between its alarm and a later
+        release.
     release : TimeSeries or None
         From the release (time since ``release_time``).
     """

@@ -382,18 +382,21 @@ def _thin(size):
 
 
 def _phase_rows(case, phase, series, col, offset=0.0):
-    """Rows of one phase of one case (absolute times; NaN steps dropped)."""
+    """Rows of one phase of one case (absolute times; NaN steps dropped before thinning, so
+    the case's own last row, its alarm, is kept)."""
     if series is None or series.time.size == 0:
         return []
-    idx = _thin(series.time.size)
-    p = np.asarray(series.source_pressure)[idx].reshape(idx.size, -1)[:, col]
-    q = np.asarray(series.outlet_flow)[idx].reshape(idx.size, -1)[:, col]
-    v = np.asarray(series.delivered_volume)[idx].reshape(idx.size, -1)[:, col]
+    n_t = series.time.size
+    p, q, v = (
+        np.asarray(a).reshape(n_t, -1)[:, col]
+        for a in (series.source_pressure, series.outlet_flow, series.delivered_volume)
+    )
+    kept = np.flatnonzero(np.isfinite(p) & np.isfinite(q))
+    idx = kept[_thin(kept.size)] if kept.size else kept
     t = (series.time[idx] + offset) / 60.0
-    keep = np.isfinite(p) & np.isfinite(q)
     return [
         [case, phase, "", a, b / _MMHG, f / _ML_PER_H, d / _ML, np.nan]
-        for a, b, f, d in zip(t[keep], p[keep], q[keep], v[keep], strict=True)
+        for a, b, f, d in zip(t, p[idx], q[idx], v[idx], strict=True)
     ]
 
 
