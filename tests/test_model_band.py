@@ -216,3 +216,43 @@ def test_bad_fluid_is_refused_with_the_fix():
     line = Line([Tube(inner_diameter=3e-3, length=1.8)])
     with pytest.raises(rheoline.errors.InputRangeError, match=r"rheoline.fluid\('water'\)"):
         model_band(line, "water", head=1.0)
+
+
+@pytest.mark.parametrize(
+    "fluid, line, head",
+    [
+        # whole blood (Carreau): the apparent viscosity moves with the flow
+        (
+            rheoline.fluid("whole-blood", temperature_c=37),
+            Line([Tube(inner_diameter=3e-3, length=1.8), Catheter(gauge=18)]),
+            np.array([0.3, 1.0, 1.5]),
+        ),
+        # water in a 4 mm x 3 m tube in the transition zone: every correction applies
+        (WATER, Line([Tube(inner_diameter=4e-3, length=3.0)]), np.array([0.35, 0.6])),
+    ],
+)
+def test_correction_slope_equals_a_difference_of_full_evaluations(fluid, line, head):
+    # the Newton step's slope of each correction, taken along the flow's path from one
+    # evaluation of the losses, equals a central difference of the correction with every
+    # lumen's viscosity and Reynolds number solved again at Q e^(+-h)
+    from rheoline.model.line_layout import build_layout
+    from rheoline.model.line_solvers import exact_losses
+    from rheoline.model.model_band import _correction_slope, _corrections
+
+    nominal = line.solve(fluid, head=head)
+    layout = build_layout(line, fluid, nominal.scenario_shape, False)
+    corrections, _ = _corrections(line, layout, nominal)
+    assert len(corrections) == (3 if fluid is WATER else 1)
+    q = np.asarray(nominal.flow, dtype=float)
+
+    def extra(correction, flow):
+        _, _, pieces, mu, _ = exact_losses(layout, fluid, flow)
+        return correction(flow, pieces[4], pieces[5], mu)
+
+    _, _, pieces, mu, dlog_mu = exact_losses(layout, fluid, q)
+    h = 1e-5  # the Churchill blend curves sharply in the transition zone
+    for correction in corrections.values():
+        got = _correction_slope(correction, q, pieces[4], pieces[5], mu, dlog_mu)
+        want = (extra(correction, q * np.exp(h)) - extra(correction, q * np.exp(-h))) / (2 * h)
+        assert np.all(np.abs(want) > 0)
+        np.testing.assert_allclose(got, want, rtol=1e-6)

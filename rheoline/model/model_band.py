@@ -79,6 +79,7 @@ BAND_CHOICES = {
 
 _TOL = 1e-12  # on ln(losses) - ln(drive)
 _MAX_ITER = 80
+_SLOPE_STEP = 1e-5  # step in ln Q of the correction's central-difference slope
 
 
 @dataclass(frozen=True)
@@ -233,12 +234,30 @@ def _friction_correction(layout, mask, which):
 
 
 # ----------------------------------------------------------------------- the solve
+def _correction_slope(correction, q, re, u, mu, dlog_mu):
+    """d(correction)/d ln Q [Pa] at ``q``, by a central difference along the flow's path.
+
+    A step t in ln Q moves the flow and each lumen's velocity by e^t, its apparent
+    viscosity by e^(t d ln mu / d ln Q) and its Reynolds number by e^(t (1 - d ln mu /
+    d ln Q)); the path is the true one to first order, whose second-order part cancels in
+    a central difference, so the slope is that of the correction to O(t^2) (t = 1e-5:
+    about 1e-10 relative, near the cube root of the rounding of a difference).
+    """
+    t = _SLOPE_STEP
+    up = np.exp(t * dlog_mu)
+    down = np.exp(-t * dlog_mu)
+    grow, shrink = np.exp(t), np.exp(-t)
+    plus = correction(q * grow, re * grow / up, u * grow, mu * up)
+    minus = correction(q * shrink, re * shrink / down, u * shrink, mu * down)
+    return (plus - minus) / (2.0 * t)
+
+
 def _flow_with_correction(layout, fluid, drive, correction, q_start, moving):
     """Flow [m^3/s] at which the line's losses plus ``correction`` equal ``drive`` [Pa].
 
-    Safeguarded Newton steps in ln Q (the line's exact slope, the correction's taken as
-    quadratic in Q), bisecting inside the bracket kept from the residual's signs.
-    Returns the flows and the mask of scenarios that converged.
+    Safeguarded Newton steps in ln Q (the line's exact slope plus the correction's along
+    the flow's path, :func:`_correction_slope`), bisecting inside the bracket kept from the
+    residual's signs.  Returns the flows and the mask of scenarios that converged.
     """
     x = np.log(np.where(moving, np.maximum(q_start, MIN_FLOW), 1.0))
     log_drive = np.log(np.where(moving, drive, 1.0))
@@ -247,7 +266,7 @@ def _flow_with_correction(layout, fluid, drive, correction, q_start, moving):
     done = ~moving
     for _ in range(_MAX_ITER):
         q = np.exp(x)
-        total, slope, pieces, mu, _ = exact_losses(layout, fluid, q)
+        total, slope, pieces, mu, dlog_mu = exact_losses(layout, fluid, q)
         extra = correction(q, pieces[4], pieces[5], mu)
         losses = np.maximum(total + extra, 1e-300)
         g = np.log(losses) - log_drive
@@ -256,7 +275,8 @@ def _flow_with_correction(layout, fluid, drive, correction, q_start, moving):
             break
         hi = np.where(g > 0, np.minimum(hi, x), hi)
         lo = np.where(g <= 0, np.maximum(lo, x), lo)
-        step = x - g * losses / np.maximum(slope + 2.0 * extra, 1e-300 * losses)
+        extra_slope = _correction_slope(correction, q, pieces[4], pieces[5], mu, dlog_mu)
+        step = x - g * losses / np.maximum(slope + extra_slope, 1e-300 * losses)
         inside = (step > lo) & (step < hi)
         both = np.isfinite(lo) & np.isfinite(hi)
         bisect = 0.5 * (np.where(both, lo, 0.0) + np.where(both, hi, 0.0))
