@@ -10,6 +10,11 @@ solving, writing):
 * ``rheoline run FILE --out DIR`` (``pack_at_limit_s``: every file of the review pack);
 * ``rheoline run FILE --json`` written to a file (``json_at_limit_s``).
 
+``benchmarks/run.py`` compiles the package's bytecode first, as a regular install has it
+(:func:`timing.compile_package`); where none was compiled before, :func:`cold` times one run
+of each without it first (the figure of a first run, and of every run where no bytecode is
+ever written).
+
 It also checks the outputs: every pack file present, one JSON record per point, each with
 the caution.
 """
@@ -17,6 +22,7 @@ the caution.
 from __future__ import annotations
 
 import json
+import os
 import statistics
 import subprocess
 import sys
@@ -24,7 +30,7 @@ import tempfile
 import time
 from pathlib import Path
 
-__all__ = ["limit_file", "run", "LIMIT_POINTS"]
+__all__ = ["limit_file", "run", "cold", "LIMIT_POINTS"]
 
 #: Sweep points of the file at the documented limit.
 LIMIT_POINTS = 20_000
@@ -101,7 +107,7 @@ def limit_file(points=LIMIT_POINTS):
     return "\n".join(out) + "\n"
 
 
-def _timed(arguments, stdout=None):
+def _timed(arguments, stdout=None, env=None):
     start = time.perf_counter()
     done = subprocess.run(
         [sys.executable, "-m", "rheoline.cli", *arguments],
@@ -109,6 +115,7 @@ def _timed(arguments, stdout=None):
         stderr=subprocess.PIPE,
         text=True,
         check=False,
+        env=env,
     )
     seconds = time.perf_counter() - start
     if done.returncode != 0:
@@ -144,3 +151,19 @@ def run(points=LIMIT_POINTS, repeats=3):
         and len(records) == points
         and all(r.get("caution") for r in records),
     }
+
+
+def cold(points=LIMIT_POINTS):
+    """Seconds of one review pack and one ``--json`` run at ``points`` sweep points, each
+    in a fresh process that writes no bytecode (``PYTHONDONTWRITEBYTECODE``), so that both
+    compile whatever modules have none: run before the package is compiled, the figures of
+    a first run."""
+    env = dict(os.environ, PYTHONDONTWRITEBYTECODE="1")
+    with tempfile.TemporaryDirectory(prefix="rheoline-bench-") as tmp:
+        folder = Path(tmp)
+        source = folder / "limit.toml"
+        source.write_text(limit_file(points), encoding="utf-8")
+        pack_s = _timed(["run", str(source), "--out", str(folder / "pack")], env=env)
+        with (folder / "out.json").open("w", encoding="utf-8") as fh:
+            json_s = _timed(["run", str(source), "--json"], stdout=fh, env=env)
+    return {"pack_s": pack_s, "json_s": json_s}

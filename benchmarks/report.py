@@ -140,9 +140,16 @@ def _header(report):
         f"{report['load_average_after']}",
     ]
     if code:
+        compiled = code.get("compiled_by_benchmark")
         out.append(
             f"bytecode: {code['cached']} of {code['modules']} modules compiled before the run"
             + ("" if code["writes_bytecode"] else " (PYTHONDONTWRITEBYTECODE: none is written)")
+            + (
+                "; not compiled by the benchmark (--no-compile)"
+                if compiled is None
+                else f"; {compiled} compiled after the benchmark's compileall, before every "
+                "timing (a regular install's state after its first run)"
+            )
         )
     for kind, counts in report["regime_counts"].items():
         missing = [k for k, v in counts.items() if v == 0]
@@ -198,6 +205,12 @@ def _cases(report):
             f"scenario file of {packs['points']:,} points (fresh processes): review pack "
             f"{packs['pack_s']:.1f} s, --json {packs['json_s']:.1f} s "
             f"({packs['json_records']:,} records); outputs complete: {packs['agree']}"
+        )
+    first = report.get("packs_first_run")
+    if first:
+        out.append(
+            f"  the same without the package's bytecode (one run each, before the compile): "
+            f"review pack {first['pack_s']:.1f} s, --json {first['json_s']:.1f} s"
         )
     net = report.get("network")
     if net:

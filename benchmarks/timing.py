@@ -8,6 +8,7 @@ BLAS and whether the package's bytecode was already compiled are reported beside
 
 from __future__ import annotations
 
+import compileall
 import gc
 import importlib.util
 import os
@@ -27,6 +28,7 @@ __all__ = [
     "machine",
     "load_average",
     "bytecode_status",
+    "compile_package",
 ]
 
 
@@ -136,3 +138,15 @@ def bytecode_status():
         "cached": cached,
         "writes_bytecode": not sys.dont_write_bytecode,
     }
+
+
+def compile_package():
+    """Compile the package's modules to bytecode (``__pycache__``, git-ignored), as
+    ``python -m compileall -q rheoline`` does and as pip does on a regular install; Python
+    reads that bytecode even where ``PYTHONDONTWRITEBYTECODE`` keeps it from writing any.
+
+    Returns the :func:`bytecode_status` afterwards (a read-only install stays as it was).
+    """
+    root = Path(rheoline.__file__).resolve().parent
+    compileall.compile_dir(str(root), quiet=2)
+    return bytecode_status()
