@@ -177,9 +177,7 @@ def test_held_out_rows_no_target_covers_are_printed_not_judged(result, tmp_path,
     # Merrill rows and the held-out plasma and tube rows are covered by targets.
     assert list(result.untargeted) == ["ko-2022"]
     s = result.untargeted["ko-2022"]
-    assert s.n == 1 and s.median_error == pytest.approx(
-        result.by_dataset["ko-2022"].median_error
-    )
+    assert s.n == 1 and s.median_error == pytest.approx(result.by_dataset["ko-2022"].median_error)
     assert result.passed  # shown beside the targets, never turned into a failure
     assert main(["validate", "--out", str(tmp_path)]) == 0
     printed = capsys.readouterr().out
