@@ -286,8 +286,11 @@ def _run(args, out, sset):
 
         run = dataclasses.replace(run, table=rank(run.table, by=args.sort))  # a run is frozen
     if args.json:
-        indent = 2 if args.pretty else None
-        out.write(json.dumps(run.records(), indent=indent, allow_nan=False) + "\n")
+        if args.pretty:
+            out.write(json.dumps(run.records(), indent=2, allow_nan=False) + "\n")
+        else:  # the same text as json.dumps(run.records()), put together by columns
+            out.write(run.records_json())
+            out.write("\n")
         print(_caution(), file=sys.stderr)
     else:
         out.write(

@@ -216,6 +216,15 @@ class RunResult:
             self.table, self.parts, self.flags, self.branches, self.nodes, self.not_computed
         )
 
+    def records_json(self):
+        """The text of ``json.dumps(self.records(), allow_nan=False)``, put together by
+        columns (see :func:`rheoline.scenario.tables.records_json`)."""
+        from rheoline.scenario.tables import records_json
+
+        return records_json(
+            self.table, self.parts, self.flags, self.branches, self.nodes, self.not_computed
+        )
+
 
 # --------------------------------------------------------------------------- the run
 def run_scenarios(sset: ScenarioSet, progress=None) -> RunResult:

@@ -12,9 +12,16 @@ from __future__ import annotations
 
 import numpy as np
 
+from rheoline.scenario.json_text import (
+    Texts,
+    array_text,
+    numbers,
+    object_texts,
+    objects_array_text,
+)
 from rheoline.scenario.writing import scenario_data
 
-__all__ = ["summary", "records", "inputs_table"]
+__all__ = ["summary", "records", "records_json", "inputs_table"]
 
 
 def summary(t, flow_unit: str = "mL/min"):
@@ -83,7 +90,6 @@ def records(table, parts, flags=None, branches=None, nodes=None, not_computed=No
     ``wall_shear_stress_pa``, ``share``), and ``caution``.  ``flags`` maps a case to its
     flags (:attr:`rheoline.scenario.run.RunResult.flags`); ``not_computed`` maps a case to
     why its time-solve values are null (:attr:`rheoline.scenario.run.RunResult.not_computed`).
-    flags (:attr:`rheoline.scenario.run.RunResult.flags`).
 
     A branched case (a row of ``branches``) adds ``reversed_flow_ml_min``,
     ``reversed_branch``, ``branches`` (a list of ``name``, ``from``, ``to``,
@@ -93,7 +99,44 @@ def records(table, parts, flags=None, branches=None, nodes=None, not_computed=No
     """
     from rheoline import CAUTION
 
-    # built by columns: each field's values converted once, vectorized, then zipped
+    fields, part_cases, part_fields, branched = _record_columns(
+        table, parts, flags, branches, nodes, not_computed
+    )
+    by_case = {}
+    names = list(part_fields)
+    for case, *values in zip(part_cases, *part_fields.values(), strict=True):
+        by_case.setdefault(case, []).append(dict(zip(names, values, strict=True)))
+    fields["parts"] = [by_case.get(case, []) for case in fields["name"]]
+    keys = list(fields)
+    return [
+        {**dict(zip(keys, values, strict=True)), **more, "caution": CAUTION}
+        for values, more in zip(zip(*fields.values(), strict=True), branched, strict=True)
+    ]
+
+
+def records_json(table, parts, flags=None, branches=None, nodes=None, not_computed=None):
+    """The text of ``json.dumps(records(...), allow_nan=False)``, byte for byte, rendered by
+    columns: each column's values written once as JSON (numbers as Python's shortest
+    round-trip repr, as :mod:`json` writes them; a value that repeats, such as a regime or a
+    reason, encoded once), then each record's text put together from them, without building
+    the records (:mod:`rheoline.scenario.json_text`)."""
+    from rheoline import CAUTION
+
+    fields, part_cases, part_fields, branched = _record_columns(
+        table, parts, flags, branches, nodes, not_computed
+    )
+    by_case = {}
+    for case, text in zip(part_cases, object_texts(part_fields), strict=True):
+        by_case.setdefault(case, []).append(text)
+    fields["parts"] = Texts(array_text(by_case.get(case, ())) for case in fields["name"])
+    tails = [{**more, "caution": CAUTION} for more in branched]
+    return objects_array_text(fields, tails)
+
+
+def _record_columns(table, parts, flags, branches, nodes, not_computed):
+    """The records' fields by column: ``(fields, part cases, part fields, branched)``;
+    ``fields`` ends with ``not_computed`` and ``flags`` (``parts`` is added by the caller),
+    ``branched`` holds each case's branched keys (``{}`` for a line)."""
     part_fields = {
         "part": _column(parts, "part"),
         "kind": _column(parts, "kind"),
@@ -103,10 +146,6 @@ def records(table, parts, flags=None, branches=None, nodes=None, not_computed=No
         "wall_shear_stress_pa": _numbers(parts, "wall shear stress [Pa]"),
         "share": _numbers(parts, "share [%]", 100.0),
     }
-    by_case = {}
-    names = list(part_fields)
-    for case, *values in zip(_column(parts, "case"), *part_fields.values(), strict=True):
-        by_case.setdefault(case, []).append(dict(zip(names, values, strict=True)))
     cases = _column(table, "case")
     flags = flags or {}
     fields = {
@@ -143,9 +182,7 @@ def records(table, parts, flags=None, branches=None, nodes=None, not_computed=No
         **_transient_fields(table),
         "not_computed": [dict((not_computed or {}).get(case, {})) for case in cases],
         "flags": [list(flags.get(case, ())) for case in cases],
-        "parts": [by_case.get(case, []) for case in cases],
     }
-    keys = list(fields)
     network = _network_records(branches, nodes)
     branched = [
         _reversed(case, flow, branch, network)
@@ -156,10 +193,7 @@ def records(table, parts, flags=None, branches=None, nodes=None, not_computed=No
             strict=True,
         )
     ]
-    return [
-        {**dict(zip(keys, values, strict=True)), **more, "caution": CAUTION}
-        for values, more in zip(zip(*fields.values(), strict=True), branched, strict=True)
-    ]
+    return fields, _column(parts, "case"), part_fields, branched
 
 
 def _column(frame, name):
@@ -176,7 +210,7 @@ def _numbers(frame, name, divisor=1.0):
     out = values.tolist()
     if not finite.all():
         out = [v if ok else None for v, ok in zip(out, finite.tolist(), strict=True)]
-    return out
+    return numbers(out)
 
 
 def _booleans(frame, name):
