@@ -67,30 +67,30 @@ def qualified_blood_models() -> tuple:
     """The blood rheology models that meet :data:`BLOOD_TARGET` on the packaged data.
 
     Each model's predictions of the rows the target selects (measured, not recalled) must
-    have a median and a largest absolute error within the target's limits.  Read from
-    :func:`rheoline.validation.run_validation` (computed once per process).
+    have a median and a largest absolute error within the target's limits.  The rows are
+    read by :func:`rheoline.validation.load_datasets` and predicted by
+    :func:`rheoline.validation.predict_row`, as :func:`rheoline.validation.run_validation`
+    predicts them, only those the target selects (computed once per process).
 
     Examples
     --------
     >>> qualified_blood_models()
     ('carreau', 'carreau-yasuda')
     """
-    from rheoline.validation import TARGETS, run_validation
+    from rheoline.validation import TARGETS, load_datasets, predict_row
     from rheoline.validation.predict import BLOOD_MODEL_VARIANTS
     from rheoline.validation.stats import error_stats
 
-    result = run_validation()
     target = next(t for t in TARGETS if t.key == BLOOD_TARGET)
-    rows = {(d.key, r.row): r for d in result.datasets for r in d.rows}
+    rows = [r for d in load_datasets() for r in d.rows if not r.recalled and target.selects(r)]
+    predictions = [p for r in rows for p in predict_row(r)]
     out = []
     for variant in BLOOD_MODEL_VARIANTS:
         chosen = [
             p
-            for p in result.predictions
+            for p in predictions
             if (p.variant == variant or (p.default and variant == BLOOD_MODEL_VARIANTS[0]))
             and p.predicted_ok
-            and not rows[(p.dataset, p.row)].recalled
-            and target.selects(rows[(p.dataset, p.row)])
         ]
         stats = error_stats(chosen)
         if (
