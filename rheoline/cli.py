@@ -288,8 +288,9 @@ def _run(args, out, sset):
     if args.json:
         if args.pretty:
             out.write(json.dumps(run.records(), indent=2, allow_nan=False) + "\n")
-        else:  # the same text as json.dumps(run.records()), put together by columns
-            out.write(run.records_json())
+        else:  # the text of json.dumps(run.records()), put together by columns, in pieces
+            for piece in run.records_json_pieces():
+                out.write(piece)
             out.write("\n")
         print(_caution(), file=sys.stderr)
     else:

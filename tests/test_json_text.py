@@ -15,6 +15,7 @@ from rheoline.scenario.json_text import (
     Texts,
     numbers,
     object_texts,
+    objects_array_pieces,
     objects_array_text,
     value_texts,
 )
@@ -88,3 +89,21 @@ def test_objects_with_tails_and_arrays_of_them():
 def test_columns_of_different_lengths_are_refused():
     with pytest.raises(ValueError, match="column 'b' has 1 values, not 2"):
         object_texts({"a": [1, 2], "b": [3]})
+
+
+def test_array_in_pieces_is_the_whole_text():
+    columns = {"i": list(range(5)), "x": numbers([0.5, None, 0.5, -0.0, 2.0])}
+    columns["t"] = Texts(["[]", "{}", "[1]", "null", "true"])
+    tails = [{"caution": "c"}] * 4 + [{"more": 1, "caution": "c"}]
+    objects = [
+        {"i": 0, "x": 0.5, "t": [], "caution": "c"},
+        {"i": 1, "x": None, "t": {}, "caution": "c"},
+        {"i": 2, "x": 0.5, "t": [1], "caution": "c"},
+        {"i": 3, "x": -0.0, "t": None, "caution": "c"},
+        {"i": 4, "x": 2.0, "t": True, "more": 1, "caution": "c"},
+    ]
+    pieces = list(objects_array_pieces(columns, tails, size=2))
+    assert len(pieces) == 3 and "".join(pieces) == json.dumps(objects)
+    assert list(objects_array_pieces({"a": []}, [])) == ["[]"]
+    with pytest.raises(ValueError, match=r"different lengths: \[4, 5\]"):
+        list(objects_array_pieces(columns, tails[:4]))

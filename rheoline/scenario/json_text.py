@@ -34,6 +34,7 @@ __all__ = [
     "value_texts",
     "object_texts",
     "objects_array_text",
+    "objects_array_pieces",
     "array_text",
 ]
 
@@ -175,13 +176,35 @@ def object_texts(columns, tails=None):
 
 
 def objects_array_text(columns, tails=None):
-    """The JSON text of the array of the objects of ``columns`` (as :func:`object_texts`),
-    put together in one piece."""
-    flat = _flat(columns, tails, "}, ")
-    if not flat:
-        return "[]"
-    flat[-1] = flat[-1][:-2]  # no separator after the last object
-    return "[" + "".join(flat) + "]"
+    """The JSON text of the array of the objects of ``columns`` (as :func:`object_texts`)."""
+    return "".join(objects_array_pieces(columns, tails))
+
+
+def objects_array_pieces(columns, tails=None, size=2048):
+    """:func:`objects_array_text` in pieces of at most ``size`` objects each (their
+    concatenation is that text), so that a writer never holds the whole text at once."""
+    lengths = {len(column) for column in columns.values()}
+    if tails is not None:
+        lengths.add(len(tails))
+    if len(lengths) > 1:
+        raise ValueError(f"columns and tails of different lengths: {sorted(lengths)}")
+    n = lengths.pop() if lengths else 0
+    if n == 0:
+        yield "[]"
+        return
+    for start in range(0, n, size):
+        stop = min(n, start + size)
+        part = {key: _piece(column, start, stop) for key, column in columns.items()}
+        flat = _flat(part, None if tails is None else tails[start:stop], "}, ")
+        if stop == n:
+            flat[-1] = flat[-1][:-2]  # no separator after the last object
+        yield ("[" if start == 0 else "") + "".join(flat) + ("]" if stop == n else "")
+
+
+def _piece(column, start, stop):
+    """``column[start:stop]``, a :class:`Numbers` or :class:`Texts` column kept as one."""
+    piece = column[start:stop]
+    return type(column)(piece) if isinstance(column, (Numbers, Texts)) else piece
 
 
 def array_text(texts):

@@ -219,9 +219,14 @@ class RunResult:
     def records_json(self):
         """The text of ``json.dumps(self.records(), allow_nan=False)``, put together by
         columns (see :func:`rheoline.scenario.tables.records_json`)."""
-        from rheoline.scenario.tables import records_json
+        return "".join(self.records_json_pieces())
 
-        return records_json(
+    def records_json_pieces(self):
+        """:meth:`records_json` in pieces of some thousands of records (their
+        concatenation is that text), for a writer that need not hold it whole."""
+        from rheoline.scenario.tables import records_json_pieces
+
+        return records_json_pieces(
             self.table, self.parts, self.flags, self.branches, self.nodes, self.not_computed
         )
 

@@ -17,11 +17,11 @@ from rheoline.scenario.json_text import (
     array_text,
     numbers,
     object_texts,
-    objects_array_text,
+    objects_array_pieces,
 )
 from rheoline.scenario.writing import scenario_data
 
-__all__ = ["summary", "records", "records_json", "inputs_table"]
+__all__ = ["summary", "records", "records_json", "records_json_pieces", "inputs_table"]
 
 
 def summary(t, flow_unit: str = "mL/min"):
@@ -120,6 +120,14 @@ def records_json(table, parts, flags=None, branches=None, nodes=None, not_comput
     round-trip repr, as :mod:`json` writes them; a value that repeats, such as a regime or a
     reason, encoded once), then each record's text put together from them, without building
     the records (:mod:`rheoline.scenario.json_text`)."""
+    return "".join(records_json_pieces(table, parts, flags, branches, nodes, not_computed))
+
+
+def records_json_pieces(
+    table, parts, flags=None, branches=None, nodes=None, not_computed=None, size=2048
+):
+    """:func:`records_json` in pieces of at most ``size`` records (their concatenation is
+    that text): ``rheoline run --json`` writes them one by one."""
     from rheoline import CAUTION
 
     fields, part_cases, part_fields, branched = _record_columns(
@@ -130,7 +138,7 @@ def records_json(table, parts, flags=None, branches=None, nodes=None, not_comput
         by_case.setdefault(case, []).append(text)
     fields["parts"] = Texts(array_text(by_case.get(case, ())) for case in fields["name"])
     tails = [{**more, "caution": CAUTION} for more in branched]
-    return objects_array_text(fields, tails)
+    return objects_array_pieces(fields, tails, size)
 
 
 def _record_columns(table, parts, flags, branches, nodes, not_computed):
