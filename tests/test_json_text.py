@@ -104,6 +104,8 @@ def test_array_in_pieces_is_the_whole_text():
     ]
     pieces = list(objects_array_pieces(columns, tails, size=2))
     assert len(pieces) == 3 and "".join(pieces) == json.dumps(objects)
+    written = Texts(json.dumps(t) for t in tails)  # tails given as their JSON text
+    assert "".join(objects_array_pieces(columns, written, size=2)) == json.dumps(objects)
     assert list(objects_array_pieces({"a": []}, [])) == ["[]"]
     with pytest.raises(ValueError, match=r"different lengths: \[4, 5\]"):
         list(objects_array_pieces(columns, tails[:4]))

@@ -67,9 +67,14 @@ def _key(value):
     hashable."""
     cls = value.__class__
     if cls is list:
-        return (list, *((x.__class__, x) for x in value))
+        return (list, tuple(value), tuple(map(type, value)))
     if cls is dict:
-        return (dict, *((k, x.__class__, x) for k, x in value.items()))
+        return (
+            dict,
+            tuple(value.items()),
+            tuple(map(type, value)),
+            tuple(map(type, value.values())),
+        )
     return (cls, value)
 
 
@@ -195,7 +200,7 @@ def objects_array_pieces(columns, tails=None, size=2048):
     for start in range(0, n, size):
         stop = min(n, start + size)
         part = {key: _piece(column, start, stop) for key, column in columns.items()}
-        flat = _flat(part, None if tails is None else tails[start:stop], "}, ")
+        flat = _flat(part, None if tails is None else _piece(tails, start, stop), "}, ")
         if stop == n:
             flat[-1] = flat[-1][:-2]  # no separator after the last object
         yield ("[" if start == 0 else "") + "".join(flat) + ("]" if stop == n else "")

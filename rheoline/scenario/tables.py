@@ -10,6 +10,8 @@ keys); the review pack lists them (:mod:`rheoline.scenario.pack_sources`).
 
 from __future__ import annotations
 
+import json
+
 import numpy as np
 
 from rheoline.scenario.json_text import (
@@ -137,8 +139,15 @@ def records_json_pieces(
     for case, text in zip(part_cases, object_texts(part_fields), strict=True):
         by_case.setdefault(case, []).append(text)
     fields["parts"] = Texts(array_text(by_case.get(case, ())) for case in fields["name"])
-    tails = [{**more, "caution": CAUTION} for more in branched]
+    caution = _json_object({"caution": CAUTION})
+    tails = Texts(
+        _json_object({**more, "caution": CAUTION}) if more else caution for more in branched
+    )
     return objects_array_pieces(fields, tails, size)
+
+
+def _json_object(value):
+    return json.dumps(value, allow_nan=False)
 
 
 def _record_columns(table, parts, flags, branches, nodes, not_computed):
