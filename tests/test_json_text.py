@@ -47,6 +47,9 @@ def test_values_of_every_kind_are_written_as_json_writes_them():
     # ASCII is escaped; a list of objects cannot be a cache key
     values = [1, 1.0, True, None, False, 0, "é – ok", {"a": 1}, {"a": True}, [1, 2], [True, 2]]
     values += [[{"x": 1.5}], 'a"b\\c\n', -0.0, 0.0, 1e-7, 1e16, 123456789.123]
+    # equal in Python, written differently: inside lists, tuples and objects too
+    values += [[0.0], [-0.0], [(1,)], [(True,)], {"a": 0.0}, {"a": -0.0}, (1, 2), (True, 2)]
+    values += [{1: "a"}, {True: "a"}, ["a", None], {"k": "v", "n": None}, ["a", None]]
     assert value_texts(values) == [json.dumps(v) for v in values]
     assert value_texts(["a", None, True, "a", False]) == ['"a"', "null", "true", '"a"', "false"]
 

@@ -61,21 +61,29 @@ def _float_text(value):
     return float.__repr__(value)
 
 
+#: The types of values (and of a list's items, a dict's keys and values) that
+#: :func:`value_texts` keys by value: no two of them are equal unless written alike once
+#: the type is in the key (a float is not: 0.0 == -0.0).
+_KEYED = frozenset({str, int, bool, type(None)})
+
+
 def _key(value):
-    """A key naming ``value`` and the type of each of its parts (so that 1, 1.0 and True,
-    equal in Python, are told apart); hashing it raises TypeError where a part is not
-    hashable."""
+    """A key naming ``value`` and the type of each of its parts (so that 1 and True, equal
+    in Python, are told apart); TypeError for a value not keyed so (a float, a nested list
+    or object: encoded each time instead)."""
     cls = value.__class__
+    if cls in _KEYED:
+        return (cls, value)
     if cls is list:
-        return (list, tuple(value), tuple(map(type, value)))
-    if cls is dict:
-        return (
-            dict,
-            tuple(value.items()),
-            tuple(map(type, value)),
-            tuple(map(type, value.values())),
-        )
-    return (cls, value)
+        parts, types = tuple(value), tuple(map(type, value))
+    elif cls is dict:
+        parts = tuple(value.items())
+        types = (*map(type, value), *map(type, value.values()))
+    else:
+        raise TypeError(f"{cls.__name__} is not keyed by value")
+    if not _KEYED.issuperset(types):
+        raise TypeError("a part is not keyed by value")
+    return (cls, parts, types)
 
 
 def value_texts(values):
@@ -134,10 +142,10 @@ def _mixed_texts(values):
             continue
         try:
             key = _key(value)
-            text = cache.get(key)
-        except TypeError:  # a part of it is not hashable (a list of objects)
+        except TypeError:  # not keyed by value: encoded as it is
             out.append(_encode(value))
             continue
+        text = cache.get(key)
         if text is None:
             text = cache[key] = _encode(value)
         out.append(text)
