@@ -314,3 +314,19 @@ def test_laliberte_warns_above_fitted_concentration():
         match=r"mass fraction of NaCl 0\.3\.\.0\.3 is outside the validated range 0\.\.0\.2645",
     ):
         v.laliberte_2007_viscosity({"NaCl": 0.3}, 20.0)
+
+
+def test_a_recipes_kept_mass_fractions_are_the_computed_ones():
+    # a w/v recipe's mass fractions are fixed at 20 degC and kept for the next fluid built
+    # from it; what is kept equals a fresh solve, and a caller's edit does not reach it
+    from rheoline.model import solutions
+
+    fresh = solutions.solution_mass_fractions({"NaCl": 9.0}, 20.0)
+    kept = solutions._recipe_mass_fractions({"NaCl": 9.0})
+    assert float(kept["NaCl"]) == float(fresh["NaCl"])
+    kept["NaCl"] = -1.0
+    assert float(solutions._recipe_mass_fractions({"NaCl": 9.0})["NaCl"]) == float(fresh["NaCl"])
+    vector = solutions._recipe_mass_fractions({"NaCl": np.array([4.5, 9.0])})
+    np.testing.assert_array_equal(vector["NaCl"][1], fresh["NaCl"])
+    # 0.9 % saline at two temperatures: the same recipe, so the same viscosity as before
+    assert v.saline_viscosity(37.0) < v.saline_viscosity(20.0)

@@ -280,9 +280,24 @@ def solution_mass_fractions(grams_per_litre, temperature_c=20.0):
     return {k: c / rho for k, c in conc.items()}
 
 
+#: Mass fractions of the scalar recipes met so far (a recipe's are fixed at 20 degC, so a
+#: fluid rebuilt at another temperature, as every view update does, reuses them).
+_RECIPE_CACHE: dict = {}
+_RECIPE_CACHE_SIZE = 64
+
+
 def _recipe_mass_fractions(recipe):
     """Mass fractions of a w/v recipe, fixed at its preparation temperature (20 degC)."""
-    return solution_mass_fractions(recipe, 20.0)
+    if not all(np.ndim(v) == 0 for v in recipe.values()):
+        return solution_mass_fractions(recipe, 20.0)  # a vector of recipes: not kept
+    key = tuple(sorted((k, float(v)) for k, v in recipe.items()))
+    ws = _RECIPE_CACHE.get(key)
+    if ws is None:
+        ws = solution_mass_fractions(recipe, 20.0)
+        if len(_RECIPE_CACHE) >= _RECIPE_CACHE_SIZE:
+            _RECIPE_CACHE.pop(next(iter(_RECIPE_CACHE)))
+        _RECIPE_CACHE[key] = ws
+    return dict(ws)
 
 
 def saline_viscosity(temperature_c, concentration=9.0):
