@@ -168,9 +168,10 @@ def test_a_check_valve_closed_against_a_pump_is_an_occlusion_not_a_solution():
     assert np.isnan(result.node_pressure[pump]).tolist() == [False, True, True]
     assert np.isnan(result.branch_drop[1]).tolist() == [False, True, True]
     assert np.all(np.isfinite(np.delete(result.node_pressure, pump, axis=0)))
+    said = " | ".join(result.flags)
     assert (
         "the set flow of syringe pump has no open way out: the check valve in branch pump line "
-        "is closed against it" in " | ".join(result.flags)
+        "is closed against it" in said
     )
     assert not any("did not converge" in f or "back into" in f for f in result.flags)
     alone = PartNetwork(
@@ -182,6 +183,22 @@ def test_a_check_valve_closed_against_a_pump_is_an_occlusion_not_a_solution():
     ).solve(WATER)
     assert result.branch_flow[0, 0] == pytest.approx(alone.branch_flow[0], rel=1e-9)
     assert result.branch_flow[1, 0] == 0.0
+    # An occluded pump delivers nothing at steady state (it stalls against the valve):
+    # every scenario is the network without the pump, the outlet flow (the pump's set flow
+    # once rode on it through the valve's leak) and the y-site pressure too (Kirchhoff 1847)
+    np.testing.assert_allclose(
+        -result.pressure_node_inflow[1], -alone.pressure_node_inflow[1], rtol=1e-9
+    )
+    for k in (0, 2):
+        np.testing.assert_allclose(result.branch_flow[k], alone.branch_flow[k // 2], rtol=1e-9)
+    np.testing.assert_allclose(result.pressure("y-site"), alone.pressure("y-site"), rtol=1e-9)
+    assert np.all(result.branch_flow[1] == 0.0)
+    # mass balance at every node, the pump's node balanced at zero set flow
+    assert result.max_imbalance < 1e-12
+    np.testing.assert_allclose(
+        result.branch_flow[0], result.branch_flow[1] + result.branch_flow[2], rtol=1e-12
+    )
+    assert "no solution with its set flow; shown with the pump delivering nothing" in said
 
 
 def test_of_two_pumps_only_the_one_shut_in_is_blocked_and_named():
@@ -200,7 +217,7 @@ def test_of_two_pumps_only_the_one_shut_in_is_blocked_and_named():
         [PressureNode("bag", head=0.8), PressureNode("vein", pressure=800.0, outlet=True)],
         [
             Pump("pump A", flow=60.0 * ML_MIN, pressure_limit=40000.0, label="syringe pump A"),
-            Pump("pump B", flow=30.0 * ML_MIN, pressure_limit=40000.0, label="syringe pump B"),
+            Pump("pump B", flow=60.0 * ML_MIN, pressure_limit=40000.0, label="syringe pump B"),
         ],
     )
     result = net.solve(WATER)
@@ -216,9 +233,27 @@ def test_of_two_pumps_only_the_one_shut_in_is_blocked_and_named():
         "the set flow of syringe pump A has no open way out: the check valve in branch line A "
         "is closed against it" in said
     )
-    assert "syringe pump B" not in said
+    [occlusion] = [f for f in result.flags if "no open way out" in f]
+    assert "syringe pump B" not in occlusion
     # a blocked pump with a limit counts as over it (its pressure rises to the alarm)
     assert bool(result.conditions["over_pressure_limit"])
+    # A delivers nothing: B's network as if A and its line were absent (Kirchhoff 1847)
+    without_a = PartNetwork(
+        [net.branches[0], net.branches[2], net.branches[3]],
+        net.pressure_nodes,
+        [net.pumps[1]],
+    ).solve(WATER)
+    assert result.max_imbalance < 1e-12 and result.branch_flow[1] == 0.0
+    np.testing.assert_allclose(result.branch_flow[[0, 2, 3]], without_a.branch_flow, rtol=1e-9)
+    for node in ("pump B", "y-site"):
+        assert result.pressure(node) == pytest.approx(without_a.pressure(node), rel=1e-9)
+    assert result.pump_pressure[1] == pytest.approx(without_a.pump_pressure[0], rel=1e-9)
+    # B pushes back into the bag; the flag names B alone, not the blocked A
+    assert result.branch_flow[0] < 0.0 and bool(result.conditions["backflow_into_source"])
+    assert [f for f in result.flags if "back into" in f] == [
+        f for f in without_a.flags if "back into" in f
+    ]
+    assert any(f.startswith("syringe pump B pushes") for f in result.flags)
 
 
 def test_a_pump_shut_in_behind_a_junction_is_blocked_at_the_pump_only():

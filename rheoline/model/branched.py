@@ -28,6 +28,8 @@ branches' slopes dh/dQ).  The first step, from zero flow where each law is its l
 resistance, is the exact solution of the linearized network (the "linearized start").
 A branch holding a :class:`~rheoline.model.parts.CheckValve` is one-way: closed (no flow)
 while its end's pressure exceeds its start's, reopened when the drop turns positive again.
+A pump whose every way out is shut by such a valve has no solution with its set flow (an
+occlusion); those scenarios are solved again, all at once, with that pump delivering nothing.
 
 References
 ----------
@@ -45,7 +47,12 @@ import numpy as np
 
 from rheoline.errors import InputRangeError, NetworkError
 from rheoline.model.line import GRAVITY, Line, _check_fluid
-from rheoline.model.network_result import NetworkResult
+from rheoline.model.network_result import (
+    NetworkResult,
+    blocked_pump_nodes,
+    branch_ends,
+    reached_nodes,
+)
 from rheoline.model.network_topology import Topology
 from rheoline.model.parts import Part
 from rheoline.model.validation import check_finite, check_nonnegative
@@ -56,6 +63,19 @@ _MAX_ITER = 60
 _TOL = 1e-11  # relative change of every branch flow at convergence
 #: Flows [m^3/s] below this take each law's laminar slope (a straight line through zero).
 _FLOOR = 1e-18
+
+
+@dataclass
+class _State:
+    """The solver's arrays: flows (m, *shape), closed one-way branches, settled scenarios,
+    free-node pressures of the last step, Newton steps and residual passes ([count])."""
+
+    flows: np.ndarray
+    closed: np.ndarray
+    done: np.ndarray
+    pressures: np.ndarray | None
+    steps: int
+    counter: list
 
 
 @dataclass(frozen=True)
@@ -309,30 +329,72 @@ class PartNetwork:
                 for p in topo.pressure_nodes
             ]
         )
-        injection = topo.injection(shape)
         m = len(self.branches)
-        flows = np.zeros((m, *shape))
         one_way = np.array([b.one_way for b in self.branches]).reshape((m,) + (1,) * len(shape))
-        closed = np.zeros((m, *shape), bool)
-        counter = [0]
-        done = np.zeros(shape, bool)
-        pressures = None
-        for iteration in range(1, max_iterations + 1):  # noqa: B007 (read after the loop)
-            h, g = self._evaluate(laws, fluid, flows, counter)
+        state = _State(
+            flows=np.zeros((m, *shape)),
+            closed=np.zeros((m, *shape), bool),
+            done=np.zeros(shape, bool),
+            pressures=None,
+            steps=0,
+            counter=[0],
+        )
+        self._iterate(laws, fluid, fixed, topo.injection(shape), one_way, state, max_iterations)
+        stuck = blocked_pump_nodes(self, topo, state.closed)
+        stalled = np.zeros((len(topo.pumps), *shape), bool)
+        rows = [topo.nodes.index(p.node) for p in topo.pumps]
+        for _ in topo.pumps:  # each round stalls at least one more pump, or none is new
+            if not np.any(stuck[rows] & ~stalled):
+                break
+            stalled = stalled | stuck[rows]
+            self._resolve_stalled(laws, fluid, fixed, one_way, state, stalled, max_iterations)
+            stuck = stuck | blocked_pump_nodes(self, topo, state.closed)
+        h, _ = self._evaluate(laws, fluid, state.flows, state.counter)
+        return NetworkResult.build(
+            self, fluid, topo, state, fixed, h, stuck, topo.injection(shape, stalled)
+        )
+
+    def _resolve_stalled(self, laws, fluid, fixed, one_way, state, stalled, max_iterations):
+        """Solve again the scenarios where a pump is blocked, with the blocked pumps' set
+        flow taken as zero (an occluded pump delivers nothing at steady state), from zero
+        flow, the valves that shut them in held closed; the others stay as they are."""
+        topo = self.topology
+        again = np.any(stalled, axis=0)
+        cut_off = ~reached_nodes(self, topo, state.closed)
+        starts, ends = branch_ends(self, topo)
+        pinned = state.closed & (cut_off[starts] | cut_off[ends]) & again
+        state.flows = np.where(again, 0.0, state.flows)
+        state.closed = np.where(again, pinned, state.closed)
+        settled = state.done
+        state.done = ~again
+        injection = topo.injection(state.flows.shape[1:], stalled)
+        self._iterate(laws, fluid, fixed, injection, one_way, state, max_iterations, pinned)
+        state.done = np.where(again, state.done, settled)
+
+    def _iterate(self, laws, fluid, fixed, injection, one_way, state, max_iterations, pinned=None):
+        """Newton steps on ``state`` (flows, closed, done, pressures, steps) until every
+        scenario has settled or ``max_iterations`` steps; ``pinned`` one-way branches stay
+        closed.  Scenarios already done are frozen (their pressures too)."""
+        topo = self.topology
+        flows, closed, done = state.flows, state.closed, state.done
+        frozen = done.copy()
+        pinned = np.zeros_like(closed) if pinned is None else pinned
+        for _ in range(max_iterations):
+            h, g = self._evaluate(laws, fluid, flows, state.counter)
             new_flows, pressures = topo.gradient_step(flows, h, g, fixed, injection, closed)
+            state.steps += 1
             # one-way branches: close on reverse flow, reopen when the drop turns positive
             drop = topo.branch_drop(pressures, fixed)
-            closed_next = one_way & np.where(closed, drop <= 0.0, new_flows < 0.0)
+            closed_next = pinned | (one_way & np.where(closed, drop <= 0.0, new_flows < 0.0))
             new_flows = np.where(closed_next, 0.0, new_flows)
             scale = np.maximum(np.max(np.abs(new_flows), axis=0), 1e-300)
             change = np.max(np.abs(new_flows - flows), axis=0) / scale
             step_done = (change < _TOL) & np.all(closed_next == closed, axis=0)
             flows = np.where(done, flows, new_flows)
             closed = np.where(done, closed, closed_next)
+            old = pressures if state.pressures is None else state.pressures
+            state.pressures = np.where(frozen, old, pressures)
             done = done | step_done
             if np.all(done):
                 break
-        h, g = self._evaluate(laws, fluid, flows, counter)
-        return NetworkResult.build(
-            self, fluid, topo, flows, pressures, fixed, closed, h, iteration, counter[0], done
-        )
+        state.flows, state.closed, state.done = flows, closed, done

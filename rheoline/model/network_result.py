@@ -36,20 +36,20 @@ def _amount(values, mask):
     return f"{q:.3g} mL/min" if mask.size == 1 else f"up to {q:.3g} mL/min"
 
 
-def _ends(network, topo):
+def branch_ends(network, topo):
     """Per branch, the index in ``topo.nodes`` of its start and of its end (two lists)."""
     index = {n: i for i, n in enumerate(topo.nodes)}
     return [index[b.start] for b in network.branches], [index[b.end] for b in network.branches]
 
 
-def _reached(network, topo, closed):
+def reached_nodes(network, topo, closed):
     """(n_nodes, *scenario_shape): the nodes joined to a bag, source or outlet by open
     branches (a closed check valve cuts its branch), spread out from the pressure nodes."""
     closed = np.asarray(closed, bool)
     reach = np.zeros((len(topo.nodes), *closed.shape[1:]), bool)
     for p in topo.pressure_nodes:
         reach[topo.nodes.index(p.node)] = True
-    starts, ends = _ends(network, topo)
+    starts, ends = branch_ends(network, topo)
     for _ in topo.nodes:  # each pass reaches at least one more node, or nothing changes
         before = reach.copy()
         for k, (s, e) in enumerate(zip(starts, ends, strict=True)):
@@ -61,10 +61,10 @@ def _reached(network, topo, closed):
     return reach
 
 
-def _blocked_pump_nodes(network, topo, closed):
+def blocked_pump_nodes(network, topo, closed):
     """(n_nodes, *scenario_shape): true at the node of each pump whose set flow (> 0)
     reaches no bag, source or outlet through open branches, and nowhere else."""
-    reach = _reached(network, topo, closed)
+    reach = reached_nodes(network, topo, closed)
     out = np.zeros_like(reach)
     for pump in topo.pumps:
         row = topo.nodes.index(pump.node)
@@ -104,9 +104,10 @@ class NetworkResult:
         (some pump; a blocked pump with a limit counts as over it), ``pump_blocked`` (a
         pump's set flow has no open way out: every path from its node to a bag, source or
         outlet is shut by a check valve closed against it, an occlusion whose pressure has
-        no finite answer; these scenarios' flows are not a solution, so they report no
-        reversed flow, and ``converged`` is False), ``not_converged`` (the solver's own:
-        its Newton steps did not settle).
+        no finite answer and no solution with that set flow; these scenarios are solved
+        again with the blocked pumps delivering nothing, as an occluded pump does at steady
+        state, and their flows and other pressures are that solution; ``converged`` is
+        False), ``not_converged`` (the solver's own: its Newton steps did not settle).
     branch_conditions : dict
         (n_branches, *scenario_shape) boolean arrays ``reversed`` and ``closed``.
     node_conditions : dict
@@ -114,12 +115,14 @@ class NetworkResult:
         pump whose set flow finds no open way out (its ``node_pressure`` and
         ``pump_pressure`` are NaN there, and the ``branch_drop`` of its branches).
     iterations : int
-        Newton (gradient-method) steps taken.
+        Newton (gradient-method) steps taken (those of a solve again with blocked pumps
+        delivering nothing included).
     residual_passes : int
         Evaluations of every branch's pressure-flow law (each a vectorized pass).
     converged : bool
     max_imbalance : float
-        Largest mass-balance error at any solved node over its largest branch flow [-].
+        Largest mass-balance error at any solved node over its largest branch flow [-] (a
+        blocked pump's node balanced at zero set flow).
     models_used : tuple of str
         Provenance keys of the network solve.
     """
@@ -145,9 +148,13 @@ class NetworkResult:
     fluid: object = field(repr=False)
 
     @classmethod
-    def build(cls, network, fluid, topo, flows, free_p, fixed, closed, h, iters, passes, done):
-        """Assemble the result from the solver's arrays (see ``PartNetwork.solve``)."""
+    def build(cls, network, fluid, topo, state, fixed, h, stuck_at, injection):
+        """Assemble the result from the solver's state (see ``PartNetwork.solve``):
+        ``stuck_at`` the blocked pumps' nodes, ``injection`` the set flows solved for (a
+        blocked pump's taken as zero)."""
+        flows, closed, done = state.flows, state.closed, state.done
         shape = flows.shape[1:]
+        free_p = state.pressures
         if free_p is None:
             free_p = np.zeros((len(topo.free_nodes), *shape))
         nodes_p = topo.node_pressure(free_p, fixed)
@@ -157,11 +164,10 @@ class NetworkResult:
         # is zero (a pump branch at zero pump flow comes out of the linear solve as +-1e-23)
         flows = np.where(np.abs(flows) <= 1e-12 * scale, 0.0, flows)
         inflow = np.tensordot(topo.a_fixed.T, flows, axes=(1, 0))  # into the network
-        balance = np.tensordot(topo.a_free.T, flows, axes=(1, 0)) - topo.injection(shape)
+        balance = np.tensordot(topo.a_free.T, flows, axes=(1, 0)) - injection
         imbalance = float(np.max(np.abs(balance) / scale)) if len(topo.free_nodes) else 0.0
-        stuck_at = _blocked_pump_nodes(network, topo, closed)
         blocked = np.any(stuck_at, axis=0)
-        reversed_ = (flows < 0.0) & ~closed & ~blocked
+        reversed_ = (flows < 0.0) & ~closed
         pump_rows = [topo.nodes.index(p.node) for p in topo.pumps]
         pump_p = nodes_p[pump_rows]  # (n_pumps, *shape), empty without pumps
         pump_stuck = stuck_at[pump_rows]
@@ -174,14 +180,14 @@ class NetworkResult:
         # near-zero conductance of the closed valve left there
         nodes_p = np.where(stuck_at, np.nan, nodes_p)
         pump_p = np.where(pump_stuck, np.nan, pump_p)
-        starts, ends = _ends(network, topo)
+        starts, ends = branch_ends(network, topo)
         drop = topo.branch_drop(free_p, fixed)
         drop = np.where(stuck_at[starts] | stuck_at[ends], np.nan, drop)
         is_source = np.array([not p.outlet for p in topo.pressure_nodes], bool)
         is_source = is_source.reshape((-1,) + (1,) * len(shape))
         conditions = {
             "reversed_flow": np.any(reversed_, axis=0),
-            "backflow_into_source": np.any(is_source & (inflow < 0.0), axis=0) & ~blocked,
+            "backflow_into_source": np.any(is_source & (inflow < 0.0), axis=0),
             "check_valve_closed": np.any(closed, axis=0),
             "over_pressure_limit": over,
             "pump_blocked": blocked,
@@ -200,8 +206,8 @@ class NetworkResult:
             conditions=conditions,
             branch_conditions={"reversed": reversed_, "closed": np.asarray(closed, bool)},
             node_conditions={"blocked": stuck_at},
-            iterations=int(iters),
-            residual_passes=int(passes),
+            iterations=int(state.steps),
+            residual_passes=int(state.counter[0]),
             converged=bool(np.all(done & ~blocked)),
             max_imbalance=imbalance,
             models_used=NETWORK_MODELS,
@@ -243,13 +249,18 @@ class NetworkResult:
         return tuple(_backflow_flags(self) + _other_flags(self))
 
 
+def _delivering(result, pump):
+    """Scenario-shaped: the pump delivers (set flow > 0, not blocked)."""
+    topo = result.network.topology
+    stuck = result.node_conditions["blocked"][topo.nodes.index(pump.node)]
+    return (np.asarray(pump.flow, dtype=float) > 0.0) & ~stuck
+
+
 def _backflow_flags(result):
-    """'syringe pump pushes 12 mL/min back into the gravity bag at the y-site (branch ...)'."""
+    """'syringe pump pushes 12 mL/min back into the gravity bag at the y-site (branch ...)'
+    naming only the pumps that deliver where the flow runs back."""
     out = []
     network = result.network
-    pumps = network.topology.pumps
-    who = " and ".join(p.label for p in pumps) if pumps else "flow from the other sources"
-    verb = "push" if len(pumps) > 1 else ("pushes" if pumps else "runs")
     told = set()
     for node in network.topology.pressure_nodes:
         if node.outlet:
@@ -258,10 +269,15 @@ def _backflow_flags(result):
             if node.node not in (branch.start, branch.end):
                 continue
             into = -result.branch_flow[b] if branch.start == node.node else result.branch_flow[b]
-            mask = (into > 0.0) & ~result.conditions["pump_blocked"]
+            mask = into > 0.0
             if not np.any(mask):
                 continue
             told.add(b)
+            pumps = [
+                p.label for p in network.topology.pumps if np.any(_delivering(result, p) & mask)
+            ]
+            who = " and ".join(pumps) if pumps else "flow from the other sources"
+            verb = "push" if len(pumps) > 1 else ("pushes" if pumps else "runs")
             other = branch.end if branch.start == node.node else branch.start
             out.append(
                 f"{who} {verb} {_amount(into, mask)} back into the {node.label} at the {other} "
@@ -309,8 +325,8 @@ def _blocked_words(result, blocked):
     topo = network.topology
     stuck = result.node_conditions["blocked"]
     pumps = [p.label for p in topo.pumps if np.any(stuck[topo.nodes.index(p.node)])]
-    cut_off = ~_reached(network, topo, result.closed) & blocked
-    starts, ends = _ends(network, topo)
+    cut_off = ~reached_nodes(network, topo, result.closed) & blocked
+    starts, ends = branch_ends(network, topo)
     shut = [
         b.name
         for k, b in enumerate(network.branches)
@@ -319,6 +335,7 @@ def _blocked_words(result, blocked):
     where = f"the check valve in branch {', '.join(shut)} is" if shut else "check valves are"
     return (
         f"the set flow of {' and '.join(pumps)} has no open way out: {where} closed against it "
-        "(an occlusion: the pump's pressure rises to its alarm, so none is given); the flows "
-        f"are not a solution{_in_scenarios(blocked)}"
+        "(an occlusion: the pump's pressure rises to its alarm, so none is given); no solution "
+        "with its set flow; shown with the pump delivering nothing (its node takes in no "
+        f"flow){_in_scenarios(blocked)}"
     )

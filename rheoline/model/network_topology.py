@@ -202,11 +202,15 @@ class Topology:
             pump_rows=tuple(free.index(p.node) for p in pumps),
         )
 
-    def injection(self, shape):
-        """Flow pushed into each free node [m^3/s], shape (n_free, *shape)."""
+    def injection(self, shape, stalled=None):
+        """Flow pushed into each free node [m^3/s], shape (n_free, *shape); ``stalled``
+        ((n_pumps, *shape) bool, optional) marks pumps taken as delivering nothing."""
         inj = np.zeros((len(self.free_nodes), *shape))
-        for row, pump in zip(self.pump_rows, self.pumps, strict=True):
-            inj[row] = inj[row] + np.asarray(pump.flow, dtype=float)
+        for k, (row, pump) in enumerate(zip(self.pump_rows, self.pumps, strict=True)):
+            flow = np.asarray(pump.flow, dtype=float)
+            if stalled is not None:
+                flow = np.where(stalled[k], 0.0, flow)
+            inj[row] = inj[row] + flow
         return inj
 
     def _fixed_drop(self, fixed):
