@@ -376,6 +376,48 @@ def test_a_blocked_pump_has_no_pressure_in_the_table_json_or_nodes():
     assert pressures["pump A"] is None and pressures["pump B"] > 0
 
 
+def test_a_blocked_pump_delivers_nothing_in_the_table_json_and_node_rows():
+    # An occluded pump delivers nothing at steady state: the case is the network without
+    # pump A and its line (Kirchhoff 1847), pump A's node row takes in 0 and the node rows
+    # balance; B pushes back into the bag and the flag names B alone.
+    valve_back = 'type = "tube"\ninner_diameter = "1 mm"\nlength = "1 m"\n' + (
+        '[[scenario.branch.part]]\ntype = "check-valve"\nk = 4.0\n'
+    )
+    common = (BAG, VEIN, node("pump B", "pump", flow="3000 mL/h"), node("y", "junction"))
+    pipes = (branch("gravity", "bag", "y"), branch("line B", "pump B", "y"))
+    pipes += (branch("catheter", "y", "vein"),)
+    with_a = run(
+        load(
+            *common,
+            node("pump A", "pump", flow="60 mL/h"),
+            *pipes,
+            branch("line A", "y", "pump A", valve_back),
+        )
+    )
+    without = run(load(*common, *pipes))
+    row, alone = with_a.table.iloc[0], without.table.iloc[0]
+    assert row["flow [mL/min]"] == pytest.approx(alone["flow [mL/min]"], rel=1e-9)
+    assert (
+        "pump occluded at pump A: a check valve is closed against its set flow (no solution "
+        "with it; shown with the pump delivering nothing" in row["flags"]
+    )
+    back = [f for f in row["flags"].split("; ") if "pushed back" in f]
+    assert back == [f for f in alone["flags"].split("; ") if "pushed back" in f]
+    assert back[0].endswith("pushed back into bag by pump B")
+    nodes = with_a.nodes.set_index("node")["flow in [mL/min]"]
+    assert nodes["pump A"] == 0.0
+    assert abs(nodes.sum()) < 1e-9 * nodes.abs().max()  # what enters leaves
+    others = without.nodes.set_index("node")
+    for name in ("bag", "vein", "pump B", "y"):
+        assert nodes[name] == pytest.approx(others.loc[name, "flow in [mL/min]"], rel=1e-9)
+        got = with_a.nodes.set_index("node").loc[name, "pressure [mmHg]"]
+        assert got == pytest.approx(others.loc[name, "pressure [mmHg]"], rel=1e-9)
+    [record] = json.loads(json.dumps(with_a.records(), allow_nan=False))
+    flow_in = {n["name"]: n["flow_in_ml_min"] for n in record["nodes"]}
+    assert flow_in["pump A"] == 0.0 and record["required_pressure_mmhg"] is None
+    assert flow_in["vein"] == pytest.approx(-alone["flow [mL/min]"], rel=1e-9)
+
+
 def test_sweep_points_equal_single_scenarios_and_balance_mass():
     text = HEAD + "".join(
         [

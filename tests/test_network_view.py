@@ -119,7 +119,8 @@ def test_a_blocked_pump_shows_no_pressure_and_says_why():
     text = NetworkView(sset.scenarios).results.value
     assert (
         "Highest pump or source pressure: n/a (no finite value: the set flow of the pump at "
-        "pump has no open way out, a check valve is closed against it)" in text
+        "pump has no open way out, a check valve is closed against it; the flows are shown with "
+        "that pump delivering nothing)" in text
     )
     assert "e+14" not in text and "mmHg" not in text.split("Highest pump")[1].split("<br>")[0]
     assert "pump occluded at pump" in text

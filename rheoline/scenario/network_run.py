@@ -370,14 +370,19 @@ class NetworkGroupRun:
         for key, mask in (("reversed", self.res.reversed), ("closed", self.res.closed)):
             held = mask.reshape(-1, self.n)[:, col]
             data[key] = [b.name for b, on in zip(self.net.branches, held, strict=True) if on]
-        pumps = [p.node for p in self.net.topology.pumps]
+        stuck = self.res.node_conditions["blocked"].reshape(-1, self.n)[:, col]
+        blocked = [node for node, on in zip(self.res.node_names, stuck, strict=True) if on]
+        pumps = [
+            p.node
+            for p in self.net.topology.pumps
+            if p.node not in blocked and float(_vec(p.flow, self.n)[col]) > 0.0
+        ]
         data["backflow"] = [
             (node, float(-q[col] / ML_PER_MIN), pumps)
             for node, q in self.inflow.items()
             if self.topo.node(node).type != "outlet" and q[col] < 0.0
         ]
-        stuck = self.res.node_conditions["blocked"].reshape(-1, self.n)[:, col]
-        data["blocked"] = [node for node, on in zip(self.res.node_names, stuck, strict=True) if on]
+        data["blocked"] = blocked
         data["ratio"] = np.nan
         return data
 
@@ -447,7 +452,8 @@ class NetworkGroupRun:
         for node, v in zip(self.topo.nodes, self.g.nodes, strict=True):
             limit, over = np.nan, None
             if node.type == "pump":
-                flow = float(_vec(v["flow"], n)[col])
+                # a blocked pump delivers nothing (the solve's answer for it)
+                flow = 0.0 if stuck[node.name] else float(_vec(v["flow"], n)[col])
                 if "pressure_limit" in v:
                     limit = float(_vec(v["pressure_limit"], n)[col])
                     over = bool(pressure[node.name] > limit or stuck[node.name])

@@ -81,7 +81,8 @@ FLAG_WORDS = {
     "check_valve_closed": lambda d: f"check valve closed in {', '.join(d['closed'])}",
     "pump_blocked": lambda d: (
         f"pump occluded at {', '.join(d['blocked'])}: a check valve is closed against its set "
-        "flow (no solution; its pressure is left empty)"
+        "flow (no solution with it; shown with the pump delivering nothing, its pressure "
+        "left empty)"
     ),
     "turbulent": lambda d: f"turbulent: {', '.join(d['turbulent'])}",
     "transitional": lambda d: f"transitional: {', '.join(d['transitional'])}",

@@ -444,7 +444,8 @@ def _drive_words(row, nodes):
         return f"Highest pump or source pressure: {significant(pressure)} mmHg"
     return (
         "Highest pump or source pressure: n/a (no finite value: the set flow of the pump at "
-        f"{', '.join(stuck)} has no open way out, a check valve is closed against it)"
+        f"{', '.join(stuck)} has no open way out, a check valve is closed against it; the "
+        "flows are shown with that pump delivering nothing)"
     )
 
 
