@@ -195,6 +195,7 @@ class Network:
         self.wscale = np.ones(self.n)
         self._pattern()
         self.beyond_table = np.zeros(self.n, bool)
+        self._kept = None  # the last state asked for by state_flows, and its flows
 
     def set_scales(self, pressure_scale, volume_scale):
         """State scales: node volumes by C p_ref, delivered volumes by ``volume_scale``."""
@@ -248,8 +249,8 @@ class Network:
             out[self.closed] = 0.0
         return out
 
-    def flows(self, t, pressures):
-        """Flow (ns, N) [m^3/s] and slope dQ/d(dp) of every segment."""
+    def _table_flows(self, pressures):
+        """Flow (ns, N) [m^3/s] and slope of every segment by its law, all open."""
         q = np.empty((self.ns, self.n))
         g = np.empty((self.ns, self.n))
         for s, table in enumerate(self.tables):
@@ -258,8 +259,26 @@ class Network:
             dp = pressures[self.seg_up[s]] + self.gravity[s] - p_down
             q[s], g[s], beyond = table.flow(dp)
             self.beyond_table |= beyond
+        return q, g
+
+    def flows(self, t, pressures):
+        """Flow (ns, N) [m^3/s] and slope dQ/d(dp) of every segment."""
+        q, g = self._table_flows(pressures)
         factor = self.open_factor(t)
         return q * factor, g * factor
+
+    def state_flows(self, t, y):
+        """Node volumes, delivered volumes, pressures and segment flows of a flat state at
+        ``t``.  The last state's are kept: a step's end is asked for by its trackers and
+        by its recorder (the same numbers, computed once)."""
+        y = np.asarray(y)
+        kept = self._kept
+        if kept is None or kept[0].shape != y.shape or not np.array_equal(kept[0], y):
+            volumes, delivered = self.split(y)
+            p = self.pressures(volumes)
+            self._kept = kept = (y.copy(), volumes, delivered, p, *self._table_flows(p))
+        factor = self.open_factor(t)
+        return kept[1], kept[2], kept[3], kept[4] * factor
 
     def pump_rates(self, t):
         """(nn, N) [m^3/s] liquid displaced into each node at time ``t``."""
@@ -274,9 +293,7 @@ class Network:
 
     def outlet_flow_of(self, t, y):
         """Outlet flow (N,) [m^3/s] of a flat state at time ``t``."""
-        volumes, _ = self.split(y)
-        q, _ = self.flows(t, self.pressures(volumes))
-        return self.outlet_flow(q)
+        return self.outlet_flow(self.state_flows(t, y)[3])
 
     def delivered_of(self, y):
         """Volume (N,) [m^3] delivered through the outlet, of a flat state."""
@@ -442,8 +459,7 @@ class Recorder:
             return
         net = self.net
         t_eval = t - 1e-9 * max(1.0, abs(t)) if left else t
-        volumes, delivered = net.split(y)
-        q, _ = net.flows(t_eval, net.pressures(volumes))
+        volumes, delivered, _, q = net.state_flows(t_eval, y)
         self.t.append(float(t))
         self.volumes.append(volumes)
         self.flows.append(q)
