@@ -910,6 +910,34 @@ def test_any_rheology_parameters_solve_to_the_line_residual(rheology, d, length,
     assert abs(residual) <= 1e-6 * drive or (r.flow == 0 and residual >= 0)
 
 
+def _extreme_carreau_yasuda_case():
+    # found by Hypothesis (test_any_rheology_parameters_solve_to_the_line_residual)
+    from rheoline.model.fluid_base import Fluid
+    from rheoline.model.rheology import CarreauYasuda
+
+    rh = CarreauYasuda(0.03162277660168379, 3.1622776601683795e-05, 0.03162277660168379, 0.25, 1.0)
+    fl = Fluid(name="user", temperature_c=22.0, density=1050.0, rheology=rh)
+    line = Line([Tube(inner_diameter=1e-4, length=10.0 ** (-0.75))])
+    return fl, line, line.solve(fl, head=3.0, source_pressure=98057.0)
+
+
+def test_a_solve_that_stops_short_says_so():
+    fl, line, r = _extreme_carreau_yasuda_case()
+    assert r.converged or any("solver did not reach full convergence" in f for f in r.flags)
+
+
+@pytest.mark.xfail(
+    strict=True,
+    reason="known: the joint Rabinowitsch-Mooney iteration stops 3e-6 short of the root "
+    "(residual 1.4 Pa of 129 kPa) for this extreme shear-thinning fluid in the transition "
+    "zone of a 0.1 mm tube; flagged not converged (test above), kept so a fix is noticed",
+)
+def test_known_extreme_carreau_yasuda_case_converges():
+    fl, line, r = _extreme_carreau_yasuda_case()
+    residual = line.pressure_residual(fl, r.flow, head=3.0, source_pressure=98057.0)
+    assert r.converged and abs(residual) <= 1e-6 * (98057.0 + 1050.0 * GRAVITY * 3.0)
+
+
 @given(line=lines(), h=hematocrits, model=_blood_models(), ps=st.floats(10 * MMHG, 2000 * MMHG))
 def test_blood_through_any_line_round_trips(line, h, model, ps):
     # non-Newtonian flow through fittings and measured parts too: the budget adds up and the
