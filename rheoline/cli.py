@@ -403,7 +403,7 @@ def format_run(run, reach=None, flow_unit="mL/min", columns=None, width=None) ->
     (a unique start of each).  With ``reach`` [mL/min], a line per scenario names its
     smallest-bore case reaching it.
     """
-    from rheoline.units import FLOW_UNITS, ML_PER_MIN, significant
+    from rheoline.units import per_ml_min, significant
 
     lines = [f"CAUTION: {_caution()}", ""]
     title = run.scenario_set.title
@@ -424,7 +424,7 @@ def format_run(run, reach=None, flow_unit="mL/min", columns=None, width=None) ->
     if reach is not None:
         from rheoline.scenario.compare import smallest_reaching
 
-        per = ML_PER_MIN / FLOW_UNITS[flow_unit]
+        per = per_ml_min(flow_unit)
         lines += ["", f"Smallest bore reaching {significant(reach * per)} {flow_unit}:"]
         for name in dict.fromkeys(run.table["scenario"]):
             best = smallest_reaching(run.table, reach, scenario=name)

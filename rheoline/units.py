@@ -42,12 +42,24 @@ __all__ = [
     "ML_PER_MIN",
     "ML_PER_H",
     "FLOW_UNITS",
+    "per_ml_min",
     "significant",
 ]
 
 #: The flow units the views and the command line offer: name -> m^3/s in one such unit.
 #: Each name is one the scenario files' parser reads (``"100 mL/h"``).
 FLOW_UNITS = {"mL/min": ML_PER_MIN, "mL/h": ML_PER_H, "L/min": 1e-3 / 60.0, "mL/s": 1e-6}
+
+
+def per_ml_min(unit: str) -> float:
+    """How many ``unit`` (a key of :data:`FLOW_UNITS`) make one mL/min: the factor that
+    turns a table's ``flow [mL/min]`` into ``unit``.
+
+    >>> round(per_ml_min("mL/h"), 12), per_ml_min("mL/min"), round(per_ml_min("L/min"), 12)
+    (60.0, 1.0, 0.001)
+    """
+    return ML_PER_MIN / FLOW_UNITS[unit]
+
 
 #: kind -> (SI unit as pint understands it, pint dimensionality, examples of accepted units)
 KINDS = {

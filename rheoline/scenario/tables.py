@@ -34,9 +34,9 @@ def summary(t, flow_unit: str = "mL/min"):
     ``source pressure [mmHg]`` is the given bag or infuser pressure for a drive, and the
     pressure the pump must supply (above the gravity head) for a prescribed flow.
     """
-    from rheoline.units import FLOW_UNITS, ML_PER_MIN, significant
+    from rheoline.units import per_ml_min, significant
 
-    scale = {"mL/min": ML_PER_MIN / FLOW_UNITS[flow_unit], "mmHg": 1.0}
+    scale = {"mL/min": per_ml_min(flow_unit), "mmHg": 1.0}
     shown = {"mL/min": flow_unit, "mmHg": "mmHg"}
     out = t[["case"]].copy()
     out[f"flow [{flow_unit}]"] = t["flow [mL/min]"] * scale["mL/min"]

@@ -33,7 +33,7 @@ from __future__ import annotations
 import numpy as np
 import plotly.graph_objects as go
 
-from rheoline.units import FLOW_UNITS, ML_PER_MIN
+from rheoline.units import per_ml_min
 from rheoline.widgets.style import PALETTE, significant, user_text
 
 __all__ = ["NODE_SYMBOLS", "node_positions", "branch_paths", "network_figure", "branch_words"]
@@ -134,7 +134,7 @@ def _state(row):
 
 def _in_unit(row, unit):
     """The branch's flow (its size) in ``unit``, a key of :data:`rheoline.units.FLOW_UNITS`."""
-    return significant(abs(float(row["flow [mL/min]"])) * ML_PER_MIN / FLOW_UNITS[unit])
+    return significant(abs(float(row["flow [mL/min]"])) * per_ml_min(unit))
 
 
 def branch_words(row, unit: str = "mL/min") -> str:

@@ -44,7 +44,7 @@ from dataclasses import replace
 import ipywidgets as widgets
 
 from rheoline.scenario.description import ScenarioSet, Value
-from rheoline.units import FLOW_UNITS, ML_PER_MIN, from_unit, to_unit
+from rheoline.units import FLOW_UNITS, from_unit, per_ml_min, to_unit
 from rheoline.widgets.base import _STYLE, View, fluid_controls, labelled, number_field
 from rheoline.widgets.network_draw import branch_words, network_figure
 from rheoline.widgets.parts_editor import PartsEditor
@@ -455,7 +455,7 @@ def _results_html(row, branches, flags, unit="mL/min", nodes=None):
     case's node rows (for a blocked pump's name)."""
     records = branches.to_dict("records")
     items = [f"<li>{user_text(branch_words(r, unit))}</li>" for r in records]
-    total = significant(row["flow [mL/min]"] * ML_PER_MIN / FLOW_UNITS[unit])
+    total = significant(row["flow [mL/min]"] * per_ml_min(unit))
     also = "" if unit == "mL/h" else f" ({significant(row['flow [mL/h]'])} mL/h)"
     lines = [
         f"<b>Total flow into the outlets: {total} {unit}{also}</b>",
@@ -463,7 +463,7 @@ def _results_html(row, branches, flags, unit="mL/min", nodes=None):
     ]
     reversed_flow = row["reversed flow [mL/min]"]
     if reversed_flow > 0:
-        back = significant(reversed_flow * ML_PER_MIN / FLOW_UNITS[unit])
+        back = significant(reversed_flow * per_ml_min(unit))
         lines.append(
             f"<b>Reversed flow: {back} {unit} in {user_text(row['reversed branch'])}"
             "</b> (drawn dashed, its arrow pointing back)"
