@@ -381,3 +381,29 @@ def test_network_benchmark_runs_alone_and_agrees_with_scipy():
     assert report["n"] == 40 and report["branches"] == 4 and report["agree"]
     assert report["max_relative_difference"] < 1e-6 and report["residual_passes"] >= 1
     assert {"machine", "load_average_before", "load_average_after"} <= set(report)
+
+
+def test_two_pumps_both_shut_in_are_named_in_one_plural_sentence():
+    # both pumps' only branches hold a check valve facing them: both set flows are blocked,
+    # and the words say valves and pumps in the plural
+    tube = Tube(inner_diameter=1e-3, length=1.0)
+    net = PartNetwork(
+        [
+            Branch("gravity set", "bag", "y-site", [Tube(inner_diameter=3e-3, length=1.5)]),
+            Branch("line A", "y-site", "pump A", [tube, CheckValve(k=2.0)]),
+            Branch("line B", "y-site", "pump B", [tube, CheckValve(k=2.0)]),
+            Branch("catheter", "y-site", "vein", [Catheter(gauge=22)]),
+        ],
+        [PressureNode("bag", head=0.8), PressureNode("vein", pressure=800.0, outlet=True)],
+        [
+            Pump("pump A", flow=30.0 * ML_MIN, label="syringe pump A"),
+            Pump("pump B", flow=30.0 * ML_MIN, label="syringe pump B"),
+        ],
+    )
+    result = net.solve(WATER)
+    assert np.all(np.isnan(result.pump_pressure))
+    [occlusion] = [f for f in result.flags if "no open way out" in f]
+    assert occlusion.startswith(
+        "the set flow of syringe pump A and syringe pump B has no open way out: the check "
+        "valves in branches line A, line B are closed against them "
+    )

@@ -332,9 +332,14 @@ def _blocked_words(result, blocked):
         for k, b in enumerate(network.branches)
         if np.any(result.closed[k] & (cut_off[starts[k]] | cut_off[ends[k]]))
     ]
-    where = f"the check valve in branch {', '.join(shut)} is" if shut else "check valves are"
+    if len(shut) > 1:
+        where = f"the check valves in branches {', '.join(shut)} are"
+    else:
+        where = f"the check valve in branch {shut[0]} is" if shut else "check valves are"
+    whom = "them" if len(pumps) > 1 else "it"
     return (
-        f"the set flow of {' and '.join(pumps)} has no open way out: {where} closed against it "
+        f"the set flow of {' and '.join(pumps)} has no open way out: {where} closed against "
+        f"{whom} "
         "(an occlusion: the pump's pressure rises to its alarm, so none is given); no solution "
         "with its set flow; shown with the pump delivering nothing (its node takes in no "
         f"flow){_in_scenarios(blocked)}"

@@ -218,7 +218,7 @@ class RunResult:
 
     def records_json(self):
         """The text of ``json.dumps(self.records(), allow_nan=False)``, put together by
-        columns (see :func:`rheoline.scenario.tables.records_json`)."""
+        columns (see :func:`rheoline.scenario.tables.records_json_pieces`)."""
         return "".join(self.records_json_pieces())
 
     def records_json_pieces(self):

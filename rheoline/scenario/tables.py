@@ -23,7 +23,7 @@ from rheoline.scenario.json_text import (
 )
 from rheoline.scenario.writing import scenario_data
 
-__all__ = ["summary", "records", "records_json", "records_json_pieces", "inputs_table"]
+__all__ = ["summary", "records", "records_json_pieces", "inputs_table"]
 
 
 def summary(t, flow_unit: str = "mL/min"):
@@ -116,20 +116,15 @@ def records(table, parts, flags=None, branches=None, nodes=None, not_computed=No
     ]
 
 
-def records_json(table, parts, flags=None, branches=None, nodes=None, not_computed=None):
-    """The text of ``json.dumps(records(...), allow_nan=False)``, byte for byte, rendered by
-    columns: each column's values written once as JSON (numbers as Python's shortest
-    round-trip repr, as :mod:`json` writes them; a value that repeats, such as a regime or a
-    reason, encoded once), then each record's text put together from them, without building
-    the records (:mod:`rheoline.scenario.json_text`)."""
-    return "".join(records_json_pieces(table, parts, flags, branches, nodes, not_computed))
-
-
 def records_json_pieces(
     table, parts, flags=None, branches=None, nodes=None, not_computed=None, size=2048
 ):
-    """:func:`records_json` in pieces of at most ``size`` records (their concatenation is
-    that text): ``rheoline run --json`` writes them one by one."""
+    """The text of ``json.dumps(records(...), allow_nan=False)``, byte for byte, in pieces
+    of at most ``size`` records (their concatenation is that text; ``rheoline run --json``
+    writes them one by one), rendered by columns: each column's values written once as
+    JSON (numbers as Python's shortest round-trip repr, as :mod:`json` writes them; a value
+    that repeats, such as a regime or a reason, encoded once), then each record's text put
+    together from them, without building the records (:mod:`rheoline.scenario.json_text`)."""
     from rheoline import CAUTION
 
     fields, part_cases, part_fields, branched = _record_columns(
