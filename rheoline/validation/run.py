@@ -354,7 +354,7 @@ def fluid_validation(names: Iterable[str]) -> dict[str, ErrorStats]:
     --------
     >>> stats = fluid_validation(["plasma", "saline-0.9"])
     >>> stats["plasma"].datasets, stats["saline-0.9"].validated
-    (('rosenson-1996',), False)
+    (('rosenson-1996', 'koenig-2003', 'openstax-college-physics-2012'), False)
     """
     return _grouped(names, lambda r: r.fluid if r.quantity != "flow" else None)
 
