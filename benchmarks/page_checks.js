@@ -6,6 +6,7 @@
 // - "cut" also: a drop-down whose chosen option, or a text or number box whose value, is
 //   wider than the box shows (measured in the box's own font);
 // - "overlap": two texts of one chart drawn over each other (more than 2 px each way);
+// - "crossed": a chart label's leader line drawn through another label's box;
 // - "scroll": an element that scrolls sideways because what it holds is wider than it (a
 //   box the user must scroll to see its right edge hides that edge as surely as a clip).
 // Used by tests/test_browser_layout.py and docs/screenshots.py.
@@ -76,6 +77,31 @@
           width: Math.round(w), height: Math.round(h)});
       }
     }));
+  }
+  for (const plot of root.querySelectorAll('.js-plotly-plot')) {
+    if (!visible(plot)) continue;
+    const notes = [...plot.querySelectorAll('g.annotation')].map(g => ({
+      text: (g.textContent || '').trim().slice(0, 60),
+      box: (g.querySelector('.annotation-text-g rect') || g).getBoundingClientRect(),
+      leader: g.querySelector('.annotation-arrow-g path'),
+    }));
+    for (const a of notes) {
+      // a label's leader (an arrow without text is an edge's arrowhead, part of a drawing)
+      if (!a.text || !a.leader || !a.leader.getTotalLength) continue;
+      const length = a.leader.getTotalLength(), m = a.leader.getScreenCTM();
+      const crossed = new Set();
+      for (let k = 0; k <= 40; k++) {  // points along the leader, in the page's pixels
+        const p = a.leader.getPointAtLength(length * k / 40);
+        const x = m.a * p.x + m.c * p.y + m.e, y = m.b * p.x + m.d * p.y + m.f;
+        for (const b of notes) {
+          if (b !== a && x > b.box.left + 1 && x < b.box.right - 1 && y > b.box.top + 1
+              && y < b.box.bottom - 1) crossed.add(b.text);
+        }
+      }
+      for (const other of crossed) {
+        problems.push({kind: 'crossed', element: 'chart leader', text: a.text, other});
+      }
+    }
   }
   const page = document.documentElement;
   if (page.scrollWidth > page.clientWidth + 1) {

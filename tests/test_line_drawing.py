@@ -8,7 +8,12 @@ import math
 import numpy as np
 import pytest
 
-from rheoline.scenario.line_drawing import line_drawing, shares_percent
+from rheoline.scenario.line_drawing import (
+    _NARROWEST_PX,
+    _label_places,
+    line_drawing,
+    shares_percent,
+)
 
 
 def test_each_part_is_drawn_to_its_length_and_bore():
@@ -71,3 +76,62 @@ def test_the_review_pack_draws_each_scenarios_line(tmp_path):
     report = (folder / "report.html").read_text(encoding="utf-8")
     assert "The line to scale" in report and "(dominant)" in report
     assert not math.isnan(float(rows["share [%]"].max()))
+
+
+def _clashes(anchors, widths, places):
+    """Label pairs that overlap in a row, or a leader through a lower row's label box."""
+    boxes = []
+    for a, w, (_, side) in zip(anchors, widths, places, strict=True):
+        lo = {"center": a - w / 2, "right": a - w, "left": a}[side]
+        boxes.append((lo, lo + w))
+    found = []
+    for i, (row_i, _) in enumerate(places):
+        for j, (row_j, _) in enumerate(places):
+            lo, hi = boxes[i]
+            if i < j and row_i == row_j and min(hi, boxes[j][1]) > max(lo, boxes[j][0]):
+                found.append(("overlap", i, j))
+            # a leader along a box's edge (1 px) does not cross it
+            if row_j > row_i and lo + 1 / _NARROWEST_PX < anchors[j] < hi - 1 / _NARROWEST_PX:
+                found.append(("crossed", j, i))
+    return found
+
+
+@pytest.mark.parametrize(
+    "anchors, widths",
+    [
+        ([0.45, 0.91, 0.915], [0.45, 0.7, 0.3]),  # a long set, a short catheter, the exit
+        # five short parts at the end of a long line
+        ([0.3, 0.7, 0.9, 0.905, 0.91, 0.915, 0.92], [0.3, 0.55, 0.4, 0.75, 0.3, 0.55, 0.4]),
+        ([0.0, 0.0, 0.5, 0.96], [0.3, 0.55, 0.4, 0.75]),  # ticks at the source
+        # parts spread evenly, labels twice their spacing
+        ([0.08, 0.24, 0.4, 0.56, 0.72, 0.88], [0.3, 0.32, 0.3, 0.32, 0.3, 0.32]),
+    ],
+)
+def test_no_label_hides_another_or_is_crossed_by_a_leader(anchors, widths):
+    places = _label_places(anchors, widths)
+    assert _clashes(anchors, widths, places) == []
+    for (_, side), a, w in zip(places, anchors, widths, strict=True):
+        lo = {"center": a - w / 2, "right": a - w, "left": a}[side]
+        assert lo >= -0.01 and lo + w <= 1.05  # inside the plot
+    assert max(row for row, _ in places) < len(anchors)
+
+
+def test_labels_that_fit_share_a_row():
+    places = _label_places([0.1, 0.5, 0.9], [0.15, 0.15, 0.15])
+    assert places == [(0, "left"), (0, "center"), (0, "right")] or {r for r, _ in places} == {0}
+
+
+def test_labels_too_wide_for_any_order_are_still_all_placed():
+    # labels far wider than their spacing may clash whatever the order of rows (a limit of
+    # vertical leaders); every label still gets a row and a side
+    anchors = [0.08, 0.24, 0.4, 0.56, 0.72, 0.88]
+    places = _label_places(anchors, [0.3, 0.55, 0.4, 0.75, 0.3, 0.55])
+    assert len(places) == 6 and all(side in ("left", "right", "center") for _, side in places)
+
+
+def test_the_clash_check_sees_a_leader_through_a_label():
+    # the layout before this placement: centred labels staggered over three rows by index
+    anchors, widths = [0.45, 0.91, 0.915], [0.45, 0.7, 0.3]
+    assert ("crossed", 2, 1) in _clashes(
+        anchors, widths, [(0, "center"), (1, "center"), (2, "center")]
+    )

@@ -30,7 +30,14 @@ DRAWING_TITLE = "The line to scale: length along, bore across"
 _FILL = "#9fc3e6"  # a part's fill
 _EDGE = "#1f2f4a"  # outlines and ticks
 _DOMINANT_FILL = "#f2b45a"
-_LABEL_ROWS = 3  # labels of neighbouring parts are staggered over this many rows
+# Labels are placed for the narrowest drawing the app and the report show (the plot area in
+# a 1024 px window); on a wider drawing every label is narrower about its anchor, so what
+# cleared at this width clears at any larger one.  Text widths are estimated generously.
+_NARROWEST_PX = 340.0
+_CHAR_PX, _BOLD_CHAR_PX, _BOX_PX = 6.6, 7.2, 10.0
+_CLEAR_PX = 6.0  # the least gap between two labels in a row
+_ROW_PX = 22.0
+_SIDES = ("center", "right", "left")  # plotly's xanchor: where the box sits on its leader
 
 
 def shares_percent(drops) -> list[float]:
@@ -98,13 +105,11 @@ def line_drawing(names, bores_mm, lengths_m, drops_mmhg, title: str = DRAWING_TI
         label = f"{name}: {_three_figures(shares[i])} %"
         if dom:
             label = f"<b>{label} (dominant)</b>"
-        row = i % _LABEL_ROWS
         annotations.append(
             dict(
                 x=middle,
                 y=0.5 * widest,
                 ax=0,
-                ay=-(34 + 22 * row),
                 text=label,
                 showarrow=True,
                 arrowhead=0,
@@ -114,6 +119,14 @@ def line_drawing(names, bores_mm, lengths_m, drops_mmhg, title: str = DRAWING_TI
             )
         )
         position = end
+    span = position * 1.04 or 1.0
+    places = _label_places(
+        [a["x"] / span for a in annotations],
+        [_text_px(a["text"]) / _NARROWEST_PX for a in annotations],
+    )
+    for annotation, (row, side) in zip(annotations, places, strict=True):
+        annotation.update(ay=-(34 + _ROW_PX * row), xanchor=side)
+    rows = 1 + max((row for row, _ in places), default=0)
     axis = dict(showline=True, linecolor=_EDGE, ticks="outside", showgrid=False, zeroline=False)
     layout = dict(
         title=dict(text=title),
@@ -123,9 +136,9 @@ def line_drawing(names, bores_mm, lengths_m, drops_mmhg, title: str = DRAWING_TI
         font=dict(family="sans-serif", size=12, color="#2b2b2b"),
         showlegend=False,
         height=300,
-        margin=dict(l=60, r=30, t=50 + 22 * _LABEL_ROWS, b=50),
+        margin=dict(l=60, r=30, t=50 + _ROW_PX * max(rows, 2), b=50),
         annotations=annotations,
-        xaxis=dict(axis, title=dict(text="distance from the source [cm]"), rangemode="tozero"),
+        xaxis=dict(axis, title=dict(text="distance from the source [cm]"), range=[0.0, span]),
         yaxis=dict(
             axis,
             title=dict(text="bore [mm] (centreline at 0)"),
@@ -186,3 +199,115 @@ def _star(x, widest):
         name="dominant part",
         hoverinfo="name",
     )
+
+
+def _text_px(text: str) -> float:
+    """A generous estimate of a label's width [px] at 12 px (tags are not shown)."""
+    bold = text.startswith("<b>")
+    shown = text.replace("<b>", "").replace("</b>", "")
+    return len(shown) * (_BOLD_CHAR_PX if bold else _CHAR_PX) + _BOX_PX
+
+
+def _label_places(anchors, widths) -> list[tuple[int, str]]:
+    """Each label's row (0 nearest the drawing) and side, so that no two labels in a row
+    overlap and no leader passes through a label.
+
+    Parameters
+    ----------
+    anchors : sequence of float
+        Each label's leader position, as a fraction of the plot's width.
+    widths : sequence of float
+        Each label's width, as a fraction of the plot's width.
+
+    Returns
+    -------
+    list of (int, str)
+        Row and side (plotly's ``xanchor``) per label.
+
+    Notes
+    -----
+    A leader rises from its part to its label, so it crosses a label exactly when its anchor
+    is inside that label's box and its own label is on a higher row.  Each label takes the
+    first side whose box is inside the plot and holds no other anchor (centred, then
+    hanging left of its leader, then right of it); failing that, a side inside the plot,
+    hanging left first.  A box then sits on a higher row than every label whose anchor it
+    holds, and as low as it fits.  A box hanging left holds only anchors to its left, one
+    hanging right only anchors to its right, so this ordering fails only where a left-hanging and
+    a right-hanging box hold each other's anchors (labels wider than half the plot at both
+    ends); the later label is then placed regardless.
+
+    Examples
+    --------
+    >>> _label_places([0.45, 0.92, 0.925], [0.45, 0.7, 0.3])
+    [(0, 'center'), (1, 'right'), (2, 'right')]
+    """
+    n = len(anchors)
+    sides = _sides(anchors, widths)
+    boxes = [_box(a, w, side) for a, w, side in zip(anchors, widths, sides, strict=True)]
+    holds = [{j for j in range(n) if j != i and _inside(anchors[j], boxes[i])} for i in range(n)]
+    rows: list = [None] * n
+    pending = sorted(range(n), key=lambda i: anchors[i])
+    while pending:
+        ready = [i for i in pending if all(rows[j] is not None for j in holds[i])]
+        i = (ready or pending)[0]  # no label ready: two boxes hold each other's anchors
+        pending.remove(i)
+        row = 1 + max((rows[j] for j in holds[i] if rows[j] is not None), default=-1)
+        while any(rows[k] == row and _overlap(boxes[i], boxes[k]) for k in range(n)):
+            row += 1
+        rows[i] = row
+    return list(zip(rows, sides, strict=True))
+
+
+def _box(anchor, width, side):
+    """A label's left and right edge (fractions of the plot's width)."""
+    left = {"center": anchor - 0.5 * width, "right": anchor - width, "left": anchor}[side]
+    return left, left + width
+
+
+def _sides(anchors, widths) -> list[str]:
+    """Each label's side: the first of centred, hanging left, hanging right whose box is
+    inside the plot and holds no other anchor; else, labels left of a cut hang right and the
+    rest hang left, the cut chosen so that the fewest pairs of boxes hold each other's
+    anchors."""
+    order = sorted(range(len(anchors)), key=lambda i: anchors[i])
+    best = None
+    for cut in range(len(order) + 1):
+        first = {i: ("left", "right") for i in order[:cut]} | {
+            i: ("right", "left") for i in order[cut:]
+        }
+        sides = [
+            _side(a, w, anchors, first[i])
+            for i, (a, w) in enumerate(zip(anchors, widths, strict=True))
+        ]
+        boxes = [_box(a, w, s) for a, w, s in zip(anchors, widths, sides, strict=True)]
+        mutual = sum(
+            _inside(anchors[j], boxes[i]) and _inside(anchors[i], boxes[j])
+            for i in range(len(boxes))
+            for j in range(i)
+        )
+        if best is None or mutual < best[0]:
+            best = (mutual, sides)
+    return best[1] if best else []
+
+
+def _side(anchor, width, anchors, fallback):
+    inside_plot = [s for s in _SIDES if _box(anchor, width, s)[0] >= -0.01]
+    inside_plot = [s for s in inside_plot if _box(anchor, width, s)[1] <= 1.05]
+    for side in inside_plot:
+        box = _box(anchor, width, side)
+        if not any(_inside(a, box) for a in anchors if a != anchor):
+            return side
+    for side in (*fallback, "center"):
+        if side in inside_plot:
+            return side
+    return "left" if anchor < 0.5 else "right"  # wider than the plot: clip the far end
+
+
+def _inside(anchor, box) -> bool:
+    edge = 1.0 / _NARROWEST_PX  # a leader along a box's edge (1 px) does not cross it
+    return box[0] + edge < anchor < box[1] - edge
+
+
+def _overlap(a, b) -> bool:
+    gap = _CLEAR_PX / _NARROWEST_PX
+    return min(a[1], b[1]) - max(a[0], b[0]) > -gap
