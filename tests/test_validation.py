@@ -94,6 +94,8 @@ def test_whole_blood_meets_its_stated_accuracy(result):
     assert t.stats.median_abs_error <= 0.15
     assert t.stats.max_abs_error <= 0.35
     assert t.status == "met"
+    # ...and says that it is met on the rows the fit used, not on a held-out study
+    assert t.evidence == "fit data only"
 
 
 def test_every_target_with_data_is_met(result):
@@ -224,6 +226,7 @@ def test_temperature_target_rests_on_one_textbook_ratio(result):
     t = {t.target.key: t for t in result.targets}["blood-temperature"]
     assert t.status == "met" and t.stats.n == 1
     assert t.stats.datasets == ("openstax-college-physics-2012",)
+    assert t.evidence == "not independent"  # the data set's role is "check"
     (ratio,) = [p for p in result.ratios if p.predicted_ok and p.dataset == t.stats.datasets[0]]
     assert ratio.row == "os01/os02"
     assert ratio.measured == pytest.approx(1.810 / 1.257, rel=1e-12)
@@ -340,3 +343,24 @@ def test_line_and_vessel_pressure_drops_agree_for_newtonian_blood(diameter):
         dp_vessel = v.pressure_drop(q)
     dp_line = line.solve(fl, flow=q).required_pressure
     assert float(dp_line) == pytest.approx(float(dp_vessel), rel=0.05)
+
+
+def test_the_summary_says_which_targets_are_met_without_independent_data(result):
+    from rheoline.validation.report import summary_text
+
+    text = summary_text(result)
+    lines = {line.split("] ")[1].split(":")[0]: line for line in text.splitlines() if "] " in line}
+    blood = lines["whole-blood viscosity, hematocrit 0.2-0.6, shear 10-200 1/s, 37 degC"]
+    assert blood.endswith("(on fit data only: not an independent test)")
+    assert lines["plasma viscosity"].endswith("%")  # held-out rows: no qualifier
+    weak = sum(t.status == "met" and t.evidence != "held out" for t in result.targets)
+    assert f"; {weak} of them only on fit data" in text and weak >= 1
+
+
+def test_a_target_resting_on_check_data_is_not_tested_in_the_pack():
+    from rheoline.scenario.pack_evidence import TESTED, _status
+    from rheoline.validation.stats import ErrorStats
+
+    stats = ErrorStats(1, 0.01, 0.01, 0.01, ("openstax-college-physics-2012",))
+    assert _status(stats, {"openstax-college-physics-2012": "check"}).startswith("not independent")
+    assert _status(stats, {"openstax-college-physics-2012": "test"}) == TESTED

@@ -82,16 +82,22 @@ def _percent(value):
 
 
 def _status(stats, roles):
-    """ "tested" (some independent data), "fit only" (only data a default was fitted
-    to) or "unvalidated" (no packaged measurement).
+    """ "tested" (some held-out data), "fit only" (only data a default was fitted to),
+    "not independent" (only data sharing the library's own assumption) or "unvalidated"
+    (no packaged measurement), by :func:`rheoline.validation.run.evidence_of`.
 
     "Tested" says that independent data exist, not that the errors are small: the row's
     error columns say how close the model came (5 % albumin, say, is tested and 29 % low).
     """
+    from rheoline.validation.run import evidence_of
+
     if not stats.validated:
         return _UNVALIDATED
-    if all(roles.get(d) == "fit" for d in stats.datasets):
+    evidence = evidence_of(roles.get(d, "check") for d in stats.datasets)
+    if evidence == "fit data only":
         return "fit only: the error on the data it was fitted to, no independent test"
+    if evidence == "not independent":
+        return "not independent: data sharing the library's own assumption, no independent test"
     return TESTED
 
 

@@ -22,8 +22,10 @@ from rheoline.validation.predict import (
 from rheoline.validation.stats import ErrorStats, error_stats, group_stats
 
 __all__ = [
+    "EVIDENCE",
     "Target",
     "TargetResult",
+    "evidence_of",
     "TARGETS",
     "ValidationResult",
     "run_validation",
@@ -117,12 +119,44 @@ TARGETS = (
 )
 
 
+#: What a target's rows are, by the roles of their data sets (``sources.toml``).
+EVIDENCE = {
+    "held out": "judged on data no default was chosen by",
+    "fit data only": "only the data a default was fitted to: no independent test",
+    "not independent": "only data that shares the library's own assumption: no independent test",
+    "none": "no packaged data",
+}
+
+
+def evidence_of(roles) -> str:
+    """The kind of evidence behind statistics whose data sets have these roles: "held out"
+    if any is "test", "fit data only" if all are "fit", "not independent" otherwise (data
+    sets marked "check"), "none" for no data set.
+
+    >>> evidence_of(["fit", "test"]), evidence_of(["fit"]), evidence_of(["check"])
+    ('held out', 'fit data only', 'not independent')
+    """
+    roles = list(roles)
+    if not roles:
+        return "none"
+    if "test" in roles:
+        return "held out"
+    return "fit data only" if all(r == "fit" for r in roles) else "not independent"
+
+
 @dataclass(frozen=True)
 class TargetResult:
-    """A target, the statistics of its rows, and ``status``: met, not met or no data."""
+    """A target, the statistics of its rows, ``status`` (met, not met or no data) and
+    ``evidence`` (held out, fit data only, not independent or none; see :data:`EVIDENCE`).
+
+    A target met only on fit data or on data that is not independent says the model
+    reproduces those rows, not that it predicts new ones: reports print the evidence beside
+    every status.
+    """
 
     target: Target
     stats: ErrorStats
+    evidence: str = "none"
 
     @property
     def status(self) -> str:
@@ -268,10 +302,11 @@ def _is_recalled(rows: dict, p: Prediction) -> bool:
     return any(rows[(p.dataset, part)].recalled for part in p.row.split("/"))
 
 
-def _target_result(t: Target, rows: dict, defaults, ratios) -> TargetResult:
+def _target_result(t: Target, rows: dict, defaults, ratios, roles) -> TargetResult:
     pool = ratios if t.ratio else defaults
     chosen = [p for p in pool if t.selects(rows[(p.dataset, p.row.split("/")[0])])]
-    return TargetResult(t, error_stats(_counted(rows, chosen)))
+    stats = error_stats(_counted(rows, chosen))
+    return TargetResult(t, stats, evidence_of(roles[d] for d in stats.datasets))
 
 
 def _counted(rows: dict, predictions: Iterable[Prediction]) -> list[Prediction]:
@@ -287,11 +322,12 @@ def _compute() -> ValidationResult:
     ratios = tuple(_temperature_ratios(rows, defaults))
     counted = _counted(rows, defaults)
     family = {d.key: d.source.family for d in datasets}
+    roles = {d.key: d.source.role for d in datasets}
     return ValidationResult(
         datasets=datasets,
         predictions=predictions,
         ratios=ratios,
-        targets=tuple(_target_result(t, rows, defaults, ratios) for t in TARGETS),
+        targets=tuple(_target_result(t, rows, defaults, ratios, roles) for t in TARGETS),
         by_dataset=group_stats(counted, lambda p: (p.dataset,)),
         by_model=group_stats(_counted(rows, predictions), _model_keys),
         by_blood_model=group_stats(
