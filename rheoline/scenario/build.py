@@ -40,6 +40,7 @@ __all__ = [
     "Group",
     "Built",
     "groups",
+    "gathered",
     "point_group",
     "build",
     "build_fluid",
@@ -125,22 +126,6 @@ class Built:
 
 
 # --------------------------------------------------------------------------- groups
-def _stacked_part(members, j):
-    """Part ``j`` over the points ``members`` (``(index, label, values, parts, ...)``, the
-    parts' fields per point): discrete fields the first point's, measured pairs fixed,
-    the rest arrays (the branched scenarios' groups)."""
-    pv = {}
-    for k in members[0][3][j]:
-        col = [m[3][j][k] for m in members]
-        if k in _DISCRETE:
-            pv[k] = col[0]
-        elif isinstance(col[0], tuple):  # measured pairs, fixed
-            pv[k] = np.asarray(col[0], dtype=float)
-        else:
-            pv[k] = np.asarray(col, dtype=float)
-    return pv
-
-
 def _column(value, points, path, stack):
     """A field over a group's ``points``: the first point's value (``stack`` false), else
     an array of every point's; ``value`` is the scenario's (an :class:`Axis` where swept,
@@ -156,22 +141,26 @@ def _column(value, points, path, stack):
     return np.asarray([value] * len(points), dtype=float)
 
 
-def groups(sc):
-    """The sweep points of scenario ``sc`` gathered into :class:`Group` s (in first-point
-    order).
+def gathered(sc, holders):
+    """The sweep points of scenario ``sc`` gathered for one vectorized solve each (in
+    first-point order): per gathering ``(indices, labels, values, stacked)``.
 
-    Points share a group where their fluid name (and blood model) and the discrete fields
-    of their parts agree: only the swept ones of those can differ, so they alone key the
-    points, and a group's fields are stacked a field at a time.
+    ``holders`` are ``(path prefix, fields)`` of the scenario's parts (``"part[2]."``), or
+    of a branched scenario's parts and nodes (``"branch[1].part[2]."``, ``"node[3]."``).
+    Points are gathered where their fluid name (and blood model) and the discrete fields
+    of the holders agree: only the swept ones of those can differ, so they alone key the
+    points, and the fields are stacked a field at a time (``values`` the scenario's,
+    ``stacked`` one dict per holder: discrete fields and names the first point's, the
+    rest arrays over the points).
     """
-    base, base_parts = sc.values, [p.values for p in sc.parts]  # built once, not per point
+    base = sc.values  # built once, not per point
     points = sweep_points(sc)
     keys = [k for k in _NAMES if isinstance(base.get(k), Axis)]
     keys += [
-        f"part[{j}].{k}"
-        for j, pv in enumerate(base_parts, start=1)
-        for k in sorted(pv)
-        if k in _DISCRETE and isinstance(pv[k], Axis)
+        prefix + k
+        for prefix, fields in holders
+        for k in sorted(fields)
+        if k in _DISCRETE and isinstance(fields[k], Axis)
     ]
     keyed = {}
     for i, pt in enumerate(points):
@@ -181,12 +170,19 @@ def groups(sc):
         pts = [points[i] for i in members]
         labels = [", ".join(shown for _, shown in pt.values()) for pt in pts]
         vals = {k: _column(v, pts, k, k not in _NAMES) for k, v in base.items()}
-        parts = [
-            {k: _column(v, pts, f"part[{j}].{k}", k not in _DISCRETE) for k, v in pv.items()}
-            for j, pv in enumerate(base_parts, start=1)
+        stacked = [
+            {k: _column(v, pts, prefix + k, k not in _DISCRETE) for k, v in fields.items()}
+            for prefix, fields in holders
         ]
-        out.append(Group(sc, members, labels, vals, parts))
+        out.append((members, labels, vals, stacked))
     return out
+
+
+def groups(sc):
+    """The sweep points of scenario ``sc`` gathered into :class:`Group` s (in first-point
+    order; see :func:`gathered`)."""
+    holders = [(f"part[{j}].", p.values) for j, p in enumerate(sc.parts, start=1)]
+    return [Group(sc, *gathering) for gathering in gathered(sc, holders)]
 
 
 def point_group(g, col):

@@ -23,17 +23,8 @@ from __future__ import annotations
 import dataclasses
 from dataclasses import dataclass, field
 
-import numpy as np
-
 from rheoline.errors import RheolineError, ScenarioError
-from rheoline.scenario.build import (
-    _DISCRETE,
-    Group,
-    _stacked_part,
-    build_fluid,
-    build_part_list,
-)
-from rheoline.scenario.description import Axis, sweep_points
+from rheoline.scenario.build import Group, build_fluid, build_part_list, gathered
 
 __all__ = ["NetworkGroup", "BuiltNetwork", "network_groups", "branch_group", "build_network"]
 
@@ -60,47 +51,18 @@ class BuiltNetwork:
     branch_parts: tuple
 
 
-def _point(sc, pt):
-    """The fluid fields, node fields and part fields of sweep point ``pt``."""
-
-    def pick(path, value):
-        return pt[path][0] if isinstance(value, Axis) else value
-
-    topo = sc.topology
-    vals = {k: (pt[k][0] if k in pt else v) for k, v in sc.values.items()}
-    nodes = [
-        {k: pick(f"node[{i}].{k}", v) for k, v in n.values.items()}
-        for i, n in enumerate(topo.nodes, start=1)
-    ]
-    parts = [{k: pick(prefix + k, v) for k, v in p.values.items()} for prefix, p in topo.part_paths]
-    return vals, nodes, parts
-
-
 def network_groups(sc):
     """The sweep points of the branched scenario ``sc`` gathered into
-    :class:`NetworkGroup` s (in first-point order)."""
-    keyed = {}
-    for i, pt in enumerate(sweep_points(sc)):
-        vals, nodes, parts = _point(sc, pt)
-        key = (
-            vals["fluid"],
-            tuple(tuple((k, v) for k, v in sorted(pv.items()) if k in _DISCRETE) for pv in parts),
-        )
-        label = ", ".join(shown for _, shown in pt.values())
-        keyed.setdefault(key, []).append((i, label, vals, parts, nodes))
-    out = []
-    for members in keyed.values():
-        vals = {
-            k: members[0][2][k] if k == "fluid" else np.asarray([m[2][k] for m in members], float)
-            for k in members[0][2]
-        }
-        parts = [_stacked_part(members, j) for j in range(len(members[0][3]))]
-        as_parts = [(m[0], m[1], m[2], m[4]) for m in members]
-        nodes = [_stacked_part(as_parts, j) for j in range(len(members[0][4]))]
-        out.append(
-            NetworkGroup(sc, [m[0] for m in members], [m[1] for m in members], vals, parts, nodes)
-        )
-    return out
+    :class:`NetworkGroup` s (in first-point order), as a line's points are
+    (:func:`rheoline.scenario.build.gathered`, with every branch's parts and every node)."""
+    topo = sc.topology
+    holders = [(prefix, p.values) for prefix, p in topo.part_paths]
+    n_parts = len(holders)
+    holders += [(f"node[{i}].", n.values) for i, n in enumerate(topo.nodes, start=1)]
+    return [
+        NetworkGroup(sc, members, labels, vals, stacked[:n_parts], stacked[n_parts:])
+        for members, labels, vals, stacked in gathered(sc, holders)
+    ]
 
 
 def branch_group(g, i):
