@@ -27,7 +27,11 @@ step a linear solve of the node-pressure system :math:`A^T G^{-1} A\,P = \ldots`
 branches' slopes dh/dQ).  The first step, from zero flow where each law is its laminar
 resistance, is the exact solution of the linearized network (the "linearized start").
 A branch holding a :class:`~rheoline.model.parts.CheckValve` is one-way: closed (no flow)
-while its end's pressure exceeds its start's, reopened when the drop turns positive again.
+while its end's pressure exceeds its start's, reopened when the drop turns positive again;
+a valve carrying no flow (within rounding) is left as it is, open or shut (a dead end
+behind it, as a pump at zero set flow, is at rest either way).  A part of the network cut
+off by closed valves rests at the pressure it fills to through them
+(:class:`~rheoline.model.network_result.NetworkResult`).
 A pump whose every way out is shut by such a valve has no solution with its set flow (an
 occlusion); those scenarios are solved again, all at once, with that pump delivering nothing.
 
@@ -48,6 +52,7 @@ import numpy as np
 from rheoline.errors import InputRangeError, NetworkError
 from rheoline.model.line import GRAVITY, Line, _check_fluid
 from rheoline.model.network_result import (
+    ZERO_FLOW,
     NetworkResult,
     blocked_pump_nodes,
     branch_ends,
@@ -383,10 +388,18 @@ class PartNetwork:
             h, g = self._evaluate(laws, fluid, flows, state.counter)
             new_flows, pressures = topo.gradient_step(flows, h, g, fixed, injection, closed)
             state.steps += 1
-            # one-way branches: close on reverse flow, reopen when the drop turns positive
+            # one-way branches: close on reverse flow, reopen when the drop turns positive.
+            # A flow within rounding of zero has no sign: an open valve carrying none (a dead
+            # end behind it, a pump at zero flow) is as much a fixed point as a closed one
+            # whose drop is not positive, so it stays open (closing it on a -1e-23 flow left
+            # the dead end's pressure to the closed valve's tiny conductance, whose rounding
+            # reopened it: the state toggled every step and never settled).
             drop = topo.branch_drop(pressures, fixed)
-            closed_next = pinned | (one_way & np.where(closed, drop <= 0.0, new_flows < 0.0))
-            new_flows = np.where(closed_next, 0.0, new_flows)
+            rounding = ZERO_FLOW * np.max(np.abs(new_flows), axis=0)
+            closed_next = pinned | (one_way & np.where(closed, drop <= 0.0, new_flows < -rounding))
+            # rounding is no flow: a dead end's -1e-22 would otherwise set, through the closed
+            # valve's near-zero conductance, the pressure behind the valve (Pa off)
+            new_flows = np.where(closed_next | (np.abs(new_flows) <= rounding), 0.0, new_flows)
             scale = np.maximum(np.max(np.abs(new_flows), axis=0), 1e-300)
             change = np.max(np.abs(new_flows - flows), axis=0) / scale
             step_done = (change < _TOL) & np.all(closed_next == closed, axis=0)

@@ -13,11 +13,13 @@ from functools import cached_property
 
 import numpy as np
 
-__all__ = ["NetworkResult", "NETWORK_MODELS"]
+__all__ = ["NetworkResult", "NETWORK_MODELS", "ZERO_FLOW"]
 
 #: Provenance keys this module's solve adds to those of the lines' own models.
 NETWORK_MODELS = ("kirchhoff-1847", "todini-pilati-1988")
 _ML_MIN = 6e7  # m^3/s -> mL/min
+#: A branch flow within this fraction of its scenario's largest is rounding: it has no sign.
+ZERO_FLOW = 1e-12
 
 
 def _scalar(value):
@@ -42,13 +44,17 @@ def branch_ends(network, topo):
     return [index[b.start] for b in network.branches], [index[b.end] for b in network.branches]
 
 
-def reached_nodes(network, topo, closed):
+def reached_nodes(network, topo, closed, seeds=None):
     """(n_nodes, *scenario_shape): the nodes joined to a bag, source or outlet by open
-    branches (a closed check valve cuts its branch), spread out from the pressure nodes."""
+    branches (a closed check valve cuts its branch), spread out from the pressure nodes;
+    from the nodes true in ``seeds`` ((n_nodes, *scenario_shape) bool) instead, if given."""
     closed = np.asarray(closed, bool)
-    reach = np.zeros((len(topo.nodes), *closed.shape[1:]), bool)
-    for p in topo.pressure_nodes:
-        reach[topo.nodes.index(p.node)] = True
+    if seeds is None:
+        reach = np.zeros((len(topo.nodes), *closed.shape[1:]), bool)
+        for p in topo.pressure_nodes:
+            reach[topo.nodes.index(p.node)] = True
+    else:
+        reach = np.array(seeds, bool)
     starts, ends = branch_ends(network, topo)
     for _ in topo.nodes:  # each pass reaches at least one more node, or nothing changes
         before = reach.copy()
@@ -72,6 +78,76 @@ def blocked_pump_nodes(network, topo, closed):
     return out
 
 
+def _behind_closed_valves(network, topo, closed, stuck_at, nodes_p, drop):
+    """Node pressures, branch drops, closed valves and undetermined nodes of the answer,
+    where closed check valves cut nodes off from every bag, source and outlet.
+
+    Behind a closed valve no flow runs, so each part cut off rests at one pressure, and the
+    solve's number there is only what the closed valve's near-zero conductance left (its
+    rounding, amplified 1e14 times, Pa off).  Joined to a blocked pump (``stuck_at``) that
+    pressure rises without bound: NaN.  Otherwise any pressure that keeps every valve on the
+    part's edge shut is an answer; the part is given the one it would fill to through them:
+    the highest pressure in front of a valve facing into it (the valve then at rest, no
+    drop, and no longer called closed: it holds nothing back), else the lowest behind a valve
+    facing out of it.  A part behind another settles from it, pass by pass.
+    """
+    unknown = reached_nodes(network, topo, closed, seeds=stuck_at)
+    rest = ~reached_nodes(network, topo, closed) & ~unknown
+    starts, ends = branch_ends(network, topo)
+    if np.any(rest):
+        part = _cut_off_parts(network, topo, closed, rest)
+        for _ in topo.nodes:  # each pass settles at least one more part, or none changes
+            before = nodes_p.copy()
+            for label in range(len(topo.nodes)):
+                member = part == label
+                if np.any(member):
+                    nodes_p = _settle(member, closed, starts, ends, nodes_p)
+            if np.array_equal(nodes_p, before, equal_nan=True):
+                break
+        unknown = unknown | (rest & np.isnan(nodes_p))
+        touching = rest[starts] | rest[ends]
+        drop = np.where(touching, nodes_p[starts] - nodes_p[ends], drop)
+        closed = closed & ~(touching & (drop == 0.0))
+    nodes_p = np.where(unknown, np.nan, nodes_p)
+    drop = np.where(unknown[starts] | unknown[ends], np.nan, drop)
+    return nodes_p, drop, closed, unknown
+
+
+def _cut_off_parts(network, topo, closed, rest):
+    """(n_nodes, *shape) int: per ``rest`` node the lowest node index of its part (nodes
+    joined by open branches), -1 elsewhere."""
+    n = len(topo.nodes)
+    index = np.arange(n).reshape((n,) + (1,) * (rest.ndim - 1))
+    part = np.where(rest, index, -1)
+    starts, ends = branch_ends(network, topo)
+    for _ in topo.nodes:
+        before = part.copy()
+        for k, (s, e) in enumerate(zip(starts, ends, strict=True)):
+            joined = ~closed[k] & rest[s] & rest[e]
+            low = np.minimum(part[s], part[e])
+            part[s] = np.where(joined, low, part[s])
+            part[e] = np.where(joined, low, part[e])
+        if np.array_equal(part, before):
+            break
+    return part
+
+
+def _settle(member, closed, starts, ends, nodes_p):
+    """``nodes_p`` with the part ``member`` ((n_nodes, *shape) bool) at the pressure it
+    fills to through the closed valves on its edge (see :func:`_behind_closed_valves`)."""
+    shape = member.shape[1:]
+    low, high = np.full(shape, -np.inf), np.full(shape, np.inf)
+    facing_in, facing_out = np.zeros(shape, bool), np.zeros(shape, bool)
+    for k, (s, e) in enumerate(zip(starts, ends, strict=True)):
+        into = closed[k] & member[e] & ~member[s]  # the valve lets flow from s into the part
+        low = np.where(into, np.maximum(low, nodes_p[s]), low)
+        out = closed[k] & member[s] & ~member[e]
+        high = np.where(out, np.minimum(high, nodes_p[e]), high)
+        facing_in, facing_out = facing_in | into, facing_out | out
+    value = np.where(facing_in, low, high)
+    return np.where(member & (facing_in | facing_out), value, nodes_p)
+
+
 @dataclass(frozen=True)
 class NetworkResult:
     """Node pressures and branch flows of a solved :class:`~rheoline.model.branched.PartNetwork`.
@@ -82,7 +158,8 @@ class NetworkResult:
         Every node, the order of ``node_pressure``.
     node_pressure : ndarray
         (n_nodes, *scenario_shape) piezometric pressure [Pa], p + rho g z referred to the
-        reference level (a gauge pressure at that level).
+        reference level (a gauge pressure at that level); NaN where it has no finite value
+        (``node_conditions["undetermined"]``).
     branch_names : tuple of str
     branch_flow : ndarray
         (n_branches, *scenario_shape) [m^3/s], positive from a branch's start to its end.
@@ -91,13 +168,15 @@ class NetworkResult:
     reversed : ndarray of bool
         Flow against the branch's start -> end direction.
     closed : ndarray of bool
-        A one-way branch (check valve) held shut.
+        A one-way branch (check valve) held shut (one resting with no flow and no drop
+        across it, as in front of a stopped pump's dead end, holds nothing back: not shut).
     pressure_node_inflow : ndarray
         (n_pressure_nodes, *scenario_shape) flow [m^3/s] entering the network at each
         pressure node (negative: leaving it, at an outlet or back into a bag).
     pump_pressure : ndarray
         (n_pumps, *scenario_shape) pressure [Pa] at each pump's node; NaN where the pump is
-        blocked (``node_conditions["blocked"]``): its pressure would rise without bound.
+        blocked (``node_conditions["blocked"]``): its pressure would rise without bound (and
+        at a pump joined to a blocked one by open branches).
     conditions : dict
         Scenario-shaped boolean arrays: ``reversed_flow`` (some branch), ``backflow_into_source``
         (some bag or reservoir takes fluid in), ``check_valve_closed``, ``over_pressure_limit``
@@ -111,9 +190,12 @@ class NetworkResult:
     branch_conditions : dict
         (n_branches, *scenario_shape) boolean arrays ``reversed`` and ``closed``.
     node_conditions : dict
-        (n_nodes, *scenario_shape) boolean array ``blocked``: true only at the node of a
-        pump whose set flow finds no open way out (its ``node_pressure`` and
-        ``pump_pressure`` are NaN there, and the ``branch_drop`` of its branches).
+        (n_nodes, *scenario_shape) boolean arrays: ``blocked``, true only at the node of a
+        pump whose set flow finds no open way out; ``undetermined``, true there and at every
+        node joined to such a pump by open branches (behind the check valve that shuts it
+        in: no flow runs between them, so they share its pressure, which rises without
+        bound).  ``node_pressure`` (and ``pump_pressure``) is NaN wherever ``undetermined``
+        holds, and so is the ``branch_drop`` of every branch ending at such a node.
     iterations : int
         Newton (gradient-method) steps taken (those of a solve again with blocked pumps
         delivering nothing included).
@@ -160,29 +242,24 @@ class NetworkResult:
         nodes_p = topo.node_pressure(free_p, fixed)
         flows = np.where(closed, 0.0, flows)
         scale = np.maximum(np.max(np.abs(flows), axis=0), 1e-300)
-        # a flow within rounding of zero (1e-12 of its scenario's largest) has no sign: it
-        # is zero (a pump branch at zero pump flow comes out of the linear solve as +-1e-23)
-        flows = np.where(np.abs(flows) <= 1e-12 * scale, 0.0, flows)
+        # a flow within rounding of zero (ZERO_FLOW of its scenario's largest) has no sign:
+        # it is zero (a pump branch at zero pump flow comes out of the linear solve as +-1e-23)
+        flows = np.where(np.abs(flows) <= ZERO_FLOW * scale, 0.0, flows)
         inflow = np.tensordot(topo.a_fixed.T, flows, axes=(1, 0))  # into the network
         balance = np.tensordot(topo.a_free.T, flows, axes=(1, 0)) - injection
         imbalance = float(np.max(np.abs(balance) / scale)) if len(topo.free_nodes) else 0.0
         blocked = np.any(stuck_at, axis=0)
+        nodes_p, drop, closed, unknown = _behind_closed_valves(
+            network, topo, closed, stuck_at, nodes_p, topo.branch_drop(free_p, fixed)
+        )
         reversed_ = (flows < 0.0) & ~closed
         pump_rows = [topo.nodes.index(p.node) for p in topo.pumps]
         pump_p = nodes_p[pump_rows]  # (n_pumps, *shape), empty without pumps
-        pump_stuck = stuck_at[pump_rows]
         over = np.zeros(shape, bool)
         for row, pump in enumerate(topo.pumps):
             if pump.pressure_limit is not None:
                 limit = np.asarray(pump.pressure_limit, dtype=float)
-                over = over | (pump_p[row] > limit) | pump_stuck[row]
-        # a blocked pump's pressure has no finite answer: NaN, not the huge number the
-        # near-zero conductance of the closed valve left there
-        nodes_p = np.where(stuck_at, np.nan, nodes_p)
-        pump_p = np.where(pump_stuck, np.nan, pump_p)
-        starts, ends = branch_ends(network, topo)
-        drop = topo.branch_drop(free_p, fixed)
-        drop = np.where(stuck_at[starts] | stuck_at[ends], np.nan, drop)
+                over = over | (pump_p[row] > limit) | stuck_at[pump_rows[row]]
         is_source = np.array([not p.outlet for p in topo.pressure_nodes], bool)
         is_source = is_source.reshape((-1,) + (1,) * len(shape))
         conditions = {
@@ -205,7 +282,7 @@ class NetworkResult:
             pump_pressure=pump_p,
             conditions=conditions,
             branch_conditions={"reversed": reversed_, "closed": np.asarray(closed, bool)},
-            node_conditions={"blocked": stuck_at},
+            node_conditions={"blocked": stuck_at, "undetermined": unknown},
             iterations=int(state.steps),
             residual_passes=int(state.counter[0]),
             converged=bool(np.all(done & ~blocked)),
