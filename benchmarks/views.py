@@ -6,7 +6,10 @@
   (every curve, band and table row recomputed), a head change (head-sweep curves and bands
   cached), then the temperature again with a 2 degC temperature spread added to the band
   (every band sample solved: bore and temperature differ per sample, the general path);
-* the blood view's hematocrit.
+* the blood view's hematocrit;
+* the network view's bag head (every branch of the four-branch demo network re-solved);
+* the time view's set rate (the infusion solved in time again: start-up, occlusion to the
+  alarm and the release).
 
 Each time is the median over ``repeats`` changes to new values (no cache hit), measured by
 the view's own ``set_control`` hook where it has one (Python time of the update).
@@ -85,4 +88,22 @@ def widget_ms(repeats):
     out["blood_view hematocrit"] = _median_change(
         blood, "hematocrit", [round(0.30 + 0.01 * (k % 40), 2) for k in range(repeats)]
     )
+    _network_and_time(out, repeats)
     return out
+
+
+def _network_and_time(out, repeats):
+    from rheoline.widgets.network_view import NetworkView
+    from rheoline.widgets.transient_view import TransientView
+
+    network = NetworkView()
+    head = next(name for name in network.controls if name.endswith(".head"))
+    start = network.controls[head].value
+    out["network_view head"] = _median_change(
+        network, head, [start + 1.0 * (k + 1) for k in range(repeats)]
+    )
+    timed = TransientView()
+    rate = timed.controls["flow_ml_h"].value
+    out["time_view set rate"] = _median_change(
+        timed, "flow_ml_h", [rate + 1.0 * (k + 1) for k in range(repeats)]
+    )

@@ -57,6 +57,8 @@ EXPECTED_FIGURES = [
     "widget_update_ms[comparison_view head]",
     "widget_update_ms[comparison_view temperature, bore+temperature band]",
     "widget_update_ms[blood_view hematocrit]",
+    "widget_update_ms[network_view head]",
+    "widget_update_ms[time_view set rate]",
     "import_model_ms",
     "network.speedup_vs_scipy_loop",
     "network.residual_passes",
