@@ -201,3 +201,40 @@ def test_a_dead_end_behind_two_valves_rests_at_the_higher_pressure_in_front():
     assert result.closed[0].tolist() == [False, True]
     assert result.closed[1].tolist() == [True, False]
     assert not np.any(result.reversed)
+
+
+def _undriven_network(bag_pa):
+    """bag -> y -> vein through linear parts, and a pump at zero set flow into y."""
+    return PartNetwork(
+        [
+            Branch("gravity", "bag", "y", [_linear(R_BAG, "gravity set")]),
+            Branch("pump line", "pump", "y", [_linear(R_PUMP, "pump set")]),
+            Branch("catheter", "y", "vein", [_linear(R_CATHETER, "catheter")]),
+        ],
+        [PressureNode("bag", pressure=bag_pa), PressureNode("vein", VEIN_PA, outlet=True)],
+        [Pump("pump", flow=0.0, pressure_limit=300 * MMHG)],
+    )
+
+
+def test_a_network_nothing_drives_has_no_flow_and_no_flag():
+    # Bag at the vein's pressure and the pump at zero: Kirchhoff (1847) gives no flow in any
+    # branch and every node at 1 kPa.  The linear solve leaves rounding flows of 1e-23 m^3/s;
+    # relative to the (all rounding) flows they were read as flows: a pump line "running
+    # backwards" at 3e-14 mL/min and a solve that never settled.
+    result = _undriven_network(np.array([VEIN_PA, VEIN_PA])).solve(WATER)
+    assert np.all(result.branch_flow == 0.0)
+    assert result.converged and result.flags == ()
+    assert not np.any(result.reversed)
+    np.testing.assert_allclose(result.pressure("y"), VEIN_PA, rtol=1e-12)
+
+
+def test_a_tiny_real_drive_keeps_its_tiny_flow():
+    # 1 micro-pascal over the vein's 1 kPa drives Q = dP / (R_bag + R_catheter) = 2e-16 m^3/s
+    # (Kirchhoff 1847, linear parts): small, but far above the solve's rounding (1e-22)
+    dp = 1.0e-6
+    result = _undriven_network(np.array([VEIN_PA + dp])).solve(WATER)
+    np.testing.assert_allclose(result.flow("gravity"), dp / (R_BAG + R_CATHETER), rtol=1e-5)
+    np.testing.assert_allclose(result.flow("catheter"), dp / (R_BAG + R_CATHETER), rtol=1e-5)
+    # the pump line keeps the solve's rounding (1e-23) beside flows of 2e-16: not a flow
+    assert abs(result.flow("pump line")[0]) < 1e-6 * result.flow("gravity")[0]
+    assert result.converged

@@ -384,6 +384,7 @@ class PartNetwork:
         flows, closed, done = state.flows, state.closed, state.done
         frozen = done.copy()
         pinned = np.zeros_like(closed) if pinned is None else pinned
+        undriven = _undriven(fixed, injection)
         for _ in range(max_iterations):
             h, g = self._evaluate(laws, fluid, flows, state.counter)
             new_flows, pressures = topo.gradient_step(flows, h, g, fixed, injection, closed)
@@ -395,7 +396,7 @@ class PartNetwork:
             # the dead end's pressure to the closed valve's tiny conductance, whose rounding
             # reopened it: the state toggled every step and never settled).
             drop = topo.branch_drop(pressures, fixed)
-            rounding = ZERO_FLOW * np.max(np.abs(new_flows), axis=0)
+            rounding = np.where(undriven, np.inf, ZERO_FLOW * np.max(np.abs(new_flows), axis=0))
             closed_next = pinned | (one_way & np.where(closed, drop <= 0.0, new_flows < -rounding))
             # rounding is no flow: a dead end's -1e-22 would otherwise set, through the closed
             # valve's near-zero conductance, the pressure behind the valve (Pa off)
@@ -411,3 +412,13 @@ class PartNetwork:
             if np.all(done):
                 break
         state.flows, state.closed, state.done = flows, closed, done
+
+
+def _undriven(fixed, injection):
+    """Scenarios nothing drives: no pump flow and every pressure node at one pressure
+    (within rounding, heads included).  Passive parts then carry no flow at all, and the
+    linear solve's rounding flows (1e-23 m^3/s at 1 kPa) are no flow: relative to flows that
+    are all rounding they would be read as flows, signed, and never settle."""
+    quiet = ~np.any(injection != 0.0, axis=0) if len(injection) else True
+    spread = np.max(fixed, axis=0) - np.min(fixed, axis=0)
+    return quiet & (spread <= ZERO_FLOW * np.max(np.abs(fixed), axis=0))
