@@ -6,8 +6,9 @@ Rosenson et al. 1996 (plasma, abstract), Walker et al. 2012 (colloids, abstract)
 AguaClara dosing-tube data (water through a tube), Ko et al. 2022 (5 % albumin and 6 %
 hetastarch against saline, J Korean Med Sci 37:e71, abstract; held out), Woodward, Koenig et
 al. 2003 (plasma at 37 degC, Blood Coagul Fibrinolysis 14:417, abstract; held out), OpenStax
-College Physics Table 12.1 (plasma and whole blood at 20 and 37 degC, a textbook table; held
-out), and rows marked recalled (the Snyder 1971 regression as transcribed).
+College Physics Table 12.1 (plasma and whole blood at 20 and 37 degC, a textbook table; role
+check: built on water's temperature ratio, the library's own assumption, so not independent),
+and rows marked recalled (the Snyder 1971 regression as transcribed).
 """
 
 import math
@@ -184,7 +185,7 @@ def test_held_out_rows_no_target_covers_are_printed_not_judged(result, tmp_path,
     assert result.passed  # shown beside the targets, never turned into a failure
     assert main(["validate", "--out", str(tmp_path)]) == 0
     printed = capsys.readouterr().out
-    assert "[no target] held-out ko-2022 (albumin): 1 rows" in printed
+    assert "[no target] held-out ko-2022 (albumin): 1 row," in printed
     md = (tmp_path / "validation-summary.md").read_text(encoding="utf-8")
     assert "held-out data set (no target)" in md
 
@@ -364,3 +365,17 @@ def test_a_target_resting_on_check_data_is_not_tested_in_the_pack():
     stats = ErrorStats(1, 0.01, 0.01, 0.01, ("openstax-college-physics-2012",))
     assert _status(stats, {"openstax-college-physics-2012": "check"}).startswith("not independent")
     assert _status(stats, {"openstax-college-physics-2012": "test"}) == TESTED
+
+
+def test_check_rows_never_dilute_a_held_out_figure(result):
+    # plasma: held out, Rosenson et al. 1996 (1.39 mPa s) and Woodward, Koenig et al. 2003
+    # (1.310 mPa s), both at 37 degC; the textbook rows (role check, within 1 % because they
+    # share the library's 1.8 x water) are shown per data set but not judged with them
+    t = {t.target.key: t for t in result.targets}["plasma"]
+    assert t.evidence == "held out"
+    assert t.stats.datasets == ("rosenson-1996", "koenig-2003") and t.stats.n == 2
+    mu = float(rheoline.fluid("plasma", temperature_c=37.0).viscosity()) * 1e3
+    errors = sorted(abs(mu / m - 1.0) for m in (1.39, 1.31))
+    assert t.stats.median_abs_error == pytest.approx(0.5 * sum(errors), rel=1e-9)
+    assert result.by_family["plasma"].datasets == t.stats.datasets
+    assert result.by_dataset["openstax-college-physics-2012"].n == 2

@@ -435,6 +435,10 @@ _ON = {
 }
 
 
+def _rows(n: int) -> str:
+    return f"{n} row" if n == 1 else f"{n} rows"
+
+
 def _verdict(result: ValidationResult) -> str:
     """One sentence on the targets, naming those met without independent data."""
     if not result.passed:
@@ -454,7 +458,7 @@ def summary_text(result: ValidationResult, written=()) -> str:
     for t in result.targets:
         s = t.stats
         numbers = (
-            f"{s.n} rows, median {_pct(s.median_abs_error)}, max {_pct(s.max_abs_error)}"
+            f"{_rows(s.n)}, median {_pct(s.median_abs_error)}, max {_pct(s.max_abs_error)}"
             if s.validated
             else "no packaged data"
         )
@@ -463,7 +467,7 @@ def summary_text(result: ValidationResult, written=()) -> str:
         lines.append(f"  [{t.status:>7}] {t.target.description}: {numbers}")
     for key, s in result.untargeted.items():
         lines.append(
-            f"  [no target] held-out {key} ({_family(result, key)}): {s.n} rows, "
+            f"  [no target] held-out {key} ({_family(result, key)}): {_rows(s.n)}, "
             f"median error {_pct(s.median_error)}, max {_pct(s.max_abs_error)} (shown, not judged)"
         )
     lines.append(_verdict(result))

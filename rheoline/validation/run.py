@@ -121,7 +121,7 @@ TARGETS = (
 
 #: What a target's rows are, by the roles of their data sets (``sources.toml``).
 EVIDENCE = {
-    "held out": "judged on data no default was chosen by",
+    "held out": "judged on held-out data only (fit and check rows set aside)",
     "fit data only": "only the data a default was fitted to: no independent test",
     "not independent": "only data that shares the library's own assumption: no independent test",
     "none": "no packaged data",
@@ -186,6 +186,9 @@ class ValidationResult:
         ``{name: ErrorStats}`` of the counted predictions: default predictions, except
         ``by_model`` (provenance key -> statistics; a non-default blood model counts under
         its own keys) and ``by_blood_model`` (each blood model on every blood row).
+        ``by_model``, ``by_family`` and ``by_part_kind`` count a group's held-out rows
+        only where it has any (fit and check rows never dilute a held-out figure);
+        ``by_dataset`` counts every data set's own rows.
     worst : tuple of Prediction
         The ten counted default predictions furthest from their measurements.
     """
@@ -302,10 +305,22 @@ def _is_recalled(rows: dict, p: Prediction) -> bool:
     return any(rows[(p.dataset, part)].recalled for part in p.row.split("/"))
 
 
+def _judged(roles: dict) -> Callable[[list], list]:
+    """Of a group of predictions, those its statistics judge: the held-out ones (data sets
+    of role "test") where there are any, else all (fit or check data, reported as such by
+    :func:`evidence_of`).  Fit and check rows never dilute a held-out figure."""
+
+    def pick(predictions: list) -> list:
+        held_out = [p for p in predictions if roles[p.dataset] == "test"]
+        return held_out or list(predictions)
+
+    return pick
+
+
 def _target_result(t: Target, rows: dict, defaults, ratios, roles) -> TargetResult:
     pool = ratios if t.ratio else defaults
     chosen = [p for p in pool if t.selects(rows[(p.dataset, p.row.split("/")[0])])]
-    stats = error_stats(_counted(rows, chosen))
+    stats = error_stats(_judged(roles)(_counted(rows, chosen)))
     return TargetResult(t, stats, evidence_of(roles[d] for d in stats.datasets))
 
 
@@ -329,15 +344,17 @@ def _compute() -> ValidationResult:
         ratios=ratios,
         targets=tuple(_target_result(t, rows, defaults, ratios, roles) for t in TARGETS),
         by_dataset=group_stats(counted, lambda p: (p.dataset,)),
-        by_model=group_stats(_counted(rows, predictions), _model_keys),
+        by_model=group_stats(_counted(rows, predictions), _model_keys, _judged(roles)),
         by_blood_model=group_stats(
             [p for p in _counted(rows, predictions) if rows[(p.dataset, p.row)].fluid in _BLOODS],
             lambda p: (p.variant if not p.default else f"{BLOOD_MODEL_VARIANTS[0]} (default)",),
+            _judged(roles),
         ),
         by_family=_with_empty(
             group_stats(
                 [p for p in counted if rows[(p.dataset, p.row)].quantity != "flow"],
                 lambda p: (family[p.dataset],),
+                _judged(roles),
             ),
             dict.fromkeys((*FLUID_FAMILIES, *family.values())),
         ),
@@ -345,6 +362,7 @@ def _compute() -> ValidationResult:
             group_stats(
                 [p for p in counted if rows[(p.dataset, p.row)].quantity == "flow"],
                 lambda p: (rows[(p.dataset, p.row)].geometry,),
+                _judged(roles),
             ),
             PART_KINDS,
         ),
@@ -384,13 +402,14 @@ def fluid_validation(names: Iterable[str]) -> dict[str, ErrorStats]:
     """Validation error of library fluids' viscosity: ``{name: ErrorStats}`` for each name.
 
     The default predictions of the measured (not recalled) viscosity rows of that fluid,
-    at any temperature and shear rate; a fluid no packaged row measures gets ``n == 0``.
+    at any temperature and shear rate, held-out rows only where there are any; a fluid no
+    packaged row measures gets ``n == 0``.
 
     Examples
     --------
     >>> stats = fluid_validation(["plasma", "saline-0.9"])
     >>> stats["plasma"].datasets, stats["saline-0.9"].validated
-    (('rosenson-1996', 'koenig-2003', 'openstax-college-physics-2012'), False)
+    (('rosenson-1996', 'koenig-2003'), False)
     """
     return _grouped(names, lambda r: r.fluid if r.quantity != "flow" else None)
 
@@ -415,7 +434,8 @@ def _grouped(names: Iterable[str], group_of) -> dict[str, ErrorStats]:
     result = _compute()
     rows = _row_index(result.datasets)
     counted = _counted(rows, [p for p in result.predictions if p.default])
-    stats = group_stats(counted, lambda p: (group_of(rows[(p.dataset, p.row)]),))
+    roles = {d.key: d.source.role for d in result.datasets}
+    stats = group_stats(counted, lambda p: (group_of(rows[(p.dataset, p.row)]),), _judged(roles))
     return {name: stats.get(name, _EMPTY) for name in names}
 
 

@@ -76,10 +76,16 @@ def error_stats(predictions: Iterable[Prediction]) -> ErrorStats:
     )
 
 
-def group_stats(predictions: Iterable[Prediction], key: Callable[[Prediction], Iterable[str]]):
-    """``{group: ErrorStats}`` where ``key(prediction)`` gives the groups a prediction is in."""
+def group_stats(
+    predictions: Iterable[Prediction],
+    key: Callable[[Prediction], Iterable[str]],
+    judged: Callable[[list], list] | None = None,
+):
+    """``{group: ErrorStats}`` where ``key(prediction)`` gives the groups a prediction is in;
+    ``judged`` (optional) picks, within each group, the predictions its statistics count."""
     groups: dict[str, list] = {}
     for p in predictions:
         for g in key(p):
             groups.setdefault(g, []).append(p)
-    return {g: error_stats(ps) for g, ps in groups.items()}
+    pick = judged or list
+    return {g: error_stats(pick(ps)) for g, ps in groups.items()}
