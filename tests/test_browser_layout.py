@@ -1,7 +1,8 @@
 """The served app's layout in a real browser: for each tab, at 1024, 1280 and 1920 px wide,
 no element leaves its container sideways, no box scrolls sideways, no text is cut (a
-label, a drop-down's choice, a number box's value) and no two texts of a chart are drawn
-over each other (benchmarks/page_checks.js), and a
+label, a drop-down's choice, a number box's value), no two texts of a chart are drawn
+over each other and no label's leader runs through another label
+(benchmarks/page_checks.js), and a
 screenshot of the whole tab is taken (the 1280 px ones to ``$RHEOLINE_SCREENSHOTS`` when
 set: ``docs/screenshots.py`` sets it to docs/, which the README shows).
 

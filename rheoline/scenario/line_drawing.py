@@ -37,6 +37,7 @@ _NARROWEST_PX = 340.0
 _CHAR_PX, _BOLD_CHAR_PX, _BOX_PX = 6.6, 7.2, 10.0
 _CLEAR_PX = 6.0  # the least gap between two labels in a row
 _ROW_PX = 22.0
+_PLOT_PX = 156.0  # the drawing's own height, between the labels and the axis
 _SIDES = ("center", "right", "left")  # plotly's xanchor: where the box sits on its leader
 
 
@@ -129,13 +130,15 @@ def line_drawing(names, bores_mm, lengths_m, drops_mmhg, title: str = DRAWING_TI
     rows = 1 + max((row for row, _ in places), default=0)
     axis = dict(showline=True, linecolor=_EDGE, ticks="outside", showgrid=False, zeroline=False)
     layout = dict(
-        title=dict(text=title),
+        # the title at the top of the figure, above every row of labels
+        title=dict(text=title, y=1.0, yref="container", yanchor="top", pad=dict(t=12)),
         template="none",  # an empty template: a drawing is made at every update, keep it cheap
         plot_bgcolor="white",
         paper_bgcolor="white",
         font=dict(family="sans-serif", size=12, color="#2b2b2b"),
         showlegend=False,
-        height=300,
+        # the plot keeps its height (156 px) whatever the rows of labels above it take
+        height=_PLOT_PX + 100 + _ROW_PX * max(rows, 2),
         margin=dict(l=60, r=30, t=50 + _ROW_PX * max(rows, 2), b=50),
         annotations=annotations,
         xaxis=dict(axis, title=dict(text="distance from the source [cm]"), range=[0.0, span]),
@@ -269,6 +272,7 @@ def _sides(anchors, widths) -> list[str]:
     inside the plot and holds no other anchor; else, labels left of a cut hang right and the
     rest hang left, the cut chosen so that the fewest pairs of boxes hold each other's
     anchors."""
+    anchors = list(anchors)
     order = sorted(range(len(anchors)), key=lambda i: anchors[i])
     best = None
     for cut in range(len(order) + 1):
@@ -276,7 +280,7 @@ def _sides(anchors, widths) -> list[str]:
             i: ("right", "left") for i in order[cut:]
         }
         sides = [
-            _side(a, w, anchors, first[i])
+            _side(a, w, anchors[:i] + anchors[i + 1 :], first[i])
             for i, (a, w) in enumerate(zip(anchors, widths, strict=True))
         ]
         boxes = [_box(a, w, s) for a, w, s in zip(anchors, widths, sides, strict=True)]
@@ -290,12 +294,14 @@ def _sides(anchors, widths) -> list[str]:
     return best[1] if best else []
 
 
-def _side(anchor, width, anchors, fallback):
+def _side(anchor, width, others, fallback):
+    """A label's side; ``others`` the other labels' anchors (a part drawn at the same
+    place as this one included: its leader must not cross this box either)."""
     inside_plot = [s for s in _SIDES if _box(anchor, width, s)[0] >= -0.01]
     inside_plot = [s for s in inside_plot if _box(anchor, width, s)[1] <= 1.05]
     for side in inside_plot:
         box = _box(anchor, width, side)
-        if not any(_inside(a, box) for a in anchors if a != anchor):
+        if not any(_inside(a, box) for a in others):
             return side
     for side in (*fallback, "center"):
         if side in inside_plot:
