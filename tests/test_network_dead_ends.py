@@ -238,3 +238,25 @@ def test_a_tiny_real_drive_keeps_its_tiny_flow():
     # the pump line keeps the solve's rounding (1e-23) beside flows of 2e-16: not a flow
     assert abs(result.flow("pump line")[0]) < 1e-6 * result.flow("gravity")[0]
     assert result.converged
+
+
+def test_a_pump_shut_in_with_a_blocked_pump_raises_its_own_alarm():
+    # pump A (no limit) delivers behind a valve that faces it (blocked); pump B, at zero flow with a
+    # 300 mmHg limit, is joined to A by a tube: B's pressure rises with A's, so B's limit is
+    # passed as surely as A's (review finding: NaN > limit read as no alarm)
+    net = PartNetwork(
+        [
+            Branch("gravity", "bag", "y", [_linear(R_BAG, "gravity set")]),
+            Branch("catheter", "y", "vein", [_linear(R_CATHETER, "catheter")]),
+            Branch("valve", "y", "a", [_linear(R_PUMP, "a set"), _valve()]),
+            Branch("tie", "a", "b", [_linear(R_PUMP, "tie tube")]),
+        ],
+        [PressureNode("bag", pressure=BAG_PA[:1]), PressureNode("vein", VEIN_PA, outlet=True)],
+        [
+            Pump("a", flow=1.0e-6),  # no limit of its own
+            Pump("b", flow=0.0, pressure_limit=300 * MMHG),
+        ],
+    )
+    result = net.solve(WATER)
+    assert np.all(np.isnan(result.pump_pressure))
+    assert np.all(result.conditions["over_pressure_limit"])

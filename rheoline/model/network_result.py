@@ -259,7 +259,10 @@ class NetworkResult:
         for row, pump in enumerate(topo.pumps):
             if pump.pressure_limit is not None:
                 limit = np.asarray(pump.pressure_limit, dtype=float)
-                over = over | (pump_p[row] > limit) | stuck_at[pump_rows[row]]
+                # shut in with a blocked pump (pressure undetermined: it rises with that
+                # pump's), this pump's pressure passes its limit too
+                shut_in = stuck_at[pump_rows[row]] | np.isnan(pump_p[row])
+                over = over | (pump_p[row] > limit) | shut_in
         is_source = np.array([not p.outlet for p in topo.pressure_nodes], bool)
         is_source = is_source.reshape((-1,) + (1,) * len(shape))
         conditions = {
