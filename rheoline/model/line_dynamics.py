@@ -4,7 +4,9 @@ The line is cut at its part boundaries into **nodes** that store volume and **se
 that carry flow.  Each node holds half the compliance of each part beside it (a part's
 tubing compliance, or, where none is given, the compressibility of the liquid it holds),
 plus the syringe at the line's inlet and at each injection port.  A boundary that holds
-nothing is not a node: the parts on either side join one segment.  The state of every
+nothing, or a negligible share of the line's compliance (quasi-static,
+:data:`rheoline.model.line_nodes.QUASI_STATIC`), is not a node: the parts on either side
+join one segment.  The state of every
 scenario is each node's stored volume :math:`V_j` and each segment's delivered volume
 :math:`W_s`:
 
@@ -16,9 +18,10 @@ scenario is each node's stored volume :math:`V_j` and each segment's delivered v
 
 with :math:`\Delta p_s(Q)` the segment's losses from the line's own pressure-flow law
 (:meth:`rheoline.model.line.Line.solve` at prescribed flows: friction, developing flow,
-entrance, transition, fitting and exit losses, any rheology), tabulated on a log grid of
-flows and inverted by interpolation in (ln dp, ln Q); below the grid the law is continued
-linearly (laminar), reversed flow uses the same law (symmetric).  The system is stiff (a
+entrance, transition, fitting and exit losses, any rheology), tabulated once per run on a
+log grid of flows and inverted by interpolation in (ln dp, ln Q)
+(:mod:`rheoline.model.flow_tables`, every segment at once); below the grid the law is
+continued linearly (laminar), reversed flow uses the same law (symmetric).  The system is stiff (a
 metre of tubing fills in milliseconds, a syringe in minutes), so it is integrated with
 scipy's BDF method and an analytic sparse Jacobian, every scenario in one state vector.
 The syringe's gauge pressure is the node's pressure; the other nodes are taken at the
@@ -38,124 +41,28 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from rheoline.errors import RheolineError
+from rheoline.model.flow_tables import FlowTable, SegmentFlows, tabulate
 
-__all__ = ["FlowTable", "Network", "Pump", "integrate", "FirstCrossing", "Recorder", "dense_at"]
+__all__ = [
+    "FlowTable",
+    "Network",
+    "Pump",
+    "integrate",
+    "FirstCrossing",
+    "Recorder",
+    "dense_at",
+    "tabulate",
+]
 
-#: Grid points per decade of flow in a segment's tabulated law (ln-ln interpolation
-#: error below about 1e-4 where the law bends, exact where it is linear).
-GRID_PER_DECADE = 40
+#: Largest number of states whose Jacobian is given dense (an LU of a small dense matrix
+#: costs less than the sparse one's bookkeeping; one scenario of a line is 4 to 12 states).
+DENSE_JACOBIAN = 64
 #: Sub-intervals of a solver step searched for a crossing.
 SUBSTEPS = 16
 #: Most regula falsi (Illinois) iterations locating a crossing kept with its state, and
 #: the fraction of the bracketing sub-interval (or of the threshold) it stops within.
 REFINE_ITERATIONS = 60
 REFINE_TOLERANCE = 1e-12
-
-
-@dataclass
-class FlowTable:
-    """A segment's losses against flow, ``ln dp`` on a grid of ``ln Q``, and its inverse.
-
-    ``log_dp`` has shape ``(n_grid, 1)`` (shared by every scenario) or ``(n_grid, N)``.
-    The inverse ``ln Q(ln dp)`` is a cubic Hermite interpolant through the grid with the
-    table's slopes (second-order differences), so the conductance dQ/d(dp) is continuous
-    (a stiff solver's Newton iteration needs that); below the grid the law is continued
-    linearly (laminar), above it as a power law with the last slope.
-    """
-
-    log_q: np.ndarray
-    log_dp: np.ndarray
-
-    def __post_init__(self):
-        self.shared = self.log_dp.shape[1] == 1
-        step = self.log_q[1] - self.log_q[0]
-        slope = np.gradient(self.log_dp, step, axis=0)  # d ln dp / d ln Q, > 0
-        self.du_dx = 1.0 / np.maximum(slope, 1e-6)
-        # laminar continuation below the grid: Q = G0 dp
-        self.g0 = np.exp(self.log_q[0] - self.log_dp[0])
-
-    def _interval(self, x):
-        n = self.log_q.size
-        if self.shared:
-            return np.clip(np.searchsorted(self.log_dp[:, 0], x) - 1, 0, n - 2)
-        cols = np.arange(x.shape[-1])
-        lo = np.zeros(x.shape, dtype=np.intp)
-        hi = np.full(x.shape, n - 1, dtype=np.intp)
-        while np.any(hi - lo > 1):
-            mid = (lo + hi) // 2
-            below = self.log_dp[mid, cols] <= x
-            lo = np.where(below, mid, lo)
-            hi = np.where(below, hi, mid)
-        return lo
-
-    def flow(self, dp):
-        """Flow [m^3/s], its slope dQ/d(dp) [m^3/(s Pa)] and where dp lies beyond the grid."""
-        dp = np.asarray(dp, dtype=float)
-        size = np.maximum(np.abs(dp), 1e-300)
-        x = np.log(size)
-        k = self._interval(x)
-        cols = 0 if self.shared else np.arange(x.shape[-1])
-        x0, x1 = self.log_dp[k, cols], self.log_dp[k + 1, cols]
-        u0, u1 = self.log_q[k], self.log_q[k + 1]
-        d0, d1 = self.du_dx[k, cols], self.du_dx[k + 1, cols]
-        h = x1 - x0
-        s = np.clip((x - x0) / h, 0.0, 1.0)
-        s2, s3 = s * s, s * s * s
-        u = (
-            (2 * s3 - 3 * s2 + 1) * u0
-            + (s3 - 2 * s2 + s) * h * d0
-            + (3 * s2 - 2 * s3) * u1
-            + (s3 - s2) * h * d1
-        )
-        du = (6 * s2 - 6 * s) * (u0 - u1) / h + (3 * s2 - 4 * s + 1) * d0 + (3 * s2 - 2 * s) * d1
-        last = self.log_dp[-1, cols]
-        beyond = x > last
-        u = np.where(beyond, self.log_q[-1] + (x - last) * self.du_dx[-1, cols], u)
-        du = np.where(beyond, self.du_dx[-1, cols], du)
-        q = np.exp(u)
-        slope = q * du / size
-        low = x < self.log_dp[0, cols]
-        g0 = self.g0[cols]
-        q = np.where(low, g0 * size, q)
-        slope = np.where(low, g0, slope)
-        return np.sign(dp) * q, slope, beyond
-
-    def drop(self, flow):
-        """Losses [Pa] at ``flow`` [m^3/s] >= 0 (for estimates), per scenario."""
-        q = np.maximum(np.asarray(flow, dtype=float), 1e-300)
-        u = np.log(q)
-        k = np.clip(np.searchsorted(self.log_q, u) - 1, 0, self.log_q.size - 2)
-        cols = 0 if self.shared else np.arange(np.shape(u)[-1])
-        d_f = self.log_dp[k + 1, cols] - self.log_dp[k, cols]
-        f = self.log_dp[k, cols] + (u - self.log_q[k]) * d_f / (self.log_q[k + 1] - self.log_q[k])
-        return np.where(u < self.log_q[0], q / self.g0[cols], np.exp(f))
-
-
-def tabulate(line, fluid, groups, exit_group, q_lo, q_hi, n_scenarios, shape):
-    """One :class:`FlowTable` per group of part indices of ``line`` (exit jet in ``exit_group``),
-    and the provenance keys of the line's solve."""
-    decades = np.log10(q_hi / q_lo)
-    n_grid = int(np.ceil(decades * GRID_PER_DECADE)) + 1
-    log_q = np.linspace(np.log(q_lo), np.log(q_hi), n_grid)
-    flows = np.exp(log_q).reshape((-1,) + (1,) * len(shape))
-    result = line.solve(fluid, flow=flows)
-    drops = np.asarray(result.part_pressure_drops)
-    exit_drop = np.asarray(result.exit_pressure_drop, dtype=float)
-    tables = []
-    for g, parts in enumerate(groups):
-        total = drops[list(parts)].sum(axis=0) if parts else np.zeros(drops.shape[1:])
-        if g == exit_group:
-            total = total + exit_drop
-        total = np.asarray(total)
-        if total.ndim > 1 and total[0].size > 1:
-            total = np.broadcast_to(total, (n_grid, *shape)).reshape(n_grid, n_scenarios)
-        else:
-            total = total.reshape(n_grid, 1)
-        log_dp = np.log(np.maximum(total, 1e-300))
-        # a strictly rising law (a flat piece would not invert): nudge repeats by 1 ulp
-        log_dp = np.maximum.accumulate(log_dp + 1e-12 * np.arange(n_grid)[:, None], axis=0)
-        tables.append(FlowTable(log_q, log_dp))
-    return tables, tuple(getattr(result, "models_used", ()))
 
 
 @dataclass
@@ -196,6 +103,22 @@ class Network:
         self._pattern()
         self.beyond_table = np.zeros(self.n, bool)
         self._kept = None  # the last state asked for by state_flows, and its flows
+        self._segments = SegmentFlows(self.tables)
+        # node-by-segment incidence: +1 where a segment ends, -1 where it starts; a
+        # segment's drop is then -incidence.T @ p + its drive less any back pressure
+        self._incidence = np.zeros((self.nn, self.ns))
+        self._incidence[self.seg_up, np.arange(self.ns)] -= 1.0
+        inner = self.seg_down >= 0
+        self._incidence[self.seg_down[inner], np.arange(self.ns)[inner]] += 1.0
+        self._across = -self._incidence.T.copy()
+        self._drive = np.stack([np.broadcast_to(g, (self.n,)) for g in self.gravity])
+        self._drive = self._drive - np.where(inner, 0.0, 1.0)[:, None] * self.back_pressure
+        constant = all(law.is_constant for law in self.laws)
+        self._inverse_c = (
+            np.stack([np.broadcast_to(1.0 / law.compliances[0], (self.n,)) for law in self.laws])
+            if constant
+            else None
+        )
 
     def set_scales(self, pressure_scale, volume_scale):
         """State scales: node volumes by C p_ref, delivered volumes by ``volume_scale``."""
@@ -233,6 +156,8 @@ class Network:
 
     def pressures(self, volumes):
         """Gauge pressure (nn, N) [Pa] of every node."""
+        if self._inverse_c is not None:
+            return volumes * self._inverse_c
         return np.stack([law.pressure(volumes[j]) for j, law in enumerate(self.laws)])
 
     def volumes_at(self, pressures):
@@ -251,14 +176,8 @@ class Network:
 
     def _table_flows(self, pressures):
         """Flow (ns, N) [m^3/s] and slope of every segment by its law, all open."""
-        q = np.empty((self.ns, self.n))
-        g = np.empty((self.ns, self.n))
-        for s, table in enumerate(self.tables):
-            down = self.seg_down[s]
-            p_down = self.back_pressure if down < 0 else pressures[down]
-            dp = pressures[self.seg_up[s]] + self.gravity[s] - p_down
-            q[s], g[s], beyond = table.flow(dp)
-            self.beyond_table |= beyond
+        q, g, beyond = self._segments.flow(self._across @ pressures + self._drive)
+        self.beyond_table |= beyond
         return q, g
 
     def flows(self, t, pressures):
@@ -305,10 +224,7 @@ class Network:
         volumes, _ = self.split(y)
         p = self.pressures(volumes)
         q, _ = self.flows(t, p)
-        dv = self.pump_rates(t)
-        np.subtract.at(dv, self.seg_up, q)
-        inner = self.seg_down >= 0
-        np.add.at(dv, self.seg_down[inner], q[inner])
+        dv = self.pump_rates(t) + self._incidence @ q
         return np.concatenate([dv / self.vscale, q / self.wscale[None]]).ravel()
 
     def jac(self, t, y):
@@ -331,6 +247,10 @@ class Network:
                 data += [b, a, -b, -b]
         values = np.stack(data) * scale[self._cols] / scale[self._rows]
         size = self.nv * self.n
+        if size <= DENSE_JACOBIAN:
+            dense = np.zeros((size, size))
+            np.add.at(dense, (self._flat_rows, self._flat_cols), values.ravel())
+            return dense
         return coo_matrix(
             (values.ravel(), (self._flat_rows, self._flat_cols)), shape=(size, size)
         ).tocsc()
@@ -520,7 +440,7 @@ def integrate(net, y0, t0, t1, breaks=(), trackers=(), recorder=None, stop=None,
 
     ``stop(t, y)`` is asked after every step and ends the integration when True.
     """
-    from scipy.integrate import BDF
+    from scipy.integrate import BDF, LSODA  # noqa
 
     points = np.unique(np.concatenate([[t0, t1], [b for b in breaks if t0 < b < t1]]))
     y = np.asarray(y0, dtype=float)

@@ -2,9 +2,9 @@
 
 Nodes sit at the part boundaries of the main line and at each injection port's syringe;
 each holds half of the compliance of the parts beside it (:func:`part_law`), the syringe's
-own, and a port's line's half.  A boundary that stores nothing, or whose segment would have
-no laminar loss (a constant-K fitting alone has an infinite conductance at rest), joins the
-segment upstream.  :func:`build_network` returns the
+own, and a port's line's half.  A boundary that stores nothing or next to nothing
+(:data:`QUASI_STATIC`), or whose segment would have no laminar loss (a constant-K fitting
+alone has an infinite conductance at rest), joins the segment upstream.  :func:`build_network` returns the
 :class:`~rheoline.model.line_dynamics.Network` with its tables of the lines' own
 pressure-flow laws, and :func:`steady_flows` / :func:`steady_pressures` the steady state at
 given set rates.  Scenario arrays are flattened to one axis (N,) here (:func:`flat`) and
@@ -32,7 +32,19 @@ __all__ = [
     "flat_law",
     "shaped",
     "head_drive",
+    "QUASI_STATIC",
 ]
+
+#: A boundary whose compliance is at most this fraction of the whole line's (the syringes'
+#: and every part's) is quasi-static, not a node: typically a junction of rigid parts that
+#: stores only the compression of its liquid (1e-17 m^3/Pa beside a syringe's 1e-11).  Its
+#: time constant is then sub-microsecond (where the liquid's inertia, not modelled, would
+#: govern) and made the time solve stiff beyond use; its pressure instead follows from the
+#: flow balance of the parts beside it (they carry one flow: the joined segment's law is the
+#: sum of their losses, solved once per step), and its stored volume is held by the node
+#: upstream.  Figures move by about that share (tests/test_transient_stiff.py holds them to
+#: 2e-4 of a tight solve that keeps the node).
+QUASI_STATIC = 1e-4
 
 
 def part_law(part, compliance):
@@ -135,17 +147,18 @@ def _laminar(part):
 
 def _main_nodes(line, laws, ports):
     """Main-line nodes and their laws: the inlet, every port's junction, every boundary that
-    stores, except where a segment would have no laminar loss (a constant-K fitting alone
+    stores more than :data:`QUASI_STATIC` of the line's compliance, except where a segment would have no laminar loss (a constant-K fitting alone
     has an infinite conductance at rest): such boundaries join the segment upstream, and
     what they store goes to the node upstream.
     """
     n_parts = len(line.parts)
     required = {0} | {p.boundary for p in ports if p.boundary < n_parts}
     laminar = [_laminar(p) for p in line.parts]
+    total = sum(law.compliance(0.0) for law in laws)
     nodes = [0]
     for b in range(1, n_parts + 1):
         must = b == n_parts or b in required
-        if not (must or np.all(laws[b].compliance(0.0) > 0)):
+        if not (must or np.all(laws[b].compliance(0.0) > QUASI_STATIC * total)):
             continue
         if not must and not any(laminar[nodes[-1] : b]):
             continue  # joins the segment that follows

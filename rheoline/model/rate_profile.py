@@ -39,7 +39,7 @@ import numpy as np
 from rheoline.errors import InputRangeError
 from rheoline.model.validation import check_finite, check_nonnegative
 
-__all__ = ["RateProfile", "RateChange"]
+__all__ = ["RateProfile", "RateChange", "FlatProfile"]
 
 
 @dataclass(frozen=True)
@@ -303,6 +303,43 @@ class RateProfile:
         return RateProfile(
             times=np.take_along_axis(new_t, order, 0), rates=np.take_along_axis(new_r, order, 0)
         )
+
+
+class FlatProfile:
+    """A :class:`RateProfile` on the flat scenario axis (N,) of a time solve.
+
+    Its pieces are broadcast once to the scenario ``shape`` and flattened, so that the rate
+    and the volume at a time (a scalar or one per scenario, (N,)) take a fixed number of
+    array operations however many pieces the profile has (a solver asks for them at every
+    step).  The same numbers as :meth:`RateProfile.rate` and :meth:`RateProfile.volume`.
+
+    Examples
+    --------
+    >>> profile = RateProfile.steps([0.0, 10.0], [[1e-9, 2e-9], [3e-9, 3e-9]])
+    >>> flat = FlatProfile(profile, (2,), 2)
+    >>> flat.rate(5.0).tolist(), flat.volume(np.array([20.0, 20.0])).tolist()
+    ([1e-09, 2e-09], [4e-08, 5e-08])
+    """
+
+    def __init__(self, profile, shape, n):
+        pieces = list(profile._pieces())
+
+        def flat(i):
+            return np.stack([np.broadcast_to(p[i], shape).reshape(n) for p in pieces])
+
+        self.t0, self.t1, self.r0, self.slope = (flat(i) for i in range(4))
+
+    def rate(self, t):
+        """Set rate (N,) [m^3/s] at time ``t`` [s] (a scalar or (N,))."""
+        t = np.asarray(t, dtype=float)
+        inside = (t >= self.t0) & (t < self.t1)
+        return np.where(inside, self.r0 + self.slope * (t - self.t0), 0.0).sum(axis=0)
+
+    def volume(self, t):
+        """Volume (N,) [m^3] displaced from time 0 to ``t`` [s] (a scalar or (N,))."""
+        span = np.clip(np.minimum(np.asarray(t, dtype=float), self.t1) - self.t0, 0.0, None)
+        span = np.where(np.isfinite(span), span, 0.0)
+        return (self.r0 * span + 0.5 * self.slope * span * span).sum(axis=0)
 
 
 def _along(arr, shape):

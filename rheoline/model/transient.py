@@ -75,6 +75,7 @@ from rheoline.model import line_nodes as nodes
 from rheoline.model.compliance import Compliance, SyringePump
 from rheoline.model.line import Line
 from rheoline.model.provenance import merge_models
+from rheoline.model.rate_profile import FlatProfile
 from rheoline.model.transient_phases import (
     occlusion_phase,
     port_results,
@@ -317,37 +318,18 @@ def _pumps(layout, pump, ports, shape, n):
         need = law.volume(p0 + bl) - law.volume(p0)
         t_break = nodes.flat(profile.time_at_volume(need.reshape(shape)), shape, n)
         t_break = np.where(bl > 0, t_break, -np.inf)
+        flat_profile = FlatProfile(profile, shape, n)
         out.append(
             dyn.Pump(
                 node=node,
-                rate=_flat_rate(profile, shape, n),
+                rate=flat_profile.rate,
                 valve_segment=seg if np.any(bl > 0) and seg >= 0 else -1,
                 break_time=t_break,
                 name=p.name if k == 0 else ports[k - 1].name,
-                volume=_flat_volume(profile, shape, n),
+                volume=flat_profile.volume,
             )
         )
     return out
-
-
-def _flat_rate(profile, shape, n):
-    def rate(t):
-        return np.broadcast_to(profile.rate(_shaped_time(t, shape, n)), shape).reshape(n)
-
-    return rate
-
-
-def _flat_volume(profile, shape, n):
-    def volume(t):
-        return np.broadcast_to(profile.volume(_shaped_time(t, shape, n)), shape).reshape(n)
-
-    return volume
-
-
-def _shaped_time(t, shape, n):
-    """A time [s], scalar or per scenario (N,), shaped to broadcast with a profile."""
-    t = np.asarray(t, dtype=float)
-    return t.reshape(shape) if t.ndim == 1 and t.size == n else t
 
 
 def _auto_duration(layout, pumps_in, line, steady_p, peak, shape, occlusion):
@@ -451,8 +433,8 @@ def simulate_infusion(
     y0 = net.join(net.volumes_at(layout.initial_pressures), np.zeros((net.ns, n)))
     changes, trackers = rate_change_trackers(net, pumps_in, ports, shape, n)
     breaks = set()
-    for p in pumps_in:
-        breaks.update(p.rate.breakpoints().tolist())
+    for p in pumps_in:  # the set rates' corners and where each pump's slack is taken up
+        breaks.update(p.effective_rate().breakpoints().tolist())
     for p in net.pumps:
         finite = np.unique(p.break_time[np.isfinite(p.break_time)])
         if 0 < finite.size <= 64:

@@ -261,7 +261,10 @@ class OcclusionResult:
         The same from the time solve of the release [m^3] (a check: it approaches
         ``bolus_volume`` as the line settles).
     bolus_peak_flow : float or ndarray
-        Largest outlet flow of the release [m^3/s].
+        Largest outlet flow of the release [m^3/s]: at its start, the stored pressure
+        through the line downstream of the nodes (a junction that stores only a
+        negligible volume is quasi-static, so its sub-microsecond discharge of a few
+        nanolitres, where the liquid's inertia would govern, is not taken as the peak).
     bolus_time_90 : float or ndarray
         [s] after the release until 90 % of the bolus has left.
     release_time : float or ndarray
