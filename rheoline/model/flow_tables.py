@@ -68,7 +68,7 @@ class FlowTable:
         x = np.log(size)
         cols = 0 if self.shared else np.arange(x.shape[-1])
         j = self._piece(x)
-        q, slope = _inverse(self.pieces, x, size, j, cols)
+        q, slope = _inverse([a[j, cols] for a in self.pieces], x, size)
         return np.sign(dp) * q, slope, j == self.log_q.size
 
     def drop(self, flow):
@@ -135,12 +135,10 @@ def _pieces(log_q, log_dp, du_dx):
     return start, c0, c1, np.concatenate([zero, c2, zero]), np.concatenate([zero, c3, zero])
 
 
-def _inverse(pieces, x, size, j, cols):
-    """Flow [m^3/s] and slope dQ/d(dp) at ``x = ln |dp|`` on piece ``j`` of ``pieces``."""
-    if isinstance(pieces, np.ndarray):
-        start, c0, c1, c2, c3 = pieces[:, j, cols]
-    else:
-        start, c0, c1, c2, c3 = (a[j, cols] for a in pieces)
+def _inverse(pieces, x, size):
+    """Flow [m^3/s] and slope dQ/d(dp) at ``x = ln |dp|`` on the pieces chosen for it
+    (``start, c0, c1, c2, c3``, each shaped as ``x``)."""
+    start, c0, c1, c2, c3 = pieces
     d = x - start
     a2, a3 = c2 * d, c3 * d
     q = np.exp(c0 + d * (c1 + a2 + a3 * d))
@@ -150,9 +148,9 @@ def _inverse(pieces, x, size, j, cols):
 class SegmentFlows:
     """Every segment's :class:`FlowTable` at once: flows (ns, N) at pressure drops (ns, N).
 
-    Where every table is shared by all scenarios (one line, the usual case) the tables are
-    stacked along a last axis (G, ns) and evaluated together, the same arithmetic as
-    :meth:`FlowTable.flow`; otherwise each table is evaluated in turn.
+    Where every table is shared by all scenarios (one line, the usual case) their pieces
+    are stacked and evaluated together, the same arithmetic as :meth:`FlowTable.flow`;
+    otherwise each table is evaluated in turn.
     """
 
     def __init__(self, tables):
@@ -162,11 +160,13 @@ class SegmentFlows:
             t.shared and np.array_equal(t.log_q, grids[0]) for t in self.tables
         )
         if self.stacked:
-            self.log_dp = np.concatenate([t.log_dp for t in self.tables], axis=1)  # (G, ns)
-            self.pieces = np.stack(
-                [np.concatenate([t.pieces[i] for t in self.tables], axis=1) for i in range(5)]
-            )  # (5, G + 1, ns)
-            self._rows = np.arange(len(self.tables))[:, None]
+            self._grids = [np.ascontiguousarray(t.log_dp[:, 0]) for t in self.tables]
+            self._beyond = self._grids[0].size  # the piece beyond the grid
+            # (5, ns * (G + 1)): segment s's pieces at s * (G + 1) onwards
+            self._pieces = np.stack(
+                [np.concatenate([t.pieces[i][:, 0] for t in self.tables]) for i in range(5)]
+            )
+            self._first = (np.arange(len(self.tables)) * (self._beyond + 1))[:, None]
 
     def flow(self, dp):
         """Flow (ns, N) [m^3/s], slope dQ/d(dp) (ns, N) and where any segment's dp lies
@@ -177,6 +177,8 @@ class SegmentFlows:
             return np.stack([q for q, _, _ in out]), np.stack([g for _, g, _ in out]), beyond
         size = np.maximum(np.abs(dp), 1e-300)
         x = np.log(size)
-        j = np.stack([np.searchsorted(self.log_dp[:, s], x[s]) for s in range(x.shape[0])])
-        q, slope = _inverse(self.pieces, x, size, j, self._rows)
-        return np.sign(dp) * q, slope, np.any(j == self.log_dp.shape[0], axis=0)
+        j = np.empty(x.shape, dtype=np.intp)
+        for s, grid in enumerate(self._grids):
+            j[s] = grid.searchsorted(x[s])
+        q, slope = _inverse(self._pieces.take(j + self._first, axis=1), x, size)
+        return np.sign(dp) * q, slope, (j == self._beyond).any(axis=0)

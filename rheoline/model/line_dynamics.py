@@ -448,7 +448,7 @@ def integrate(net, y0, t0, t1, breaks=(), trackers=(), recorder=None, stop=None,
         recorder.add(t0, y, left=False)
     t = t0
     for a, b in zip(points[:-1], points[1:], strict=True):
-        solver = BDF(net.rhs, a, y, b, rtol=rtol, atol=rtol * 1e-2, jac=net.jac)
+        solver = _direct_solves(BDF(net.rhs, a, y, b, rtol=rtol, atol=rtol * 1e-2, jac=net.jac))
         while solver.status == "running":
             message = solver.step()
             if solver.status == "failed":
@@ -461,6 +461,19 @@ def integrate(net, y0, t0, t1, breaks=(), trackers=(), recorder=None, stop=None,
                 return solver.y, solver.t
         y, t = solver.y, solver.t
     return y, t
+
+
+def _direct_solves(solver):
+    """``solver`` solving its Newton iterations' linear systems by LAPACK's ``getrs`` on its
+    LU factors directly where its Jacobian is dense: the same arithmetic as
+    ``scipy.linalg.lu_solve``, without the argument checks and conversions that are most of
+    that call's cost for a few states (it is called at every Newton iteration)."""
+    from scipy.linalg import get_lapack_funcs
+
+    if isinstance(getattr(solver, "J", None), np.ndarray) and hasattr(solver, "solve_lu"):
+        getrs = get_lapack_funcs("getrs", (solver.J,))
+        solver.solve_lu = lambda lu, b: getrs(lu[0], lu[1], b)[0]
+    return solver
 
 
 def _step_done(net, solver, trackers, recorder):
