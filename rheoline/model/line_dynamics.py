@@ -76,6 +76,15 @@ class Pump:
     name: str = "pump"
     volume: object = None  # callable t -> (N,) [m^3] displaced since time 0
 
+    def open_from(self):
+        """The time [s] from which its valve is open in every scenario (the latest break
+        time; -inf without a valve), kept while ``break_time`` stays the same array."""
+        kept = self.__dict__.get("_open_from")
+        if kept is None or kept[0] is not self.break_time:
+            latest = float(np.max(self.break_time)) if self.valve_segment >= 0 else -np.inf
+            kept = self.__dict__["_open_from"] = (self.break_time, latest)
+        return kept[1]
+
 
 @dataclass
 class Network:
@@ -165,11 +174,17 @@ class Network:
         return np.stack([law.volume(pressures[j]) for j, law in enumerate(self.laws)])
 
     def open_factor(self, t):
-        """(ns, N) 1 where a segment passes flow at time ``t``, 0 where it is shut."""
+        """(ns, N) 1 where a segment passes flow at time ``t``, 0 where it is shut (1.0
+        where no segment can be shut)."""
+        if isinstance(t, np.ndarray) and t.ndim:
+            valves = [p for p in self.pumps if p.valve_segment >= 0]
+        else:  # one time: a valve open in every scenario by then shuts nothing
+            valves = [p for p in self.pumps if t < p.open_from()]
+        if self.closed is None and not valves:
+            return 1.0  # every segment open
         out = np.ones((self.ns, self.n))
-        for pump in self.pumps:
-            if pump.valve_segment >= 0:
-                out[pump.valve_segment] *= t >= pump.break_time
+        for pump in valves:
+            out[pump.valve_segment] *= t >= pump.break_time
         if self.closed is not None:
             out[self.closed] = 0.0
         return out
@@ -192,7 +207,7 @@ class Network:
         by its recorder (the same numbers, computed once)."""
         y = np.asarray(y)
         kept = self._kept
-        if kept is None or kept[0].shape != y.shape or not np.array_equal(kept[0], y):
+        if kept is None or kept[0].shape != y.shape or not (kept[0] == y).all():
             volumes, delivered = self.split(y)
             p = self.pressures(volumes)
             self._kept = kept = (y.copy(), volumes, delivered, p, *self._table_flows(p))
@@ -290,8 +305,11 @@ class FirstCrossing:
 
     def wants(self, t_old, t_new, value_new):
         """True when some open scenario has passed the threshold by ``t_new``."""
-        open_ = np.isnan(self.time) & (self.t_from <= t_new) & (self.t_until > t_old)
-        return bool(np.any(open_ & (self._past(value_new) >= 0)))
+        waiting = np.isnan(self.time)
+        if not waiting.any():  # every crossing found
+            return False
+        open_ = waiting & (self.t_from <= t_new) & (self.t_until > t_old)
+        return bool((open_ & (self._past(value_new) >= 0)).any())
 
     def update(self, times, values, states, located=None):
         """Record crossings from sub-step samples (K+1 times, values (K+1, N)).
@@ -384,9 +402,10 @@ class Recorder:
         self.volumes.append(volumes)
         self.flows.append(q)
         self.delivered.append(delivered)
-        self.rates.append(
-            np.stack([p.rate(t_eval) * net.running * np.ones(net.n) for p in net.pumps])
-        )
+        rates = np.empty((len(net.pumps), net.n))
+        for k, p in enumerate(net.pumps):
+            rates[k] = p.rate(t_eval) * net.running
+        self.rates.append(rates)
 
     def arrays(self):
         """time (n_t,), volumes (n_t, nn, N), flows and delivered (n_t, ns, N), rates (n_t,
