@@ -416,9 +416,11 @@ class Recorder:
 
 
 def _by_quantity(trackers):
+    """Trackers grouped by their quantity (a bound method compares equal to another
+    reference to it: ``net.outlet_flow_of`` taken twice is one quantity, evaluated once)."""
     groups = {}
     for tracker in trackers:
-        groups.setdefault(id(tracker.quantity), []).append(tracker)
+        groups.setdefault(tracker.quantity, []).append(tracker)
     return list(groups.values())
 
 
@@ -459,7 +461,7 @@ def integrate(net, y0, t0, t1, breaks=(), trackers=(), recorder=None, stop=None,
 
     ``stop(t, y)`` is asked after every step and ends the integration when True.
     """
-    from scipy.integrate import BDF, LSODA  # noqa
+    from scipy.integrate import BDF
 
     points = np.unique(np.concatenate([[t0, t1], [b for b in breaks if t0 < b < t1]]))
     y = np.asarray(y0, dtype=float)
