@@ -69,7 +69,7 @@ class FlowTable:
         cols = 0 if self.shared else np.arange(x.shape[-1])
         j = self._piece(x)
         q, slope = _inverse([a[j, cols] for a in self.pieces], x, size)
-        return np.sign(dp) * q, slope, j == self.log_q.size
+        return np.copysign(q, dp), slope, j == self.log_q.size
 
     def drop(self, flow):
         """Losses [Pa] at ``flow`` [m^3/s] >= 0 (for estimates), per scenario."""
@@ -181,4 +181,4 @@ class SegmentFlows:
         for s, grid in enumerate(self._grids):
             j[s] = grid.searchsorted(x[s])
         q, slope = _inverse(self._pieces.take(j + self._first, axis=1), x, size)
-        return np.sign(dp) * q, slope, (j == self._beyond).any(axis=0)
+        return np.copysign(q, dp), slope, (j == self._beyond).any(axis=0)

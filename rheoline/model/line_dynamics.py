@@ -299,9 +299,11 @@ class FirstCrossing:
         return ~np.isnan(self.time)
 
     def _past(self, values):
-        finite = np.isfinite(self.threshold)
-        gap = values - np.where(finite, self.threshold, 0.0)
-        return np.where(finite, self.direction * gap, -np.inf)
+        if self.__dict__.get("_level") is None or self._level[0] is not self.threshold:
+            finite = np.isfinite(self.threshold)
+            self._level = (self.threshold, finite, np.where(finite, self.threshold, 0.0))
+        _, finite, level = self._level
+        return np.where(finite, self.direction * (values - level), -np.inf)
 
     def wants(self, t_old, t_new, value_new):
         """True when some open scenario has passed the threshold by ``t_new``."""
