@@ -32,6 +32,7 @@ Examples
 
 from __future__ import annotations
 
+import bisect
 from dataclasses import dataclass
 
 import numpy as np
@@ -328,9 +329,19 @@ class FlatProfile:
             return np.stack([np.broadcast_to(p[i], shape).reshape(n) for p in pieces])
 
         self.t0, self.t1, self.r0, self.slope = (flat(i) for i in range(4))
+        # pieces starting at the same times in every scenario: a scalar time finds its
+        # piece by bisection (the last piece starting at or before it; the pieces are
+        # contiguous, so a step's zero-width piece is passed over as it should be)
+        shared = bool(np.all(self.t0 == self.t0[:, :1]))
+        self._starts = self.t0[:, 0].tolist() if shared else None
 
     def rate(self, t):
         """Set rate (N,) [m^3/s] at time ``t`` [s] (a scalar or (N,))."""
+        if self._starts is not None and isinstance(t, float):
+            k = bisect.bisect_right(self._starts, t) - 1
+            if k < 0:
+                return np.zeros(self.r0.shape[1])
+            return self.r0[k] + self.slope[k] * (t - self._starts[k])
         t = np.asarray(t, dtype=float)
         inside = (t >= self.t0) & (t < self.t1)
         return np.where(inside, self.r0 + self.slope * (t - self.t0), 0.0).sum(axis=0)
