@@ -236,11 +236,19 @@ class Network:
 
     # ------------------------------------------------------------------ ODE
     def rhs(self, t, y):
-        volumes, _ = self.split(y)
-        p = self.pressures(volumes)
-        q, _ = self.flows(t, p)
-        dv = self.pump_rates(t) + self._incidence @ q
-        return np.concatenate([dv / self.vscale, q / self.wscale[None]]).ravel()
+        y = np.asarray(y).reshape(self.nv, self.n)
+        if self._inverse_c is not None:  # constant compliances: p = V / C in one product
+            p = y[: self.nn] * (self.vscale * self._inverse_c)
+        else:
+            p = self.pressures(y[: self.nn] * self.vscale)
+        q = self._table_flows(p)[0]
+        factor = self.open_factor(t)
+        if isinstance(factor, np.ndarray):
+            q = q * factor
+        out = np.empty((self.nv, self.n))
+        np.divide(self.pump_rates(t) + self._incidence @ q, self.vscale, out=out[: self.nn])
+        np.divide(q, self.wscale, out=out[self.nn :])
+        return out.ravel()
 
     def jac(self, t, y):
         from scipy.sparse import coo_matrix
