@@ -135,14 +135,14 @@ def _pieces(log_q, log_dp, du_dx):
     return start, c0, c1, np.concatenate([zero, c2, zero]), np.concatenate([zero, c3, zero])
 
 
-def _inverse(pieces, x, size):
-    """Flow [m^3/s] and slope dQ/d(dp) at ``x = ln |dp|`` on the pieces chosen for it
-    (``start, c0, c1, c2, c3``, each shaped as ``x``)."""
+def _inverse(pieces, x, size, slope=True):
+    """Flow [m^3/s] and slope dQ/d(dp) (None unless ``slope``) at ``x = ln |dp|`` on the
+    pieces chosen for it (``start, c0, c1, c2, c3``, each shaped as ``x``)."""
     start, c0, c1, c2, c3 = pieces
     d = x - start
     a2, a3 = c2 * d, c3 * d
     q = np.exp(c0 + d * (c1 + a2 + a3 * d))
-    return q, q * (c1 + d * (2.0 * c2 + 3.0 * a3)) / size
+    return q, (q * (c1 + d * (2.0 * c2 + 3.0 * a3)) / size if slope else None)
 
 
 class SegmentFlows:
@@ -168,9 +168,9 @@ class SegmentFlows:
             )
             self._first = (np.arange(len(self.tables)) * (self._beyond + 1))[:, None]
 
-    def flow(self, dp):
-        """Flow (ns, N) [m^3/s], slope dQ/d(dp) (ns, N) and where any segment's dp lies
-        beyond its grid (N,)."""
+    def flow(self, dp, slope=True):
+        """Flow (ns, N) [m^3/s], slope dQ/d(dp) (ns, N; None where not ``slope`` and the
+        tables are stacked) and where any segment's dp lies beyond its grid (N,)."""
         if not self.stacked:
             out = [t.flow(d) for t, d in zip(self.tables, dp, strict=True)]
             beyond = np.any([b for _, _, b in out], axis=0)
@@ -180,5 +180,5 @@ class SegmentFlows:
         j = np.empty(x.shape, dtype=np.intp)
         for s, grid in enumerate(self._grids):
             j[s] = grid.searchsorted(x[s])
-        q, slope = _inverse(self._pieces.take(j + self._first, axis=1), x, size)
-        return np.copysign(q, dp), slope, (j == self._beyond).any(axis=0)
+        q, g = _inverse(self._pieces.take(j + self._first, axis=1), x, size, slope)
+        return np.copysign(q, dp), g, (j == self._beyond).any(axis=0)

@@ -189,9 +189,10 @@ class Network:
             out[self.closed] = 0.0
         return out
 
-    def _table_flows(self, pressures):
-        """Flow (ns, N) [m^3/s] and slope of every segment by its law, all open."""
-        q, g, beyond = self._segments.flow(self._across @ pressures + self._drive)
+    def _table_flows(self, pressures, slope=True):
+        """Flow (ns, N) [m^3/s] and slope (None where not needed) of every segment by its
+        law, all open."""
+        q, g, beyond = self._segments.flow(self._across @ pressures + self._drive, slope)
         self.beyond_table |= beyond
         return q, g
 
@@ -210,7 +211,8 @@ class Network:
         if kept is None or kept[0].shape != y.shape or not (kept[0] == y).all():
             volumes, delivered = self.split(y)
             p = self.pressures(volumes)
-            self._kept = kept = (y.copy(), volumes, delivered, p, *self._table_flows(p))
+            q = self._table_flows(p, slope=False)[0]
+            self._kept = kept = (y.copy(), volumes, delivered, p, q)
         factor = self.open_factor(t)
         return kept[1], kept[2], kept[3], kept[4] * factor
 
@@ -241,7 +243,7 @@ class Network:
             p = y[: self.nn] * (self.vscale * self._inverse_c)
         else:
             p = self.pressures(y[: self.nn] * self.vscale)
-        q = self._table_flows(p)[0]
+        q = self._table_flows(p, slope=False)[0]
         factor = self.open_factor(t)
         if isinstance(factor, np.ndarray):
             q = q * factor
