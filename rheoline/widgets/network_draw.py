@@ -34,6 +34,7 @@ import numpy as np
 import plotly.graph_objects as go
 
 from rheoline.units import per_ml_min
+from rheoline.widgets.figures import LOOK
 from rheoline.widgets.style import PALETTE, significant, user_text
 
 __all__ = ["NODE_SYMBOLS", "node_positions", "branch_paths", "network_figure", "branch_words"]
@@ -192,7 +193,8 @@ def network_figure(topology, branches, nodes, title, flow_unit="mL/min") -> go.F
         state = _state(row)
         xs, ys = paths[b.name]
         traces.append(
-            go.Scatter(
+            dict(
+                type="scatter",
                 x=xs,
                 y=ys,
                 mode="lines",
@@ -246,7 +248,8 @@ def network_figure(topology, branches, nodes, title, flow_unit="mL/min") -> go.F
         if not members:
             continue
         traces.append(
-            go.Scatter(
+            dict(
+                type="scatter",
                 x=[positions[n.name][0] for n in members],
                 y=[positions[n.name][1] for n in members],
                 mode="markers+text",
@@ -264,12 +267,13 @@ def network_figure(topology, branches, nodes, title, flow_unit="mL/min") -> go.F
                 ),
             )
         )
-    layout = go.Layout(
+    # plain dicts: plotly checks them once, in the figure (not once more per object)
+    layout = dict(
         title=user_text(str(title)),
         annotations=notes,
         xaxis=dict(visible=False, range=[min(xs) - 0.6, max(xs) + 0.6]),
         yaxis=dict(visible=False, scaleanchor=None),
-        template="simple_white",
+        template=LOOK,
         height=max(380, 140 + 110 * _ROW * _column_size(positions)),
         margin=dict(l=20, r=20, t=50, b=20),
         legend=dict(orientation="h", y=-0.05, title="node types: "),

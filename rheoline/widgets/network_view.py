@@ -407,16 +407,8 @@ class NetworkView(View):
         self.results.value = _results_html(row, branches, run.flags[case], unit, nodes)
 
     def _draw(self, fresh):
-        fig = self.figures["network"]
-        if fig is fresh:
-            return
-        if hasattr(fig, "batch_update"):
-            with fig.batch_update():
-                fig.data = ()
-                fig.add_traces(list(fresh.data))
-                fig.layout = fresh.layout
-        else:
-            self.figures["network"] = fresh
+        """Show ``fresh`` in place of the diagram (the chart sends it whole anyway)."""
+        self.replace_figure("network", fresh)
 
 
 def _with_fields(scenario, fields):
@@ -430,7 +422,9 @@ def network_figure_placeholder():
     """An empty diagram (filled by the first update)."""
     import plotly.graph_objects as go
 
-    return go.Figure(layout=go.Layout(template="simple_white", height=380))
+    from rheoline.widgets.figures import LOOK
+
+    return go.Figure(layout=go.Layout(template=LOOK, height=380))
 
 
 def _drive_words(row, nodes):
