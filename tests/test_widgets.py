@@ -285,6 +285,14 @@ def test_app_builds_every_view_with_a_banner(app):
         assert BANNER_CLASS in view.children[0]._dom_classes
 
 
+def test_prepare_takes_what_is_alive_out_of_full_garbage_collections(app):
+    import gc
+
+    gc.unfreeze()  # an earlier test's freeze must not make this pass
+    app.prepare()
+    assert gc.get_freeze_count() > 10_000  # modules, classes, the app: tens of thousands
+
+
 def test_saved_scenario_file_reruns_to_the_views_numbers(app, tmp_path):
     from rheoline.scenario.compare import run_scenarios
     from rheoline.scenario.files import load_scenarios
