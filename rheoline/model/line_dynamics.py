@@ -408,7 +408,7 @@ class Recorder:
         if not self.keep:
             return
         net = self.net
-        t_eval = t - 1e-9 * max(1.0, abs(t)) if left else t
+        t_eval = left_of(t) if left else t
         volumes, delivered, _, q = net.state_flows(t_eval, y)
         self.t.append(float(t))
         self.volumes.append(volumes)
@@ -457,13 +457,14 @@ def dense_at(net, dense, times):
     return (d[0] + np.einsum("kvn,kn->vn", d[1:], p)).ravel()
 
 
-def _sample(net, dense, t_old, t_new, trackers):
+def _sample(net, dense, t_old, t_new, trackers, end=np.inf):
     times = np.linspace(t_old, t_new, SUBSTEPS + 1)
+    seen = [_seen(t, end) for t in times]
     states = dense(times).reshape(net.nv, net.n, times.size).transpose(0, 2, 1)  # (nv, K+1, N)
     located = lambda t: dense_at(net, dense, t)  # noqa: E731
     for group in _by_quantity(trackers):
         quantity = group[0].quantity
-        values = np.stack([quantity(t, states[:, i, :].ravel()) for i, t in enumerate(times)])
+        values = np.stack([quantity(t, states[:, i, :].ravel()) for i, t in enumerate(seen)])
         for tracker in group:
             tracker.update(times, values, states, located)
 
@@ -481,7 +482,8 @@ def integrate(net, y0, t0, t1, breaks=(), trackers=(), recorder=None, stop=None,
         recorder.add(t0, y, left=False)
     t = t0
     for a, b in zip(points[:-1], points[1:], strict=True):
-        solver = _direct_solves(BDF(net.rhs, a, y, b, rtol=rtol, atol=rtol * 1e-2, jac=net.jac))
+        rhs, jac = _within(net.rhs, b), _within(net.jac, b)
+        solver = _direct_solves(BDF(rhs, a, y, b, rtol=rtol, atol=rtol * 1e-2, jac=jac))
         while solver.status == "running":
             message = solver.step()
             if solver.status == "failed":
@@ -489,11 +491,38 @@ def integrate(net, y0, t0, t1, breaks=(), trackers=(), recorder=None, stop=None,
                     f"the time solve failed at t = {solver.t:.6g} s ({message}); try a "
                     "shorter duration or check the compliances and rates for extreme values"
                 )
-            _step_done(net, solver, trackers, recorder)
+            _step_done(net, solver, trackers, recorder, b)
             if stop is not None and stop(solver.t, solver.y):
                 return solver.y, solver.t
         y, t = solver.y, solver.t
     return y, t
+
+
+def left_of(t):
+    """A time just before ``t`` [s] (by 1e-9 of it, at least 1 ns): a set rate or a valve
+    that changes at ``t`` is there as it was before."""
+    return t - 1e-9 * max(1.0, abs(t))
+
+
+def _within(function, end):
+    """``function(t, y)`` of an interval that ends at ``end`` [s], taken at ``end`` as its
+    left limit.  The solver's last step of an interval lands on ``end`` exactly; a pump
+    that starts or a valve that opens there (the interval's end is a breakpoint because it
+    does) belongs to the next interval.  Seen at the step's end it was a jump the step
+    could not resolve: the solver rejected and shrank the step until the spurious volume
+    was within its tolerance, some 20 to 40 steps before each such breakpoint."""
+
+    def at(t, y):
+        return function(_seen(t, end), y)
+
+    return at
+
+
+def _seen(t, end):
+    """The time [s] at which an interval ending at ``end`` takes its rates and valves at
+    ``t``: ``t`` itself, its left limit at the end (the trackers read the interval's end
+    the same way, so a jump there is found at the start of the next interval)."""
+    return t if t < end else left_of(end)
 
 
 def _direct_solves(solver):
@@ -509,15 +538,15 @@ def _direct_solves(solver):
     return solver
 
 
-def _step_done(net, solver, trackers, recorder):
+def _step_done(net, solver, trackers, recorder, end=np.inf):
     t_old, t_new, y_new = solver.t_old, solver.t, solver.y
     wanting = []
     for group in _by_quantity(trackers):
-        value = group[0].quantity(t_new, y_new)
+        value = group[0].quantity(_seen(t_new, end), y_new)
         wanting += [tr for tr in group if tr.wants(t_old, t_new, value)]
     if wanting:
         dense = solver.dense_output()
-        _sample(net, dense, t_old, t_new, wanting)
+        _sample(net, dense, t_old, t_new, wanting, end)
         if recorder is not None:
             # a crossing kept with its state (an alarm) is a row of the series: the step's
             # dense output there, for every scenario

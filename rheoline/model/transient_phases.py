@@ -454,8 +454,12 @@ def _displaced_since(net, start, running=1.0, stop=None):
     """``displaced(t)`` of the pumps from ``start`` (N,) on, running where ``running`` is 1.
 
     ``t`` counts from ``start`` (``stop`` None, a phase from 0), or is absolute, the pumps
-    stopping at ``stop`` (N,) [s] (the occluded line until its alarm).
+    stopping at ``stop`` (N,) [s] (the occluded line until its alarm).  A release with
+    every pump stopped displaces nothing (the release's tracker asks at every step).
     """
+
+    if stop is None and not np.any(running):  # every pump stopped: nothing displaced
+        return lambda t: (np.zeros((len(t), net.n)),) * 2
 
     def displaced(t):
         if stop is None:
