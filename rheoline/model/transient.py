@@ -89,6 +89,7 @@ from rheoline.model.transient_results import (
     RateChangeResult,
     TransientResult,
 )
+from rheoline.model.transient_reuse import run_key, run_phase
 from rheoline.model.transport import TRANSPORT_MODELS
 from rheoline.model.validation import check_finite, check_positive
 
@@ -365,6 +366,7 @@ def simulate_infusion(
     transport="auto",
     series=True,
     rtol=1e-6,
+    reuse_key=None,
 ):
     """Pressure, flow and drug delivery in time through a line from a syringe pump.
 
@@ -391,6 +393,13 @@ def simulate_infusion(
         Keep the time series (False for many scenarios when only the figures matter).
     rtol : float
         Relative tolerance of the time solve.
+    reuse_key : hashable, optional
+        Names every input but ``occlusion`` (the scenario layer: the scenario without its
+        occlusion, and its sweep points).  A solve given the key of a recent one of a few
+        scenarios takes that solve's run from rest instead of solving it again where the
+        occlusion's time, the duration, the tolerance and the laws' flow grids agree (an
+        edit of the alarm pressure, the occluded part or the release):
+        :mod:`rheoline.model.transient_reuse`.  None (default): solved.
 
     Returns
     -------
@@ -440,12 +449,9 @@ def simulate_infusion(
         if 0 < finite.size <= 64:
             breaks.update(finite.tolist())
     keep = bool(series or ports)
-    recorder = dyn.Recorder(net, keep=keep)
     t_occ = duration if occlusion is None else occlusion.time
-    y_occ, _ = dyn.integrate(net, y0, 0.0, t_occ, sorted(breaks), trackers, recorder, rtol=rtol)
-    if t_occ < duration:
-        dyn.integrate(net, y_occ, t_occ, duration, sorted(breaks), trackers, recorder, rtol=rtol)
-    run_arrays = recorder.arrays() if keep else None
+    key = run_key(reuse_key, n, t_occ, duration, rtol, keep, net.tables)
+    y_occ, run_arrays = run_phase(net, y0, t_occ, duration, breaks, trackers, keep, rtol, key)
     conditions = {key: np.zeros(n, bool) for key in ("outside_flow_table",)}
     rate_results = []
     startup = nodes.shaped(np.full(shape, np.nan), shape)

@@ -21,6 +21,8 @@ Examples
 
 from __future__ import annotations
 
+from dataclasses import replace
+
 import numpy as np
 
 from rheoline.errors import RheolineError, ScenarioError
@@ -360,12 +362,25 @@ def transient_step(run):
     run.not_computed = _not_computed(run)
 
 
+def _reuse_key(g):
+    """What names every input of group ``g``'s time solve but its occlusion: the scenario
+    without the occlusion, and the group's sweep points (its line, fluid and pumps are
+    built from these alone); the model's run from rest is kept under it
+    (:mod:`rheoline.model.transient_reuse`)."""
+    spec = g.scenario.transient
+    if spec is None or spec.occlusion is None:
+        return (g.scenario, tuple(g.indices))
+    return (replace(g.scenario, transient=spec.with_occlusion(None)), tuple(g.indices))
+
+
 def _solve(run):
     from rheoline.model.transient import simulate_infusion
 
     sc = run.g.scenario
     try:
-        return simulate_infusion(run.line, run.fluid, **model_inputs(run.g))
+        return simulate_infusion(
+            run.line, run.fluid, **model_inputs(run.g), reuse_key=_reuse_key(run.g)
+        )
     except RheolineError as exc:
         raise ScenarioError(
             str(exc),
