@@ -183,3 +183,17 @@ def test_a_scenario_run_with_a_kept_run_gives_the_fresh_run():
     assert len(transient_reuse._KEPT) == 1
     np.testing.assert_allclose(reused.to_numpy(float), fresh.to_numpy(float), rtol=1e-9)
     assert reused.columns.tolist() == fresh.columns.tolist()
+
+
+def test_a_fluid_registered_again_forgets_the_kept_runs():
+    # a scenario names its fluid; registered again, the name builds another liquid
+    from rheoline.model.fluids import register_fluid, unregister_fluid
+
+    transient_reuse.clear()
+    _solve(key=KEY)
+    assert len(transient_reuse._KEPT) == 1
+    register_fluid("reuse test liquid", lambda temperature_c: WATER, overwrite=True)
+    assert len(transient_reuse._KEPT) == 0
+    _solve(key=KEY)
+    unregister_fluid("reuse test liquid")
+    assert len(transient_reuse._KEPT) == 0

@@ -393,6 +393,15 @@ def register_fluid(
     FLUID_LIBRARY[key] = FluidEntry(
         builder, description, float(default_temperature_c), dict(options or {}), source, user=True
     )
+    _library_changed()
+
+
+def _library_changed():
+    """Forget the time solve's kept runs: a scenario names its fluid, and that name may now
+    build another (:mod:`rheoline.model.transient_reuse`)."""
+    from rheoline.model import transient_reuse
+
+    transient_reuse.clear()
 
 
 def unregister_fluid(name: str) -> None:
@@ -401,6 +410,7 @@ def unregister_fluid(name: str) -> None:
     if not entry.user:
         raise InputRangeError(f"{key!r} is a built-in fluid and cannot be removed")
     del FLUID_LIBRARY[key]
+    _library_changed()
 
 
 def user_fluid_from_temperatures(

@@ -12,7 +12,8 @@ the trackers' crossings and the flags of the segments' laws, the numbers of the 
 (the same arithmetic, nothing interpolated).
 
 Only solves of a few scenarios (:data:`REUSED_SCENARIOS`, the app's one point) are kept,
-the latest :data:`RUNS_KEPT`.
+the latest :data:`RUNS_KEPT`; all are forgotten when a user's fluid is registered or removed
+(:func:`rheoline.model.fluids.register_fluid`: a name in a scenario may then build another).
 
 Examples
 --------
