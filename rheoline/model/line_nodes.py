@@ -147,7 +147,8 @@ def _laminar(part):
 
 def _main_nodes(line, laws, ports):
     """Main-line nodes and their laws: the inlet, every port's junction, every boundary that
-    stores more than :data:`QUASI_STATIC` of the line's compliance, except where a segment would have no laminar loss (a constant-K fitting alone
+    stores more than :data:`QUASI_STATIC` of the line's compliance in some scenario (lifted to
+    that share in the others), except where a segment would have no laminar loss (a constant-K fitting alone
     has an infinite conductance at rest): such boundaries join the segment upstream, and
     what they store goes to the node upstream.
     """
@@ -156,10 +157,19 @@ def _main_nodes(line, laws, ports):
     laminar = [_laminar(p) for p in line.parts]
     total = sum(law.compliance(0.0) for law in laws)
     nodes = [0]
+    laws = list(laws)
+    floor = QUASI_STATIC * total
     for b in range(1, n_parts + 1):
         must = b == n_parts or b in required
-        if not (must or np.all(laws[b].compliance(0.0) > QUASI_STATIC * total)):
-            continue
+        stored = laws[b].compliance(0.0)
+        if not (must or np.any(stored > floor)):
+            continue  # negligible in every scenario: quasi-static
+        if not must and np.any(stored < floor):
+            # negligible in some scenarios only (a sweep from rigid to compliant tubing):
+            # kept as a node in all, its compliance lifted to the floor where it is below,
+            # so a scenario's figures never depend on the others' (the lift, at most
+            # QUASI_STATIC of the line's storage, keeps the node from being stiff)
+            laws[b] = laws[b] + VolumeLaw.constant(np.maximum(floor - stored, 0.0))
         if not must and not any(laminar[nodes[-1] : b]):
             continue  # joins the segment that follows
         while not any(laminar[nodes[-1] : b]):
