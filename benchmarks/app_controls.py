@@ -70,7 +70,7 @@ def run():
     app = build_app()
     built = time.perf_counter() - start
     start = time.perf_counter()
-    app.prepare()
+    app.prepare(freeze=True)  # as the served page's kernel does
     prepared = time.perf_counter() - start
     opened = {}
     for index, name in enumerate(app.views):

@@ -290,7 +290,10 @@ def test_prepare_takes_what_is_alive_out_of_full_garbage_collections(app):
 
     gc.unfreeze()  # an earlier test's freeze must not make this pass
     app.prepare()
+    assert gc.get_freeze_count() == 0  # a notebook of the user's own: nothing frozen
+    app.prepare(freeze=True)  # the served page's kernel
     assert gc.get_freeze_count() > 10_000  # modules, classes, the app: tens of thousands
+    gc.unfreeze()
 
 
 def test_saved_scenario_file_reruns_to_the_views_numbers(app, tmp_path):

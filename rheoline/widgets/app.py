@@ -157,16 +157,18 @@ class App(widgets.VBox):
         if self._slots:
             self._show(next(iter(self.views)))
 
-    def prepare(self):
+    def prepare(self, *, freeze: bool = False):
         """Ready what the other tabs need when first opened, without building their
         widgets (the page fetches every widget that exists): the modules they import and
         the time view's first solve.  The app's notebook calls it, so the served app does
         this in its preheated kernel, before anyone opens the page.
 
-        Last, what is alive then (modules, plotly's and the widgets' classes, the document)
-        lives as long as the page: it is taken out of the garbage collector's full passes
-        (``gc.freeze``), which would otherwise scan all of it (some 165,000 objects, about
-        100 ms) in the middle of whichever control change sets one off."""
+        With ``freeze=True`` (the served page's kernel, which holds nothing but the app),
+        what is alive then (modules, plotly's and the widgets' classes, the document) is
+        taken out of the garbage collector's full passes (``gc.freeze``), which would
+        otherwise scan all of it (some 165,000 objects, about 100 ms) in the middle of
+        whichever control change sets one off.  Not in a notebook of your own: frozen
+        objects in reference cycles are never freed, yours included."""
         from rheoline.widgets import blood_view, compare_view, files_view, network_view  # noqa: F401
         from rheoline.widgets.transient_view import prepare_first_run
 
@@ -175,8 +177,9 @@ class App(widgets.VBox):
                 prepare_first_run(self.document)
             except RheolineError:
                 pass  # only a head start: the tab solves again when opened and says why
-        gc.collect()  # so that only what is alive is frozen
-        gc.freeze()
+        if freeze:
+            gc.collect()  # so that only what is alive is frozen
+            gc.freeze()
 
     def _line_view(self):
         from rheoline.widgets.line_view import LineView
