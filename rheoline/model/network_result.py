@@ -13,13 +13,16 @@ from functools import cached_property
 
 import numpy as np
 
-__all__ = ["NetworkResult", "NETWORK_MODELS", "ZERO_FLOW"]
+__all__ = ["BALANCE_TOL", "NetworkResult", "NETWORK_MODELS", "ZERO_FLOW"]
 
 #: Provenance keys this module's solve adds to those of the lines' own models.
 NETWORK_MODELS = ("kirchhoff-1847", "todini-pilati-1988")
 _ML_MIN = 6e7  # m^3/s -> mL/min
 #: A branch flow within this fraction of its scenario's largest is rounding: it has no sign.
 ZERO_FLOW = 1e-12
+#: The largest mass-balance error at a node, over its scenario's largest flow, of an answer
+#: called converged.
+BALANCE_TOL = 1e-5
 
 
 def _scalar(value):
@@ -186,7 +189,9 @@ class NetworkResult:
         no finite answer and no solution with that set flow; these scenarios are solved
         again with the blocked pumps delivering nothing, as an occluded pump does at steady
         state, and their flows and other pressures are that solution; ``converged`` is
-        False), ``not_converged`` (the solver's own: its Newton steps did not settle).
+        False), ``not_converged`` (the solver's own: its Newton steps did not settle, or
+        they settled with a node's mass balance off by more than :data:`BALANCE_TOL` of the
+        scenario's largest flow).
     branch_conditions : dict
         (n_branches, *scenario_shape) boolean arrays ``reversed`` and ``closed``.
     node_conditions : dict
@@ -247,7 +252,11 @@ class NetworkResult:
         flows = np.where(np.abs(flows) <= ZERO_FLOW * scale, 0.0, flows)
         inflow = np.tensordot(topo.a_fixed.T, flows, axes=(1, 0))  # into the network
         balance = np.tensordot(topo.a_free.T, flows, axes=(1, 0)) - injection
-        imbalance = float(np.max(np.abs(balance) / scale)) if len(topo.free_nodes) else 0.0
+        unbalanced = np.max(np.abs(balance), axis=0) / scale if len(topo.free_nodes) else 0.0
+        imbalance = float(np.max(unbalanced))
+        # settled, but a node's mass balance is off (an ill-conditioned step: a branch of
+        # constant-K losses alone at rest beside laminar ones): not a converged answer
+        unbalanced = np.asarray(unbalanced > BALANCE_TOL)
         blocked = np.any(stuck_at, axis=0)
         nodes_p, drop, closed, unknown = _behind_closed_valves(
             network, topo, closed, stuck_at, nodes_p, topo.branch_drop(free_p, fixed)
@@ -271,7 +280,7 @@ class NetworkResult:
             "check_valve_closed": np.any(closed, axis=0),
             "over_pressure_limit": over,
             "pump_blocked": blocked,
-            "not_converged": ~np.asarray(done, bool),
+            "not_converged": ~np.asarray(done, bool) | unbalanced,
         }
         return cls(
             node_names=topo.nodes,
@@ -288,7 +297,7 @@ class NetworkResult:
             node_conditions={"blocked": stuck_at, "undetermined": unknown},
             iterations=int(state.steps),
             residual_passes=int(state.counter[0]),
-            converged=bool(np.all(done & ~blocked)),
+            converged=bool(np.all(done & ~blocked & ~unbalanced)),
             max_imbalance=imbalance,
             models_used=NETWORK_MODELS,
             network=network,
