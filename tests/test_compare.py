@@ -243,7 +243,7 @@ def test_rank_and_filter(bench):
 
 # --------------------------------------------------------------------------- echo
 def test_inputs_table():
-    # (the models a run used are its models_used; the pack lists them: tests/test_export.py)
+    # (the models a run used are its models_used; the pack lists them: tests/test_export_models.py)
     r = run(sc(head="80 cm", fluid="saline-0.9"))
     assert ("case", "head", "80 cm") in set(map(tuple, r.inputs.to_numpy()))
     assert ("case", "part[1].gauge", "18") in set(map(tuple, r.inputs.to_numpy()))

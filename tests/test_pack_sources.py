@@ -2,7 +2,7 @@
 
 The generator is checked here against a registry of invented entries (the provenance
 registry's own ``ModelEntry``); the packs of real runs, read against the real registry, are
-checked in tests/test_export.py.
+checked in tests/test_export_models.py.
 """
 
 from __future__ import annotations
