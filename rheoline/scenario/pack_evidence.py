@@ -168,10 +168,11 @@ def evidence_table(run):
         model_validation,
         part_kind_validation,
     )
+    from rheoline.validation.run import dataset_roles
 
     used = tuple(dict.fromkeys(run.models_used))
     model_stats = model_validation(used)
-    roles = {d.key: d.source.role for d in load_datasets()}
+    roles = dataset_roles(load_datasets())
     listed, rows = set(), []
 
     def models(subject, keys):

@@ -25,6 +25,7 @@ __all__ = [
     "EVIDENCE",
     "Target",
     "TargetResult",
+    "dataset_roles",
     "evidence_of",
     "TARGETS",
     "ValidationResult",
@@ -217,7 +218,7 @@ class ValidationResult:
         targets instead of letting a large one pass unseen.
         """
         rows = _row_index(self.datasets)
-        roles = {d.key: d.source.role for d in self.datasets}
+        roles = dataset_roles(self.datasets)
         chosen = [
             p
             for p in _counted(rows, [p for p in self.predictions if p.default])
@@ -261,6 +262,11 @@ _BLOODS = ("whole-blood", "packed-red-cells")
 def _model_keys(p: Prediction) -> tuple:
     """Keys a prediction counts under: all for a default, a blood model's own for the others."""
     return p.models if p.default else tuple(k for k in p.models if k in VARIANT_KEYS)
+
+
+def dataset_roles(datasets) -> dict:
+    """``{data set key: role}`` ("fit", "test" or "check", from ``sources.toml``)."""
+    return {d.key: d.source.role for d in datasets}
 
 
 def _row_index(datasets: tuple[DataSet, ...]) -> dict:
@@ -337,7 +343,7 @@ def _compute() -> ValidationResult:
     ratios = tuple(_temperature_ratios(rows, defaults))
     counted = _counted(rows, defaults)
     family = {d.key: d.source.family for d in datasets}
-    roles = {d.key: d.source.role for d in datasets}
+    roles = dataset_roles(datasets)
     return ValidationResult(
         datasets=datasets,
         predictions=predictions,
@@ -434,7 +440,7 @@ def _grouped(names: Iterable[str], group_of) -> dict[str, ErrorStats]:
     result = _compute()
     rows = _row_index(result.datasets)
     counted = _counted(rows, [p for p in result.predictions if p.default])
-    roles = {d.key: d.source.role for d in result.datasets}
+    roles = dataset_roles(result.datasets)
     stats = group_stats(counted, lambda p: (group_of(rows[(p.dataset, p.row)]),), _judged(roles))
     return {name: stats.get(name, _EMPTY) for name in names}
 
